@@ -1,0 +1,79 @@
+/*
+ * cell.h - the cell model: open-circuit voltage and internal resistance
+ * against depth of discharge, rate-dependent capacity, temperature factors.
+ *
+ * Owns: lw_cell (one cell type, as read from a cell file) and the pure
+ * functions of the model.  No I/O here: cellfile.c reads cell files.
+ *
+ * Units: SI inside (V, A, ohm, Ah, h); depth of discharge d is a fraction
+ * 0..1 of the effective capacity; temperatures in degrees Celsius.
+ *
+ * Model (docs/model.md):
+ *   OCV(d), R(d): linear interpolation in d between the curve's points,
+ *     clamped at the ends.  At an ambient temperature the resistance is
+ *     multiplied by the resistance factor of the temperature table and every
+ *     capacity by its capacity factor (factors interpolated linearly in
+ *     temperature, clamped; 1 without a table).  OCV is not scaled.
+ *   C_eff(Ic) = kc * min(Cmax, C * (I_rated / Ic)^(k - 1)): Peukert's law
+ *     (W. Peukert, Elektrotechnische Zeitschrift 18, 1897) referred to the
+ *     rated current, capped at the low-drain capacity Cmax.
+ *   dd/dt = Ic / C_eff(Ic).
+ */
+#ifndef LW_CELL_H
+#define LW_CELL_H
+
+#include <stdbool.h>
+#include "table.h"
+
+#define LW_NAME_MAX 64
+#define LW_PATH_MAX 512
+
+typedef enum lw_chemistry {
+    LW_CHEM_ALKALINE, LW_CHEM_NIMH, LW_CHEM_NICD, LW_CHEM_LI_FES2, LW_CHEM_LI_MNO2,
+    LW_CHEM_LI_ION, LW_CHEM_LIFEPO4, LW_CHEM_LEAD_ACID, LW_CHEM_OTHER, LW_CHEM_COUNT
+} lw_chemistry;
+
+/* Names as written in cell files ("alkaline", "nimh", ..., "other"). */
+extern const char *const lw_chemistry_names[LW_CHEM_COUNT + 1];
+
+typedef struct lw_cell {
+    char name[LW_NAME_MAX];        /* e.g. "LR6-alkaline" */
+    char path[LW_PATH_MAX];        /* cell file it came from, for messages */
+    lw_chemistry chemistry;
+    double nominal_v;              /* V, nameplate */
+    double capacity_ah;            /* Ah delivered at rated_a to cutoff_v, 20 C */
+    double rated_a;                /* A, current of the capacity rating, > 0 */
+    double peukert;                /* Peukert exponent k, 1 <= k <= 2 */
+    double max_capacity_ah;        /* Ah, low-drain cap, >= capacity_ah */
+    double cutoff_v;               /* V, end-point voltage of the rating */
+    bool rechargeable;
+    double mass_g;                 /* g, 0 when not given */
+    double self_discharge_pct_month; /* % of capacity lost per month at 20 C */
+    lw_table *ocv;                 /* depth fraction -> open-circuit V, non-increasing */
+    lw_table *res;                 /* depth fraction -> internal ohm, > 0 */
+    lw_table *temp_capacity;       /* deg C -> capacity factor, or NULL */
+    lw_table *temp_resistance;     /* deg C -> resistance factor, or NULL */
+} lw_cell;
+
+/* Drop the tables a cell holds (it does not free the struct itself). */
+void lw_cell_clear(lw_cell *cell);
+
+/* Deep-enough copy: the tables are shared by reference. */
+void lw_cell_copy(lw_cell *dst, const lw_cell *src);
+
+/* Capacity and resistance factors at ambient_c (1 without a table; clamped
+ * to the table's end values outside its range). *outside is set true when
+ * ambient_c lies outside a table's range. */
+void lw_cell_temperature_factors(const lw_cell *cell, double ambient_c, double *cap_factor,
+                                 double *res_factor, bool *outside);
+
+/* Effective capacity (Ah) at per-cell current ic_a (>= 0): Peukert's law
+ * against the rated point, capped at the low-drain capacity, times cap_factor.
+ * At ic_a == 0 it is the cap. */
+double lw_cell_capacity_ah(const lw_cell *cell, double ic_a, double cap_factor);
+
+/* True for chemistries whose cells must not be discharged past the maker's
+ * end-point voltage (lithium-ion, LiFePO4): the over-discharge warning. */
+bool lw_chemistry_needs_endpoint(lw_chemistry chem);
+
+#endif

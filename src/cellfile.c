@@ -1,0 +1,414 @@
+/*
+ * cellfile.c - cell files and the cell search path (see cellfile.h).
+ */
+#include "cellfile.h"
+
+#include <dirent.h>
+#include <math.h>
+#include <stddef.h>
+#include <stdio.h>
+#include <stdlib.h>
+#include <string.h>
+#include <sys/stat.h>
+#include "csvio.h"
+
+/* What a cell file holds besides the lw_cell itself. */
+typedef struct cellspec {
+    lw_cell cell;
+    double max_capacity_ah; /* NAN until given: defaults to capacity */
+    char curve[LW_PATH_MAX];
+    char temperature[LW_PATH_MAX];
+} cellspec;
+
+#define CK(name_, type_, field_, scale_, min_, max_, flags_, def_, help_)                     \
+    {"cell", name_, type_, offsetof(cellspec, field_), 0, scale_, min_, max_, flags_, NULL,   \
+     def_, help_}
+
+const lw_keydef lw_cell_keys[] = {
+    {"cell", "name", LW_K_TEXT, offsetof(cellspec, cell.name), LW_NAME_MAX, 1, NAN, NAN,
+     LW_KF_REQUIRED, NULL, "", "cell type name"},
+    {"cell", "chemistry", LW_K_CHOICE, offsetof(cellspec, cell.chemistry), 0, 1, NAN, NAN,
+     LW_KF_REQUIRED, lw_chemistry_names, "", "electrochemical system"},
+    CK("nominal_v", LW_K_NUM, cell.nominal_v, 1, 0, 100, LW_KF_REQUIRED | LW_KF_MIN_OPEN, "",
+       "nameplate voltage, V"),
+    CK("capacity_mah", LW_K_NUM, cell.capacity_ah, 1e-3, 0, 1e7, LW_KF_REQUIRED | LW_KF_MIN_OPEN,
+       "", "capacity at rated_ma to cutoff_v at 20 C, mAh"),
+    CK("rated_ma", LW_K_NUM, cell.rated_a, 1e-3, 0, 1e6, LW_KF_REQUIRED | LW_KF_MIN_OPEN, "",
+       "discharge current of the capacity rating, mA"),
+    CK("peukert", LW_K_NUM, cell.peukert, 1, 1, 2, 0, "1", "Peukert exponent, 1 to 2"),
+    CK("max_capacity_mah", LW_K_NUM, max_capacity_ah, 1e-3, 0, 1e7, LW_KF_MIN_OPEN, "",
+       "capacity at very low drain (cap on Peukert's law), mAh; default capacity_mah"),
+    CK("cutoff_v", LW_K_NUM, cell.cutoff_v, 1, 0, 100, LW_KF_REQUIRED | LW_KF_MIN_OPEN, "",
+       "end-point voltage, V"),
+    {"cell", "rechargeable", LW_K_BOOL, offsetof(cellspec, cell.rechargeable), 0, 1, NAN, NAN,
+     LW_KF_REQUIRED, NULL, "", "yes or no"},
+    {"cell", "curve", LW_K_TEXT, offsetof(cellspec, curve), LW_PATH_MAX, 1, NAN, NAN,
+     LW_KF_REQUIRED, NULL, "", "CSV depth_pct,open_circuit_v,resistance_ohm"},
+    {"cell", "temperature", LW_K_TEXT, offsetof(cellspec, temperature), LW_PATH_MAX, 1, NAN,
+     NAN, 0, NULL, "", "CSV temp_c,capacity_factor,resistance_factor"},
+    CK("mass_g", LW_K_NUM, cell.mass_g, 1, 0, 1e6, 0, "0", "mass of one cell, g"),
+    CK("self_discharge_pct_month", LW_K_NUM, cell.self_discharge_pct_month, 1, 0, 50, 0, "0",
+       "charge lost per month in storage at 20 C, %"),
+};
+const size_t lw_cell_nkeys = sizeof lw_cell_keys / sizeof lw_cell_keys[0];
+
+void lw_path_join(char *out, size_t size, const char *dir, const char *rel)
+{
+    if (rel[0] == '/' || !dir[0] || !strcmp(dir, "."))
+        snprintf(out, size, "%s", rel);
+    else
+        snprintf(out, size, "%s/%s", dir, rel);
+}
+
+void lw_path_dir(char *out, size_t size, const char *path)
+{
+    const char *slash = strrchr(path, '/');
+    if (!slash) {
+        snprintf(out, size, ".");
+        return;
+    }
+    size_t n = (size_t)(slash - path);
+    if (n == 0)
+        n = 1; /* "/" */
+    if (n >= size)
+        n = size - 1;
+    memcpy(out, path, n);
+    out[n] = '\0';
+}
+
+void lw_search_add(lw_search *s, const char *dir)
+{
+    if (!dir || !dir[0] || s->n == LW_SEARCH_MAX)
+        return;
+    lw_strlcpy(s->dirs[s->n++], dir, LW_PATH_MAX);
+}
+
+void lw_search_add_list(lw_search *s, const char *list)
+{
+    if (!list)
+        return;
+    while (*list) {
+        const char *colon = strchr(list, ':');
+        size_t n = colon ? (size_t)(colon - list) : strlen(list);
+        char dir[LW_PATH_MAX];
+        if (n > 0 && n < sizeof dir) {
+            memcpy(dir, list, n);
+            dir[n] = '\0';
+            lw_search_add(s, dir);
+        }
+        list += n;
+        if (*list == ':')
+            list++;
+    }
+}
+
+static const char *const curve_cols[] = {"depth_pct", "open_circuit_v", "resistance_ohm", NULL};
+static const char *const temp_cols[] = {"temp_c", "capacity_factor", "resistance_factor", NULL};
+
+static lw_status load_curve(const char *path, lw_cell *cell, lw_error *err)
+{
+    lw_csv csv;
+    lw_status st = lw_csv_read(path, &csv, err);
+    if (st != LW_OK)
+        return st;
+    st = lw_csv_expect(&csv, curve_cols, NULL, err);
+    size_t n = csv.nrow;
+    double *buf = st == LW_OK ? malloc(3 * n * sizeof *buf) : NULL;
+    if (st == LW_OK && !buf)
+        st = lw_error_set(err, LW_ENOMEM, path, 0, "out of memory");
+    int cd = lw_csv_column(&csv, "depth_pct"), co = lw_csv_column(&csv, "open_circuit_v"),
+        cr = lw_csv_column(&csv, "resistance_ohm");
+    for (size_t i = 0; st == LW_OK && i < n; i++) {
+        double d = lw_csv_at(&csv, i, cd), v = lw_csv_at(&csv, i, co), r = lw_csv_at(&csv, i, cr);
+        int line = csv.line[i];
+        if (i == 0 && d != 0.0)
+            st = lw_error_set(err, LW_EINPUT, path, line,
+                              "depth_pct must start at 0 (fresh cell), got %g", d);
+        else if (i > 0 && !(d > buf[i - 1] * 100.0))
+            st = lw_error_set(err, LW_EINPUT, path, line,
+                              "depth_pct = %g does not increase (previous row %g): the curve "
+                              "must be in order of depth",
+                              d, buf[i - 1] * 100.0);
+        else if (d > 100.0)
+            st = lw_error_set(err, LW_EINPUT, path, line, "depth_pct = %g is above 100", d);
+        else if (!(v > 0.0))
+            st = lw_error_set(err, LW_EINPUT, path, line,
+                              "open_circuit_v = %g: expected a positive voltage", v);
+        else if (i > 0 && v > buf[n + i - 1])
+            st = lw_error_set(err, LW_EINPUT, path, line,
+                              "open_circuit_v = %g rises with depth (previous row %g): expected "
+                              "a non-increasing curve",
+                              v, buf[n + i - 1]);
+        else if (!(r > 0.0))
+            st = lw_error_set(err, LW_EINPUT, path, line,
+                              "resistance_ohm = %g: expected a positive resistance", r);
+        if (st == LW_OK) {
+            buf[i] = d / 100.0;
+            buf[n + i] = v;
+            buf[2 * n + i] = r;
+        }
+    }
+    if (st == LW_OK && buf[n - 1] != 1.0)
+        st = lw_error_set(err, LW_EINPUT, path, csv.line[n - 1],
+                          "depth_pct must end at 100 (fully discharged), got %g",
+                          buf[n - 1] * 100.0);
+    if (st == LW_OK) {
+        cell->ocv = lw_table_new(buf, buf + n, n, err);
+        cell->res = cell->ocv ? lw_table_new(buf, buf + 2 * n, n, err) : NULL;
+        if (!cell->res)
+            st = err && err->code ? err->code : LW_ENOMEM;
+    }
+    free(buf);
+    lw_csv_clear(&csv);
+    return st;
+}
+
+static lw_status load_temperature(const char *path, lw_cell *cell, lw_error *err)
+{
+    lw_csv csv;
+    lw_status st = lw_csv_read(path, &csv, err);
+    if (st != LW_OK)
+        return st;
+    st = lw_csv_expect(&csv, temp_cols, NULL, err);
+    size_t n = csv.nrow;
+    double *buf = st == LW_OK ? malloc(3 * n * sizeof *buf) : NULL;
+    if (st == LW_OK && !buf)
+        st = lw_error_set(err, LW_ENOMEM, path, 0, "out of memory");
+    int ct = lw_csv_column(&csv, "temp_c"), cc = lw_csv_column(&csv, "capacity_factor"),
+        cr = lw_csv_column(&csv, "resistance_factor");
+    for (size_t i = 0; st == LW_OK && i < n; i++) {
+        double t = lw_csv_at(&csv, i, ct), c = lw_csv_at(&csv, i, cc), r = lw_csv_at(&csv, i, cr);
+        if (i > 0 && !(t > buf[i - 1]))
+            st = lw_error_set(err, LW_EINPUT, path, csv.line[i],
+                              "temp_c = %g does not increase (previous row %g)", t, buf[i - 1]);
+        else if (t < -80.0 || t > 150.0)
+            st = lw_error_set(err, LW_EINPUT, path, csv.line[i],
+                              "temp_c = %g: expected -80 to 150", t);
+        else if (!(c > 0.0 && c <= 2.0))
+            st = lw_error_set(err, LW_EINPUT, path, csv.line[i],
+                              "capacity_factor = %g: expected > 0 and <= 2", c);
+        else if (!(r > 0.0 && r <= 100.0))
+            st = lw_error_set(err, LW_EINPUT, path, csv.line[i],
+                              "resistance_factor = %g: expected > 0 and <= 100", r);
+        if (st == LW_OK) {
+            buf[i] = t;
+            buf[n + i] = c;
+            buf[2 * n + i] = r;
+        }
+    }
+    if (st == LW_OK && n < 2)
+        st = lw_error_set(err, LW_EINPUT, path, csv.line[0],
+                          "a temperature table needs at least 2 rows");
+    if (st == LW_OK) {
+        cell->temp_capacity = lw_table_new(buf, buf + n, n, err);
+        cell->temp_resistance =
+            cell->temp_capacity ? lw_table_new(buf, buf + 2 * n, n, err) : NULL;
+        if (!cell->temp_resistance)
+            st = err && err->code ? err->code : LW_ENOMEM;
+    }
+    free(buf);
+    lw_csv_clear(&csv);
+    return st;
+}
+
+static lw_status apply_cell_entries(const lw_ini *ini, cellspec *spec, bool *given,
+                                    lw_error *err)
+{
+    for (size_t i = 0; i < ini->n; i++) {
+        const lw_ini_entry *e = &ini->entries[i];
+        const lw_keydef *d = lw_key_find(lw_cell_keys, lw_cell_nkeys, e->section, e->key);
+        if (!d)
+            return lw_key_unknown(lw_cell_keys, lw_cell_nkeys, e->section, e->key, ini->path,
+                                  e->line, err);
+        lw_status st = lw_key_apply(d, spec, e->value, ini->path, e->line, err);
+        if (st != LW_OK)
+            return st;
+        given[d - lw_cell_keys] = true;
+    }
+    return LW_OK;
+}
+
+static lw_status check_cell(const lw_ini *ini, cellspec *spec, const bool *given,
+                            lw_error *err)
+{
+    int sec = lw_ini_section_line(ini, "cell");
+    for (size_t k = 0; k < lw_cell_nkeys; k++)
+        if ((lw_cell_keys[k].flags & LW_KF_REQUIRED) && !given[k])
+            return lw_error_set(err, LW_EINPUT, ini->path, sec ? sec : 1,
+                                "[cell] is missing the key '%s' (%s)", lw_cell_keys[k].name,
+                                lw_cell_keys[k].help);
+    lw_cell *c = &spec->cell;
+    c->max_capacity_ah = isnan(spec->max_capacity_ah) ? c->capacity_ah : spec->max_capacity_ah;
+    if (c->max_capacity_ah < c->capacity_ah) {
+        return lw_error_set(err, LW_EINPUT, ini->path,
+                            lw_ini_key_line(ini, "cell", "max_capacity_mah"),
+                            "max_capacity_mah (%g) is below capacity_mah (%g): the low-drain "
+                            "capacity cannot be smaller than the rated one",
+                            c->max_capacity_ah * 1e3, c->capacity_ah * 1e3);
+    }
+    return LW_OK;
+}
+
+lw_status lw_cell_load(const char *path, lw_cell *cell, lw_error *err)
+{
+    memset(cell, 0, sizeof *cell);
+    lw_ini ini;
+    lw_status st = lw_ini_read(path, &ini, err);
+    if (st != LW_OK)
+        return st;
+    cellspec spec;
+    memset(&spec, 0, sizeof spec);
+    spec.max_capacity_ah = NAN;
+    bool given[sizeof lw_cell_keys / sizeof lw_cell_keys[0]] = {false};
+    st = lw_key_defaults(lw_cell_keys, lw_cell_nkeys, &spec, err);
+    if (st == LW_OK)
+        st = apply_cell_entries(&ini, &spec, given, err);
+    if (st == LW_OK)
+        st = check_cell(&ini, &spec, given, err);
+    char dir[LW_PATH_MAX], file[LW_PATH_MAX];
+    lw_path_dir(dir, sizeof dir, path);
+    if (st == LW_OK) {
+        lw_path_join(file, sizeof file, dir, spec.curve);
+        st = load_curve(file, &spec.cell, err);
+    }
+    if (st == LW_OK && spec.temperature[0]) {
+        lw_path_join(file, sizeof file, dir, spec.temperature);
+        st = load_temperature(file, &spec.cell, err);
+    }
+    if (st == LW_OK && !(spec.cell.cutoff_v < spec.cell.ocv->y[0])) {
+        st = lw_error_set(err, LW_EINPUT, path, lw_ini_key_line(&ini, "cell", "cutoff_v"),
+                          "cutoff_v = %g is not below the fresh open-circuit voltage %g",
+                          spec.cell.cutoff_v, spec.cell.ocv->y[0]);
+    }
+    lw_ini_clear(&ini);
+    if (st != LW_OK) {
+        lw_cell_clear(&spec.cell);
+        return st;
+    }
+    lw_strlcpy(spec.cell.path, path, sizeof spec.cell.path);
+    *cell = spec.cell;
+    return LW_OK;
+}
+
+static bool is_file(const char *path)
+{
+    struct stat sb;
+    return stat(path, &sb) == 0 && S_ISREG(sb.st_mode);
+}
+
+lw_status lw_cell_find(const char *ref, const char *base_dir, const lw_search *search,
+                       char *path, size_t size, lw_error *err)
+{
+    size_t len = strlen(ref);
+    bool is_path = strchr(ref, '/') || (len > 4 && !strcmp(ref + len - 4, ".ini"));
+    char cand[LW_PATH_MAX], name[LW_PATH_MAX];
+    if (is_path) {
+        lw_path_join(cand, sizeof cand, base_dir, ref);
+        if (!is_file(cand))
+            return lw_error_set(err, LW_EINPUT, NULL, 0, "cell file '%s' not found", cand);
+        lw_strlcpy(path, cand, size);
+        return LW_OK;
+    }
+    snprintf(name, sizeof name, "%s.ini", ref);
+    lw_path_join(cand, sizeof cand, base_dir, name);
+    if (is_file(cand)) {
+        lw_strlcpy(path, cand, size);
+        return LW_OK;
+    }
+    char tried[1024];
+    snprintf(tried, sizeof tried, "%s", base_dir);
+    for (size_t i = 0; search && i < search->n; i++) {
+        lw_path_join(cand, sizeof cand, search->dirs[i], name);
+        if (is_file(cand)) {
+            lw_strlcpy(path, cand, size);
+            return LW_OK;
+        }
+        strncat(tried, ", ", sizeof tried - strlen(tried) - 1);
+        strncat(tried, search->dirs[i], sizeof tried - strlen(tried) - 1);
+    }
+    return lw_error_set(err, LW_EINPUT, NULL, 0,
+                        "no cell named '%s' (looked for %s in: %s; see 'lampwick cells')", ref,
+                        name, tried);
+}
+
+static int cmp_str(const void *a, const void *b)
+{
+    return strcmp(*(char *const *)a, *(char *const *)b);
+}
+
+void lw_cell_names_free(char **names, char **paths, size_t n)
+{
+    for (size_t i = 0; i < n; i++) {
+        free(names ? names[i] : NULL);
+        free(paths ? paths[i] : NULL);
+    }
+    free(names);
+    free(paths);
+}
+
+lw_status lw_cell_names(const lw_search *search, char ***names_out, char ***paths_out,
+                        size_t *n_out, lw_error *err)
+{
+    char **names = NULL, **paths = NULL;
+    size_t n = 0, cap = 0;
+    for (size_t i = 0; i < search->n; i++) {
+        DIR *dir = opendir(search->dirs[i]);
+        if (!dir)
+            continue;
+        size_t first = n;
+        struct dirent *de;
+        while ((de = readdir(dir)) != NULL) {
+            size_t len = strlen(de->d_name);
+            if (len <= 4 || strcmp(de->d_name + len - 4, ".ini") != 0 || de->d_name[0] == '.')
+                continue;
+            char name[LW_PATH_MAX];
+            snprintf(name, sizeof name, "%.*s", (int)(len - 4), de->d_name);
+            bool dup = false;
+            for (size_t k = 0; k < n && !dup; k++)
+                dup = !strcmp(names[k], name);
+            if (dup)
+                continue;
+            if (n == cap) {
+                cap = cap ? 2 * cap : 32;
+                char **nn = realloc(names, cap * sizeof *nn);
+                if (nn)
+                    names = nn;
+                char **pp = nn ? realloc(paths, cap * sizeof *pp) : NULL;
+                if (pp)
+                    paths = pp;
+                if (!nn || !pp) {
+                    closedir(dir);
+                    lw_cell_names_free(names, paths, n);
+                    return lw_error_set(err, LW_ENOMEM, NULL, 0, "out of memory");
+                }
+            }
+            char full[LW_PATH_MAX];
+            lw_path_join(full, sizeof full, search->dirs[i], de->d_name);
+            names[n] = strdup(name);
+            paths[n] = strdup(full);
+            if (!names[n] || !paths[n]) {
+                free(names[n]);
+                free(paths[n]);
+                closedir(dir);
+                lw_cell_names_free(names, paths, n);
+                return lw_error_set(err, LW_ENOMEM, NULL, 0, "out of memory");
+            }
+            n++;
+        }
+        closedir(dir);
+        /* sort this folder's names, keeping paths alongside */
+        for (size_t a = first + 1; a < n; a++)
+            for (size_t b = a; b > first && cmp_str(&names[b - 1], &names[b]) > 0; b--) {
+                char *t = names[b];
+                names[b] = names[b - 1];
+                names[b - 1] = t;
+                t = paths[b];
+                paths[b] = paths[b - 1];
+                paths[b - 1] = t;
+            }
+    }
+    *names_out = names;
+    *paths_out = paths;
+    *n_out = n;
+    return LW_OK;
+}

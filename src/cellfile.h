@@ -1,0 +1,64 @@
+/*
+ * cellfile.h - cell files: reading cells/NAME.ini and its CSV curves, and
+ * finding a cell by name along the search path.
+ *
+ * Owns: the cell-file schema (docs/formats.md), lw_search (the folders a cell
+ * name is looked up in), lw_cell_load() and lw_cell_find().
+ *
+ * Cell file keys ([cell] section; units in the names, converted to SI here):
+ *   name, chemistry, nominal_v, capacity_mah, rated_ma, peukert (1),
+ *   max_capacity_mah (= capacity_mah), cutoff_v, rechargeable, curve,
+ *   temperature, mass_g (0), self_discharge_pct_month (0)
+ * Curve CSV: depth_pct, open_circuit_v, resistance_ohm; depth from 0 to 100,
+ * strictly increasing; open-circuit voltage positive and non-increasing;
+ * resistance positive.
+ * Temperature CSV: temp_c, capacity_factor, resistance_factor; temperature
+ * strictly increasing; factors positive.
+ */
+#ifndef LW_CELLFILE_H
+#define LW_CELLFILE_H
+
+#include <stddef.h>
+#include "cell.h"
+#include "inifile.h"
+
+#define LW_SEARCH_MAX 16
+
+typedef struct lw_search {
+    char dirs[LW_SEARCH_MAX][LW_PATH_MAX];
+    size_t n;
+} lw_search;
+
+/* Append a folder (ignored when empty or the list is full). */
+void lw_search_add(lw_search *s, const char *dir);
+/* Append each folder of a colon-separated list. */
+void lw_search_add_list(lw_search *s, const char *list);
+
+/* The cell-file schema, for documentation and tests. */
+extern const lw_keydef lw_cell_keys[];
+extern const size_t lw_cell_nkeys;
+
+/* Load a cell file and the CSV files it names (relative to its folder).
+ * On failure *cell is left empty.  Free with lw_cell_clear. */
+lw_status lw_cell_load(const char *path, lw_cell *cell, lw_error *err);
+
+/* Resolve a cell reference: a path (contains '/' or ends in ".ini") is taken
+ * relative to base_dir; a name is looked up as NAME.ini in base_dir, then in
+ * each folder of `search`.  Writes the file's path on success; the error
+ * lists the folders searched. */
+lw_status lw_cell_find(const char *ref, const char *base_dir, const lw_search *search,
+                       char *path, size_t size, lw_error *err);
+
+/* Names (file names without ".ini") of the cell files in the search folders,
+ * first folder first, each name once, sorted within a folder.  *names is a
+ * malloc'd array of malloc'd strings; free with lw_cell_names_free. */
+lw_status lw_cell_names(const lw_search *search, char ***names, char ***paths, size_t *n,
+                        lw_error *err);
+void lw_cell_names_free(char **names, char **paths, size_t n);
+
+/* Join dir and rel ("rel" when rel is absolute or dir is empty). */
+void lw_path_join(char *out, size_t size, const char *dir, const char *rel);
+/* The folder part of a path ("." when there is none). */
+void lw_path_dir(char *out, size_t size, const char *path);
+
+#endif

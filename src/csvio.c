@@ -1,0 +1,351 @@
+/*
+ * csvio.c - CSV reading and writing through libcsv, atomic output files
+ * (see csvio.h).
+ */
+#include "csvio.h"
+
+#include <csv.h>
+#include <ctype.h>
+#include <errno.h>
+#include <math.h>
+#include <stdlib.h>
+#include <string.h>
+#include <strings.h>
+#include <sys/stat.h>
+#include <unistd.h>
+
+#define LW_CSV_ROWS_MAX 1000000
+
+struct rd {
+    lw_csv *csv;
+    lw_error *err;
+    int line;          /* line being fed to the parser */
+    int rec_line;      /* line where the current record started */
+    size_t field;      /* fields seen in the current record */
+    bool have_header;
+    size_t cap;
+    double rowbuf[LW_CSV_COLS_MAX];
+    bool failed;
+};
+
+static void trim_copy(char *dst, size_t size, const char *src, size_t len)
+{
+    while (len > 0 && isspace((unsigned char)*src)) {
+        src++;
+        len--;
+    }
+    while (len > 0 && isspace((unsigned char)src[len - 1]))
+        len--;
+    if (len >= size)
+        len = size - 1;
+    memcpy(dst, src, len);
+    dst[len] = '\0';
+}
+
+static void on_field(void *s, size_t len, void *data)
+{
+    struct rd *r = data;
+    lw_csv *c = r->csv;
+    if (r->failed)
+        return;
+    if (r->field == 0)
+        r->rec_line = r->line;
+    size_t idx = r->field++;
+    if (!r->have_header) {
+        if (idx >= LW_CSV_COLS_MAX) {
+            r->failed = true;
+            lw_error_set(r->err, LW_EINPUT, c->path, r->rec_line, "more than %d columns",
+                         LW_CSV_COLS_MAX);
+            return;
+        }
+        trim_copy(c->names[idx], LW_CSV_NAME_MAX, s ? s : "", s ? len : 0);
+        if (!c->names[idx][0]) {
+            r->failed = true;
+            lw_error_set(r->err, LW_EINPUT, c->path, r->rec_line,
+                         "column %zu of the header has no name", idx + 1);
+        }
+        return;
+    }
+    if (idx >= c->ncol)
+        return; /* reported as ragged at the end of the record */
+    char buf[128];
+    trim_copy(buf, sizeof buf, s ? s : "", s ? len : 0);
+    if (!lw_parse_double(buf, &r->rowbuf[idx])) {
+        r->failed = true;
+        lw_error_set(r->err, LW_EINPUT, c->path, r->rec_line,
+                     "column '%s': '%s' is not a number", c->names[idx], buf);
+    }
+}
+
+static void on_record(int ch, void *data)
+{
+    struct rd *r = data;
+    lw_csv *c = r->csv;
+    (void)ch;
+    if (r->failed) {
+        r->field = 0;
+        return;
+    }
+    if (!r->have_header) {
+        c->ncol = r->field;
+        c->header_line = r->rec_line;
+        r->have_header = true;
+        r->field = 0;
+        return;
+    }
+    if (r->field != c->ncol) {
+        r->failed = true;
+        lw_error_set(r->err, LW_EINPUT, c->path, r->rec_line,
+                     "row has %zu fields but the header has %zu", r->field, c->ncol);
+        return;
+    }
+    r->field = 0;
+    if (c->nrow == LW_CSV_ROWS_MAX) {
+        r->failed = true;
+        lw_error_set(r->err, LW_EINPUT, c->path, r->rec_line, "more than %d rows",
+                     LW_CSV_ROWS_MAX);
+        return;
+    }
+    if (c->nrow == r->cap) {
+        size_t cap = r->cap ? 2 * r->cap : 64;
+        double *v = realloc(c->v, cap * c->ncol * sizeof *v);
+        if (v)
+            c->v = v;
+        int *ln = v ? realloc(c->line, cap * sizeof *ln) : NULL;
+        if (ln)
+            c->line = ln;
+        if (!v || !ln) {
+            r->failed = true;
+            lw_error_set(r->err, LW_ENOMEM, c->path, r->rec_line, "out of memory");
+            return;
+        }
+        r->cap = cap;
+    }
+    memcpy(c->v + c->nrow * c->ncol, r->rowbuf, c->ncol * sizeof *c->v);
+    c->line[c->nrow++] = r->rec_line;
+}
+
+lw_status lw_csv_read(const char *path, lw_csv *csv, lw_error *err)
+{
+    memset(csv, 0, sizeof *csv);
+    lw_strlcpy(csv->path, path, sizeof csv->path);
+    FILE *fp = fopen(path, "rb");
+    if (!fp)
+        return lw_error_set(err, LW_EINPUT, path, 0, "cannot open: %s", strerror(errno));
+    struct csv_parser p;
+    if (csv_init(&p, CSV_STRICT | CSV_APPEND_NULL) != 0) {
+        fclose(fp);
+        return lw_error_set(err, LW_ENOMEM, path, 0, "out of memory");
+    }
+    struct rd r = {.csv = csv, .err = err};
+    char *linebuf = NULL;
+    size_t linecap = 0;
+    ssize_t got;
+    while (!r.failed && (got = getline(&linebuf, &linecap, fp)) >= 0) {
+        r.line++;
+        if ((size_t)got != csv_parse(&p, linebuf, (size_t)got, on_field, on_record, &r)) {
+            r.failed = true;
+            lw_error_set(err, LW_EINPUT, path, r.line, "CSV syntax: %s",
+                         csv_strerror(csv_error(&p)));
+        }
+    }
+    if (!r.failed && csv_fini(&p, on_field, on_record, &r) != 0 && !r.failed) {
+        r.failed = true;
+        lw_error_set(err, LW_EINPUT, path, r.line, "CSV syntax: %s",
+                     csv_strerror(csv_error(&p)));
+    }
+    bool io_error = ferror(fp);
+    free(linebuf);
+    csv_free(&p);
+    fclose(fp);
+    if (!r.failed && io_error) {
+        r.failed = true;
+        lw_error_set(err, LW_EIO, path, 0, "read error");
+    }
+    if (!r.failed && !r.have_header) {
+        r.failed = true;
+        lw_error_set(err, LW_EINPUT, path, 1, "the file is empty (expected a header row)");
+    }
+    if (!r.failed && csv->nrow == 0) {
+        r.failed = true;
+        lw_error_set(err, LW_EINPUT, path, csv->header_line, "no data rows after the header");
+    }
+    if (r.failed) {
+        lw_status code = err ? err->code : LW_EINPUT;
+        lw_csv_clear(csv);
+        return code ? code : LW_EINPUT;
+    }
+    return LW_OK;
+}
+
+void lw_csv_clear(lw_csv *csv)
+{
+    if (!csv)
+        return;
+    free(csv->v);
+    free(csv->line);
+    csv->v = NULL;
+    csv->line = NULL;
+    csv->nrow = csv->ncol = 0;
+}
+
+int lw_csv_column(const lw_csv *csv, const char *name)
+{
+    for (size_t i = 0; i < csv->ncol; i++)
+        if (!strcasecmp(csv->names[i], name))
+            return (int)i;
+    return -1;
+}
+
+static void join(char *buf, size_t size, const char *const *list)
+{
+    for (size_t i = 0; list && list[i]; i++) {
+        strncat(buf, buf[0] ? ", " : "", size - strlen(buf) - 1);
+        strncat(buf, list[i], size - strlen(buf) - 1);
+    }
+}
+
+lw_status lw_csv_expect(const lw_csv *csv, const char *const *required,
+                        const char *const *optional, lw_error *err)
+{
+    char want[512] = "";
+    join(want, sizeof want, required);
+    if (optional && optional[0]) {
+        strncat(want, " (optional: ", sizeof want - strlen(want) - 1);
+        join(want + strlen(want), sizeof want - strlen(want), optional);
+        strncat(want, ")", sizeof want - strlen(want) - 1);
+    }
+    for (size_t i = 0; required[i]; i++)
+        if (lw_csv_column(csv, required[i]) < 0)
+            return lw_error_set(err, LW_EINPUT, csv->path, csv->header_line,
+                                "missing column '%s'; expected columns: %s", required[i], want);
+    for (size_t c = 0; c < csv->ncol; c++) {
+        bool known = false;
+        for (size_t i = 0; required[i] && !known; i++)
+            known = !strcasecmp(csv->names[c], required[i]);
+        for (size_t i = 0; optional && optional[i] && !known; i++)
+            known = !strcasecmp(csv->names[c], optional[i]);
+        for (size_t k = 0; k < c && known; k++)
+            if (!strcasecmp(csv->names[c], csv->names[k]))
+                return lw_error_set(err, LW_EINPUT, csv->path, csv->header_line,
+                                    "column '%s' appears twice", csv->names[c]);
+        if (!known)
+            return lw_error_set(err, LW_EINPUT, csv->path, csv->header_line,
+                                "unknown column '%s'; expected columns: %s", csv->names[c],
+                                want);
+    }
+    return LW_OK;
+}
+
+/* ---- writing ---- */
+
+void lw_csvw_init(lw_csvw *w, FILE *fp)
+{
+    w->fp = fp;
+    w->fields = 0;
+    w->failed = false;
+}
+
+static bool needs_quotes(const char *s)
+{
+    if (!s[0])
+        return false;
+    if (isspace((unsigned char)s[0]) || isspace((unsigned char)s[strlen(s) - 1]))
+        return true;
+    return strpbrk(s, ",\"\r\n") != NULL;
+}
+
+void lw_csvw_text(lw_csvw *w, const char *s)
+{
+    if (w->fields++ > 0 && fputc(',', w->fp) == EOF)
+        w->failed = true;
+    if (needs_quotes(s)) {
+        if (csv_fwrite(w->fp, s, strlen(s)) != 0)
+            w->failed = true;
+    } else if (fputs(s, w->fp) == EOF) {
+        w->failed = true;
+    }
+}
+
+void lw_csvw_num(lw_csvw *w, double v, int sig)
+{
+    char buf[64] = "";
+    if (isfinite(v))
+        snprintf(buf, sizeof buf, "%.*g", sig, v);
+    lw_csvw_text(w, buf);
+}
+
+void lw_csvw_end_row(lw_csvw *w)
+{
+    if (fputs("\r\n", w->fp) == EOF)
+        w->failed = true;
+    w->fields = 0;
+}
+
+/* ---- output files ---- */
+
+lw_status lw_outfile_open(lw_outfile *out, const char *path, lw_error *err)
+{
+    memset(out, 0, sizeof *out);
+    lw_strlcpy(out->path, path, sizeof out->path);
+    if (!strcmp(path, "-")) {
+        out->fp = stdout;
+        out->is_stdout = true;
+        return LW_OK;
+    }
+    snprintf(out->tmp, sizeof out->tmp, "%s.tmpXXXXXX", path);
+    int fd = mkstemp(out->tmp);
+    if (fd < 0) {
+        out->tmp[0] = '\0';
+        return lw_error_set(err, LW_EIO, path, 0, "cannot write: %s", strerror(errno));
+    }
+    /* mkstemp makes the file private; give it the usual mode */
+    mode_t mask = umask(0);
+    umask(mask);
+    (void)fchmod(fd, 0666 & ~mask);
+    out->fp = fdopen(fd, "wb");
+    if (!out->fp) {
+        close(fd);
+        remove(out->tmp);
+        out->tmp[0] = '\0';
+        return lw_error_set(err, LW_EIO, path, 0, "cannot write: %s", strerror(errno));
+    }
+    return LW_OK;
+}
+
+lw_status lw_outfile_commit(lw_outfile *out, lw_error *err)
+{
+    if (!out->fp)
+        return lw_error_set(err, LW_EIO, out->path, 0, "not open");
+    if (out->is_stdout) {
+        out->fp = NULL;
+        return fflush(stdout) == 0 ? LW_OK
+                                   : lw_error_set(err, LW_EIO, "-", 0, "cannot write");
+    }
+    bool bad = ferror(out->fp) != 0;
+    if (fclose(out->fp) != 0)
+        bad = true;
+    out->fp = NULL;
+    if (!bad && rename(out->tmp, out->path) != 0)
+        bad = true;
+    if (bad) {
+        int e = errno;
+        remove(out->tmp);
+        out->tmp[0] = '\0';
+        return lw_error_set(err, LW_EIO, out->path, 0, "cannot write: %s", strerror(e));
+    }
+    out->tmp[0] = '\0';
+    return LW_OK;
+}
+
+void lw_outfile_abort(lw_outfile *out)
+{
+    if (!out)
+        return;
+    if (out->fp && !out->is_stdout)
+        fclose(out->fp);
+    out->fp = NULL;
+    if (out->tmp[0])
+        remove(out->tmp);
+    out->tmp[0] = '\0';
+}

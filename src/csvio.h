@@ -1,0 +1,84 @@
+/*
+ * csvio.h - every CSV read and write of lampwick, through libcsv.
+ *
+ * Owns: lw_csv (a numeric table read from a CSV file: a header row of
+ * column names, then rows of numbers, each row with its line number),
+ * lw_csvw (a CSV writer: RFC 4180 quoting by libcsv, CRLF line ends), and
+ * lw_outfile (an output file written under a temporary name and renamed on
+ * success, so a failed run never leaves half a file).
+ *
+ * Reading is strict (libcsv's CSV_STRICT): a bad quote, an empty file, a
+ * header without names, a row with a different number of fields than the
+ * header (ragged), or a field that is not a finite number are refused with
+ * file:line and the column name.
+ */
+#ifndef LW_CSVIO_H
+#define LW_CSVIO_H
+
+#include <stdbool.h>
+#include <stdio.h>
+#include "error.h"
+
+#define LW_CSV_NAME_MAX 64
+#define LW_CSV_COLS_MAX 64
+
+typedef struct lw_csv {
+    char path[512];
+    size_t ncol;
+    char names[LW_CSV_COLS_MAX][LW_CSV_NAME_MAX]; /* as written, trimmed */
+    int header_line;
+    size_t nrow;
+    double *v;      /* nrow * ncol, row-major */
+    int *line;      /* line of each row */
+} lw_csv;
+
+/* Read a numeric CSV file.  Free with lw_csv_clear. */
+lw_status lw_csv_read(const char *path, lw_csv *csv, lw_error *err);
+void lw_csv_clear(lw_csv *csv);
+
+/* Index of a column by name (case-insensitive), or -1. */
+int lw_csv_column(const lw_csv *csv, const char *name);
+
+/* Check that the columns are exactly `required` plus any of `optional`
+ * (NULL-terminated lists); the error names the file, header line, the
+ * unknown or missing column and the expected ones. */
+lw_status lw_csv_expect(const lw_csv *csv, const char *const *required,
+                        const char *const *optional, lw_error *err);
+
+static inline double lw_csv_at(const lw_csv *csv, size_t row, int col)
+{
+    return csv->v[row * csv->ncol + (size_t)col];
+}
+
+/* ---- writing ---- */
+
+typedef struct lw_csvw {
+    FILE *fp;
+    int fields;   /* fields written on the current row */
+    bool failed;  /* a write failed */
+} lw_csvw;
+
+void lw_csvw_init(lw_csvw *w, FILE *fp);
+void lw_csvw_text(lw_csvw *w, const char *s);
+/* A number with `sig` significant digits; NaN is written as an empty field. */
+void lw_csvw_num(lw_csvw *w, double v, int sig);
+void lw_csvw_end_row(lw_csvw *w);
+
+/* ---- output files ---- */
+
+typedef struct lw_outfile {
+    FILE *fp;
+    char path[512];
+    char tmp[600];
+    bool is_stdout;
+} lw_outfile;
+
+/* Open `path` for writing under a temporary name in the same folder ("-" is
+ * standard output). */
+lw_status lw_outfile_open(lw_outfile *out, const char *path, lw_error *err);
+/* Flush, close and rename into place; on any failure remove the temporary. */
+lw_status lw_outfile_commit(lw_outfile *out, lw_error *err);
+/* Close and remove the temporary.  Safe on an unopened or committed file. */
+void lw_outfile_abort(lw_outfile *out);
+
+#endif

@@ -1,0 +1,194 @@
+/*
+ * drive.c - operating point of a light at one depth (see drive.h).
+ */
+#include "drive.h"
+
+#include <math.h>
+
+const char *const lw_drive_type_names[LW_DRIVE_TYPE_COUNT + 1] = {"resistor", "linear-cc",
+                                                                   "converter", NULL};
+
+void lw_light_clear(lw_light *light)
+{
+    if (!light)
+        return;
+    lw_cell_clear(&light->pack.cell);
+    lw_led_clear(&light->led);
+    lw_table_free(light->drive.efficiency);
+    light->drive.efficiency = NULL;
+}
+
+void lw_light_copy(lw_light *dst, const lw_light *src)
+{
+    *dst = *src;
+    lw_cell_copy(&dst->pack.cell, &src->pack.cell);
+    lw_led_copy(&dst->led, &src->led);
+    lw_table_ref(dst->drive.efficiency);
+}
+
+void lw_light_update_factors(lw_light *light, bool *temperature_outside)
+{
+    lw_cell_temperature_factors(&light->pack.cell, light->pack.ambient_c, &light->cap_factor,
+                                &light->res_factor, temperature_outside);
+}
+
+bool lw_converter_input_current(double e_v, double r_ohm, double iq_a, double p_w, double *ip_a)
+{
+    double b = e_v + r_ohm * iq_a;
+    double c = e_v * iq_a + p_w;
+    double disc = b * b - 4.0 * r_ohm * c;
+    if (disc < 0.0 || b <= 0.0)
+        return false;
+    /* Ip = (b - sqrt(disc)) / (2R) = 2c / (b + sqrt(disc)); the second form
+     * has no cancellation and holds at R = 0. */
+    *ip_a = 2.0 * c / (b + sqrt(disc));
+    return true;
+}
+
+static double efficiency_at(const lw_drive *drv, double vin)
+{
+    if (drv->efficiency)
+        return lw_table_linear(drv->efficiency, vin) / 100.0;
+    return drv->efficiency_pct / 100.0;
+}
+
+/* Fill the string-side quantities common to the passive and linear drives. */
+static void fill_string(const lw_light *l, lw_point *pt, double i, double e_v, double r_pack)
+{
+    const int m = l->led.strings, n = l->led.count;
+    const double duty = l->drive.duty_pct / 100.0;
+    pt->led_a = i;
+    pt->led_v = lw_led_voltage(&l->led, i, &pt->extrapolated);
+    pt->pack_a = m * i;
+    pt->cell_a = pt->pack_a / l->pack.parallel;
+    pt->pack_v = e_v - pt->pack_a * r_pack;
+    pt->cell_v = pt->ocv_v - pt->cell_a * pt->r_cell_ohm;
+    pt->p_led_w = duty * m * n * pt->led_v * i;
+    pt->p_res_peak_w = i * i * l->drive.resistor_ohm;
+    pt->p_res_w = duty * m * pt->p_res_peak_w;
+    pt->p_int_w = duty * pt->pack_a * pt->pack_a * r_pack;
+    pt->p_drawn_w = duty * e_v * pt->pack_a;
+    pt->p_drv_w = pt->p_drawn_w - pt->p_led_w - pt->p_res_w - pt->p_int_w;
+    if (l->drive.type == LW_DRIVE_RESISTOR)
+        pt->p_drv_w = 0.0; /* by Kirchhoff's law; avoids reporting rounding as a loss */
+    pt->flux_lm = duty * m * n * lw_led_flux(&l->led, i, &pt->extrapolated);
+}
+
+static lw_status point_converter(const lw_light *l, double e_v, double r_pack, bool fallback,
+                                 lw_point *pt, lw_error *err)
+{
+    const lw_drive *drv = &l->drive;
+    const int m = l->led.strings, n = l->led.count;
+    const double duty = drv->duty_pct / 100.0;
+    double i = fallback ? drv->fallback_a : drv->set_a;
+    double vled = lw_led_voltage(&l->led, i, &pt->extrapolated);
+    double p_out = duty * m * n * vled * i;
+    double eta = efficiency_at(drv, e_v), ip = 0.0;
+    bool ok = false;
+    /* The efficiency may depend on the input voltage, which depends on the
+     * current drawn: a fixed point, converged in a few passes. */
+    for (int it = 0; it < 50; it++) {
+        double ip_new;
+        ok = lw_converter_input_current(e_v, r_pack, drv->quiescent_a, p_out / eta, &ip_new);
+        if (!ok)
+            break;
+        double eta_new = efficiency_at(drv, e_v - ip_new * r_pack);
+        bool done = fabs(ip_new - ip) <= 1e-13 * ip_new && eta_new == eta;
+        ip = ip_new;
+        eta = eta_new;
+        if (done || !drv->efficiency)
+            break;
+    }
+    double disc_b = e_v + r_pack * drv->quiescent_a;
+    double disc = disc_b * disc_b - 4.0 * r_pack * (e_v * drv->quiescent_a + p_out / eta);
+    double g_disc = disc / (e_v * e_v > 0 ? e_v * e_v : 1.0);
+    if (!ok) {
+        pt->regime = LW_REGIME_DROPOUT;
+        pt->regulation_margin = g_disc < 0 ? g_disc : -1e-300;
+        pt->pack_v = e_v / 2.0;
+        pt->cell_v = pt->ocv_v / 2.0;
+        pt->dtdd_h = INFINITY;
+        return LW_OK;
+    }
+    double vin = e_v - ip * r_pack;
+    pt->regime = fallback ? LW_REGIME_FALLBACK : LW_REGIME_REGULATED;
+    pt->regulation_margin = fmin(g_disc, (vin - drv->min_input_v) / e_v);
+    pt->led_a = i;
+    pt->led_v = vled;
+    pt->pack_a = ip;
+    pt->cell_a = ip / l->pack.parallel;
+    pt->pack_v = vin;
+    pt->cell_v = pt->ocv_v - pt->cell_a * pt->r_cell_ohm;
+    pt->p_led_w = p_out;
+    pt->p_res_w = pt->p_res_peak_w = 0.0;
+    pt->p_int_w = ip * ip * r_pack;
+    pt->p_drawn_w = e_v * ip;
+    pt->p_drv_w = pt->p_drawn_w - pt->p_led_w - pt->p_int_w;
+    pt->flux_lm = duty * m * n * lw_led_flux(&l->led, i, &pt->extrapolated);
+    (void)err;
+    return LW_OK;
+}
+
+lw_status lw_light_point_at(const lw_light *l, double depth, double ocv_v, double r_cell_ohm,
+                            bool fallback, lw_point *pt, lw_error *err)
+{
+    const int s = l->pack.series, p = l->pack.parallel, m = l->led.strings;
+    const double duty = l->drive.duty_pct / 100.0;
+    *pt = (lw_point){0};
+    pt->depth = depth;
+    pt->ocv_v = ocv_v;
+    pt->r_cell_ohm = r_cell_ohm;
+    double e_v = s * ocv_v;
+    double r_pack = s * r_cell_ohm / p;         /* whole pack, as seen by its current */
+    double r_share = r_pack * m;                /* pack resistance as seen by one string */
+    double r_loop = l->drive.resistor_ohm + r_share;
+    lw_status st = LW_OK;
+    double i = 0.0;
+    pt->regulation_margin = 1.0;
+    pt->regime = LW_REGIME_PASSIVE;
+    switch (l->drive.type) {
+    case LW_DRIVE_CONVERTER:
+        st = point_converter(l, e_v, r_pack, fallback, pt, err);
+        break;
+    case LW_DRIVE_LINEAR_CC: {
+        double set = l->drive.set_a;
+        double head = e_v - set * r_loop - l->led.count * lw_led_voltage(&l->led, set, NULL);
+        pt->regulation_margin = head - l->drive.dropout_v;
+        if (pt->regulation_margin >= 0.0) {
+            pt->regime = LW_REGIME_REGULATED;
+            i = set;
+        } else {
+            pt->regime = LW_REGIME_SATURATED;
+            st = lw_led_solve(&l->led, e_v - l->drive.dropout_v, r_loop, &i, &pt->extrapolated,
+                              err);
+        }
+        if (st == LW_OK)
+            fill_string(l, pt, i, e_v, r_pack);
+        break;
+    }
+    case LW_DRIVE_RESISTOR:
+    default:
+        st = lw_led_solve(&l->led, e_v, r_loop, &i, &pt->extrapolated, err);
+        if (st == LW_OK)
+            fill_string(l, pt, i, e_v, r_pack);
+        break;
+    }
+    if (st != LW_OK)
+        return st;
+    if (pt->regime != LW_REGIME_DROPOUT) {
+        double ic_avg = duty * pt->cell_a;
+        pt->dtdd_h = ic_avg > 0.0
+                         ? lw_cell_capacity_ah(&l->pack.cell, ic_avg, l->cap_factor) / ic_avg
+                         : INFINITY;
+    }
+    return LW_OK;
+}
+
+lw_status lw_light_point(const lw_light *light, double depth, bool fallback, lw_point *pt,
+                         lw_error *err)
+{
+    const lw_cell *c = &light->pack.cell;
+    double ocv = lw_table_linear(c->ocv, depth);
+    double r = lw_table_linear(c->res, depth) * light->res_factor;
+    return lw_light_point_at(light, depth, ocv, r, fallback, pt, err);
+}

@@ -1,0 +1,129 @@
+/*
+ * drive.h - drive circuits and the operating point of a whole light.
+ *
+ * Owns: lw_pack (S x P cells at an ambient temperature), lw_drive (how the
+ * LED strings are fed), lw_light (pack + LEDs + drive + cutoff rules, the
+ * complete physical description the engine runs) and lw_point (everything
+ * about the light at one depth of discharge).  No I/O.
+ *
+ * Circuit (docs/model.md): S cells in series, P strings of cells in
+ * parallel; M LED strings of N LEDs each, every string with its own drive
+ * element.  Per string, with E = S*OCV(d) and the pack's share of the loop
+ * resistance S*M*R(d)/P (all strings draw through the same pack):
+ *   resistor   E - I*(Rs + S*M*R/P) = N*V(I)                 (Kirchhoff's voltage law)
+ *   linear-cc  I = set while E - I*(Rs + S*M*R/P) - N*V(I) >= dropout;
+ *              otherwise E - dropout - I*(Rs + S*M*R/P) = N*V(I)
+ *   converter  LEDs held at I = set (or fallback); input power
+ *              P_in = P_out/eta + V_in*I_q drawn from E through S*R/P:
+ *              (E - Ip*R)*(Ip - I_q) = P_out/eta, smaller root.
+ * PWM at duty D: the on-state values above are peak values; averages
+ * (current, power, flux) are D times them; the cells see the average.
+ */
+#ifndef LW_DRIVE_H
+#define LW_DRIVE_H
+
+#include <stdbool.h>
+#include "cell.h"
+#include "led.h"
+
+typedef enum lw_drive_type {
+    LW_DRIVE_RESISTOR, LW_DRIVE_LINEAR_CC, LW_DRIVE_CONVERTER, LW_DRIVE_TYPE_COUNT
+} lw_drive_type;
+
+extern const char *const lw_drive_type_names[LW_DRIVE_TYPE_COUNT + 1];
+
+typedef struct lw_pack {
+    lw_cell cell;        /* the cell type (tables shared by reference) */
+    int series;          /* S >= 1 */
+    int parallel;        /* P >= 1 */
+    double ambient_c;    /* deg C */
+} lw_pack;
+
+typedef struct lw_drive {
+    lw_drive_type type;
+    double resistor_ohm;     /* series resistor per string, >= 0 */
+    double tolerance_pct;    /* resistor tolerance, +- % */
+    double rating_w;         /* resistor power rating, W (0: not given) */
+    double set_a;            /* regulated current per string, A */
+    double dropout_v;        /* linear-cc: minimum headroom, V */
+    double efficiency_pct;   /* converter: efficiency, % (when no table) */
+    lw_table *efficiency;    /* converter: input V -> efficiency %, or NULL */
+    double quiescent_a;      /* converter: quiescent input current, A */
+    double min_input_v;      /* converter: undervoltage lockout, V */
+    double fallback_a;       /* converter: current after dropout, A (0: off) */
+    double duty_pct;         /* PWM duty, 0 < duty <= 100 */
+    double standby_a;        /* drain while switched off, A */
+} lw_drive;
+
+typedef struct lw_cutoff {
+    double relative_pct;  /* end at this % of the 30-s output, 0 < x < 100 */
+    double flux_lm;       /* end at this absolute output; 0: no floor */
+    double cell_v;        /* end at this loaded cell voltage, V */
+} lw_cutoff;
+
+typedef struct lw_light {
+    char name[LW_NAME_MAX];
+    lw_pack pack;
+    lw_led led;
+    lw_drive drive;
+    lw_cutoff cutoff;
+    double cap_factor;    /* capacity factor at ambient (derived) */
+    double res_factor;    /* resistance factor at ambient (derived) */
+} lw_light;
+
+/* Drop every table the light holds. */
+void lw_light_clear(lw_light *light);
+/* Copy with the tables shared by reference; free both with lw_light_clear. */
+void lw_light_copy(lw_light *dst, const lw_light *src);
+/* Recompute cap_factor and res_factor from the pack's cell and ambient. */
+void lw_light_update_factors(lw_light *light, bool *temperature_outside);
+
+/* Regime of the drive at a point. */
+typedef enum lw_regime {
+    LW_REGIME_PASSIVE,     /* resistor: no regulation */
+    LW_REGIME_REGULATED,   /* linear-cc or converter holding set_a */
+    LW_REGIME_SATURATED,   /* linear-cc out of headroom */
+    LW_REGIME_FALLBACK,    /* converter at fallback_a */
+    LW_REGIME_DROPOUT      /* converter cannot draw its input power: dark */
+} lw_regime;
+
+typedef struct lw_point {
+    double depth;         /* d, fraction of effective capacity */
+    double ocv_v;         /* per cell open-circuit V */
+    double r_cell_ohm;    /* per cell internal ohm at ambient */
+    double led_a;         /* per string, peak (on-state) */
+    double led_v;         /* per LED at led_a */
+    double cell_a;        /* per cell, peak */
+    double cell_v;        /* per cell loaded V at peak current */
+    double pack_v;        /* loaded pack terminal V at peak current */
+    double pack_a;        /* pack current, peak */
+    double p_led_w;       /* average power into all LEDs */
+    double p_res_w;       /* average power in all series resistors */
+    double p_res_peak_w;  /* peak power in one series resistor */
+    double p_int_w;       /* average power in the cells' internal resistance */
+    double p_drv_w;       /* average loss in the regulator or converter */
+    double p_drawn_w;     /* average power drawn from the cells' EMF */
+    double flux_lm;       /* average light output of the whole light */
+    double dtdd_h;        /* hours per unit depth: C_eff(Ic_avg)/Ic_avg (inf if dark) */
+    double regulation_margin; /* linear-cc: headroom - dropout (V); converter: event
+                                 function for dropout; resistor: 1 */
+    lw_regime regime;
+    bool extrapolated;    /* an LED table was read beyond its last point */
+} lw_point;
+
+/* Solve the light at depth d (0..1).  `fallback` selects the converter's
+ * fallback level.  Fails only when the loop has no finite solution. */
+lw_status lw_light_point(const lw_light *light, double depth, bool fallback, lw_point *pt,
+                         lw_error *err);
+
+/* Same, with the cell's OCV and internal resistance given directly. */
+lw_status lw_light_point_at(const lw_light *light, double depth, double ocv_v,
+                            double r_cell_ohm, bool fallback, lw_point *pt, lw_error *err);
+
+/* Pack current of a converter: the smaller root of
+ * R*Ip^2 - (E + R*Iq)*Ip + (E*Iq + P) = 0, in cancellation-free form.
+ * Returns false when there is no real root (the pack cannot deliver P). */
+bool lw_converter_input_current(double e_v, double r_ohm, double iq_a, double p_w,
+                                double *ip_a);
+
+#endif

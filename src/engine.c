@@ -1,0 +1,656 @@
+/*
+ * engine.c - discharge integration in depth of discharge (see engine.h).
+ *
+ * Invariant: the totals in `tot` are the integrals from the start depth to
+ * `d_now` of the accepted pieces, and no active event has triggered before
+ * d_now.  Every operating-point solve goes through eval(), which counts it.
+ */
+#include "engine.h"
+
+#include <math.h>
+#include <stdlib.h>
+#include <string.h>
+#include "roots.h"
+
+const char *const lw_end_reason_names[LW_END_COUNT + 1] = {
+    "relative-brightness", "flux-floor", "cell-voltage", "capacity", "never-lit",
+    "driver-dropout", NULL};
+
+const char *const lw_warning_names[LW_WARN_COUNT_] = {
+    "led-over-max", "led-over-max-worst-case", "resistor-hot", "over-discharge", "never-lit",
+    "no-cutoff", "led-table-extrapolated", "temperature-outside-table", "tolerance-not-met",
+    "resistor-over-rating"};
+
+/* Gauss-Kronrod 7/15 abscissae and weights (QUADPACK qk15). */
+static const double xgk[8] = {
+    0.991455371120812639206854697526329, 0.949107912342758524526189684047851,
+    0.864864423359769072789712788640926, 0.741531185599394439863864773280788,
+    0.586087235467691130294144845693013, 0.405845151377397166906606412076961,
+    0.207784955007898467600689403773245, 0.000000000000000000000000000000000};
+static const double wgk[8] = {
+    0.022935322010529224963732008058970, 0.063092092629978553290700663189204,
+    0.104790010322250183839876322541518, 0.140653259715525918745189590510238,
+    0.169004726639267902826583426598550, 0.190350578064785409913256402421014,
+    0.204432940075298892414161999234649, 0.209482141084727828012999174891714};
+static const double wg[4] = {0.129484966168869693270611432679082,
+                             0.279705391489276667901467771423780,
+                             0.381830050505118944950369775488975,
+                             0.417959183673469387755102040816327};
+
+#define NODES 15
+enum { Q_T, Q_LMH, Q_LED, Q_RES, Q_INT, Q_DRV, Q_DRAWN, NQ };
+
+enum event_kind { EV_STOP, EV_RECORD, EV_KINK };
+enum { EV_RELATIVE, EV_FLOOR, EV_CELL_V, EV_DROPOUT, EV_HALF, EV_PEUKERT, EV_REGULATION, NEV };
+
+typedef struct engine {
+    const lw_light *l;
+    const lw_run_options *opt;
+    lw_result *res;
+    lw_error *err;
+    bool fallback;
+    double flux_ref;
+    double kink_a;            /* per-cell average current of the Peukert cap switch */
+    bool active[NEV];
+    bool positive[NEV];       /* for kinks: sign of g at the current depth */
+    double tot[NQ];
+    double d_now;
+    size_t cap_pieces;
+    bool done;
+} engine;
+
+static lw_status eval(engine *e, double d, lw_point *pt)
+{
+    e->res->solves++;
+    return lw_light_point(e->l, d, e->fallback, pt, e->err);
+}
+
+static enum event_kind kind_of(int k)
+{
+    if (k == EV_HALF)
+        return EV_RECORD;
+    if (k == EV_PEUKERT || k == EV_REGULATION)
+        return EV_KINK;
+    if (k == EV_DROPOUT)
+        return EV_KINK; /* a stop or a switch to fallback: decided when it fires */
+    return EV_STOP;
+}
+
+static double event_g(const engine *e, int k, const lw_point *pt)
+{
+    const lw_light *l = e->l;
+    switch (k) {
+    case EV_RELATIVE:
+        return pt->flux_lm - l->cutoff.relative_pct / 100.0 * e->flux_ref;
+    case EV_FLOOR:
+        return pt->flux_lm - l->cutoff.flux_lm;
+    case EV_CELL_V:
+        return pt->cell_v - l->cutoff.cell_v;
+    case EV_HALF:
+        return pt->flux_lm - 0.5 * e->flux_ref;
+    case EV_PEUKERT:
+        return l->drive.duty_pct / 100.0 * pt->cell_a - e->kink_a;
+    case EV_DROPOUT:
+    case EV_REGULATION:
+    default:
+        return pt->regulation_margin;
+    }
+}
+
+/* Has event k fired at pt (given the state at the start of the piece)? */
+static bool fired(const engine *e, int k, const lw_point *pt)
+{
+    if (!e->active[k])
+        return false;
+    double g = event_g(e, k, pt);
+    if (kind_of(k) == EV_KINK)
+        return (g > 0.0) != e->positive[k];
+    return g <= 0.0;
+}
+
+struct locate_ctx {
+    engine *e;
+    int k;
+    double sign; /* +1: g as is; -1: negated, so that "not fired" is positive */
+    bool failed;
+};
+
+static double locate_fn(double d, void *vctx)
+{
+    struct locate_ctx *c = vctx;
+    lw_point pt;
+    if (eval(c->e, d, &pt) != LW_OK) {
+        c->failed = true;
+        return NAN;
+    }
+    double g = event_g(c->e, c->k, &pt);
+    return c->sign * g;
+}
+
+/* Depth in [a, b] where event k fires; g(a) not fired, g(b) fired. */
+static lw_status locate(engine *e, int k, double a, double b, const lw_point *pa,
+                        const lw_point *pb, double *d)
+{
+    struct locate_ctx c = {e, k, 1.0, false};
+    if (kind_of(k) == EV_KINK && !e->positive[k])
+        c.sign = -1.0;
+    double ga = c.sign * event_g(e, k, pa), gb = c.sign * event_g(e, k, pb);
+    if (gb > 0.0) /* fired at exactly zero (stop events use <= 0) */
+        gb = 0.0;
+    double tol = 1e-13 * (fabs(b) + 1e-3);
+    lw_status st = lw_root_brent(locate_fn, &c, a, b, ga, gb, tol, 200, d, e->err);
+    if (st == LW_OK && c.failed)
+        st = e->err->code ? e->err->code : LW_ENUMERIC;
+    return st;
+}
+
+static void integrand(const lw_point *pt, double f[NQ])
+{
+    double w = pt->dtdd_h;
+    f[Q_T] = w;
+    f[Q_LMH] = pt->flux_lm * w;
+    f[Q_LED] = pt->p_led_w * w;
+    f[Q_RES] = pt->p_res_w * w;
+    f[Q_INT] = pt->p_int_w * w;
+    f[Q_DRV] = pt->p_drv_w * w;
+    f[Q_DRAWN] = pt->p_drawn_w * w;
+}
+
+static double node_depth(double a, double b, int j)
+{
+    /* j = 0..14 ascending: -xgk[0] .. 0 .. +xgk[0] */
+    double c = 0.5 * (a + b), h = 0.5 * (b - a);
+    return j < 7 ? c - h * xgk[j] : (j == 7 ? c : c + h * xgk[14 - j]);
+}
+
+static lw_status eval_nodes(engine *e, double a, double b, lw_point pts[NODES])
+{
+    for (int j = 0; j < NODES; j++) {
+        lw_status st = eval(e, node_depth(a, b, j), &pts[j]);
+        if (st != LW_OK)
+            return st;
+    }
+    return LW_OK;
+}
+
+/* Kronrod and Gauss sums on [a, b] from node points in ascending order. */
+static void gk_sums(double a, double b, const lw_point pts[NODES], double k[NQ], double g[NQ])
+{
+    double h = 0.5 * (b - a);
+    double f[NODES][NQ];
+    for (int j = 0; j < NODES; j++)
+        integrand(&pts[j], f[j]);
+    for (int q = 0; q < NQ; q++) {
+        double sk = wgk[7] * f[7][q], sg = wg[3] * f[7][q];
+        for (int j = 0; j < 7; j++) {
+            double pair = f[j][q] + f[14 - j][q];
+            sk += wgk[j] * pair;
+            if (j % 2 == 1)
+                sg += wg[j / 2] * pair;
+        }
+        k[q] = h * sk;
+        g[q] = h * sg;
+    }
+}
+
+static lw_status add_piece(engine *e, double a, double b)
+{
+    if (!e->opt->want_trace)
+        return LW_OK;
+    lw_result *r = e->res;
+    if (r->n_pieces == e->cap_pieces) {
+        size_t cap = e->cap_pieces ? 2 * e->cap_pieces : 64;
+        lw_piece *p = realloc(r->pieces, cap * sizeof *p);
+        if (!p)
+            return lw_error_set(e->err, LW_ENOMEM, NULL, 0, "out of memory for the trace");
+        r->pieces = p;
+        e->cap_pieces = cap;
+    }
+    r->pieces[r->n_pieces++] = (lw_piece){a, b, e->tot[Q_T], e->fallback};
+    return LW_OK;
+}
+
+static void note_point(engine *e, const lw_point *pt)
+{
+    if (pt->p_res_peak_w > e->res->peak_resistor_w)
+        e->res->peak_resistor_w = pt->p_res_peak_w;
+    if (pt->extrapolated)
+        e->res->warnings |= LW_WARN_EXTRAPOLATED;
+}
+
+/* Accept or halve [a, b] with node values already computed; no events. */
+static lw_status integrate_nodes(engine *e, double a, double b, const lw_point pts[NODES],
+                                 int depth)
+{
+    double k[NQ], g[NQ];
+    gk_sums(a, b, pts, k, g);
+    bool ok = true;
+    for (int q = 0; q < NQ; q++) {
+        if (!isfinite(k[q]))
+            return lw_error_set(e->err, LW_ENUMERIC, NULL, 0,
+                                "the discharge rate vanished inside the run near depth %.6g "
+                                "(the light went dark without reaching a cutoff)",
+                                0.5 * (a + b));
+        if (fabs(k[q] - g[q]) > e->opt->rtol * fabs(k[q]) + 1e-300)
+            ok = false;
+    }
+    if (!ok && depth < e->opt->max_halvings) {
+        double m = 0.5 * (a + b);
+        lw_point half[NODES];
+        lw_status st = eval_nodes(e, a, m, half);
+        if (st == LW_OK)
+            st = integrate_nodes(e, a, m, half, depth + 1);
+        if (st == LW_OK)
+            st = eval_nodes(e, m, b, half);
+        if (st == LW_OK)
+            st = integrate_nodes(e, m, b, half, depth + 1);
+        return st;
+    }
+    if (!ok)
+        e->res->warnings |= LW_WARN_TOLERANCE;
+    lw_status st = add_piece(e, a, b);
+    if (st != LW_OK)
+        return st;
+    for (int j = 0; j < NODES; j++)
+        note_point(e, &pts[j]);
+    bool regulated = pts[7].regime == LW_REGIME_REGULATED;
+    if (regulated)
+        e->res->regulated_h += k[Q_T];
+    for (int q = 0; q < NQ; q++)
+        e->tot[q] += k[q];
+    e->d_now = b;
+    return LW_OK;
+}
+
+static lw_status integrate_plain(engine *e, double a, double b)
+{
+    lw_point pts[NODES];
+    lw_status st = eval_nodes(e, a, b, pts);
+    return st == LW_OK ? integrate_nodes(e, a, b, pts, 0) : st;
+}
+
+static void finish(engine *e, lw_end_reason why, const lw_point *pt)
+{
+    e->res->end_reason = why;
+    e->res->end_depth = pt->depth;
+    e->res->final = *pt;
+    e->done = true;
+}
+
+/* Act on event k located at depth d (the totals already reach d). */
+static lw_status fire(engine *e, int k, double d, lw_point *pt)
+{
+    static const lw_end_reason why[] = {LW_END_RELATIVE, LW_END_FLUX_FLOOR,
+                                        LW_END_CELL_VOLTAGE, LW_END_DRIVER_DROPOUT};
+    lw_status st = eval(e, d, pt);
+    if (st != LW_OK)
+        return st;
+    if (k == EV_DROPOUT) {
+        if (!e->fallback && e->l->drive.fallback_a > 0.0) {
+            e->fallback = true;
+            st = eval(e, d, pt);
+            if (st != LW_OK)
+                return st;
+            e->positive[EV_DROPOUT] = pt->regulation_margin > 0.0;
+            if (e->positive[EV_DROPOUT])
+                return LW_OK;
+        }
+        finish(e, LW_END_DRIVER_DROPOUT, pt);
+        return LW_OK;
+    }
+    switch (kind_of(k)) {
+    case EV_STOP:
+        finish(e, why[k], pt);
+        break;
+    case EV_RECORD:
+        e->res->time_to_half_h = e->tot[Q_T];
+        e->active[k] = false;
+        break;
+    case EV_KINK:
+    default:
+        e->positive[k] = !e->positive[k];
+        break;
+    }
+    return LW_OK;
+}
+
+/* Integrate [a, b] (inside one interval of the cell curve), stopping at the
+ * first stop event.  pa is the point at a. */
+static lw_status run_interval(engine *e, double a, double b, lw_point pa, int depth)
+{
+    while (!e->done && a < b) {
+        lw_point pts[NODES + 1];
+        lw_status st = eval_nodes(e, a, b, pts);
+        if (st == LW_OK)
+            st = eval(e, b, &pts[NODES]);
+        if (st != LW_OK)
+            return st;
+        /* earliest sample interval in which any active event fires */
+        int first_k = -1;
+        double d_star = b;
+        const lw_point *prev = &pa;
+        double d_prev = a;
+        for (int j = 0; j <= NODES && first_k < 0; j++) {
+            double dj = j < NODES ? node_depth(a, b, j) : b;
+            for (int k = 0; k < NEV; k++) {
+                if (!fired(e, k, &pts[j]))
+                    continue;
+                double dk;
+                st = locate(e, k, d_prev, dj, prev, &pts[j], &dk);
+                if (st != LW_OK)
+                    return st;
+                if (first_k < 0 || dk < d_star) {
+                    first_k = k;
+                    d_star = dk;
+                }
+            }
+            prev = &pts[j];
+            d_prev = dj;
+        }
+        if (first_k < 0) {
+            if (depth >= e->opt->max_halvings)
+                return integrate_nodes(e, a, b, pts, e->opt->max_halvings);
+            /* accept if the error estimate allows; otherwise halve with events */
+            double kk[NQ], gg[NQ];
+            gk_sums(a, b, pts, kk, gg);
+            bool ok = true;
+            for (int q = 0; q < NQ; q++)
+                if (!(fabs(kk[q] - gg[q]) <= e->opt->rtol * fabs(kk[q]) + 1e-300))
+                    ok = false;
+            if (ok)
+                return integrate_nodes(e, a, b, pts, 0);
+            double m = 0.5 * (a + b);
+            lw_point pm;
+            st = run_interval(e, a, m, pa, depth + 1);
+            if (st != LW_OK || e->done)
+                return st;
+            st = eval(e, m, &pm);
+            if (st != LW_OK)
+                return st;
+            return run_interval(e, m, b, pm, depth + 1);
+        }
+        if (d_star > a) {
+            st = integrate_plain(e, a, d_star);
+            if (st != LW_OK)
+                return st;
+        }
+        st = fire(e, first_k, d_star, &pa);
+        if (st != LW_OK)
+            return st;
+        a = d_star;
+    }
+    return LW_OK;
+}
+
+lw_run_options lw_run_options_default(void)
+{
+    return (lw_run_options){.rtol = 1e-10, .max_halvings = 40, .start_depth = 0.0,
+                            .want_trace = false};
+}
+
+void lw_result_clear(lw_result *res)
+{
+    if (!res)
+        return;
+    free(res->pieces);
+    res->pieces = NULL;
+    res->n_pieces = 0;
+}
+
+lw_status lw_worst_case(const lw_light *light, lw_point *pt, lw_error *err)
+{
+    lw_light w = *light; /* shallow: tables borrowed, never freed here */
+    const lw_cell *c = &light->pack.cell;
+    double r_min = c->res->y[0];
+    for (size_t i = 1; i < c->res->n; i++)
+        r_min = fmin(r_min, c->res->y[i]);
+    w.drive.resistor_ohm *= 1.0 - light->drive.tolerance_pct / 100.0;
+    w.led.v_scale = light->led.v_scale * (1.0 - light->led.forward_spread_pct / 100.0);
+    return lw_light_point_at(&w, 0.0, c->ocv->y[0], r_min * light->res_factor, false, pt, err);
+}
+
+static void set_warnings(const lw_light *l, lw_result *r)
+{
+    double max_a = l->led.max_current_a;
+    if (max_a > 0.0 && r->initial.led_a > max_a)
+        r->warnings |= LW_WARN_LED_OVER_MAX;
+    if (max_a > 0.0 && r->worst_led_a > max_a)
+        r->warnings |= LW_WARN_LED_OVER_MAX_WORST;
+    double p_res = fmax(r->peak_resistor_w, r->worst_resistor_w);
+    if (l->drive.rating_w > 0.0 && p_res > 0.5 * l->drive.rating_w)
+        r->warnings |= LW_WARN_RESISTOR_HOT;
+    if (l->drive.rating_w > 0.0 && p_res > l->drive.rating_w)
+        r->warnings |= LW_WARN_RESISTOR_OVER_RATING;
+    if (lw_chemistry_needs_endpoint(l->pack.cell.chemistry) &&
+        (l->cutoff.cell_v < l->pack.cell.cutoff_v || r->end_reason == LW_END_CAPACITY))
+        r->warnings |= LW_WARN_OVER_DISCHARGE;
+    if (r->end_reason == LW_END_NEVER_LIT)
+        r->warnings |= LW_WARN_NEVER_LIT;
+    if (r->end_reason == LW_END_CAPACITY)
+        r->warnings |= LW_WARN_NO_CUTOFF;
+}
+
+/* Depth 30 s after switch-on, by the trapezoid rule on dt/dd (two passes;
+ * the interval is so short that the rule's error is far below the tolerance). */
+static lw_status depth_at_30s(engine *e, const lw_point *p0, lw_point *p30)
+{
+    const double t30_h = 30.0 / 3600.0;
+    double d0 = e->opt->start_depth;
+    double d = fmin(1.0, d0 + t30_h / p0->dtdd_h);
+    for (int pass = 0; pass < 2; pass++) {
+        lw_status st = eval(e, d, p30);
+        if (st != LW_OK)
+            return st;
+        if (!isfinite(p30->dtdd_h))
+            return LW_OK;
+        d = fmin(1.0, d0 + 2.0 * t30_h / (p0->dtdd_h + p30->dtdd_h));
+    }
+    return eval(e, d, p30);
+}
+
+static void init_events(engine *e, const lw_point *p0)
+{
+    const lw_light *l = e->l;
+    const lw_cell *c = &l->pack.cell;
+    memset(e->active, 0, sizeof e->active);
+    e->active[EV_RELATIVE] = true;
+    e->active[EV_FLOOR] = l->cutoff.flux_lm > 0.0;
+    e->active[EV_CELL_V] = true;
+    e->active[EV_HALF] = true;
+    e->active[EV_DROPOUT] = l->drive.type == LW_DRIVE_CONVERTER;
+    e->active[EV_REGULATION] = l->drive.type == LW_DRIVE_LINEAR_CC;
+    if (c->peukert > 1.0) {
+        e->kink_a = c->rated_a * pow(c->capacity_ah / c->max_capacity_ah, 1.0 / (c->peukert - 1.0));
+        e->active[EV_PEUKERT] = true;
+    }
+    for (int k = 0; k < NEV; k++)
+        e->positive[k] = event_g(e, k, p0) > 0.0;
+}
+
+static lw_status run_body(engine *e, lw_point p0)
+{
+    const lw_table *curve = e->l->pack.cell.ocv;
+    /* a stop event already true at switch-on ends the run there */
+    for (int k = 0; k < NEV; k++) {
+        if (e->active[k] && kind_of(k) == EV_STOP && event_g(e, k, &p0) <= 0.0) {
+            finish(e, k == EV_RELATIVE ? LW_END_RELATIVE
+                      : k == EV_FLOOR  ? LW_END_FLUX_FLOOR
+                                       : LW_END_CELL_VOLTAGE,
+                   &p0);
+            return LW_OK;
+        }
+    }
+    double a = e->opt->start_depth;
+    lw_point pa = p0;
+    for (size_t i = 0; i + 1 < curve->n && !e->done; i++) {
+        double b = curve->x[i + 1];
+        if (b <= a)
+            continue;
+        if (i + 2 == curve->n)
+            b = fmax(b, 1.0);
+        lw_status st = run_interval(e, a, b, pa, 0);
+        if (st != LW_OK)
+            return st;
+        if (!e->done) {
+            a = b;
+            st = eval(e, a, &pa);
+            if (st != LW_OK)
+                return st;
+        }
+    }
+    if (!e->done)
+        finish(e, LW_END_CAPACITY, &pa);
+    return LW_OK;
+}
+
+lw_status lw_run(const lw_light *light, const lw_run_options *opt, lw_result *res, lw_error *err)
+{
+    lw_run_options defaults = lw_run_options_default();
+    if (!opt)
+        opt = &defaults;
+    memset(res, 0, sizeof *res);
+    res->time_to_half_h = NAN;
+    engine e = {.l = light, .opt = opt, .res = res, .err = err};
+    lw_status st = lw_worst_case(light, &res->initial, err);
+    if (st != LW_OK)
+        return st;
+    res->worst_led_a = res->initial.led_a;
+    res->worst_resistor_w = res->initial.p_res_peak_w;
+    lw_point p0, p30;
+    st = eval(&e, opt->start_depth, &p0);
+    if (st != LW_OK)
+        return st;
+    if (p0.regime == LW_REGIME_DROPOUT && light->drive.fallback_a > 0.0) {
+        e.fallback = true;
+        st = eval(&e, opt->start_depth, &p0);
+        if (st != LW_OK)
+            return st;
+    }
+    res->initial = p0;
+    res->peak_resistor_w = p0.p_res_peak_w;
+    e.d_now = opt->start_depth;
+    if (!(p0.flux_lm > 0.0) || !isfinite(p0.dtdd_h)) {
+        finish(&e, LW_END_NEVER_LIT, &p0);
+    } else {
+        st = depth_at_30s(&e, &p0, &p30);
+        if (st != LW_OK)
+            return st;
+        e.flux_ref = p30.flux_lm > 0.0 ? p30.flux_lm : p0.flux_lm;
+        init_events(&e, &p0);
+        st = run_body(&e, p0);
+        if (st != LW_OK) {
+            lw_result_clear(res);
+            return st;
+        }
+    }
+    res->flux_ref_lm = e.flux_ref;
+    res->runtime_h = e.tot[Q_T];
+    res->lumen_hours = e.tot[Q_LMH];
+    res->energy_led_wh = e.tot[Q_LED];
+    res->energy_resistor_wh = e.tot[Q_RES];
+    res->energy_internal_wh = e.tot[Q_INT];
+    res->energy_driver_wh = e.tot[Q_DRV];
+    res->energy_drawn_wh = e.tot[Q_DRAWN];
+    if (light->drive.type == LW_DRIVE_RESISTOR)
+        res->regulated_h = NAN;
+    bool outside = false;
+    double cf, rf;
+    lw_cell_temperature_factors(&light->pack.cell, light->pack.ambient_c, &cf, &rf, &outside);
+    if (outside)
+        res->warnings |= LW_WARN_TEMPERATURE;
+    set_warnings(light, res);
+    return LW_OK;
+}
+
+/* ---- trace ------------------------------------------------------------ */
+
+void lw_trace_clear(lw_trace *trace)
+{
+    if (!trace)
+        return;
+    free(trace->rows);
+    trace->rows = NULL;
+    trace->n = 0;
+}
+
+static double time_over(engine *e, double a, double b, lw_status *st)
+{
+    lw_point pts[NODES];
+    *st = eval_nodes(e, a, b, pts);
+    if (*st != LW_OK)
+        return 0.0;
+    double k[NQ], g[NQ];
+    gk_sums(a, b, pts, k, g);
+    return k[Q_T];
+}
+
+lw_status lw_trace_build(const lw_light *light, const lw_result *res, size_t min_rows,
+                         lw_trace *trace, lw_error *err)
+{
+    trace->rows = NULL;
+    trace->n = 0;
+    lw_run_options opt = lw_run_options_default();
+    lw_result scratch = {0};
+    engine e = {.l = light, .opt = &opt, .res = &scratch, .err = err};
+    size_t per_piece = res->n_pieces ? (min_rows + res->n_pieces - 1) / res->n_pieces : 1;
+    if (per_piece < 1)
+        per_piece = 1;
+    /* first pass: how many rows each piece gets (denser where output bends) */
+    size_t total = 1;
+    size_t *k = calloc(res->n_pieces + 1, sizeof *k);
+    if (!k)
+        return lw_error_set(err, LW_ENOMEM, NULL, 0, "out of memory for the trace");
+    lw_status st = LW_OK;
+    for (size_t i = 0; i < res->n_pieces && st == LW_OK; i++) {
+        lw_point p0, p1;
+        e.fallback = res->pieces[i].fallback;
+        st = eval(&e, res->pieces[i].d0, &p0);
+        if (st == LW_OK)
+            st = eval(&e, res->pieces[i].d1, &p1);
+        double bend = res->flux_ref_lm > 0 ? fabs(p1.flux_lm - p0.flux_lm) / res->flux_ref_lm
+                                           : 0.0;
+        size_t n = per_piece + (size_t)ceil(bend / 0.01);
+        k[i] = n > 200 ? 200 : n;
+        total += k[i];
+    }
+    lw_trace_row *rows = st == LW_OK ? malloc(total * sizeof *rows) : NULL;
+    if (st == LW_OK && !rows)
+        st = lw_error_set(err, LW_ENOMEM, NULL, 0, "out of memory for the trace");
+    size_t n = 0;
+    if (st == LW_OK) {
+        rows[n] = (lw_trace_row){0.0, res->initial, 0.0};
+        n++;
+    }
+    for (size_t i = 0; i < res->n_pieces && st == LW_OK; i++) {
+        const lw_piece *pc = &res->pieces[i];
+        e.fallback = pc->fallback;
+        double t = pc->t0_h, dprev = pc->d0;
+        for (size_t j = 1; j <= k[i] && st == LW_OK; j++) {
+            double d = pc->d0 + (pc->d1 - pc->d0) * (double)j / (double)k[i];
+            if (j == k[i])
+                d = pc->d1;
+            t += time_over(&e, dprev, d, &st);
+            if (st == LW_OK)
+                st = eval(&e, d, &rows[n].pt);
+            rows[n].t_h = t;
+            n++;
+            dprev = d;
+        }
+    }
+    free(k);
+    if (st != LW_OK) {
+        free(rows);
+        return st;
+    }
+    /* the last row is the end of the run itself */
+    if (n > 1) {
+        rows[n - 1].t_h = res->runtime_h;
+        rows[n - 1].pt = res->final;
+    }
+    for (size_t i = 0; i < n; i++)
+        rows[i].pct_of_ref =
+            res->flux_ref_lm > 0 ? 100.0 * rows[i].pt.flux_lm / res->flux_ref_lm : 0.0;
+    trace->rows = rows;
+    trace->n = n;
+    return LW_OK;
+}

@@ -1,0 +1,127 @@
+/*
+ * engine.h - the discharge engine: integrate a light's run in depth of
+ * discharge, locate its end exactly, and keep the energy ledger and trace.
+ *
+ * Owns: lw_run_options, lw_result, lw_trace and lw_run().
+ *
+ * Method (docs/model.md): with d the depth of discharge of each cell,
+ * dd/dt = Ic/C_eff(Ic), so t(d) = integral of C_eff/Ic dd, and every other
+ * total (lumen-hours, energies) is the integral of its rate times dt/dd.
+ * Within one interval of the cell curve the integrands are smooth, so each
+ * interval is integrated with the 15-point Gauss-Kronrod rule, its error
+ * estimated against the embedded 7-point Gauss rule and halved until the
+ * estimate is within the relative tolerance (R. Piessens et al., QUADPACK,
+ * Springer 1983).  Events -- the end conditions, 50 % output, and kinks of
+ * the model (the Peukert low-drain cap, a regulator leaving regulation) --
+ * are watched at every node; where one changes sign it is located with
+ * Brent's method and the integration breaks there, so each end is found
+ * exactly, not at a step edge.
+ *
+ * End of run, the first of: output <= relative_pct % of the output 30 s after
+ * switch-on (ANSI/PLATO FL 1 runtime definition), output <= flux floor,
+ * loaded cell voltage <= cell end point, converter dropout without fallback,
+ * or d = 1.
+ */
+#ifndef LW_ENGINE_H
+#define LW_ENGINE_H
+
+#include <stddef.h>
+#include "drive.h"
+
+typedef enum lw_end_reason {
+    LW_END_RELATIVE, LW_END_FLUX_FLOOR, LW_END_CELL_VOLTAGE, LW_END_CAPACITY, LW_END_NEVER_LIT,
+    LW_END_DRIVER_DROPOUT, LW_END_COUNT
+} lw_end_reason;
+
+extern const char *const lw_end_reason_names[LW_END_COUNT + 1];
+
+/* Warning flags of a run. */
+enum {
+    LW_WARN_LED_OVER_MAX = 1u << 0,      /* nominal LED current above max at fresh cells */
+    LW_WARN_LED_OVER_MAX_WORST = 1u << 1,/* worst case (tolerances) above max */
+    LW_WARN_RESISTOR_HOT = 1u << 2,      /* resistor power above half its rating */
+    LW_WARN_OVER_DISCHARGE = 1u << 3,    /* lithium cell taken below its end-point voltage */
+    LW_WARN_NEVER_LIT = 1u << 4,
+    LW_WARN_NO_CUTOFF = 1u << 5,         /* ran to full depth without reaching its cutoff */
+    LW_WARN_EXTRAPOLATED = 1u << 6,      /* an LED table was read beyond its last point */
+    LW_WARN_TEMPERATURE = 1u << 7,       /* ambient outside the cell's temperature table */
+    LW_WARN_TOLERANCE = 1u << 8,         /* integration tolerance not met somewhere */
+    LW_WARN_RESISTOR_OVER_RATING = 1u << 9, /* resistor power above its rating */
+    LW_WARN_COUNT_ = 10
+};
+
+/* Short machine names of the warning flags, by bit index. */
+extern const char *const lw_warning_names[LW_WARN_COUNT_];
+
+typedef struct lw_run_options {
+    double rtol;          /* relative tolerance of each integral, default 1e-10 */
+    int max_halvings;     /* cap on interval halving, default 40 */
+    double start_depth;   /* depth at switch-on (after storage), 0..1, default 0 */
+    bool want_trace;      /* record the pieces for lw_trace_build */
+} lw_run_options;
+
+/* Defaults as documented above. */
+lw_run_options lw_run_options_default(void);
+
+/* One accepted integration piece, kept for the trace. */
+typedef struct lw_piece {
+    double d0, d1;        /* depth interval */
+    double t0_h;          /* time at d0 */
+    bool fallback;        /* drive level in this piece */
+} lw_piece;
+
+typedef struct lw_result {
+    lw_end_reason end_reason;
+    double runtime_h;       /* switch-on to the end */
+    double end_depth;
+    double time_to_half_h;  /* to 50 % of the 30-s output; NAN if not reached */
+    double regulated_h;     /* hours in regulation (NAN for a resistor drive) */
+    double flux_ref_lm;     /* output 30 s after switch-on */
+    lw_point initial;       /* at switch-on */
+    lw_point final;         /* at the end */
+    double lumen_hours;
+    double energy_led_wh, energy_resistor_wh, energy_internal_wh, energy_driver_wh;
+    double energy_drawn_wh;
+    double peak_resistor_w; /* largest power in one series resistor, nominal */
+    double worst_led_a;     /* fresh cells, worst-case tolerances, per string peak */
+    double worst_resistor_w;/* same, power in one resistor */
+    int solves;             /* operating-point solves */
+    unsigned warnings;      /* LW_WARN_* */
+    lw_piece *pieces;       /* with want_trace: accepted pieces, owned */
+    size_t n_pieces;
+} lw_result;
+
+/* Run the light from options->start_depth to its end.  A light that never
+ * lights returns LW_OK with end_reason LW_END_NEVER_LIT.  Fails only on a
+ * numerical failure (LW_ENUMERIC) or a loop without finite solution
+ * (LW_EINPUT) or memory (LW_ENOMEM).  Free with lw_result_clear. */
+lw_status lw_run(const lw_light *light, const lw_run_options *opt, lw_result *res,
+                 lw_error *err);
+
+void lw_result_clear(lw_result *res);
+
+/* Worst case at fresh cells: highest OCV (the curve's first point), lowest
+ * internal resistance (the curve's minimum), resistor at minus its tolerance,
+ * LED forward voltage at minus its spread.  Fills *pt. */
+lw_status lw_worst_case(const lw_light *light, lw_point *pt, lw_error *err);
+
+/* One row of a trace. */
+typedef struct lw_trace_row {
+    double t_h;
+    lw_point pt;
+    double pct_of_ref;     /* light output in % of the 30-s output */
+} lw_trace_row;
+
+typedef struct lw_trace {
+    lw_trace_row *rows;
+    size_t n;
+} lw_trace;
+
+/* Build a trace from a result run with want_trace: points dense where the
+ * output bends, at least min_rows, ending exactly at the end of the run.
+ * Free with lw_trace_clear. */
+lw_status lw_trace_build(const lw_light *light, const lw_result *res, size_t min_rows,
+                         lw_trace *trace, lw_error *err);
+void lw_trace_clear(lw_trace *trace);
+
+#endif

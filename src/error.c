@@ -1,0 +1,123 @@
+/*
+ * error.c - the error record and strict number parsing (see error.h).
+ */
+#include "error.h"
+
+#include <ctype.h>
+#include <errno.h>
+#include <limits.h>
+#include <math.h>
+#include <stdarg.h>
+#include <stdio.h>
+#include <stdlib.h>
+#include <string.h>
+
+void lw_error_clear(lw_error *err)
+{
+    if (!err)
+        return;
+    err->code = LW_OK;
+    err->file[0] = '\0';
+    err->line = 0;
+    err->msg[0] = '\0';
+}
+
+lw_status lw_error_set(lw_error *err, lw_status code, const char *file, int line,
+                       const char *fmt, ...)
+{
+    if (!err || err->code != LW_OK)
+        return code;
+    err->code = code;
+    lw_strlcpy(err->file, file ? file : "", sizeof err->file);
+    err->line = line;
+    va_list ap;
+    va_start(ap, fmt);
+    vsnprintf(err->msg, sizeof err->msg, fmt, ap);
+    va_end(ap);
+    return code;
+}
+
+void lw_error_format(const lw_error *err, char *buf, size_t size)
+{
+    if (!buf || size == 0)
+        return;
+    if (!err) {
+        buf[0] = '\0';
+        return;
+    }
+    if (err->file[0] && err->line > 0)
+        snprintf(buf, size, "%s:%d: %s", err->file, err->line, err->msg);
+    else if (err->file[0])
+        snprintf(buf, size, "%s: %s", err->file, err->msg);
+    else
+        snprintf(buf, size, "%s", err->msg);
+}
+
+static const char *skip_blank(const char *s)
+{
+    while (*s && isspace((unsigned char)*s))
+        s++;
+    return s;
+}
+
+bool lw_parse_double(const char *s, double *out)
+{
+    if (!s)
+        return false;
+    s = skip_blank(s);
+    if (!*s)
+        return false;
+    /* strtod accepts "nan", "inf" and hex floats; a value in a data file is a
+     * plain decimal number, so refuse anything that starts otherwise. */
+    const char *p = s;
+    if (*p == '+' || *p == '-')
+        p++;
+    if (!isdigit((unsigned char)*p) && *p != '.')
+        return false;
+    if (p[0] == '0' && (p[1] == 'x' || p[1] == 'X'))
+        return false;
+    char *end = NULL;
+    errno = 0;
+    double v = strtod(s, &end);
+    if (end == s || errno == ERANGE || !isfinite(v))
+        return false;
+    if (*skip_blank(end) != '\0')
+        return false;
+    *out = v;
+    return true;
+}
+
+bool lw_parse_int(const char *s, int *out)
+{
+    if (!s)
+        return false;
+    s = skip_blank(s);
+    if (!*s)
+        return false;
+    const char *p = (*s == '+' || *s == '-') ? s + 1 : s;
+    if (!isdigit((unsigned char)*p))
+        return false;
+    char *end = NULL;
+    errno = 0;
+    long v = strtol(s, &end, 10);
+    if (errno == ERANGE || v < INT_MIN || v > INT_MAX)
+        return false;
+    if (*skip_blank(end) != '\0')
+        return false;
+    *out = (int)v;
+    return true;
+}
+
+bool lw_strlcpy(char *dst, const char *src, size_t size)
+{
+    if (size == 0)
+        return false;
+    size_t n = strlen(src);
+    if (n >= size) {
+        memcpy(dst, src, size - 1);
+        dst[size - 1] = '\0';
+        return false;
+    }
+    memcpy(dst, src, n + 1);
+    return true;
+}

@@ -1,0 +1,64 @@
+/*
+ * error.h - lampwick's error record and strict number parsing.
+ *
+ * Owns: struct lw_error (code, file, line, message), the status codes every
+ * library function returns, and the number parsers used for every value that
+ * comes from a file or the command line.
+ *
+ * Convention: a function that can fail takes `lw_error *err` as its last
+ * parameter and returns an lw_status.  The first error wins: once err->code is
+ * set, later lw_error_set() calls leave it alone, so the message a user sees
+ * names the root cause.  Setting an error never allocates.  `err` may be NULL.
+ */
+#ifndef LW_ERROR_H
+#define LW_ERROR_H
+
+#include <stdbool.h>
+#include <stddef.h>
+
+typedef enum lw_status {
+    LW_OK = 0,
+    LW_ENOANSWER = 1, /* the input is valid but has no answer (never lit, nothing fits) */
+    LW_EINPUT = 2,    /* bad input: file, key, value, option */
+    LW_EIO = 3,       /* a file could not be read or written */
+    LW_ENOMEM = 4,    /* out of memory */
+    LW_ENUMERIC = 5   /* an iteration did not converge within its cap */
+} lw_status;
+
+#define LW_ERR_FILE_MAX 512
+#define LW_ERR_MSG_MAX 512
+
+typedef struct lw_error {
+    lw_status code;              /* LW_OK while nothing has failed */
+    char file[LW_ERR_FILE_MAX];  /* file or option the error is about; "" if none */
+    int line;                    /* 1-based line in `file`; 0 if not about a line */
+    char msg[LW_ERR_MSG_MAX];    /* one sentence, no trailing newline */
+} lw_error;
+
+/* Clear an error record (code LW_OK, empty strings). NULL is allowed. */
+void lw_error_clear(lw_error *err);
+
+/* Record an error unless one is already recorded (the first error wins).
+ * `file` may be NULL.  Returns `code`, so callers can `return lw_error_set(...)`. */
+lw_status lw_error_set(lw_error *err, lw_status code, const char *file, int line,
+                       const char *fmt, ...)
+#if defined(__GNUC__)
+    __attribute__((format(printf, 5, 6)))
+#endif
+    ;
+
+/* Format "file:line: message" (or "file: message", or "message") into buf. */
+void lw_error_format(const lw_error *err, char *buf, size_t size);
+
+/* Strict parse of a whole string as a finite double: leading/trailing blanks
+ * allowed, nothing else.  Refuses "", "4.7x", "1,2", "nan", "inf".
+ * Writes *out only on success. */
+bool lw_parse_double(const char *s, double *out);
+
+/* Strict parse of a whole string as a decimal integer in [INT_MIN, INT_MAX]. */
+bool lw_parse_int(const char *s, int *out);
+
+/* Copy src into dst (size bytes), always NUL-terminated; returns false if cut. */
+bool lw_strlcpy(char *dst, const char *src, size_t size);
+
+#endif

@@ -1,0 +1,104 @@
+/*
+ * inifile.h - reading INI files with line numbers, and keyed schemas.
+ *
+ * Owns: lw_ini (every `key = value` of a file with its section and line, and
+ * the line of every section header), read through inih's ini_parse_stream
+ * with our own line-counting reader, and lw_keydef: a table-driven schema that
+ * checks a value (number, integer, choice, yes/no, text), converts it from
+ * its file unit to SI, stores it at an offset in a struct, and suggests the
+ * closest known key for a misspelling.  Used by the light profiles
+ * (profile.c) and the cell files (cellfile.c).
+ *
+ * Refused, each with file:line: lines of 200 bytes or more (inih would split
+ * them silently), lines that are neither `[section]` nor `key = value`,
+ * repeated keys within a section (this also catches indented lines, which
+ * inih would join to the previous value), and keys before any section.
+ */
+#ifndef LW_INIFILE_H
+#define LW_INIFILE_H
+
+#include <stddef.h>
+#include "error.h"
+
+#define LW_INI_LINE_MAX 200
+#define LW_INI_NAME_MAX 64
+
+typedef struct lw_ini_entry {
+    char section[LW_INI_NAME_MAX];
+    char key[LW_INI_NAME_MAX];
+    char value[LW_INI_LINE_MAX];
+    int line;
+} lw_ini_entry;
+
+typedef struct lw_ini_section {
+    char name[LW_INI_NAME_MAX];
+    int line;
+} lw_ini_section;
+
+typedef struct lw_ini {
+    char path[512];
+    lw_ini_entry *entries;
+    size_t n, cap;
+    lw_ini_section *sections;
+    size_t n_sections, cap_sections;
+} lw_ini;
+
+/* Read a whole INI file.  On failure nothing is kept (*ini is empty). */
+lw_status lw_ini_read(const char *path, lw_ini *ini, lw_error *err);
+void lw_ini_clear(lw_ini *ini);
+/* Line of the header of section `name`, 0 if absent. */
+int lw_ini_section_line(const lw_ini *ini, const char *name);
+
+/* Line of `key` in `section`, 0 if absent. */
+int lw_ini_key_line(const lw_ini *ini, const char *section, const char *key);
+
+/* ---- schemas ---- */
+
+typedef enum lw_keytype { LW_K_NUM, LW_K_INT, LW_K_TEXT, LW_K_CHOICE, LW_K_BOOL } lw_keytype;
+
+enum {
+    LW_KF_REQUIRED = 1u << 0,  /* must be given (model-specific needs are checked later) */
+    LW_KF_MIN_OPEN = 1u << 1,  /* value must be > min (not >=) */
+    LW_KF_MAX_OPEN = 1u << 2   /* value must be < max */
+};
+
+typedef struct lw_keydef {
+    const char *section;
+    const char *name;
+    lw_keytype type;
+    size_t offset;            /* where the value goes in the target struct */
+    size_t size;              /* for LW_K_TEXT: buffer size */
+    double scale;             /* file unit -> SI factor (numbers) */
+    double min, max;          /* range in file units */
+    unsigned flags;
+    const char *const *choices; /* LW_K_CHOICE: NULL-terminated; stored as int */
+    const char *def;          /* default as written in docs ("" = none) */
+    const char *help;         /* unit and meaning, one line */
+} lw_keydef;
+
+/* Find the key `name` in `section` (NULL if unknown). */
+const lw_keydef *lw_key_find(const lw_keydef *defs, size_t n, const char *section,
+                             const char *name);
+
+/* Closest known "section.key" or key name to a misspelt one (edit distance
+ * at most 3), or NULL. */
+const char *lw_key_suggest(const lw_keydef *defs, size_t n, const char *section,
+                           const char *name, char *buf, size_t size);
+
+/* Record the error for an unknown key (or section) with the closest known
+ * key as a suggestion; returns LW_EINPUT. */
+lw_status lw_key_unknown(const lw_keydef *defs, size_t n, const char *section, const char *key,
+                         const char *file, int line, lw_error *err);
+
+/* Check `value` against `def` and store it into `target`.  Errors name
+ * file:line and the key and say what was expected. */
+lw_status lw_key_apply(const lw_keydef *def, void *target, const char *value, const char *file,
+                       int line, lw_error *err);
+
+/* Write the default of every key that has one into target. */
+lw_status lw_key_defaults(const lw_keydef *defs, size_t n, void *target, lw_error *err);
+
+/* Levenshtein distance of two short strings (capped at 99). */
+int lw_edit_distance(const char *a, const char *b);
+
+#endif

@@ -1,0 +1,43 @@
+/*
+ * lampwick.h - public interface of liblampwick.
+ *
+ * liblampwick estimates how long a battery-powered LED light runs and how its
+ * light output falls as the cells discharge.  Include this one header; it
+ * brings in every module a user needs:
+ *
+ *   error.h     lw_error, status codes, strict number parsing
+ *   table.h     monotone interpolation tables
+ *   roots.h     Brent's root finder, Wright omega function
+ *   cell.h      cell model (OCV and R against depth, Peukert's law, temperature)
+ *   led.h       LED I-V models and flux
+ *   drive.h     drive circuits, the light, the operating point
+ *   engine.h    the discharge run, energy ledger, trace
+ *   inifile.h   INI reading and key schemas
+ *   cellfile.h  cell files and the cell search path
+ *   profile.h   light profiles, modes, --set overrides
+ *   csvio.h     CSV reading and writing, atomic output files
+ *   report.h    text, CSV and Markdown summaries
+ *   plot.h      standalone SVG plots
+ *
+ * Conventions: SI units inside (V, A, ohm, h, Ah, W, lm, deg C), the unit in
+ * every name; functions that can fail take `lw_error *err` last and return an
+ * lw_status; the library never prints and never exits.
+ */
+#ifndef LAMPWICK_H
+#define LAMPWICK_H
+
+#include "error.h"
+#include "table.h"
+#include "roots.h"
+#include "cell.h"
+#include "led.h"
+#include "drive.h"
+#include "engine.h"
+#include "inifile.h"
+#include "cellfile.h"
+#include "profile.h"
+#include "csvio.h"
+#include "report.h"
+#include "plot.h"
+
+#endif

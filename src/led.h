@@ -1,0 +1,85 @@
+/*
+ * led.h - LED current-voltage models and light output.
+ *
+ * Owns: lw_led (one LED type and how many are wired: `count` in series per
+ * string, `strings` in parallel) and the per-string loop solution
+ * E - I*R = N*V(I) for each I-V model.  No I/O.
+ *
+ * Models (per LED, I in A, V in V; docs/model.md):
+ *   constant  V = Vf
+ *   linear    V = Vth + Rd*I
+ *   shockley  V = n*Vt*ln(1 + I/Is) + Rs*I, Vt = k*T/q at junction_c.  The loop
+ *             is solved in closed form (S. Banwell and A. Jayakumar,
+ *             "Exact analytical solution for current flow through diode with
+ *             series resistance", Electronics Letters 36(4):291-292, 2000) via
+ *             the Wright omega function, so it cannot overflow.
+ *   table     monotone-cubic interpolation of measured (I, V); below the first
+ *             point V is held at the first voltage (no current below it);
+ *             above the last point V continues on the last interval's slope
+ *             and the solution is flagged as extrapolated.
+ * Flux per LED: flux_lm * (I/flux_current_a)^flux_exponent, or monotone-cubic
+ * interpolation of a measured (I, flux) table through (0, 0), continued on its
+ * last slope above the table.
+ *
+ * Every voltage is multiplied by v_scale (1 nominal): the worst-case check
+ * sets it to 1 - forward_spread_pct/100.
+ */
+#ifndef LW_LED_H
+#define LW_LED_H
+
+#include <stdbool.h>
+#include "table.h"
+
+typedef enum lw_led_model {
+    LW_LED_CONSTANT, LW_LED_LINEAR, LW_LED_SHOCKLEY, LW_LED_TABLE, LW_LED_MODEL_COUNT
+} lw_led_model;
+
+extern const char *const lw_led_model_names[LW_LED_MODEL_COUNT + 1];
+
+/* Boltzmann constant and elementary charge, exact since the 2019 SI. */
+#define LW_BOLTZMANN_J_K 1.380649e-23
+#define LW_ELEMENTARY_C 1.602176634e-19
+
+typedef struct lw_led {
+    lw_led_model model;
+    int count;              /* LEDs in series per string, >= 1 */
+    int strings;            /* parallel strings, each with its own resistor, >= 1 */
+    double forward_v;       /* constant: V */
+    double threshold_v;     /* linear: V at zero current */
+    double slope_ohm;       /* linear: dynamic resistance, ohm */
+    double ideality;        /* shockley: n */
+    double saturation_a;    /* shockley: Is, A */
+    double series_ohm;      /* shockley: Rs, ohm */
+    double junction_c;      /* shockley: junction temperature, deg C */
+    lw_table *iv;           /* table: A -> V, or NULL */
+    double flux_lm;         /* lm per LED at flux_current_a */
+    double flux_current_a;  /* A */
+    double flux_exponent;   /* dimensionless, > 0 */
+    lw_table *flux;         /* A -> lm per LED (through (0,0)), or NULL */
+    double max_current_a;   /* absolute maximum continuous current, A */
+    double forward_spread_pct; /* +- spread of forward voltage between parts, % */
+    double v_scale;         /* multiplier on every forward voltage, 1 nominal */
+} lw_led;
+
+void lw_led_clear(lw_led *led);            /* drop the tables */
+void lw_led_copy(lw_led *dst, const lw_led *src); /* tables shared by reference */
+
+/* Thermal voltage k*T/q in V at temp_c. */
+double lw_thermal_voltage(double temp_c);
+
+/* Forward voltage of one LED at current i_a >= 0. *extrapolated (may be
+ * NULL) is set when a table model is read beyond its last point. */
+double lw_led_voltage(const lw_led *led, double i_a, bool *extrapolated);
+
+/* Light output of one LED at i_a >= 0, lm. */
+double lw_led_flux(const lw_led *led, double i_a, bool *extrapolated);
+
+/* Current per string I >= 0 solving e_v - I*r_ohm = count*V(I), with r_ohm
+ * the total series resistance of the string's loop (>= 0).  Returns 0 when
+ * e_v cannot exceed the string's voltage at zero current.  Fails (LW_ENUMERIC
+ * / LW_EINPUT) only when the loop has no finite solution (no resistance with
+ * a constant-voltage model) or the table solver does not converge. */
+lw_status lw_led_solve(const lw_led *led, double e_v, double r_ohm, double *i_a,
+                       bool *extrapolated, lw_error *err);
+
+#endif

@@ -1,0 +1,381 @@
+/*
+ * plot.c - standalone SVG charts (see plot.h).
+ *
+ * Layout: title and subtitle on top, panels stacked with a shared x axis at
+ * the bottom, legend in the top-right of each panel.  Colours are a fixed,
+ * colour-blind-considerate palette of our own.
+ */
+#include "plot.h"
+
+#include <math.h>
+#include <stdlib.h>
+#include <string.h>
+
+static const char *const palette[] = {"#1b6f8a", "#c4541b", "#5a7d2a", "#8a3f86",
+                                      "#b08a00", "#3a3a9c", "#9c3a3a", "#2f8f6f"};
+#define NPAL (sizeof palette / sizeof palette[0])
+
+size_t lw_nice_ticks(double lo, double hi, size_t max_ticks, double *ticks)
+{
+    if (!(hi > lo) || max_ticks < 2)
+        return 0;
+    double raw = (hi - lo) / (double)(max_ticks - 1);
+    double mag = pow(10.0, floor(log10(raw)));
+    double step = mag;
+    if (raw / mag > 5.0)
+        step = 10.0 * mag;
+    else if (raw / mag > 2.0)
+        step = 5.0 * mag;
+    else if (raw / mag > 1.0)
+        step = 2.0 * mag;
+    size_t n = 0;
+    for (double t = ceil(lo / step - 1e-9) * step; t <= hi + 1e-9 * step && n < 32; t += step) {
+        ticks[n++] = fabs(t) < 1e-12 * step ? 0.0 : t;
+    }
+    return n;
+}
+
+/* Ticks of a log axis: powers of ten, with 2 and 5 when the range is short. */
+static size_t log_ticks(double lo, double hi, double *ticks)
+{
+    size_t n = 0;
+    int d0 = (int)floor(log10(lo)), d1 = (int)ceil(log10(hi));
+    bool fine = d1 - d0 <= 3;
+    for (int d = d0; d <= d1 && n < 30; d++) {
+        const double m[] = {1, 2, 5};
+        for (int k = 0; k < (fine ? 3 : 1); k++) {
+            double t = m[k] * pow(10.0, d);
+            if (t >= lo * (1 - 1e-9) && t <= hi * (1 + 1e-9))
+                ticks[n++] = t;
+        }
+    }
+    return n;
+}
+
+static void fmt_tick(char *buf, size_t size, double v)
+{
+    double a = fabs(v);
+    if (a != 0 && (a >= 1e6 || a < 1e-3))
+        snprintf(buf, size, "%.0e", v);
+    else
+        snprintf(buf, size, "%.10g", v);
+}
+
+static void xml_text(FILE *fp, const char *s)
+{
+    for (; s && *s; s++) {
+        switch (*s) {
+        case '<':
+            fputs("&lt;", fp);
+            break;
+        case '>':
+            fputs("&gt;", fp);
+            break;
+        case '&':
+            fputs("&amp;", fp);
+            break;
+        case '"':
+            fputs("&quot;", fp);
+            break;
+        default:
+            fputc(*s, fp);
+        }
+    }
+}
+
+typedef struct frame {
+    double x0, x1, y0, y1;      /* pixel box: x0 left, y0 top */
+    double lo, hi;              /* x data range */
+    double ylo, yhi;            /* y data range */
+    bool xlog, ylog;
+} frame;
+
+static double map(double v, double lo, double hi, bool lg, double p0, double p1)
+{
+    double u = lg ? (log10(v) - log10(lo)) / (log10(hi) - log10(lo)) : (v - lo) / (hi - lo);
+    return p0 + u * (p1 - p0);
+}
+
+static double px(const frame *f, double x) { return map(x, f->lo, f->hi, f->xlog, f->x0, f->x1); }
+static double py(const frame *f, double y) { return map(y, f->ylo, f->yhi, f->ylog, f->y1, f->y0); }
+
+static void data_range(const lw_axis *ax, const lw_series *s, size_t ns, bool want_x,
+                       const lw_refline *refs, size_t nrefs, double *lo, double *hi)
+{
+    if (ax->lo < ax->hi) {
+        *lo = ax->lo;
+        *hi = ax->hi;
+        return;
+    }
+    double a = INFINITY, b = -INFINITY;
+    for (size_t i = 0; i < ns; i++)
+        for (size_t k = 0; k < s[i].n; k++) {
+            double v = want_x ? s[i].x[k] : s[i].y[k];
+            if (!isfinite(v) || (ax->log && v <= 0))
+                continue;
+            a = fmin(a, v);
+            b = fmax(b, v);
+        }
+    for (size_t i = 0; i < nrefs; i++) {
+        a = fmin(a, refs[i].y);
+        b = fmax(b, refs[i].y);
+    }
+    if (!isfinite(a)) {
+        a = ax->log ? 1 : 0;
+        b = ax->log ? 10 : 1;
+    }
+    if (ax->from_zero && !ax->log)
+        a = fmin(a, 0.0);
+    if (ax->log) {
+        a = pow(10.0, floor(log10(a) * 10.0) / 10.0);
+        b = pow(10.0, ceil(log10(b) * 10.0) / 10.0);
+        if (b <= a)
+            b = a * 10.0;
+    } else {
+        if (b <= a)
+            b = a + (a != 0 ? fabs(a) * 0.1 : 1.0);
+        double t[33];
+        size_t n = lw_nice_ticks(a, b, 6, t);
+        double step = n >= 2 ? t[1] - t[0] : (b - a);
+        a = floor(a / step + 1e-9) * step;
+        b = ceil(b / step - 1e-9) * step;
+        if (b <= a)
+            b = a + step;
+    }
+    *lo = a;
+    *hi = b;
+}
+
+static void draw_axes(FILE *fp, const frame *f, const lw_panel *p, bool bottom,
+                      const lw_axis *xa)
+{
+    double t[33];
+    char buf[64];
+    fprintf(fp, "<rect x='%.1f' y='%.1f' width='%.1f' height='%.1f' fill='#ffffff' "
+                "stroke='#555' stroke-width='1'/>\n",
+            f->x0, f->y0, f->x1 - f->x0, f->y1 - f->y0);
+    size_t n = f->ylog ? log_ticks(f->ylo, f->yhi, t) : lw_nice_ticks(f->ylo, f->yhi, 6, t);
+    for (size_t i = 0; i < n; i++) {
+        double y = py(f, t[i]);
+        fprintf(fp, "<line x1='%.1f' y1='%.1f' x2='%.1f' y2='%.1f' stroke='#e3e3e3'/>\n", f->x0,
+                y, f->x1, y);
+        fmt_tick(buf, sizeof buf, t[i]);
+        fprintf(fp, "<text x='%.1f' y='%.1f' text-anchor='end' class='tick'>%s</text>\n",
+                f->x0 - 6, y + 4, buf);
+        if (p->y2_label) {
+            fmt_tick(buf, sizeof buf, t[i] * p->y2_scale);
+            char *dot = strchr(buf, '.');
+            if (dot && strlen(dot) > 3)
+                snprintf(buf, sizeof buf, "%.3g", t[i] * p->y2_scale);
+            fprintf(fp, "<text x='%.1f' y='%.1f' class='tick'>%s</text>\n", f->x1 + 6, y + 4,
+                    buf);
+        }
+    }
+    double ymid = 0.5 * (f->y0 + f->y1);
+    fprintf(fp, "<text transform='translate(%.1f,%.1f) rotate(-90)' text-anchor='middle' "
+                "class='axis'>",
+            f->x0 - 52, ymid);
+    xml_text(fp, p->y.label);
+    fputs("</text>\n", fp);
+    if (p->y2_label) {
+        fprintf(fp, "<text transform='translate(%.1f,%.1f) rotate(90)' text-anchor='middle' "
+                    "class='axis'>",
+                f->x1 + 52, ymid);
+        xml_text(fp, p->y2_label);
+        fputs("</text>\n", fp);
+    }
+    n = f->xlog ? log_ticks(f->lo, f->hi, t) : lw_nice_ticks(f->lo, f->hi, 8, t);
+    for (size_t i = 0; i < n; i++) {
+        double x = px(f, t[i]);
+        fprintf(fp, "<line x1='%.1f' y1='%.1f' x2='%.1f' y2='%.1f' stroke='#e3e3e3'/>\n", x,
+                f->y0, x, f->y1);
+        if (bottom) {
+            fmt_tick(buf, sizeof buf, t[i]);
+            fprintf(fp, "<text x='%.1f' y='%.1f' text-anchor='middle' class='tick'>%s</text>\n",
+                    x, f->y1 + 18, buf);
+        }
+    }
+    if (bottom) {
+        fprintf(fp, "<text x='%.1f' y='%.1f' text-anchor='middle' class='axis'>",
+                0.5 * (f->x0 + f->x1), f->y1 + 42);
+        xml_text(fp, xa->label);
+        fputs("</text>\n", fp);
+    }
+}
+
+static void draw_series(FILE *fp, const frame *f, const lw_series *s, const char *colour)
+{
+    if (!s->points) {
+        fprintf(fp, "<polyline fill='none' stroke='%s' stroke-width='2'%s points='", colour,
+                s->dashed ? " stroke-dasharray='6 4'" : "");
+        for (size_t k = 0; k < s->n; k++) {
+            if (!isfinite(s->x[k]) || !isfinite(s->y[k]))
+                continue;
+            if ((f->xlog && s->x[k] <= 0) || (f->ylog && s->y[k] <= 0))
+                continue;
+            fprintf(fp, "%.2f,%.2f ", px(f, s->x[k]), py(f, s->y[k]));
+        }
+        fputs("'/>\n", fp);
+        return;
+    }
+    for (size_t k = 0; k < s->n; k++) {
+        if (!isfinite(s->x[k]) || !isfinite(s->y[k]))
+            continue;
+        if ((f->xlog && s->x[k] <= 0) || (f->ylog && s->y[k] <= 0))
+            continue;
+        double x = px(f, s->x[k]), y = py(f, s->y[k]);
+        fprintf(fp, "<circle cx='%.2f' cy='%.2f' r='3.5' fill='%s'/>\n", x, y, colour);
+        if (s->labels && s->labels[k]) {
+            fprintf(fp, "<text x='%.2f' y='%.2f' class='pt'>", x + 5, y - 5);
+            xml_text(fp, s->labels[k]);
+            fputs("</text>\n", fp);
+        }
+    }
+}
+
+static void draw_legend(FILE *fp, const frame *f, const lw_panel *p, size_t colour0)
+{
+    double x = f->x1 - 10, y = f->y0 + 16;
+    size_t items = p->nseries + p->nrefs;
+    if (items == 0)
+        return;
+    double w = 0;
+    for (size_t i = 0; i < p->nseries; i++)
+        w = fmax(w, 7.0 * (double)strlen(p->series[i].name ? p->series[i].name : ""));
+    for (size_t i = 0; i < p->nrefs; i++)
+        w = fmax(w, 7.0 * (double)strlen(p->refs[i].label ? p->refs[i].label : ""));
+    w += 40;
+    fprintf(fp, "<rect x='%.1f' y='%.1f' width='%.1f' height='%.1f' fill='#ffffff' "
+                "fill-opacity='0.85' stroke='#bbb'/>\n",
+            x - w, y - 12, w, 18.0 * (double)items + 6);
+    for (size_t i = 0; i < items; i++) {
+        double yy = y + 18.0 * (double)i;
+        const char *name;
+        if (i < p->nseries) {
+            const lw_series *s = &p->series[i];
+            const char *c = palette[(colour0 + i) % NPAL];
+            name = s->name;
+            if (s->points)
+                fprintf(fp, "<circle cx='%.1f' cy='%.1f' r='3.5' fill='%s'/>\n", x - w + 16,
+                        yy - 4, c);
+            else
+                fprintf(fp, "<line x1='%.1f' y1='%.1f' x2='%.1f' y2='%.1f' stroke='%s' "
+                            "stroke-width='2'%s/>\n",
+                        x - w + 6, yy - 4, x - w + 26, yy - 4, c,
+                        s->dashed ? " stroke-dasharray='6 4'" : "");
+        } else {
+            name = p->refs[i - p->nseries].label;
+            fprintf(fp, "<line x1='%.1f' y1='%.1f' x2='%.1f' y2='%.1f' stroke='#b00020' "
+                        "stroke-width='1.5' stroke-dasharray='3 3'/>\n",
+                    x - w + 6, yy - 4, x - w + 26, yy - 4);
+        }
+        fprintf(fp, "<text x='%.1f' y='%.1f' class='leg'>", x - w + 32, yy);
+        xml_text(fp, name);
+        fputs("</text>\n", fp);
+    }
+}
+
+lw_status lw_plot_svg(FILE *fp, const lw_chart *c, lw_error *err)
+{
+    double W = c->width_px > 0 ? c->width_px : 900, H = c->height_px > 0 ? c->height_px : 560;
+    double left = 80, right = 80, top = c->subtitle ? 64 : 46, bottom = 60, gap = 18;
+    fprintf(fp, "<?xml version='1.0' encoding='UTF-8'?>\n"
+                "<svg xmlns='http://www.w3.org/2000/svg' width='%.0f' height='%.0f' "
+                "viewBox='0 0 %.0f %.0f'>\n"
+                "<style>text{font-family:sans-serif;fill:#222}.tick{font-size:12px}"
+                ".axis{font-size:13px}.leg{font-size:12px}.pt{font-size:10px;fill:#444}"
+                ".title{font-size:16px;font-weight:bold}.sub{font-size:12px;fill:#555}</style>\n"
+                "<rect width='100%%' height='100%%' fill='#fafaf7'/>\n",
+            W, H, W, H);
+    if (c->title) {
+        fprintf(fp, "<text x='%.1f' y='26' class='title'>", left);
+        xml_text(fp, c->title);
+        fputs("</text>\n", fp);
+    }
+    if (c->subtitle) {
+        fprintf(fp, "<text x='%.1f' y='46' class='sub'>", left);
+        xml_text(fp, c->subtitle);
+        fputs("</text>\n", fp);
+    }
+    /* shared x range over all panels */
+    lw_series all[LW_PLOT_SERIES_MAX * LW_PLOT_PANELS_MAX];
+    size_t nall = 0;
+    double share = 0;
+    for (size_t i = 0; i < c->npanels; i++) {
+        for (size_t k = 0; k < c->panels[i].nseries; k++)
+            all[nall++] = c->panels[i].series[k];
+        share += c->panels[i].height_share > 0 ? c->panels[i].height_share : 1.0;
+    }
+    double xlo, xhi;
+    data_range(&c->x, all, nall, true, NULL, 0, &xlo, &xhi);
+    double avail = H - top - bottom - gap * (double)(c->npanels ? c->npanels - 1 : 0);
+    double y = top;
+    size_t colour0 = 0;
+    for (size_t i = 0; i < c->npanels; i++) {
+        const lw_panel *p = &c->panels[i];
+        double h = avail * (p->height_share > 0 ? p->height_share : 1.0) / share;
+        frame f = {left, W - right, y, y + h, xlo, xhi, 0, 1, c->x.log, p->y.log};
+        data_range(&p->y, p->series, p->nseries, false, p->refs, p->nrefs, &f.ylo, &f.yhi);
+        draw_axes(fp, &f, p, i + 1 == c->npanels, &c->x);
+        fprintf(fp, "<svg x='%.1f' y='%.1f' width='%.1f' height='%.1f' overflow='hidden'>"
+                    "<g transform='translate(%.1f,%.1f)'>\n",
+                f.x0, f.y0, f.x1 - f.x0, f.y1 - f.y0, -f.x0, -f.y0);
+        for (size_t k = 0; k < p->nrefs; k++)
+            fprintf(fp, "<line x1='%.1f' y1='%.1f' x2='%.1f' y2='%.1f' stroke='#b00020' "
+                        "stroke-width='1.5' stroke-dasharray='3 3'/>\n",
+                    f.x0, py(&f, p->refs[k].y), f.x1, py(&f, p->refs[k].y));
+        for (size_t k = 0; k < p->nseries; k++)
+            draw_series(fp, &f, &p->series[k], palette[(colour0 + k) % NPAL]);
+        fputs("</g></svg>\n", fp);
+        draw_legend(fp, &f, p, colour0);
+        colour0 += p->nseries;
+        y += h + gap;
+    }
+    fputs("</svg>\n", fp);
+    return ferror(fp) ? lw_error_set(err, LW_EIO, NULL, 0, "write error") : LW_OK;
+}
+
+lw_status lw_plot_run(FILE *fp, const char *title, const lw_light *light, const lw_result *res,
+                      const lw_trace *trace, lw_error *err)
+{
+    size_t n = trace->n;
+    double *buf = malloc(4 * (n ? n : 1) * sizeof *buf);
+    if (!buf)
+        return lw_error_set(err, LW_ENOMEM, NULL, 0, "out of memory for the plot");
+    double *t = buf, *pct = buf + n, *vload = buf + 2 * n, *vocv = buf + 3 * n;
+    for (size_t i = 0; i < n; i++) {
+        t[i] = trace->rows[i].t_h;
+        pct[i] = trace->rows[i].pct_of_ref;
+        vload[i] = trace->rows[i].pt.pack_v;
+        vocv[i] = trace->rows[i].pt.ocv_v * light->pack.series;
+    }
+    char sub[256], cut[64];
+    char runtime[64];
+    snprintf(runtime, sizeof runtime, "%.3g h", res->runtime_h);
+    snprintf(sub, sizeof sub, "%d x %s, %s drive; runtime to cutoff %s (%s)",
+             light->pack.series * light->pack.parallel, light->pack.cell.name,
+             lw_drive_type_names[light->drive.type], runtime,
+             lw_end_reason_names[res->end_reason]);
+    snprintf(cut, sizeof cut, "cutoff %g %%", light->cutoff.relative_pct);
+    lw_chart c = {0};
+    c.title = title;
+    c.subtitle = sub;
+    c.x = (lw_axis){.label = "time since switch-on (h)", .from_zero = true};
+    c.npanels = 2;
+    lw_panel *p = &c.panels[0];
+    p->y = (lw_axis){.label = "light output (% of 30-s value)", .from_zero = true};
+    p->y2_label = "light output (lm)";
+    p->y2_scale = res->flux_ref_lm / 100.0;
+    p->series[p->nseries++] = (lw_series){.name = "light output", .x = t, .y = pct, .n = n};
+    p->refs[p->nrefs++] = (lw_refline){light->cutoff.relative_pct, cut};
+    p->height_share = 1.4;
+    p = &c.panels[1];
+    p->y = (lw_axis){.label = "pack voltage (V)"};
+    p->series[p->nseries++] = (lw_series){.name = "loaded", .x = t, .y = vload, .n = n};
+    p->series[p->nseries++] =
+        (lw_series){.name = "open circuit", .x = t, .y = vocv, .n = n, .dashed = true};
+    p->height_share = 1.0;
+    lw_status st = lw_plot_svg(fp, &c, err);
+    free(buf);
+    return st;
+}

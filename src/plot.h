@@ -1,0 +1,74 @@
+/*
+ * plot.h - standalone SVG charts (no dependency; opens in any browser).
+ *
+ * Owns: lw_chart, a chart of one to three stacked panels sharing an x axis;
+ * each panel has a left y axis, an optional right axis that is a linear
+ * rescaling of the left one (e.g. lm beside %), series drawn as lines or as
+ * labelled points, and horizontal reference lines (e.g. a cutoff).  Axes are
+ * linear or logarithmic, with ticks at round numbers (1, 2, 5 x 10^k).
+ * lw_plot_run draws the standard chart of a run from its trace.
+ */
+#ifndef LW_PLOT_H
+#define LW_PLOT_H
+
+#include <stdio.h>
+#include "engine.h"
+
+#define LW_PLOT_SERIES_MAX 16
+#define LW_PLOT_PANELS_MAX 3
+#define LW_PLOT_REFS_MAX 4
+
+typedef struct lw_axis {
+    const char *label;
+    double lo, hi;        /* range; when lo >= hi it is taken from the data */
+    bool log;             /* logarithmic (data must be > 0) */
+    bool from_zero;       /* automatic range includes 0 */
+} lw_axis;
+
+typedef struct lw_series {
+    const char *name;     /* legend text */
+    const double *x, *y;
+    size_t n;
+    bool points;          /* markers instead of a line */
+    bool dashed;
+    const char *const *labels; /* per-point labels (points only), or NULL */
+} lw_series;
+
+typedef struct lw_refline {
+    double y;
+    const char *label;
+} lw_refline;
+
+typedef struct lw_panel {
+    lw_axis y;
+    const char *y2_label; /* right axis label, NULL for none */
+    double y2_scale;      /* right value = left value * y2_scale */
+    lw_series series[LW_PLOT_SERIES_MAX];
+    size_t nseries;
+    lw_refline refs[LW_PLOT_REFS_MAX];
+    size_t nrefs;
+    double height_share;  /* relative height, default 1 */
+} lw_panel;
+
+typedef struct lw_chart {
+    const char *title;
+    const char *subtitle;
+    lw_axis x;
+    lw_panel panels[LW_PLOT_PANELS_MAX];
+    size_t npanels;
+    double width_px, height_px; /* default 900 x 560 */
+} lw_chart;
+
+/* Write the chart as a standalone SVG document. */
+lw_status lw_plot_svg(FILE *fp, const lw_chart *chart, lw_error *err);
+
+/* Round tick positions covering [lo, hi]: at most max_ticks, steps of
+ * 1, 2 or 5 x 10^k.  Returns the count written to ticks (cap 32). */
+size_t lw_nice_ticks(double lo, double hi, size_t max_ticks, double *ticks);
+
+/* The chart of a run: light output (% of the 30-s output, and lm) with the
+ * cutoff line, and pack voltage (loaded and open circuit), against hours. */
+lw_status lw_plot_run(FILE *fp, const char *title, const lw_light *light, const lw_result *res,
+                      const lw_trace *trace, lw_error *err);
+
+#endif

@@ -1,0 +1,598 @@
+/*
+ * profile.c - light profiles (see profile.h).
+ *
+ * Invariant: prof->light holds what the values say only after
+ * lw_profile_resolve; a failed resolve leaves the previous tables in place
+ * but returns the error, and callers stop there.
+ */
+#include "profile.h"
+
+#include <errno.h>
+#include <math.h>
+#include <stddef.h>
+#include <stdio.h>
+#include <stdlib.h>
+#include <string.h>
+#include "csvio.h"
+
+#define PK(sec, name_, type_, field_, scale_, min_, max_, flags_, def_, help_)                \
+    {sec, name_, type_, offsetof(lw_profile, field_), 0, scale_, min_, max_, flags_, NULL,    \
+     def_, help_}
+#define PT(sec, name_, field_, flags_, help_)                                                  \
+    {sec, name_, LW_K_TEXT, offsetof(lw_profile, field_), sizeof(((lw_profile *)0)->field_), 1, \
+     NAN, NAN, flags_, NULL, "", help_}
+#define OPEN LW_KF_MIN_OPEN
+#define INF INFINITY
+
+const lw_keydef lw_profile_keys[] = {
+    PT("light", "name", light.name, 0, "name of the light, free text"),
+    PT("pack", "cell", cell_ref, LW_KF_REQUIRED, "cell name from the cell library, or a path"),
+    PK("pack", "series", LW_K_INT, light.pack.series, 1, 1, 1000, 0, "1", "cells in series"),
+    PK("pack", "parallel", LW_K_INT, light.pack.parallel, 1, 1, 1000, 0, "1",
+       "cells in parallel"),
+    PK("pack", "ambient_c", LW_K_NUM, light.pack.ambient_c, 1, -60, 100, 0, "20",
+       "ambient temperature, deg C"),
+    {"led", "model", LW_K_CHOICE, offsetof(lw_profile, light.led.model), 0, 1, NAN, NAN,
+     LW_KF_REQUIRED, lw_led_model_names, "", "I-V model: constant, linear, shockley or table"},
+    PK("led", "count", LW_K_INT, light.led.count, 1, 1, 1000, 0, "1", "LEDs in series per string"),
+    PK("led", "strings", LW_K_INT, light.led.strings, 1, 1, 1000, 0, "1",
+       "parallel strings, each with its own drive element"),
+    PK("led", "forward_v", LW_K_NUM, light.led.forward_v, 1, 0, 100, OPEN, "",
+       "constant model: forward voltage, V"),
+    PK("led", "threshold_v", LW_K_NUM, light.led.threshold_v, 1, 0, 100, 0, "",
+       "linear model: voltage at zero current, V"),
+    PK("led", "slope_ohm", LW_K_NUM, light.led.slope_ohm, 1, 0, 1e6, 0, "",
+       "linear model: dynamic resistance, ohm"),
+    PK("led", "ideality", LW_K_NUM, light.led.ideality, 1, 0, 50, OPEN, "",
+       "shockley model: ideality factor n"),
+    PK("led", "saturation_a", LW_K_NUM, light.led.saturation_a, 1, 0, 1, OPEN, "",
+       "shockley model: saturation current, A"),
+    PK("led", "series_ohm", LW_K_NUM, light.led.series_ohm, 1, 0, 1e6, 0, "0",
+       "shockley model: series resistance, ohm"),
+    PK("led", "junction_c", LW_K_NUM, light.led.junction_c, 1, -60, 250, 0, "25",
+       "shockley model: junction temperature, deg C"),
+    PT("led", "iv_file", iv_file, 0, "table model: CSV current_ma,forward_v"),
+    PK("led", "flux_lm", LW_K_NUM, light.led.flux_lm, 1, 0, 1e7, OPEN, "",
+       "light output of one LED at flux_current_ma, lm"),
+    PK("led", "flux_current_ma", LW_K_NUM, light.led.flux_current_a, 1e-3, 0, 1e7, OPEN, "",
+       "current of the flux_lm rating, mA"),
+    PK("led", "flux_exponent", LW_K_NUM, light.led.flux_exponent, 1, 0, 3, OPEN, "1",
+       "exponent of flux against current"),
+    PT("led", "flux_file", flux_file, 0, "CSV current_ma,flux_lm (instead of flux_lm)"),
+    PK("led", "max_current_ma", LW_K_NUM, light.led.max_current_a, 1e-3, 0, 1e7, OPEN, "20",
+       "absolute maximum continuous current, mA"),
+    PK("led", "forward_spread_pct", LW_K_NUM, light.led.forward_spread_pct, 1, 0, 50,
+       LW_KF_MAX_OPEN, "5", "part-to-part spread of forward voltage, +- %"),
+    {"drive", "type", LW_K_CHOICE, offsetof(lw_profile, light.drive.type), 0, 1, NAN, NAN, 0,
+     lw_drive_type_names, "resistor", "resistor, linear-cc or converter"},
+    PK("drive", "resistor_ohm", LW_K_NUM, light.drive.resistor_ohm, 1, 0, 1e9, 0, "",
+       "series resistor per string, ohm (0 allowed)"),
+    PK("drive", "tolerance_pct", LW_K_NUM, light.drive.tolerance_pct, 1, 0, 50, LW_KF_MAX_OPEN,
+       "5", "resistor tolerance, +- %"),
+    PK("drive", "rating_w", LW_K_NUM, light.drive.rating_w, 1, 0, 1e4, OPEN, "",
+       "resistor power rating, W"),
+    PK("drive", "set_ma", LW_K_NUM, light.drive.set_a, 1e-3, 0, 1e7, OPEN, "",
+       "regulated current per string, mA"),
+    PK("drive", "dropout_v", LW_K_NUM, light.drive.dropout_v, 1, 0, 100, 0, "",
+       "linear-cc: minimum headroom, V"),
+    PK("drive", "efficiency_pct", LW_K_NUM, light.drive.efficiency_pct, 1, 0, 100, OPEN, "",
+       "converter: efficiency, %"),
+    PT("drive", "efficiency_file", efficiency_file, 0, "converter: CSV input_v,efficiency_pct"),
+    PK("drive", "quiescent_ua", LW_K_NUM, light.drive.quiescent_a, 1e-6, 0, 1e7, 0, "0",
+       "converter: quiescent input current, uA"),
+    PK("drive", "min_input_v", LW_K_NUM, light.drive.min_input_v, 1, 0, 1000, 0, "0",
+       "converter: undervoltage lockout, V"),
+    PK("drive", "fallback_ma", LW_K_NUM, light.drive.fallback_a, 1e-3, 0, 1e7, 0, "0",
+       "converter: current after dropout, mA (0: off)"),
+    PK("drive", "duty_pct", LW_K_NUM, light.drive.duty_pct, 1, 0, 100, OPEN, "100",
+       "PWM duty cycle, %"),
+    PK("drive", "standby_ua", LW_K_NUM, light.drive.standby_a, 1e-6, 0, 1e7, 0, "0",
+       "drain while switched off, uA"),
+    PK("cutoff", "relative_pct", LW_K_NUM, light.cutoff.relative_pct, 1, 0, 100,
+       OPEN | LW_KF_MAX_OPEN, "10", "end at this % of the output 30 s after switch-on"),
+    PK("cutoff", "flux_lm", LW_K_NUM, light.cutoff.flux_lm, 1, 0, 1e7, 0, "0",
+       "end at this light output, lm (0: no floor)"),
+    PK("cutoff", "cell_v", LW_K_NUM, cutoff_cell_v, 1, 0, 100, OPEN, "",
+       "end at this loaded cell voltage, V; default the cell's cutoff_v"),
+    PK("optics", "beam_angle_deg", LW_K_NUM, beam_angle_deg, 1, 0, 180, OPEN | LW_KF_MAX_OPEN,
+       "", "full beam angle of a uniform cone, degrees"),
+    PK("optics", "peak_cd_per_lm", LW_K_NUM, peak_cd_per_lm, 1, 0, 1e6, OPEN, "",
+       "peak beam intensity per lumen of output, cd/lm"),
+};
+const size_t lw_profile_nkeys = sizeof lw_profile_keys / sizeof lw_profile_keys[0];
+
+_Static_assert(sizeof lw_profile_keys / sizeof lw_profile_keys[0] <= LW_PROFILE_KEYS_MAX,
+               "raise LW_PROFILE_KEYS_MAX");
+
+static size_t key_index(const lw_keydef *d) { return (size_t)(d - lw_profile_keys); }
+
+static bool given(const lw_profile *p, const char *section, const char *name)
+{
+    const lw_keydef *d = lw_key_find(lw_profile_keys, lw_profile_nkeys, section, name);
+    return d && p->key_origin[key_index(d)] != LW_FROM_DEFAULT;
+}
+
+/* Where to point a message about a key: its own line, else its section's. */
+static int line_of(const lw_profile *p, const char *section, const char *name)
+{
+    const lw_keydef *d = lw_key_find(lw_profile_keys, lw_profile_nkeys, section, name);
+    if (d && p->key_line[key_index(d)] > 0)
+        return p->key_line[key_index(d)];
+    int l = lw_ini_section_line(&p->ini, section);
+    return l > 0 ? l : 1;
+}
+
+static bool split_dotted(const char *dotted, char *section, size_t ss, char *key, size_t ks)
+{
+    const char *dot = strchr(dotted, '.');
+    if (!dot || dot == dotted || !dot[1] || (size_t)(dot - dotted) >= ss)
+        return false;
+    memcpy(section, dotted, (size_t)(dot - dotted));
+    section[dot - dotted] = '\0';
+    return lw_strlcpy(key, dot + 1, ks);
+}
+
+lw_status lw_profile_set(lw_profile *prof, const char *dotted_key, const char *value,
+                         lw_origin origin, const char *file, int line, lw_error *err)
+{
+    char section[LW_INI_NAME_MAX], key[LW_INI_NAME_MAX];
+    if (!split_dotted(dotted_key, section, sizeof section, key, sizeof key))
+        return lw_error_set(err, LW_EINPUT, file, line,
+                            "'%s': expected section.key (for example drive.resistor_ohm)",
+                            dotted_key);
+    const lw_keydef *d = lw_key_find(lw_profile_keys, lw_profile_nkeys, section, key);
+    if (!d)
+        return lw_key_unknown(lw_profile_keys, lw_profile_nkeys, section, key, file, line, err);
+    lw_status st = lw_key_apply(d, prof, value, file, line, err);
+    if (st != LW_OK)
+        return st;
+    prof->key_origin[key_index(d)] = (unsigned char)origin;
+    prof->key_line[key_index(d)] = origin == LW_FROM_OPTION ? 0 : line;
+    return LW_OK;
+}
+
+lw_status lw_profile_set_arg(lw_profile *prof, const char *arg, lw_error *err)
+{
+    const char *eq = strchr(arg, '=');
+    char key[2 * LW_INI_NAME_MAX], where[2 * LW_INI_NAME_MAX + 8];
+    if (!eq || eq == arg || (size_t)(eq - arg) >= sizeof key)
+        return lw_error_set(err, LW_EINPUT, "--set", 0,
+                            "'%s': expected section.key=value (for example "
+                            "drive.resistor_ohm=220)",
+                            arg);
+    memcpy(key, arg, (size_t)(eq - arg));
+    key[eq - arg] = '\0';
+    snprintf(where, sizeof where, "--set %s", key);
+    return lw_profile_set(prof, key, eq + 1, LW_FROM_OPTION, where, 0, err);
+}
+
+static bool is_mode_section(const char *section, const char **name)
+{
+    if (strncmp(section, "mode", 4) != 0 || (section[4] != ' ' && section[4] != '\t'))
+        return false;
+    const char *n = section + 4;
+    while (*n == ' ' || *n == '\t')
+        n++;
+    *name = n;
+    return true;
+}
+
+size_t lw_profile_mode_count(const lw_profile *prof)
+{
+    size_t n = 0;
+    const char *name;
+    for (size_t i = 0; i < prof->ini.n_sections; i++)
+        if (is_mode_section(prof->ini.sections[i].name, &name))
+            n++;
+    return n;
+}
+
+const char *lw_profile_mode_name(const lw_profile *prof, size_t k)
+{
+    const char *name;
+    for (size_t i = 0; i < prof->ini.n_sections; i++)
+        if (is_mode_section(prof->ini.sections[i].name, &name) && k-- == 0)
+            return name;
+    return NULL;
+}
+
+lw_status lw_profile_apply_mode(lw_profile *prof, const char *name, lw_error *err)
+{
+    bool found = false;
+    const char *mname;
+    for (size_t i = 0; i < prof->ini.n_sections && !found; i++)
+        found = is_mode_section(prof->ini.sections[i].name, &mname) && !strcmp(mname, name);
+    if (!found) {
+        char list[512] = "";
+        for (size_t i = 0; i < lw_profile_mode_count(prof); i++) {
+            strncat(list, i ? ", " : "", sizeof list - strlen(list) - 1);
+            strncat(list, lw_profile_mode_name(prof, i), sizeof list - strlen(list) - 1);
+        }
+        return lw_error_set(err, LW_EINPUT, prof->path, 0, "no [mode %s]; the modes are: %s",
+                            name, list[0] ? list : "(none)");
+    }
+    for (size_t i = 0; i < prof->ini.n; i++) {
+        const lw_ini_entry *e = &prof->ini.entries[i];
+        if (!is_mode_section(e->section, &mname) || strcmp(mname, name) != 0)
+            continue;
+        lw_status st = lw_profile_set(prof, e->key, e->value, LW_FROM_MODE, prof->path, e->line,
+                                      err);
+        if (st != LW_OK)
+            return st;
+    }
+    lw_strlcpy(prof->mode, name, sizeof prof->mode);
+    return LW_OK;
+}
+
+/* ---- resolving: files the profile names ---- */
+
+enum { XY_Y_POSITIVE = 1, XY_Y_NONDECREASING = 2, XY_THROUGH_ORIGIN = 4 };
+
+/* Read a two-column CSV (x in file units * xscale) into a table. */
+static lw_status load_xy(const lw_profile *p, const char *section, const char *key,
+                         const char *rel, const char *xcol, const char *ycol, double xscale,
+                         double yscale, unsigned flags, lw_table **out, lw_error *err)
+{
+    char path[LW_PATH_MAX];
+    lw_path_join(path, sizeof path, p->dir, rel);
+    FILE *probe = fopen(path, "rb");
+    if (!probe)
+        return lw_error_set(err, LW_EINPUT, p->path, line_of(p, section, key),
+                            "[%s] %s: cannot open '%s': %s", section, key, path,
+                            strerror(errno));
+    fclose(probe);
+    lw_csv csv;
+    lw_status st = lw_csv_read(path, &csv, err);
+    if (st != LW_OK)
+        return st;
+    const char *cols[] = {xcol, ycol, NULL};
+    st = lw_csv_expect(&csv, cols, NULL, err);
+    size_t n = csv.nrow, off = 0;
+    double *x = st == LW_OK ? malloc(2 * (n + 1) * sizeof *x) : NULL;
+    if (st == LW_OK && !x)
+        st = lw_error_set(err, LW_ENOMEM, path, 0, "out of memory");
+    double *y = x ? x + n + 1 : NULL;
+    int cx = lw_csv_column(&csv, xcol), cy = lw_csv_column(&csv, ycol);
+    if (st == LW_OK && (flags & XY_THROUGH_ORIGIN) && lw_csv_at(&csv, 0, cx) > 0.0) {
+        x[0] = y[0] = 0.0;
+        off = 1;
+    }
+    for (size_t i = 0; st == LW_OK && i < n; i++) {
+        double xv = lw_csv_at(&csv, i, cx), yv = lw_csv_at(&csv, i, cy);
+        int line = csv.line[i];
+        if (xv < 0.0)
+            st = lw_error_set(err, LW_EINPUT, path, line, "%s = %g: expected >= 0", xcol, xv);
+        else if (i > 0 && !(xv * xscale > x[off + i - 1]))
+            st = lw_error_set(err, LW_EINPUT, path, line,
+                              "%s = %g does not increase on the previous row", xcol, xv);
+        else if ((flags & XY_Y_POSITIVE) && !(yv > 0.0))
+            st = lw_error_set(err, LW_EINPUT, path, line, "%s = %g: expected > 0", ycol, yv);
+        else if (yv < 0.0)
+            st = lw_error_set(err, LW_EINPUT, path, line, "%s = %g: expected >= 0", ycol, yv);
+        else if ((flags & XY_Y_NONDECREASING) && i > 0 && yv * yscale < y[off + i - 1])
+            st = lw_error_set(err, LW_EINPUT, path, line,
+                              "%s = %g falls on the previous row: expected a non-decreasing "
+                              "curve",
+                              ycol, yv);
+        if (st == LW_OK) {
+            x[off + i] = xv * xscale;
+            y[off + i] = yv * yscale;
+        }
+    }
+    if (st == LW_OK && n + off < 2)
+        st = lw_error_set(err, LW_EINPUT, path, csv.line[0], "at least 2 rows are needed");
+    if (st == LW_OK) {
+        lw_table *t = lw_table_new(x, y, n + off, err);
+        if (!t)
+            st = err && err->code ? err->code : LW_ENOMEM;
+        else {
+            lw_table_free(*out);
+            *out = t;
+        }
+    }
+    free(x);
+    lw_csv_clear(&csv);
+    return st;
+}
+
+static lw_status need(const lw_profile *p, const char *section, const char *key,
+                      const char *because, lw_error *err)
+{
+    if (given(p, section, key))
+        return LW_OK;
+    const lw_keydef *d = lw_key_find(lw_profile_keys, lw_profile_nkeys, section, key);
+    return lw_error_set(err, LW_EINPUT, p->path, line_of(p, section, because),
+                        "[%s] %s needs the key '%s' (%s)", section, because, key,
+                        d ? d->help : "");
+}
+
+static lw_status check_led(lw_profile *p, lw_error *err)
+{
+    lw_led *led = &p->light.led;
+    lw_status st = LW_OK;
+    switch (led->model) {
+    case LW_LED_CONSTANT:
+        st = need(p, "led", "forward_v", "model", err);
+        break;
+    case LW_LED_LINEAR:
+        st = need(p, "led", "threshold_v", "model", err);
+        if (st == LW_OK)
+            st = need(p, "led", "slope_ohm", "model", err);
+        break;
+    case LW_LED_SHOCKLEY:
+        st = need(p, "led", "ideality", "model", err);
+        if (st == LW_OK)
+            st = need(p, "led", "saturation_a", "model", err);
+        break;
+    case LW_LED_TABLE:
+    default:
+        st = need(p, "led", "iv_file", "model", err);
+        if (st == LW_OK)
+            st = load_xy(p, "led", "iv_file", p->iv_file, "current_ma", "forward_v", 1e-3, 1.0,
+                         XY_Y_POSITIVE | XY_Y_NONDECREASING, &led->iv, err);
+        break;
+    }
+    if (st != LW_OK)
+        return st;
+    bool by_file = given(p, "led", "flux_file");
+    bool by_rating = given(p, "led", "flux_lm") || given(p, "led", "flux_current_ma");
+    if (by_file && by_rating)
+        return lw_error_set(err, LW_EINPUT, p->path, line_of(p, "led", "flux_file"),
+                            "[led] give either flux_file or flux_lm with flux_current_ma, not "
+                            "both");
+    if (by_file)
+        return load_xy(p, "led", "flux_file", p->flux_file, "current_ma", "flux_lm", 1e-3, 1.0,
+                       XY_THROUGH_ORIGIN, &led->flux, err);
+    lw_table_free(led->flux);
+    led->flux = NULL;
+    if (!by_rating)
+        return lw_error_set(err, LW_EINPUT, p->path, line_of(p, "led", "model"),
+                            "[led] needs the light output: flux_lm with flux_current_ma, or "
+                            "flux_file");
+    st = need(p, "led", "flux_lm", "flux_current_ma", err);
+    if (st == LW_OK)
+        st = need(p, "led", "flux_current_ma", "flux_lm", err);
+    return st;
+}
+
+static lw_status check_drive(lw_profile *p, lw_error *err)
+{
+    lw_drive *drv = &p->light.drive;
+    lw_status st = LW_OK;
+    if (!given(p, "drive", "resistor_ohm"))
+        drv->resistor_ohm = 0.0;
+    switch (drv->type) {
+    case LW_DRIVE_RESISTOR:
+        st = need(p, "drive", "resistor_ohm", "type", err);
+        break;
+    case LW_DRIVE_LINEAR_CC:
+        st = need(p, "drive", "set_ma", "type", err);
+        if (st == LW_OK)
+            st = need(p, "drive", "dropout_v", "type", err);
+        break;
+    case LW_DRIVE_CONVERTER:
+    default:
+        st = need(p, "drive", "set_ma", "type", err);
+        if (st != LW_OK)
+            break;
+        if (given(p, "drive", "efficiency_file") == given(p, "drive", "efficiency_pct"))
+            return lw_error_set(err, LW_EINPUT, p->path, line_of(p, "drive", "type"),
+                                "[drive] type = converter needs exactly one of efficiency_pct "
+                                "and efficiency_file");
+        if (given(p, "drive", "efficiency_file"))
+            st = load_xy(p, "drive", "efficiency_file", p->efficiency_file, "input_v",
+                         "efficiency_pct", 1.0, 1.0, XY_Y_POSITIVE, &drv->efficiency, err);
+        if (st == LW_OK && drv->efficiency) {
+            for (size_t i = 0; i < drv->efficiency->n; i++)
+                if (drv->efficiency->y[i] > 100.0)
+                    return lw_error_set(err, LW_EINPUT, p->path,
+                                        line_of(p, "drive", "efficiency_file"),
+                                        "[drive] efficiency_file: efficiency above 100 %%");
+        }
+        if (st == LW_OK && drv->fallback_a >= drv->set_a)
+            st = lw_error_set(err, LW_EINPUT, p->path, line_of(p, "drive", "fallback_ma"),
+                              "[drive] fallback_ma must be below set_ma");
+        break;
+    }
+    if (st == LW_OK && drv->type != LW_DRIVE_CONVERTER) {
+        lw_table_free(drv->efficiency);
+        drv->efficiency = NULL;
+    }
+    return st;
+}
+
+static lw_status load_cell(lw_profile *p, lw_error *err)
+{
+    char path[LW_PATH_MAX];
+    lw_error local;
+    lw_error_clear(&local);
+    if (lw_cell_find(p->cell_ref, p->dir, &p->search, path, sizeof path, &local) != LW_OK)
+        return lw_error_set(err, LW_EINPUT, p->path, line_of(p, "pack", "cell"), "[pack] cell: %s",
+                            local.msg);
+    if (!strcmp(path, p->cell_path) && p->light.pack.cell.ocv)
+        return LW_OK;
+    lw_cell cell;
+    lw_status st = lw_cell_load(path, &cell, err);
+    if (st != LW_OK)
+        return st;
+    lw_cell_clear(&p->light.pack.cell);
+    p->light.pack.cell = cell;
+    lw_strlcpy(p->cell_path, path, sizeof p->cell_path);
+    return LW_OK;
+}
+
+lw_status lw_profile_resolve(lw_profile *p, lw_error *err)
+{
+    for (size_t k = 0; k < lw_profile_nkeys; k++)
+        if ((lw_profile_keys[k].flags & LW_KF_REQUIRED) && p->key_origin[k] == LW_FROM_DEFAULT)
+            return lw_error_set(err, LW_EINPUT, p->path,
+                                line_of(p, lw_profile_keys[k].section, lw_profile_keys[k].name),
+                                "[%s] is missing the key '%s' (%s)", lw_profile_keys[k].section,
+                                lw_profile_keys[k].name, lw_profile_keys[k].help);
+    lw_status st = load_cell(p, err);
+    if (st == LW_OK)
+        st = check_led(p, err);
+    if (st == LW_OK)
+        st = check_drive(p, err);
+    if (st != LW_OK)
+        return st;
+    lw_light *l = &p->light;
+    l->led.v_scale = 1.0;
+    l->cutoff.cell_v = isnan(p->cutoff_cell_v) ? l->pack.cell.cutoff_v : p->cutoff_cell_v;
+    if (given(p, "optics", "beam_angle_deg") && given(p, "optics", "peak_cd_per_lm"))
+        return lw_error_set(err, LW_EINPUT, p->path, line_of(p, "optics", "peak_cd_per_lm"),
+                            "[optics] give beam_angle_deg or peak_cd_per_lm, not both");
+    if (!l->name[0]) {
+        const char *base = strrchr(p->path, '/');
+        lw_strlcpy(l->name, base ? base + 1 : p->path, sizeof l->name);
+    }
+    lw_light_update_factors(l, NULL);
+    return LW_OK;
+}
+
+static lw_status apply_file(lw_profile *p, lw_error *err)
+{
+    const char *mname;
+    for (size_t i = 0; i < p->ini.n; i++) {
+        const lw_ini_entry *e = &p->ini.entries[i];
+        if (is_mode_section(e->section, &mname))
+            continue;
+        const lw_keydef *d = lw_key_find(lw_profile_keys, lw_profile_nkeys, e->section, e->key);
+        if (!d)
+            return lw_key_unknown(lw_profile_keys, lw_profile_nkeys, e->section, e->key, p->path,
+                                  e->line, err);
+        lw_status st = lw_key_apply(d, p, e->value, p->path, e->line, err);
+        if (st != LW_OK)
+            return st;
+        p->key_origin[key_index(d)] = LW_FROM_FILE;
+        p->key_line[key_index(d)] = e->line;
+    }
+    return LW_OK;
+}
+
+/* Each mode must apply and resolve on its own: checked at load, so that a bad
+ * mode is reported with its line even when it is not used. */
+static lw_status check_modes(const lw_profile *p, lw_error *err)
+{
+    for (size_t i = 0; i < p->ini.n_sections; i++) {
+        const char *mname;
+        const char *sec = p->ini.sections[i].name;
+        if (strncmp(sec, "mode", 4) == 0 && !is_mode_section(sec, &mname))
+            return lw_error_set(err, LW_EINPUT, p->path, p->ini.sections[i].line,
+                                "a mode section needs a name: [mode NAME]");
+        if (!is_mode_section(sec, &mname))
+            continue;
+        for (size_t k = 0; k < i; k++)
+            if (!strcmp(p->ini.sections[k].name, sec))
+                return lw_error_set(err, LW_EINPUT, p->path, p->ini.sections[i].line,
+                                    "[%s] appears twice (first on line %d)", sec,
+                                    p->ini.sections[k].line);
+        lw_profile copy;
+        lw_status st = lw_profile_copy(&copy, p, err);
+        if (st == LW_OK)
+            st = lw_profile_apply_mode(&copy, mname, err);
+        if (st == LW_OK)
+            st = lw_profile_resolve(&copy, err);
+        lw_profile_clear(&copy);
+        if (st != LW_OK)
+            return st;
+    }
+    return LW_OK;
+}
+
+lw_status lw_profile_load(const char *path, const lw_search *search, lw_profile *p,
+                          lw_error *err)
+{
+    memset(p, 0, sizeof *p);
+    lw_strlcpy(p->path, path, sizeof p->path);
+    lw_path_dir(p->dir, sizeof p->dir, path);
+    if (search)
+        p->search = *search;
+    p->cutoff_cell_v = NAN;
+    lw_status st = lw_key_defaults(lw_profile_keys, lw_profile_nkeys, p, err);
+    if (st == LW_OK)
+        st = lw_ini_read(path, &p->ini, err);
+    if (st == LW_OK)
+        st = apply_file(p, err);
+    if (st == LW_OK)
+        st = lw_profile_resolve(p, err);
+    if (st == LW_OK)
+        st = check_modes(p, err);
+    if (st != LW_OK)
+        lw_profile_clear(p);
+    return st;
+}
+
+void lw_profile_clear(lw_profile *p)
+{
+    if (!p)
+        return;
+    lw_light_clear(&p->light);
+    lw_ini_clear(&p->ini);
+    p->cell_path[0] = '\0';
+}
+
+lw_status lw_profile_copy(lw_profile *dst, const lw_profile *src, lw_error *err)
+{
+    *dst = *src;
+    lw_light_copy(&dst->light, &src->light);
+    dst->ini.entries = NULL;
+    dst->ini.sections = NULL;
+    size_t ne = src->ini.n * sizeof *src->ini.entries;
+    size_t ns = src->ini.n_sections * sizeof *src->ini.sections;
+    dst->ini.entries = ne ? malloc(ne) : NULL;
+    dst->ini.sections = ns ? malloc(ns) : NULL;
+    if ((ne && !dst->ini.entries) || (ns && !dst->ini.sections)) {
+        lw_profile_clear(dst);
+        return lw_error_set(err, LW_ENOMEM, NULL, 0, "out of memory copying a profile");
+    }
+    if (ne)
+        memcpy(dst->ini.entries, src->ini.entries, ne);
+    if (ns)
+        memcpy(dst->ini.sections, src->ini.sections, ns);
+    dst->ini.cap = src->ini.n;
+    dst->ini.cap_sections = src->ini.n_sections;
+    return LW_OK;
+}
+
+void lw_profile_value_text(const lw_profile *p, const char *dotted_key, char *buf, size_t size)
+{
+    char section[LW_INI_NAME_MAX], key[LW_INI_NAME_MAX];
+    buf[0] = '\0';
+    if (!split_dotted(dotted_key, section, sizeof section, key, sizeof key))
+        return;
+    const lw_keydef *d = lw_key_find(lw_profile_keys, lw_profile_nkeys, section, key);
+    if (!d)
+        return;
+    const char *at = (const char *)p + d->offset;
+    switch (d->type) {
+    case LW_K_NUM: {
+        double v;
+        memcpy(&v, at, sizeof v);
+        snprintf(buf, size, "%.6g", v / d->scale);
+        break;
+    }
+    case LW_K_INT: {
+        int v;
+        memcpy(&v, at, sizeof v);
+        snprintf(buf, size, "%d", v);
+        break;
+    }
+    case LW_K_BOOL: {
+        bool v;
+        memcpy(&v, at, sizeof v);
+        snprintf(buf, size, "%s", v ? "yes" : "no");
+        break;
+    }
+    case LW_K_CHOICE: {
+        int v;
+        memcpy(&v, at, sizeof v);
+        snprintf(buf, size, "%s", d->choices[v]);
+        break;
+    }
+    case LW_K_TEXT:
+    default:
+        snprintf(buf, size, "%s", at);
+        break;
+    }
+}

@@ -1,0 +1,81 @@
+/*
+ * profile.h - light profiles: INI file -> lw_light, modes, --set overrides.
+ *
+ * Owns: lw_profile (a light profile as loaded: the resolved lw_light plus
+ * where every value came from), the profile schema (lw_profile_keys, every
+ * key with its unit, range and default; docs/formats.md is written from it),
+ * and the order of work: load (read, apply, resolve) -> apply a mode and/or
+ * --set overrides -> resolve again.  Resolving loads what the profile names
+ * (the cell file by name or path, LED and driver tables) and checks the
+ * model-specific needs; every refusal names file:line and the key.
+ *
+ * Sections: [light] [pack] [led] [drive] [cutoff] [optics] and any number of
+ * [mode NAME] whose keys are "section.key = value" overrides.
+ */
+#ifndef LW_PROFILE_H
+#define LW_PROFILE_H
+
+#include "cellfile.h"
+#include "drive.h"
+#include "inifile.h"
+
+#define LW_PROFILE_KEYS_MAX 64
+
+typedef enum lw_origin { LW_FROM_DEFAULT, LW_FROM_FILE, LW_FROM_MODE, LW_FROM_OPTION } lw_origin;
+
+typedef struct lw_profile {
+    char path[LW_PATH_MAX];
+    char dir[LW_PATH_MAX];
+    lw_light light;                   /* valid after a successful resolve */
+    char cell_ref[LW_PATH_MAX];       /* [pack] cell as written */
+    char cell_path[LW_PATH_MAX];      /* cell file loaded into light.pack.cell */
+    char iv_file[LW_PATH_MAX], flux_file[LW_PATH_MAX], efficiency_file[LW_PATH_MAX];
+    double cutoff_cell_v;             /* V; NAN: the cell's end point */
+    double beam_angle_deg;            /* [optics]: full beam angle, 0 if not given */
+    double peak_cd_per_lm;            /* [optics]: peak intensity per lumen, 0 if not given */
+    int key_line[LW_PROFILE_KEYS_MAX];
+    unsigned char key_origin[LW_PROFILE_KEYS_MAX]; /* lw_origin */
+    char mode[LW_NAME_MAX];           /* mode applied, "" for none */
+    lw_ini ini;                       /* the file's entries (modes are applied from it) */
+    lw_search search;                 /* where cell names are looked up after dir */
+} lw_profile;
+
+extern const lw_keydef lw_profile_keys[];
+extern const size_t lw_profile_nkeys;
+
+/* Load and resolve a profile.  `search` may be NULL.  On failure *prof is
+ * empty (lw_profile_clear is still safe). */
+lw_status lw_profile_load(const char *path, const lw_search *search, lw_profile *prof,
+                          lw_error *err);
+
+/* Free what the profile holds.  NULL-safe. */
+void lw_profile_clear(lw_profile *prof);
+
+/* Independent copy (tables shared by reference). */
+lw_status lw_profile_copy(lw_profile *dst, const lw_profile *src, lw_error *err);
+
+/* Set "section.key" to value (same checks as the file).  `file` and `line`
+ * say where the value came from, for messages; call lw_profile_resolve after
+ * the last set. */
+lw_status lw_profile_set(lw_profile *prof, const char *dotted_key, const char *value,
+                         lw_origin origin, const char *file, int line, lw_error *err);
+
+/* Parse "section.key=value" from the command line and set it; errors name
+ * the option "--set section.key". */
+lw_status lw_profile_set_arg(lw_profile *prof, const char *arg, lw_error *err);
+
+/* Apply the overrides of [mode NAME]; unknown names list the known modes. */
+lw_status lw_profile_apply_mode(lw_profile *prof, const char *name, lw_error *err);
+
+/* Number and names of the profile's modes, in file order. */
+size_t lw_profile_mode_count(const lw_profile *prof);
+const char *lw_profile_mode_name(const lw_profile *prof, size_t i);
+
+/* Load what the profile names and check model-specific needs. */
+lw_status lw_profile_resolve(lw_profile *prof, lw_error *err);
+
+/* Current value of a key as text (for sweeps and summaries). */
+void lw_profile_value_text(const lw_profile *prof, const char *dotted_key, char *buf,
+                           size_t size);
+
+#endif

@@ -1,0 +1,69 @@
+/*
+ * report.h - tables and summaries for people and documents.
+ *
+ * Owns: lw_rtable (a table of text cells with a header and notes, rendered
+ * as aligned text, RFC 4180 CSV through csvio, or a Markdown table) and the
+ * report of one run (lw_report_run), whose CSV/Markdown columns are the
+ * contract documented in docs/formats.md.  Numbers are formatted here, at the
+ * edge, from SI into the units in the column names.
+ */
+#ifndef LW_REPORT_H
+#define LW_REPORT_H
+
+#include <stdio.h>
+#include "engine.h"
+#include "profile.h"
+
+typedef enum lw_format { LW_FMT_TEXT, LW_FMT_CSV, LW_FMT_MD } lw_format;
+
+/* Parse "text", "csv" or "md"; false if none. */
+bool lw_format_parse(const char *s, lw_format *fmt);
+
+typedef struct lw_rtable {
+    size_t ncol, nrow, cap;
+    char **head;         /* ncol names */
+    char **cell;         /* nrow * ncol texts (NULL = empty) */
+    char **notes;        /* lines printed under the table (text and md) */
+    size_t nnotes;
+    char *title;         /* printed above (text and md), may be NULL */
+} lw_rtable;
+
+lw_rtable *lw_rtable_new(size_t ncol, lw_error *err);
+void lw_rtable_free(lw_rtable *t);
+lw_status lw_rtable_head(lw_rtable *t, size_t col, const char *name, lw_error *err);
+/* Append an empty row; returns its index via *row. */
+lw_status lw_rtable_add_row(lw_rtable *t, size_t *row, lw_error *err);
+lw_status lw_rtable_set(lw_rtable *t, size_t row, size_t col, const char *text, lw_error *err);
+lw_status lw_rtable_setf(lw_rtable *t, size_t row, size_t col, lw_error *err, const char *fmt,
+                         ...)
+#if defined(__GNUC__)
+    __attribute__((format(printf, 5, 6)))
+#endif
+    ;
+lw_status lw_rtable_note(lw_rtable *t, const char *text, lw_error *err);
+lw_status lw_rtable_set_title(lw_rtable *t, const char *text, lw_error *err);
+/* Render; returns LW_EIO if a write failed. */
+lw_status lw_rtable_write(const lw_rtable *t, FILE *fp, lw_format fmt, lw_error *err);
+
+/* Number of the run columns, and their names in order. */
+extern const char *const lw_run_columns[];
+extern const size_t lw_run_ncolumns;
+
+/* Fill columns [first, first + lw_run_ncolumns) of `row` from a result. */
+lw_status lw_report_run_row(lw_rtable *t, size_t row, size_t first, const lw_light *light,
+                            const lw_result *res, lw_error *err);
+
+/* The whole report of one run in the chosen format. */
+lw_status lw_report_run(FILE *fp, lw_format fmt, const lw_profile *prof, const lw_result *res,
+                        lw_error *err);
+
+/* Warning names joined by ';' ("" for none). */
+void lw_warnings_text(unsigned warnings, char *buf, size_t size);
+
+/* Human duration: "41.3 h", "52 min", "3.2 d" style. */
+void lw_format_hours(double h, char *buf, size_t size);
+
+/* The one-line caution printed with every result. */
+extern const char *const lw_caution_line;
+
+#endif

@@ -1,0 +1,168 @@
+/*
+ * table.c - monotone x -> y tables (see table.h for the method and sources).
+ *
+ * Invariant: n >= 2, x strictly increasing, every value finite, m[] holds the
+ * Fritsch-Carlson slopes, which keep each cubic piece inside the range of its
+ * two end values whenever the data are monotone there.
+ */
+#include "table.h"
+
+#include <math.h>
+#include <stdlib.h>
+#include <string.h>
+
+static double sign_of(double v) { return (v > 0) - (v < 0); }
+
+/* Shape-preserving three-point end slope (as in Moler, "Numerical Computing
+ * with MATLAB", section 3.4, pchip). */
+static double end_slope(double h0, double h1, double d0, double d1)
+{
+    double s = ((2.0 * h0 + h1) * d0 - h0 * d1) / (h0 + h1);
+    if (sign_of(s) != sign_of(d0))
+        s = 0.0;
+    else if (sign_of(d0) != sign_of(d1) && fabs(s) > fabs(3.0 * d0))
+        s = 3.0 * d0;
+    return s;
+}
+
+static void compute_slopes(lw_table *t)
+{
+    size_t n = t->n;
+    if (n == 2) {
+        double d = (t->y[1] - t->y[0]) / (t->x[1] - t->x[0]);
+        t->m[0] = t->m[1] = d;
+        return;
+    }
+    for (size_t k = 1; k + 1 < n; k++) {
+        double h0 = t->x[k] - t->x[k - 1], h1 = t->x[k + 1] - t->x[k];
+        double d0 = (t->y[k] - t->y[k - 1]) / h0, d1 = (t->y[k + 1] - t->y[k]) / h1;
+        if (d0 == 0.0 || d1 == 0.0 || sign_of(d0) != sign_of(d1)) {
+            t->m[k] = 0.0;
+        } else {
+            double w1 = 2.0 * h1 + h0, w2 = h1 + 2.0 * h0;
+            t->m[k] = (w1 + w2) / (w1 / d0 + w2 / d1);
+        }
+    }
+    double h0 = t->x[1] - t->x[0], h1 = t->x[2] - t->x[1];
+    double d0 = (t->y[1] - t->y[0]) / h0, d1 = (t->y[2] - t->y[1]) / h1;
+    t->m[0] = end_slope(h0, h1, d0, d1);
+    h0 = t->x[n - 1] - t->x[n - 2];
+    h1 = t->x[n - 2] - t->x[n - 3];
+    d0 = (t->y[n - 1] - t->y[n - 2]) / h0;
+    d1 = (t->y[n - 2] - t->y[n - 3]) / h1;
+    t->m[n - 1] = end_slope(h0, h1, d0, d1);
+}
+
+lw_table *lw_table_new(const double *x, const double *y, size_t n, lw_error *err)
+{
+    if (n < 2) {
+        lw_error_set(err, LW_EINPUT, NULL, 0, "a table needs at least 2 points, got %zu", n);
+        return NULL;
+    }
+    for (size_t i = 0; i < n; i++) {
+        if (!isfinite(x[i]) || !isfinite(y[i])) {
+            lw_error_set(err, LW_EINPUT, NULL, 0, "point %zu is not a finite number", i + 1);
+            return NULL;
+        }
+        if (i > 0 && !(x[i] > x[i - 1])) {
+            lw_error_set(err, LW_EINPUT, NULL, 0,
+                         "point %zu: x = %g does not increase on the previous %g", i + 1,
+                         x[i], x[i - 1]);
+            return NULL;
+        }
+    }
+    lw_table *t = calloc(1, sizeof *t);
+    double *buf = malloc(3 * n * sizeof *buf);
+    if (!t || !buf) {
+        free(t);
+        free(buf);
+        lw_error_set(err, LW_ENOMEM, NULL, 0, "out of memory for a %zu-point table", n);
+        return NULL;
+    }
+    t->n = n;
+    t->x = buf;
+    t->y = buf + n;
+    t->m = buf + 2 * n;
+    memcpy(t->x, x, n * sizeof *x);
+    memcpy(t->y, y, n * sizeof *y);
+    t->refs = 1;
+    compute_slopes(t);
+    return t;
+}
+
+lw_table *lw_table_ref(lw_table *t)
+{
+    if (t)
+        t->refs++;
+    return t;
+}
+
+void lw_table_free(lw_table *t)
+{
+    if (!t || --t->refs > 0)
+        return;
+    free(t->x); /* x, y and m share one block */
+    free(t);
+}
+
+size_t lw_table_find(const lw_table *t, double x)
+{
+    size_t lo = 0, hi = t->n - 1;
+    if (x <= t->x[0])
+        return 0;
+    if (x >= t->x[hi])
+        return hi - 1;
+    while (hi - lo > 1) {
+        size_t mid = lo + (hi - lo) / 2;
+        if (t->x[mid] <= x)
+            lo = mid;
+        else
+            hi = mid;
+    }
+    return lo;
+}
+
+double lw_table_linear(const lw_table *t, double x)
+{
+    if (x <= t->x[0])
+        return t->y[0];
+    if (x >= t->x[t->n - 1])
+        return t->y[t->n - 1];
+    size_t i = lw_table_find(t, x);
+    double u = (x - t->x[i]) / (t->x[i + 1] - t->x[i]);
+    return t->y[i] + u * (t->y[i + 1] - t->y[i]);
+}
+
+double lw_table_cubic(const lw_table *t, double x)
+{
+    if (x <= t->x[0])
+        return t->y[0];
+    if (x >= t->x[t->n - 1])
+        return t->y[t->n - 1];
+    size_t i = lw_table_find(t, x);
+    double h = t->x[i + 1] - t->x[i];
+    double s = (x - t->x[i]) / h;
+    double s2 = s * s, s3 = s2 * s;
+    double h00 = 2 * s3 - 3 * s2 + 1, h10 = s3 - 2 * s2 + s;
+    double h01 = -2 * s3 + 3 * s2, h11 = s3 - s2;
+    return h00 * t->y[i] + h10 * h * t->m[i] + h01 * t->y[i + 1] + h11 * h * t->m[i + 1];
+}
+
+double lw_table_end_slope(const lw_table *t)
+{
+    size_t n = t->n;
+    return (t->y[n - 1] - t->y[n - 2]) / (t->x[n - 1] - t->x[n - 2]);
+}
+
+int lw_table_direction(const lw_table *t, int strict)
+{
+    int up = 1, down = 1;
+    for (size_t i = 1; i < t->n; i++) {
+        double d = t->y[i] - t->y[i - 1];
+        if (d < 0 || (strict && d == 0))
+            up = 0;
+        if (d > 0 || (strict && d == 0))
+            down = 0;
+    }
+    return up ? 1 : (down ? -1 : 0);
+}

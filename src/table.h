@@ -1,0 +1,59 @@
+/*
+ * table.h - monotone x -> y tables: linear and monotone-cubic interpolation.
+ *
+ * Owns: lw_table, an immutable, reference-counted pair of arrays with x
+ * strictly increasing.  Shared by the cell curve (depth -> OCV, R), the cell
+ * temperature factors, and the LED I-V and flux tables.
+ *
+ * Interpolation: piecewise linear, or the monotone piecewise cubic Hermite
+ * interpolant of F. N. Fritsch and R. E. Carlson, "Monotone piecewise cubic
+ * interpolation", SIAM J. Numer. Anal. 17(2):238-246, 1980, with the slope
+ * choice of F. N. Fritsch and J. Butland (1984) (weighted harmonic mean) and
+ * shape-preserving one-sided end slopes.  It never overshoots monotone data.
+ *
+ * Outside [x0, xn-1] both evaluators clamp to the end value; they never
+ * extrapolate.  Callers that need an extension (the LED tables) say so and
+ * build it from lw_table_end_slope().
+ */
+#ifndef LW_TABLE_H
+#define LW_TABLE_H
+
+#include <stddef.h>
+#include "error.h"
+
+typedef struct lw_table {
+    size_t n;     /* number of points, >= 2 */
+    double *x;    /* strictly increasing, finite */
+    double *y;    /* finite */
+    double *m;    /* monotone-cubic slopes dy/dx at the points */
+    int refs;     /* reference count; lw_table_free drops one */
+} lw_table;
+
+/* Copy n points into a new table (refs = 1).  Fails with LW_EINPUT if n < 2,
+ * a value is not finite or x is not strictly increasing (the message names the
+ * 0-based index; callers add file:line), LW_ENOMEM if allocation fails. */
+lw_table *lw_table_new(const double *x, const double *y, size_t n, lw_error *err);
+
+/* Take another reference; returns t.  NULL-safe. */
+lw_table *lw_table_ref(lw_table *t);
+
+/* Drop a reference; frees on the last.  NULL-safe. */
+void lw_table_free(lw_table *t);
+
+/* Index i of the interval with x[i] <= x < x[i+1], clamped to [0, n-2]. */
+size_t lw_table_find(const lw_table *t, double x);
+
+/* Piecewise-linear value, clamped outside the table. */
+double lw_table_linear(const lw_table *t, double x);
+
+/* Monotone-cubic value, clamped outside the table. */
+double lw_table_cubic(const lw_table *t, double x);
+
+/* Slope (y[n-1]-y[n-2])/(x[n-1]-x[n-2]) of the last interval. */
+double lw_table_end_slope(const lw_table *t);
+
+/* 1 if y is non-decreasing, -1 if non-increasing, 0 if neither (a constant
+ * table counts as non-decreasing).  With `strict`, equal neighbours fail. */
+int lw_table_direction(const lw_table *t, int strict);
+
+#endif
