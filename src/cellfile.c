@@ -4,6 +4,7 @@
 #include "cellfile.h"
 
 #include <dirent.h>
+#include <errno.h>
 #include <math.h>
 #include <stddef.h>
 #include <stdio.h>
@@ -269,11 +270,17 @@ lw_status lw_cell_load(const char *path, lw_cell *cell, lw_error *err)
     lw_path_dir(dir, sizeof dir, path);
     if (st == LW_OK) {
         lw_path_join(file, sizeof file, dir, spec.curve);
-        st = load_curve(file, &spec.cell, err);
+        st = lw_check_readable(file, path, lw_ini_key_line(&ini, "cell", "curve"), "[cell] curve",
+                               err);
+        if (st == LW_OK)
+            st = load_curve(file, &spec.cell, err);
     }
     if (st == LW_OK && spec.temperature[0]) {
         lw_path_join(file, sizeof file, dir, spec.temperature);
-        st = load_temperature(file, &spec.cell, err);
+        st = lw_check_readable(file, path, lw_ini_key_line(&ini, "cell", "temperature"),
+                               "[cell] temperature", err);
+        if (st == LW_OK)
+            st = load_temperature(file, &spec.cell, err);
     }
     if (st == LW_OK && !(spec.cell.cutoff_v < spec.cell.ocv->y[0])) {
         st = lw_error_set(err, LW_EINPUT, path, lw_ini_key_line(&ini, "cell", "cutoff_v"),
@@ -287,6 +294,17 @@ lw_status lw_cell_load(const char *path, lw_cell *cell, lw_error *err)
     }
     lw_strlcpy(spec.cell.path, path, sizeof spec.cell.path);
     *cell = spec.cell;
+    return LW_OK;
+}
+
+lw_status lw_check_readable(const char *path, const char *from_file, int from_line,
+                            const char *what, lw_error *err)
+{
+    FILE *fp = fopen(path, "rb");
+    if (!fp)
+        return lw_error_set(err, LW_EINPUT, from_file, from_line, "%s: cannot open '%s': %s",
+                            what, path, strerror(errno));
+    fclose(fp);
     return LW_OK;
 }
 

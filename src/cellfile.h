@@ -56,6 +56,11 @@ lw_status lw_cell_names(const lw_search *search, char ***names, char ***paths, s
                         lw_error *err);
 void lw_cell_names_free(char **names, char **paths, size_t n);
 
+/* Check that a file named by a key can be opened; the error names the file
+ * and line of the key (from_file:from_line) and `what` (e.g. "[cell] curve"). */
+lw_status lw_check_readable(const char *path, const char *from_file, int from_line,
+                            const char *what, lw_error *err);
+
 /* Join dir and rel ("rel" when rel is absolute or dir is empty). */
 void lw_path_join(char *out, size_t size, const char *dir, const char *rel);
 /* The folder part of a path ("." when there is none). */

@@ -133,7 +133,7 @@ lw_status lw_csv_read(const char *path, lw_csv *csv, lw_error *err)
     if (!fp)
         return lw_error_set(err, LW_EINPUT, path, 0, "cannot open: %s", strerror(errno));
     struct csv_parser p;
-    if (csv_init(&p, CSV_STRICT | CSV_APPEND_NULL) != 0) {
+    if (csv_init(&p, CSV_STRICT | CSV_STRICT_FINI | CSV_APPEND_NULL) != 0) {
         fclose(fp);
         return lw_error_set(err, LW_ENOMEM, path, 0, "out of memory");
     }

@@ -135,15 +135,14 @@ lw_status lw_ini_read(const char *path, lw_ini *ini, lw_error *err)
     else if (r.too_long)
         st = lw_error_set(err, LW_EINPUT, path, r.line,
                           "line is too long (at most %d characters)", LW_INI_LINE_MAX - 2);
+    else if (rc > 0 && (local.code == LW_OK || rc < local.line))
+        st = lw_error_set(err, LW_EINPUT, path, rc, "expected '[section]' or 'key = value'");
     else if (local.code != LW_OK) {
         if (err && err->code == LW_OK)
             *err = local;
         st = local.code;
     } else if (read_error)
         st = lw_error_set(err, LW_EIO, path, 0, "read error");
-    else if (rc > 0)
-        st = lw_error_set(err, LW_EINPUT, path, rc,
-                          "expected '[section]' or 'key = value'");
     else if (rc < 0)
         st = lw_error_set(err, LW_EIO, path, 0, "cannot read");
     if (st != LW_OK)
@@ -220,9 +219,14 @@ const char *lw_key_suggest(const lw_keydef *defs, size_t n, const char *section,
 {
     int best = 4;
     const lw_keydef *pick = NULL;
+    size_t len = strlen(name);
     for (size_t i = 0; i < n; i++) {
-        /* prefer keys of the same section; a key of another section costs 1 */
+        /* prefer keys of the same section; a key of another section costs 1;
+         * a key without its unit suffix ("resistor" for "resistor_ohm")
+         * counts as close */
         int d = lw_edit_distance(defs[i].name, name) + (strcmp(defs[i].section, section) != 0);
+        if (len >= 3 && !strncmp(defs[i].name, name, len) && defs[i].name[len] == '_')
+            d = 1 + (strcmp(defs[i].section, section) != 0);
         if (d < best) {
             best = d;
             pick = &defs[i];

@@ -7,7 +7,6 @@
  */
 #include "profile.h"
 
-#include <errno.h>
 #include <math.h>
 #include <stddef.h>
 #include <stdio.h>
@@ -235,14 +234,13 @@ static lw_status load_xy(const lw_profile *p, const char *section, const char *k
 {
     char path[LW_PATH_MAX];
     lw_path_join(path, sizeof path, p->dir, rel);
-    FILE *probe = fopen(path, "rb");
-    if (!probe)
-        return lw_error_set(err, LW_EINPUT, p->path, line_of(p, section, key),
-                            "[%s] %s: cannot open '%s': %s", section, key, path,
-                            strerror(errno));
-    fclose(probe);
+    char what[2 * LW_INI_NAME_MAX + 4];
+    snprintf(what, sizeof what, "[%s] %s", section, key);
+    lw_status st = lw_check_readable(path, p->path, line_of(p, section, key), what, err);
+    if (st != LW_OK)
+        return st;
     lw_csv csv;
-    lw_status st = lw_csv_read(path, &csv, err);
+    st = lw_csv_read(path, &csv, err);
     if (st != LW_OK)
         return st;
     const char *cols[] = {xcol, ycol, NULL};

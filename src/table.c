@@ -143,9 +143,10 @@ double lw_table_cubic(const lw_table *t, double x)
     double h = t->x[i + 1] - t->x[i];
     double s = (x - t->x[i]) / h;
     double s2 = s * s, s3 = s2 * s;
-    double h00 = 2 * s3 - 3 * s2 + 1, h10 = s3 - 2 * s2 + s;
-    double h01 = -2 * s3 + 3 * s2, h11 = s3 - s2;
-    return h00 * t->y[i] + h10 * h * t->m[i] + h01 * t->y[i + 1] + h11 * h * t->m[i + 1];
+    double h10 = s3 - 2 * s2 + s, h01 = -2 * s3 + 3 * s2, h11 = s3 - s2;
+    /* y0 + (y1 - y0) h01 + ... is the Hermite form with h00 = 1 - h01; it
+     * is exact on flat intervals, where the textbook sum can round below. */
+    return t->y[i] + (t->y[i + 1] - t->y[i]) * h01 + h * (h10 * t->m[i] + h11 * t->m[i + 1]);
 }
 
 double lw_table_end_slope(const lw_table *t)

@@ -1,0 +1,119 @@
+#!/bin/sh
+# cli_test.sh LAMPWICK SOURCE_ROOT - end-to-end tests of the lampwick command:
+# exit codes, file:line messages, output files, and regression of
+# `lampwick run --format csv` on every bundled profile against tests/golden/
+# (numbers compared to a relative 1e-6; the solve count within 10 %).
+# Prints "N passed, N failed" and exits non-zero on any failure.
+set -u
+LW=$1
+SRC=$2
+TMP=$(mktemp -d /tmp/lampwick-cli-XXXXXX)
+trap 'rm -rf "$TMP"' EXIT
+pass=0
+fail=0
+
+ok() { pass=$((pass + 1)); }
+bad() { fail=$((fail + 1)); echo "FAIL: $*"; }
+
+# expect CODE PATTERN CMD...: exit status CODE and stdout+stderr matching PATTERN
+expect() {
+    code=$1; pat=$2; shift 2
+    out=$("$@" 2>&1); rc=$?
+    if [ "$rc" -ne "$code" ]; then bad "$* -> exit $rc, want $code: $out"; return; fi
+    if ! printf '%s\n' "$out" | grep -q -E -- "$pat"; then bad "$* -> output lacks /$pat/: $out"; return; fi
+    ok
+}
+
+cd "$SRC" || exit 1
+
+expect 0 '^lampwick [0-9]+\.[0-9]+\.[0-9]+$' "$LW" --version
+expect 0 'Safety' "$LW" help
+expect 0 'Usage: lampwick run' "$LW" help run
+expect 0 'Lithium cells can overheat' "$LW" help run
+expect 2 "unknown command 'frobnicate'" "$LW" frobnicate
+expect 2 'Try .lampwick help run' "$LW" run
+expect 2 '--format takes text, csv or md' "$LW" run profiles/demo.ini --format xml
+expect 0 'demo.ini: ok' "$LW" check profiles/demo.ini
+n=$("$LW" cells --format csv | tail -n +2 | wc -l)
+if [ "$n" -ge 7 ]; then ok; else bad "cells lists $n cells"; fi
+expect 0 'LR6-alkaline +alkaline' "$LW" cells
+
+# every bundled profile checks
+expect 0 ': ok' "$LW" check profiles/*.ini
+
+# refusals: a misspelled key, a missing curve file, a non-monotonic curve
+mkdir -p "$TMP/p"
+cp "$SRC/cells/HR6-nimh.ini" "$TMP/p/mycell.ini"
+cp "$SRC/cells/HR6-nimh.curve.csv" "$SRC/cells/nimh.temperature.csv" "$TMP/p/"
+cat > "$TMP/p/light.ini" <<'INI'
+[pack]
+cell = mycell
+series = 3
+[led]
+model = constant
+forward_v = 2.9
+flux_lm = 20
+flux_current_ma = 50
+[drive]
+resistor_ohm = 22
+INI
+expect 0 ': ok' "$LW" check "$TMP/p/light.ini"
+sed 's/resistor_ohm/resistr_ohm/' "$TMP/p/light.ini" > "$TMP/p/typo.ini"
+expect 2 "typo.ini:10: unknown key 'resistr_ohm' in \[drive\]; did you mean 'drive.resistor_ohm'" "$LW" check "$TMP/p/typo.ini"
+sed 's/^curve = .*/curve = gone.csv/' "$SRC/cells/HR6-nimh.ini" > "$TMP/p/mycell.ini"
+expect 2 "mycell.ini:[0-9]+: \[cell\] curve: cannot open" "$LW" run "$TMP/p/light.ini"
+cp "$SRC/cells/HR6-nimh.ini" "$TMP/p/mycell.ini"
+awk 'NR == 5 { print "10,1.27,0.031"; next } { print }' "$SRC/cells/HR6-nimh.curve.csv" > "$TMP/p/HR6-nimh.curve.csv"
+expect 2 "HR6-nimh.curve.csv:5: depth_pct = 10 does not increase" "$LW" run "$TMP/p/light.ini"
+cp "$SRC/cells/HR6-nimh.curve.csv" "$TMP/p/"
+expect 2 "^lampwick: --set led.forward_v: \[led\] forward_v = abc: expected a number" "$LW" run "$TMP/p/light.ini" --set led.forward_v=abc
+
+# output files: written when the run succeeds, absent when it fails
+expect 0 'runtime to cutoff' "$LW" run profiles/demo.ini --trace "$TMP/t.csv" --plot "$TMP/p.svg"
+if head -1 "$TMP/t.csv" | grep -q '^time_h,depth_pct,pack_v'; then ok; else bad "trace header"; fi
+rows=$(wc -l < "$TMP/t.csv")
+if [ "$rows" -ge 200 ]; then ok; else bad "trace has $rows rows"; fi
+if grep -q '</svg>' "$TMP/p.svg" && grep -q 'light output' "$TMP/p.svg"; then ok; else bad "svg"; fi
+expect 2 'expected a number' "$LW" run profiles/demo.ini --set drive.resistor_ohm=x --trace "$TMP/none.csv" --plot "$TMP/none.svg"
+if [ ! -e "$TMP/none.csv" ] && [ ! -e "$TMP/none.svg" ]; then ok; else bad "failed run left a file"; fi
+if ls "$TMP" | grep -q tmp; then bad "temporary file left behind"; else ok; fi
+
+# a light that never lights: exit 1, end_reason never-lit
+expect 1 'never-lit' "$LW" run "$TMP/p/light.ini" --set pack.series=2 --format csv
+
+# regression of run --format csv on every bundled profile and mode
+compare() { # compare GOLDEN ACTUAL
+    awk -F, -v g="$1" '
+        NR == FNR { gold[FNR] = $0; next }
+        {
+            if (!(FNR in gold)) { print "extra line " FNR; bad = 1; next }
+            n = split(gold[FNR], a, ","); m = split($0, b, ",")
+            if (n != m) { print "field count " FNR; bad = 1; next }
+            for (i = 1; i <= n; i++) {
+                if (a[i] == b[i]) continue
+                if (a[i] ~ /^-?[0-9.]+(e[-+]?[0-9]+)?$/ && b[i] ~ /^-?[0-9.]+(e[-+]?[0-9]+)?$/) {
+                    d = a[i] - b[i]; if (d < 0) d = -d
+                    s = a[i] < 0 ? -a[i] : a[i]
+                    tol = (i == solves) ? 0.1 * s : 1e-6 * s + 1e-12
+                    if (d <= tol) continue
+                }
+                print "line " FNR " field " i ": " a[i] " vs " b[i]; bad = 1
+            }
+        }
+        FNR == 1 && NR != FNR { for (i = 1; i <= NF; i++) if ($i == "solves") solves = i }
+        END { exit bad }' "$1" "$2"
+}
+for prof in profiles/*.ini; do
+    base=$(basename "$prof" .ini)
+    modes=$(sed -n 's/^\[mode \(.*\)\]$/\1/p' "$prof")
+    for mode in "" $modes; do
+        name=$base${mode:+-$mode}
+        "$LW" run "$prof" ${mode:+--mode "$mode"} --format csv > "$TMP/$name.csv" 2>/dev/null
+        if [ -n "${LAMPWICK_BLESS:-}" ]; then cp "$TMP/$name.csv" "$SRC/tests/golden/$name.csv"; fi
+        if [ ! -f "$SRC/tests/golden/$name.csv" ]; then bad "no golden file for $name"; continue; fi
+        if msg=$(compare "$SRC/tests/golden/$name.csv" "$TMP/$name.csv"); then ok; else bad "golden $name: $msg"; fi
+    done
+done
+
+echo "$pass passed, $fail failed"
+[ "$fail" -eq 0 ]

@@ -1,0 +1,467 @@
+/*
+ * test_engine.c - the discharge engine against published laws and against
+ * an independent GSL solution of the same model.
+ *
+ * The reference solution below is written from docs/model.md alone: it
+ * interpolates the curve itself, solves the loop with GSL's Brent root
+ * finder, finds the 30-s point and the cutoff depth with GSL root finders
+ * and integrates dt/dd with GSL's adaptive QAGP at 1e-12; nothing of the
+ * engine is shared except the lw_light description.
+ */
+#include "testutil.h"
+#include <gsl/gsl_errno.h>
+#include <gsl/gsl_integration.h>
+#include <gsl/gsl_roots.h>
+#include "lampwick.h"
+
+/* ---- building lights in code ---- */
+
+static void set_curve(lw_cell *c, const double *d, const double *ocv, const double *r, size_t n)
+{
+    lw_error e;
+    lw_error_clear(&e);
+    c->ocv = lw_table_new(d, ocv, n, &e);
+    c->res = lw_table_new(d, r, n, &e);
+    assert_non_null(c->ocv);
+    assert_non_null(c->res);
+}
+
+static void base_light(lw_light *l)
+{
+    memset(l, 0, sizeof *l);
+    lw_strlcpy(l->name, "test", sizeof l->name);
+    l->pack.series = 1;
+    l->pack.parallel = 1;
+    l->pack.ambient_c = 20;
+    l->pack.cell.chemistry = LW_CHEM_OTHER;
+    l->led.count = 1;
+    l->led.strings = 1;
+    l->led.v_scale = 1;
+    l->led.flux_lm = 10;
+    l->led.flux_current_a = 0.02;
+    l->led.flux_exponent = 1;
+    l->led.max_current_a = 1;
+    l->drive.type = LW_DRIVE_RESISTOR;
+    l->drive.duty_pct = 100;
+    l->cutoff.relative_pct = 10;
+    l->cutoff.cell_v = 0.1;
+    l->cap_factor = l->res_factor = 1;
+}
+
+/* A flat cell: constant OCV and resistance at every depth. */
+static void flat_cell(lw_light *l, double ocv_v, double r_ohm, double c_ah, double rated_a,
+                      double k, double cmax_ah)
+{
+    const double d[] = {0, 1}, v[] = {ocv_v, ocv_v}, r[] = {r_ohm, r_ohm};
+    set_curve(&l->pack.cell, d, v, r, 2);
+    l->pack.cell.capacity_ah = c_ah;
+    l->pack.cell.rated_a = rated_a;
+    l->pack.cell.peukert = k;
+    l->pack.cell.max_capacity_ah = cmax_ah;
+    l->pack.cell.cutoff_v = 0.1;
+}
+
+/* A sloping, alkaline-like cell (invented test data). */
+static void sloping_cell(lw_light *l)
+{
+    const double d[] = {0, 0.05, 0.1, 0.2, 0.4, 0.6, 0.8, 0.9, 0.95, 1.0};
+    const double v[] = {1.58, 1.50, 1.46, 1.40, 1.30, 1.22, 1.13, 1.06, 1.00, 0.90};
+    const double r[] = {0.15, 0.15, 0.16, 0.17, 0.19, 0.24, 0.34, 0.45, 0.60, 0.90};
+    set_curve(&l->pack.cell, d, v, r, 10);
+    l->pack.cell.capacity_ah = 2.3;
+    l->pack.cell.rated_a = 0.1;
+    l->pack.cell.peukert = 1.2;
+    l->pack.cell.max_capacity_ah = 2.8;
+    l->pack.cell.cutoff_v = 0.9;
+    l->cutoff.cell_v = 0.9;
+}
+
+static lw_result run_ok(const lw_light *l, bool trace)
+{
+    lw_run_options o = lw_run_options_default();
+    o.want_trace = trace;
+    lw_result r;
+    lw_error e;
+    lw_error_clear(&e);
+    lw_status st = lw_run(l, &o, &r, &e);
+    if (st != LW_OK)
+        fail_msg("lw_run: %s", e.msg);
+    return r;
+}
+
+/* ---- Coulomb counting and Peukert's law ---- */
+
+/* Coulomb counting (charge = current x time): a flat cell driving a
+ * constant-voltage LED through a resistor draws a constant current I, so it
+ * runs C/I hours to full depth, and the lumen-hours are flux x time. */
+static void coulomb_counting_flat_cell(void **state)
+{
+    (void)state;
+    lw_light l;
+    base_light(&l);
+    flat_cell(&l, 3.0, 0.5, 2.0, 0.4, 1.0, 2.0);
+    l.led.model = LW_LED_CONSTANT;
+    l.led.forward_v = 2.0;
+    l.drive.resistor_ohm = 49.5; /* I = (3 - 2)/(49.5 + 0.5) = 20 mA */
+    lw_result r = run_ok(&l, false);
+    assert_int_equal(r.end_reason, LW_END_CAPACITY);
+    assert_close(r.initial.led_a, 0.02, 1e-14);
+    assert_close(r.runtime_h, 2.0 / 0.02, 1e-12);
+    assert_close(r.lumen_hours, 10.0 * 100.0, 1e-12);
+    assert_true(r.warnings & LW_WARN_NO_CUTOFF);
+    lw_light_clear(&l);
+}
+
+/* Peukert's law in its published form t = H (C/(I H))^k for a constant
+ * current (W. Peukert, 1897; REFERENCES.md): rated 2 Ah at the 5-h rate
+ * (0.4 A), k = 1.15, run at 1 A. */
+static void peukert_constant_current(void **state)
+{
+    (void)state;
+    lw_light l;
+    base_light(&l);
+    flat_cell(&l, 3.0, 0.01, 2.0, 0.4, 1.15, 100.0);
+    l.led.model = LW_LED_CONSTANT;
+    l.led.forward_v = 2.0;
+    l.led.flux_current_a = 1.0;
+    l.drive.resistor_ohm = 0.99; /* I = 1 / (0.99 + 0.01) = 1 A */
+    lw_result r = run_ok(&l, false);
+    double h = 5.0, c = 2.0, i = 1.0;
+    assert_close(r.runtime_h, h * pow(c / (i * h), 1.15), 1e-12);
+    lw_light_clear(&l);
+}
+
+/* ---- identities at every point ---- */
+
+static void shockley_demo_light(lw_light *l)
+{
+    base_light(l);
+    sloping_cell(l);
+    l->pack.series = 3;
+    l->led.strings = 2;
+    l->led.model = LW_LED_SHOCKLEY;
+    l->led.ideality = 3.0;
+    l->led.saturation_a = 4.6e-18;
+    l->led.series_ohm = 1.5;
+    l->led.junction_c = 25;
+    l->led.flux_lm = 22;
+    l->led.flux_current_a = 0.06;
+    l->led.flux_exponent = 0.9;
+    l->drive.resistor_ohm = 33;
+}
+
+/* Kirchhoff's voltage law around each string at the operating point, and
+ * energy conservation over the run: drawn = LED + resistors + internal. */
+static void kirchhoff_and_energy_conservation(void **state)
+{
+    (void)state;
+    lw_light l;
+    shockley_demo_light(&l);
+    lw_error e;
+    lw_error_clear(&e);
+    for (double d = 0; d <= 1.0; d += 0.05) {
+        lw_point p;
+        assert_int_equal(lw_light_point(&l, d, false, &p, &e), LW_OK);
+        double e_v = 3 * p.ocv_v;
+        double loop = e_v - p.led_a * (33 + 3 * 2 * p.r_cell_ohm / 1) - p.led_v;
+        assert_near(loop, 0.0, 1e-12);
+        assert_close(p.pack_v, e_v - p.pack_a * 3 * p.r_cell_ohm, 1e-14);
+        assert_close(p.p_drawn_w, p.p_led_w + p.p_res_w + p.p_int_w, 1e-12);
+    }
+    lw_result r = run_ok(&l, false);
+    assert_close(r.energy_drawn_wh,
+                 r.energy_led_wh + r.energy_resistor_wh + r.energy_internal_wh, 1e-9);
+    assert_near(r.energy_driver_wh, 0.0, 0.0);
+    lw_light_clear(&l);
+}
+
+/* ---- the independent GSL reference ---- */
+
+typedef struct ref {
+    const lw_light *l;
+    double flux_ref;
+    double target;   /* for root finding: flux level or cell voltage */
+    int what;        /* 0 time, 1 lumen-hours */
+    double d0;       /* for the 30-s search */
+} ref;
+
+static double interp(const lw_table *t, double x)
+{
+    if (x <= t->x[0])
+        return t->y[0];
+    for (size_t i = 0; i + 1 < t->n; i++)
+        if (x <= t->x[i + 1])
+            return t->y[i] + (x - t->x[i]) / (t->x[i + 1] - t->x[i]) * (t->y[i + 1] - t->y[i]);
+    return t->y[t->n - 1];
+}
+
+struct loop {
+    double e, r, a, is, rs;
+};
+
+static double loop_residual(double i, void *p)
+{
+    const struct loop *q = p;
+    return q->e - i * q->r - q->a * log1p(i / q->is) - q->rs * i;
+}
+
+/* Per-string current from Kirchhoff's law with GSL's Brent solver. */
+static double ref_current(const lw_light *l, double d)
+{
+    const lw_led *led = &l->led;
+    double ocv = interp(l->pack.cell.ocv, d), rc = interp(l->pack.cell.res, d);
+    double e = l->pack.series * ocv;
+    double r = l->drive.resistor_ohm +
+               l->pack.series * led->strings * rc / l->pack.parallel;
+    struct loop q = {e, r, led->count * led->ideality * lw_thermal_voltage(led->junction_c),
+                     led->saturation_a, led->count * led->series_ohm};
+    gsl_function F = {loop_residual, &q};
+    gsl_root_fsolver *s = gsl_root_fsolver_alloc(gsl_root_fsolver_brent);
+    gsl_root_fsolver_set(s, &F, 0, e / r);
+    int st = GSL_CONTINUE;
+    for (int it = 0; it < 300 && st == GSL_CONTINUE; it++) {
+        gsl_root_fsolver_iterate(s);
+        st = gsl_root_test_interval(gsl_root_fsolver_x_lower(s), gsl_root_fsolver_x_upper(s), 0,
+                                    1e-15);
+    }
+    double i = gsl_root_fsolver_root(s);
+    gsl_root_fsolver_free(s);
+    return i;
+}
+
+static double ref_flux(const lw_light *l, double i)
+{
+    const lw_led *led = &l->led;
+    return led->count * led->strings * led->flux_lm *
+           pow(i / led->flux_current_a, led->flux_exponent);
+}
+
+static double ref_dtdd(const lw_light *l, double i)
+{
+    const lw_cell *c = &l->pack.cell;
+    double ic = l->led.strings * i / l->pack.parallel;
+    double cap = fmin(c->max_capacity_ah, c->capacity_ah * pow(c->rated_a / ic, c->peukert - 1));
+    return cap / ic;
+}
+
+static double ref_integrand(double d, void *p)
+{
+    const ref *q = p;
+    double i = ref_current(q->l, d);
+    double w = ref_dtdd(q->l, i);
+    return q->what == 0 ? w : ref_flux(q->l, i) * w;
+}
+
+static double ref_integral(const lw_light *l, int what, double a, double b)
+{
+    ref q = {l, 0, 0, what, 0};
+    gsl_function F = {ref_integrand, &q};
+    const lw_table *t = l->pack.cell.ocv;
+    double pts[64];
+    size_t np = 0;
+    pts[np++] = a;
+    for (size_t i = 0; i < t->n; i++)
+        if (t->x[i] > a && t->x[i] < b)
+            pts[np++] = t->x[i];
+    pts[np++] = b;
+    gsl_integration_workspace *w = gsl_integration_workspace_alloc(2000);
+    double result = 0, abserr = 0;
+    int st = gsl_integration_qagp(&F, pts, np, 0, 1e-12, 2000, w, &result, &abserr);
+    gsl_integration_workspace_free(w);
+    assert_int_equal(st, GSL_SUCCESS);
+    return result;
+}
+
+static double t_minus_30s(double d, void *p)
+{
+    const ref *q = p;
+    return ref_integral(q->l, 0, 0, d) - 30.0 / 3600.0;
+}
+
+static double flux_minus_target(double d, void *p)
+{
+    const ref *q = p;
+    return ref_flux(q->l, ref_current(q->l, d)) - q->target;
+}
+
+static double gsl_root(double (*f)(double, void *), void *p, double a, double b)
+{
+    gsl_function F = {f, p};
+    gsl_root_fsolver *s = gsl_root_fsolver_alloc(gsl_root_fsolver_brent);
+    gsl_root_fsolver_set(s, &F, a, b);
+    int st = GSL_CONTINUE;
+    for (int it = 0; it < 300 && st == GSL_CONTINUE; it++) {
+        gsl_root_fsolver_iterate(s);
+        st = gsl_root_test_interval(gsl_root_fsolver_x_lower(s), gsl_root_fsolver_x_upper(s),
+                                    1e-15, 0);
+    }
+    double x = gsl_root_fsolver_root(s);
+    gsl_root_fsolver_free(s);
+    return x;
+}
+
+/* Runtime, lumen-hours and time to 50 % of an independent GSL solution of
+ * the model, to 1e-6 relative (issue target), for several drive settings
+ * and a light that ends on the relative-brightness cutoff. */
+static void runtime_against_gsl_reference(void **state)
+{
+    (void)state;
+    const double resistors[] = {22, 33, 150};
+    for (size_t k = 0; k < 3; k++) {
+        lw_light l;
+        shockley_demo_light(&l);
+        l.drive.resistor_ohm = resistors[k];
+        l.cutoff.cell_v = 0.5; /* let the relative cutoff end the run */
+        lw_result r = run_ok(&l, false);
+        ref q = {&l, 0, 0, 0, 0};
+        double d30 = gsl_root(t_minus_30s, &q, 1e-12, 0.01);
+        q.flux_ref = ref_flux(&l, ref_current(&l, d30));
+        q.target = 0.10 * q.flux_ref;
+        double d_end = gsl_root(flux_minus_target, &q, d30, 1.0);
+        q.target = 0.5 * q.flux_ref;
+        double d_half = gsl_root(flux_minus_target, &q, d30, 1.0);
+        assert_int_equal(r.end_reason, LW_END_RELATIVE);
+        assert_close(r.flux_ref_lm, q.flux_ref, 1e-9);
+        assert_close(r.end_depth, d_end, 1e-9);
+        assert_close(r.runtime_h, ref_integral(&l, 0, 0, d_end), 1e-6);
+        assert_close(r.lumen_hours, ref_integral(&l, 1, 0, d_end), 1e-6);
+        assert_close(r.time_to_half_h, ref_integral(&l, 0, 0, d_half), 1e-6);
+        lw_light_clear(&l);
+    }
+}
+
+/* Same, ending on the loaded cell voltage: the end depth solves
+ * OCV(d) - Ic R(d) = cutoff, found here with GSL. */
+static double cellv_minus_cutoff(double d, void *p)
+{
+    const ref *q = p;
+    const lw_light *l = q->l;
+    double i = ref_current(l, d);
+    double ic = l->led.strings * i / l->pack.parallel;
+    return interp(l->pack.cell.ocv, d) - ic * interp(l->pack.cell.res, d) - q->target;
+}
+
+static void cell_voltage_end_against_gsl(void **state)
+{
+    (void)state;
+    lw_light l;
+    shockley_demo_light(&l);
+    l.drive.resistor_ohm = 10;
+    l.cutoff.relative_pct = 1;
+    l.cutoff.cell_v = 1.1;
+    lw_result r = run_ok(&l, false);
+    assert_int_equal(r.end_reason, LW_END_CELL_VOLTAGE);
+    ref q = {&l, 0, 1.1, 0, 0};
+    double d_end = gsl_root(cellv_minus_cutoff, &q, 0.0, 1.0);
+    assert_close(r.end_depth, d_end, 1e-9);
+    assert_close(r.final.cell_v, 1.1, 1e-9);
+    assert_close(r.runtime_h, ref_integral(&l, 0, 0, d_end), 1e-6);
+    lw_light_clear(&l);
+}
+
+/* The end is located exactly (root finding), not at a step edge. */
+static void cutoff_located_exactly(void **state)
+{
+    (void)state;
+    lw_light l;
+    shockley_demo_light(&l);
+    l.cutoff.cell_v = 0.5;
+    lw_result r = run_ok(&l, false);
+    assert_close(r.final.flux_lm, 0.1 * r.flux_ref_lm, 1e-9);
+    assert_true(isfinite(r.time_to_half_h));
+    assert_true(r.time_to_half_h < r.runtime_h);
+    lw_light_clear(&l);
+}
+
+static void never_lit(void **state)
+{
+    (void)state;
+    lw_light l;
+    base_light(&l);
+    flat_cell(&l, 3.0, 0.5, 2.0, 0.4, 1.0, 2.0);
+    l.led.model = LW_LED_CONSTANT;
+    l.led.forward_v = 3.2; /* above the cell's open-circuit voltage */
+    l.drive.resistor_ohm = 10;
+    lw_result r = run_ok(&l, false);
+    assert_int_equal(r.end_reason, LW_END_NEVER_LIT);
+    assert_true(r.runtime_h == 0.0);
+    assert_true(r.warnings & LW_WARN_NEVER_LIT);
+    assert_true(r.solves < 10);
+    lw_light_clear(&l);
+}
+
+static void trace_is_dense_monotone_and_ends_at_cutoff(void **state)
+{
+    (void)state;
+    lw_light l;
+    shockley_demo_light(&l);
+    lw_result r = run_ok(&l, true);
+    lw_trace tr;
+    lw_error e;
+    lw_error_clear(&e);
+    assert_int_equal(lw_trace_build(&l, &r, 200, &tr, &e), LW_OK);
+    assert_true(tr.n >= 200);
+    for (size_t i = 1; i < tr.n; i++) {
+        assert_true(tr.rows[i].t_h > tr.rows[i - 1].t_h);
+        assert_true(tr.rows[i].pt.depth > tr.rows[i - 1].pt.depth);
+    }
+    assert_close(tr.rows[tr.n - 1].t_h, r.runtime_h, 0);
+    assert_close(tr.rows[tr.n - 1].pt.depth, r.end_depth, 0);
+    /* the second-to-last row's time is an independent sum of pieces */
+    assert_true(tr.rows[tr.n - 2].t_h < r.runtime_h);
+    lw_trace_clear(&tr);
+    lw_result_clear(&r);
+    lw_light_clear(&l);
+}
+
+static void warnings_fire(void **state)
+{
+    (void)state;
+    lw_light l;
+    shockley_demo_light(&l);
+    l.led.max_current_a = 0.055; /* nominal ~53 mA, worst case above */
+    l.drive.rating_w = 0.125;    /* ~94 mW is above half of it */
+    l.drive.tolerance_pct = 5;
+    lw_result r = run_ok(&l, false);
+    assert_false(r.warnings & LW_WARN_LED_OVER_MAX);
+    assert_true(r.warnings & LW_WARN_LED_OVER_MAX_WORST);
+    assert_true(r.warnings & LW_WARN_RESISTOR_HOT);
+    assert_true(r.worst_led_a > r.initial.led_a);
+    /* worst case by hand: OCV at its top, the lowest R on the curve, resistor
+     * at -5 %, forward voltage at -5 %: must exceed the nominal current */
+    l.pack.cell.chemistry = LW_CHEM_LI_ION;
+    l.cutoff.cell_v = 0.8; /* below the cell's 0.9 V end point */
+    r = run_ok(&l, false);
+    assert_true(r.warnings & LW_WARN_OVER_DISCHARGE);
+    lw_light_clear(&l);
+}
+
+/* Solve count stays within "a few hundred" on a curve of ten points. */
+static void solve_budget(void **state)
+{
+    (void)state;
+    lw_light l;
+    shockley_demo_light(&l);
+    lw_result r = run_ok(&l, false);
+    assert_true(r.solves > 50);
+    assert_true(r.solves < 600);
+    lw_light_clear(&l);
+}
+
+int main(void)
+{
+    gsl_set_error_handler_off();
+    const struct CMUnitTest tests[] = {
+        cmocka_unit_test(coulomb_counting_flat_cell),
+        cmocka_unit_test(peukert_constant_current),
+        cmocka_unit_test(kirchhoff_and_energy_conservation),
+        cmocka_unit_test(runtime_against_gsl_reference),
+        cmocka_unit_test(cell_voltage_end_against_gsl),
+        cmocka_unit_test(cutoff_located_exactly),
+        cmocka_unit_test(never_lit),
+        cmocka_unit_test(trace_is_dense_monotone_and_ends_at_cutoff),
+        cmocka_unit_test(warnings_fire),
+        cmocka_unit_test(solve_budget),
+    };
+    return cmocka_run_group_tests(tests, NULL, NULL);
+}

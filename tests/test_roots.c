@@ -1,0 +1,110 @@
+/*
+ * test_roots.c - Wright omega and Brent's method against published values
+ * and GSL.
+ */
+#include "testutil.h"
+#include <gsl/gsl_errno.h>
+#include <gsl/gsl_roots.h>
+#include <gsl/gsl_sf_lambert.h>
+#include "lampwick.h"
+
+/* REFERENCES.md check value 2: omega(-2..2) from reference-library
+ * documentation [checked]. */
+static void wright_omega_published_values(void **state)
+{
+    (void)state;
+    assert_close(lw_wright_omega(-2), 0.12002824, 5e-8);
+    assert_close(lw_wright_omega(-1), 0.27846454, 5e-8);
+    assert_close(lw_wright_omega(0), 0.56714329, 5e-8);
+    assert_close(lw_wright_omega(1), 1.0, 1e-15);
+    assert_close(lw_wright_omega(2), 1.5571456, 5e-8);
+}
+
+/* Independent reference: GSL's gsl_sf_lambert_W0(e^x) where e^x does not
+ * overflow; beyond, the defining identity w + ln w = x. */
+static void wright_omega_against_gsl_and_identity(void **state)
+{
+    (void)state;
+    for (double x = -100; x <= 700; x += 0.37) {
+        double w = lw_wright_omega(x);
+        double ref = gsl_sf_lambert_W0(exp(x));
+        assert_close(w, ref, 1e-13);
+    }
+    /* GSL's W0 flushes arguments near the underflow limit to 0; there the
+     * defining identity is the reference */
+    for (double x = -740; x < -100; x += 3.1) {
+        double w = lw_wright_omega(x);
+        assert_close(w + log(w), x, 1e-14);
+    }
+    for (double x = 710; x < 1e8; x *= 1.7) {
+        double w = lw_wright_omega(x);
+        assert_close(w + log(w), x, 1e-15);
+    }
+    assert_true(lw_wright_omega(-800) == 0.0);
+    assert_close(lw_wright_omega(-50), exp(-50), 1e-15);
+}
+
+static double cubic_fn(double x, void *ctx)
+{
+    (void)ctx;
+    return x * x * x - 2 * x - 5; /* Wallis's example; root 2.0945514815423265 */
+}
+
+static double gsl_cubic(double x, void *p)
+{
+    return cubic_fn(x, p);
+}
+
+/* Brent's method against GSL's gsl_root_fsolver_brent on the same function. */
+static void brent_against_gsl(void **state)
+{
+    (void)state;
+    lw_error e;
+    lw_error_clear(&e);
+    double r = 0;
+    assert_int_equal(lw_root_brent(cubic_fn, NULL, 2, 3, cubic_fn(2, NULL), cubic_fn(3, NULL),
+                                   1e-14, 100, &r, &e),
+                     LW_OK);
+    gsl_function F = {gsl_cubic, NULL};
+    gsl_root_fsolver *s = gsl_root_fsolver_alloc(gsl_root_fsolver_brent);
+    gsl_root_fsolver_set(s, &F, 2, 3);
+    int status = GSL_CONTINUE;
+    for (int i = 0; i < 100 && status == GSL_CONTINUE; i++) {
+        gsl_root_fsolver_iterate(s);
+        status = gsl_root_test_interval(gsl_root_fsolver_x_lower(s), gsl_root_fsolver_x_upper(s),
+                                        1e-15, 0);
+    }
+    double ref = gsl_root_fsolver_root(s);
+    gsl_root_fsolver_free(s);
+    assert_close(r, ref, 1e-13);
+    assert_close(r, 2.0945514815423265, 1e-13);
+}
+
+static void brent_refuses_no_bracket_and_caps_iterations(void **state)
+{
+    (void)state;
+    lw_error e;
+    lw_error_clear(&e);
+    double r = 42;
+    assert_int_equal(lw_root_brent(cubic_fn, NULL, 3, 4, cubic_fn(3, NULL), cubic_fn(4, NULL),
+                                   1e-12, 100, &r, &e),
+                     LW_EINPUT);
+    assert_close(r, 42, 0);
+    lw_error_clear(&e);
+    assert_int_equal(lw_root_brent(cubic_fn, NULL, 2, 3, cubic_fn(2, NULL), cubic_fn(3, NULL),
+                                   1e-300, 2, &r, &e),
+                     LW_ENUMERIC);
+    assert_non_null(strstr(e.msg, "no convergence"));
+}
+
+int main(void)
+{
+    gsl_set_error_handler_off();
+    const struct CMUnitTest tests[] = {
+        cmocka_unit_test(wright_omega_published_values),
+        cmocka_unit_test(wright_omega_against_gsl_and_identity),
+        cmocka_unit_test(brent_against_gsl),
+        cmocka_unit_test(brent_refuses_no_bracket_and_caps_iterations),
+    };
+    return cmocka_run_group_tests(tests, NULL, NULL);
+}
