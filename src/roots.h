@@ -27,7 +27,8 @@ lw_status lw_root_brent(lw_root_fn f, void *ctx, double a, double b, double fa, 
                         double xtol, int max_iter, double *root, lw_error *err);
 
 /* Wright omega function for real x: the real w > 0 with w + ln(w) = x.
- * Accurate to a few ulps; never overflows for finite x; 0 for x < -745. */
+ * Accurate to a few ulps while the result is a normal double (x > -708);
+ * never overflows for finite x; 0 for x < -745. */
 double lw_wright_omega(double x);
 
 #endif

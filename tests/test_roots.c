@@ -25,14 +25,14 @@ static void wright_omega_published_values(void **state)
 static void wright_omega_against_gsl_and_identity(void **state)
 {
     (void)state;
-    for (double x = -100; x <= 700; x += 0.37) {
+    for (double x = -60; x <= 700; x += 0.37) {
         double w = lw_wright_omega(x);
         double ref = gsl_sf_lambert_W0(exp(x));
         assert_close(w, ref, 1e-13);
     }
-    /* GSL's W0 flushes arguments near the underflow limit to 0; there the
+    /* GSL 2.7's W0 loses accuracy below about e^-80 (and returns 0 at e^-100); there the
      * defining identity is the reference */
-    for (double x = -740; x < -100; x += 3.1) {
+    for (double x = -700; x < -60; x += 1.3) {
         double w = lw_wright_omega(x);
         assert_close(w + log(w), x, 1e-14);
     }
