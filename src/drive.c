@@ -53,12 +53,13 @@ static double efficiency_at(const lw_drive *drv, double vin)
 }
 
 /* Fill the string-side quantities common to the passive and linear drives. */
-static void fill_string(const lw_light *l, lw_point *pt, double i, double e_v, double r_pack)
+static void fill_string(const lw_light *l, lw_point *pt, double i, double v_led, double e_v,
+                        double r_pack)
 {
     const int m = l->led.strings, n = l->led.count;
     const double duty = l->drive.duty_pct / 100.0;
     pt->led_a = i;
-    pt->led_v = lw_led_voltage(&l->led, i, &pt->extrapolated);
+    pt->led_v = v_led;
     pt->pack_a = m * i;
     pt->cell_a = pt->pack_a / l->pack.parallel;
     pt->pack_v = e_v - pt->pack_a * r_pack;
@@ -143,7 +144,7 @@ lw_status lw_light_point_at(const lw_light *l, double depth, double ocv_v, doubl
     double r_share = r_pack * m;                /* pack resistance as seen by one string */
     double r_loop = l->drive.resistor_ohm + r_share;
     lw_status st = LW_OK;
-    double i = 0.0;
+    double i = 0.0, v_led = 0.0;
     pt->regulation_margin = 1.0;
     pt->regime = LW_REGIME_PASSIVE;
     switch (l->drive.type) {
@@ -152,25 +153,28 @@ lw_status lw_light_point_at(const lw_light *l, double depth, double ocv_v, doubl
         break;
     case LW_DRIVE_LINEAR_CC: {
         double set = l->drive.set_a;
-        double head = e_v - set * r_loop - l->led.count * lw_led_voltage(&l->led, set, NULL);
+        double v_set = lw_led_voltage(&l->led, set, &pt->extrapolated);
+        double head = e_v - set * r_loop - l->led.count * v_set;
         pt->regulation_margin = head - l->drive.dropout_v;
         if (pt->regulation_margin >= 0.0) {
             pt->regime = LW_REGIME_REGULATED;
             i = set;
+            v_led = v_set;
         } else {
             pt->regime = LW_REGIME_SATURATED;
-            st = lw_led_solve(&l->led, e_v - l->drive.dropout_v, r_loop, &i, &pt->extrapolated,
-                              err);
+            pt->extrapolated = false;
+            st = lw_led_solve_v(&l->led, e_v - l->drive.dropout_v, r_loop, &i, &v_led,
+                                &pt->extrapolated, err);
         }
         if (st == LW_OK)
-            fill_string(l, pt, i, e_v, r_pack);
+            fill_string(l, pt, i, v_led, e_v, r_pack);
         break;
     }
     case LW_DRIVE_RESISTOR:
     default:
-        st = lw_led_solve(&l->led, e_v, r_loop, &i, &pt->extrapolated, err);
+        st = lw_led_solve_v(&l->led, e_v, r_loop, &i, &v_led, &pt->extrapolated, err);
         if (st == LW_OK)
-            fill_string(l, pt, i, e_v, r_pack);
+            fill_string(l, pt, i, v_led, e_v, r_pack);
         break;
     }
     if (st != LW_OK)

@@ -101,51 +101,79 @@ static lw_status solve_shockley(const lw_led *led, double e_v, double r_ohm, dou
     return LW_OK;
 }
 
-struct table_loop {
-    const lw_led *led;
-    double e_v, r_ohm;
-    bool *extrapolated;
-};
-
-static double table_residual(double i, void *ctx)
+/* Table model: the residual f(I) = E - I*R - N*s*V(I) falls monotonically in
+ * I (V is a non-decreasing monotone cubic).  At the knots it needs no
+ * interpolation, so the knot interval holding the root is found by
+ * bisection over the knots; inside it f is one cubic, solved by Newton's
+ * method safeguarded by bisection.  Below the first knot V is held constant
+ * and above the last it continues on the last slope: f is linear there. */
+static double knot_residual(const lw_led *led, double e_v, double r_ohm, size_t k)
 {
-    const struct table_loop *c = ctx;
-    return c->e_v - i * c->r_ohm - c->led->count * lw_led_voltage(c->led, i, c->extrapolated);
+    const lw_table *t = led->iv;
+    return e_v - t->x[k] * r_ohm - led->count * led->v_scale * t->y[k];
 }
 
 static lw_status solve_table(const lw_led *led, double e_v, double r_ohm, double *i_a,
                              bool *extrapolated, lw_error *err)
 {
-    bool ext = false;
-    struct table_loop c = {led, e_v, r_ohm, &ext};
-    double f0 = table_residual(0.0, &c);
-    if (f0 <= 0.0) {
+    const lw_table *t = led->iv;
+    const double nv = led->count * led->v_scale;
+    const size_t n = t->n;
+    if (e_v - nv * t->y[0] <= 0.0) {
         *i_a = 0.0;
         return LW_OK;
     }
-    /* Upper bracket: the residual falls at least as fast as -I*R, and beyond
-     * the table V rises on the last slope; double until the sign changes. */
-    double hi = r_ohm > 0.0 ? e_v / r_ohm : led->iv->x[led->iv->n - 1];
-    double fhi = table_residual(hi, &c);
-    for (int k = 0; fhi > 0.0 && k < 200; k++) {
-        hi *= 2.0;
-        fhi = table_residual(hi, &c);
+    if (knot_residual(led, e_v, r_ohm, 0) <= 0.0) {
+        /* root below the first point, where V = y[0]; r_ohm > 0 here */
+        *i_a = (e_v - nv * t->y[0]) / r_ohm;
+        return LW_OK;
     }
-    if (fhi > 0.0)
-        return lw_error_set(err, LW_EINPUT, NULL, 0,
-                            "the LED table never reaches the supply voltage: the current is "
-                            "unbounded");
-    double root;
-    lw_status st = lw_root_brent(table_residual, &c, 0.0, hi, f0, fhi, 1e-12 * hi + 1e-15, 200,
-                                 &root, err);
-    if (st != LW_OK)
-        return st;
-    ext = false;
-    (void)table_residual(root, &c); /* flag extrapolation at the answer only */
-    if (extrapolated && ext)
-        *extrapolated = true;
-    *i_a = root;
-    return LW_OK;
+    if (knot_residual(led, e_v, r_ohm, n - 1) > 0.0) {
+        double slope = lw_table_end_slope(t);
+        double denom = r_ohm + nv * slope;
+        if (!(denom > 0.0))
+            return lw_error_set(err, LW_EINPUT, NULL, 0,
+                                "the LED table never reaches the supply voltage: the current is "
+                                "unbounded");
+        *i_a = t->x[n - 1] + knot_residual(led, e_v, r_ohm, n - 1) / denom;
+        if (extrapolated)
+            *extrapolated = true;
+        return LW_OK;
+    }
+    size_t lo = 0, hi = n - 1; /* f(x[lo]) > 0 >= f(x[hi]) */
+    while (hi - lo > 1) {
+        size_t mid = lo + (hi - lo) / 2;
+        if (knot_residual(led, e_v, r_ohm, mid) > 0.0)
+            lo = mid;
+        else
+            hi = mid;
+    }
+    double a = t->x[lo], b = t->x[hi], h = b - a;
+    double y0 = t->y[lo], dy = t->y[hi] - t->y[lo], m0 = h * t->m[lo], m1 = h * t->m[hi];
+    double x = a + h * knot_residual(led, e_v, r_ohm, lo) /
+                       (knot_residual(led, e_v, r_ohm, lo) - knot_residual(led, e_v, r_ohm, hi));
+    double xa = a, xb = b;
+    for (int it = 0; it < 60; it++) {
+        double s = (x - a) / h, s2 = s * s, s3 = s2 * s;
+        double v = y0 + dy * (3 * s2 - 2 * s3) + m0 * (s3 - 2 * s2 + s) + m1 * (s3 - s2);
+        double dv = (dy * (6 * s - 6 * s2) + m0 * (3 * s2 - 4 * s + 1) + m1 * (3 * s2 - 2 * s)) / h;
+        double f = e_v - x * r_ohm - nv * v, df = -r_ohm - nv * dv;
+        if (f > 0.0)
+            xa = x;
+        else
+            xb = x;
+        double step = df < 0.0 ? -f / df : 0.0;
+        double xn = x + step;
+        if (!(xn > xa && xn < xb) || df >= 0.0)
+            xn = 0.5 * (xa + xb); /* Newton left the bracket: bisect */
+        if (fabs(xn - x) <= 1e-14 * fabs(xn) || xb - xa <= 1e-14 * fabs(xb)) {
+            *i_a = xn;
+            return LW_OK;
+        }
+        x = xn;
+    }
+    return lw_error_set(err, LW_ENUMERIC, NULL, 0,
+                        "the LED table solution did not converge in 60 steps");
 }
 
 lw_status lw_led_solve(const lw_led *led, double e_v, double r_ohm, double *i_a,
@@ -184,5 +212,18 @@ lw_status lw_led_solve(const lw_led *led, double e_v, double r_ohm, double *i_a,
         return solve_table(led, e_v, r_ohm, i_a, extrapolated, err);
     }
     *i_a = i;
+    return LW_OK;
+}
+
+lw_status lw_led_solve_v(const lw_led *led, double e_v, double r_ohm, double *i_a,
+                         double *v_led, bool *extrapolated, lw_error *err)
+{
+    lw_status st = lw_led_solve(led, e_v, r_ohm, i_a, extrapolated, err);
+    if (st != LW_OK)
+        return st;
+    if (*i_a > 0.0 && led->model != LW_LED_CONSTANT && led->model != LW_LED_LINEAR)
+        *v_led = (e_v - *i_a * r_ohm) / led->count;
+    else
+        *v_led = lw_led_voltage(led, *i_a, NULL);
     return LW_OK;
 }

@@ -6,6 +6,7 @@
 
 #include <float.h>
 #include <math.h>
+#include <stdbool.h>
 
 lw_status lw_root_brent(lw_root_fn f, void *ctx, double a, double b, double fa, double fb,
                         double xtol, int max_iter, double *root, lw_error *err)
@@ -96,13 +97,15 @@ double lw_wright_omega(double x)
         double lx = log(x);
         w = x - lx + lx / x; /* asymptotic series of W0(e^x) */
     }
-    /* Fritsch-Shafer-Crowley iteration: fourth order; two steps from the
-     * guesses above reach full precision, the cap is a safeguard. */
+    /* Fritsch-Shafer-Crowley iteration, fourth order: from a guess within
+     * 2 % the error after one step is below 1e-7 and after two below 1e-16,
+     * so two steps are taken; a step that still moves w (a guess worse than
+     * expected) earns another, up to a cap. */
     for (int it = 0; it < 6; it++) {
         double r = x - w - log(w);
         double a = (1.0 + w) * (1.0 + w + 2.0 * r / 3.0);
         double wn = w * (1.0 + r / (1.0 + w) * (a - 0.5 * r) / (a - r));
-        double done = fabs(wn - w) <= 4.0 * DBL_EPSILON * wn;
+        bool done = it >= 1 && fabs(wn - w) <= 1e-5 * wn;
         w = wn;
         if (done)
             break;
