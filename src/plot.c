@@ -154,7 +154,7 @@ static void draw_axes(FILE *fp, const frame *f, const lw_panel *p, bool bottom,
     fprintf(fp, "<rect x='%.1f' y='%.1f' width='%.1f' height='%.1f' fill='#ffffff' "
                 "stroke='#555' stroke-width='1'/>\n",
             f->x0, f->y0, f->x1 - f->x0, f->y1 - f->y0);
-    size_t n = f->ylog ? log_ticks(f->ylo, f->yhi, t) : lw_nice_ticks(f->ylo, f->yhi, 6, t);
+    size_t n = f->ylog ? log_ticks(f->ylo, f->yhi, t) : lw_nice_ticks(f->ylo, f->yhi, 8, t);
     for (size_t i = 0; i < n; i++) {
         double y = py(f, t[i]);
         fprintf(fp, "<line x1='%.1f' y1='%.1f' x2='%.1f' y2='%.1f' stroke='#e3e3e3'/>\n", f->x0,
@@ -162,12 +162,17 @@ static void draw_axes(FILE *fp, const frame *f, const lw_panel *p, bool bottom,
         fmt_tick(buf, sizeof buf, t[i]);
         fprintf(fp, "<text x='%.1f' y='%.1f' text-anchor='end' class='tick'>%s</text>\n",
                 f->x0 - 6, y + 4, buf);
-        if (p->y2_label) {
-            fmt_tick(buf, sizeof buf, t[i] * p->y2_scale);
-            char *dot = strchr(buf, '.');
-            if (dot && strlen(dot) > 3)
-                snprintf(buf, sizeof buf, "%.3g", t[i] * p->y2_scale);
-            fprintf(fp, "<text x='%.1f' y='%.1f' class='tick'>%s</text>\n", f->x1 + 6, y + 4,
+    }
+    if (p->y2_label && p->y2_scale > 0) {
+        /* the right axis gets round numbers of its own unit */
+        double t2[33];
+        size_t n2 = lw_nice_ticks(f->ylo * p->y2_scale, f->yhi * p->y2_scale, 6, t2);
+        for (size_t i = 0; i < n2; i++) {
+            double y = py(f, t2[i] / p->y2_scale);
+            fmt_tick(buf, sizeof buf, t2[i]);
+            fprintf(fp, "<line x1='%.1f' y1='%.1f' x2='%.1f' y2='%.1f' stroke='#555'/>\n", f->x1,
+                    y, f->x1 + 4, y);
+            fprintf(fp, "<text x='%.1f' y='%.1f' class='tick'>%s</text>\n", f->x1 + 7, y + 4,
                     buf);
         }
     }
@@ -360,10 +365,16 @@ lw_status lw_plot_run(FILE *fp, const char *title, const lw_light *light, const 
     lw_chart c = {0};
     c.title = title;
     c.subtitle = sub;
-    c.x = (lw_axis){.label = "time since switch-on (h)", .from_zero = true};
+    /* the time axis ends where the run ends, not at the next round number */
+    c.x = (lw_axis){.label = "time since switch-on (h)", .lo = 0,
+                    .hi = res->runtime_h > 0 ? res->runtime_h * 1.02 : 1.0};
     c.npanels = 2;
     lw_panel *p = &c.panels[0];
-    p->y = (lw_axis){.label = "light output (% of 30-s value)", .from_zero = true};
+    double top = 100.0;
+    for (size_t i = 0; i < n; i++)
+        top = fmax(top, pct[i]);
+    p->y = (lw_axis){.label = "light output (% of 30-s value)", .lo = 0,
+                     .hi = 10.0 * ceil(top / 10.0 + 0.3)};
     p->y2_label = "light output (lm)";
     p->y2_scale = res->flux_ref_lm / 100.0;
     p->series[p->nseries++] = (lw_series){.name = "light output", .x = t, .y = pct, .n = n};
@@ -374,6 +385,9 @@ lw_status lw_plot_run(FILE *fp, const char *title, const lw_light *light, const 
     p->series[p->nseries++] = (lw_series){.name = "loaded", .x = t, .y = vload, .n = n};
     p->series[p->nseries++] =
         (lw_series){.name = "open circuit", .x = t, .y = vocv, .n = n, .dashed = true};
+    char endp[64];
+    snprintf(endp, sizeof endp, "end point %.3g V per cell", light->cutoff.cell_v);
+    p->refs[p->nrefs++] = (lw_refline){light->cutoff.cell_v * light->pack.series, endp};
     p->height_share = 1.0;
     lw_status st = lw_plot_svg(fp, &c, err);
     free(buf);
