@@ -41,6 +41,7 @@ static const char *const main_help =
     "  check PROFILE... load and validate profiles and everything they name\n"
     "  cells            list the cell library\n"
     "  help [COMMAND]   this text, or the help of one command\n"
+    "  help keys        every key of light profiles and cell files\n"
     "\n"
     "Options\n"
     "  -h, --help       show help\n"
@@ -505,6 +506,36 @@ static const char *help_of(const char *name)
     return NULL;
 }
 
+/* `lampwick help keys`: every key of profiles and cell files from the
+ * schemas themselves, so the list cannot drift from the code. */
+static void print_keys(const char *title, const lw_keydef *defs, size_t n)
+{
+    printf("%s\n", title);
+    const char *section = "";
+    for (size_t i = 0; i < n; i++) {
+        if (strcmp(section, defs[i].section) != 0) {
+            section = defs[i].section;
+            printf("  [%s]\n", section);
+        }
+        char def[64] = "";
+        if (defs[i].def && defs[i].def[0])
+            snprintf(def, sizeof def, " (default %s)", defs[i].def);
+        else if (defs[i].flags & LW_KF_REQUIRED)
+            snprintf(def, sizeof def, " (required)");
+        printf("    %-26s %s%s\n", defs[i].name, defs[i].help, def);
+    }
+}
+
+static int help_keys(void)
+{
+    print_keys("Light profile keys (profiles/*.ini); [mode NAME] sections hold section.key "
+               "overrides",
+               lw_profile_keys, lw_profile_nkeys);
+    printf("\n");
+    print_keys("Cell file keys (cells/*.ini)", lw_cell_keys, lw_cell_nkeys);
+    return 0;
+}
+
 int lw_cli_main(int argc, char **argv)
 {
     if (argc < 2) {
@@ -513,6 +544,8 @@ int lw_cli_main(int argc, char **argv)
     }
     const char *cmd = argv[1];
     if (!strcmp(cmd, "--help") || !strcmp(cmd, "-h") || !strcmp(cmd, "help")) {
+        if (!strcmp(cmd, "help") && argc > 2 && !strcmp(argv[2], "keys"))
+            return help_keys();
         if (!strcmp(cmd, "help") && argc > 2) {
             const char *h = help_of(argv[2]);
             if (!h) {
