@@ -115,8 +115,10 @@ static lw_status load_curve(const char *path, lw_cell *cell, lw_error *err)
     st = lw_csv_expect(&csv, curve_cols, NULL, err);
     size_t n = csv.nrow;
     double *buf = st == LW_OK ? malloc(3 * n * sizeof *buf) : NULL;
-    if (st == LW_OK && !buf)
-        st = lw_error_set(err, LW_ENOMEM, path, 0, "out of memory");
+    if (!buf) {
+        lw_csv_clear(&csv);
+        return st != LW_OK ? st : lw_error_set(err, LW_ENOMEM, path, 0, "out of memory");
+    }
     int cd = lw_csv_column(&csv, "depth_pct"), co = lw_csv_column(&csv, "open_circuit_v"),
         cr = lw_csv_column(&csv, "resistance_ohm");
     for (size_t i = 0; st == LW_OK && i < n; i++) {
@@ -173,8 +175,10 @@ static lw_status load_temperature(const char *path, lw_cell *cell, lw_error *err
     st = lw_csv_expect(&csv, temp_cols, NULL, err);
     size_t n = csv.nrow;
     double *buf = st == LW_OK ? malloc(3 * n * sizeof *buf) : NULL;
-    if (st == LW_OK && !buf)
-        st = lw_error_set(err, LW_ENOMEM, path, 0, "out of memory");
+    if (!buf) {
+        lw_csv_clear(&csv);
+        return st != LW_OK ? st : lw_error_set(err, LW_ENOMEM, path, 0, "out of memory");
+    }
     int ct = lw_csv_column(&csv, "temp_c"), cc = lw_csv_column(&csv, "capacity_factor"),
         cr = lw_csv_column(&csv, "resistance_factor");
     for (size_t i = 0; st == LW_OK && i < n; i++) {

@@ -624,6 +624,8 @@ lw_status lw_trace_build(const lw_light *light, const lw_result *res, size_t min
         st = eval(&e, res->pieces[i].d0, &p0);
         if (st == LW_OK)
             st = eval(&e, res->pieces[i].d1, &p1);
+        if (st != LW_OK)
+            break;
         double bend = res->flux_ref_lm > 0 ? fabs(p1.flux_lm - p0.flux_lm) / res->flux_ref_lm
                                            : 0.0;
         size_t n = per_piece + (size_t)ceil(bend / 0.01);
@@ -631,13 +633,13 @@ lw_status lw_trace_build(const lw_light *light, const lw_result *res, size_t min
         total += k[i];
     }
     lw_trace_row *rows = st == LW_OK ? malloc(total * sizeof *rows) : NULL;
-    if (st == LW_OK && !rows)
-        st = lw_error_set(err, LW_ENOMEM, NULL, 0, "out of memory for the trace");
-    size_t n = 0;
-    if (st == LW_OK) {
-        rows[n] = (lw_trace_row){0.0, res->initial, 0.0};
-        n++;
+    if (!rows) {
+        free(k);
+        return st != LW_OK ? st
+                           : lw_error_set(err, LW_ENOMEM, NULL, 0, "out of memory for the trace");
     }
+    size_t n = 0;
+    rows[n++] = (lw_trace_row){0.0, res->initial, 0.0};
     for (size_t i = 0; i < res->n_pieces && st == LW_OK; i++) {
         const lw_piece *pc = &res->pieces[i];
         e.fallback = pc->fallback;

@@ -32,7 +32,7 @@ lw_status lw_error_set(lw_error *err, lw_status code, const char *file, int line
     err->line = line;
     va_list ap;
     va_start(ap, fmt);
-    vsnprintf(err->msg, sizeof err->msg, fmt, ap);
+    vsnprintf(err->msg, sizeof err->msg, fmt, ap); // NOLINT(clang-analyzer-valist.Uninitialized): va_start above
     va_end(ap);
     return code;
 }

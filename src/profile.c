@@ -180,7 +180,7 @@ size_t lw_profile_mode_count(const lw_profile *prof)
 {
     size_t n = 0;
     const char *name;
-    for (size_t i = 0; i < prof->ini.n_sections; i++)
+    for (size_t i = 0; prof->ini.sections && i < prof->ini.n_sections; i++)
         if (is_mode_section(prof->ini.sections[i].name, &name))
             n++;
     return n;
@@ -189,7 +189,7 @@ size_t lw_profile_mode_count(const lw_profile *prof)
 const char *lw_profile_mode_name(const lw_profile *prof, size_t k)
 {
     const char *name;
-    for (size_t i = 0; i < prof->ini.n_sections; i++)
+    for (size_t i = 0; prof->ini.sections && i < prof->ini.n_sections; i++)
         if (is_mode_section(prof->ini.sections[i].name, &name) && k-- == 0)
             return name;
     return NULL;
@@ -199,7 +199,7 @@ lw_status lw_profile_apply_mode(lw_profile *prof, const char *name, lw_error *er
 {
     bool found = false;
     const char *mname;
-    for (size_t i = 0; i < prof->ini.n_sections && !found; i++)
+    for (size_t i = 0; prof->ini.sections && i < prof->ini.n_sections && !found; i++)
         found = is_mode_section(prof->ini.sections[i].name, &mname) && !strcmp(mname, name);
     if (!found) {
         char list[512] = "";
@@ -247,9 +247,11 @@ static lw_status load_xy(const lw_profile *p, const char *section, const char *k
     st = lw_csv_expect(&csv, cols, NULL, err);
     size_t n = csv.nrow, off = 0;
     double *x = st == LW_OK ? malloc(2 * (n + 1) * sizeof *x) : NULL;
-    if (st == LW_OK && !x)
-        st = lw_error_set(err, LW_ENOMEM, path, 0, "out of memory");
-    double *y = x ? x + n + 1 : NULL;
+    if (!x) {
+        lw_csv_clear(&csv);
+        return st != LW_OK ? st : lw_error_set(err, LW_ENOMEM, path, 0, "out of memory");
+    }
+    double *y = x + n + 1;
     int cx = lw_csv_column(&csv, xcol), cy = lw_csv_column(&csv, ycol);
     if (st == LW_OK && (flags & XY_THROUGH_ORIGIN) && lw_csv_at(&csv, 0, cx) > 0.0) {
         x[0] = y[0] = 0.0;
@@ -472,7 +474,7 @@ static lw_status apply_file(lw_profile *p, lw_error *err)
  * mode is reported with its line even when it is not used. */
 static lw_status check_modes(const lw_profile *p, lw_error *err)
 {
-    for (size_t i = 0; i < p->ini.n_sections; i++) {
+    for (size_t i = 0; p->ini.sections && i < p->ini.n_sections; i++) {
         const char *mname;
         const char *sec = p->ini.sections[i].name;
         if (strncmp(sec, "mode", 4) == 0 && !is_mode_section(sec, &mname))

@@ -98,7 +98,7 @@ lw_status lw_rtable_setf(lw_rtable *t, size_t row, size_t col, lw_error *err, co
     char buf[512];
     va_list ap;
     va_start(ap, fmt);
-    vsnprintf(buf, sizeof buf, fmt, ap);
+    vsnprintf(buf, sizeof buf, fmt, ap); // NOLINT(clang-analyzer-valist.Uninitialized): va_start above
     va_end(ap);
     return lw_rtable_set(t, row, col, buf, err);
 }
@@ -386,6 +386,8 @@ static const char *end_text(lw_end_reason why)
 
 static const char *warning_text(int bit)
 {
+    /* long texts are split across lines on purpose */
+    // NOLINTBEGIN(bugprone-suspicious-missing-comma)
     static const char *const text[LW_WARN_COUNT_] = {
         "LED current at fresh cells is above the LED's max_current_ma",
         "worst case (resistor at -tolerance, low forward voltage, fresh cells) exceeds the "
@@ -399,6 +401,7 @@ static const char *warning_text(int bit)
         "ambient temperature is outside the cell's temperature table (end values used)",
         "the integration tolerance was not met everywhere",
         "resistor power exceeds its rating"};
+    // NOLINTEND(bugprone-suspicious-missing-comma)
     return text[bit];
 }
 

@@ -19,7 +19,7 @@ static double now_s(void)
 static void bench(const lw_profile *p, const char *label)
 {
     lw_run_options opt = lw_run_options_default();
-    lw_result r;
+    lw_result r = {0};
     lw_error e;
     lw_error_clear(&e);
     /* size the loop to about 0.3 s */
