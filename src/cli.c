@@ -6,6 +6,7 @@
  * status codes to exit codes (see cli.h).  No computation happens here.
  */
 #include "cli.h"
+#include "cli_common.h"
 
 #include <getopt.h>
 #include <limits.h>
@@ -18,8 +19,6 @@
 #include "lampwick.h"
 #include "lw_config.h"
 
-#define EXIT_NOANSWER 1
-#define EXIT_BADINPUT 2
 
 static const char *const safety_text =
     "Safety\n"
@@ -38,6 +37,10 @@ static const char *const main_help =
     "\n"
     "Commands\n"
     "  run PROFILE      discharge the cells to the cutoff: runtime, output, energy\n"
+    "  sweep PROFILE    run a grid of values (--vary KEY=VALUES) and plot the trade-off\n"
+    "  pick PROFILE     choose the series resistor, with worst-case checks\n"
+    "  size PROFILE     find the packs that meet a runtime\n"
+    "  table PROFILE    runtime table of a product specification, per mode and cell\n"
     "  check PROFILE... load and validate profiles and everything they name\n"
     "  cells            list the cell library\n"
     "  help [COMMAND]   this text, or the help of one command\n"
@@ -88,7 +91,7 @@ static const char *const cells_help =
 
 /* ---- shared helpers ---- */
 
-static int exit_code(lw_status st)
+int exit_code(lw_status st)
 {
     switch (st) {
     case LW_OK:
@@ -101,7 +104,7 @@ static int exit_code(lw_status st)
     }
 }
 
-static int report_error(const lw_error *err)
+int report_error(const lw_error *err)
 {
     char buf[LW_ERR_FILE_MAX + LW_ERR_MSG_MAX + 32];
     lw_error_format(err, buf, sizeof buf);
@@ -109,7 +112,7 @@ static int report_error(const lw_error *err)
     return exit_code(err->code);
 }
 
-static int usage_error(const char *cmd, const char *msg)
+int usage_error(const char *cmd, const char *msg)
 {
     fprintf(stderr, "lampwick %s: %s\nTry 'lampwick help %s'.\n", cmd, msg, cmd);
     return EXIT_BADINPUT;
@@ -123,7 +126,7 @@ static bool file_exists(const char *path)
 
 /* The cell search path: LAMPWICK_CELLS, the installed library, and the
  * source tree's cells/ when this executable runs from a meson build folder. */
-static void build_search(lw_search *s)
+void build_search(lw_search *s)
 {
     memset(s, 0, sizeof *s);
     lw_search_add_list(s, getenv("LAMPWICK_CELLS"));
@@ -143,17 +146,9 @@ static void build_search(lw_search *s)
         lw_search_add(s, LW_SOURCE_CELLS);
 }
 
-typedef struct common_opts {
-    const char *sets[64];
-    size_t nsets;
-    const char *mode;
-    lw_format fmt;
-} common_opts;
-
-enum { OPT_SET = 1000, OPT_MODE, OPT_FORMAT, OPT_TRACE, OPT_PLOT };
 
 /* Handle an option shared by several commands; false if not one of them. */
-static bool common_option(int c, common_opts *o, const char *cmd, int *rc)
+bool common_option(int c, common_opts *o, const char *cmd, int *rc)
 {
     switch (c) {
     case OPT_SET:
@@ -176,7 +171,7 @@ static bool common_option(int c, common_opts *o, const char *cmd, int *rc)
 }
 
 /* Load a profile, apply --mode and --set, and resolve. */
-static lw_status load_profile(const char *path, const common_opts *o, lw_profile *prof,
+lw_status load_profile(const char *path, const common_opts *o, lw_profile *prof,
                               lw_error *err)
 {
     lw_search search;
@@ -491,18 +486,20 @@ static int cmd_run(int argc, char **argv)
 typedef struct command {
     const char *name;
     int (*fn)(int, char **);
-    const char *help;
+    const char *const *help;
 } command;
 
-static const command commands[] = {{"run", cmd_run, run_help},
-                                   {"check", cmd_check, check_help},
-                                   {"cells", cmd_cells, cells_help}};
+static const command commands[] = {
+    {"run", cmd_run, &run_help},          {"sweep", lw_cmd_sweep, &lw_sweep_help},
+    {"pick", lw_cmd_pick, &lw_pick_help}, {"size", lw_cmd_size, &lw_size_help},
+    {"table", lw_cmd_table, &lw_table_help}, {"check", cmd_check, &check_help},
+    {"cells", cmd_cells, &cells_help}};
 
 static const char *help_of(const char *name)
 {
     for (size_t i = 0; i < sizeof commands / sizeof commands[0]; i++)
         if (!strcmp(name, commands[i].name))
-            return commands[i].help;
+            return *commands[i].help;
     return NULL;
 }
 

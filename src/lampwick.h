@@ -18,6 +18,11 @@
  *   csvio.h     CSV reading and writing, atomic output files
  *   report.h    text, CSV and Markdown summaries
  *   plot.h      standalone SVG plots
+ *   eseries.h   IEC 60063 preferred values, resistance parsing
+ *   pool.h      parallel-for over POSIX threads
+ *   batch.h     many variants of a profile, on all cores
+ *   sweep.h     --vary grids
+ *   design.h    pick, size, specification tables, beam photometry
  *
  * Conventions: SI units inside (V, A, ohm, h, Ah, W, lm, deg C), the unit in
  * every name; functions that can fail take `lw_error *err` last and return an
@@ -39,5 +44,10 @@
 #include "csvio.h"
 #include "report.h"
 #include "plot.h"
+#include "eseries.h"
+#include "pool.h"
+#include "batch.h"
+#include "sweep.h"
+#include "design.h"
 
 #endif

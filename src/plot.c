@@ -223,6 +223,7 @@ static void draw_series(FILE *fp, const frame *f, const lw_series *s, const char
         fputs("'/>\n", fp);
         return;
     }
+    double lx = -1e9, ly = -1e9; /* last label: thin labels that would overlap */
     for (size_t k = 0; k < s->n; k++) {
         if (!isfinite(s->x[k]) || !isfinite(s->y[k]))
             continue;
@@ -230,7 +231,9 @@ static void draw_series(FILE *fp, const frame *f, const lw_series *s, const char
             continue;
         double x = px(f, s->x[k]), y = py(f, s->y[k]);
         fprintf(fp, "<circle cx='%.2f' cy='%.2f' r='3.5' fill='%s'/>\n", x, y, colour);
-        if (s->labels && s->labels[k]) {
+        if (s->labels && s->labels[k] && hypot(x - lx, y - ly) > 28.0) {
+            lx = x;
+            ly = y;
             fprintf(fp, "<text x='%.2f' y='%.2f' class='pt'>", x + 5, y - 5);
             xml_text(fp, s->labels[k]);
             fputs("</text>\n", fp);

@@ -555,6 +555,13 @@ lw_status lw_profile_copy(lw_profile *dst, const lw_profile *src, lw_error *err)
     return LW_OK;
 }
 
+bool lw_profile_given(const lw_profile *p, const char *dotted_key)
+{
+    char section[LW_INI_NAME_MAX], key[LW_INI_NAME_MAX];
+    return split_dotted(dotted_key, section, sizeof section, key, sizeof key) &&
+           given(p, section, key);
+}
+
 void lw_profile_value_text(const lw_profile *p, const char *dotted_key, char *buf, size_t size)
 {
     char section[LW_INI_NAME_MAX], key[LW_INI_NAME_MAX];

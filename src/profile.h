@@ -74,6 +74,9 @@ const char *lw_profile_mode_name(const lw_profile *prof, size_t i);
 /* Load what the profile names and check model-specific needs. */
 lw_status lw_profile_resolve(lw_profile *prof, lw_error *err);
 
+/* True when "section.key" was set by the file, a mode or an option. */
+bool lw_profile_given(const lw_profile *prof, const char *dotted_key);
+
 /* Current value of a key as text (for sweeps and summaries). */
 void lw_profile_value_text(const lw_profile *prof, const char *dotted_key, char *buf,
                            size_t size);

@@ -29,9 +29,15 @@ bool lw_format_parse(const char *s, lw_format *fmt)
 lw_rtable *lw_rtable_new(size_t ncol, lw_error *err)
 {
     lw_rtable *t = calloc(1, sizeof *t);
-    if (t)
+    if (t) {
         t->head = calloc(ncol ? ncol : 1, sizeof *t->head);
-    if (!t || !t->head) {
+        t->group = calloc(ncol ? ncol : 1, sizeof *t->group);
+    }
+    if (!t || !t->head || !t->group) {
+        if (t) {
+            free(t->head);
+            free(t->group);
+        }
         free(t);
         lw_error_set(err, LW_ENOMEM, NULL, 0, "out of memory for a table");
         return NULL;
@@ -44,8 +50,11 @@ void lw_rtable_free(lw_rtable *t)
 {
     if (!t)
         return;
-    for (size_t i = 0; i < t->ncol; i++)
+    for (size_t i = 0; i < t->ncol; i++) {
         free(t->head[i]);
+        free(t->group[i]);
+    }
+    free(t->group);
     for (size_t i = 0; i < t->nrow * t->ncol; i++)
         free(t->cell[i]);
     for (size_t i = 0; i < t->nnotes; i++)
@@ -70,6 +79,11 @@ static lw_status dup_into(char **slot, const char *text, lw_error *err)
 lw_status lw_rtable_head(lw_rtable *t, size_t col, const char *name, lw_error *err)
 {
     return dup_into(&t->head[col], name, err);
+}
+
+lw_status lw_rtable_group(lw_rtable *t, size_t col, const char *group, lw_error *err)
+{
+    return dup_into(&t->group[col], group, err);
 }
 
 lw_status lw_rtable_add_row(lw_rtable *t, size_t *row, lw_error *err)
@@ -121,12 +135,17 @@ lw_status lw_rtable_set_title(lw_rtable *t, const char *text, lw_error *err)
     return dup_into(&t->title, text, err);
 }
 
+static size_t width(const char *s);
+static void pad(FILE *fp, size_t n);
+
 static const char *cell_text(const lw_rtable *t, size_t r, size_t c)
 {
     const char *s = t->cell[r * t->ncol + c];
     return s ? s : "";
 }
 
+/* Right-aligned: every non-empty cell is a number, or a number with a unit
+ * ("41 h", "45 min"). */
 static bool numeric_column(const lw_rtable *t, size_t c)
 {
     bool any = false;
@@ -135,11 +154,59 @@ static bool numeric_column(const lw_rtable *t, size_t c)
         double v;
         if (!s[0] || !strcmp(s, "-"))
             continue;
-        if (!lw_parse_double(s, &v))
-            return false;
+        if (!lw_parse_double(s, &v)) {
+            char num[64];
+            const char *sp = strchr(s, ' ');
+            size_t len = sp ? (size_t)(sp - s) : 0;
+            if (!sp || len >= sizeof num || strchr(sp + 1, ' '))
+                return false;
+            memcpy(num, s, len);
+            num[len] = '\0';
+            if (!lw_parse_double(num, &v))
+                return false;
+        }
         any = true;
     }
     return any;
+}
+
+static const char *group_of(const lw_rtable *t, size_t c)
+{
+    return t->group[c] ? t->group[c] : "";
+}
+
+/* Text: a line of group labels over their columns, underlined. */
+static void write_groups(const lw_rtable *t, FILE *fp, const size_t *w)
+{
+    bool any = false;
+    for (size_t c = 0; c < t->ncol; c++)
+        any = any || group_of(t, c)[0];
+    if (!any)
+        return;
+    for (int pass = 0; pass < 2; pass++) {
+        size_t c = 0;
+        while (c < t->ncol) {
+            size_t e = c + 1, span = w[c];
+            while (e < t->ncol && !strcmp(group_of(t, e), group_of(t, c)))
+                span += 2 + w[e++];
+            const char *g = group_of(t, c);
+            if (c)
+                fputs("  ", fp);
+            bool last = e == t->ncol;
+            if (pass == 0) {
+                fputs(g, fp);
+                if (!last)
+                    pad(fp, span > width(g) ? span - width(g) : 0);
+            } else if (g[0]) {
+                for (size_t i = 0; i < span; i++)
+                    fputc('=', fp);
+            } else if (!last) {
+                pad(fp, span);
+            }
+            c = e;
+        }
+        fputc('\n', fp);
+    }
 }
 
 /* Display width of UTF-8 text: count code points, not bytes. */
@@ -174,8 +241,18 @@ static void write_text(const lw_rtable *t, FILE *fp)
                 w[c] = width(cell_text(t, r, c));
         num[c] = numeric_column(t, c);
     }
+    /* a group label wider than its columns widens the last of them */
+    for (size_t c = 0; c < t->ncol;) {
+        size_t e = c + 1, span = w[c];
+        while (e < t->ncol && !strcmp(group_of(t, e), group_of(t, c)))
+            span += 2 + w[e++];
+        if (width(group_of(t, c)) > span)
+            w[e - 1] += width(group_of(t, c)) - span;
+        c = e;
+    }
     if (t->title)
         fprintf(fp, "%s\n\n", t->title);
+    write_groups(t, fp, w);
     for (size_t c = 0; c < t->ncol; c++) {
         const char *h = t->head[c] ? t->head[c] : "";
         if (c)
@@ -234,8 +311,12 @@ static void write_md(const lw_rtable *t, FILE *fp)
     if (t->title)
         fprintf(fp, "**%s**\n\n", t->title);
     fputc('|', fp);
-    for (size_t c = 0; c < t->ncol; c++)
-        md_cell(fp, t->head[c] ? t->head[c] : "");
+    for (size_t c = 0; c < t->ncol; c++) {
+        char h[256];
+        snprintf(h, sizeof h, "%s%s%s", group_of(t, c), group_of(t, c)[0] ? " " : "",
+                 t->head[c] ? t->head[c] : "");
+        md_cell(fp, h);
+    }
     fputs("\n|", fp);
     for (size_t c = 0; c < t->ncol; c++)
         fputs(numeric_column(t, c) ? " ---: |" : " :--- |", fp);

@@ -22,6 +22,8 @@ bool lw_format_parse(const char *s, lw_format *fmt);
 typedef struct lw_rtable {
     size_t ncol, nrow, cap;
     char **head;         /* ncol names */
+    char **group;        /* ncol group labels (text: a line above spanning equal
+                            neighbours; md and csv: prefixed to the name), or NULL */
     char **cell;         /* nrow * ncol texts (NULL = empty) */
     char **notes;        /* lines printed under the table (text and md) */
     size_t nnotes;
@@ -31,6 +33,9 @@ typedef struct lw_rtable {
 lw_rtable *lw_rtable_new(size_t ncol, lw_error *err);
 void lw_rtable_free(lw_rtable *t);
 lw_status lw_rtable_head(lw_rtable *t, size_t col, const char *name, lw_error *err);
+/* Set the group label of a column (neighbours with the same label form one
+ * group: a spanning line above the header in text). */
+lw_status lw_rtable_group(lw_rtable *t, size_t col, const char *group, lw_error *err);
 /* Append an empty row; returns its index via *row. */
 lw_status lw_rtable_add_row(lw_rtable *t, size_t *row, lw_error *err);
 lw_status lw_rtable_set(lw_rtable *t, size_t row, size_t col, const char *text, lw_error *err);

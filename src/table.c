@@ -85,7 +85,7 @@ lw_table *lw_table_new(const double *x, const double *y, size_t n, lw_error *err
     t->m = buf + 2 * n;
     memcpy(t->x, x, n * sizeof *x);
     memcpy(t->y, y, n * sizeof *y);
-    t->refs = 1;
+    atomic_init(&t->refs, 1);
     compute_slopes(t);
     return t;
 }
@@ -93,13 +93,13 @@ lw_table *lw_table_new(const double *x, const double *y, size_t n, lw_error *err
 lw_table *lw_table_ref(lw_table *t)
 {
     if (t)
-        t->refs++;
+        atomic_fetch_add(&t->refs, 1);
     return t;
 }
 
 void lw_table_free(lw_table *t)
 {
-    if (!t || --t->refs > 0)
+    if (!t || atomic_fetch_sub(&t->refs, 1) > 1)
         return;
     free(t->x); /* x, y and m share one block */
     free(t);

@@ -18,6 +18,7 @@
 #ifndef LW_TABLE_H
 #define LW_TABLE_H
 
+#include <stdatomic.h>
 #include <stddef.h>
 #include "error.h"
 
@@ -26,7 +27,7 @@ typedef struct lw_table {
     double *x;    /* strictly increasing, finite */
     double *y;    /* finite */
     double *m;    /* monotone-cubic slopes dy/dx at the points */
-    int refs;     /* reference count; lw_table_free drops one */
+    _Atomic int refs; /* reference count (atomic: copies may be dropped on any thread) */
 } lw_table;
 
 /* Copy n points into a new table (refs = 1).  Fails with LW_EINPUT if n < 2,

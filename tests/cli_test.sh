@@ -81,6 +81,23 @@ if ls "$TMP" | grep -q tmp; then bad "temporary file left behind"; else ok; fi
 # a light that never lights: exit 1, end_reason never-lit
 expect 1 'never-lit' "$LW" run "$TMP/p/light.ini" --set pack.series=2 --format csv
 
+# design workflows: sweep, pick, size, table
+n=$("$LW" sweep profiles/demo.ini --vary drive.resistor_ohm=E24:10..1k --format csv --plot "$TMP/sweep.svg" | tail -n +2 | wc -l)
+if [ "$n" -eq 49 ]; then ok; else bad "sweep E24:10..1k gave $n rows"; fi
+if grep -q '</svg>' "$TMP/sweep.svg"; then ok; else bad "sweep plot"; fi
+expect 0 '^drive.resistor_ohm,pack.cell,runtime_h,end_reason' "$LW" sweep profiles/demo.ini --vary drive.resistor_ohm=22,33 --vary pack.cell=LR6-alkaline,HR6-nimh --format csv
+expect 2 "VALUES may be a list .*E24:10..1k" "$LW" sweep profiles/demo.ini --vary drive.resistor_ohm=10...
+expect 2 "did you mean 'drive.resistor_ohm'" "$LW" sweep profiles/demo.ini --vary drive.resistr_ohm=1,2
+expect 2 'give at least one --vary' "$LW" sweep profiles/demo.ini
+expect 0 'chosen +36 ohm' "$LW" pick profiles/demo.ini --target-ma 50
+expect 0 '^resistor_ohm,series,tolerance_pct,ideal_ohm,nominal_led_ma,worst_led_ma' "$LW" pick profiles/demo.ini --target-ma 50 --format csv
+expect 1 'nearest safe part' "$LW" pick profiles/demo.ini --target-ma 400
+expect 2 'exactly one of --target-ma and --target-lm' "$LW" pick profiles/demo.ini
+expect 0 '^cell +series +parallel +resistor_ohm' "$LW" size profiles/demo.ini --runtime-h 40 --flux-lm 15 --cells all
+expect 1 'Nothing fits' "$LW" size profiles/demo.ini --runtime-h 100000 --cells LR6-alkaline
+expect 0 '^\| mode \| LR6-alkaline lm \|' "$LW" table profiles/demo.ini --cells LR6-alkaline,FR6-lithium --format md
+expect 0 'Rounding: ' "$LW" table profiles/demo.ini
+
 # regression of run --format csv on every bundled profile and mode
 compare() { # compare GOLDEN ACTUAL
     awk -F, -v g="$1" '

@@ -1,0 +1,68 @@
+/*
+ * pool.c - parallel-for over POSIX threads (see pool.h).
+ */
+#include "pool.h"
+
+#include <pthread.h>
+#include <stdatomic.h>
+#include <unistd.h>
+
+typedef struct job {
+    size_t n;
+    atomic_size_t next;
+    size_t done;
+    lw_task_fn fn;
+    void *ctx;
+    lw_progress_fn progress;
+    void *progress_ctx;
+    pthread_mutex_t lock;
+} job;
+
+int lw_cpu_count(void)
+{
+    long n = sysconf(_SC_NPROCESSORS_ONLN);
+    return n > 0 && n < 1024 ? (int)n : 1;
+}
+
+static void *worker(void *arg)
+{
+    job *j = arg;
+    for (;;) {
+        size_t i = atomic_fetch_add(&j->next, 1);
+        if (i >= j->n)
+            break;
+        j->fn(i, j->ctx);
+        if (j->progress) {
+            pthread_mutex_lock(&j->lock);
+            j->done++;
+            j->progress(j->done, j->n, j->progress_ctx);
+            pthread_mutex_unlock(&j->lock);
+        }
+    }
+    return NULL;
+}
+
+void lw_parallel_for(size_t n, int threads, lw_task_fn fn, void *ctx, lw_progress_fn progress,
+                     void *progress_ctx)
+{
+    if (threads <= 0)
+        threads = lw_cpu_count();
+    if ((size_t)threads > n)
+        threads = n > 0 ? (int)n : 1;
+    if (threads > 64)
+        threads = 64;
+    job j = {.n = n, .fn = fn, .ctx = ctx, .progress = progress, .progress_ctx = progress_ctx};
+    atomic_init(&j.next, 0);
+    pthread_mutex_init(&j.lock, NULL);
+    pthread_t tid[64];
+    int started = 0;
+    for (int t = 1; t < threads; t++) {
+        if (pthread_create(&tid[started], NULL, worker, &j) != 0)
+            break;
+        started++;
+    }
+    worker(&j);
+    for (int t = 0; t < started; t++)
+        pthread_join(tid[t], NULL);
+    pthread_mutex_destroy(&j.lock);
+}

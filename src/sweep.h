@@ -1,0 +1,53 @@
+/*
+ * sweep.h - sweeps of a profile over a grid of values.
+ *
+ * Owns: lw_vary (one --vary KEY=VALUES: the key and the list of texts it
+ * takes) with its parser, and lw_sweep (the full grid of several varies,
+ * run through lw_batch_run).
+ *
+ * VALUES forms:
+ *   22,33,47          a list (SI prefixes and resistor codes allowed for
+ *                     numbers: 2.2k, 4k7, 1M, 4R7)
+ *   1..4  1..4:0.5    a numeric range, step 1 or the step after ':'
+ *   E24:10..1k        the values of a preferred series in a range
+ *   all               for pack.cell: every cell on the search path
+ */
+#ifndef LW_SWEEP_H
+#define LW_SWEEP_H
+
+#include "batch.h"
+#include "cellfile.h"
+
+#define LW_VARY_MAX_VALUES 100000
+
+typedef struct lw_vary {
+    char key[2 * LW_INI_NAME_MAX];
+    size_t n;
+    char (*values)[LW_CASE_VALUE_MAX]; /* n texts, as set into the profile */
+} lw_vary;
+
+/* The accepted forms, for messages and help. */
+extern const char *const lw_vary_forms;
+
+/* Parse "KEY=VALUES".  The key must be a profile key.  `search` and
+ * `profile_dir` are used by pack.cell=all.  Free with lw_vary_clear. */
+lw_status lw_vary_parse(const char *arg, const lw_search *search, const char *profile_dir,
+                        lw_vary *v, lw_error *err);
+void lw_vary_clear(lw_vary *v);
+
+typedef struct lw_sweep {
+    const lw_vary *vary;  /* borrowed */
+    size_t nvary;
+    size_t n;             /* rows: the product of the vary sizes */
+    size_t *index;        /* n * nvary: which value of each vary a row uses */
+    lw_case *cases;       /* n */
+} lw_sweep;
+
+/* Build and run the grid (the last vary changes fastest).  Fails with the
+ * first case error (bad input) or LW_ENOMEM; a light that never lights is a
+ * row, not an error.  Free with lw_sweep_clear. */
+lw_status lw_sweep_run(const lw_profile *base, const lw_vary *vary, size_t nvary, int threads,
+                       lw_progress_fn progress, void *progress_ctx, lw_sweep *sw, lw_error *err);
+void lw_sweep_clear(lw_sweep *sw);
+
+#endif
