@@ -434,3 +434,65 @@ lw_status lw_cell_names(const lw_search *search, char ***names_out, char ***path
     *n_out = n;
     return LW_OK;
 }
+
+lw_status lw_cell_save(const char *ini_path, const lw_cell *cell, const char *comment,
+                       lw_error *err)
+{
+    size_t len = strlen(ini_path);
+    if (len < 5 || strcmp(ini_path + len - 4, ".ini") != 0)
+        return lw_error_set(err, LW_EINPUT, ini_path, 0, "a cell file name must end in .ini");
+    char curve_path[LW_PATH_MAX], curve_name[LW_PATH_MAX];
+    snprintf(curve_path, sizeof curve_path, "%.*s.curve.csv", (int)(len - 4), ini_path);
+    const char *slash = strrchr(curve_path, '/');
+    lw_strlcpy(curve_name, slash ? slash + 1 : curve_path, sizeof curve_name);
+    lw_outfile ini, csv;
+    lw_status st = lw_outfile_open(&csv, curve_path, err);
+    if (st != LW_OK)
+        return st;
+    st = lw_outfile_open(&ini, ini_path, err);
+    if (st != LW_OK) {
+        lw_outfile_abort(&csv);
+        return st;
+    }
+    lw_csvw w;
+    lw_csvw_init(&w, csv.fp);
+    lw_csvw_text(&w, "depth_pct");
+    lw_csvw_text(&w, "open_circuit_v");
+    lw_csvw_text(&w, "resistance_ohm");
+    lw_csvw_end_row(&w);
+    for (size_t i = 0; i < cell->ocv->n; i++) {
+        lw_csvw_num(&w, 100.0 * cell->ocv->x[i], 6);
+        lw_csvw_num(&w, cell->ocv->y[i], 6);
+        lw_csvw_num(&w, cell->res->y[i], 6);
+        lw_csvw_end_row(&w);
+    }
+    FILE *fp = ini.fp;
+    for (const char *p = comment; p && *p;) {
+        const char *nl = strchr(p, '\n');
+        int n = nl ? (int)(nl - p) : (int)strlen(p);
+        fprintf(fp, "; %.*s\n", n, p);
+        p += n + (nl ? 1 : 0);
+    }
+    fprintf(fp, "[cell]\nname = %s\nchemistry = %s\nnominal_v = %.4g\ncapacity_mah = %.6g\n"
+                "rated_ma = %.6g\npeukert = %.4g\nmax_capacity_mah = %.6g\ncutoff_v = %.4g\n"
+                "rechargeable = %s\n",
+            cell->name, lw_chemistry_names[cell->chemistry], cell->nominal_v,
+            cell->capacity_ah * 1e3, cell->rated_a * 1e3, cell->peukert,
+            cell->max_capacity_ah * 1e3, cell->cutoff_v, cell->rechargeable ? "yes" : "no");
+    if (cell->mass_g > 0)
+        fprintf(fp, "mass_g = %g\n", cell->mass_g);
+    if (cell->self_discharge_pct_month > 0)
+        fprintf(fp, "self_discharge_pct_month = %g\n", cell->self_discharge_pct_month);
+    fprintf(fp, "curve = %s\n", curve_name);
+    if (w.failed || ferror(fp)) {
+        lw_outfile_abort(&ini);
+        lw_outfile_abort(&csv);
+        return lw_error_set(err, LW_EIO, ini_path, 0, "write error");
+    }
+    st = lw_outfile_commit(&csv, err);
+    if (st == LW_OK)
+        st = lw_outfile_commit(&ini, err);
+    else
+        lw_outfile_abort(&ini);
+    return st;
+}

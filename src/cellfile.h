@@ -61,6 +61,13 @@ void lw_cell_names_free(char **names, char **paths, size_t n);
 lw_status lw_check_readable(const char *path, const char *from_file, int from_line,
                             const char *what, lw_error *err);
 
+/* Write a cell file at ini_path and its curve beside it as BASE.curve.csv
+ * (both through temporary names, renamed only when both are complete).
+ * `comment` (may hold several lines) goes at the top of the INI file as
+ * ';' comments.  The cell must not have a temperature table. */
+lw_status lw_cell_save(const char *ini_path, const lw_cell *cell, const char *comment,
+                       lw_error *err);
+
 /* Join dir and rel ("rel" when rel is absolute or dir is empty). */
 void lw_path_join(char *out, size_t size, const char *dir, const char *rel);
 /* The folder part of a path ("." when there is none). */

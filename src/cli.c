@@ -41,6 +41,8 @@ static const char *const main_help =
     "  pick PROFILE     choose the series resistor, with worst-case checks\n"
     "  size PROFILE     find the packs that meet a runtime\n"
     "  table PROFILE    runtime table of a product specification, per mode and cell\n"
+    "  fit led FILE     fit LED I-V and light output to bench measurements\n"
+    "  fit cell LOG...  make a cell file from one or two discharge logs\n"
     "  check PROFILE... load and validate profiles and everything they name\n"
     "  cells            list the cell library\n"
     "  help [COMMAND]   this text, or the help of one command\n"
@@ -492,7 +494,8 @@ typedef struct command {
 static const command commands[] = {
     {"run", cmd_run, &run_help},          {"sweep", lw_cmd_sweep, &lw_sweep_help},
     {"pick", lw_cmd_pick, &lw_pick_help}, {"size", lw_cmd_size, &lw_size_help},
-    {"table", lw_cmd_table, &lw_table_help}, {"check", cmd_check, &check_help},
+    {"table", lw_cmd_table, &lw_table_help}, {"fit", lw_cmd_fit, &lw_fit_help},
+    {"check", cmd_check, &check_help},
     {"cells", cmd_cells, &cells_help}};
 
 static const char *help_of(const char *name)

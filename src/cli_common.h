@@ -37,7 +37,8 @@ int lw_cmd_sweep(int argc, char **argv);
 int lw_cmd_pick(int argc, char **argv);
 int lw_cmd_size(int argc, char **argv);
 int lw_cmd_table(int argc, char **argv);
+int lw_cmd_fit(int argc, char **argv);
 extern const char *const lw_sweep_help, *const lw_pick_help, *const lw_size_help,
-    *const lw_table_help;
+    *const lw_table_help, *const lw_fit_help;
 
 #endif

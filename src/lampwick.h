@@ -23,6 +23,8 @@
  *   batch.h     many variants of a profile, on all cores
  *   sweep.h     --vary grids
  *   design.h    pick, size, specification tables, beam photometry
+ *   fit.h       least squares; LED I-V and flux fits
+ *   cellfit.h   cell models from discharge logs
  *
  * Conventions: SI units inside (V, A, ohm, h, Ah, W, lm, deg C), the unit in
  * every name; functions that can fail take `lw_error *err` last and return an
@@ -49,5 +51,7 @@
 #include "batch.h"
 #include "sweep.h"
 #include "design.h"
+#include "fit.h"
+#include "cellfit.h"
 
 #endif

@@ -98,6 +98,46 @@ expect 1 'Nothing fits' "$LW" size profiles/demo.ini --runtime-h 100000 --cells 
 expect 0 '^\| mode \| LR6-alkaline lm \|' "$LW" table profiles/demo.ini --cells LR6-alkaline,FR6-lithium --format md
 expect 0 'Rounding: ' "$LW" table profiles/demo.ini
 
+# fits from the bundled example measurements give files check accepts and run uses
+EX="$SRC/docs/examples"
+expect 0 'wrote .*fitted-nimh.ini' "$LW" fit cell "$EX/nimh-aa-3r9.csv" "$EX/nimh-aa-8r2.csv" --load-ohm 3.9,8.2 --cutoff-v 1.0 --chemistry nimh --rechargeable yes --out "$TMP/p/fitted-nimh.ini"
+expect 0 'capacity_mah' "$LW" fit cell "$EX/nimh-aa-8r2.csv" --load-ohm 8.2 --cutoff-v 1.0 --resistance-ohm 0.035
+"$LW" fit led "$EX/white-led-bench.csv" --write-profile-section > "$TMP/p/led-section.ini" 2>&1
+{ printf '[light]
+name = fitted parts
+[pack]
+cell = fitted-nimh
+series = 3
+'
+  cat "$TMP/p/led-section.ini"
+  printf '[drive]
+resistor_ohm = 22
+'; } > "$TMP/p/fitted-light.ini"
+expect 0 'fitted-light.ini: ok' "$LW" check "$TMP/p/fitted-light.ini"
+expect 0 'runtime to cutoff' "$LW" run "$TMP/p/fitted-light.ini"
+expect 0 '^model,threshold_v,slope_ohm,ideality,saturation_a,series_ohm,r_squared,rse_v' "$LW" fit led "$EX/white-led-bench.csv" --format csv
+expect 0 'residual standard error' "$LW" fit led "$EX/white-led-bench.csv" --plot "$TMP/fit.svg"
+if grep -q '</svg>' "$TMP/fit.svg"; then ok; else bad "fit plot"; fi
+printf 'current_ma,forward_v
+10,2.7
+20,2.8
+' > "$TMP/few.csv"
+expect 2 'few.csv:3: 2 points are too few' "$LW" fit led "$TMP/few.csv"
+printf 'current_ma,forward_v
+10,2.7
+0,2.6
+20,2.8
+40,2.9
+' > "$TMP/zero.csv"
+expect 2 'zero.csv:3: current_ma = 0' "$LW" fit led "$TMP/zero.csv"
+printf 'current,forward_v
+10,2.7
+' > "$TMP/cols.csv"
+expect 2 "cols.csv:1: missing column 'current_ma'" "$LW" fit led "$TMP/cols.csv"
+awk 'NR == 6 { print "100,1.3"; next } { print }' "$EX/nimh-aa-8r2.csv" > "$TMP/back.csv"
+expect 2 'back.csv:6: time_s = 100 does not increase' "$LW" fit cell "$TMP/back.csv" --load-ohm 8.2 --cutoff-v 1.0 --resistance-ohm 0.03
+expect 2 'give the end-point voltage' "$LW" fit cell "$EX/nimh-aa-8r2.csv" --load-ohm 8.2
+
 # regression of run --format csv on every bundled profile and mode
 compare() { # compare GOLDEN ACTUAL
     awk -F, -v g="$1" '

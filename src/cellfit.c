@@ -1,0 +1,346 @@
+/*
+ * cellfit.c - cell models from discharge logs (see cellfit.h).
+ */
+#include "cellfit.h"
+
+#include <math.h>
+#include <stdlib.h>
+#include <string.h>
+#include "csvio.h"
+
+#define DENSE 401 /* depths at which the logs are compared */
+
+void lw_dlog_clear(lw_dlog *log)
+{
+    if (!log)
+        return;
+    free(log->t_h);
+    free(log->line);
+    log->t_h = log->v = log->i_a = NULL;
+    log->line = NULL;
+    log->n = 0;
+}
+
+static int cmp_double(const void *a, const void *b)
+{
+    double x = *(const double *)a, y = *(const double *)b;
+    return (x > y) - (x < y);
+}
+
+lw_status lw_dlog_read(const char *path, double load_ohm, double load_a, lw_dlog *log,
+                       lw_error *err)
+{
+    memset(log, 0, sizeof *log);
+    lw_strlcpy(log->path, path, sizeof log->path);
+    lw_csv csv;
+    lw_status st = lw_csv_read(path, &csv, err);
+    if (st != LW_OK)
+        return st;
+    static const char *const req[] = {"time_s", "voltage_v", NULL};
+    static const char *const opt[] = {"current_ma", NULL};
+    st = lw_csv_expect(&csv, req, opt, err);
+    int ct = lw_csv_column(&csv, "time_s"), cv = lw_csv_column(&csv, "voltage_v"),
+        ci = lw_csv_column(&csv, "current_ma");
+    if (st == LW_OK && ci < 0 && !(load_ohm > 0) && !(load_a > 0))
+        st = lw_error_set(err, LW_EINPUT, path, csv.header_line,
+                          "the log has no current_ma column: give the load (--load-ohm or "
+                          "--load-ma)");
+    if (st == LW_OK && csv.nrow < 10)
+        st = lw_error_set(err, LW_EINPUT, path, csv.line[csv.nrow - 1],
+                          "%zu samples are too few for a discharge log (need at least 10)",
+                          csv.nrow);
+    size_t n = csv.nrow;
+    double *buf = st == LW_OK ? malloc(3 * n * sizeof *buf) : NULL;
+    int *lines = buf ? malloc(n * sizeof *lines) : NULL;
+    if (st == LW_OK && (!buf || !lines)) {
+        free(buf);
+        buf = NULL;
+        st = lw_error_set(err, LW_ENOMEM, path, 0, "out of memory");
+    }
+    for (size_t k = 0; st == LW_OK && k < n; k++) {
+        double t = lw_csv_at(&csv, k, ct), v = lw_csv_at(&csv, k, cv);
+        double i = ci >= 0 ? lw_csv_at(&csv, k, ci) * 1e-3
+                           : (load_ohm > 0 ? v / load_ohm : load_a);
+        lines[k] = csv.line[k];
+        if (k > 0 && !(t > buf[k - 1] * 3600.0))
+            st = lw_error_set(err, LW_EINPUT, path, csv.line[k],
+                              "time_s = %g does not increase on the previous sample (%g)", t,
+                              buf[k - 1] * 3600.0);
+        else if (!(v > 0))
+            st = lw_error_set(err, LW_EINPUT, path, csv.line[k],
+                              "voltage_v = %g: expected a positive voltage", v);
+        else if (!(i > 0))
+            st = lw_error_set(err, LW_EINPUT, path, csv.line[k],
+                              "the current is %g mA: expected a positive discharge current",
+                              i * 1e3);
+        buf[k] = t / 3600.0;
+        buf[n + k] = v;
+        buf[2 * n + k] = i;
+    }
+    if (st == LW_OK) {
+        /* gaps: a step over 10 times the median step */
+        double *steps = malloc((n - 1) * sizeof *steps);
+        if (!steps)
+            st = lw_error_set(err, LW_ENOMEM, path, 0, "out of memory");
+        for (size_t k = 1; st == LW_OK && k < n; k++)
+            steps[k - 1] = buf[k] - buf[k - 1];
+        if (st == LW_OK) {
+            qsort(steps, n - 1, sizeof *steps, cmp_double);
+            double median = steps[(n - 1) / 2];
+            for (size_t k = 1; st == LW_OK && k < n; k++)
+                if (buf[k] - buf[k - 1] > 10.0 * median)
+                    st = lw_error_set(err, LW_EINPUT, path, csv.line[k],
+                                      "gap in the log: %g s since the previous sample, more "
+                                      "than 10 times the usual %g s",
+                                      (buf[k] - buf[k - 1]) * 3600.0, median * 3600.0);
+        }
+        free(steps);
+    }
+    lw_csv_clear(&csv);
+    if (st != LW_OK) {
+        free(buf);
+        free(lines);
+        return st;
+    }
+    log->n = n;
+    log->t_h = buf;
+    log->v = buf + n;
+    log->i_a = buf + 2 * n;
+    log->line = lines;
+    return LW_OK;
+}
+
+/* Per-log reduction: charge to each sample, the end crossing, capacity. */
+typedef struct reduced {
+    size_t n;         /* samples up to and including the end crossing */
+    double *q;        /* Ah removed at each sample (the last is the crossing) */
+    double *v, *i;    /* voltage, current at each */
+    double cap_ah, hours;
+} reduced;
+
+static lw_status reduce(const lw_dlog *log, double cutoff_v, reduced *r, lw_error *err)
+{
+    memset(r, 0, sizeof *r);
+    size_t end = 0;
+    while (end < log->n && log->v[end] > cutoff_v)
+        end++;
+    if (end == log->n) {
+        double vmin = log->v[0];
+        size_t at = 0;
+        for (size_t k = 1; k < log->n; k++)
+            if (log->v[k] < vmin) {
+                vmin = log->v[k];
+                at = k;
+            }
+        return lw_error_set(err, LW_EINPUT, log->path, log->line[at],
+                            "the log never reaches the end point %g V (lowest %g V here)",
+                            cutoff_v, vmin);
+    }
+    if (end < 5)
+        return lw_error_set(err, LW_EINPUT, log->path, log->line[end],
+                            "the voltage is at the end point %g V after only %zu samples",
+                            cutoff_v, end);
+    r->n = end + 1;
+    r->q = malloc(3 * r->n * sizeof *r->q);
+    if (!r->q)
+        return lw_error_set(err, LW_ENOMEM, NULL, 0, "out of memory");
+    r->v = r->q + r->n;
+    r->i = r->q + 2 * r->n;
+    r->q[0] = 0;
+    r->v[0] = log->v[0];
+    r->i[0] = log->i_a[0];
+    for (size_t k = 1; k < end; k++) {
+        r->q[k] = r->q[k - 1] + 0.5 * (log->i_a[k] + log->i_a[k - 1]) *
+                                    (log->t_h[k] - log->t_h[k - 1]);
+        r->v[k] = log->v[k];
+        r->i[k] = log->i_a[k];
+    }
+    /* the crossing between samples end-1 and end, by linear interpolation */
+    double u = (log->v[end - 1] - cutoff_v) / (log->v[end - 1] - log->v[end]);
+    double t_end = log->t_h[end - 1] + u * (log->t_h[end] - log->t_h[end - 1]);
+    double i_end = log->i_a[end - 1] + u * (log->i_a[end] - log->i_a[end - 1]);
+    r->q[end] = r->q[end - 1] + 0.5 * (i_end + log->i_a[end - 1]) * (t_end - log->t_h[end - 1]);
+    r->v[end] = cutoff_v;
+    r->i[end] = i_end;
+    r->cap_ah = r->q[end];
+    r->hours = t_end - log->t_h[0];
+    return LW_OK;
+}
+
+/* Linear interpolation of y at depth d over a reduced log (q/cap). */
+static double at_depth(const reduced *r, const double *y, double d)
+{
+    double q = d * r->cap_ah;
+    size_t lo = 0, hi = r->n - 1;
+    if (q <= r->q[0])
+        return y[0];
+    if (q >= r->q[hi])
+        return y[hi];
+    while (hi - lo > 1) {
+        size_t mid = (lo + hi) / 2;
+        if (r->q[mid] <= q)
+            lo = mid;
+        else
+            hi = mid;
+    }
+    double u = (q - r->q[lo]) / (r->q[hi] - r->q[lo]);
+    return y[lo] + u * (y[hi] - y[lo]);
+}
+
+/* Ramer-Douglas-Peucker: mark the points to keep so that the polyline
+ * through them stays within tol of every point of (x, y). */
+static void rdp(const double *x, const double *y, size_t a, size_t b, double tol, bool *keep)
+{
+    if (b <= a + 1)
+        return;
+    double worst = -1;
+    size_t at = a;
+    for (size_t k = a + 1; k < b; k++) {
+        double u = (x[k] - x[a]) / (x[b] - x[a]);
+        double dev = fabs(y[k] - (y[a] + u * (y[b] - y[a])));
+        if (dev > worst) {
+            worst = dev;
+            at = k;
+        }
+    }
+    if (worst > tol) {
+        keep[at] = true;
+        rdp(x, y, a, at, tol, keep);
+        rdp(x, y, at, b, tol, keep);
+    }
+}
+
+lw_status lw_fit_cell(const lw_dlog *logs, size_t nlogs, const lw_cellfit_options *opt,
+                      lw_cellfit *out, lw_error *err)
+{
+    memset(out, 0, sizeof *out);
+    if (nlogs < 1 || nlogs > 2)
+        return lw_error_set(err, LW_EINPUT, NULL, 0, "give one or two discharge logs");
+    if (nlogs == 1 && !(opt->resistance_ohm > 0))
+        return lw_error_set(err, LW_EINPUT, logs[0].path, 0,
+                            "with one log the internal resistance cannot be separated from the "
+                            "load: give it with --resistance-ohm, or log a second load");
+    reduced r[2];
+    memset(r, 0, sizeof r);
+    lw_status st = LW_OK;
+    for (size_t k = 0; k < nlogs && st == LW_OK; k++)
+        st = reduce(&logs[k], opt->cutoff_v, &r[k], err);
+    double d[DENSE], ocv[DENSE], res[DENSE];
+    size_t lo = 0, hi = nlogs - 1;
+    if (st == LW_OK && nlogs == 2) {
+        if (r[1].cap_ah / r[1].hours < r[0].cap_ah / r[0].hours) {
+            lo = 1;
+            hi = 0;
+        }
+        double m_lo = r[lo].cap_ah / r[lo].hours, m_hi = r[hi].cap_ah / r[hi].hours;
+        if (!(m_hi > 1.2 * m_lo))
+            st = lw_error_set(err, LW_EINPUT, logs[hi].path, 0,
+                              "the two logs' mean currents (%.4g and %.4g mA) are too close to "
+                              "separate resistance from voltage: use loads at least 1.2x apart",
+                              m_lo * 1e3, m_hi * 1e3);
+    }
+    for (size_t k = 0; k < DENSE && st == LW_OK; k++) {
+        d[k] = (double)k / (DENSE - 1);
+        if (nlogs == 2) {
+            double v1 = at_depth(&r[lo], r[lo].v, d[k]), i1 = at_depth(&r[lo], r[lo].i, d[k]);
+            double v2 = at_depth(&r[hi], r[hi].v, d[k]), i2 = at_depth(&r[hi], r[hi].i, d[k]);
+            res[k] = (v1 - v2) / (i2 - i1);
+            ocv[k] = v1 + i1 * res[k];
+        } else {
+            res[k] = opt->resistance_ohm;
+            ocv[k] = at_depth(&r[0], r[0].v, d[k]) + at_depth(&r[0], r[0].i, d[k]) * res[k];
+        }
+    }
+    /* smooth R over +-2.5 % of depth (the difference of two noisy logs) */
+    double rs[DENSE];
+    for (size_t k = 0; k < DENSE && st == LW_OK; k++) {
+        double s = 0;
+        int m = 0;
+        for (int j = -5; j <= 5; j++) {
+            long idx = (long)k + j;
+            if (idx >= 0 && idx < DENSE) {
+                s += res[idx];
+                m++;
+            }
+        }
+        rs[k] = s / m;
+        if (!(rs[k] > 0))
+            st = lw_error_set(err, LW_EINPUT, logs[0].path, 0,
+                              "the logs give a resistance of %.4g ohm at %.0f %% depth: check "
+                              "the loads and that both logs are of the same cell type",
+                              rs[k], 100.0 * d[k]);
+    }
+    /* OCV must not rise with depth: take the running minimum (noise only) */
+    for (size_t k = 1; k < DENSE && st == LW_OK; k++)
+        ocv[k] = fmin(ocv[k], ocv[k - 1]);
+    bool keep[DENSE] = {false};
+    if (st == LW_OK) {
+        keep[0] = keep[DENSE - 1] = true;
+        rdp(d, ocv, 0, DENSE - 1, opt->tolerance_v > 0 ? opt->tolerance_v : 0.005, keep);
+    }
+    size_t nk = 0;
+    double kd[DENSE], kv[DENSE], kr[DENSE];
+    for (size_t k = 0; k < DENSE && st == LW_OK; k++)
+        if (keep[k]) {
+            kd[nk] = d[k];
+            kv[nk] = ocv[k];
+            kr[nk] = rs[k];
+            nk++;
+        }
+    if (st == LW_OK) {
+        /* deviation of the thinned curve from the dense one */
+        size_t j = 0;
+        for (size_t k = 0; k < DENSE; k++) {
+            while (j + 1 < nk - 1 && kd[j + 1] < d[k])
+                j++;
+            double u = (d[k] - kd[j]) / (kd[j + 1] - kd[j]);
+            double v = kv[j] + u * (kv[j + 1] - kv[j]);
+            out->max_dev_v = fmax(out->max_dev_v, fabs(v - ocv[k]));
+        }
+        out->dense_points = DENSE;
+        lw_cell *c = &out->cell;
+        lw_strlcpy(c->name, opt->name ? opt->name : "fitted-cell", sizeof c->name);
+        c->chemistry = opt->chemistry;
+        c->rechargeable = opt->rechargeable;
+        c->cutoff_v = opt->cutoff_v;
+        c->capacity_ah = r[lo].cap_ah;
+        c->rated_a = r[lo].cap_ah / r[lo].hours;
+        c->max_capacity_ah = c->capacity_ah;
+        c->peukert = 1.0;
+        out->nlogs = nlogs;
+        for (size_t k = 0; k < nlogs; k++) {
+            out->capacity_ah[k] = r[k].cap_ah;
+            out->hours[k] = r[k].hours;
+            out->mean_a[k] = r[k].cap_ah / r[k].hours;
+        }
+        if (nlogs == 2) {
+            double k_est = 1.0 + log(r[lo].cap_ah / r[hi].cap_ah) /
+                                     log(out->mean_a[hi] / out->mean_a[lo]);
+            out->peukert_estimated = true;
+            out->peukert_clamped = k_est < 1.0 || k_est > 2.0;
+            c->peukert = fmin(2.0, fmax(1.0, k_est));
+        }
+        c->nominal_v = isnan(opt->nominal_v) ? kv[0] : opt->nominal_v;
+        if (isnan(opt->nominal_v)) {
+            size_t j2 = 0;
+            while (j2 + 1 < nk - 1 && kd[j2 + 1] < 0.5)
+                j2++;
+            double u = (0.5 - kd[j2]) / (kd[j2 + 1] - kd[j2]);
+            c->nominal_v = round(100.0 * (kv[j2] + u * (kv[j2 + 1] - kv[j2]))) / 100.0;
+        }
+        c->ocv = lw_table_new(kd, kv, nk, err);
+        c->res = c->ocv ? lw_table_new(kd, kr, nk, err) : NULL;
+        if (!c->res)
+            st = err && err->code ? err->code : LW_ENOMEM;
+        if (st == LW_OK && !(c->cutoff_v < kv[0]))
+            st = lw_error_set(err, LW_EINPUT, logs[0].path, 0,
+                              "the end point %g V is not below the fresh open-circuit voltage "
+                              "%g V",
+                              c->cutoff_v, kv[0]);
+    }
+    for (size_t k = 0; k < nlogs; k++)
+        free(r[k].q);
+    if (st != LW_OK)
+        lw_cell_clear(&out->cell);
+    return st;
+}

@@ -1,0 +1,71 @@
+/*
+ * cellfit.h - a cell model from discharge logs.
+ *
+ * Owns: lw_dlog (a discharge log: time, terminal voltage and current, as
+ * read from CSV and checked) and lw_fit_cell (one or two logs -> lw_cell
+ * with a thinned curve).
+ *
+ * Method (docs/model.md):
+ *   charge removed    Q(t) = integral of I dt, trapezoid rule;
+ *   capacity          Q at the first crossing of the end-point voltage
+ *                     (located by linear interpolation between samples);
+ *   depth             d = Q / capacity of that log;
+ *   two logs (loads 1 and 2) at equal depth: R(d) = (V1 - V2)/(I2 - I1),
+ *                     OCV(d) = V1 + I1 R(d)  (Ohm's law, Kirchhoff's law);
+ *   one log           OCV(d) = V + I R with R given by the user;
+ *   rate exponent     Peukert's law from the two capacities at the mean
+ *                     currents: k = 1 + ln(C1/C2)/ln(I2/I1);
+ *   thinning          Ramer-Douglas-Peucker on (d, OCV): the kept points
+ *                     reproduce the dense curve within the tolerance.
+ */
+#ifndef LW_CELLFIT_H
+#define LW_CELLFIT_H
+
+#include <stdbool.h>
+#include "cell.h"
+
+typedef struct lw_dlog {
+    char path[LW_PATH_MAX];
+    size_t n;
+    double *t_h;     /* hours since the start */
+    double *v;       /* terminal voltage, V */
+    double *i_a;     /* current, A */
+    int *line;       /* CSV line of each sample */
+} lw_dlog;
+
+/* Read a log: columns time_s, voltage_v and optionally current_ma.  Without
+ * current_ma the current is voltage/load_ohm (load_ohm > 0) or load_a.
+ * Refuses, with file:line: missing columns, fewer than 10 samples, time not
+ * strictly increasing, gaps (a step over 10 times the median step),
+ * non-positive voltage or current. */
+lw_status lw_dlog_read(const char *path, double load_ohm, double load_a, lw_dlog *log,
+                       lw_error *err);
+void lw_dlog_clear(lw_dlog *log);
+
+typedef struct lw_cellfit_options {
+    double cutoff_v;          /* end-point voltage, V */
+    double resistance_ohm;    /* with one log: the cell's internal resistance */
+    double tolerance_v;       /* curve thinning tolerance, default 0.005 V */
+    const char *name;         /* cell name */
+    lw_chemistry chemistry;
+    bool rechargeable;
+    double nominal_v;         /* NAN: the curve's voltage at 50 % depth */
+} lw_cellfit_options;
+
+typedef struct lw_cellfit {
+    lw_cell cell;             /* tables owned: free with lw_cell_clear */
+    double capacity_ah[2];    /* per log */
+    double mean_a[2];         /* mean current per log */
+    double hours[2];          /* to the end point, per log */
+    size_t nlogs;
+    bool peukert_estimated;
+    bool peukert_clamped;     /* the estimate fell outside 1..2 */
+    double max_dev_v;         /* thinned curve against the dense one */
+    size_t dense_points;
+} lw_cellfit;
+
+/* Fit from one or two logs (two: at different loads). */
+lw_status lw_fit_cell(const lw_dlog *logs, size_t nlogs, const lw_cellfit_options *opt,
+                      lw_cellfit *out, lw_error *err);
+
+#endif
