@@ -173,22 +173,23 @@ static lw_status fit_plot(const char *path, const led_data *d, const lw_led_fit 
     c.npanels = 2;
     lw_panel *p = &c.panels[0];
     p->y = (lw_axis){.label = "forward voltage (V)"};
-    p->series[p->nseries++] =
-        (lw_series){.name = "measured", .x = ima, .y = d->v, .n = n, .points = true};
+    p->series[p->nseries++] = (lw_series){.name = "measured", .x = ima, .y = d->v, .n = n,
+                                          .points = true, .colour = 1};
     if (lin)
-        p->series[p->nseries++] = (lw_series){.name = "linear fit", .x = cx, .y = cl, .n = nc};
-    if (sh)
         p->series[p->nseries++] =
-            (lw_series){.name = "Shockley fit", .x = cxs, .y = cs, .n = nc, .dashed = true};
+            (lw_series){.name = "linear fit", .x = cx, .y = cl, .n = nc, .colour = 2};
+    if (sh)
+        p->series[p->nseries++] = (lw_series){.name = "Shockley fit", .x = cxs, .y = cs,
+                                              .n = nc, .dashed = true, .colour = 3};
     p->height_share = 1.5;
     p = &c.panels[1];
     p->y = (lw_axis){.label = "residual (mV)"};
     if (lin)
-        p->series[p->nseries++] =
-            (lw_series){.name = "linear", .x = ima, .y = rl, .n = n, .points = true};
+        p->series[p->nseries++] = (lw_series){.name = "linear", .x = ima, .y = rl, .n = n,
+                                              .points = true, .colour = 2};
     if (sh)
-        p->series[p->nseries++] =
-            (lw_series){.name = "Shockley", .x = ima, .y = rs, .n = n, .points = true};
+        p->series[p->nseries++] = (lw_series){.name = "Shockley", .x = ima, .y = rs, .n = n,
+                                              .points = true, .colour = 3};
     p->refs[p->nrefs++] = (lw_refline){0.0, "zero"};
     lw_outfile out;
     lw_status st = lw_outfile_open(&out, path, err);

@@ -241,9 +241,30 @@ static void draw_series(FILE *fp, const frame *f, const lw_series *s, const char
     }
 }
 
+static const char *series_colour(const lw_series *s, size_t auto_index)
+{
+    return palette[(s->colour > 0 ? (size_t)(s->colour - 1) : auto_index) % NPAL];
+}
+
+/* Data points of the panel inside a pixel box. */
+static size_t points_in(const frame *f, const lw_panel *p, double x0, double y0, double x1,
+                        double y1)
+{
+    size_t n = 0;
+    for (size_t i = 0; i < p->nseries; i++)
+        for (size_t k = 0; k < p->series[i].n; k++) {
+            double x = p->series[i].x[k], y = p->series[i].y[k];
+            if (!isfinite(x) || !isfinite(y) || (f->xlog && x <= 0) || (f->ylog && y <= 0))
+                continue;
+            double X = px(f, x), Y = py(f, y);
+            n += X >= x0 && X <= x1 && Y >= y0 && Y <= y1;
+        }
+    return n;
+}
+
+/* The legend goes in the corner of the panel that hides the fewest points. */
 static void draw_legend(FILE *fp, const frame *f, const lw_panel *p, size_t colour0)
 {
-    double x = f->x1 - 10, y = f->y0 + 16;
     size_t items = p->nseries + p->nrefs;
     if (items == 0)
         return;
@@ -253,31 +274,43 @@ static void draw_legend(FILE *fp, const frame *f, const lw_panel *p, size_t colo
     for (size_t i = 0; i < p->nrefs; i++)
         w = fmax(w, 7.0 * (double)strlen(p->refs[i].label ? p->refs[i].label : ""));
     w += 40;
+    double h = 18.0 * (double)items + 6;
+    const double cx[4] = {f->x1 - 10 - w, f->x0 + 10, f->x1 - 10 - w, f->x0 + 10};
+    const double cy[4] = {f->y0 + 4, f->y0 + 4, f->y1 - 4 - h, f->y1 - 4 - h};
+    size_t best = 0, least = (size_t)-1;
+    for (size_t c = 0; c < 4; c++) {
+        size_t n = points_in(f, p, cx[c] - 6, cy[c] - 6, cx[c] + w + 6, cy[c] + h + 6);
+        if (n < least) {
+            least = n;
+            best = c;
+        }
+    }
+    double lx = cx[best], y = cy[best] + 12;
     fprintf(fp, "<rect x='%.1f' y='%.1f' width='%.1f' height='%.1f' fill='#ffffff' "
                 "fill-opacity='0.85' stroke='#bbb'/>\n",
-            x - w, y - 12, w, 18.0 * (double)items + 6);
+            lx, cy[best], w, h);
     for (size_t i = 0; i < items; i++) {
         double yy = y + 18.0 * (double)i;
         const char *name;
         if (i < p->nseries) {
             const lw_series *s = &p->series[i];
-            const char *c = palette[(colour0 + i) % NPAL];
+            const char *c = series_colour(s, colour0 + i);
             name = s->name;
             if (s->points)
-                fprintf(fp, "<circle cx='%.1f' cy='%.1f' r='3.5' fill='%s'/>\n", x - w + 16,
+                fprintf(fp, "<circle cx='%.1f' cy='%.1f' r='3.5' fill='%s'/>\n", lx + 16,
                         yy - 4, c);
             else
                 fprintf(fp, "<line x1='%.1f' y1='%.1f' x2='%.1f' y2='%.1f' stroke='%s' "
                             "stroke-width='2'%s/>\n",
-                        x - w + 6, yy - 4, x - w + 26, yy - 4, c,
+                        lx + 6, yy - 4, lx + 26, yy - 4, c,
                         s->dashed ? " stroke-dasharray='6 4'" : "");
         } else {
             name = p->refs[i - p->nseries].label;
             fprintf(fp, "<line x1='%.1f' y1='%.1f' x2='%.1f' y2='%.1f' stroke='#b00020' "
                         "stroke-width='1.5' stroke-dasharray='3 3'/>\n",
-                    x - w + 6, yy - 4, x - w + 26, yy - 4);
+                    lx + 6, yy - 4, lx + 26, yy - 4);
         }
-        fprintf(fp, "<text x='%.1f' y='%.1f' class='leg'>", x - w + 32, yy);
+        fprintf(fp, "<text x='%.1f' y='%.1f' class='leg'>", lx + 32, yy);
         xml_text(fp, name);
         fputs("</text>\n", fp);
     }
@@ -333,7 +366,7 @@ lw_status lw_plot_svg(FILE *fp, const lw_chart *c, lw_error *err)
                         "stroke-width='1.5' stroke-dasharray='3 3'/>\n",
                     f.x0, py(&f, p->refs[k].y), f.x1, py(&f, p->refs[k].y));
         for (size_t k = 0; k < p->nseries; k++)
-            draw_series(fp, &f, &p->series[k], palette[(colour0 + k) % NPAL]);
+            draw_series(fp, &f, &p->series[k], series_colour(&p->series[k], colour0 + k));
         fputs("</g></svg>\n", fp);
         draw_legend(fp, &f, p, colour0);
         colour0 += p->nseries;

@@ -32,6 +32,7 @@ typedef struct lw_series {
     bool points;          /* markers instead of a line */
     bool dashed;
     const char *const *labels; /* per-point labels (points only), or NULL */
+    int colour;           /* palette index + 1; 0: next in turn */
 } lw_series;
 
 typedef struct lw_refline {
