@@ -71,6 +71,8 @@ static const char *const run_help =
     "  --format text|csv|md     report format (default text)\n"
     "  --trace FILE.csv         write the discharge as a CSV time series\n"
     "  --plot FILE.svg          write a chart of output and pack voltage\n"
+    "  --stored-months M        start after M months on the shelf: the cells'\n"
+    "                           self-discharge and the drive's standby drain\n"
     "\n"
     "The run ends at the first of: output at cutoff.relative_pct % of the output\n"
     "30 s after switch-on, output at cutoff.flux_lm, loaded cell voltage at\n"
@@ -432,16 +434,26 @@ static int cmd_run(int argc, char **argv)
         {"format", required_argument, NULL, OPT_FORMAT},
         {"trace", required_argument, NULL, OPT_TRACE},
         {"plot", required_argument, NULL, OPT_PLOT}, {"help", no_argument, NULL, 'h'},
+        {"stored-months", required_argument, NULL, OPT_STORED},
         {NULL, 0, NULL, 0}};
     common_opts o = {.fmt = LW_FMT_TEXT};
     const char *trace_path = NULL, *plot_path = NULL;
+    char stored_arg[96];
     int c, rc = 0;
     while ((c = getopt_long(argc, argv, "h", longopts, NULL)) != -1) {
         if (c == 'h') {
             fputs(run_help, stdout);
             return 0;
         }
-        if (c == OPT_TRACE)
+        if (c == OPT_STORED) {
+            double m;
+            if (!lw_parse_double(optarg, &m) || m < 0 || m > 600)
+                return usage_error("run", "--stored-months takes 0 to 600");
+            snprintf(stored_arg, sizeof stored_arg, "pack.stored_months=%s", optarg);
+            if (o.nsets == sizeof o.sets / sizeof o.sets[0])
+                return usage_error("run", "too many --set options");
+            o.sets[o.nsets++] = stored_arg;
+        } else if (c == OPT_TRACE)
             trace_path = optarg;
         else if (c == OPT_PLOT)
             plot_path = optarg;

@@ -21,7 +21,8 @@ const char *const lw_sweep_help =
     "  22,33,47          a list (2.2k, 4k7, 1M and 4R7 are understood)\n"
     "  1..4  1..4:0.5    a numeric range, step 1 or the step after ':'\n"
     "  E24:10..1k        the preferred values of a series (E3 ... E192) in a range\n"
-    "  all               for pack.cell: every cell on the search path\n"
+    "  all               for pack.cell: every cell on the search path;\n"
+    "                    for mode: every mode of the profile (mode=a,b also works)\n"
     "\n"
     "Options\n"
     "  --vary KEY=VALUES        a key to vary (repeatable: the full grid is run)\n"
@@ -29,6 +30,7 @@ const char *const lw_sweep_help =
     "  --mode NAME              start from a mode\n"
     "  --format text|csv|md     (csv and md carry every column of 'run --format csv')\n"
     "  --plot FILE.svg          runtime against light output, one series per cell\n"
+    "  --columns LIST           which columns of 'run --format csv' to show\n"
     "  --threads N              worker threads (default: all cores)\n";
 
 const char *const lw_pick_help =
@@ -109,7 +111,7 @@ static lw_status parse_cells(const char *list, const lw_profile *prof, lw_vary *
 {
     char arg[1024];
     snprintf(arg, sizeof arg, "pack.cell=%s", list);
-    lw_status st = lw_vary_parse(arg, &prof->search, prof->dir, v, err);
+    lw_status st = lw_vary_parse(arg, prof, v, err);
     if (st != LW_OK)
         return st;
     const char **c = calloc(v->n + 1, sizeof *c);
@@ -131,26 +133,66 @@ static int parse_threads(const char *cmd, const char *s, int *threads)
 /* ---- sweep ---- */
 
 static const char *const sweep_text_cols[] = {
-    "initial_led_ma", "flux_30s_lm", "runtime_h", "end_reason", "time_to_half_h",
-    "lumen_hours",    "efficiency_pct", "peak_resistor_w", "warnings"};
+    "initial_led_ma", "flux_30s_lm", "runtime_h",     "end_reason",     "regulated_h",
+    "time_to_half_h", "lumen_hours", "efficiency_pct", "lm_per_w",       "peak_resistor_w",
+    "warnings"};
 
-static lw_status sweep_table(const lw_sweep *sw, lw_format fmt, lw_rtable **out, lw_error *err)
+/* Columns of the sweep table after the varied keys: every run column for
+ * csv and md, a readable subset for text, or the user's --columns. */
+static lw_status sweep_columns(const char *list, lw_format fmt, const char **cols, size_t *n,
+                               lw_error *err)
 {
-    size_t nk = sw->nvary;
-    size_t ntxt = sizeof sweep_text_cols / sizeof sweep_text_cols[0];
-    size_t ncol = nk + (fmt == LW_FMT_TEXT ? ntxt : lw_run_ncolumns);
+    *n = 0;
+    if (!list) {
+        size_t k = fmt == LW_FMT_TEXT ? sizeof sweep_text_cols / sizeof sweep_text_cols[0]
+                                      : lw_run_ncolumns;
+        for (size_t i = 0; i < k; i++)
+            cols[(*n)++] = fmt == LW_FMT_TEXT ? sweep_text_cols[i] : lw_run_columns[i];
+        return LW_OK;
+    }
+    const char *p = list;
+    while (*p) {
+        const char *comma = strchr(p, ',');
+        size_t len = comma ? (size_t)(comma - p) : strlen(p);
+        size_t i = 0;
+        while (i < lw_run_ncolumns &&
+               (strlen(lw_run_columns[i]) != len || strncmp(lw_run_columns[i], p, len) != 0))
+            i++;
+        if (i == lw_run_ncolumns || *n == lw_run_ncolumns) {
+            char known[1024] = "";
+            for (size_t k = 0; k < lw_run_ncolumns; k++) {
+                strncat(known, k ? ", " : "", sizeof known - strlen(known) - 1);
+                strncat(known, lw_run_columns[k], sizeof known - strlen(known) - 1);
+            }
+            return lw_error_set(err, LW_EINPUT, "--columns", 0,
+                                "unknown column '%.*s'; the columns are: %s", (int)len, p,
+                                known);
+        }
+        cols[(*n)++] = lw_run_columns[i];
+        p += len + (comma ? 1 : 0);
+    }
+    return LW_OK;
+}
+
+static lw_status sweep_table(const lw_sweep *sw, lw_format fmt, const char *columns,
+                             lw_rtable **out, lw_error *err)
+{
+    const char *cols[64];
+    size_t ncols;
+    lw_status st = sweep_columns(columns, fmt, cols, &ncols, err);
+    if (st != LW_OK)
+        return st;
+    size_t nk = sw->nvary, ncol = nk + ncols;
     lw_rtable *t = lw_rtable_new(ncol, err);
     lw_rtable *full = t ? lw_rtable_new(lw_run_ncolumns, err) : NULL;
     if (!t || !full) {
         lw_rtable_free(t);
         return LW_ENOMEM;
     }
-    lw_status st = LW_OK;
     for (size_t k = 0; k < nk && st == LW_OK; k++)
         st = lw_rtable_head(t, k, sw->vary[k].key, err);
-    for (size_t c = 0; c < ncol - nk && st == LW_OK; c++)
-        st = lw_rtable_head(t, nk + c,
-                            fmt == LW_FMT_TEXT ? sweep_text_cols[c] : lw_run_columns[c], err);
+    for (size_t c = 0; c < ncols && st == LW_OK; c++)
+        st = lw_rtable_head(t, nk + c, cols[c], err);
     for (size_t r = 0; r < sw->n && st == LW_OK; r++) {
         size_t row, frow;
         st = lw_rtable_add_row(t, &row, err);
@@ -160,11 +202,10 @@ static lw_status sweep_table(const lw_sweep *sw, lw_format fmt, lw_rtable **out,
             st = lw_rtable_set(t, row, k, sw->vary[k].values[sw->index[r * nk + k]], err);
         if (st == LW_OK)
             st = lw_report_run_row(full, frow, 0, &sw->cases[r].light, &sw->cases[r].res, err);
-        for (size_t c = 0; c < ncol - nk && st == LW_OK; c++) {
-            size_t src = c;
-            if (fmt == LW_FMT_TEXT)
-                for (src = 0; strcmp(lw_run_columns[src], sweep_text_cols[c]) != 0; src++)
-                    ;
+        for (size_t c = 0; c < ncols && st == LW_OK; c++) {
+            size_t src = 0;
+            while (strcmp(lw_run_columns[src], cols[c]) != 0)
+                src++;
             const char *cell = full->cell[frow * full->ncol + src];
             st = lw_rtable_set(t, row, nk + c, cell ? cell : "", err);
         }
@@ -263,10 +304,11 @@ int lw_cmd_sweep(int argc, char **argv)
         {"format", required_argument, NULL, OPT_FORMAT},
         {"plot", required_argument, NULL, OPT_PLOT},
         {"threads", required_argument, NULL, OPT_THREADS},
+        {"columns", required_argument, NULL, OPT_COLUMNS},
         {"help", no_argument, NULL, 'h'},
         {NULL, 0, NULL, 0}};
     common_opts o = {.fmt = LW_FMT_TEXT};
-    const char *varies[LW_CASE_SETS], *plot_path = NULL;
+    const char *varies[LW_CASE_SETS], *plot_path = NULL, *columns = NULL;
     size_t nvary = 0;
     int c, rc = 0, threads = 0;
     while ((c = getopt_long(argc, argv, "h", longopts, NULL)) != -1) {
@@ -280,6 +322,8 @@ int lw_cmd_sweep(int argc, char **argv)
             varies[nvary++] = optarg;
         } else if (c == OPT_PLOT) {
             plot_path = optarg;
+        } else if (c == OPT_COLUMNS) {
+            columns = optarg;
         } else if (c == OPT_THREADS) {
             if ((rc = parse_threads("sweep", optarg, &threads)) != 0)
                 return rc;
@@ -302,7 +346,7 @@ int lw_cmd_sweep(int argc, char **argv)
     lw_rtable *t = NULL;
     lw_status st = load_profile(argv[optind], &o, &prof, &err);
     for (size_t k = 0; k < nvary && st == LW_OK; k++)
-        st = lw_vary_parse(varies[k], &prof.search, prof.dir, &vary[k], &err);
+        st = lw_vary_parse(varies[k], &prof, &vary[k], &err);
     size_t total = 1;
     for (size_t k = 0; k < nvary && st == LW_OK; k++)
         total *= vary[k].n;
@@ -312,7 +356,7 @@ int lw_cmd_sweep(int argc, char **argv)
     if (st == LW_OK && plot_path)
         st = sweep_plot(plot_path, &prof, &sw, &err);
     if (st == LW_OK)
-        st = sweep_table(&sw, o.fmt, &t, &err);
+        st = sweep_table(&sw, o.fmt, columns, &t, &err);
     if (st == LW_OK && o.fmt != LW_FMT_CSV)
         st = lw_rtable_note(t, lw_caution_line, &err);
     if (st == LW_OK)

@@ -196,3 +196,16 @@ lw_status lw_light_point(const lw_light *light, double depth, bool fallback, lw_
     double r = lw_table_linear(c->res, depth) * light->res_factor;
     return lw_light_point_at(light, depth, ocv, r, fallback, pt, err);
 }
+
+double lw_stored_depth(const lw_light *l)
+{
+    double m = l->pack.stored_months;
+    if (!(m > 0))
+        return 0.0;
+    const lw_cell *c = &l->pack.cell;
+    double kept = pow(1.0 - c->self_discharge_pct_month / 100.0, m);
+    double cap_ah = c->capacity_ah * l->cap_factor * l->pack.parallel;
+    double drained = cap_ah > 0 ? l->drive.standby_a * m * LW_HOURS_PER_MONTH / cap_ah : 0.0;
+    double d = 1.0 - kept + drained;
+    return d < 0.0 ? 0.0 : (d > 1.0 ? 1.0 : d);
+}

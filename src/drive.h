@@ -37,6 +37,7 @@ typedef struct lw_pack {
     int series;          /* S >= 1 */
     int parallel;        /* P >= 1 */
     double ambient_c;    /* deg C */
+    double stored_months; /* months on the shelf before switch-on, >= 0 */
 } lw_pack;
 
 typedef struct lw_drive {
@@ -119,6 +120,17 @@ lw_status lw_light_point(const lw_light *light, double depth, bool fallback, lw_
 /* Same, with the cell's OCV and internal resistance given directly. */
 lw_status lw_light_point_at(const lw_light *light, double depth, double ocv_v,
                             double r_cell_ohm, bool fallback, lw_point *pt, lw_error *err);
+
+/* Hours in an average month (365.25 x 24 / 12). */
+#define LW_HOURS_PER_MONTH 730.5
+
+/* Depth of discharge at switch-on after pack.stored_months on the shelf:
+ * the cell keeps (1 - s/100)^M of its charge after M months of
+ * self-discharge at s % a month (compounded monthly on the charge left),
+ * less the standby drain I_sb over those months shared by the P parallel
+ * strings of cells: d0 = 1 - (1 - s/100)^M + I_sb * M * 730.5 h / (P * C),
+ * with C the rated capacity at ambient.  Clamped to [0, 1]. */
+double lw_stored_depth(const lw_light *light);
 
 /* Pack current of a converter: the smaller root of
  * R*Ip^2 - (E + R*Iq)*Ip + (E*Iq + P) = 0, in cancellation-free form.

@@ -58,6 +58,7 @@ typedef struct engine {
     double d_now;
     size_t cap_pieces;
     size_t seg;               /* curve interval being integrated; SIZE_MAX: search */
+    double d0;                /* depth at switch-on */
     bool done;
 } engine;
 
@@ -334,11 +335,37 @@ static lw_status fire(engine *e, int k, double d, lw_point *pt)
     return LW_OK;
 }
 
+/* After the converter falls back to its low level the output has jumped:
+ * events that the new point already satisfies happen here, at d, and the
+ * kinks take the side of the new regime. */
+static lw_status settle(engine *e, double d, lw_point *pt)
+{
+    for (int k = 0; k < NEV && !e->done; k++) {
+        if (!e->active[k])
+            continue;
+        if (kind_of(k) == EV_KINK) {
+            e->positive[k] = event_g(e, k, pt) > 0.0;
+            continue;
+        }
+        if (fired(e, k, pt)) {
+            lw_status st = fire(e, k, d, pt);
+            if (st != LW_OK)
+                return st;
+        }
+    }
+    return LW_OK;
+}
+
 /* Integrate [a, b] (inside one interval of the cell curve), stopping at the
  * first stop event.  pa is the point at a. */
 static lw_status run_interval(engine *e, double a, double b, lw_point pa, int depth)
 {
-    while (!e->done && a < b) {
+    /* each pass ends at an event or at b; a model has a handful of events,
+     * so the cap only guards against an event that keeps re-firing */
+    for (int pass = 0; !e->done && a < b; pass++) {
+        if (pass == 1000)
+            return lw_error_set(e->err, LW_ENUMERIC, NULL, 0,
+                                "too many events between depths %.6g and %.6g", a, b);
         lw_point pts[NODES + 1];
         lw_status st = eval_nodes(e, a, b, pts);
         if (st == LW_OK)
@@ -391,6 +418,8 @@ static lw_status run_interval(engine *e, double a, double b, lw_point pa, int de
                 return st;
         }
         st = fire(e, first_k, d_star, &pa);
+        if (st == LW_OK && !e->done && first_k == EV_DROPOUT)
+            st = settle(e, d_star, &pa);
         if (st != LW_OK)
             return st;
         a = d_star;
@@ -451,7 +480,7 @@ static void set_warnings(const lw_light *l, lw_result *r)
 static lw_status depth_at_30s(engine *e, const lw_point *p0, lw_point *p30)
 {
     const double t30_h = 30.0 / 3600.0;
-    double d0 = e->opt->start_depth;
+    double d0 = e->d0;
     double d = fmin(1.0, d0 + t30_h / p0->dtdd_h);
     for (int pass = 0; pass < 2; pass++) {
         lw_status st = eval(e, d, p30);
@@ -496,7 +525,7 @@ static lw_status run_body(engine *e, lw_point p0)
             return LW_OK;
         }
     }
-    double a = e->opt->start_depth;
+    double a = e->d0;
     lw_point pa = p0;
     for (size_t i = 0; i + 1 < curve->n && !e->done; i++) {
         double b = curve->x[i + 1];
@@ -528,24 +557,26 @@ lw_status lw_run(const lw_light *light, const lw_run_options *opt, lw_result *re
     memset(res, 0, sizeof *res);
     res->time_to_half_h = NAN;
     engine e = {.l = light, .opt = opt, .res = res, .err = err, .seg = SIZE_MAX};
+    e.d0 = fmax(opt->start_depth, lw_stored_depth(light));
+    res->start_depth = e.d0;
     lw_status st = lw_worst_case(light, &res->initial, err);
     if (st != LW_OK)
         return st;
     res->worst_led_a = res->initial.led_a;
     res->worst_resistor_w = res->initial.p_res_peak_w;
     lw_point p0, p30;
-    st = eval(&e, opt->start_depth, &p0);
+    st = eval(&e, e.d0, &p0);
     if (st != LW_OK)
         return st;
     if (p0.regime == LW_REGIME_DROPOUT && light->drive.fallback_a > 0.0) {
         e.fallback = true;
-        st = eval(&e, opt->start_depth, &p0);
+        st = eval(&e, e.d0, &p0);
         if (st != LW_OK)
             return st;
     }
     res->initial = p0;
     res->peak_resistor_w = p0.p_res_peak_w;
-    e.d_now = opt->start_depth;
+    e.d_now = e.d0;
     if (!(p0.flux_lm > 0.0) || !isfinite(p0.dtdd_h)) {
         finish(&e, LW_END_NEVER_LIT, &p0);
     } else {

@@ -56,7 +56,8 @@ extern const char *const lw_warning_names[LW_WARN_COUNT_];
 typedef struct lw_run_options {
     double rtol;          /* relative tolerance of each integral, default 1e-10 */
     int max_halvings;     /* cap on interval halving, default 40 */
-    double start_depth;   /* depth at switch-on (after storage), 0..1, default 0 */
+    double start_depth;   /* depth at switch-on, 0..1, default 0; the light's own
+                             storage (pack.stored_months) is applied when deeper */
     bool want_trace;      /* record the pieces for lw_trace_build */
 } lw_run_options;
 
@@ -74,6 +75,7 @@ typedef struct lw_result {
     lw_end_reason end_reason;
     double runtime_h;       /* switch-on to the end */
     double end_depth;
+    double start_depth;     /* depth at switch-on (after storage) */
     double time_to_half_h;  /* to 50 % of the 30-s output; NAN if not reached */
     double regulated_h;     /* hours in regulation (NAN for a resistor drive) */
     double flux_ref_lm;     /* output 30 s after switch-on */

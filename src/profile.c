@@ -31,6 +31,8 @@ const lw_keydef lw_profile_keys[] = {
        "cells in parallel"),
     PK("pack", "ambient_c", LW_K_NUM, light.pack.ambient_c, 1, -60, 100, 0, "20",
        "ambient temperature, deg C"),
+    PK("pack", "stored_months", LW_K_NUM, light.pack.stored_months, 1, 0, 600, 0, "0",
+       "months on the shelf before switch-on (self-discharge and standby drain)"),
     {"led", "model", LW_K_CHOICE, offsetof(lw_profile, light.led.model), 0, 1, NAN, NAN,
      LW_KF_REQUIRED, lw_led_model_names, "", "I-V model: constant, linear, shockley or table"},
     PK("led", "count", LW_K_INT, light.led.count, 1, 1, 1000, 0, "1", "LEDs in series per string"),

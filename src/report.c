@@ -366,7 +366,7 @@ const char *const lw_run_columns[] = {
     "runtime_h", "end_reason", "initial_led_ma", "initial_pack_ma", "initial_flux_lm",
     "flux_30s_lm", "time_to_half_h", "regulated_h", "lumen_hours", "energy_drawn_wh",
     "energy_led_wh", "energy_resistor_wh", "energy_internal_wh", "energy_driver_wh",
-    "efficiency_pct", "peak_resistor_w", "worst_led_ma", "worst_resistor_w", "final_cell_v",
+    "efficiency_pct", "lm_per_w", "peak_resistor_w", "worst_led_ma", "worst_resistor_w", "final_cell_v",
     "solves", "warnings"};
 const size_t lw_run_ncolumns = sizeof lw_run_columns / sizeof lw_run_columns[0];
 
@@ -416,6 +416,7 @@ lw_status lw_report_run_row(lw_rtable *t, size_t row, size_t c, const lw_light *
                   r->energy_internal_wh,
                   r->energy_driver_wh,
                   efficiency_pct(r),
+                  r->energy_drawn_wh > 0 ? r->lumen_hours / r->energy_drawn_wh : NAN,
                   r->peak_resistor_w,
                   r->worst_led_a * 1e3,
                   r->worst_resistor_w,
@@ -533,7 +534,11 @@ static void text_report(FILE *fp, const lw_profile *p, const lw_result *r)
         lw_format_hours(r->regulated_h, buf, sizeof buf);
         fprintf(fp, "  in regulation       %s\n", buf);
     }
-    fprintf(fp, "  lumen-hours         %.4g lm h\n", r->lumen_hours);
+    fprintf(fp, "  lumen-hours         %.4g lm h (%.3g lm per W drawn from the cells)\n",
+            r->lumen_hours, r->energy_drawn_wh > 0 ? r->lumen_hours / r->energy_drawn_wh : 0.0);
+    if (l->pack.stored_months > 0)
+        fprintf(fp, "  after storage       %g months on the shelf: starts at %.1f %% depth\n",
+                l->pack.stored_months, 100.0 * r->start_depth);
     fprintf(fp, "  cutoff              %g %% of the 30-s output", l->cutoff.relative_pct);
     if (l->cutoff.flux_lm > 0)
         fprintf(fp, ", or %g lm", l->cutoff.flux_lm);

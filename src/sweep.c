@@ -11,7 +11,8 @@
 
 const char *const lw_vary_forms =
     "a list (22,33,47; 2.2k, 4k7, 1M accepted), a range (1..4 or 1..4:0.5), a preferred-value "
-    "range (E24:10..1k), or for pack.cell cell names or 'all' (the cell library)";
+    "range (E24:10..1k), or for pack.cell cell names or 'all' (the cell library), for mode "
+    "mode names or 'all'";
 
 static lw_status vary_error(const char *arg, const char *why, lw_error *err)
 {
@@ -71,8 +72,7 @@ static bool parse_span(const char *s, double *lo, double *hi, const char **step)
 }
 
 static lw_status parse_values(const char *arg, const char *vals, bool numeric,
-                              const lw_search *search, const char *dir, lw_vary *v,
-                              lw_error *err)
+                              const lw_search *search, lw_vary *v, lw_error *err)
 {
     size_t cap = 0;
     int series;
@@ -124,7 +124,6 @@ static lw_status parse_values(const char *arg, const char *vals, bool numeric,
             return vary_error(arg, "'all' is for pack.cell", err);
         /* the cell library folders only: a profile's own folder also holds
          * profiles, so cells kept beside a profile are named explicitly */
-        (void)dir;
         lw_search s;
         memset(&s, 0, sizeof s);
         for (size_t i = 0; search && i < search->n; i++)
@@ -167,8 +166,33 @@ static lw_status parse_values(const char *arg, const char *vals, bool numeric,
     return LW_OK;
 }
 
-lw_status lw_vary_parse(const char *arg, const lw_search *search, const char *profile_dir,
-                        lw_vary *v, lw_error *err)
+static lw_status parse_modes(const char *arg, const char *vals, const lw_profile *prof,
+                             lw_vary *v, lw_error *err)
+{
+    size_t cap = 0, nm = prof ? lw_profile_mode_count(prof) : 0;
+    if (nm == 0)
+        return vary_error(arg, "the profile has no [mode NAME] sections", err);
+    if (!strcmp(vals, "all")) {
+        for (size_t i = 0; i < nm; i++) {
+            lw_status st = push(v, &cap, lw_profile_mode_name(prof, i), err);
+            if (st != LW_OK)
+                return st;
+        }
+        return LW_OK;
+    }
+    lw_status st = parse_values(arg, vals, false, NULL, v, err);
+    for (size_t k = 0; st == LW_OK && k < v->n; k++) {
+        bool found = false;
+        for (size_t i = 0; i < nm && !found; i++)
+            found = !strcmp(v->values[k], lw_profile_mode_name(prof, i));
+        if (!found)
+            st = lw_error_set(err, LW_EINPUT, "--vary", 0, "'%s': the profile has no [mode %s]",
+                              arg, v->values[k]);
+    }
+    return st;
+}
+
+lw_status lw_vary_parse(const char *arg, const lw_profile *prof, lw_vary *v, lw_error *err)
 {
     memset(v, 0, sizeof *v);
     const char *eq = strchr(arg, '=');
@@ -179,18 +203,26 @@ lw_status lw_vary_parse(const char *arg, const lw_search *search, const char *pr
         return vary_error(arg, "key too long", err);
     memcpy(v->key, arg, klen);
     v->key[klen] = '\0';
-    char section[LW_INI_NAME_MAX], key[LW_INI_NAME_MAX];
-    const char *dot = strchr(v->key, '.');
-    if (!dot || (size_t)(dot - v->key) >= sizeof section || strlen(dot + 1) >= sizeof key)
-        return vary_error(arg, "the key is written section.key (e.g. drive.resistor_ohm)", err);
-    memcpy(section, v->key, (size_t)(dot - v->key));
-    section[dot - v->key] = '\0';
-    lw_strlcpy(key, dot + 1, sizeof key);
-    const lw_keydef *d = lw_key_find(lw_profile_keys, lw_profile_nkeys, section, key);
-    if (!d)
-        return lw_key_unknown(lw_profile_keys, lw_profile_nkeys, section, key, "--vary", 0, err);
-    bool numeric = d->type == LW_K_NUM || d->type == LW_K_INT;
-    lw_status st = parse_values(arg, eq + 1, numeric, search, profile_dir, v, err);
+    lw_status st;
+    if (!strcmp(v->key, "mode")) {
+        st = parse_modes(arg, eq + 1, prof, v, err);
+    } else {
+        char section[LW_INI_NAME_MAX], key[LW_INI_NAME_MAX];
+        const char *dot = strchr(v->key, '.');
+        if (!dot || (size_t)(dot - v->key) >= sizeof section || strlen(dot + 1) >= sizeof key)
+            return vary_error(arg,
+                              "the key is written section.key (e.g. drive.resistor_ohm) or mode",
+                              err);
+        memcpy(section, v->key, (size_t)(dot - v->key));
+        section[dot - v->key] = '\0';
+        lw_strlcpy(key, dot + 1, sizeof key);
+        const lw_keydef *d = lw_key_find(lw_profile_keys, lw_profile_nkeys, section, key);
+        if (!d)
+            return lw_key_unknown(lw_profile_keys, lw_profile_nkeys, section, key, "--vary", 0,
+                                  err);
+        bool numeric = d->type == LW_K_NUM || d->type == LW_K_INT;
+        st = parse_values(arg, eq + 1, numeric, prof ? &prof->search : NULL, v, err);
+    }
     if (st != LW_OK)
         lw_vary_clear(v);
     return st;
@@ -235,8 +267,13 @@ lw_status lw_sweep_run(const lw_profile *base, const lw_vary *vary, size_t nvary
             rem /= vary[k].n;
             sw->index[r * nvary + k] = i;
         }
-        for (size_t k = 0; k < nvary; k++)
-            lw_case_set(&sw->cases[r], vary[k].key, vary[k].values[sw->index[r * nvary + k]]);
+        for (size_t k = 0; k < nvary; k++) {
+            const char *val = vary[k].values[sw->index[r * nvary + k]];
+            if (!strcmp(vary[k].key, "mode"))
+                sw->cases[r].mode = val;
+            else
+                lw_case_set(&sw->cases[r], vary[k].key, val);
+        }
     }
     lw_batch_run(base, sw->cases, n, threads, progress, progress_ctx);
     for (size_t r = 0; r < n; r++) {

@@ -10,7 +10,8 @@
  *                     numbers: 2.2k, 4k7, 1M, 4R7)
  *   1..4  1..4:0.5    a numeric range, step 1 or the step after ':'
  *   E24:10..1k        the values of a preferred series in a range
- *   all               for pack.cell: every cell on the search path
+ *   all               for pack.cell: every cell on the search path;
+ *                     for mode: every mode of the profile
  */
 #ifndef LW_SWEEP_H
 #define LW_SWEEP_H
@@ -29,10 +30,11 @@ typedef struct lw_vary {
 /* The accepted forms, for messages and help. */
 extern const char *const lw_vary_forms;
 
-/* Parse "KEY=VALUES".  The key must be a profile key.  `search` and
- * `profile_dir` are used by pack.cell=all.  Free with lw_vary_clear. */
-lw_status lw_vary_parse(const char *arg, const lw_search *search, const char *profile_dir,
-                        lw_vary *v, lw_error *err);
+/* Parse "KEY=VALUES".  The key is a profile key, or `mode` for the
+ * profile's modes (a list of mode names, or all).  `prof` gives the modes
+ * and the cell search path (pack.cell=all); it may be NULL when neither is
+ * used.  Free with lw_vary_clear. */
+lw_status lw_vary_parse(const char *arg, const lw_profile *prof, lw_vary *v, lw_error *err);
 void lw_vary_clear(lw_vary *v);
 
 typedef struct lw_sweep {

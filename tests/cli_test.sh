@@ -138,6 +138,12 @@ awk 'NR == 6 { print "100,1.3"; next } { print }' "$EX/nimh-aa-8r2.csv" > "$TMP/
 expect 2 'back.csv:6: time_s = 100 does not increase' "$LW" fit cell "$TMP/back.csv" --load-ohm 8.2 --cutoff-v 1.0 --resistance-ohm 0.03
 expect 2 'give the end-point voltage' "$LW" fit cell "$EX/nimh-aa-8r2.csv" --load-ohm 8.2
 
+# regulated drives side by side, storage
+expect 0 '^\| mode \| runtime_h \| end_reason .*\| regulated_h \|' "$LW" sweep profiles/lantern-drives.ini --vary mode=all --format md
+expect 0 'after storage +24 months on the shelf' "$LW" run profiles/lantern-drives.ini --stored-months 24
+expect 2 "no \[mode turbo\]" "$LW" sweep profiles/lantern-drives.ini --vary mode=resistor,turbo
+expect 0 'converter' "$LW" table profiles/lantern-drives.ini
+
 # regression of run --format csv on every bundled profile and mode
 compare() { # compare GOLDEN ACTUAL
     awk -F, -v g="$1" '

@@ -234,7 +234,7 @@ static double runtime_on(const lw_cell *cell, double r_ohm, double cutoff_v)
 
 /* Logs from the example "true" cell at 3.9 and 8.2 ohm, fitted back; the
  * fitted cell, run at a load in between (5.6 ohm) to the same end point,
- * must give the original runtime within 1 % (issue #5). */
+ * must give the original runtime within 1 %. */
 static void cell_fit_round_trip(void **state)
 {
     (void)state;

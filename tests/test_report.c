@@ -22,7 +22,7 @@ static char *render(const lw_rtable *t, lw_format fmt)
     return buf;
 }
 
-/* The CSV columns that issue #3 names exactly must all be present. */
+/* The CSV columns documented in docs/formats.md must all be present. */
 static void run_columns_contract(void **state)
 {
     (void)state;

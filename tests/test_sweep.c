@@ -11,33 +11,41 @@ static void vary_forms(void **state)
     lw_vary v;
     lw_error e;
     lw_error_clear(&e);
-    assert_int_equal(lw_vary_parse("drive.resistor_ohm=22,4k7,1M", NULL, ".", &v, &e), LW_OK);
+    assert_int_equal(lw_vary_parse("drive.resistor_ohm=22,4k7,1M", NULL, &v, &e), LW_OK);
     assert_int_equal(v.n, 3);
     assert_string_equal(v.values[1], "4700");
     assert_string_equal(v.values[2], "1000000");
     lw_vary_clear(&v);
-    assert_int_equal(lw_vary_parse("pack.series=1..4", NULL, ".", &v, &e), LW_OK);
+    assert_int_equal(lw_vary_parse("pack.series=1..4", NULL, &v, &e), LW_OK);
     assert_int_equal(v.n, 4);
     assert_string_equal(v.values[3], "4");
     lw_vary_clear(&v);
-    assert_int_equal(lw_vary_parse("pack.ambient_c=-20..20:10", NULL, ".", &v, &e), LW_OK);
+    assert_int_equal(lw_vary_parse("pack.ambient_c=-20..20:10", NULL, &v, &e), LW_OK);
     assert_int_equal(v.n, 5);
     assert_string_equal(v.values[0], "-20");
     lw_vary_clear(&v);
     /* IEC 60063 E12 from 100 to 1k: 12 values and 1000 */
-    assert_int_equal(lw_vary_parse("drive.resistor_ohm=E12:100..1k", NULL, ".", &v, &e), LW_OK);
+    assert_int_equal(lw_vary_parse("drive.resistor_ohm=E12:100..1k", NULL, &v, &e), LW_OK);
     assert_int_equal(v.n, 13);
     assert_string_equal(v.values[5], "270");
     lw_vary_clear(&v);
-    assert_int_equal(lw_vary_parse("pack.cell=LR6-alkaline,HR6-nimh", NULL, ".", &v, &e), LW_OK);
+    assert_int_equal(lw_vary_parse("pack.cell=LR6-alkaline,HR6-nimh", NULL, &v, &e), LW_OK);
     assert_string_equal(v.values[1], "HR6-nimh");
     lw_vary_clear(&v);
-    lw_search s;
-    memset(&s, 0, sizeof s);
-    lw_search_add(&s, LW_SOURCE_ROOT "/cells");
-    assert_int_equal(lw_vary_parse("pack.cell=all", &s, ".", &v, &e), LW_OK);
+    lw_profile p;
+    load_fixture("[mode a]\ndrive.resistor_ohm = 33\n[mode b]\ndrive.resistor_ohm = 68\n", &p);
+    lw_search_add(&p.search, LW_SOURCE_ROOT "/cells");
+    assert_int_equal(lw_vary_parse("pack.cell=all", &p, &v, &e), LW_OK);
     assert_true(v.n >= 7);
     lw_vary_clear(&v);
+    assert_int_equal(lw_vary_parse("mode=all", &p, &v, &e), LW_OK);
+    assert_int_equal(v.n, 2);
+    assert_string_equal(v.values[1], "b");
+    lw_vary_clear(&v);
+    lw_error_clear(&e);
+    assert_int_equal(lw_vary_parse("mode=a,zz", &p, &v, &e), LW_EINPUT);
+    assert_non_null(strstr(e.msg, "no [mode zz]"));
+    lw_profile_clear(&p);
 }
 
 static void vary_refusals_show_the_forms(void **state)
@@ -52,7 +60,7 @@ static void vary_refusals_show_the_forms(void **state)
         lw_vary v;
         lw_error e;
         lw_error_clear(&e);
-        if (lw_vary_parse(bad[i], NULL, ".", &v, &e) != LW_EINPUT)
+        if (lw_vary_parse(bad[i], NULL, &v, &e) != LW_EINPUT)
             fail_msg("accepted '%s'", bad[i]);
         assert_string_equal(e.file, "--vary");
         assert_non_null(strstr(e.msg, "E24:10..1k"));
@@ -60,7 +68,7 @@ static void vary_refusals_show_the_forms(void **state)
     lw_vary v;
     lw_error e;
     lw_error_clear(&e);
-    assert_int_equal(lw_vary_parse("drive.resistr_ohm=1,2", NULL, ".", &v, &e), LW_EINPUT);
+    assert_int_equal(lw_vary_parse("drive.resistr_ohm=1,2", NULL, &v, &e), LW_EINPUT);
     assert_non_null(strstr(e.msg, "did you mean 'drive.resistor_ohm'"));
 }
 
@@ -74,8 +82,8 @@ static void sweep_rows_equal_individual_runs(void **state)
     lw_vary v[2];
     lw_error e;
     lw_error_clear(&e);
-    assert_int_equal(lw_vary_parse("pack.cell=flat,slope", NULL, ".", &v[0], &e), LW_OK);
-    assert_int_equal(lw_vary_parse("drive.resistor_ohm=E12:10..100", NULL, ".", &v[1], &e),
+    assert_int_equal(lw_vary_parse("pack.cell=flat,slope", NULL, &v[0], &e), LW_OK);
+    assert_int_equal(lw_vary_parse("drive.resistor_ohm=E12:10..100", NULL, &v[1], &e),
                      LW_OK);
     lw_sweep sw;
     assert_int_equal(lw_sweep_run(&p, v, 2, 2, NULL, NULL, &sw, &e), LW_OK);
@@ -119,7 +127,7 @@ static void sweep_reports_a_bad_row(void **state)
     lw_vary v;
     lw_error e;
     lw_error_clear(&e);
-    assert_int_equal(lw_vary_parse("pack.cell=flat,nosuch", NULL, ".", &v, &e), LW_OK);
+    assert_int_equal(lw_vary_parse("pack.cell=flat,nosuch", NULL, &v, &e), LW_OK);
     lw_sweep sw;
     assert_int_equal(lw_sweep_run(&p, &v, 1, 2, NULL, NULL, &sw, &e), LW_EINPUT);
     assert_non_null(strstr(e.msg, "no cell named 'nosuch'"));

@@ -1,0 +1,271 @@
+/*
+ * test_drives.c - regulated drives, PWM and storage: linear-cc, converter,
+ * duty cycle, self-discharge and standby drain, each against a published
+ * law or an independent reference, and energy conservation for every drive.
+ */
+#include "testutil.h"
+#include <gsl/gsl_poly.h>
+#include "lights.h"
+
+static void constant_led(lw_light *l, double vf)
+{
+    l->led.model = LW_LED_CONSTANT;
+    l->led.forward_v = vf;
+}
+
+static void expect_conservation(const lw_result *r)
+{
+    /* drawn = LED + resistors + internal + driver, to 1e-9 */
+    assert_close(r->energy_drawn_wh,
+                 r->energy_led_wh + r->energy_resistor_wh + r->energy_internal_wh +
+                     r->energy_driver_wh,
+                 1e-9);
+}
+
+/* linear-cc in regulation on a flat cell: the current is the set current
+ * all the way, so the runtime is charge / current (Coulomb counting), all
+ * of it in regulation. */
+static void linear_cc_coulomb_counting(void **state)
+{
+    (void)state;
+    lw_light l;
+    base_light(&l);
+    flat_cell(&l, 4.0, 0.2, 2.0, 0.4, 1.0, 2.0);
+    constant_led(&l, 3.0);
+    l.led.strings = 2;
+    l.drive.type = LW_DRIVE_LINEAR_CC;
+    l.drive.set_a = 0.050;
+    l.drive.dropout_v = 0.3;
+    lw_result r = run_ok(&l, false);
+    assert_int_equal(r.end_reason, LW_END_CAPACITY);
+    assert_close(r.runtime_h, 2.0 / (2 * 0.050), 1e-12);
+    assert_close(r.regulated_h, r.runtime_h, 1e-12);
+    expect_conservation(&r);
+    lw_light_clear(&l);
+}
+
+/* Regulator dissipation by Kirchhoff's voltage law: per string the
+ * regulator drops E - I (Rs + M r) - N Vf, and dissipates that times I. */
+static void linear_cc_dissipation_kvl(void **state)
+{
+    (void)state;
+    lw_light l;
+    base_light(&l);
+    sloping_cell(&l);
+    l.pack.series = 3;
+    constant_led(&l, 2.9);
+    l.led.strings = 2;
+    l.drive.type = LW_DRIVE_LINEAR_CC;
+    l.drive.set_a = 0.050;
+    l.drive.dropout_v = 0.25;
+    l.drive.resistor_ohm = 2.0;
+    lw_error e;
+    lw_error_clear(&e);
+    bool saw_sat = false, saw_reg = false;
+    for (double d = 0; d <= 1.0; d += 0.02) {
+        lw_point p;
+        assert_int_equal(lw_light_point(&l, d, false, &p, &e), LW_OK);
+        double e_v = 3 * p.ocv_v, r_share = 3 * 2 * p.r_cell_ohm;
+        double drop = e_v - p.led_a * (2.0 + r_share) - 2.9;
+        assert_close(p.p_drv_w, 2 * p.led_a * drop, 1e-9);
+        if (p.regime == LW_REGIME_REGULATED) {
+            saw_reg = true;
+            assert_close(p.led_a, 0.050, 0);
+            assert_true(drop >= 0.25 - 1e-12);
+        } else if (p.led_a > 0) {
+            saw_sat = true;
+            assert_close(drop, 0.25, 1e-9); /* saturated: exactly the dropout */
+        }
+    }
+    assert_true(saw_reg && saw_sat);
+    lw_result r = run_ok(&l, false);
+    assert_true(r.regulated_h > 0 && r.regulated_h < r.runtime_h);
+    expect_conservation(&r);
+    lw_light_clear(&l);
+}
+
+/* The converter's pack current against GSL's gsl_poly_solve_quadratic on
+ * R Ip^2 - (E + R Iq) Ip + (E Iq + P) = 0 (smaller root), and no real root
+ * beyond the discriminant condition (E + R Iq)^2 = 4 R (E Iq + P). */
+static void converter_quadratic_against_gsl(void **state)
+{
+    (void)state;
+    const double es[] = {3.0, 4.5, 7.4}, rs[] = {0.05, 0.4, 2.0}, iqs[] = {0, 60e-6, 1e-3},
+                 ps[] = {0.1, 0.5, 1.0};
+    for (size_t a = 0; a < 3; a++)
+        for (size_t b = 0; b < 3; b++)
+            for (size_t c = 0; c < 3; c++)
+                for (size_t d = 0; d < 3; d++) {
+                    double e_v = es[a], r = rs[b], iq = iqs[c], p = ps[d];
+                    double x0, x1, ip;
+                    int n = gsl_poly_solve_quadratic(r, -(e_v + r * iq), e_v * iq + p, &x0, &x1);
+                    bool ok = lw_converter_input_current(e_v, r, iq, p, &ip);
+                    assert_int_equal(ok, n == 2);
+                    if (ok)
+                        assert_close(ip, fmin(x0, x1), 1e-12);
+                }
+    /* at the published discriminant condition, from both sides */
+    double e_v = 3.0, r = 1.0, pmax = e_v * e_v / (4 * r), ip;
+    assert_true(lw_converter_input_current(e_v, r, 0, pmax * (1 - 1e-9), &ip));
+    assert_close(ip, e_v / (2 * r), 1e-4);
+    assert_false(lw_converter_input_current(e_v, r, 0, pmax * (1 + 1e-9), &ip));
+}
+
+static void converter_light(lw_light *l, double fallback_a)
+{
+    base_light(l);
+    sloping_cell(l);
+    l->pack.series = 2;
+    /* a deliberately weak pack so that the converter drops out */
+    for (size_t i = 0; i < l->pack.cell.res->n; i++)
+        l->pack.cell.res->y[i] *= 6.0;
+    constant_led(l, 3.0);
+    l->drive.type = LW_DRIVE_CONVERTER;
+    l->drive.set_a = 0.3;
+    l->drive.efficiency_pct = 85;
+    l->drive.quiescent_a = 100e-6;
+    l->drive.min_input_v = 1.0;
+    l->drive.fallback_a = fallback_a;
+    l->cutoff.cell_v = 0.3;
+}
+
+/* Input power = output power / efficiency + quiescent draw at every point
+ * (the converter model), and energy conservation; the run ends exactly at
+ * the dropout (discriminant zero or undervoltage). */
+static void converter_power_balance_and_dropout(void **state)
+{
+    (void)state;
+    lw_light l;
+    converter_light(&l, 0.0);
+    lw_error e;
+    lw_error_clear(&e);
+    for (double d = 0; d <= 0.6; d += 0.05) {
+        lw_point p;
+        assert_int_equal(lw_light_point(&l, d, false, &p, &e), LW_OK);
+        if (p.regime == LW_REGIME_DROPOUT)
+            continue;
+        double p_in = p.p_drawn_w - p.p_int_w; /* at the converter's input */
+        assert_close(p_in, p.p_led_w / 0.85 + p.pack_v * 100e-6, 1e-12);
+    }
+    lw_result r = run_ok(&l, false);
+    assert_int_equal(r.end_reason, LW_END_DRIVER_DROPOUT);
+    assert_near(r.final.regulation_margin, 0.0, 1e-9);
+    assert_close(r.regulated_h, r.runtime_h, 1e-12);
+    expect_conservation(&r);
+    /* with a fallback level the run goes on past the dropout */
+    lw_light f;
+    converter_light(&f, 0.02);
+    f.cutoff.relative_pct = 1; /* let the fallback run to its own end */
+    lw_result rf = run_ok(&f, false);
+    assert_true(rf.runtime_h > r.runtime_h);
+    assert_close(rf.regulated_h, r.runtime_h, 1e-9);
+    expect_conservation(&rf);
+    lw_light_clear(&f);
+    lw_light_clear(&l);
+}
+
+/* PWM on a flat cell with a constant-voltage LED: duty D gives D times the
+ * light output and 1/D times the runtime (k = 1: Coulomb counting); the
+ * peak current is what the rating check sees. */
+static void pwm_scales_output_and_runtime(void **state)
+{
+    (void)state;
+    lw_light l;
+    base_light(&l);
+    flat_cell(&l, 3.0, 0.5, 2.0, 0.4, 1.0, 2.0);
+    constant_led(&l, 2.0);
+    l.drive.resistor_ohm = 49.5; /* 20 mA peak */
+    l.led.max_current_a = 0.019;
+    lw_result full = run_ok(&l, false);
+    l.drive.duty_pct = 25;
+    lw_result pwm = run_ok(&l, false);
+    assert_close(pwm.flux_ref_lm, 0.25 * full.flux_ref_lm, 1e-12);
+    assert_close(pwm.runtime_h, full.runtime_h / 0.25, 1e-12);
+    assert_close(pwm.initial.led_a, 0.020, 1e-12);            /* peak */
+    assert_true(pwm.warnings & LW_WARN_LED_OVER_MAX);         /* rated on the peak */
+    assert_close(pwm.lumen_hours, full.lumen_hours, 1e-12);   /* same charge, same light */
+    expect_conservation(&pwm);
+    lw_light_clear(&l);
+}
+
+/* Storage: the cell keeps (1 - s/100)^M of its charge after M months at s %
+ * a month (compounded monthly on the charge left, as docs/model.md states),
+ * less the standby drain; the run starts from there. */
+static void stored_run_starting_depth(void **state)
+{
+    (void)state;
+    lw_light l;
+    base_light(&l);
+    flat_cell(&l, 3.0, 0.5, 2.0, 0.4, 1.0, 2.0);
+    constant_led(&l, 2.0);
+    l.drive.resistor_ohm = 49.5;
+    l.pack.cell.self_discharge_pct_month = 2.0;
+    l.pack.stored_months = 12;
+    double kept = pow(0.98, 12);
+    assert_close(lw_stored_depth(&l), 1.0 - kept, 1e-12);
+    lw_result r = run_ok(&l, false);
+    assert_close(r.start_depth, 1.0 - kept, 1e-12);
+    assert_close(r.runtime_h, kept * 2.0 / 0.020, 1e-9);
+    /* standby drain of 10 uA for the same 12 months, two cells in parallel */
+    l.drive.standby_a = 10e-6;
+    l.pack.parallel = 2;
+    double drained = 10e-6 * 12 * 730.5 / (2 * 2.0);
+    assert_close(lw_stored_depth(&l), 1.0 - kept + drained, 1e-12);
+    /* nothing left after enough years */
+    l.pack.stored_months = 600;
+    assert_close(lw_stored_depth(&l), 1.0, 0);
+    lw_light_clear(&l);
+}
+
+/* Energy conservation for every drive type on a sloping cell. */
+static void energy_conserved_for_every_drive(void **state)
+{
+    (void)state;
+    for (int t = 0; t < 4; t++) {
+        lw_light l;
+        base_light(&l);
+        sloping_cell(&l);
+        l.pack.series = 3;
+        l.led.model = LW_LED_SHOCKLEY;
+        l.led.ideality = 3.0;
+        l.led.saturation_a = 4.6e-18;
+        l.led.series_ohm = 1.5;
+        l.led.junction_c = 25;
+        l.led.strings = 2;
+        l.drive.resistor_ohm = 33;
+        if (t == 1) {
+            l.drive.type = LW_DRIVE_LINEAR_CC;
+            l.drive.resistor_ohm = 1.0;
+            l.drive.set_a = 0.05;
+            l.drive.dropout_v = 0.25;
+        } else if (t == 2) {
+            l.drive.type = LW_DRIVE_CONVERTER;
+            l.drive.resistor_ohm = 0;
+            l.drive.set_a = 0.05;
+            l.drive.efficiency_pct = 85;
+            l.drive.quiescent_a = 60e-6;
+            l.drive.min_input_v = 2.5;
+            l.drive.fallback_a = 0.005;
+        } else if (t == 3) {
+            l.drive.duty_pct = 40;
+        }
+        lw_result r = run_ok(&l, false);
+        expect_conservation(&r);
+        assert_true(r.runtime_h > 0);
+        lw_light_clear(&l);
+    }
+}
+
+int main(void)
+{
+    const struct CMUnitTest tests[] = {
+        cmocka_unit_test(linear_cc_coulomb_counting),
+        cmocka_unit_test(linear_cc_dissipation_kvl),
+        cmocka_unit_test(converter_quadratic_against_gsl),
+        cmocka_unit_test(converter_power_balance_and_dropout),
+        cmocka_unit_test(pwm_scales_output_and_runtime),
+        cmocka_unit_test(stored_run_starting_depth),
+        cmocka_unit_test(energy_conserved_for_every_drive),
+    };
+    return cmocka_run_group_tests(tests, NULL, NULL);
+}
