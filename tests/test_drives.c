@@ -164,6 +164,31 @@ static void converter_power_balance_and_dropout(void **state)
     lw_light_clear(&l);
 }
 
+/* An efficiency table against input voltage: the converter iterates eta
+ * and V_in to a fixed point, where P_in = P_out / eta(V_in) + V_in I_q. */
+static void converter_efficiency_table(void **state)
+{
+    (void)state;
+    lw_light l;
+    converter_light(&l, 0.0);
+    const double vin[] = {1.0, 2.0, 3.0, 4.0}, eta[] = {70, 80, 88, 90};
+    lw_error e;
+    lw_error_clear(&e);
+    l.drive.efficiency = lw_table_new(vin, eta, 4, &e);
+    assert_non_null(l.drive.efficiency);
+    for (double d = 0; d <= 0.1; d += 0.02) {
+        lw_point p;
+        assert_int_equal(lw_light_point(&l, d, false, &p, &e), LW_OK);
+        if (p.regime == LW_REGIME_DROPOUT)
+            continue;
+        double eta_v = lw_table_linear(l.drive.efficiency, p.pack_v) / 100.0;
+        assert_close(p.p_drawn_w - p.p_int_w, p.p_led_w / eta_v + p.pack_v * 100e-6, 1e-10);
+    }
+    lw_result r = run_ok(&l, false);
+    expect_conservation(&r);
+    lw_light_clear(&l);
+}
+
 /* PWM on a flat cell with a constant-voltage LED: duty D gives D times the
  * light output and 1/D times the runtime (k = 1: Coulomb counting); the
  * peak current is what the rating check sees. */
@@ -263,6 +288,7 @@ int main(void)
         cmocka_unit_test(linear_cc_dissipation_kvl),
         cmocka_unit_test(converter_quadratic_against_gsl),
         cmocka_unit_test(converter_power_balance_and_dropout),
+        cmocka_unit_test(converter_efficiency_table),
         cmocka_unit_test(pwm_scales_output_and_runtime),
         cmocka_unit_test(stored_run_starting_depth),
         cmocka_unit_test(energy_conserved_for_every_drive),
