@@ -190,6 +190,20 @@ lw_status load_profile(const char *path, const common_opts *o, lw_profile *prof,
     return st;
 }
 
+lw_status write_chart(const char *path, const lw_chart *chart, lw_error *err)
+{
+    lw_outfile out;
+    lw_status st = lw_outfile_open(&out, path, err);
+    if (st != LW_OK)
+        return st;
+    st = lw_plot_svg(out.fp, chart, err);
+    if (st != LW_OK) {
+        lw_outfile_abort(&out);
+        return st;
+    }
+    return lw_outfile_commit(&out, err);
+}
+
 /* ---- check ---- */
 
 static void print_summary(const lw_profile *p)

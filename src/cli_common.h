@@ -31,6 +31,8 @@ int usage_error(const char *cmd, const char *msg);
 void build_search(lw_search *s);
 bool common_option(int c, common_opts *o, const char *cmd, int *rc);
 lw_status load_profile(const char *path, const common_opts *o, lw_profile *prof, lw_error *err);
+/* Write a chart as SVG to path, atomically. */
+lw_status write_chart(const char *path, const lw_chart *chart, lw_error *err);
 
 /* Commands of cli_design.c and their help texts. */
 int lw_cmd_sweep(int argc, char **argv);

@@ -281,15 +281,7 @@ static lw_status sweep_plot(const char *path, const lw_profile *prof, const lw_s
                     .log = xmax > 30 * xmin, .from_zero = !(xmax > 30 * xmin)};
     p->y = (lw_axis){.label = "runtime to cutoff (h)", .log = ymax > 30 * ymin,
                      .from_zero = !(ymax > 30 * ymin)};
-    lw_outfile out;
-    lw_status st = lw_outfile_open(&out, path, err);
-    if (st == LW_OK) {
-        st = lw_plot_svg(out.fp, &c, err);
-        if (st == LW_OK)
-            st = lw_outfile_commit(&out, err);
-        else
-            lw_outfile_abort(&out);
-    }
+    lw_status st = write_chart(path, &c, err);
     free(xy);
     free(labels);
     return st;

@@ -191,15 +191,7 @@ static lw_status fit_plot(const char *path, const led_data *d, const lw_led_fit 
         p->series[p->nseries++] = (lw_series){.name = "Shockley", .x = ima, .y = rs, .n = n,
                                               .points = true, .colour = 3};
     p->refs[p->nrefs++] = (lw_refline){0.0, "zero"};
-    lw_outfile out;
-    lw_status st = lw_outfile_open(&out, path, err);
-    if (st == LW_OK) {
-        st = lw_plot_svg(out.fp, &c, err);
-        if (st == LW_OK)
-            st = lw_outfile_commit(&out, err);
-        else
-            lw_outfile_abort(&out);
-    }
+    lw_status st = write_chart(path, &c, err);
     free(b);
     return st;
 }

@@ -118,13 +118,6 @@ static void outfile_is_atomic(void **state)
     assert_int_equal(lw_outfile_open(&o, "/nonexistent-dir/x.csv", &e), LW_EIO);
 }
 
-static int teardown(void **state)
-{
-    (void)state;
-    tmp_cleanup();
-    return 0;
-}
-
 int main(void)
 {
     const struct CMUnitTest tests[] = {
@@ -134,5 +127,5 @@ int main(void)
         cmocka_unit_test(writer_quotes_per_rfc4180),
         cmocka_unit_test(outfile_is_atomic),
     };
-    return cmocka_run_group_tests(tests, NULL, teardown);
+    return cmocka_run_group_tests(tests, NULL, tmp_teardown);
 }

@@ -222,13 +222,6 @@ static void spec_rounding(void **state)
     assert_true(isnan(lw_recommended_rating_w(6.0)));
 }
 
-static int teardown(void **state)
-{
-    (void)state;
-    tmp_cleanup();
-    return 0;
-}
-
 int main(void)
 {
     const struct CMUnitTest tests[] = {
@@ -240,5 +233,5 @@ int main(void)
         cmocka_unit_test(photometry_check_values),
         cmocka_unit_test(spec_rounding),
     };
-    return cmocka_run_group_tests(tests, NULL, teardown);
+    return cmocka_run_group_tests(tests, NULL, tmp_teardown);
 }

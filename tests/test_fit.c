@@ -347,13 +347,6 @@ static void log_refusals(void **state)
     lw_dlog_clear(&log);
 }
 
-static int teardown(void **state)
-{
-    (void)state;
-    tmp_cleanup();
-    return 0;
-}
-
 int main(void)
 {
     const struct CMUnitTest tests[] = {
@@ -367,5 +360,5 @@ int main(void)
         cmocka_unit_test(one_log_constant_current),
         cmocka_unit_test(log_refusals),
     };
-    return cmocka_run_group_tests(tests, NULL, teardown);
+    return cmocka_run_group_tests(tests, NULL, tmp_teardown);
 }

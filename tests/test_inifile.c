@@ -170,13 +170,6 @@ static void suggestions_for_misspellings(void **state)
     assert_int_equal(lw_edit_distance("kitten", "sitting"), 3);
 }
 
-static int teardown(void **state)
-{
-    (void)state;
-    tmp_cleanup();
-    return 0;
-}
-
 int main(void)
 {
     const struct CMUnitTest tests[] = {
@@ -188,5 +181,5 @@ int main(void)
         cmocka_unit_test(schema_refusals_name_key_and_range),
         cmocka_unit_test(suggestions_for_misspellings),
     };
-    return cmocka_run_group_tests(tests, NULL, teardown);
+    return cmocka_run_group_tests(tests, NULL, tmp_teardown);
 }

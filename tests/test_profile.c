@@ -315,13 +315,6 @@ static void bundled_profiles_load(void **state)
     globfree(&g);
 }
 
-static int teardown(void **state)
-{
-    (void)state;
-    tmp_cleanup();
-    return 0;
-}
-
 int main(void)
 {
     const struct CMUnitTest tests[] = {
@@ -333,5 +326,5 @@ int main(void)
         cmocka_unit_test(cell_library_loads),
         cmocka_unit_test(bundled_profiles_load),
     };
-    return cmocka_run_group_tests(tests, NULL, teardown);
+    return cmocka_run_group_tests(tests, NULL, tmp_teardown);
 }

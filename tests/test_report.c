@@ -111,13 +111,6 @@ static void hours_formatting(void **state)
     assert_string_equal(w, "led-over-max;resistor-hot");
 }
 
-static int teardown(void **state)
-{
-    (void)state;
-    tmp_cleanup();
-    return 0;
-}
-
 int main(void)
 {
     const struct CMUnitTest tests[] = {
@@ -126,5 +119,5 @@ int main(void)
         cmocka_unit_test(nice_ticks_are_round),
         cmocka_unit_test(hours_formatting),
     };
-    return cmocka_run_group_tests(tests, NULL, teardown);
+    return cmocka_run_group_tests(tests, NULL, tmp_teardown);
 }

@@ -135,13 +135,6 @@ static void sweep_reports_a_bad_row(void **state)
     lw_profile_clear(&p);
 }
 
-static int teardown(void **state)
-{
-    (void)state;
-    tmp_cleanup();
-    return 0;
-}
-
 int main(void)
 {
     const struct CMUnitTest tests[] = {
@@ -150,5 +143,5 @@ int main(void)
         cmocka_unit_test(sweep_rows_equal_individual_runs),
         cmocka_unit_test(sweep_reports_a_bad_row),
     };
-    return cmocka_run_group_tests(tests, NULL, teardown);
+    return cmocka_run_group_tests(tests, NULL, tmp_teardown);
 }

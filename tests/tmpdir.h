@@ -49,4 +49,12 @@ static inline void tmp_cleanup(void)
         fprintf(stderr, "could not remove %s\n", lw_tmp_root);
 }
 
+/* cmocka group teardown: remove the scratch folder. */
+static inline int tmp_teardown(void **state)
+{
+    (void)state;
+    tmp_cleanup();
+    return 0;
+}
+
 #endif
