@@ -59,6 +59,8 @@ typedef struct engine {
     size_t cap_pieces;
     size_t seg;               /* curve interval being integrated; SIZE_MAX: search */
     double d0;                /* depth at switch-on */
+    double end_d;             /* depth of end_pt: the last interval end solved */
+    lw_point end_pt;
     bool done;
 } engine;
 
@@ -400,8 +402,11 @@ static lw_status run_interval(engine *e, double a, double b, lw_point pa, int de
             /* accept if the error estimate allows; otherwise halve with events */
             double kk[NQ], gg[NQ];
             gk_sums(a, b, pts, kk, gg);
-            if (accurate(e, kk, gg))
+            if (accurate(e, kk, gg)) {
+                e->end_d = b; /* the next interval starts from this point */
+                e->end_pt = pts[NODES];
                 return integrate_nodes(e, a, b, pts, 0);
+            }
             double m = 0.5 * (a + b);
             lw_point pm;
             st = run_interval(e, a, m, pa, depth + 1);
@@ -539,8 +544,9 @@ static lw_status run_body(engine *e, lw_point p0)
             return st;
         if (!e->done) {
             a = b;
-            st = eval(e, a, &pa);
-            if (st != LW_OK)
+            if (e->end_d == b)
+                pa = e->end_pt;
+            else if ((st = eval(e, a, &pa)) != LW_OK)
                 return st;
         }
     }
@@ -556,7 +562,7 @@ lw_status lw_run(const lw_light *light, const lw_run_options *opt, lw_result *re
         opt = &defaults;
     memset(res, 0, sizeof *res);
     res->time_to_half_h = NAN;
-    engine e = {.l = light, .opt = opt, .res = res, .err = err, .seg = SIZE_MAX};
+    engine e = {.l = light, .opt = opt, .res = res, .err = err, .seg = SIZE_MAX, .end_d = -1};
     e.d0 = fmax(opt->start_depth, lw_stored_depth(light));
     res->start_depth = e.d0;
     lw_status st = lw_worst_case(light, &res->initial, err);
