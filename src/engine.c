@@ -42,7 +42,10 @@ static const double wg[4] = {0.129484966168869693270611432679082,
 enum { Q_T, Q_LMH, Q_LED, Q_RES, Q_INT, Q_DRV, Q_DRAWN, NQ };
 
 enum event_kind { EV_STOP, EV_RECORD, EV_KINK };
-enum { EV_RELATIVE, EV_FLOOR, EV_CELL_V, EV_DROPOUT, EV_HALF, EV_PEUKERT, EV_REGULATION, NEV };
+enum {
+    EV_RELATIVE, EV_FLOOR, EV_CELL_V, EV_DROPOUT, EV_HALF, EV_PEUKERT, EV_REGULATION, EV_KNOT,
+    NEV
+};
 
 typedef struct engine {
     const lw_light *l;
@@ -59,6 +62,8 @@ typedef struct engine {
     size_t cap_pieces;
     size_t seg;               /* curve interval being integrated; SIZE_MAX: search */
     double d0;                /* depth at switch-on */
+    double knot_lo, knot_hi;  /* LED-table knots around the current (EV_KNOT) */
+    double knot_probe;        /* LED current at the sample where EV_KNOT fired */
     double end_d;             /* depth of end_pt: the last interval end solved */
     lw_point end_pt;
     bool done;
@@ -84,7 +89,7 @@ static enum event_kind kind_of(int k)
 {
     if (k == EV_HALF)
         return EV_RECORD;
-    if (k == EV_PEUKERT || k == EV_REGULATION)
+    if (k == EV_PEUKERT || k == EV_REGULATION || k == EV_KNOT)
         return EV_KINK;
     if (k == EV_DROPOUT)
         return EV_KINK; /* a stop or a switch to fallback: decided when it fires */
@@ -105,6 +110,8 @@ static double event_g(const engine *e, int k, const lw_point *pt)
         return pt->flux_lm - 0.5 * e->flux_ref;
     case EV_PEUKERT:
         return l->drive.duty_pct / 100.0 * pt->cell_a - e->kink_a;
+    case EV_KNOT:
+        return fmin(pt->led_a - e->knot_lo, e->knot_hi - pt->led_a);
     case EV_DROPOUT:
     case EV_REGULATION:
     default:
@@ -112,15 +119,42 @@ static double event_g(const engine *e, int k, const lw_point *pt)
     }
 }
 
-/* Has event k fired at pt (given the state at the start of the piece)? */
+/* Has event k fired at pt (given the state at the start of the piece)?
+ * EV_KNOT fires when the current leaves its interval of table knots. */
 static bool fired(const engine *e, int k, const lw_point *pt)
 {
     if (!e->active[k])
         return false;
     double g = event_g(e, k, pt);
-    if (kind_of(k) == EV_KINK)
+    if (kind_of(k) == EV_KINK && k != EV_KNOT)
         return (g > 0.0) != e->positive[k];
     return g <= 0.0;
+}
+
+/* The knots of the LED's I-V and flux tables that bracket current i: the
+ * interpolants are cubic between knots and only C1 across them, so the
+ * integration breaks where the current crosses one. */
+static void knot_interval(engine *e, double i)
+{
+    const lw_led *led = &e->l->led;
+    const lw_table *t[2] = {led->model == LW_LED_TABLE ? led->iv : NULL, led->flux};
+    e->knot_lo = -INFINITY;
+    e->knot_hi = INFINITY;
+    for (int k = 0; k < 2; k++) {
+        if (!t[k])
+            continue;
+        const double *x = t[k]->x;
+        size_t n = t[k]->n;
+        if (i < x[0]) {
+            e->knot_hi = fmin(e->knot_hi, x[0]);
+        } else if (i >= x[n - 1]) {
+            e->knot_lo = fmax(e->knot_lo, x[n - 1]);
+        } else {
+            size_t j = lw_table_find(t[k], i);
+            e->knot_lo = fmax(e->knot_lo, x[j]);
+            e->knot_hi = fmin(e->knot_hi, x[j + 1]);
+        }
+    }
 }
 
 struct locate_ctx {
@@ -331,10 +365,34 @@ static lw_status fire(engine *e, int k, double d, lw_point *pt)
         break;
     case EV_KINK:
     default:
-        e->positive[k] = !e->positive[k];
+        if (k == EV_KNOT)
+            knot_interval(e, e->knot_probe); /* the interval the current moved into */
+        else
+            e->positive[k] = !e->positive[k];
         break;
     }
     return LW_OK;
+}
+
+/* Time (h) from a to b, to the run's tolerance, without touching the totals:
+ * for an event that needs its time but does not break the integration. */
+static lw_status time_integral(engine *e, double a, double b, int depth, double *t_h)
+{
+    if (!(b > a))
+        return LW_OK;
+    lw_point pts[NODES];
+    lw_status st = eval_nodes(e, a, b, pts);
+    if (st != LW_OK)
+        return st;
+    double k[NQ], err[NQ];
+    gk_sums(a, b, pts, k, err);
+    if (err[Q_T] <= e->opt->rtol * fabs(k[Q_T]) || depth >= e->opt->max_halvings) {
+        *t_h += k[Q_T];
+        return LW_OK;
+    }
+    double m = 0.5 * (a + b);
+    st = time_integral(e, a, m, depth + 1, t_h);
+    return st == LW_OK ? time_integral(e, m, b, depth + 1, t_h) : st;
 }
 
 /* After the converter falls back to its low level the output has jumped:
@@ -345,6 +403,10 @@ static lw_status settle(engine *e, double d, lw_point *pt)
     for (int k = 0; k < NEV && !e->done; k++) {
         if (!e->active[k])
             continue;
+        if (k == EV_KNOT) {
+            knot_interval(e, pt->led_a);
+            continue;
+        }
         if (kind_of(k) == EV_KINK) {
             e->positive[k] = event_g(e, k, pt) > 0.0;
             continue;
@@ -374,9 +436,14 @@ static lw_status run_interval(engine *e, double a, double b, lw_point pa, int de
             st = eval(e, b, &pts[NODES]);
         if (st != LW_OK)
             return st;
-        /* earliest sample interval in which any active event fires */
-        int first_k = -1;
-        double d_star = b;
+        /* earliest sample interval in which any active event fires; a
+         * record event (50 %) is timed without breaking the integration,
+         * and the scan repeats on the same nodes without it */
+        int first_k;
+        double d_star;
+    rescan:
+        first_k = -1;
+        d_star = b;
         const lw_point *prev = &pa;
         double d_prev = a;
         for (int j = 0; j <= NODES && first_k < 0; j++) {
@@ -384,6 +451,8 @@ static lw_status run_interval(engine *e, double a, double b, lw_point pa, int de
             for (int k = 0; k < NEV; k++) {
                 if (!fired(e, k, &pts[j]))
                     continue;
+                if (k == EV_KNOT)
+                    e->knot_probe = pts[j].led_a;
                 double dk;
                 st = locate(e, k, d_prev, dj, prev, &pts[j], &dk);
                 if (st != LW_OK)
@@ -395,6 +464,15 @@ static lw_status run_interval(engine *e, double a, double b, lw_point pa, int de
             }
             prev = &pts[j];
             d_prev = dj;
+        }
+        if (first_k >= 0 && kind_of(first_k) == EV_RECORD) {
+            double t_part = 0.0;
+            st = time_integral(e, a, d_star, 0, &t_part);
+            if (st != LW_OK)
+                return st;
+            e->res->time_to_half_h = e->tot[Q_T] + t_part;
+            e->active[first_k] = false;
+            goto rescan;
         }
         if (first_k < 0) {
             if (depth >= e->opt->max_halvings)
@@ -509,6 +587,8 @@ static void init_events(engine *e, const lw_point *p0)
     e->active[EV_HALF] = true;
     e->active[EV_DROPOUT] = l->drive.type == LW_DRIVE_CONVERTER;
     e->active[EV_REGULATION] = l->drive.type == LW_DRIVE_LINEAR_CC;
+    e->active[EV_KNOT] = l->led.model == LW_LED_TABLE || l->led.flux;
+    knot_interval(e, p0->led_a);
     if (c->peukert > 1.0) {
         e->kink_a = c->rated_a * pow(c->capacity_ah / c->max_capacity_ah, 1.0 / (c->peukert - 1.0));
         e->active[EV_PEUKERT] = true;
