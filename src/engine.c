@@ -550,7 +550,7 @@ static void set_warnings(const lw_light *l, lw_result *r)
     if (l->drive.rating_w > 0.0 && p_res > l->drive.rating_w)
         r->warnings |= LW_WARN_RESISTOR_OVER_RATING;
     if (lw_chemistry_needs_endpoint(l->pack.cell.chemistry) &&
-        (l->cutoff.cell_v < l->pack.cell.cutoff_v || r->end_reason == LW_END_CAPACITY))
+        l->cutoff.cell_v < l->pack.cell.cutoff_v)
         r->warnings |= LW_WARN_OVER_DISCHARGE;
     if (r->end_reason == LW_END_NEVER_LIT)
         r->warnings |= LW_WARN_NEVER_LIT;
