@@ -18,7 +18,7 @@ const char *const lw_fit_help =
     "fit led: least-squares fits of an LED's measured current and voltage\n"
     "(columns current_ma, forward_v; optionally flux_lm or relative_pct):\n"
     "  linear    V = threshold_v + slope_ohm * I\n"
-    "  shockley  V = n Vt ln(I/Is) + Rs I, linear in (ln I, 1, I), solved by QR\n"
+    "  shockley  V = n Vt ln(I/Is) + Rs I, linear in (1, ln I, I), solved by QR\n"
     "  flux      flux = flux_lm (I/I_ref)^exponent, in log-log\n"
     "with R^2, the residual standard error and standard errors, and an [led]\n"
     "section ready to paste into a profile.\n"
@@ -155,7 +155,7 @@ static lw_status fit_plot(const char *path, const led_data *d, const lw_led_fit 
     for (size_t k = 0; k < n; k++) {
         double i = d->i_a[k];
         rl[k] = lin ? 1e3 * (d->v[k] - (lin->threshold_v + lin->slope_ohm * i)) : NAN;
-        rs[k] = sh ? 1e3 * (d->v[k] - (sh->lsq.coef[0] * log(i) + sh->lsq.coef[1] +
+        rs[k] = sh ? 1e3 * (d->v[k] - (sh->lsq.coef[0] + sh->lsq.coef[1] * log(i) +
                                        sh->lsq.coef[2] * i))
                    : NAN;
     }
@@ -165,7 +165,7 @@ static lw_status fit_plot(const char *path, const led_data *d, const lw_led_fit 
         cx[k] = cxs[k] = logx ? lo * pow(hi / lo, u) : lo + u * (hi - lo);
         double i = cx[k] * 1e-3;
         cl[k] = lin ? lin->threshold_v + lin->slope_ohm * i : NAN;
-        cs[k] = sh ? sh->lsq.coef[0] * log(i) + sh->lsq.coef[1] + sh->lsq.coef[2] * i : NAN;
+        cs[k] = sh ? sh->lsq.coef[0] + sh->lsq.coef[1] * log(i) + sh->lsq.coef[2] * i : NAN;
     }
     lw_chart c = {0};
     c.title = "LED forward voltage: measurements and fitted models";
@@ -212,7 +212,7 @@ static void print_fit_text(const lw_led_fit *lin, const lw_led_fit *sh, const lw
                "          at %g C (n Vt = %.5g V +- %.2g)   R^2 = %.6f   residual standard "
                "error %.3g mV\n",
                sh->ideality, sh->saturation_a, sh->series_ohm, sh->lsq.stderr_[2],
-               sh->junction_c, sh->lsq.coef[0], sh->lsq.stderr_[0], sh->lsq.r_squared,
+               sh->junction_c, sh->lsq.coef[1], sh->lsq.stderr_[1], sh->lsq.r_squared,
                sh->lsq.rse * 1e3);
         if (sh->weak)
             printf("          WARNING: %s; the three parameters are poorly determined\n",

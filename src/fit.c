@@ -144,6 +144,24 @@ static lw_status check_points(const double *i_a, const double *v, size_t n, size
     return LW_OK;
 }
 
+/* Least squares on the basis (1, cols[0], ..., cols[p-1]): the constant
+ * column comes first, so coef[0] is the intercept. */
+static lw_status lsq_with_constant(const double *const *cols, size_t p, const double *y,
+                                   size_t n, lw_lsq *out, lw_error *err)
+{
+    double *one = malloc(n * sizeof *one);
+    if (!one)
+        return lw_error_set(err, LW_ENOMEM, NULL, 0, "out of memory");
+    for (size_t k = 0; k < n; k++)
+        one[k] = 1.0;
+    const double *all[LW_LSQ_MAX_P] = {one};
+    for (size_t j = 0; j < p && j + 1 < LW_LSQ_MAX_P; j++)
+        all[j + 1] = cols[j];
+    lw_status st = lw_lsq_solve(all, p + 1, y, n, out, err);
+    free(one);
+    return st;
+}
+
 static void current_range(const double *i_a, size_t n, lw_led_fit *out)
 {
     out->i_min_a = out->i_max_a = i_a[0];
@@ -160,14 +178,8 @@ lw_status lw_fit_led_linear(const double *i_a, const double *v, size_t n, lw_led
     lw_status st = check_points(i_a, v, n, 3, err);
     if (st != LW_OK)
         return st;
-    double *one = malloc(n * sizeof *one);
-    if (!one)
-        return lw_error_set(err, LW_ENOMEM, NULL, 0, "out of memory");
-    for (size_t k = 0; k < n; k++)
-        one[k] = 1.0;
-    const double *cols[2] = {one, i_a};
-    st = lw_lsq_solve(cols, 2, v, n, &out->lsq, err);
-    free(one);
+    const double *cols[1] = {i_a};
+    st = lsq_with_constant(cols, 1, v, n, &out->lsq, err);
     if (st != LW_OK)
         return st;
     out->threshold_v = out->lsq.coef[0];
@@ -184,20 +196,17 @@ lw_status lw_fit_led_shockley(const double *i_a, const double *v, size_t n, doub
     lw_status st = check_points(i_a, v, n, 4, err);
     if (st != LW_OK)
         return st;
-    double *buf = malloc(2 * n * sizeof *buf);
-    if (!buf)
+    double *ln_i = malloc(n * sizeof *ln_i);
+    if (!ln_i)
         return lw_error_set(err, LW_ENOMEM, NULL, 0, "out of memory");
-    double *ln_i = buf, *one = buf + n;
-    for (size_t k = 0; k < n; k++) {
+    for (size_t k = 0; k < n; k++)
         ln_i[k] = log(i_a[k]);
-        one[k] = 1.0;
-    }
-    const double *cols[3] = {ln_i, one, i_a};
-    st = lw_lsq_solve(cols, 3, v, n, &out->lsq, err);
-    free(buf);
+    const double *cols[2] = {ln_i, i_a};
+    st = lsq_with_constant(cols, 2, v, n, &out->lsq, err);
+    free(ln_i);
     if (st != LW_OK)
         return st;
-    double nvt = out->lsq.coef[0];
+    double nvt = out->lsq.coef[1];
     if (!(nvt > 0))
         return lw_error_set(err, LW_EINPUT, NULL, 0,
                             "the fitted slope n*Vt = %g V is not positive: these points do not "
@@ -205,7 +214,7 @@ lw_status lw_fit_led_shockley(const double *i_a, const double *v, size_t n, doub
                             nvt);
     out->junction_c = junction_c;
     out->ideality = nvt / lw_thermal_voltage(junction_c);
-    out->saturation_a = exp(-out->lsq.coef[1] / nvt);
+    out->saturation_a = exp(-out->lsq.coef[0] / nvt);
     out->series_ohm = out->lsq.coef[2];
     current_range(i_a, n, out);
     /* three parameters need several points over at least a decade of current */
@@ -220,21 +229,20 @@ lw_status lw_fit_flux(const double *i_a, const double *flux, size_t n, lw_flux_f
     lw_status st = check_points(i_a, flux, n, 3, err);
     if (st != LW_OK)
         return st;
-    double *buf = malloc(3 * n * sizeof *buf);
+    double *buf = malloc(2 * n * sizeof *buf);
     if (!buf)
         return lw_error_set(err, LW_ENOMEM, NULL, 0, "out of memory");
     double log_ref = 0;
     for (size_t k = 0; k < n; k++)
         log_ref += log(i_a[k]);
     log_ref /= (double)n;
-    double *one = buf, *lx = buf + n, *ly = buf + 2 * n;
+    double *lx = buf, *ly = buf + n;
     for (size_t k = 0; k < n; k++) {
-        one[k] = 1.0;
         lx[k] = log(i_a[k]) - log_ref;
         ly[k] = log(flux[k]);
     }
-    const double *cols[2] = {one, lx};
-    st = lw_lsq_solve(cols, 2, ly, n, &out->lsq, err);
+    const double *cols[1] = {lx};
+    st = lsq_with_constant(cols, 1, ly, n, &out->lsq, err);
     free(buf);
     if (st != LW_OK)
         return st;

@@ -7,7 +7,7 @@
  * G. H. Golub and C. F. Van Loan, Matrix Computations, 4th ed., 5.3), and
  * the LED fits built on it:
  *   linear    V = Vth + Rd*I                          basis (1, I)
- *   shockley  V = n*Vt*ln(I/Is) + Rs*I                basis (ln I, 1, I):
+ *   shockley  V = n*Vt*ln(I/Is) + Rs*I                basis (1, ln I, I):
  *             n*Vt = c1, Is = exp(-c0/c1), Rs = c2 (valid for I >> Is, where
  *             ln(1 + I/Is) = ln(I/Is) to far below measurement resolution)
  *   flux      ln(flux) = ln(flux_ref) + e*ln(I/I_ref)  basis (1, ln(I/I_ref))

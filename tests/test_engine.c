@@ -11,7 +11,7 @@
 #include "testutil.h"
 #include <gsl/gsl_errno.h>
 #include <gsl/gsl_integration.h>
-#include <gsl/gsl_roots.h>
+#include "gslref.h"
 #include "lampwick.h"
 
 #include "lights.h"
@@ -142,18 +142,7 @@ static double ref_current(const lw_light *l, double d)
                l->pack.series * led->strings * rc / l->pack.parallel;
     struct loop q = {e, r, led->count * led->ideality * lw_thermal_voltage(led->junction_c),
                      led->saturation_a, led->count * led->series_ohm};
-    gsl_function F = {loop_residual, &q};
-    gsl_root_fsolver *s = gsl_root_fsolver_alloc(gsl_root_fsolver_brent);
-    gsl_root_fsolver_set(s, &F, 0, e / r);
-    int st = GSL_CONTINUE;
-    for (int it = 0; it < 300 && st == GSL_CONTINUE; it++) {
-        gsl_root_fsolver_iterate(s);
-        st = gsl_root_test_interval(gsl_root_fsolver_x_lower(s), gsl_root_fsolver_x_upper(s), 0,
-                                    1e-15);
-    }
-    double i = gsl_root_fsolver_root(s);
-    gsl_root_fsolver_free(s);
-    return i;
+    return gsl_brent(loop_residual, &q, 0, e / r, 0, 1e-15);
 }
 
 static double ref_flux(const lw_light *l, double i)
@@ -213,18 +202,7 @@ static double flux_minus_target(double d, void *p)
 
 static double gsl_root(double (*f)(double, void *), void *p, double a, double b)
 {
-    gsl_function F = {f, p};
-    gsl_root_fsolver *s = gsl_root_fsolver_alloc(gsl_root_fsolver_brent);
-    gsl_root_fsolver_set(s, &F, a, b);
-    int st = GSL_CONTINUE;
-    for (int it = 0; it < 300 && st == GSL_CONTINUE; it++) {
-        gsl_root_fsolver_iterate(s);
-        st = gsl_root_test_interval(gsl_root_fsolver_x_lower(s), gsl_root_fsolver_x_upper(s),
-                                    1e-15, 0);
-    }
-    double x = gsl_root_fsolver_root(s);
-    gsl_root_fsolver_free(s);
-    return x;
+    return gsl_brent(f, p, a, b, 1e-15, 0);
 }
 
 /* Runtime, lumen-hours and time to 50 % of an independent GSL solution of

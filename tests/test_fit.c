@@ -89,7 +89,7 @@ static void shockley_with_noise_within_bounds(void **state)
         assert_near(lw_led_voltage(&led, cur_a[k], NULL), v[k], 0.006);
 }
 
-/* The basis-function fit (ln I, 1, I) against GSL's gsl_multifit_linear. */
+/* The basis-function fit (1, ln I, I) against GSL's gsl_multifit_linear. */
 static void basis_fit_against_gsl_multifit(void **state)
 {
     (void)state;
@@ -105,8 +105,8 @@ static void basis_fit_against_gsl_multifit(void **state)
     gsl_vector *y = gsl_vector_alloc(NCUR), *c = gsl_vector_alloc(3);
     gsl_matrix *cov = gsl_matrix_alloc(3, 3);
     for (size_t k = 0; k < NCUR; k++) {
-        gsl_matrix_set(X, k, 0, log(cur_a[k]));
-        gsl_matrix_set(X, k, 1, 1.0);
+        gsl_matrix_set(X, k, 0, 1.0);
+        gsl_matrix_set(X, k, 1, log(cur_a[k]));
         gsl_matrix_set(X, k, 2, cur_a[k]);
         gsl_vector_set(y, k, v[k]);
     }

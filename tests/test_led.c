@@ -4,7 +4,7 @@
  */
 #include "testutil.h"
 #include <gsl/gsl_errno.h>
-#include <gsl/gsl_roots.h>
+#include "gslref.h"
 #include <gsl/gsl_sf_lambert.h>
 #include "lampwick.h"
 
@@ -64,7 +64,6 @@ static void shockley_against_gsl(void **state)
     (void)state;
     const double ns[] = {1.0, 2.0, 3.5}, iss[] = {1e-12, 1e-15, 4.6e-18},
                  rs[] = {0.0, 1.5, 10.0}, rr[] = {0.5, 33.0, 470.0}, es[] = {2.0, 3.3, 4.7};
-    gsl_root_fsolver *s = gsl_root_fsolver_alloc(gsl_root_fsolver_brent);
     for (size_t a = 0; a < 3; a++)
         for (size_t b = 0; b < 3; b++)
             for (size_t c = 0; c < 3; c++) {
@@ -85,20 +84,11 @@ static void shockley_against_gsl(void **state)
                     assert_close(i, ref, 1e-11);
                 }
                 struct diode d = {es[c], rr[b], nvt, iss[a], rs[b]};
-                gsl_function F = {diode_residual, &d};
-                gsl_root_fsolver_set(s, &F, 0, es[c] / rt);
-                int st = GSL_CONTINUE;
-                for (int it = 0; it < 200 && st == GSL_CONTINUE; it++) {
-                    gsl_root_fsolver_iterate(s);
-                    st = gsl_root_test_interval(gsl_root_fsolver_x_lower(s),
-                                                gsl_root_fsolver_x_upper(s), 0, 1e-14);
-                }
-                assert_close(i, gsl_root_fsolver_root(s), 1e-11);
+                assert_close(i, gsl_brent(diode_residual, &d, 0, es[c] / rt, 0, 1e-14), 1e-11);
                 /* Kirchhoff's voltage law at the solution */
                 assert_near(es[c] - i * rr[b] - lw_led_voltage(&led, i, NULL), 0.0,
                             1e-12 * es[c]);
             }
-    gsl_root_fsolver_free(s);
 }
 
 /* With no resistance at all the closed form's limit is the diode equation. */
@@ -180,17 +170,7 @@ static void table_model_against_gsl(void **state)
     bool ext = false;
     assert_int_equal(lw_led_solve(&led, 3.7, 2.2, &i, &ext, &e), LW_OK);
     assert_false(ext);
-    gsl_function F = {table_residual, &led};
-    gsl_root_fsolver *s = gsl_root_fsolver_alloc(gsl_root_fsolver_brent);
-    gsl_root_fsolver_set(s, &F, 0, 3.7 / 2.2);
-    int st = GSL_CONTINUE;
-    for (int it = 0; it < 200 && st == GSL_CONTINUE; it++) {
-        gsl_root_fsolver_iterate(s);
-        st = gsl_root_test_interval(gsl_root_fsolver_x_lower(s), gsl_root_fsolver_x_upper(s), 0,
-                                    1e-14);
-    }
-    assert_close(i, gsl_root_fsolver_root(s), 1e-10);
-    gsl_root_fsolver_free(s);
+    assert_close(i, gsl_brent(table_residual, &led, 0, 3.7 / 2.2, 0, 1e-14), 1e-10);
     /* a stiff supply pushes the current past the table: flagged */
     assert_int_equal(lw_led_solve(&led, 4.2, 0.5, &i, &ext, &e), LW_OK);
     assert_true(ext);
