@@ -91,6 +91,12 @@ static void on_record(int ch, void *data)
         c->header_line = r->rec_line;
         r->have_header = true;
         r->field = 0;
+        if (c->ncol == 1 && strchr(c->names[0], ';')) {
+            r->failed = true;
+            lw_error_set(r->err, LW_EINPUT, c->path, r->rec_line,
+                         "the header is one field with semicolons in it: fields must be "
+                         "separated by commas (RFC 4180)");
+        }
         return;
     }
     if (r->field != c->ncol) {
@@ -143,7 +149,13 @@ lw_status lw_csv_read(const char *path, lw_csv *csv, lw_error *err)
     ssize_t got;
     while (!r.failed && (got = getline(&linebuf, &linecap, fp)) >= 0) {
         r.line++;
-        if ((size_t)got != csv_parse(&p, linebuf, (size_t)got, on_field, on_record, &r)) {
+        char *text = linebuf;
+        /* a UTF-8 byte-order mark, as spreadsheet exports write */
+        if (r.line == 1 && got >= 3 && !memcmp(text, "\xEF\xBB\xBF", 3)) {
+            text += 3;
+            got -= 3;
+        }
+        if ((size_t)got != csv_parse(&p, text, (size_t)got, on_field, on_record, &r)) {
             r.failed = true;
             lw_error_set(err, LW_EINPUT, path, r.line, "CSV syntax: %s",
                          csv_strerror(csv_error(&p)));

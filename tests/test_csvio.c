@@ -34,6 +34,23 @@ static void reads_numbers_with_lines_and_quotes(void **state)
     lw_csv_clear(&c);
 }
 
+/* Spreadsheet exports: a UTF-8 byte-order mark is skipped; semicolons as
+ * separators get a hint. */
+static void spreadsheet_exports(void **state)
+{
+    (void)state;
+    const char *p = tmp_write("bom.csv", "\xEF\xBB\xBF" "current_ma,forward_v\r\n10,2.6\r\n");
+    lw_csv c;
+    lw_error e;
+    lw_error_clear(&e);
+    assert_int_equal(lw_csv_read(p, &c, &e), LW_OK);
+    assert_int_equal(lw_csv_column(&c, "current_ma"), 0);
+    lw_csv_clear(&c);
+    p = tmp_write("semi.csv", "current_ma;forward_v\n10;2.6\n");
+    assert_int_equal(lw_csv_read(p, &c, &e), LW_EINPUT);
+    assert_error_at(e, "semi.csv", 1, "separated by commas");
+}
+
 static void refuses_unknown_and_duplicate_columns(void **state)
 {
     (void)state;
@@ -122,6 +139,7 @@ int main(void)
 {
     const struct CMUnitTest tests[] = {
         cmocka_unit_test(reads_numbers_with_lines_and_quotes),
+        cmocka_unit_test(spreadsheet_exports),
         cmocka_unit_test(refuses_unknown_and_duplicate_columns),
         cmocka_unit_test(refuses_nonfinite_and_blank_fields),
         cmocka_unit_test(writer_quotes_per_rfc4180),
