@@ -641,6 +641,11 @@ lw_status lw_run(const lw_light *light, const lw_run_options *opt, lw_result *re
     if (!opt)
         opt = &defaults;
     memset(res, 0, sizeof *res);
+    if (!(opt->rtol >= 1e-14 && opt->rtol <= 1e-3) || opt->max_halvings < 0 ||
+        opt->max_halvings > 60 || !(opt->start_depth >= 0.0 && opt->start_depth <= 1.0))
+        return lw_error_set(err, LW_EINPUT, NULL, 0,
+                            "run options: rtol must be 1e-14 to 1e-3, max_halvings 0 to 60, "
+                            "start_depth 0 to 1");
     res->time_to_half_h = NAN;
     engine e = {.l = light, .opt = opt, .res = res, .err = err, .seg = SIZE_MAX, .end_d = -1};
     e.d0 = fmax(opt->start_depth, lw_stored_depth(light));

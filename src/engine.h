@@ -93,10 +93,11 @@ typedef struct lw_result {
     size_t n_pieces;
 } lw_result;
 
-/* Run the light from options->start_depth to its end.  A light that never
- * lights returns LW_OK with end_reason LW_END_NEVER_LIT.  Fails only on a
- * numerical failure (LW_ENUMERIC) or a loop without finite solution
- * (LW_EINPUT) or memory (LW_ENOMEM).  Free with lw_result_clear. */
+/* Run the light from its start depth to its end.  A light that never
+ * lights returns LW_OK with end_reason LW_END_NEVER_LIT.  Fails only on
+ * options out of range or a loop without finite solution (LW_EINPUT), a
+ * numerical failure (LW_ENUMERIC) or memory (LW_ENOMEM).  opt may be NULL
+ * for the defaults.  Free with lw_result_clear. */
 lw_status lw_run(const lw_light *light, const lw_run_options *opt, lw_result *res,
                  lw_error *err);
 

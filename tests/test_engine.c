@@ -341,6 +341,34 @@ static void warnings_fire(void **state)
     lw_light_clear(&l);
 }
 
+/* Tolerances and caps come from the caller and are checked. */
+static void run_options_are_validated(void **state)
+{
+    (void)state;
+    lw_light l;
+    shockley_demo_light(&l);
+    lw_run_options o = lw_run_options_default();
+    lw_result r;
+    lw_error e;
+    o.rtol = 0;
+    lw_error_clear(&e);
+    assert_int_equal(lw_run(&l, &o, &r, &e), LW_EINPUT);
+    assert_non_null(strstr(e.msg, "rtol"));
+    o = lw_run_options_default();
+    o.max_halvings = 99;
+    lw_error_clear(&e);
+    assert_int_equal(lw_run(&l, &o, &r, &e), LW_EINPUT);
+    /* a looser tolerance still meets the documented accuracy of the default */
+    o = lw_run_options_default();
+    lw_result tight = run_ok(&l, false);
+    o.rtol = 1e-6;
+    lw_error_clear(&e);
+    assert_int_equal(lw_run(&l, &o, &r, &e), LW_OK);
+    assert_close(r.runtime_h, tight.runtime_h, 1e-6);
+    assert_true(r.solves <= tight.solves);
+    lw_light_clear(&l);
+}
+
 /* Solve count stays within "a few hundred" on a curve of ten points. */
 static void solve_budget(void **state)
 {
@@ -366,6 +394,7 @@ int main(void)
         cmocka_unit_test(never_lit),
         cmocka_unit_test(trace_is_dense_monotone_and_ends_at_cutoff),
         cmocka_unit_test(warnings_fire),
+        cmocka_unit_test(run_options_are_validated),
         cmocka_unit_test(solve_budget),
     };
     return cmocka_run_group_tests(tests, NULL, NULL);
