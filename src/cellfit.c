@@ -52,10 +52,10 @@ lw_status lw_dlog_read(const char *path, double load_ohm, double load_a, lw_dlog
     size_t n = csv.nrow;
     double *buf = st == LW_OK ? malloc(3 * n * sizeof *buf) : NULL;
     int *lines = buf ? malloc(n * sizeof *lines) : NULL;
-    if (st == LW_OK && (!buf || !lines)) {
+    if (!buf || !lines) {
         free(buf);
-        buf = NULL;
-        st = lw_error_set(err, LW_ENOMEM, path, 0, "out of memory");
+        lw_csv_clear(&csv);
+        return st != LW_OK ? st : lw_error_set(err, LW_ENOMEM, path, 0, "out of memory");
     }
     for (size_t k = 0; st == LW_OK && k < n; k++) {
         double t = lw_csv_at(&csv, k, ct), v = lw_csv_at(&csv, k, cv);
@@ -77,23 +77,21 @@ lw_status lw_dlog_read(const char *path, double load_ohm, double load_a, lw_dlog
         buf[n + k] = v;
         buf[2 * n + k] = i;
     }
-    if (st == LW_OK) {
-        /* gaps: a step over 10 times the median step */
-        double *steps = malloc((n - 1) * sizeof *steps);
-        if (!steps)
-            st = lw_error_set(err, LW_ENOMEM, path, 0, "out of memory");
-        for (size_t k = 1; st == LW_OK && k < n; k++)
+    /* gaps: a step over 10 times the median step */
+    double *steps = st == LW_OK ? malloc((n - 1) * sizeof *steps) : NULL;
+    if (st == LW_OK && !steps)
+        st = lw_error_set(err, LW_ENOMEM, path, 0, "out of memory");
+    if (steps) {
+        for (size_t k = 1; k < n; k++)
             steps[k - 1] = buf[k] - buf[k - 1];
-        if (st == LW_OK) {
-            qsort(steps, n - 1, sizeof *steps, cmp_double);
-            double median = steps[(n - 1) / 2];
-            for (size_t k = 1; st == LW_OK && k < n; k++)
-                if (buf[k] - buf[k - 1] > 10.0 * median)
-                    st = lw_error_set(err, LW_EINPUT, path, csv.line[k],
-                                      "gap in the log: %g s since the previous sample, more "
-                                      "than 10 times the usual %g s",
-                                      (buf[k] - buf[k - 1]) * 3600.0, median * 3600.0);
-        }
+        qsort(steps, n - 1, sizeof *steps, cmp_double);
+        double median = steps[(n - 1) / 2];
+        for (size_t k = 1; st == LW_OK && k < n; k++)
+            if (buf[k] - buf[k - 1] > 10.0 * median)
+                st = lw_error_set(err, LW_EINPUT, path, csv.line[k],
+                                  "gap in the log: %g s since the previous sample, more than "
+                                  "10 times the usual %g s",
+                                  (buf[k] - buf[k - 1]) * 3600.0, median * 3600.0);
         free(steps);
     }
     lw_csv_clear(&csv);

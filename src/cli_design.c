@@ -194,7 +194,7 @@ static lw_status sweep_table(const lw_sweep *sw, lw_format fmt, const char *colu
     for (size_t c = 0; c < ncols && st == LW_OK; c++)
         st = lw_rtable_head(t, nk + c, cols[c], err);
     for (size_t r = 0; r < sw->n && st == LW_OK; r++) {
-        size_t row, frow;
+        size_t row = 0, frow = 0;
         st = lw_rtable_add_row(t, &row, err);
         if (st == LW_OK)
             st = lw_rtable_add_row(full, &frow, err);
@@ -482,11 +482,7 @@ int lw_cmd_pick(int argc, char **argv)
         else
             st = pst;
     }
-    int code = 0;
-    if (st != LW_OK)
-        code = report_error(&err);
-    else if (pst != LW_OK)
-        code = report_error(&err);
+    int code = st != LW_OK || pst != LW_OK ? report_error(&err) : 0;
     lw_result_clear(&pk.run);
     lw_profile_clear(&prof);
     return code;

@@ -73,8 +73,10 @@ static lw_status read_led_data(const char *path, led_data *d, lw_error *err)
         cf = cr;
     size_t n = csv.nrow;
     double *buf = st == LW_OK ? malloc(3 * n * sizeof *buf) : NULL;
-    if (st == LW_OK && !buf)
-        st = lw_error_set(err, LW_ENOMEM, NULL, 0, "out of memory");
+    if (!buf) {
+        lw_csv_clear(&csv);
+        return st != LW_OK ? st : lw_error_set(err, LW_ENOMEM, NULL, 0, "out of memory");
+    }
     for (size_t k = 0; st == LW_OK && k < n; k++) {
         double i = lw_csv_at(&csv, k, ci), v = lw_csv_at(&csv, k, cv);
         if (!(i > 0))
@@ -130,11 +132,15 @@ static void print_section(FILE *fp, const lw_led_fit *lin, const lw_led_fit *sh,
         fprintf(fp, "; output was measured relative: flux_exponent = %.4g; set flux_lm at "
                     "flux_current_ma = %.5g from the LED's data\nflux_exponent = %.4g\n",
                 fx->exponent, fx->ref_current_a * 1e3, fx->exponent);
-    double imax = d->i_a[0];
-    for (size_t k = 1; k < d->n; k++)
+    if (!d->i_a || d->n == 0)
+        return;
+    double imin = d->i_a[0], imax = d->i_a[0];
+    for (size_t k = 1; k < d->n; k++) {
+        imin = fmin(imin, d->i_a[k]);
         imax = fmax(imax, d->i_a[k]);
-    fprintf(fp, "; fitted by lampwick fit led; valid from %.4g to %.4g mA\n",
-            (sh ? sh : lin)->i_min_a * 1e3, imax * 1e3);
+    }
+    fprintf(fp, "; fitted by lampwick fit led; valid from %.4g to %.4g mA\n", imin * 1e3,
+            imax * 1e3);
 }
 
 static lw_status fit_plot(const char *path, const led_data *d, const lw_led_fit *lin,
@@ -199,8 +205,14 @@ static lw_status fit_plot(const char *path, const led_data *d, const lw_led_fit 
 static void print_fit_text(const lw_led_fit *lin, const lw_led_fit *sh, const lw_flux_fit *fx,
                            bool relative, const led_data *d)
 {
-    printf("%zu measurements from %.4g to %.4g mA\n\n", d->n,
-           (lin ? lin : sh)->i_min_a * 1e3, (lin ? lin : sh)->i_max_a * 1e3);
+    if (!d->i_a || d->n == 0)
+        return;
+    double lo = d->i_a[0], hi = d->i_a[0];
+    for (size_t k = 1; k < d->n; k++) {
+        lo = fmin(lo, d->i_a[k]);
+        hi = fmax(hi, d->i_a[k]);
+    }
+    printf("%zu measurements from %.4g to %.4g mA\n\n", d->n, lo * 1e3, hi * 1e3);
     if (lin)
         printf("linear    threshold_v = %.5g V (+- %.2g)   slope_ohm = %.5g ohm (+- %.2g)\n"
                "          R^2 = %.6f   residual standard error %.3g mV\n\n",
@@ -322,8 +334,8 @@ static int fit_led(int argc, char **argv)
     lw_error err;
     lw_error_clear(&err);
     led_data d;
-    lw_led_fit lin, sh;
-    lw_flux_fit fx;
+    lw_led_fit lin = {0}, sh = {0};
+    lw_flux_fit fx = {0};
     lw_status st = read_led_data(argv[optind], &d, &err);
     if (st == LW_OK && want_lin)
         st = lw_fit_led_linear(d.i_a, d.v, d.n, &lin, &err);

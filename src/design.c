@@ -484,6 +484,8 @@ lw_status lw_spec_table(const lw_profile *prof, const char *const *cells, lw_for
     size_t ncells = 0;
     while (cells[ncells])
         ncells++;
+    if (ncells == 0)
+        return lw_error_set(err, LW_EINPUT, prof->path, 0, "the table needs at least one cell");
     size_t nmodes = lw_profile_mode_count(prof);
     size_t nrows = nmodes ? nmodes : 1;
     bool optics = prof->beam_angle_deg > 0 || prof->peak_cd_per_lm > 0;

@@ -38,7 +38,7 @@ lw_status lw_lsq_solve(const double *const *x, size_t p, const double *y, size_t
     }
     memcpy(a + p * n, y, n * sizeof *y);
     /* Householder QR applied to [X | y] */
-    double rdiag[LW_LSQ_MAX_P];
+    double rdiag[LW_LSQ_MAX_P] = {0};
     for (size_t k = 0; k < p; k++) {
         double *col = a + k * n;
         double norm = 0;
