@@ -27,7 +27,7 @@ lw_status lw_lsq_solve(const double *const *x, size_t p, const double *y, size_t
     double *a = malloc((p + 1) * n * sizeof *a); /* column-major, last column is y */
     if (!a)
         return lw_error_set(err, LW_ENOMEM, NULL, 0, "out of memory");
-    double scale[LW_LSQ_MAX_P];
+    double scale[LW_LSQ_MAX_P] = {0};
     for (size_t j = 0; j < p; j++) {
         double s = 0;
         for (size_t i = 0; i < n; i++)
@@ -83,7 +83,7 @@ lw_status lw_lsq_solve(const double *const *x, size_t p, const double *y, size_t
         }
     /* back substitution R c = Q^T y; R(k, j) = a[j*n + k] for j > k */
     const double *qty = a + p * n;
-    double c[LW_LSQ_MAX_P];
+    double c[LW_LSQ_MAX_P] = {0};
     for (size_t k = p; k-- > 0;) {
         double s = qty[k];
         for (size_t j = k + 1; j < p; j++)
