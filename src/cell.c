@@ -63,6 +63,12 @@ double lw_cell_capacity_ah(const lw_cell *cell, double ic_a, double cap_factor)
     return cap_factor * c;
 }
 
+double lw_self_discharge_per_h(const lw_cell *cell)
+{
+    double s = cell->self_discharge_pct_month / 100.0;
+    return s > 0.0 ? -log1p(-s) / 730.5 : 0.0;
+}
+
 bool lw_chemistry_needs_endpoint(lw_chemistry chem)
 {
     return chem == LW_CHEM_LI_ION || chem == LW_CHEM_LIFEPO4;

@@ -17,7 +17,9 @@
  *   C_eff(Ic) = kc * min(Cmax, C * (I_rated / Ic)^(k - 1)): Peukert's law
  *     (W. Peukert, Elektrotechnische Zeitschrift 18, 1897) referred to the
  *     rated current, capped at the low-drain capacity Cmax.
- *   dd/dt = Ic / C_eff(Ic).
+ *   dd/dt = Ic / C_eff(Ic) + lambda * (1 - d): the current, plus self-discharge
+ *     of the charge left at lambda = -ln(1 - s/100) / 730.5 h for s % a month
+ *     (so that a month on the shelf keeps 1 - s/100 of the charge).
  */
 #ifndef LW_CELL_H
 #define LW_CELL_H
@@ -71,6 +73,10 @@ void lw_cell_temperature_factors(const lw_cell *cell, double ambient_c, double *
  * against the rated point, capped at the low-drain capacity, times cap_factor.
  * At ic_a == 0 it is the cap. */
 double lw_cell_capacity_ah(const lw_cell *cell, double ic_a, double cap_factor);
+
+/* Self-discharge rate lambda in 1/h from self_discharge_pct_month s:
+ * -ln(1 - s/100) / 730.5 h (730.5 h = an average month); 0 for s = 0. */
+double lw_self_discharge_per_h(const lw_cell *cell);
 
 /* True for chemistries whose cells must not be discharged past the maker's
  * end-point voltage (lithium-ion, LiFePO4): the over-discharge warning. */

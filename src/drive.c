@@ -181,9 +181,11 @@ lw_status lw_light_point_at(const lw_light *l, double depth, double ocv_v, doubl
         return st;
     if (pt->regime != LW_REGIME_DROPOUT) {
         double ic_avg = duty * pt->cell_a;
-        pt->dtdd_h = ic_avg > 0.0
-                         ? lw_cell_capacity_ah(&l->pack.cell, ic_avg, l->cap_factor) / ic_avg
-                         : INFINITY;
+        /* discharge by the current plus self-discharge of the charge left */
+        double rate = lw_self_discharge_per_h(&l->pack.cell) * (1.0 - depth);
+        if (ic_avg > 0.0)
+            rate += ic_avg / lw_cell_capacity_ah(&l->pack.cell, ic_avg, l->cap_factor);
+        pt->dtdd_h = rate > 0.0 ? 1.0 / rate : INFINITY;
     }
     return LW_OK;
 }
@@ -203,7 +205,7 @@ double lw_stored_depth(const lw_light *l)
     if (!(m > 0))
         return 0.0;
     const lw_cell *c = &l->pack.cell;
-    double kept = pow(1.0 - c->self_discharge_pct_month / 100.0, m);
+    double kept = exp(-lw_self_discharge_per_h(c) * m * LW_HOURS_PER_MONTH);
     double cap_ah = c->capacity_ah * l->cap_factor * l->pack.parallel;
     double drained = cap_ah > 0 ? l->drive.standby_a * m * LW_HOURS_PER_MONTH / cap_ah : 0.0;
     double d = 1.0 - kept + drained;

@@ -126,10 +126,11 @@ lw_status lw_light_point_at(const lw_light *light, double depth, double ocv_v,
 
 /* Depth of discharge at switch-on after pack.stored_months on the shelf:
  * the cell keeps (1 - s/100)^M of its charge after M months of
- * self-discharge at s % a month (compounded monthly on the charge left),
- * less the standby drain I_sb over those months shared by the P parallel
- * strings of cells: d0 = 1 - (1 - s/100)^M + I_sb * M * 730.5 h / (P * C),
- * with C the rated capacity at ambient.  Clamped to [0, 1]. */
+ * self-discharge at s % a month (compounded on the charge left, the same
+ * rate as during a run), less the standby drain I_sb over those months
+ * shared by the P parallel strings of cells:
+ * d0 = 1 - (1 - s/100)^M + I_sb * M * 730.5 h / (P * C), with C the rated
+ * capacity at ambient.  Clamped to [0, 1]. */
 double lw_stored_depth(const lw_light *light);
 
 /* Pack current of a converter: the smaller root of

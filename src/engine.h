@@ -5,7 +5,8 @@
  * Owns: lw_run_options, lw_result, lw_trace and lw_run().
  *
  * Method (docs/model.md): with d the depth of discharge of each cell,
- * dd/dt = Ic/C_eff(Ic), so t(d) = integral of C_eff/Ic dd, and every other
+ * dd/dt = Ic/C_eff(Ic) + lambda (1 - d) (cell.h), so t(d) is the integral of
+ * 1/(dd/dt) over depth, and every other
  * total (lumen-hours, energies) is the integral of its rate times dt/dd.
  * Within one interval of the cell curve the integrands are smooth, so each
  * interval is integrated with the 15-point Gauss-Kronrod rule, its error

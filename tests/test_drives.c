@@ -230,7 +230,13 @@ static void stored_run_starting_depth(void **state)
     assert_close(lw_stored_depth(&l), 1.0 - kept, 1e-12);
     lw_result r = run_ok(&l, false);
     assert_close(r.start_depth, 1.0 - kept, 1e-12);
-    assert_close(r.runtime_h, kept * 2.0 / 0.020, 1e-9);
+    /* during the run the charge left r = 1 - d obeys dr/dt = -I/C - lambda r
+     * (self-discharge at the same rate, lambda = -ln(0.98)/730.5 h): a linear
+     * ODE whose exact solution reaches r = 0 at t = ln(1 + r0/a)/lambda with
+     * a = I/(C lambda) */
+    double lambda = -log(0.98) / 730.5, a = 0.020 / (2.0 * lambda);
+    assert_close(lw_self_discharge_per_h(&l.pack.cell), lambda, 1e-15);
+    assert_close(r.runtime_h, log(1.0 + kept / a) / lambda, 1e-9);
     /* standby drain of 10 uA for the same 12 months, two cells in parallel */
     l.drive.standby_a = 10e-6;
     l.pack.parallel = 2;
