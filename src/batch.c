@@ -44,6 +44,8 @@ static void run_case(size_t i, void *vctx)
     if (c->status == LW_OK) {
         lw_run_options opt = lw_run_options_default();
         c->status = lw_run(&p.light, &opt, &c->res, &c->err);
+        if (c->status != LW_OK && !c->err.file[0])
+            lw_strlcpy(c->err.file, b->base->path, sizeof c->err.file);
     }
     if (c->status == LW_OK) {
         lw_light_copy(&c->light, &p.light);

@@ -488,6 +488,8 @@ static int cmd_run(int argc, char **argv)
         lw_run_options opt = lw_run_options_default();
         opt.want_trace = trace_path || plot_path;
         st = lw_run(&prof.light, &opt, &res, &err);
+        if (st != LW_OK && !err.file[0]) /* a numerical failure: say which profile */
+            lw_strlcpy(err.file, prof.path, sizeof err.file);
     }
     if (st == LW_OK && (trace_path || plot_path))
         st = lw_trace_build(&prof.light, &res, 200, &tr, &err);
