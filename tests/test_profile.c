@@ -247,6 +247,47 @@ static void cell_refusals(void **state)
     }
 }
 
+/* Accepted forms: a cell named by a path relative to the profile, every
+ * spelling of yes/no, comments of both kinds, units with prefixes. */
+static void accepted_forms(void **state)
+{
+    (void)state;
+    write_good();
+    const char *path = tmp_write("forms.ini",
+                                 "# a comment\n"
+                                 "[pack]\n"
+                                 "cell = ./t.ini ; inline comment\n"
+                                 "[led]\n"
+                                 "model = constant\n"
+                                 "forward_v = 2.9\n"
+                                 "flux_lm = 20\n"
+                                 "flux_current_ma = 50\n"
+                                 "[drive]\n"
+                                 "resistor_ohm = 0\n");
+    lw_profile p;
+    lw_error e;
+    lw_error_clear(&e);
+    assert_int_equal(lw_profile_load(path, NULL, &p, &e), LW_OK);
+    assert_string_equal(p.light.pack.cell.name, "test-cell");
+    assert_close(p.light.drive.resistor_ohm, 0, 0); /* 0 ohm is allowed */
+    lw_profile_clear(&p);
+    const char *yes[] = {"yes", "true", "1", "on"}, *no[] = {"no", "false", "0", "off"};
+    for (int k = 0; k < 4; k++) {
+        for (int v = 0; v < 2; v++) {
+            char text[400];
+            snprintf(text, sizeof text,
+                     "[cell]\nname = b\nchemistry = nimh\nnominal_v = 1.2\ncapacity_mah = 2000\n"
+                     "rated_ma = 400\ncutoff_v = 1.0\nrechargeable = %s\ncurve = t.curve.csv\n",
+                     v ? yes[k] : no[k]);
+            lw_cell c;
+            lw_error_clear(&e);
+            assert_int_equal(lw_cell_load(tmp_write("b.ini", text), &c, &e), LW_OK);
+            assert_int_equal(c.rechargeable, v == 1);
+            lw_cell_clear(&c);
+        }
+    }
+}
+
 static void search_path_finds_cells(void **state)
 {
     (void)state;
@@ -322,6 +363,7 @@ int main(void)
         cmocka_unit_test(set_and_mode_override),
         cmocka_unit_test(profile_refusals),
         cmocka_unit_test(cell_refusals),
+        cmocka_unit_test(accepted_forms),
         cmocka_unit_test(search_path_finds_cells),
         cmocka_unit_test(cell_library_loads),
         cmocka_unit_test(bundled_profiles_load),
