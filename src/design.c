@@ -435,9 +435,10 @@ static lw_status spec_notes(const lw_profile *p, const lw_case *cases, size_t nc
     char buf[512];
     const lw_light *l = &p->light;
     snprintf(buf, sizeof buf,
-             "Test conditions: fresh cells at %g C; light output 30 s after switch-on; runtime "
-             "until the output falls to %g %% of that value (ANSI/PLATO FL 1 definition) or a "
-             "cell's loaded voltage reaches its end point.",
+             "Test conditions: fresh cells (unless a mode sets pack.stored_months) at %g C; "
+             "light output 30 s after switch-on; runtime until the output falls to %g %% of "
+             "that value (ANSI/PLATO FL 1 definition) or a cell's loaded voltage reaches its "
+             "end point; 'at full': hours in regulation.",
              l->pack.ambient_c, l->cutoff.relative_pct);
     lw_status st = lw_rtable_note(t, buf, err);
     for (size_t c = 0; c < ncells && st == LW_OK; c++) {
@@ -489,7 +490,6 @@ lw_status lw_spec_table(const lw_profile *prof, const char *const *cells, lw_for
     size_t nmodes = lw_profile_mode_count(prof);
     size_t nrows = nmodes ? nmodes : 1;
     bool optics = prof->beam_angle_deg > 0 || prof->peak_cd_per_lm > 0;
-    size_t per = optics ? 5 : 3, ncol = 1 + per * ncells;
     lw_case *cases = calloc(nrows * ncells, sizeof *cases);
     if (!cases)
         return lw_error_set(err, LW_ENOMEM, NULL, 0, "out of memory");
@@ -507,12 +507,31 @@ lw_status lw_spec_table(const lw_profile *prof, const char *const *cells, lw_for
             if (err && err->code == LW_OK)
                 *err = cases[i].err;
         }
+    /* the columns of each cell group: hours at full output only when a mode
+     * regulates, intensity and beam distance only with [optics] */
+    enum { SC_FLUX, SC_RUNTIME, SC_HALF, SC_REGULATED, SC_CD, SC_BEAM };
+    static const char *const csv_names[] = {"flux_lm", "runtime_h", "half_h",
+                                            "regulated_h", "peak_cd", "beam_m"};
+    static const char *const txt_names[] = {"lm", "runtime", "to 50 %",
+                                            "at full", "cd", "beam m"};
+    int kinds[6];
+    size_t per = 0;
+    kinds[per++] = SC_FLUX;
+    kinds[per++] = SC_RUNTIME;
+    kinds[per++] = SC_HALF;
+    bool regulated = false;
+    for (size_t i = 0; st == LW_OK && i < nrows * ncells; i++)
+        regulated = regulated || isfinite(cases[i].res.regulated_h);
+    if (regulated)
+        kinds[per++] = SC_REGULATED;
+    if (optics) {
+        kinds[per++] = SC_CD;
+        kinds[per++] = SC_BEAM;
+    }
+    size_t ncol = 1 + per * ncells;
     lw_rtable *t = st == LW_OK ? lw_rtable_new(ncol, err) : NULL;
     if (st == LW_OK && !t)
         st = LW_ENOMEM;
-    static const char *const csv_names[] = {"flux_lm", "runtime_h", "half_h", "peak_cd",
-                                            "beam_m"};
-    static const char *const txt_names[] = {"lm", "runtime", "to 50 %", "cd", "beam m"};
     char buf[160];
     if (st == LW_OK) {
         st = lw_rtable_head(t, 0, "mode", err);
@@ -520,10 +539,10 @@ lw_status lw_spec_table(const lw_profile *prof, const char *const *cells, lw_for
             for (size_t k = 0; k < per && st == LW_OK; k++) {
                 const char *cname = cases[c].light.pack.cell.name;
                 if (fmt == LW_FMT_CSV) {
-                    snprintf(buf, sizeof buf, "%s.%s", cname, csv_names[k]);
+                    snprintf(buf, sizeof buf, "%s.%s", cname, csv_names[kinds[k]]);
                     st = lw_rtable_head(t, 1 + c * per + k, buf, err);
                 } else {
-                    st = lw_rtable_head(t, 1 + c * per + k, txt_names[k], err);
+                    st = lw_rtable_head(t, 1 + c * per + k, txt_names[kinds[k]], err);
                     if (st == LW_OK)
                         st = lw_rtable_group(t, 1 + c * per + k, cname, err);
                 }
@@ -538,21 +557,27 @@ lw_status lw_spec_table(const lw_profile *prof, const char *const *cells, lw_for
         for (size_t c = 0; c < ncells && st == LW_OK; c++) {
             const lw_result *res = &cases[r * ncells + c].res;
             double flux = res->flux_ref_lm, cd = peak_cd(prof, flux);
-            double vals[5] = {flux, res->runtime_h, res->time_to_half_h, cd,
-                              lw_beam_distance_m(cd)};
+            const double vals[6] = {flux,
+                                    res->runtime_h,
+                                    res->time_to_half_h,
+                                    res->regulated_h,
+                                    cd,
+                                    lw_beam_distance_m(cd)};
             for (size_t k = 0; k < per && st == LW_OK; k++) {
                 size_t col = 1 + c * per + k;
+                double v = vals[kinds[k]];
                 if (fmt == LW_FMT_CSV) {
-                    if (isfinite(vals[k]))
-                        snprintf(buf, sizeof buf, "%.6g", vals[k]);
+                    if (isfinite(v))
+                        snprintf(buf, sizeof buf, "%.6g", v);
                     else
                         buf[0] = '\0';
-                } else if (k == 1 || k == 2) {
-                    lw_spec_hours(vals[k], buf, sizeof buf);
-                } else if (k == 4) {
-                    snprintf(buf, sizeof buf, "%.0f", vals[k]);
+                } else if (kinds[k] == SC_RUNTIME || kinds[k] == SC_HALF ||
+                           kinds[k] == SC_REGULATED) {
+                    lw_spec_hours(v, buf, sizeof buf);
+                } else if (kinds[k] == SC_BEAM) {
+                    snprintf(buf, sizeof buf, "%.0f", v);
                 } else {
-                    snprintf(buf, sizeof buf, "%.10g", lw_spec_round(vals[k]));
+                    snprintf(buf, sizeof buf, "%.10g", lw_spec_round(v));
                 }
                 st = lw_rtable_set(t, row, col, buf, err);
             }

@@ -90,8 +90,9 @@ lw_status lw_size_packs(const lw_profile *prof, const lw_size_options *opt, lw_s
 /* The runtime table of a product specification: one row per mode (the
  * profile as written when it has none), one column group per cell (the
  * profile's own cell when `cells` is NULL): light output 30 s after
- * switch-on, runtime to the cutoff, time to 50 %, and with an [optics]
- * section peak intensity and beam distance.  Text and Markdown are rounded
+ * switch-on, runtime to the cutoff, time to 50 %, hours at full output when
+ * a mode regulates, and with an [optics] section peak intensity and beam
+ * distance.  Text and Markdown are rounded
  * as specification tables are (the rule is printed in the notes with the
  * test conditions); CSV carries plain numbers in fixed units. */
 lw_status lw_spec_table(const lw_profile *prof, const char *const *cells, lw_format fmt,
