@@ -22,25 +22,29 @@ struct batch {
     lw_case *cases;
 };
 
+lw_status lw_case_profile(const lw_profile *base, const lw_case *c, const char *origin,
+                          lw_profile *out, lw_error *err)
+{
+    lw_status st = lw_profile_copy(out, base, err);
+    if (st == LW_OK && c->mode)
+        st = lw_profile_apply_mode(out, c->mode, err);
+    for (size_t k = 0; k < c->nset && st == LW_OK; k++) {
+        char where[sizeof c->set[k].key + 32];
+        snprintf(where, sizeof where, "%s %s", origin, c->set[k].key);
+        st = lw_profile_set(out, c->set[k].key, c->set[k].value, LW_FROM_OPTION, where, 0, err);
+    }
+    if (st == LW_OK)
+        st = lw_profile_resolve(out, err);
+    return st;
+}
+
 static void run_case(size_t i, void *vctx)
 {
     struct batch *b = vctx;
     lw_case *c = &b->cases[i];
     lw_error_clear(&c->err);
     lw_profile p;
-    c->status = lw_profile_copy(&p, b->base, &c->err);
-    if (c->status != LW_OK)
-        return;
-    if (c->mode)
-        c->status = lw_profile_apply_mode(&p, c->mode, &c->err);
-    for (size_t k = 0; k < c->nset && c->status == LW_OK; k++) {
-        char where[sizeof c->set[k].key + 16];
-        snprintf(where, sizeof where, "--vary %s", c->set[k].key);
-        c->status = lw_profile_set(&p, c->set[k].key, c->set[k].value, LW_FROM_OPTION, where, 0,
-                                   &c->err);
-    }
-    if (c->status == LW_OK)
-        c->status = lw_profile_resolve(&p, &c->err);
+    c->status = lw_case_profile(b->base, c, "--vary", &p, &c->err);
     if (c->status == LW_OK) {
         lw_run_options opt = lw_run_options_default();
         c->status = lw_run(&p.light, &opt, &c->res, &c->err);

@@ -39,6 +39,13 @@ typedef struct lw_case {
 /* Add an override to a case; false if the case is full or a text too long. */
 bool lw_case_set(lw_case *c, const char *key, const char *value);
 
+/* The profile of one case: a copy of base with the case's mode and
+ * overrides applied and resolved.  Errors about an override name
+ * "ORIGIN KEY" (e.g. "--vary drive.resistor_ohm").  Free with
+ * lw_profile_clear (also after a failure). */
+lw_status lw_case_profile(const lw_profile *base, const lw_case *c, const char *origin,
+                          lw_profile *out, lw_error *err);
+
 /* Run every case.  threads <= 0: all cores.  Returns LW_OK even when cases
  * failed (see each case's status). */
 void lw_batch_run(const lw_profile *base, lw_case *cases, size_t n, int threads,

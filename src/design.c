@@ -172,9 +172,9 @@ lw_status lw_pick_resistor(const lw_profile *prof, lw_target_kind kind, double t
         return st;
     if (!out->within_ratings)
         return lw_error_set(err, LW_ENOANSWER, prof->path, 0,
-                            "no %s value keeps the LED within %.4g mA and the resistor within a "
+                            "no E%d value keeps the LED within %.4g mA and the resistor within a "
                             "standard power rating in the worst case",
-                            series == 3 ? "E3" : "preferred", out->max_led_a * 1e3);
+                            series, out->max_led_a * 1e3);
     if (!out->meets_target)
         return lw_error_set(err, LW_ENOANSWER, prof->path, 0,
                             "the target needs more current than the LED's max_current_ma allows "
@@ -216,24 +216,19 @@ static lw_status size_one(const size_job *j, size_t idx, lw_size_row *row, lw_er
     lw_strlcpy(row->cell, cell, sizeof row->cell);
     row->series = s;
     row->parallel = p;
-    lw_profile prof;
-    lw_status st = lw_profile_copy(&prof, j->prof, err);
-    if (st != LW_OK)
-        return st;
+    lw_case variant = {0};
     char buf[32];
-    st = lw_profile_set(&prof, "pack.cell", cell, LW_FROM_OPTION, "--cells", 0, err);
+    lw_case_set(&variant, "pack.cell", cell);
     snprintf(buf, sizeof buf, "%d", s);
-    if (st == LW_OK)
-        st = lw_profile_set(&prof, "pack.series", buf, LW_FROM_OPTION, "size", 0, err);
+    lw_case_set(&variant, "pack.series", buf);
     snprintf(buf, sizeof buf, "%d", p);
-    if (st == LW_OK)
-        st = lw_profile_set(&prof, "pack.parallel", buf, LW_FROM_OPTION, "size", 0, err);
-    if (st == LW_OK && !isnan(opt->flux_lm)) {
+    lw_case_set(&variant, "pack.parallel", buf);
+    if (!isnan(opt->flux_lm)) {
         snprintf(buf, sizeof buf, "%.10g", opt->flux_lm);
-        st = lw_profile_set(&prof, "cutoff.flux_lm", buf, LW_FROM_OPTION, "--flux-lm", 0, err);
+        lw_case_set(&variant, "cutoff.flux_lm", buf);
     }
-    if (st == LW_OK)
-        st = lw_profile_resolve(&prof, err);
+    lw_profile prof;
+    lw_status st = lw_case_profile(j->prof, &variant, "size", &prof, err);
     if (st != LW_OK) {
         lw_profile_clear(&prof);
         return st;
@@ -348,10 +343,7 @@ lw_status lw_size_packs(const lw_profile *prof, const lw_size_options *opt, lw_s
         return lw_error_set(err, LW_EINPUT, prof->path, 0,
                             "size chooses a series resistor for each pack: the profile's "
                             "drive.type must be resistor");
-    const char *own[2] = {prof->light.pack.cell.name, NULL};
-    char own_ref[LW_PATH_MAX];
-    lw_strlcpy(own_ref, prof->cell_ref, sizeof own_ref);
-    own[0] = own_ref;
+    const char *own[2] = {prof->cell_ref, NULL};
     const char *const *cells = opt->cells ? opt->cells : own;
     size_t ncells = 0;
     while (cells[ncells])

@@ -651,6 +651,7 @@ lw_status lw_run(const lw_light *light, const lw_run_options *opt, lw_result *re
     e.d0 = fmax(opt->start_depth, lw_stored_depth(light));
     res->start_depth = e.d0;
     lw_status st = lw_worst_case(light, &res->initial, err);
+    res->solves++; /* the worst case is an operating-point solve too */
     if (st != LW_OK)
         return st;
     res->worst_led_a = res->initial.led_a;

@@ -398,7 +398,6 @@ static lw_status set_num(lw_rtable *t, size_t row, size_t col, double v, lw_erro
 lw_status lw_report_run_row(lw_rtable *t, size_t row, size_t c, const lw_light *light,
                             const lw_result *r, lw_error *err)
 {
-    (void)light;
     char warn[512];
     lw_warnings_text(r->warnings, warn, sizeof warn);
     double v[] = {r->runtime_h,
