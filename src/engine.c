@@ -420,6 +420,17 @@ static lw_status settle(engine *e, double d, lw_point *pt)
     return LW_OK;
 }
 
+/* The point at d where a finished piece ended: reused when the piece just
+ * solved it, solved otherwise. */
+static lw_status point_after(engine *e, double d, lw_point *pt)
+{
+    if (e->end_d == d) {
+        *pt = e->end_pt;
+        return LW_OK;
+    }
+    return eval(e, d, pt);
+}
+
 /* Integrate [a, b] (inside one interval of the cell curve), stopping at the
  * first stop event.  pa is the point at a. */
 static lw_status run_interval(engine *e, double a, double b, lw_point pa, int depth)
@@ -488,10 +499,9 @@ static lw_status run_interval(engine *e, double a, double b, lw_point pa, int de
             double m = 0.5 * (a + b);
             lw_point pm;
             st = run_interval(e, a, m, pa, depth + 1);
+            if (st == LW_OK && !e->done)
+                st = point_after(e, m, &pm);
             if (st != LW_OK || e->done)
-                return st;
-            st = eval(e, m, &pm);
-            if (st != LW_OK)
                 return st;
             return run_interval(e, m, b, pm, depth + 1);
         }
@@ -624,9 +634,7 @@ static lw_status run_body(engine *e, lw_point p0)
             return st;
         if (!e->done) {
             a = b;
-            if (e->end_d == b)
-                pa = e->end_pt;
-            else if ((st = eval(e, a, &pa)) != LW_OK)
+            if ((st = point_after(e, a, &pa)) != LW_OK)
                 return st;
         }
     }
