@@ -619,7 +619,7 @@ int lw_cmd_size(int argc, char **argv)
         if (err.code != LW_OK)
             code = report_error(&err);
         else if (!fits) {
-            fprintf(stderr, "lampwick: size: no pack of %s meets %g h%s\n",
+            fprintf(stderr, "lampwick: %s: no pack of %s meets %g h%s\n", prof.path,
                     cells_arg ? cells_arg : prof.cell_ref, opt.runtime_h,
                     isnan(opt.flux_lm) ? "" : " above the flux floor");
             code = EXIT_NOANSWER;
