@@ -358,80 +358,102 @@ static int cmp_str(const void *a, const void *b)
     return strcmp(*(char *const *)a, *(char *const *)b);
 }
 
-void lw_cell_names_free(char **names, char **paths, size_t n)
+void lw_cell_list_clear(lw_cell_list *l)
 {
-    for (size_t i = 0; i < n; i++) {
-        free(names ? names[i] : NULL);
-        free(paths ? paths[i] : NULL);
+    if (!l)
+        return;
+    for (size_t i = 0; i < l->n; i++) {
+        free(l->names[i]);
+        free(l->paths[i]);
     }
-    free(names);
-    free(paths);
+    for (size_t i = 0; i < l->nskipped; i++)
+        free(l->skipped[i]);
+    free(l->names);
+    free(l->paths);
+    free(l->skipped);
+    memset(l, 0, sizeof *l);
 }
 
-lw_status lw_cell_names(const lw_search *search, char ***names_out, char ***paths_out,
-                        size_t *n_out, lw_error *err)
+/* Does the file have a [cell] section?  (Only its first lines are read.) */
+static bool has_cell_section(const char *path)
 {
-    char **names = NULL, **paths = NULL;
-    size_t n = 0, cap = 0;
+    FILE *fp = fopen(path, "r");
+    if (!fp)
+        return true; /* unreadable: listed, and loading it says why */
+    char line[LW_INI_LINE_MAX + 2];
+    bool found = false;
+    for (int k = 0; k < 2000 && !found && fgets(line, sizeof line, fp); k++) {
+        const char *p = line;
+        while (*p == ' ' || *p == '\t')
+            p++;
+        found = !strncmp(p, "[cell]", 6);
+    }
+    fclose(fp);
+    return found;
+}
+
+/* Append a copy of text to a growing array. */
+static bool push_str(char ***arr, size_t n, const char *text)
+{
+    char **a = realloc(*arr, (n + 1) * sizeof *a);
+    if (!a)
+        return false;
+    *arr = a;
+    a[n] = strdup(text);
+    return a[n] != NULL; /* a[n] is not counted on failure: nothing to free */
+}
+
+lw_status lw_cell_list_read(const lw_search *search, lw_cell_list *l, lw_error *err)
+{
+    memset(l, 0, sizeof *l);
     for (size_t i = 0; i < search->n; i++) {
         DIR *dir = opendir(search->dirs[i]);
         if (!dir)
             continue;
-        size_t first = n;
+        size_t first = l->n;
         struct dirent *de;
-        while ((de = readdir(dir)) != NULL) {
+        bool oom = false;
+        while (!oom && (de = readdir(dir)) != NULL) {
             size_t len = strlen(de->d_name);
             if (len <= 4 || strcmp(de->d_name + len - 4, ".ini") != 0 || de->d_name[0] == '.')
                 continue;
-            char name[LW_PATH_MAX];
+            char name[LW_PATH_MAX], full[LW_PATH_MAX];
             snprintf(name, sizeof name, "%.*s", (int)(len - 4), de->d_name);
+            lw_path_join(full, sizeof full, search->dirs[i], de->d_name);
             bool dup = false;
-            for (size_t k = 0; k < n && !dup; k++)
-                dup = !strcmp(names[k], name);
+            for (size_t k = 0; k < l->n && !dup; k++)
+                dup = !strcmp(l->names[k], name);
             if (dup)
                 continue;
-            if (n == cap) {
-                cap = cap ? 2 * cap : 32;
-                char **nn = realloc(names, cap * sizeof *nn);
-                if (nn)
-                    names = nn;
-                char **pp = nn ? realloc(paths, cap * sizeof *pp) : NULL;
-                if (pp)
-                    paths = pp;
-                if (!nn || !pp) {
-                    closedir(dir);
-                    lw_cell_names_free(names, paths, n);
-                    return lw_error_set(err, LW_ENOMEM, NULL, 0, "out of memory");
-                }
+            if (!has_cell_section(full)) {
+                oom = !push_str(&l->skipped, l->nskipped, full);
+                l->nskipped += !oom;
+                continue;
             }
-            char full[LW_PATH_MAX];
-            lw_path_join(full, sizeof full, search->dirs[i], de->d_name);
-            names[n] = strdup(name);
-            paths[n] = strdup(full);
-            if (!names[n] || !paths[n]) {
-                free(names[n]);
-                free(paths[n]);
-                closedir(dir);
-                lw_cell_names_free(names, paths, n);
-                return lw_error_set(err, LW_ENOMEM, NULL, 0, "out of memory");
+            oom = !push_str(&l->names, l->n, name);
+            if (!oom && !push_str(&l->paths, l->n, full)) {
+                free(l->names[l->n]);
+                oom = true;
             }
-            n++;
+            if (!oom)
+                l->n++;
         }
         closedir(dir);
+        if (oom) {
+            lw_cell_list_clear(l);
+            return lw_error_set(err, LW_ENOMEM, NULL, 0, "out of memory");
+        }
         /* sort this folder's names, keeping paths alongside */
-        for (size_t a = first + 1; a < n; a++)
-            for (size_t b = a; b > first && cmp_str(&names[b - 1], &names[b]) > 0; b--) {
-                char *t = names[b];
-                names[b] = names[b - 1];
-                names[b - 1] = t;
-                t = paths[b];
-                paths[b] = paths[b - 1];
-                paths[b - 1] = t;
+        for (size_t a = first + 1; a < l->n; a++)
+            for (size_t b = a; b > first && cmp_str(&l->names[b - 1], &l->names[b]) > 0; b--) {
+                char *t = l->names[b];
+                l->names[b] = l->names[b - 1];
+                l->names[b - 1] = t;
+                t = l->paths[b];
+                l->paths[b] = l->paths[b - 1];
+                l->paths[b - 1] = t;
             }
     }
-    *names_out = names;
-    *paths_out = paths;
-    *n_out = n;
     return LW_OK;
 }
 
@@ -461,9 +483,9 @@ lw_status lw_cell_save(const char *ini_path, const lw_cell *cell, const char *co
     lw_csvw_text(&w, "resistance_ohm");
     lw_csvw_end_row(&w);
     for (size_t i = 0; i < cell->ocv->n; i++) {
-        lw_csvw_num(&w, 100.0 * cell->ocv->x[i], 6);
-        lw_csvw_num(&w, cell->ocv->y[i], 6);
-        lw_csvw_num(&w, cell->res->y[i], 6);
+        lw_csvw_num(&w, 100.0 * cell->ocv->x[i]);
+        lw_csvw_num(&w, cell->ocv->y[i]);
+        lw_csvw_num(&w, cell->res->y[i]);
         lw_csvw_end_row(&w);
     }
     FILE *fp = ini.fp;

@@ -49,12 +49,19 @@ lw_status lw_cell_load(const char *path, lw_cell *cell, lw_error *err);
 lw_status lw_cell_find(const char *ref, const char *base_dir, const lw_search *search,
                        char *path, size_t size, lw_error *err);
 
-/* Names (file names without ".ini") of the cell files in the search folders,
- * first folder first, each name once, sorted within a folder.  *names is a
- * malloc'd array of malloc'd strings; free with lw_cell_names_free. */
-lw_status lw_cell_names(const lw_search *search, char ***names, char ***paths, size_t *n,
-                        lw_error *err);
-void lw_cell_names_free(char **names, char **paths, size_t n);
+/* The cell files of the search folders: names (file names without
+ * ".ini"), first folder first, each name once, sorted within a folder.  An
+ * INI file without a [cell] section (a light profile kept beside the
+ * cells) is not a cell file: its path goes to `skipped`. */
+typedef struct lw_cell_list {
+    char **names, **paths;
+    size_t n;
+    char **skipped;
+    size_t nskipped;
+} lw_cell_list;
+
+lw_status lw_cell_list_read(const lw_search *search, lw_cell_list *list, lw_error *err);
+void lw_cell_list_clear(lw_cell_list *list);
 
 /* Check that a file named by a key can be opened; the error names the file
  * and line of the key (from_file:from_line) and `what` (e.g. "[cell] curve"). */

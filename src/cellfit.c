@@ -208,6 +208,83 @@ static void rdp(const double *x, const double *y, size_t a, size_t b, double tol
     }
 }
 
+/* Near the end both logs are normalised to reach the end point at 100 %
+ * depth, so their difference -- the resistance -- collapses there although
+ * the cell's resistance rises, and on the steep knee before it a depth
+ * misalignment of the two logs of a fraction of a percent moves their
+ * difference by more than the IR drop itself.  The stated rule: R and OCV
+ * come from both logs while the heavier log is at least RELIABLE_MARGIN
+ * times the IR-drop difference (I_hi - I_lo) * R~ above the end point (R~
+ * the median resistance from 10 to 90 % depth) and the lighter log's slope
+ * dV/dd is at most KNEE_SLOPE times its median from 10 to 90 %; beyond that
+ * depth R continues on the least-squares line through the last TREND_SPAN
+ * of depth before it, never falling, and OCV = V_lo + I_lo * R from the
+ * lighter log. */
+#define RELIABLE_MARGIN 3.0
+#define KNEE_SLOPE 10.0
+#define TREND_SPAN 0.10
+
+static int cmp_dbl(const void *a, const void *b)
+{
+    double x = *(const double *)a, y = *(const double *)b;
+    return (x > y) - (x < y);
+}
+
+/* The last dense index at which both logs give the resistance. */
+/* Median of the values of f over the dense depths from 10 to 90 %. */
+static double mid_median(const double *d, const double *f)
+{
+    double mid[DENSE];
+    size_t nm = 0;
+    for (size_t k = 0; k < DENSE; k++)
+        if (d[k] >= 0.1 && d[k] <= 0.9)
+            mid[nm++] = f[k];
+    qsort(mid, nm, sizeof *mid, cmp_dbl);
+    return nm ? mid[nm / 2] : f[DENSE / 2];
+}
+
+static size_t reliable_limit(const reduced *lo, const reduced *hi, double cutoff_v,
+                             const double *d, const double *res)
+{
+    double slope[DENSE];
+    for (size_t k = 0; k < DENSE; k++) {
+        size_t a = k ? k - 1 : k, b = k + 1 < DENSE ? k + 1 : k;
+        slope[k] = fabs(at_depth(lo, lo->v, d[b]) - at_depth(lo, lo->v, d[a])) / (d[b] - d[a]);
+    }
+    double r_med = mid_median(d, res), s_med = mid_median(d, slope);
+    for (size_t k = 0; k < DENSE; k++) {
+        double di = at_depth(hi, hi->i, d[k]) - at_depth(lo, lo->i, d[k]);
+        if (at_depth(hi, hi->v, d[k]) - cutoff_v < RELIABLE_MARGIN * di * r_med ||
+            (d[k] > 0.5 && slope[k] > KNEE_SLOPE * s_med))
+            return k > 0 ? k - 1 : 0;
+    }
+    return DENSE - 1;
+}
+
+static void extend_near_end(const reduced *lo, const double *d, size_t lim, double *rs,
+                            double *ocv)
+{
+    /* the trend of R over the last TREND_SPAN of depth before lim */
+    double sx = 0, sy = 0, sxx = 0, sxy = 0;
+    int m = 0;
+    for (size_t k = 0; k <= lim; k++) {
+        if (d[k] < d[lim] - TREND_SPAN)
+            continue;
+        sx += d[k];
+        sy += rs[k];
+        sxx += d[k] * d[k];
+        sxy += d[k] * rs[k];
+        m++;
+    }
+    double den = m * sxx - sx * sx;
+    double slope = m > 1 && den > 0 ? (m * sxy - sx * sy) / den : 0.0;
+    double icpt = m > 0 ? (sy - slope * sx) / m : rs[lim];
+    for (size_t k = lim + 1; k < DENSE; k++) {
+        rs[k] = fmax(rs[k - 1], icpt + slope * d[k]);
+        ocv[k] = at_depth(lo, lo->v, d[k]) + at_depth(lo, lo->i, d[k]) * rs[k];
+    }
+}
+
 lw_status lw_fit_cell(const lw_dlog *logs, size_t nlogs, const lw_cellfit_options *opt,
                       lw_cellfit *out, lw_error *err)
 {
@@ -249,25 +326,33 @@ lw_status lw_fit_cell(const lw_dlog *logs, size_t nlogs, const lw_cellfit_option
             ocv[k] = at_depth(&r[0], r[0].v, d[k]) + at_depth(&r[0], r[0].i, d[k]) * res[k];
         }
     }
-    /* smooth R over +-2.5 % of depth (the difference of two noisy logs) */
+    /* where both logs give R (two logs), then R smoothed over +-1.25 % of
+     * depth within that range (the difference of two noisy logs) */
+    size_t lim = DENSE - 1;
+    if (st == LW_OK && nlogs == 2)
+        lim = reliable_limit(&r[lo], &r[hi], opt->cutoff_v, d, res);
     double rs[DENSE];
-    for (size_t k = 0; k < DENSE && st == LW_OK; k++) {
+    for (size_t k = 0; k <= lim && st == LW_OK; k++) {
         double s = 0;
         int m = 0;
         for (int j = -5; j <= 5; j++) {
             long idx = (long)k + j;
-            if (idx >= 0 && idx < DENSE) {
+            if (idx >= 0 && idx <= (long)lim) {
                 s += res[idx];
                 m++;
             }
         }
         rs[k] = s / m;
+    }
+    out->reliable_depth = d[lim];
+    if (st == LW_OK && lim + 1 < DENSE)
+        extend_near_end(&r[lo], d, lim, rs, ocv);
+    for (size_t k = 0; k < DENSE && st == LW_OK; k++)
         if (!(rs[k] > 0))
             st = lw_error_set(err, LW_EINPUT, logs[0].path, 0,
                               "the logs give a resistance of %.4g ohm at %.0f %% depth: check "
                               "the loads and that both logs are of the same cell type",
                               rs[k], 100.0 * d[k]);
-    }
     /* OCV must not rise with depth: take the running minimum (noise only) */
     for (size_t k = 1; k < DENSE && st == LW_OK; k++)
         ocv[k] = fmin(ocv[k], ocv[k - 1]);

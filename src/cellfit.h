@@ -11,7 +11,9 @@
  *                     (located by linear interpolation between samples);
  *   depth             d = Q / capacity of that log;
  *   two logs (loads 1 and 2) at equal depth: R(d) = (V1 - V2)/(I2 - I1),
- *                     OCV(d) = V1 + I1 R(d)  (Ohm's law, Kirchhoff's law);
+ *                     OCV(d) = V1 + I1 R(d)  (Ohm's law, Kirchhoff's law),
+ *                     while the heavier log is well above the end point;
+ *                     beyond, R on its trend, never falling (cellfit.c);
  *   one log           OCV(d) = V + I R with R given by the user;
  *   rate exponent     Peukert's law from the two capacities at the mean
  *                     currents: k = 1 + ln(C1/C2)/ln(I2/I1);
@@ -61,6 +63,8 @@ typedef struct lw_cellfit {
     bool peukert_estimated;
     bool peukert_clamped;     /* the estimate fell outside 1..2 */
     double max_dev_v;         /* thinned curve against the dense one */
+    double reliable_depth;    /* two logs: R and OCV from both up to this depth,
+                                 extended beyond it by the stated rule */
     size_t dense_points;
 } lw_cellfit;
 

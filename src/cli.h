@@ -1,12 +1,129 @@
 /*
- * cli.h - the lampwick command line: argument parsing, printing, exit codes.
+ * cli.h - the lampwick command line: what the command files share.
+ *
+ * Owns: the command and option tables (each command declares its options
+ * once, with argument name and help line; getopt's table, the help text
+ * and the parsing all come from that one table), exit codes, error
+ * printing, the cell search path, and loading a profile with --mode and
+ * --set.  The command line only parses, calls liblampwick and prints.
  *
  * Exit status: 0 success; 1 a valid run that gives no answer (a light that
- * never lights, nothing fits, a numerical failure); 2 bad usage or bad input.
+ * gives no light, nothing fits, a numerical failure); 2 bad usage or bad
+ * input, or output that could not be written.
  */
 #ifndef LW_CLI_H
 #define LW_CLI_H
 
+#include <stdbool.h>
+#include <stdio.h>
+#include "lampwick.h"
+
+#define EXIT_NOANSWER 1
+#define EXIT_BADINPUT 2
+
 int lw_cli_main(int argc, char **argv);
+
+/* ---- option and command tables ---- */
+
+enum {
+    OPT_HELP = 'h',
+    OPT_SET = 1000, OPT_MODE, OPT_FORMAT, OPT_TRACE, OPT_PLOT, OPT_VARY, OPT_THREADS,
+    OPT_TARGET_MA, OPT_TARGET_LM, OPT_ESERIES, OPT_RUNTIME, OPT_FLUX, OPT_CELLS, OPT_MAXS,
+    OPT_MAXP, OPT_TOP, OPT_STORED, OPT_COLUMNS, OPT_MODEL, OPT_JUNCTION, OPT_SECTION,
+    OPT_LOAD_OHM, OPT_LOAD_MA, OPT_CUTOFF, OPT_RES, OPT_NAME, OPT_OUT, OPT_CHEM, OPT_RECH,
+    OPT_TOL
+};
+
+typedef struct cli_option {
+    const char *name;  /* long name without the dashes */
+    const char *arg;   /* argument shown in the help ("FILE.csv"); NULL: a flag */
+    int id;            /* what getopt returns */
+    const char *help;  /* one line (a second line may follow after "\n") */
+} cli_option;
+
+/* The options several commands share, as table rows. */
+#define CLI_OPT_SET {"set", "SECTION.KEY=VALUE", OPT_SET, "override a profile value (repeatable)"}
+#define CLI_OPT_MODE {"mode", "NAME", OPT_MODE, "apply the overrides of [mode NAME]"}
+#define CLI_OPT_FORMAT {"format", "text|csv|md", OPT_FORMAT, "output format (default text)"}
+#define CLI_OPT_THREADS                                                                         \
+    {"threads", "N", OPT_THREADS, "worker threads (default: the cores this process may use)"}
+#define CLI_OPT_HELP {"help", NULL, OPT_HELP, "show this help"}
+#define CLI_OPT_END {NULL, NULL, 0, NULL}
+
+typedef struct cli_command {
+    const char *name;           /* "run", "fit led" */
+    const char *synopsis;       /* after "lampwick NAME " */
+    const char *about;          /* what it does, a paragraph or two */
+    const cli_option *options;  /* ends with CLI_OPT_END */
+    const char *notes;          /* after the options; may be NULL */
+    int (*run)(int argc, char **argv);
+} cli_command;
+
+/* Every command, in the order of `lampwick help`. */
+extern const cli_command cli_commands[];
+extern const size_t cli_ncommands;
+
+/* The command of that name, or NULL. */
+const cli_command *cli_find(const char *name);
+
+/* Write a command's help: usage, about, every option, notes. */
+void cli_help(const cli_command *cmd, FILE *fp);
+
+/* Parse argv against the command's table, calling on_option for each
+ * option in order.  Returns 0 with *first set to the first operand, -1 when
+ * --help was printed, or the exit code of a usage error (printed once, with
+ * the offending option). */
+typedef int (*cli_on_option)(void *ctx, int id, const char *arg);
+int cli_parse(const cli_command *cmd, int argc, char **argv, cli_on_option fn, void *ctx,
+              int *first);
+
+/* ---- shared helpers ---- */
+
+typedef struct common_opts {
+    const char *sets[64];
+    size_t nsets;
+    const char *mode;
+    lw_format fmt;
+    int threads;
+} common_opts;
+
+/* Handle --set, --mode, --format, --threads; returns 1 when the option is
+ * not one of them, 0 when handled, or an exit code. */
+int common_option(const char *cmd, common_opts *o, int id, const char *arg);
+
+int exit_code(lw_status st);
+/* Print "lampwick: file:line: message" and return the exit code. */
+int report_error(const lw_error *err);
+/* Print a usage error once, with the hint to the command's help. */
+int usage_error(const char *cmd, const char *fmt, ...)
+#if defined(__GNUC__)
+    __attribute__((format(printf, 2, 3)))
+#endif
+    ;
+void build_search(lw_search *s);
+/* Load a profile, apply --mode and --set, and resolve. */
+lw_status load_profile(const char *path, const common_opts *o, lw_profile *prof, lw_error *err);
+/* Write a chart as SVG to path, atomically. */
+lw_status write_chart(const char *path, const lw_chart *chart, lw_error *err);
+/* Parse a list of cells ("LR6-alkaline,HR6-nimh" or "all") into a
+ * NULL-terminated array owned by *v. */
+lw_status parse_cells(const char *list, const lw_profile *prof, lw_vary *v, const char ***cells,
+                      lw_error *err);
+
+/* The commands. */
+int cli_run(int argc, char **argv);
+int cli_sweep(int argc, char **argv);
+int cli_pick(int argc, char **argv);
+int cli_size(int argc, char **argv);
+int cli_table(int argc, char **argv);
+int cli_fit_led(int argc, char **argv);
+int cli_fit_cell(int argc, char **argv);
+int cli_check(int argc, char **argv);
+int cli_cells(int argc, char **argv);
+
+/* Their option tables and texts (in the file of each command). */
+extern const cli_option cli_run_options[], cli_sweep_options[], cli_pick_options[],
+    cli_size_options[], cli_table_options[], cli_fit_led_options[], cli_fit_cell_options[],
+    cli_check_options[], cli_cells_options[];
 
 #endif

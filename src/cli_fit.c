@@ -2,49 +2,35 @@
  * cli_fit.c - `lampwick fit led` and `lampwick fit cell`: bench measurements
  * to model data.  Reads the files, calls fit.c / cellfit.c, prints, writes.
  */
-#include <getopt.h>
 #include <math.h>
 #include <stdio.h>
 #include <stdlib.h>
 #include <string.h>
 #include <time.h>
-#include "cli_common.h"
+#include "cli.h"
 
-const char *const lw_fit_help =
-    "Usage: lampwick fit led MEASUREMENTS.csv [OPTIONS]\n"
-    "       lampwick fit cell LOG.csv [LOG2.csv] (--load-ohm R[,R2] | --load-ma I[,I2])\n"
-    "                         --cutoff-v V [OPTIONS]\n"
-    "\n"
-    "fit led: least-squares fits of an LED's measured current and voltage\n"
-    "(columns current_ma, forward_v; optionally flux_lm or relative_pct):\n"
-    "  linear    V = threshold_v + slope_ohm * I\n"
-    "  shockley  V = n Vt ln(I/Is) + Rs I, linear in (1, ln I, I), solved by QR\n"
-    "  flux      flux = flux_lm (I/I_ref)^exponent, in log-log\n"
-    "with R^2, the residual standard error and standard errors, and an [led]\n"
-    "section ready to paste into a profile.\n"
-    "  --model linear|shockley|both  (default both)\n"
-    "  --junction-c T            junction temperature of the measurements (default 25)\n"
-    "  --write-profile-section   print only the [led] section\n"
-    "  --plot FILE.svg           points, fitted curves and residuals\n"
-    "  --format text|csv|md\n"
-    "\n"
-    "fit cell: a cell file from discharge logs (columns time_s, voltage_v and\n"
-    "optionally current_ma) into a constant resistance or current. The charge\n"
-    "removed is integrated to the end point; with two logs at different loads\n"
-    "the internal resistance against depth comes from the voltage difference at\n"
-    "equal depth and the Peukert exponent from the two capacities.\n"
-    "  --load-ohm R[,R2]         constant-resistance load of each log\n"
-    "  --load-ma I[,I2]          constant-current load of each log\n"
-    "  --cutoff-v V              end-point voltage (required)\n"
-    "  --resistance-ohm R        internal resistance, with a single log\n"
-    "  --name NAME               cell name (default: the output file's name)\n"
-    "  --out FILE.ini            write the cell file and FILE.curve.csv\n"
-    "  --chemistry CHEM          alkaline, nimh, li-ion, ... (default other)\n"
-    "  --rechargeable yes|no     (default no)\n"
-    "  --tolerance-mv T          curve thinning tolerance (default 5 mV)\n";
+const cli_option cli_fit_led_options[] = {
+    {"model", "linear|shockley|both", OPT_MODEL, "which I-V models to fit (default both)"},
+    {"junction-c", "T", OPT_JUNCTION,
+     "junction temperature of the measurements, C (default 25)"},
+    {"write-profile-section", NULL, OPT_SECTION, "print only the [led] section"},
+    {"plot", "FILE.svg", OPT_PLOT, "points, fitted curves and residuals"},
+    CLI_OPT_FORMAT,
+    CLI_OPT_HELP,
+    CLI_OPT_END};
 
-enum { OPT_MODEL = 2000, OPT_JUNCTION, OPT_SECTION, OPT_LOAD_OHM, OPT_LOAD_MA, OPT_CUTOFF,
-       OPT_RES, OPT_NAME, OPT_OUT, OPT_CHEM, OPT_RECH, OPT_TOL };
+const cli_option cli_fit_cell_options[] = {
+    {"load-ohm", "R[,R2]", OPT_LOAD_OHM, "constant-resistance load of each log"},
+    {"load-ma", "I[,I2]", OPT_LOAD_MA, "constant-current load of each log"},
+    {"cutoff-v", "V", OPT_CUTOFF, "end-point voltage (required)"},
+    {"resistance-ohm", "R", OPT_RES, "internal resistance, with a single log"},
+    {"name", "NAME", OPT_NAME, "cell name (default: the output file's name)"},
+    {"out", "FILE.ini", OPT_OUT, "write the cell file and FILE.curve.csv"},
+    {"chemistry", "CHEM", OPT_CHEM, "alkaline, nimh, li-ion, ... (default other)"},
+    {"rechargeable", "yes|no", OPT_RECH, "(default no)"},
+    {"tolerance-mv", "T", OPT_TOL, "curve thinning tolerance (default 5 mV)"},
+    CLI_OPT_HELP,
+    CLI_OPT_END};
 
 /* ---- fit led ---- */
 
@@ -114,17 +100,20 @@ static lw_status read_led_data(const char *path, led_data *d, lw_error *err)
 }
 
 static void print_section(FILE *fp, const lw_led_fit *lin, const lw_led_fit *sh,
-                          const lw_flux_fit *fx, bool relative, const led_data *d)
+                          const lw_flux_fit *fx, bool relative, const led_data *d,
+                          double junction_c)
 {
     fprintf(fp, "[led]\n");
     if (sh) {
-        fprintf(fp, "model = shockley\nideality = %.5g\nsaturation_a = %.5g\nseries_ohm = %.5g\n"
-                    "junction_c = %g\n",
-                sh->ideality, sh->saturation_a, sh->series_ohm, sh->junction_c);
+        fprintf(fp, "model = shockley\nideality = %.5g\nsaturation_a = %.5g\nseries_ohm = %.5g\n",
+                sh->ideality, sh->saturation_a, sh->series_ohm);
     } else {
         fprintf(fp, "model = linear\nthreshold_v = %.5g\nslope_ohm = %.5g\n", lin->threshold_v,
                 lin->slope_ohm);
     }
+    fprintf(fp, "; the junction temperature of the bench data (not a heating setting)\n"
+                "junction_c = %g\n",
+            junction_c);
     if (fx && !relative)
         fprintf(fp, "flux_lm = %.5g\nflux_current_ma = %.5g\nflux_exponent = %.4g\n",
                 fx->flux_lm, fx->ref_current_a * 1e3, fx->exponent);
@@ -143,67 +132,8 @@ static void print_section(FILE *fp, const lw_led_fit *lin, const lw_led_fit *sh,
             imax * 1e3);
 }
 
-static lw_status fit_plot(const char *path, const led_data *d, const lw_led_fit *lin,
-                          const lw_led_fit *sh, lw_error *err)
-{
-    size_t n = d->n, nc = 200;
-    double *b = malloc((3 * n + 4 * nc) * sizeof *b);
-    if (!b)
-        return lw_error_set(err, LW_ENOMEM, NULL, 0, "out of memory");
-    double *ima = b, *rl = b + n, *rs = b + 2 * n, *cx = b + 3 * n, *cl = cx + nc,
-           *cs = cl + nc, *cxs = cs + nc;
-    double lo = INFINITY, hi = 0;
-    for (size_t k = 0; k < n; k++) {
-        ima[k] = d->i_a[k] * 1e3;
-        lo = fmin(lo, ima[k]);
-        hi = fmax(hi, ima[k]);
-    }
-    for (size_t k = 0; k < n; k++) {
-        double i = d->i_a[k];
-        rl[k] = lin ? 1e3 * (d->v[k] - (lin->threshold_v + lin->slope_ohm * i)) : NAN;
-        rs[k] = sh ? 1e3 * (d->v[k] - (sh->lsq.coef[0] + sh->lsq.coef[1] * log(i) +
-                                       sh->lsq.coef[2] * i))
-                   : NAN;
-    }
-    bool logx = hi > 20 * lo;
-    for (size_t k = 0; k < nc; k++) {
-        double u = (double)k / (nc - 1);
-        cx[k] = cxs[k] = logx ? lo * pow(hi / lo, u) : lo + u * (hi - lo);
-        double i = cx[k] * 1e-3;
-        cl[k] = lin ? lin->threshold_v + lin->slope_ohm * i : NAN;
-        cs[k] = sh ? sh->lsq.coef[0] + sh->lsq.coef[1] * log(i) + sh->lsq.coef[2] * i : NAN;
-    }
-    lw_chart c = {0};
-    c.title = "LED forward voltage: measurements and fitted models";
-    c.x = (lw_axis){.label = "current (mA)", .log = logx};
-    c.npanels = 2;
-    lw_panel *p = &c.panels[0];
-    p->y = (lw_axis){.label = "forward voltage (V)"};
-    p->series[p->nseries++] = (lw_series){.name = "measured", .x = ima, .y = d->v, .n = n,
-                                          .points = true, .colour = 1};
-    if (lin)
-        p->series[p->nseries++] =
-            (lw_series){.name = "linear fit", .x = cx, .y = cl, .n = nc, .colour = 2};
-    if (sh)
-        p->series[p->nseries++] = (lw_series){.name = "Shockley fit", .x = cxs, .y = cs,
-                                              .n = nc, .dashed = true, .colour = 3};
-    p->height_share = 1.5;
-    p = &c.panels[1];
-    p->y = (lw_axis){.label = "residual (mV)"};
-    if (lin)
-        p->series[p->nseries++] = (lw_series){.name = "linear", .x = ima, .y = rl, .n = n,
-                                              .points = true, .colour = 2};
-    if (sh)
-        p->series[p->nseries++] = (lw_series){.name = "Shockley", .x = ima, .y = rs, .n = n,
-                                              .points = true, .colour = 3};
-    p->refs[p->nrefs++] = (lw_refline){0.0, "zero"};
-    lw_status st = write_chart(path, &c, err);
-    free(b);
-    return st;
-}
-
 static void print_fit_text(const lw_led_fit *lin, const lw_led_fit *sh, const lw_flux_fit *fx,
-                           bool relative, const led_data *d)
+                           bool relative, const led_data *d, double junction_c)
 {
     if (!d->i_a || d->n == 0)
         return;
@@ -238,7 +168,7 @@ static void print_fit_text(const lw_led_fit *lin, const lw_led_fit *sh, const lw
                fx->exponent, fx->lsq.stderr_[1], fx->lsq.r_squared);
     printf("Paste into a profile:\n\n");
     print_section(stdout, lin, sh && !sh->weak && (!lin || sh->lsq.rse < lin->lsq.rse) ? sh : NULL,
-                  fx, relative, d);
+                  fx, relative, d, junction_c);
 }
 
 static lw_status fit_table(const lw_led_fit *lin, const lw_led_fit *sh, const lw_flux_fit *fx,
@@ -286,78 +216,88 @@ static lw_status fit_table(const lw_led_fit *lin, const lw_led_fit *sh, const lw
     return st;
 }
 
-static int fit_led(int argc, char **argv)
+typedef struct led_args {
+    common_opts o;
+    bool want_lin, want_sh, section_only;
+    double tj;
+    const char *plot_path;
+} led_args;
+
+static int led_option(void *ctx, int id, const char *arg)
 {
-    static const struct option longopts[] = {
-        {"model", required_argument, NULL, OPT_MODEL},
-        {"junction-c", required_argument, NULL, OPT_JUNCTION},
-        {"write-profile-section", no_argument, NULL, OPT_SECTION},
-        {"plot", required_argument, NULL, OPT_PLOT},
-        {"format", required_argument, NULL, OPT_FORMAT},
-        {"help", no_argument, NULL, 'h'},
-        {NULL, 0, NULL, 0}};
-    common_opts o = {.fmt = LW_FMT_TEXT};
-    bool want_lin = true, want_sh = true, section_only = false;
-    double tj = 25;
-    const char *plot_path = NULL;
-    int c, rc = 0;
-    while ((c = getopt_long(argc, argv, "h", longopts, NULL)) != -1) {
-        switch (c) {
-        case 'h':
-            fputs(lw_fit_help, stdout);
-            return 0;
-        case OPT_MODEL:
-            want_lin = !strcmp(optarg, "linear") || !strcmp(optarg, "both");
-            want_sh = !strcmp(optarg, "shockley") || !strcmp(optarg, "both");
-            if (!want_lin && !want_sh)
-                return usage_error("fit", "--model takes linear, shockley or both");
-            break;
-        case OPT_JUNCTION:
-            if (!lw_parse_double(optarg, &tj) || tj < -60 || tj > 250)
-                return usage_error("fit", "--junction-c takes a temperature from -60 to 250");
-            break;
-        case OPT_SECTION:
-            section_only = true;
-            break;
-        case OPT_PLOT:
-            plot_path = optarg;
-            break;
-        default:
-            if (!common_option(c, &o, "fit", &rc))
-                return usage_error("fit", "unknown option");
-            if (rc)
-                return rc;
-        }
+    led_args *a = ctx;
+    switch (id) {
+    case OPT_MODEL:
+        a->want_lin = !strcmp(arg, "linear") || !strcmp(arg, "both");
+        a->want_sh = !strcmp(arg, "shockley") || !strcmp(arg, "both");
+        if (!a->want_lin && !a->want_sh)
+            return usage_error("fit led", "--model takes linear, shockley or both");
+        return 0;
+    case OPT_JUNCTION:
+        if (!lw_parse_double(arg, &a->tj) || a->tj < -60 || a->tj > 250)
+            return usage_error("fit led", "--junction-c takes a temperature from -60 to 250");
+        return 0;
+    case OPT_SECTION:
+        a->section_only = true;
+        return 0;
+    case OPT_PLOT:
+        a->plot_path = arg;
+        return 0;
+    default:
+        return common_option("fit led", &a->o, id, arg);
     }
-    if (optind + 1 != argc)
-        return usage_error("fit", "fit led takes one measurements file");
+}
+
+static lw_status fit_plot(const char *path, const led_data *d, const lw_led_fit *lin,
+                          const lw_led_fit *sh, lw_error *err)
+{
+    lw_outfile out;
+    lw_status st = lw_outfile_open(&out, path, err);
+    if (st != LW_OK)
+        return st;
+    st = lw_plot_led_fit(out.fp, d->i_a, d->v, d->n, lin, sh, err);
+    if (st != LW_OK) {
+        lw_outfile_abort(&out);
+        return st;
+    }
+    return lw_outfile_commit(&out, err);
+}
+
+int cli_fit_led(int argc, char **argv)
+{
+    led_args a = {.o = {.fmt = LW_FMT_TEXT}, .want_lin = true, .want_sh = true, .tj = 25};
+    int first, rc = cli_parse(cli_find("fit led"), argc, argv, led_option, &a, &first);
+    if (rc)
+        return rc < 0 ? 0 : rc;
+    if (first + 1 != argc)
+        return usage_error("fit led", "fit led takes one measurements file");
     lw_error err;
     lw_error_clear(&err);
     led_data d;
     lw_led_fit lin = {0}, sh = {0};
     lw_flux_fit fx = {0};
-    lw_status st = read_led_data(argv[optind], &d, &err);
-    if (st == LW_OK && want_lin)
+    lw_status st = read_led_data(argv[first], &d, &err);
+    if (st == LW_OK && a.want_lin)
         st = lw_fit_led_linear(d.i_a, d.v, d.n, &lin, &err);
-    if (st == LW_OK && want_sh)
-        st = lw_fit_led_shockley(d.i_a, d.v, d.n, tj, &sh, &err);
+    if (st == LW_OK && a.want_sh)
+        st = lw_fit_led_shockley(d.i_a, d.v, d.n, a.tj, &sh, &err);
     if (st == LW_OK && d.flux)
         st = lw_fit_flux(d.i_a, d.flux, d.n, &fx, &err);
     if (st != LW_OK && err.file[0] == '\0')
-        lw_strlcpy(err.file, argv[optind], sizeof err.file);
-    const lw_led_fit *pl = want_lin ? &lin : NULL, *ps = want_sh ? &sh : NULL;
+        lw_strlcpy(err.file, argv[first], sizeof err.file);
+    const lw_led_fit *pl = a.want_lin ? &lin : NULL, *ps = a.want_sh ? &sh : NULL;
     const lw_flux_fit *pf = d.flux ? &fx : NULL;
-    if (st == LW_OK && plot_path)
-        st = fit_plot(plot_path, &d, pl, ps, &err);
+    if (st == LW_OK && a.plot_path)
+        st = fit_plot(a.plot_path, &d, pl, ps, &err);
     if (st == LW_OK) {
-        if (section_only)
-            print_section(stdout, pl, ps && !ps->weak && (!pl || ps->lsq.rse < pl->lsq.rse) ? ps
-                                                                                        : NULL,
-                          pf, d.relative, &d);
-        else if (o.fmt == LW_FMT_TEXT)
-            print_fit_text(pl, ps, pf, d.relative, &d);
+        if (a.section_only)
+            print_section(stdout, pl,
+                          ps && !ps->weak && (!pl || ps->lsq.rse < pl->lsq.rse) ? ps : NULL, pf,
+                          d.relative, &d, a.tj);
+        else if (a.o.fmt == LW_FMT_TEXT)
+            print_fit_text(pl, ps, pf, d.relative, &d, a.tj);
         else
-            st = fit_table(pl, ps, pf, o.fmt, &err);
+            st = fit_table(pl, ps, pf, a.o.fmt, &err);
     }
     free(d.i_a);
     return st == LW_OK ? 0 : report_error(&err);
@@ -380,94 +320,95 @@ static int parse_pair(const char *s, double *a, double *b)
                                                                                           : 0;
 }
 
-static int fit_cell(int argc, char **argv)
+typedef struct cell_args {
+    lw_cellfit_options opt;
+    double load_ohm[2], load_a[2];
+    int nload;
+    const char *out_path;
+    char name[LW_NAME_MAX];
+} cell_args;
+
+static int cell_option(void *ctx, int id, const char *arg)
 {
-    static const struct option longopts[] = {
-        {"load-ohm", required_argument, NULL, OPT_LOAD_OHM},
-        {"load-ma", required_argument, NULL, OPT_LOAD_MA},
-        {"cutoff-v", required_argument, NULL, OPT_CUTOFF},
-        {"resistance-ohm", required_argument, NULL, OPT_RES},
-        {"name", required_argument, NULL, OPT_NAME},
-        {"out", required_argument, NULL, OPT_OUT},
-        {"chemistry", required_argument, NULL, OPT_CHEM},
-        {"rechargeable", required_argument, NULL, OPT_RECH},
-        {"tolerance-mv", required_argument, NULL, OPT_TOL},
-        {"help", no_argument, NULL, 'h'},
-        {NULL, 0, NULL, 0}};
-    lw_cellfit_options opt = {.cutoff_v = NAN, .resistance_ohm = NAN, .tolerance_v = 0.005,
-                              .chemistry = LW_CHEM_OTHER, .nominal_v = NAN};
-    double load_ohm[2] = {NAN, NAN}, load_a[2] = {NAN, NAN};
-    int nload = 0, c;
-    const char *out_path = NULL;
-    char name[LW_NAME_MAX] = "";
-    while ((c = getopt_long(argc, argv, "h", longopts, NULL)) != -1) {
-        switch (c) {
-        case 'h':
-            fputs(lw_fit_help, stdout);
-            return 0;
-        case OPT_LOAD_OHM:
-        case OPT_LOAD_MA: {
-            double a = NAN, b = NAN;
-            int k = parse_pair(optarg, &a, &b);
-            if (!k || nload)
-                return usage_error("fit", "give one --load-ohm or --load-ma: VALUE or V1,V2 "
-                                          "(positive numbers)");
-            nload = k;
-            double *dst = c == OPT_LOAD_OHM ? load_ohm : load_a;
-            double scale = c == OPT_LOAD_MA ? 1e-3 : 1.0;
-            dst[0] = a * scale;
-            dst[1] = (k == 2 ? b : a) * scale;
-            break;
-        }
-        case OPT_CUTOFF:
-            if (!lw_parse_double(optarg, &opt.cutoff_v) || !(opt.cutoff_v > 0))
-                return usage_error("fit", "--cutoff-v takes a positive voltage");
-            break;
-        case OPT_RES:
-            if (!lw_parse_double(optarg, &opt.resistance_ohm) || !(opt.resistance_ohm > 0))
-                return usage_error("fit", "--resistance-ohm takes a positive resistance");
-            break;
-        case OPT_NAME:
-            if (!lw_strlcpy(name, optarg, sizeof name))
-                return usage_error("fit", "--name is too long");
-            break;
-        case OPT_OUT:
-            out_path = optarg;
-            break;
-        case OPT_CHEM: {
-            int k = 0;
-            while (lw_chemistry_names[k] && strcmp(lw_chemistry_names[k], optarg) != 0)
-                k++;
-            if (!lw_chemistry_names[k])
-                return usage_error("fit", "--chemistry takes alkaline, nimh, nicd, li-fes2, "
-                                          "li-mno2, li-ion, lifepo4, lead-acid or other");
-            opt.chemistry = (lw_chemistry)k;
-            break;
-        }
-        case OPT_RECH:
-            if (strcmp(optarg, "yes") != 0 && strcmp(optarg, "no") != 0)
-                return usage_error("fit", "--rechargeable takes yes or no");
-            opt.rechargeable = !strcmp(optarg, "yes");
-            break;
-        case OPT_TOL: {
-            double mv;
-            if (!lw_parse_double(optarg, &mv) || !(mv > 0) || mv > 500)
-                return usage_error("fit", "--tolerance-mv takes 0 to 500");
-            opt.tolerance_v = mv * 1e-3;
-            break;
-        }
-        default:
-            return usage_error("fit", "unknown option");
-        }
+    cell_args *a = ctx;
+    switch (id) {
+    case OPT_LOAD_OHM:
+    case OPT_LOAD_MA: {
+        double x = NAN, y = NAN;
+        int k = parse_pair(arg, &x, &y);
+        if (!k || a->nload)
+            return usage_error("fit cell", "give one --load-ohm or --load-ma: VALUE or V1,V2 "
+                                           "(positive numbers)");
+        a->nload = k;
+        double *dst = id == OPT_LOAD_OHM ? a->load_ohm : a->load_a;
+        double scale = id == OPT_LOAD_MA ? 1e-3 : 1.0;
+        dst[0] = x * scale;
+        dst[1] = (k == 2 ? y : x) * scale;
+        return 0;
     }
-    int nlogs = argc - optind;
+    case OPT_CUTOFF:
+        if (!lw_parse_double(arg, &a->opt.cutoff_v) || !(a->opt.cutoff_v > 0))
+            return usage_error("fit cell", "--cutoff-v takes a positive voltage");
+        return 0;
+    case OPT_RES:
+        if (!lw_parse_double(arg, &a->opt.resistance_ohm) || !(a->opt.resistance_ohm > 0))
+            return usage_error("fit cell", "--resistance-ohm takes a positive resistance");
+        return 0;
+    case OPT_NAME:
+        if (!lw_strlcpy(a->name, arg, sizeof a->name))
+            return usage_error("fit cell", "--name is too long (at most %d bytes)",
+                               LW_NAME_MAX - 1);
+        return 0;
+    case OPT_OUT:
+        a->out_path = arg;
+        return 0;
+    case OPT_CHEM: {
+        int k = 0;
+        while (lw_chemistry_names[k] && strcmp(lw_chemistry_names[k], arg) != 0)
+            k++;
+        if (!lw_chemistry_names[k])
+            return usage_error("fit cell", "--chemistry takes alkaline, nimh, nicd, li-fes2, "
+                                           "li-mno2, li-ion, lifepo4, lead-acid or other");
+        a->opt.chemistry = (lw_chemistry)k;
+        return 0;
+    }
+    case OPT_RECH:
+        if (strcmp(arg, "yes") != 0 && strcmp(arg, "no") != 0)
+            return usage_error("fit cell", "--rechargeable takes yes or no");
+        a->opt.rechargeable = !strcmp(arg, "yes");
+        return 0;
+    case OPT_TOL: {
+        double mv;
+        if (!lw_parse_double(arg, &mv) || !(mv > 0) || mv > 500)
+            return usage_error("fit cell", "--tolerance-mv takes 0 to 500");
+        a->opt.tolerance_v = mv * 1e-3;
+        return 0;
+    }
+    default:
+        return usage_error("fit cell", "unknown option");
+    }
+}
+
+int cli_fit_cell(int argc, char **argv)
+{
+    cell_args a = {.opt = {.cutoff_v = NAN, .resistance_ohm = NAN, .tolerance_v = 0.005,
+                           .chemistry = LW_CHEM_OTHER, .nominal_v = NAN},
+                   .load_ohm = {NAN, NAN}, .load_a = {NAN, NAN}};
+    int optind_ = 0, rc = cli_parse(cli_find("fit cell"), argc, argv, cell_option, &a, &optind_);
+    if (rc)
+        return rc < 0 ? 0 : rc;
+    lw_cellfit_options opt = a.opt;
+    const char *out_path = a.out_path;
+    char *name = a.name;
+    double *load_ohm = a.load_ohm, *load_a = a.load_a;
+    int nlogs = argc - optind_;
     if (nlogs < 1 || nlogs > 2)
-        return usage_error("fit", "fit cell takes one or two discharge logs");
+        return usage_error("fit cell", "fit cell takes one or two discharge logs");
     if (isnan(opt.cutoff_v))
-        return usage_error("fit", "give the end-point voltage with --cutoff-v");
+        return usage_error("fit cell", "give the end-point voltage with --cutoff-v");
     if (!name[0] && out_path) {
         const char *base = strrchr(out_path, '/');
-        snprintf(name, sizeof name, "%s", base ? base + 1 : out_path);
+        snprintf(name, LW_NAME_MAX, "%s", base ? base + 1 : out_path);
         char *dot = strstr(name, ".ini");
         if (dot)
             *dot = '\0';
@@ -479,7 +420,7 @@ static int fit_cell(int argc, char **argv)
     memset(logs, 0, sizeof logs);
     lw_status st = LW_OK;
     for (int k = 0; k < nlogs && st == LW_OK; k++)
-        st = lw_dlog_read(argv[optind + k], load_ohm[k], load_a[k], &logs[k], &err);
+        st = lw_dlog_read(argv[optind_ + k], load_ohm[k], load_a[k], &logs[k], &err);
     lw_cellfit fit;
     memset(&fit, 0, sizeof fit);
     if (st == LW_OK)
@@ -489,7 +430,7 @@ static int fit_cell(int argc, char **argv)
         printf("cell %s from %d log%s, end point %g V\n", cl->name, nlogs, nlogs > 1 ? "s" : "",
                opt.cutoff_v);
         for (int k = 0; k < nlogs; k++)
-            printf("  %s: %.5g mAh in %.4g h, mean %.5g mA\n", argv[optind + k],
+            printf("  %s: %.5g mAh in %.4g h, mean %.5g mA\n", argv[optind_ + k],
                    fit.capacity_ah[k] * 1e3, fit.hours[k], fit.mean_a[k] * 1e3);
         printf("  capacity_mah %.5g at rated_ma %.5g\n", cl->capacity_ah * 1e3,
                cl->rated_a * 1e3);
@@ -518,7 +459,7 @@ static int fit_cell(int argc, char **argv)
                      "Fitted by lampwick fit cell on %s from %s%s%s, end point %g V.\n"
                      "Measured data of one sample: check it against further samples and the "
                      "maker's data.",
-                     date, argv[optind], nlogs > 1 ? " and " : "", nlogs > 1 ? argv[optind + 1] : "",
+                     date, argv[optind_], nlogs > 1 ? " and " : "", nlogs > 1 ? argv[optind_ + 1] : "",
                      opt.cutoff_v);
             st = lw_cell_save(out_path, cl, comment, &err);
             if (st == LW_OK)
@@ -530,17 +471,4 @@ static int fit_cell(int argc, char **argv)
     for (int k = 0; k < 2; k++)
         lw_dlog_clear(&logs[k]);
     return code;
-}
-
-int lw_cmd_fit(int argc, char **argv)
-{
-    if (argc < 2 || (strcmp(argv[1], "led") != 0 && strcmp(argv[1], "cell") != 0)) {
-        if (argc >= 2 && (!strcmp(argv[1], "-h") || !strcmp(argv[1], "--help"))) {
-            fputs(lw_fit_help, stdout);
-            return 0;
-        }
-        return usage_error("fit", "say what to fit: 'fit led FILE' or 'fit cell LOG...'");
-    }
-    optind = 1;
-    return !strcmp(argv[1], "led") ? fit_led(argc - 1, argv + 1) : fit_cell(argc - 1, argv + 1);
 }

@@ -279,11 +279,10 @@ void lw_csvw_text(lw_csvw *w, const char *s)
     }
 }
 
-void lw_csvw_num(lw_csvw *w, double v, int sig)
+void lw_csvw_num(lw_csvw *w, double v)
 {
-    char buf[64] = "";
-    if (isfinite(v))
-        snprintf(buf, sizeof buf, "%.*g", sig, v);
+    char buf[64];
+    lw_format_double(buf, sizeof buf, v);
     lw_csvw_text(w, buf);
 }
 

@@ -60,8 +60,9 @@ typedef struct lw_csvw {
 
 void lw_csvw_init(lw_csvw *w, FILE *fp);
 void lw_csvw_text(lw_csvw *w, const char *s);
-/* A number with `sig` significant digits; NaN is written as an empty field. */
-void lw_csvw_num(lw_csvw *w, double v, int sig);
+/* A number in full precision (the shortest text that reads back exactly);
+ * NaN and infinities are written as an empty field. */
+void lw_csvw_num(lw_csvw *w, double v);
 void lw_csvw_end_row(lw_csvw *w);
 
 /* ---- output files ---- */

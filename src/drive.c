@@ -7,6 +7,7 @@
 
 const char *const lw_drive_type_names[LW_DRIVE_TYPE_COUNT + 1] = {"resistor", "linear-cc",
                                                                    "converter", NULL};
+const char *const lw_reference_names[LW_REF_COUNT + 1] = {"own", "fresh", NULL};
 
 void lw_light_clear(lw_light *light)
 {
@@ -61,6 +62,7 @@ static void fill_string(const lw_light *l, lw_point *pt, double i, double v_led,
     pt->led_a = i;
     pt->led_v = v_led;
     pt->pack_a = m * i;
+    pt->pack_avg_a = duty * pt->pack_a;
     pt->cell_a = pt->pack_a / l->pack.parallel;
     pt->pack_v = e_v - pt->pack_a * r_pack;
     pt->cell_v = pt->ocv_v - pt->cell_a * pt->r_cell_ohm;
@@ -75,22 +77,26 @@ static void fill_string(const lw_light *l, lw_point *pt, double i, double v_led,
     pt->flux_lm = duty * m * n * lw_led_flux(&l->led, i, &pt->extrapolated);
 }
 
-static lw_status point_converter(const lw_light *l, double e_v, double r_pack, bool fallback,
-                                 lw_point *pt, lw_error *err)
+/* The converter at one point: the LEDs at the set (or fallback) current,
+ * the on-state input current from the quadratic, the quiescent draw between
+ * PWM pulses.  Dark (LW_REGIME_DROPOUT) when the pack cannot deliver the
+ * input power, or, at the set level, when the input is below min_input_v. */
+static void point_converter(const lw_light *l, double e_v, double r_pack, bool fallback,
+                            lw_point *pt)
 {
     const lw_drive *drv = &l->drive;
     const int m = l->led.strings, n = l->led.count;
-    const double duty = drv->duty_pct / 100.0;
+    const double duty = drv->duty_pct / 100.0, iq = drv->quiescent_a;
     double i = fallback ? drv->fallback_a : drv->set_a;
     double vled = lw_led_voltage(&l->led, i, &pt->extrapolated);
-    double p_out = duty * m * n * vled * i;
+    double p_out = m * n * vled * i; /* on-state output power */
     double eta = efficiency_at(drv, e_v), ip = 0.0;
     bool ok = false;
     /* The efficiency may depend on the input voltage, which depends on the
      * current drawn: a fixed point, converged in a few passes. */
-    for (int it = 0; it < 50; it++) {
+    for (int it = 0; it < LW_CONVERTER_FIXED_POINT_MAX; it++) {
         double ip_new;
-        ok = lw_converter_input_current(e_v, r_pack, drv->quiescent_a, p_out / eta, &ip_new);
+        ok = lw_converter_input_current(e_v, r_pack, iq, p_out / eta, &ip_new);
         if (!ok)
             break;
         double eta_new = efficiency_at(drv, e_v - ip_new * r_pack);
@@ -100,41 +106,44 @@ static lw_status point_converter(const lw_light *l, double e_v, double r_pack, b
         if (done || !drv->efficiency)
             break;
     }
-    double disc_b = e_v + r_pack * drv->quiescent_a;
-    double disc = disc_b * disc_b - 4.0 * r_pack * (e_v * drv->quiescent_a + p_out / eta);
+    double disc_b = e_v + r_pack * iq;
+    double disc = disc_b * disc_b - 4.0 * r_pack * (e_v * iq + p_out / eta);
     double g_disc = disc / (e_v * e_v > 0 ? e_v * e_v : 1.0);
-    if (!ok) {
-        pt->regime = LW_REGIME_DROPOUT;
-        pt->regulation_margin = g_disc < 0 ? g_disc : -1e-300;
-        pt->pack_v = e_v / 2.0;
-        pt->cell_v = pt->ocv_v / 2.0;
-        pt->dtdd_h = INFINITY;
-        return LW_OK;
-    }
     double vin = e_v - ip * r_pack;
+    /* the event function of the dropout: negative when dark */
+    double margin = g_disc;
+    if (ok && !fallback)
+        margin = fmin(margin, (vin - drv->min_input_v) / e_v);
+    if (!ok || margin < 0.0) {
+        pt->regime = LW_REGIME_DROPOUT;
+        pt->regulation_margin = margin < 0.0 ? margin : -1e-300;
+        pt->pack_v = e_v; /* dark: no current flows */
+        pt->cell_v = pt->ocv_v;
+        pt->dtdd_h = INFINITY;
+        return;
+    }
     pt->regime = fallback ? LW_REGIME_FALLBACK : LW_REGIME_REGULATED;
-    pt->regulation_margin = fmin(g_disc, (vin - drv->min_input_v) / e_v);
+    pt->regulation_margin = margin;
     pt->led_a = i;
     pt->led_v = vled;
     pt->pack_a = ip;
+    pt->pack_avg_a = duty * ip + (1.0 - duty) * iq;
     pt->cell_a = ip / l->pack.parallel;
     pt->pack_v = vin;
     pt->cell_v = pt->ocv_v - pt->cell_a * pt->r_cell_ohm;
-    pt->p_led_w = p_out;
+    pt->p_led_w = duty * p_out;
     pt->p_res_w = pt->p_res_peak_w = 0.0;
-    pt->p_int_w = ip * ip * r_pack;
-    pt->p_drawn_w = e_v * ip;
+    /* on-state and off-state (quiescent only) loss in the cells */
+    pt->p_int_w = (duty * ip * ip + (1.0 - duty) * iq * iq) * r_pack;
+    pt->p_drawn_w = e_v * pt->pack_avg_a;
     pt->p_drv_w = pt->p_drawn_w - pt->p_led_w - pt->p_int_w;
     pt->flux_lm = duty * m * n * lw_led_flux(&l->led, i, &pt->extrapolated);
-    (void)err;
-    return LW_OK;
 }
 
 lw_status lw_light_point_at(const lw_light *l, double depth, double ocv_v, double r_cell_ohm,
                             bool fallback, lw_point *pt, lw_error *err)
 {
     const int s = l->pack.series, p = l->pack.parallel, m = l->led.strings;
-    const double duty = l->drive.duty_pct / 100.0;
     *pt = (lw_point){0};
     pt->depth = depth;
     pt->ocv_v = ocv_v;
@@ -149,7 +158,7 @@ lw_status lw_light_point_at(const lw_light *l, double depth, double ocv_v, doubl
     pt->regime = LW_REGIME_PASSIVE;
     switch (l->drive.type) {
     case LW_DRIVE_CONVERTER:
-        st = point_converter(l, e_v, r_pack, fallback, pt, err);
+        point_converter(l, e_v, r_pack, fallback, pt);
         break;
     case LW_DRIVE_LINEAR_CC: {
         double set = l->drive.set_a;
@@ -180,7 +189,7 @@ lw_status lw_light_point_at(const lw_light *l, double depth, double ocv_v, doubl
     if (st != LW_OK)
         return st;
     if (pt->regime != LW_REGIME_DROPOUT) {
-        double ic_avg = duty * pt->cell_a;
+        double ic_avg = pt->pack_avg_a / p;
         /* discharge by the current plus self-discharge of the charge left */
         double rate = lw_self_discharge_per_h(&l->pack.cell) * (1.0 - depth);
         if (ic_avg > 0.0)

@@ -15,9 +15,16 @@
  *              otherwise E - dropout - I*(Rs + S*M*R/P) = N*V(I)
  *   converter  LEDs held at I = set (or fallback); input power
  *              P_in = P_out/eta + V_in*I_q drawn from E through S*R/P:
- *              (E - Ip*R)*(Ip - I_q) = P_out/eta, smaller root.
- * PWM at duty D: the on-state values above are peak values; averages
- * (current, power, flux) are D times them; the cells see the average.
+ *              (E - Ip*R)*(Ip - I_q) = P_out/eta, smaller root.  Below
+ *              min_input_v at its input it cannot hold the set level: it
+ *              drops to the fallback level (which has no lockout) or goes
+ *              dark; so does it when the pack cannot deliver P_in at all.
+ * PWM at duty D: the on-state values above are peak values; the LED and
+ * resistor averages (current, power, flux) are D times them.  A converter's
+ * controller stays on between pulses: its quiescent current I_q is drawn all
+ * the time, so the pack's average current is D*Ip + (1 - D)*I_q.  The cells'
+ * depth advances at the average current; the loaded cell voltage is the
+ * on-state (peak) one.
  */
 #ifndef LW_DRIVE_H
 #define LW_DRIVE_H
@@ -56,8 +63,18 @@ typedef struct lw_drive {
     double standby_a;        /* drain while switched off, A */
 } lw_drive;
 
+typedef enum lw_reference { LW_REF_OWN, LW_REF_FRESH, LW_REF_COUNT } lw_reference;
+
+/* Names as written in profiles ("own", "fresh"). */
+extern const char *const lw_reference_names[LW_REF_COUNT + 1];
+
+/* Ambient temperature of the fresh reference, deg C. */
+#define LW_FRESH_REFERENCE_C 20.0
+
 typedef struct lw_cutoff {
-    double relative_pct;  /* end at this % of the 30-s output, 0 < x < 100 */
+    double relative_pct;  /* end at this % of the reference output, 0 < x < 100 */
+    lw_reference reference; /* own: this run's 30-s output; fresh: the 30-s output of
+                               the same light with fresh cells at 20 C */
     double flux_lm;       /* end at this absolute output; 0: no floor */
     double cell_v;        /* end at this loaded cell voltage, V */
 } lw_cutoff;
@@ -94,10 +111,11 @@ typedef struct lw_point {
     double r_cell_ohm;    /* per cell internal ohm at ambient */
     double led_a;         /* per string, peak (on-state) */
     double led_v;         /* per LED at led_a */
-    double cell_a;        /* per cell, peak */
+    double cell_a;        /* per cell, peak (on-state) */
     double cell_v;        /* per cell loaded V at peak current */
     double pack_v;        /* loaded pack terminal V at peak current */
-    double pack_a;        /* pack current, peak */
+    double pack_a;        /* pack current, peak (on-state) */
+    double pack_avg_a;    /* pack current averaged over the PWM period */
     double p_led_w;       /* average power into all LEDs */
     double p_res_w;       /* average power in all series resistors */
     double p_res_peak_w;  /* peak power in one series resistor */
@@ -105,7 +123,8 @@ typedef struct lw_point {
     double p_drv_w;       /* average loss in the regulator or converter */
     double p_drawn_w;     /* average power drawn from the cells' EMF */
     double flux_lm;       /* average light output of the whole light */
-    double dtdd_h;        /* hours per unit depth: C_eff(Ic_avg)/Ic_avg (inf if dark) */
+    double dtdd_h;        /* hours per unit depth: 1 / (dd/dt) at the average current
+                             (inf if dark) */
     double regulation_margin; /* linear-cc: headroom - dropout (V); converter: event
                                  function for dropout; resistor: 1 */
     lw_regime regime;
@@ -120,6 +139,11 @@ lw_status lw_light_point(const lw_light *light, double depth, bool fallback, lw_
 /* Same, with the cell's OCV and internal resistance given directly. */
 lw_status lw_light_point_at(const lw_light *light, double depth, double ocv_v,
                             double r_cell_ohm, bool fallback, lw_point *pt, lw_error *err);
+
+/* Passes of the converter's fixed point between efficiency and input
+ * voltage (efficiency table only); it settles in two to four passes on any
+ * table whose efficiency changes by less than its value per volt. */
+#define LW_CONVERTER_FIXED_POINT_MAX 50
 
 /* Hours in an average month (365.25 x 24 / 12). */
 #define LW_HOURS_PER_MONTH 730.5

@@ -7,15 +7,22 @@
  */
 #include "engine.h"
 
+#include <float.h>
 #include <math.h>
 #include <stdint.h>
+#include <stdio.h>
 #include <stdlib.h>
 #include <string.h>
 #include "roots.h"
 
 const char *const lw_end_reason_names[LW_END_COUNT + 1] = {
     "relative-brightness", "flux-floor", "cell-voltage", "capacity", "never-lit",
-    "driver-dropout", NULL};
+    "driver-dropout", "empty-at-start", "dim-at-start", NULL};
+
+bool lw_end_is_dark(lw_end_reason why)
+{
+    return why == LW_END_NEVER_LIT || why == LW_END_EMPTY_AT_START || why == LW_END_DIM_AT_START;
+}
 
 const char *const lw_warning_names[LW_WARN_COUNT_] = {
     "led-over-max", "led-over-max-worst-case", "resistor-hot", "over-discharge", "never-lit",
@@ -63,7 +70,9 @@ typedef struct engine {
     size_t seg;               /* curve interval being integrated; SIZE_MAX: search */
     double d0;                /* depth at switch-on */
     double knot_lo, knot_hi;  /* LED-table knots around the current (EV_KNOT) */
-    double knot_probe;        /* LED current at the sample where EV_KNOT fired */
+    int knot_dir;             /* +1: the current left through knot_hi, -1: through knot_lo */
+    double floor_lm;          /* absolute floor: cutoff.flux_lm or the visibility floor */
+    double fire_from;         /* depth of the not-fired side of the event last located */
     double end_d;             /* depth of end_pt: the last interval end solved */
     lw_point end_pt;
     bool done;
@@ -103,15 +112,16 @@ static double event_g(const engine *e, int k, const lw_point *pt)
     case EV_RELATIVE:
         return pt->flux_lm - l->cutoff.relative_pct / 100.0 * e->flux_ref;
     case EV_FLOOR:
-        return pt->flux_lm - l->cutoff.flux_lm;
+        return pt->flux_lm - e->floor_lm;
     case EV_CELL_V:
         return pt->cell_v - l->cutoff.cell_v;
     case EV_HALF:
         return pt->flux_lm - 0.5 * e->flux_ref;
     case EV_PEUKERT:
-        return l->drive.duty_pct / 100.0 * pt->cell_a - e->kink_a;
+        return pt->pack_avg_a / l->pack.parallel - e->kink_a;
     case EV_KNOT:
-        return fmin(pt->led_a - e->knot_lo, e->knot_hi - pt->led_a);
+        /* after a crossing, only the knot the current moves towards */
+        return e->knot_dir > 0 ? e->knot_hi - pt->led_a : pt->led_a - e->knot_lo;
     case EV_DROPOUT:
     case EV_REGULATION:
     default:
@@ -120,15 +130,47 @@ static double event_g(const engine *e, int k, const lw_point *pt)
 }
 
 /* Has event k fired at pt (given the state at the start of the piece)?
- * EV_KNOT fires when the current leaves its interval of table knots. */
+ * EV_KNOT fires when the current leaves the closed interval of table knots
+ * around it (a current held exactly at a knot stays inside). */
 static bool fired(const engine *e, int k, const lw_point *pt)
 {
     if (!e->active[k])
         return false;
+    if (pt->regime == LW_REGIME_DROPOUT && k != EV_DROPOUT)
+        return false; /* a dark point has no output, current or kink to speak of */
+    if (k == EV_KNOT)
+        return pt->led_a < e->knot_lo || pt->led_a > e->knot_hi;
     double g = event_g(e, k, pt);
-    if (kind_of(k) == EV_KINK && k != EV_KNOT)
+    if (kind_of(k) == EV_KINK)
         return (g > 0.0) != e->positive[k];
     return g <= 0.0;
+}
+
+/* Smallest knot of the LED's tables above x (dir > 0) or largest below
+ * (dir < 0); +-INFINITY past the ends. */
+static double next_knot(const engine *e, double x, int dir)
+{
+    const lw_led *led = &e->l->led;
+    const lw_table *t[2] = {led->model == LW_LED_TABLE ? led->iv : NULL, led->flux};
+    double best = dir > 0 ? INFINITY : -INFINITY;
+    for (int k = 0; k < 2; k++) {
+        if (!t[k])
+            continue;
+        const double *xs = t[k]->x;
+        size_t n = t[k]->n, lo = 0, hi = n; /* first index with xs[i] > x (dir > 0) */
+        while (lo < hi) {
+            size_t mid = lo + (hi - lo) / 2;
+            if (dir > 0 ? xs[mid] > x : xs[mid] >= x)
+                hi = mid;
+            else
+                lo = mid + 1;
+        }
+        if (dir > 0 && lo < n)
+            best = fmin(best, xs[lo]);
+        else if (dir < 0 && lo > 0)
+            best = fmax(best, xs[lo - 1]);
+    }
+    return best;
 }
 
 /* The knots of the LED's I-V and flux tables that bracket current i: the
@@ -136,24 +178,21 @@ static bool fired(const engine *e, int k, const lw_point *pt)
  * integration breaks where the current crosses one. */
 static void knot_interval(engine *e, double i)
 {
-    const lw_led *led = &e->l->led;
-    const lw_table *t[2] = {led->model == LW_LED_TABLE ? led->iv : NULL, led->flux};
-    e->knot_lo = -INFINITY;
-    e->knot_hi = INFINITY;
-    for (int k = 0; k < 2; k++) {
-        if (!t[k])
-            continue;
-        const double *x = t[k]->x;
-        size_t n = t[k]->n;
-        if (i < x[0]) {
-            e->knot_hi = fmin(e->knot_hi, x[0]);
-        } else if (i >= x[n - 1]) {
-            e->knot_lo = fmax(e->knot_lo, x[n - 1]);
-        } else {
-            size_t j = lw_table_find(t[k], i);
-            e->knot_lo = fmax(e->knot_lo, x[j]);
-            e->knot_hi = fmin(e->knot_hi, x[j + 1]);
-        }
+    e->knot_lo = next_knot(e, nextafter(i, INFINITY), -1); /* largest knot <= i */
+    e->knot_hi = next_knot(e, i, +1);                      /* smallest knot > i */
+    e->knot_dir = 0;
+}
+
+/* After the current crossed a knot at the located depth, the interval on
+ * the far side of that knot. */
+static void knot_cross(engine *e)
+{
+    if (e->knot_dir > 0) {
+        e->knot_lo = e->knot_hi;
+        e->knot_hi = next_knot(e, e->knot_lo, +1);
+    } else {
+        e->knot_hi = e->knot_lo;
+        e->knot_lo = next_knot(e, e->knot_hi, -1);
     }
 }
 
@@ -176,18 +215,28 @@ static double locate_fn(double d, void *vctx)
     return c->sign * g;
 }
 
-/* Depth in [a, b] where event k fires; g(a) not fired, g(b) fired. */
+/* Depth in [a, b] where event k fires; g(a) not fired, g(b) fired.  When
+ * the start point already sits on the event (g(a) at zero, by a jump or by
+ * rounding after the previous event) the event is at a. */
 static lw_status locate(engine *e, int k, double a, double b, const lw_point *pa,
                         const lw_point *pb, double *d)
 {
     struct locate_ctx c = {e, k, 1.0, false};
-    if (kind_of(k) == EV_KINK && !e->positive[k])
+    if (k == EV_KNOT)
+        e->knot_dir = pb->led_a > e->knot_hi ? +1 : -1;
+    if (kind_of(k) == EV_KINK && k != EV_KNOT && !e->positive[k])
         c.sign = -1.0;
     double ga = c.sign * event_g(e, k, pa), gb = c.sign * event_g(e, k, pb);
+    e->fire_from = a;
+    if (!(ga > 0.0)) {
+        *d = a;
+        return LW_OK;
+    }
     if (gb > 0.0) /* fired at exactly zero (stop events use <= 0) */
         gb = 0.0;
-    double tol = 1e-13 * (fabs(b) + 1e-3);
-    lw_status st = lw_root_brent(locate_fn, &c, a, b, ga, gb, tol, 200, d, e->err);
+    double tol = e->opt->event_tol * (fabs(b) + 1e-3);
+    lw_status st =
+        lw_root_brent(locate_fn, &c, a, b, ga, gb, tol, e->opt->event_iter_max, d, e->err);
     if (st == LW_OK && c.failed)
         st = e->err->code ? e->err->code : LW_ENUMERIC;
     return st;
@@ -222,15 +271,12 @@ static lw_status eval_nodes(engine *e, double a, double b, lw_point pts[NODES])
     return LW_OK;
 }
 
-/* Kronrod sums on [a, b] from node points in ascending order, and the
- * error estimate of each: the difference from the embedded 7-point Gauss
- * rule (conservative: the 15-point result is usually far better). */
-static void gk_sums(double a, double b, const lw_point pts[NODES], double k[NQ], double err[NQ])
+/* Kronrod sums with half-width h of integrand values f at the 15 nodes in
+ * ascending order, and the error estimate of each: the difference from the
+ * embedded 7-point Gauss rule (conservative: the 15-point result is usually
+ * far better). */
+static void gk_rule(double h, double f[NODES][NQ], double k[NQ], double err[NQ])
 {
-    double h = 0.5 * (b - a);
-    double f[NODES][NQ];
-    for (int j = 0; j < NODES; j++)
-        integrand(&pts[j], f[j]);
     for (int q = 0; q < NQ; q++) {
         double sk = wgk[7] * f[7][q], sg = wg[3] * f[7][q];
         for (int j = 0; j < 7; j++) {
@@ -242,6 +288,15 @@ static void gk_sums(double a, double b, const lw_point pts[NODES], double k[NQ],
         k[q] = h * sk;
         err[q] = fabs(h * (sk - sg));
     }
+}
+
+/* Kronrod sums on [a, b] from node points in ascending order. */
+static void gk_sums(double a, double b, const lw_point pts[NODES], double k[NQ], double err[NQ])
+{
+    double f[NODES][NQ];
+    for (int j = 0; j < NODES; j++)
+        integrand(&pts[j], f[j]);
+    gk_rule(0.5 * (b - a), f, k, err);
 }
 
 /* Does every total meet the relative tolerance on this piece? */
@@ -278,18 +333,37 @@ static void note_point(engine *e, const lw_point *pt)
         e->res->warnings |= LW_WARN_EXTRAPOLATED;
 }
 
-/* Accept or halve [a, b] with node values already computed; no events. */
-static lw_status integrate_nodes(engine *e, double a, double b, const lw_point pts[NODES],
-                                 int depth)
+/* Add an accepted piece [a, b] with its totals k and node points. */
+static lw_status accept_piece(engine *e, double a, double b, const lw_point pts[NODES],
+                              const double k[NQ], bool ok)
 {
-    double k[NQ], g[NQ];
-    gk_sums(a, b, pts, k, g);
     for (int q = 0; q < NQ; q++)
         if (!isfinite(k[q]))
             return lw_error_set(e->err, LW_ENUMERIC, NULL, 0,
                                 "the discharge rate vanished inside the run near depth %.6g "
                                 "(the light went dark without reaching a cutoff)",
                                 0.5 * (a + b));
+    if (!ok)
+        e->res->warnings |= LW_WARN_TOLERANCE;
+    lw_status st = add_piece(e, a, b);
+    if (st != LW_OK)
+        return st;
+    for (int j = 0; j < NODES; j++)
+        note_point(e, &pts[j]);
+    if (pts[7].regime == LW_REGIME_REGULATED)
+        e->res->regulated_h += k[Q_T];
+    for (int q = 0; q < NQ; q++)
+        e->tot[q] += k[q];
+    e->d_now = b;
+    return LW_OK;
+}
+
+/* Accept or halve [a, b] with node values already computed; no events. */
+static lw_status integrate_nodes(engine *e, double a, double b, const lw_point pts[NODES],
+                                 int depth)
+{
+    double k[NQ], g[NQ];
+    gk_sums(a, b, pts, k, g);
     bool ok = accurate(e, k, g);
     if (!ok && depth < e->opt->max_halvings) {
         double m = 0.5 * (a + b);
@@ -303,20 +377,7 @@ static lw_status integrate_nodes(engine *e, double a, double b, const lw_point p
             st = integrate_nodes(e, m, b, half, depth + 1);
         return st;
     }
-    if (!ok)
-        e->res->warnings |= LW_WARN_TOLERANCE;
-    lw_status st = add_piece(e, a, b);
-    if (st != LW_OK)
-        return st;
-    for (int j = 0; j < NODES; j++)
-        note_point(e, &pts[j]);
-    bool regulated = pts[7].regime == LW_REGIME_REGULATED;
-    if (regulated)
-        e->res->regulated_h += k[Q_T];
-    for (int q = 0; q < NQ; q++)
-        e->tot[q] += k[q];
-    e->d_now = b;
-    return LW_OK;
+    return accept_piece(e, a, b, pts, k, ok);
 }
 
 static lw_status integrate_plain(engine *e, double a, double b)
@@ -326,12 +387,60 @@ static lw_status integrate_plain(engine *e, double a, double b)
     return st == LW_OK ? integrate_nodes(e, a, b, pts, 0) : st;
 }
 
+/* [a, b] ending where a converter goes dark.  At its power limit the pack
+ * current goes as the square root of the distance to the limit, which no
+ * polynomial rule integrates well; with d = b - (b - a) s^2 the integrand
+ * times the Jacobian 2 (b - a) s is smooth in s (and a smooth integrand
+ * stays smooth), so the same rule runs on s in [s0, s1], halving in s. */
+static lw_status integrate_to_limit(engine *e, double a, double b, double s0, double s1,
+                                    int depth)
+{
+    lw_point pts[NODES];
+    double f[NODES][NQ];
+    for (int j = 0; j < NODES; j++) {
+        double sj = node_depth(s0, s1, NODES - 1 - j); /* descending s: ascending depth */
+        lw_status st = eval(e, b - (b - a) * sj * sj, &pts[j]);
+        if (st != LW_OK)
+            return st;
+        integrand(&pts[j], f[j]);
+        for (int q = 0; q < NQ; q++)
+            f[j][q] *= 2.0 * (b - a) * sj;
+    }
+    double k[NQ], g[NQ];
+    gk_rule(0.5 * (s1 - s0), f, k, g);
+    bool ok = accurate(e, k, g);
+    if (!ok && depth < e->opt->max_halvings) {
+        double m = 0.5 * (s0 + s1);
+        lw_status st = integrate_to_limit(e, a, b, m, s1, depth + 1);
+        return st == LW_OK ? integrate_to_limit(e, a, b, s0, m, depth + 1) : st;
+    }
+    return accept_piece(e, b - (b - a) * s1 * s1, s0 > 0 ? b - (b - a) * s0 * s0 : b, pts, k,
+                        ok);
+}
+
 static void finish(engine *e, lw_end_reason why, const lw_point *pt)
 {
     e->res->end_reason = why;
     e->res->end_depth = pt->depth;
     e->res->final = *pt;
     e->done = true;
+}
+
+/* The last operating point the driver held before it went dark at d: walk
+ * back from d in growing steps, at most to the not-fired side of the
+ * located event. */
+static lw_status held_point(engine *e, double d, lw_point *pt)
+{
+    double lo = e->fire_from;
+    double step = e->opt->event_tol * (fabs(d) + 1e-3);
+    for (int i = 0; i < 64; i++) {
+        double x = fmax(lo, d - step);
+        lw_status st = eval(e, x, pt);
+        if (st != LW_OK || pt->regime != LW_REGIME_DROPOUT || x == lo)
+            return st;
+        step *= 4.0;
+    }
+    return LW_OK;
 }
 
 /* Act on event k located at depth d (the totals already reach d). */
@@ -343,6 +452,7 @@ static lw_status fire(engine *e, int k, double d, lw_point *pt)
     if (st != LW_OK)
         return st;
     if (k == EV_DROPOUT) {
+        lw_point held = *pt; /* run_interval ends the lit part where the driver held */
         if (!e->fallback && e->l->drive.fallback_a > 0.0) {
             e->fallback = true;
             st = eval(e, d, pt);
@@ -352,7 +462,7 @@ static lw_status fire(engine *e, int k, double d, lw_point *pt)
             if (e->positive[EV_DROPOUT])
                 return LW_OK;
         }
-        finish(e, LW_END_DRIVER_DROPOUT, pt);
+        finish(e, LW_END_DRIVER_DROPOUT, &held);
         return LW_OK;
     }
     switch (kind_of(k)) {
@@ -366,7 +476,7 @@ static lw_status fire(engine *e, int k, double d, lw_point *pt)
     case EV_KINK:
     default:
         if (k == EV_KNOT)
-            knot_interval(e, e->knot_probe); /* the interval the current moved into */
+            knot_cross(e);
         else
             e->positive[k] = !e->positive[k];
         break;
@@ -397,10 +507,15 @@ static lw_status time_integral(engine *e, double a, double b, int depth, double 
 
 /* After the converter falls back to its low level the output has jumped:
  * events that the new point already satisfies happen here, at d, and the
- * kinks take the side of the new regime. */
+ * kinks take the side of the new regime.  The 50 % mark comes first: a
+ * jump to or below half while lit sets the time to half, also when the
+ * same jump ends the run. */
 static lw_status settle(engine *e, double d, lw_point *pt)
 {
-    for (int k = 0; k < NEV && !e->done; k++) {
+    static const int order[NEV] = {EV_HALF,    EV_RELATIVE, EV_FLOOR,      EV_CELL_V,
+                                   EV_DROPOUT, EV_PEUKERT,  EV_REGULATION, EV_KNOT};
+    for (int i = 0; i < NEV && !e->done; i++) {
+        int k = order[i];
         if (!e->active[k])
             continue;
         if (k == EV_KNOT) {
@@ -462,8 +577,6 @@ static lw_status run_interval(engine *e, double a, double b, lw_point pa, int de
             for (int k = 0; k < NEV; k++) {
                 if (!fired(e, k, &pts[j]))
                     continue;
-                if (k == EV_KNOT)
-                    e->knot_probe = pts[j].led_a;
                 double dk;
                 st = locate(e, k, d_prev, dj, prev, &pts[j], &dk);
                 if (st != LW_OK)
@@ -505,8 +618,17 @@ static lw_status run_interval(engine *e, double a, double b, lw_point pa, int de
                 return st;
             return run_interval(e, m, b, pm, depth + 1);
         }
+        if (first_k == EV_DROPOUT) {
+            /* end the lit part where the driver still held its level */
+            lw_point held;
+            st = held_point(e, d_star, &held);
+            if (st != LW_OK)
+                return st;
+            d_star = held.depth;
+        }
         if (d_star > a) {
-            st = integrate_plain(e, a, d_star);
+            st = first_k == EV_DROPOUT ? integrate_to_limit(e, a, d_star, 0.0, 1.0, 0)
+                                       : integrate_plain(e, a, d_star);
             if (st != LW_OK)
                 return st;
         }
@@ -522,7 +644,12 @@ static lw_status run_interval(engine *e, double a, double b, lw_point pa, int de
 
 lw_run_options lw_run_options_default(void)
 {
-    return (lw_run_options){.rtol = 1e-10, .max_halvings = 40, .start_depth = 0.0,
+    return (lw_run_options){.rtol = 1e-10,
+                            .max_halvings = 40,
+                            .visible_lm = LW_VISIBLE_LM,
+                            .event_tol = 1e-13,
+                            .event_iter_max = 200,
+                            .start_depth = 0.0,
                             .want_trace = false};
 }
 
@@ -568,22 +695,91 @@ static void set_warnings(const lw_light *l, lw_result *r)
         r->warnings |= LW_WARN_NO_CUTOFF;
 }
 
-/* Depth 30 s after switch-on, by the trapezoid rule on dt/dd (two passes;
- * the interval is so short that the rule's error is far below the tolerance). */
-static lw_status depth_at_30s(engine *e, const lw_point *p0, lw_point *p30)
+/* Time (h) from depth a to b >= a, split at the cell curve's points, each
+ * part to the run's tolerance (the search-mode solve finds the interval). */
+static lw_status time_between(engine *e, double a, double b, double *t_h)
 {
-    const double t30_h = 30.0 / 3600.0;
-    double d0 = e->d0;
-    double d = fmin(1.0, d0 + t30_h / p0->dtdd_h);
-    for (int pass = 0; pass < 2; pass++) {
-        lw_status st = eval(e, d, p30);
+    const lw_table *o = e->l->pack.cell.ocv;
+    size_t saved = e->seg;
+    e->seg = SIZE_MAX;
+    *t_h = 0.0;
+    lw_status st = LW_OK;
+    for (double x = a; st == LW_OK && x < b;) {
+        size_t i = lw_table_find(o, x);
+        double end = i + 2 < o->n ? fmin(b, o->x[i + 1]) : b;
+        st = time_integral(e, x, end, 0, t_h);
+        x = end;
+    }
+    e->seg = saved;
+    return st;
+}
+
+/* Three-point Gauss-Legendre time over a short interval: exact for
+ * quintics, so for the Newton corrections below (far shorter than any
+ * curve interval) its error is below rounding. */
+static lw_status time_short(engine *e, double a, double b, double *t_h)
+{
+    static const double x3 = 0.774596669241483377035853079956480, w0 = 8.0 / 9.0,
+                        w1 = 5.0 / 9.0;
+    double c = 0.5 * (a + b), h = 0.5 * (b - a), sum = 0.0;
+    const double xs[3] = {c - h * x3, c, c + h * x3}, ws[3] = {w1, w0, w1};
+    for (int j = 0; j < 3; j++) {
+        lw_point pt;
+        lw_status st = eval(e, xs[j], &pt);
         if (st != LW_OK)
             return st;
-        if (!isfinite(p30->dtdd_h))
-            return LW_OK;
-        d = fmin(1.0, d0 + 2.0 * t30_h / (p0->dtdd_h + p30->dtdd_h));
+        sum += ws[j] * pt.dtdd_h;
     }
-    return eval(e, d, p30);
+    *t_h = h * sum;
+    return LW_OK;
+}
+
+/* The point 30 s after switch-on (the FL 1 reference): the depth solving
+ * t(d) = 30 s, by Newton's method on the run's own quadrature (dt/dd is
+ * the integrand, so each step is exact to second order), safeguarded by
+ * bisection.  A light that goes dark or empty before 30 s has no 30-s
+ * point: *p30 is then the switch-on point. */
+static lw_status point_at_30s(engine *e, const lw_point *p0, lw_point *p30, double *d30)
+{
+    const double t30_h = 30.0 / 3600.0;
+    double lo = e->d0, hi = 1.0, d = fmin(1.0, e->d0 + t30_h / p0->dtdd_h);
+    double t_prev = 0.0, d_prev = e->d0;
+    *p30 = *p0;
+    *d30 = e->d0;
+    for (int it = 0; it < LW_T30_ITER_MAX; it++) {
+        double dt = 0.0;
+        lw_status st = fabs(d - d_prev) <= 1e-3 * (d_prev - e->d0)
+                           ? time_short(e, fmin(d, d_prev), fmax(d, d_prev), &dt)
+                           : time_between(e, fmin(d, d_prev), fmax(d, d_prev), &dt);
+        lw_point pt;
+        if (st == LW_OK)
+            st = eval(e, d, &pt);
+        if (st != LW_OK)
+            return st;
+        double t = d >= d_prev ? t_prev + dt : t_prev - dt;
+        if (!isfinite(pt.dtdd_h) || !isfinite(t)) { /* dark here: the 30-s point is before */
+            hi = d;
+            d = 0.5 * (lo + hi);
+            continue; /* t_prev and d_prev stay at the last lit point */
+        }
+        t_prev = t;
+        d_prev = d;
+        double f = t - t30_h;
+        if (f < 0.0)
+            lo = d;
+        else
+            hi = d;
+        if (fabs(f) <= 1e-14 * t30_h || hi - lo <= 4.0 * DBL_EPSILON) {
+            *p30 = pt;
+            *d30 = d;
+            return LW_OK;
+        }
+        if (d >= 1.0 && f < 0.0)
+            return LW_OK; /* empty before 30 s */
+        double next = d - f / pt.dtdd_h;
+        d = next > lo && next < hi ? next : 0.5 * (lo + hi);
+    }
+    return LW_OK; /* dark before 30 s: the switch-on point stands in */
 }
 
 static void init_events(engine *e, const lw_point *p0)
@@ -592,7 +788,7 @@ static void init_events(engine *e, const lw_point *p0)
     const lw_cell *c = &l->pack.cell;
     memset(e->active, 0, sizeof e->active);
     e->active[EV_RELATIVE] = true;
-    e->active[EV_FLOOR] = l->cutoff.flux_lm > 0.0;
+    e->active[EV_FLOOR] = e->floor_lm > 0.0;
     e->active[EV_CELL_V] = true;
     e->active[EV_HALF] = true;
     e->active[EV_DROPOUT] = l->drive.type == LW_DRIVE_CONVERTER;
@@ -610,16 +806,6 @@ static void init_events(engine *e, const lw_point *p0)
 static lw_status run_body(engine *e, lw_point p0)
 {
     const lw_table *curve = e->l->pack.cell.ocv;
-    /* a stop event already true at switch-on ends the run there */
-    for (int k = 0; k < NEV; k++) {
-        if (e->active[k] && kind_of(k) == EV_STOP && event_g(e, k, &p0) <= 0.0) {
-            finish(e, k == EV_RELATIVE ? LW_END_RELATIVE
-                      : k == EV_FLOOR  ? LW_END_FLUX_FLOOR
-                                       : LW_END_CELL_VOLTAGE,
-                   &p0);
-            return LW_OK;
-        }
-    }
     double a = e->d0;
     lw_point pa = p0;
     for (size_t i = 0; i + 1 < curve->n && !e->done; i++) {
@@ -643,6 +829,78 @@ static lw_status run_body(engine *e, lw_point p0)
     return LW_OK;
 }
 
+/* The point at switch-on from depth d0: a converter that cannot hold its
+ * set level starts at its fallback level. */
+static lw_status start_point(engine *e, lw_point *p0)
+{
+    lw_status st = eval(e, e->d0, p0);
+    if (st == LW_OK && p0->regime == LW_REGIME_DROPOUT && e->l->drive.fallback_a > 0.0) {
+        e->fallback = true;
+        st = eval(e, e->d0, p0);
+    }
+    return st;
+}
+
+/* The reference of the relative cutoff with cutoff.reference = fresh: the
+ * 30-s output of the same light with fresh cells at 20 C. */
+static lw_status fresh_reference(const engine *e, double *flux_lm)
+{
+    lw_light w = *e->l; /* shallow: tables borrowed, never freed here */
+    w.pack.stored_months = 0.0;
+    w.pack.ambient_c = LW_FRESH_REFERENCE_C;
+    lw_light_update_factors(&w, NULL);
+    engine f = {.l = &w, .opt = e->opt, .res = e->res, .err = e->err, .seg = SIZE_MAX,
+                .end_d = -1, .d0 = 0.0};
+    lw_point p0, p30;
+    double d30;
+    lw_status st = start_point(&f, &p0);
+    if (st == LW_OK && p0.flux_lm > 0.0 && isfinite(p0.dtdd_h))
+        st = point_at_30s(&f, &p0, &p30, &d30);
+    else
+        p30 = p0;
+    *flux_lm = p30.flux_lm > 0.0 ? p30.flux_lm : p0.flux_lm;
+    return st;
+}
+
+/* Decide how the run starts: the 30-s point and the reference, or an end
+ * at switch-on for a light that gives no light (never lit, cells already
+ * empty, output already at a cutoff). */
+static lw_status start_run(engine *e, lw_point *p0)
+{
+    const lw_light *l = e->l;
+    lw_result *res = e->res;
+    lw_status st = start_point(e, p0);
+    if (st != LW_OK)
+        return st;
+    res->initial = *p0;
+    res->peak_resistor_w = p0->p_res_peak_w;
+    e->d_now = e->d0;
+    e->floor_lm = fmax(l->cutoff.flux_lm, e->opt->visible_lm);
+    if (e->d0 >= 1.0) {
+        finish(e, LW_END_EMPTY_AT_START, p0);
+        return LW_OK;
+    }
+    if (!(p0->flux_lm >= e->opt->visible_lm) || !isfinite(p0->dtdd_h)) {
+        finish(e, LW_END_NEVER_LIT, p0);
+        return LW_OK;
+    }
+    if (p0->cell_v <= l->cutoff.cell_v) {
+        finish(e, LW_END_EMPTY_AT_START, p0);
+        return LW_OK;
+    }
+    lw_point p30;
+    st = point_at_30s(e, p0, &p30, &res->depth_30s);
+    if (st != LW_OK)
+        return st;
+    res->flux_30s_lm = p30.flux_lm > 0.0 ? p30.flux_lm : p0->flux_lm;
+    e->flux_ref = res->flux_30s_lm;
+    if (l->cutoff.reference == LW_REF_FRESH && (st = fresh_reference(e, &e->flux_ref)) != LW_OK)
+        return st;
+    if (p0->flux_lm <= e->floor_lm || p0->flux_lm <= l->cutoff.relative_pct / 100.0 * e->flux_ref)
+        finish(e, LW_END_DIM_AT_START, p0);
+    return LW_OK;
+}
+
 lw_status lw_run(const lw_light *light, const lw_run_options *opt, lw_result *res, lw_error *err)
 {
     lw_run_options defaults = lw_run_options_default();
@@ -650,48 +908,36 @@ lw_status lw_run(const lw_light *light, const lw_run_options *opt, lw_result *re
         opt = &defaults;
     memset(res, 0, sizeof *res);
     if (!(opt->rtol >= 1e-14 && opt->rtol <= 1e-3) || opt->max_halvings < 0 ||
-        opt->max_halvings > 60 || !(opt->start_depth >= 0.0 && opt->start_depth <= 1.0))
+        opt->max_halvings > 60 || !(opt->start_depth >= 0.0 && opt->start_depth <= 1.0) ||
+        !(opt->visible_lm >= 0.0) || !(opt->event_tol >= 1e-16 && opt->event_tol <= 1e-6) ||
+        opt->event_iter_max < 10 || opt->event_iter_max > 10000)
         return lw_error_set(err, LW_EINPUT, NULL, 0,
                             "run options: rtol must be 1e-14 to 1e-3, max_halvings 0 to 60, "
-                            "start_depth 0 to 1");
+                            "start_depth 0 to 1, visible_lm >= 0, event_tol 1e-16 to 1e-6, "
+                            "event_iter_max 10 to 10000");
     res->time_to_half_h = NAN;
+    res->flux_30s_lm = res->flux_ref_lm = NAN;
     engine e = {.l = light, .opt = opt, .res = res, .err = err, .seg = SIZE_MAX, .end_d = -1};
-    e.d0 = fmax(opt->start_depth, lw_stored_depth(light));
+    e.d0 = fmin(1.0, fmax(opt->start_depth, lw_stored_depth(light)));
     res->start_depth = e.d0;
+    res->depth_30s = e.d0;
     lw_status st = lw_worst_case(light, &res->initial, err);
     res->solves++; /* the worst case is an operating-point solve too */
     if (st != LW_OK)
         return st;
     res->worst_led_a = res->initial.led_a;
     res->worst_resistor_w = res->initial.p_res_peak_w;
-    lw_point p0, p30;
-    st = eval(&e, e.d0, &p0);
-    if (st != LW_OK)
-        return st;
-    if (p0.regime == LW_REGIME_DROPOUT && light->drive.fallback_a > 0.0) {
-        e.fallback = true;
-        st = eval(&e, e.d0, &p0);
-        if (st != LW_OK)
-            return st;
-    }
-    res->initial = p0;
-    res->peak_resistor_w = p0.p_res_peak_w;
-    e.d_now = e.d0;
-    if (!(p0.flux_lm > 0.0) || !isfinite(p0.dtdd_h)) {
-        finish(&e, LW_END_NEVER_LIT, &p0);
-    } else {
-        st = depth_at_30s(&e, &p0, &p30);
-        if (st != LW_OK)
-            return st;
-        e.flux_ref = p30.flux_lm > 0.0 ? p30.flux_lm : p0.flux_lm;
+    lw_point p0;
+    st = start_run(&e, &p0);
+    if (st == LW_OK && !e.done) {
+        res->flux_ref_lm = e.flux_ref;
         init_events(&e, &p0);
         st = run_body(&e, p0);
-        if (st != LW_OK) {
-            lw_result_clear(res);
-            return st;
-        }
     }
-    res->flux_ref_lm = e.flux_ref;
+    if (st != LW_OK) {
+        lw_result_clear(res);
+        return st;
+    }
     res->runtime_h = e.tot[Q_T];
     res->lumen_hours = e.tot[Q_LMH];
     res->energy_led_wh = e.tot[Q_LED];

@@ -31,8 +31,26 @@
 
 typedef enum lw_end_reason {
     LW_END_RELATIVE, LW_END_FLUX_FLOOR, LW_END_CELL_VOLTAGE, LW_END_CAPACITY, LW_END_NEVER_LIT,
-    LW_END_DRIVER_DROPOUT, LW_END_COUNT
+    LW_END_DRIVER_DROPOUT,
+    LW_END_EMPTY_AT_START, /* no light: the cells are empty or at their end point at switch-on */
+    LW_END_DIM_AT_START,   /* no light: the output at switch-on is already at a cutoff */
+    LW_END_COUNT
 } lw_end_reason;
+
+/* True for the end reasons that mean the light gave no light at all (the
+ * run's figures are not those of a lit light). */
+bool lw_end_is_dark(lw_end_reason why);
+
+/* The visibility floor, lm: a light whose output at switch-on and 30 s
+ * later is below it counts as never lit, and a run ends when its output
+ * falls below it even if the cutoff allows less.  A millilumen is the order
+ * of the dimmest locator glows; below it a light serves no lighting or
+ * indicating purpose (common practice, no source). */
+#define LW_VISIBLE_LM 1e-3
+
+/* Cap on the Newton steps that solve t(d) = 30 s (it converges in three or
+ * four; bisection safeguards the rest). */
+#define LW_T30_ITER_MAX 100
 
 extern const char *const lw_end_reason_names[LW_END_COUNT + 1];
 
@@ -57,6 +75,11 @@ extern const char *const lw_warning_names[LW_WARN_COUNT_];
 typedef struct lw_run_options {
     double rtol;          /* relative tolerance of each integral, default 1e-10 */
     int max_halvings;     /* cap on interval halving, default 40 */
+    double visible_lm;    /* visibility floor, default LW_VISIBLE_LM */
+    double event_tol;     /* events are located to event_tol * (depth + 1e-3) in depth,
+                             default 1e-13 (a few ulps of the depth scale) */
+    int event_iter_max;   /* cap on Brent iterations per event, default 200 (it
+                             converges in under 50 from any bracket) */
     double start_depth;   /* depth at switch-on, 0..1, default 0; the light's own
                              storage (pack.stored_months) is applied when deeper */
     bool want_trace;      /* record the pieces for lw_trace_build */
@@ -77,9 +100,14 @@ typedef struct lw_result {
     double runtime_h;       /* switch-on to the end */
     double end_depth;
     double start_depth;     /* depth at switch-on (after storage) */
-    double time_to_half_h;  /* to 50 % of the 30-s output; NAN if not reached */
+    double time_to_half_h;  /* first time the output is at or below 50 % of the
+                               reference while lit (a jump included); NAN if never */
     double regulated_h;     /* hours in regulation (NAN for a resistor drive) */
-    double flux_ref_lm;     /* output 30 s after switch-on */
+    double flux_30s_lm;     /* the light's own output 30 s after switch-on */
+    double depth_30s;       /* its depth of discharge then */
+    double flux_ref_lm;     /* the output the relative cutoff and 50 % refer to: the
+                               own 30-s output, or with cutoff.reference = fresh
+                               that of fresh cells at 20 C */
     lw_point initial;       /* at switch-on */
     lw_point final;         /* at the end */
     double lumen_hours;

@@ -87,6 +87,75 @@ bool lw_parse_double(const char *s, double *out)
     return true;
 }
 
+static double prefix_scale(char c)
+{
+    switch (c) {
+    case 'R':
+    case 'r':
+        return 1.0;
+    case 'k':
+    case 'K':
+        return 1e3;
+    case 'M':
+        return 1e6;
+    default:
+        return 0.0;
+    }
+}
+
+static bool parse_coded(const char *s, double *out)
+{
+    char buf[64];
+    size_t len = strlen(s);
+    while (len > 0 && isspace((unsigned char)s[len - 1]))
+        len--;
+    while (len > 0 && isspace((unsigned char)*s)) {
+        s++;
+        len--;
+    }
+    if (len == 0 || len >= sizeof buf)
+        return false;
+    memcpy(buf, s, len);
+    buf[len] = '\0';
+    double v;
+    if (lw_parse_double(buf, &v))
+        goto done;
+    /* "2.2k", "1M": a number and a prefix at the end */
+    double scale = prefix_scale(buf[len - 1]);
+    if (scale > 0.0 && buf[len - 1] != 'R' && buf[len - 1] != 'r') {
+        buf[len - 1] = '\0';
+        if (lw_parse_double(buf, &v)) {
+            v *= scale;
+            goto done;
+        }
+        buf[len - 1] = s[len - 1];
+    }
+    /* "4k7", "4R7", "0R22": the prefix letter stands for the decimal point */
+    for (size_t i = 0; i < len; i++) {
+        double sc = prefix_scale(buf[i]);
+        if (sc == 0.0)
+            continue;
+        if (i == 0 || i + 1 == len || strchr(buf, '.'))
+            return false;
+        buf[i] = '.';
+        if (!lw_parse_double(buf, &v))
+            return false;
+        v *= sc;
+        goto done;
+    }
+    return false;
+done:
+    if (!(v >= 0.0) || !isfinite(v))
+        return false;
+    *out = v;
+    return true;
+}
+
+bool lw_parse_number(const char *s, double *out)
+{
+    return lw_parse_double(s, out) || parse_coded(s, out);
+}
+
 bool lw_parse_int(const char *s, int *out)
 {
     if (!s)
@@ -120,4 +189,20 @@ bool lw_strlcpy(char *dst, const char *src, size_t size)
     }
     memcpy(dst, src, n + 1);
     return true;
+}
+
+void lw_format_double(char *buf, size_t size, double v)
+{
+    if (!isfinite(v)) {
+        if (size)
+            buf[0] = '\0';
+        return;
+    }
+    /* a decimal of at most 15 digits that reads back as v is what %.15g
+     * prints (zeros trimmed); otherwise 16, and 17 always round-trips */
+    for (int prec = 15; prec <= 17; prec++) {
+        snprintf(buf, size, "%.*g", prec, v);
+        if (prec == 17 || strtod(buf, NULL) == v)
+            return;
+    }
 }

@@ -55,8 +55,19 @@ void lw_error_format(const lw_error *err, char *buf, size_t size);
  * Writes *out only on success. */
 bool lw_parse_double(const char *s, double *out);
 
+/* lampwick's number grammar, the same in files, --set and --vary: a plain
+ * number as lw_parse_double, or a non-negative value with a resistor-code
+ * or SI letter (IEC 60062 style): "2.2k", "1M", "4k7", "4R7", "0R22"
+ * (R = 1, k = 1e3, M = 1e6).  Writes *out only on success. */
+bool lw_parse_number(const char *s, double *out);
+
 /* Strict parse of a whole string as a decimal integer in [INT_MIN, INT_MAX]. */
 bool lw_parse_int(const char *s, int *out);
+
+/* The shortest decimal text that reads back as exactly v (at most 17
+ * significant digits, "%g" style); "" for a non-finite v.  buf needs 32
+ * bytes. */
+void lw_format_double(char *buf, size_t size, double v);
 
 /* Copy src into dst (size bytes), always NUL-terminated; returns false if cut. */
 bool lw_strlcpy(char *dst, const char *src, size_t size);

@@ -3,9 +3,7 @@
  * and resistance values as people write them.
  *
  * Owns: the E3, E6, E12, E24, E48, E96 and E192 tables, their usual
- * tolerances, listing the values of a series within a range, and parsing of
- * values with SI prefixes ("2.2k", "1M") or the resistor-code form of
- * IEC 60062 ("4k7", "4R7").
+ * tolerances, and listing the values of a series within a range.
  *
  * E3 to E24 are the published lists, eight of whose E24 values (2.7 3.0 3.3
  * 3.6 3.9 4.3 4.7 8.2) differ from rounding 10^(i/24).  E192 is the published
@@ -37,8 +35,5 @@ size_t lw_eseries_range(int n, double lo, double hi, double *out, size_t cap);
 /* The series value nearest to v at or above it (round_up) or at or below. */
 double lw_eseries_round(int n, double v, bool round_up);
 
-/* Parse a resistance-like value: "470", "2.2k", "1M", "4k7", "4R7", "0R22".
- * Whole string, finite, >= 0.  Writes *out only on success. */
-bool lw_parse_si(const char *s, double *out);
 
 #endif

@@ -315,7 +315,7 @@ lw_status lw_key_apply(const lw_keydef *d, void *target, const char *value, cons
     switch (d->type) {
     case LW_K_NUM: {
         double v;
-        if (!lw_parse_double(value, &v) || !in_range(d, v))
+        if (!lw_parse_number(value, &v) || !in_range(d, v))
             return range_error(d, value, file, line, err);
         double si = v * d->scale;
         memcpy(at, &si, sizeof si);

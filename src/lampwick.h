@@ -22,7 +22,12 @@
  *   pool.h      parallel-for over POSIX threads
  *   batch.h     many variants of a profile, on all cores
  *   sweep.h     --vary grids
- *   design.h    pick, size, specification tables, beam photometry
+ *   resistor.h  the series resistor as a part: ratings, targets, safe minimum
+ *   corner.h    the corners of a design: nominal, worst hot, cold, end of run
+ *   pick.h      choosing the series resistor
+ *   size.h      sizing the pack
+ *   photometry.h  beam photometry (FL 1 definitions)
+ *   spec.h      the runtime table of a product specification
  *   fit.h       least squares; LED I-V and flux fits
  *   cellfit.h   cell models from discharge logs
  *
@@ -50,7 +55,12 @@
 #include "pool.h"
 #include "batch.h"
 #include "sweep.h"
-#include "design.h"
+#include "resistor.h"
+#include "corner.h"
+#include "pick.h"
+#include "size.h"
+#include "photometry.h"
+#include "spec.h"
 #include "fit.h"
 #include "cellfit.h"
 

@@ -10,6 +10,7 @@
 #include <math.h>
 #include <stdlib.h>
 #include <string.h>
+#include "report.h"
 
 static const char *const palette[] = {"#1b6f8a", "#c4541b", "#5a7d2a", "#8a3f86",
                                       "#b08a00", "#3a3a9c", "#9c3a3a", "#2f8f6f"};
@@ -392,7 +393,7 @@ lw_status lw_plot_run(FILE *fp, const char *title, const lw_light *light, const 
     }
     char sub[256], cut[64];
     char runtime[64];
-    snprintf(runtime, sizeof runtime, "%.3g h", res->runtime_h);
+    lw_format_hours(res->runtime_h, runtime, sizeof runtime);
     snprintf(sub, sizeof sub, "%d x %s, %s drive; runtime to cutoff %s (%s)",
              light->pack.series * light->pack.parallel, light->pack.cell.name,
              lw_drive_type_names[light->drive.type], runtime,
@@ -409,7 +410,10 @@ lw_status lw_plot_run(FILE *fp, const char *title, const lw_light *light, const 
     double top = 100.0;
     for (size_t i = 0; i < n; i++)
         top = fmax(top, pct[i]);
-    p->y = (lw_axis){.label = "light output (% of 30-s value)", .lo = 0,
+    p->y = (lw_axis){.label = light->cutoff.reference == LW_REF_FRESH
+                                  ? "light output (% of the fresh 30-s value)"
+                                  : "light output (% of 30-s value)",
+                     .lo = 0,
                      .hi = 10.0 * ceil(top / 10.0 + 0.3)};
     p->y2_label = "light output (lm)";
     p->y2_scale = res->flux_ref_lm / 100.0;
@@ -427,5 +431,64 @@ lw_status lw_plot_run(FILE *fp, const char *title, const lw_light *light, const 
     p->height_share = 1.0;
     lw_status st = lw_plot_svg(fp, &c, err);
     free(buf);
+    return st;
+}
+
+lw_status lw_plot_led_fit(FILE *fp, const double *i_a, const double *v, size_t n,
+                          const lw_led_fit *lin, const lw_led_fit *sh, lw_error *err)
+{
+    size_t nc = 200;
+    double *b = malloc((3 * n + 4 * nc) * sizeof *b);
+    if (!b)
+        return lw_error_set(err, LW_ENOMEM, NULL, 0, "out of memory");
+    double *ima = b, *rl = b + n, *rs = b + 2 * n, *cx = b + 3 * n, *cl = cx + nc,
+           *cs = cl + nc, *cxs = cs + nc;
+    double lo = INFINITY, hi = 0;
+    for (size_t k = 0; k < n; k++) {
+        ima[k] = i_a[k] * 1e3;
+        lo = fmin(lo, ima[k]);
+        hi = fmax(hi, ima[k]);
+    }
+    for (size_t k = 0; k < n; k++) {
+        double i = i_a[k];
+        rl[k] = lin ? 1e3 * (v[k] - (lin->threshold_v + lin->slope_ohm * i)) : NAN;
+        rs[k] = sh ? 1e3 * (v[k] - (sh->lsq.coef[0] + sh->lsq.coef[1] * log(i) +
+                                    sh->lsq.coef[2] * i))
+                   : NAN;
+    }
+    bool logx = hi > 20 * lo;
+    for (size_t k = 0; k < nc; k++) {
+        double u = (double)k / (double)(nc - 1);
+        cx[k] = cxs[k] = logx ? lo * pow(hi / lo, u) : lo + u * (hi - lo);
+        double i = cx[k] * 1e-3;
+        cl[k] = lin ? lin->threshold_v + lin->slope_ohm * i : NAN;
+        cs[k] = sh ? sh->lsq.coef[0] + sh->lsq.coef[1] * log(i) + sh->lsq.coef[2] * i : NAN;
+    }
+    lw_chart c = {0};
+    c.title = "LED forward voltage: measurements and fitted models";
+    c.x = (lw_axis){.label = "current (mA)", .log = logx};
+    c.npanels = 2;
+    lw_panel *p = &c.panels[0];
+    p->y = (lw_axis){.label = "forward voltage (V)"};
+    p->series[p->nseries++] = (lw_series){.name = "measured", .x = ima, .y = v, .n = n,
+                                          .points = true, .colour = 1};
+    if (lin)
+        p->series[p->nseries++] =
+            (lw_series){.name = "linear fit", .x = cx, .y = cl, .n = nc, .colour = 2};
+    if (sh)
+        p->series[p->nseries++] = (lw_series){.name = "Shockley fit", .x = cxs, .y = cs,
+                                              .n = nc, .dashed = true, .colour = 3};
+    p->height_share = 1.5;
+    p = &c.panels[1];
+    p->y = (lw_axis){.label = "residual (mV)"};
+    if (lin)
+        p->series[p->nseries++] = (lw_series){.name = "linear", .x = ima, .y = rl, .n = n,
+                                              .points = true, .colour = 2};
+    if (sh)
+        p->series[p->nseries++] = (lw_series){.name = "Shockley", .x = ima, .y = rs, .n = n,
+                                              .points = true, .colour = 3};
+    p->refs[p->nrefs++] = (lw_refline){0.0, "zero"};
+    lw_status st = lw_plot_svg(fp, &c, err);
+    free(b);
     return st;
 }

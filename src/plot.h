@@ -13,6 +13,7 @@
 
 #include <stdio.h>
 #include "engine.h"
+#include "fit.h"
 
 #define LW_PLOT_SERIES_MAX 16
 #define LW_PLOT_PANELS_MAX 3
@@ -71,5 +72,10 @@ size_t lw_nice_ticks(double lo, double hi, size_t max_ticks, double *ticks);
  * cutoff line, and pack voltage (loaded and open circuit), against hours. */
 lw_status lw_plot_run(FILE *fp, const char *title, const lw_light *light, const lw_result *res,
                       const lw_trace *trace, lw_error *err);
+
+/* The chart of an LED fit: the measured points with the fitted curves, and
+ * the residuals below (lin and sh may each be NULL). */
+lw_status lw_plot_led_fit(FILE *fp, const double *i_a, const double *v, size_t n,
+                          const lw_led_fit *lin, const lw_led_fit *sh, lw_error *err);
 
 #endif

@@ -1,9 +1,11 @@
 /*
  * pool.c - parallel-for over POSIX threads (see pool.h).
  */
+#define _GNU_SOURCE /* sched_getaffinity, CPU_COUNT */
 #include "pool.h"
 
 #include <pthread.h>
+#include <sched.h>
 #include <stdatomic.h>
 #include <unistd.h>
 
@@ -20,6 +22,13 @@ typedef struct job {
 
 int lw_cpu_count(void)
 {
+    cpu_set_t set;
+    CPU_ZERO(&set);
+    if (sched_getaffinity(0, sizeof set, &set) == 0) {
+        int n = CPU_COUNT(&set);
+        if (n > 0)
+            return n;
+    }
     long n = sysconf(_SC_NPROCESSORS_ONLN);
     return n > 0 && n < 1024 ? (int)n : 1;
 }
@@ -49,12 +58,12 @@ void lw_parallel_for(size_t n, int threads, lw_task_fn fn, void *ctx, lw_progres
         threads = lw_cpu_count();
     if ((size_t)threads > n)
         threads = n > 0 ? (int)n : 1;
-    if (threads > 64)
-        threads = 64;
+    if (threads > LW_POOL_THREADS_MAX)
+        threads = LW_POOL_THREADS_MAX;
     job j = {.n = n, .fn = fn, .ctx = ctx, .progress = progress, .progress_ctx = progress_ctx};
     atomic_init(&j.next, 0);
     pthread_mutex_init(&j.lock, NULL);
-    pthread_t tid[64];
+    pthread_t tid[LW_POOL_THREADS_MAX];
     int started = 0;
     for (int t = 1; t < threads; t++) {
         if (pthread_create(&tid[started], NULL, worker, &j) != 0)

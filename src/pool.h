@@ -13,10 +13,16 @@
 
 #include <stddef.h>
 
+/* At most this many threads run one parallel-for (a bound on the stack
+ * array of thread handles; far above the cores of any machine lampwick
+ * targets). */
+#define LW_POOL_THREADS_MAX 64
+
 typedef void (*lw_task_fn)(size_t i, void *ctx);
 typedef void (*lw_progress_fn)(size_t done, size_t total, void *ctx);
 
-/* Number of online processors (at least 1). */
+/* Number of processors this process may run on (its CPU affinity, as
+ * `taskset` sets it; at least 1). */
 int lw_cpu_count(void);
 
 /* Run fn(0..n-1, ctx).  threads <= 0 means lw_cpu_count().  Falls back to

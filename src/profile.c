@@ -51,7 +51,9 @@ const lw_keydef lw_profile_keys[] = {
     PK("led", "series_ohm", LW_K_NUM, light.led.series_ohm, 1, 0, 1e6, 0, "0",
        "shockley model: series resistance, ohm"),
     PK("led", "junction_c", LW_K_NUM, light.led.junction_c, 1, -60, 250, 0, "25",
-       "shockley model: junction temperature, deg C"),
+       "junction temperature at which the LED data (n, saturation_a, series_ohm, or the "
+       "tables) were taken, deg C; the Shockley thermal voltage goes with it; not a heating "
+       "setting"),
     PT("led", "iv_file", iv_file, 0, "table model: CSV current_ma,forward_v"),
     PK("led", "flux_lm", LW_K_NUM, light.led.flux_lm, 1, 0, 1e7, OPEN, "",
        "light output of one LED at flux_current_ma, lm"),
@@ -91,6 +93,10 @@ const lw_keydef lw_profile_keys[] = {
        "drain while switched off, uA"),
     PK("cutoff", "relative_pct", LW_K_NUM, light.cutoff.relative_pct, 1, 0, 100,
        OPEN | LW_KF_MAX_OPEN, "10", "end at this % of the output 30 s after switch-on"),
+    {"cutoff", "reference", LW_K_CHOICE, offsetof(lw_profile, light.cutoff.reference), 0, 1, NAN,
+     NAN, 0, lw_reference_names, "own",
+     "what relative_pct refers to: own (this run's 30-s output) or fresh (the 30-s output of "
+     "fresh cells at 20 C, so storage and cold show in the runtime)"},
     PK("cutoff", "flux_lm", LW_K_NUM, light.cutoff.flux_lm, 1, 0, 1e7, 0, "0",
        "end at this light output, lm (0: no floor)"),
     PK("cutoff", "cell_v", LW_K_NUM, cutoff_cell_v, 1, 0, 100, OPEN, "",

@@ -55,8 +55,11 @@ void lw_rtable_free(lw_rtable *t)
         free(t->group[i]);
     }
     free(t->group);
-    for (size_t i = 0; i < t->nrow * t->ncol; i++)
+    for (size_t i = 0; i < t->nrow * t->ncol; i++) {
         free(t->cell[i]);
+        free(t->full[i]);
+    }
+    free(t->full);
     for (size_t i = 0; i < t->nnotes; i++)
         free(t->notes[i]);
     free(t->head);
@@ -91,18 +94,25 @@ lw_status lw_rtable_add_row(lw_rtable *t, size_t *row, lw_error *err)
     if (t->nrow == t->cap) {
         size_t cap = t->cap ? 2 * t->cap : 16;
         char **c = realloc(t->cell, cap * t->ncol * sizeof *c);
-        if (!c)
+        if (c)
+            t->cell = c;
+        char **f = c ? realloc(t->full, cap * t->ncol * sizeof *f) : NULL;
+        if (f)
+            t->full = f;
+        if (!c || !f)
             return lw_error_set(err, LW_ENOMEM, NULL, 0, "out of memory for a table");
-        t->cell = c;
         t->cap = cap;
     }
     memset(t->cell + t->nrow * t->ncol, 0, t->ncol * sizeof *t->cell);
+    memset(t->full + t->nrow * t->ncol, 0, t->ncol * sizeof *t->full);
     *row = t->nrow++;
     return LW_OK;
 }
 
 lw_status lw_rtable_set(lw_rtable *t, size_t row, size_t col, const char *text, lw_error *err)
 {
+    free(t->full[row * t->ncol + col]);
+    t->full[row * t->ncol + col] = NULL;
     return dup_into(&t->cell[row * t->ncol + col], text, err);
 }
 
@@ -115,6 +125,27 @@ lw_status lw_rtable_setf(lw_rtable *t, size_t row, size_t col, lw_error *err, co
     vsnprintf(buf, sizeof buf, fmt, ap); // NOLINT(clang-analyzer-valist.Uninitialized): va_start above
     va_end(ap);
     return lw_rtable_set(t, row, col, buf, err);
+}
+
+lw_status lw_rtable_copy_cell(lw_rtable *t, size_t row, size_t col, const lw_rtable *src,
+                              size_t sr, size_t sc, lw_error *err)
+{
+    const char *c = src->cell[sr * src->ncol + sc], *f = src->full[sr * src->ncol + sc];
+    lw_status st = lw_rtable_set(t, row, col, c ? c : "", err);
+    return st == LW_OK && f ? dup_into(&t->full[row * t->ncol + col], f, err) : st;
+}
+
+lw_status lw_rtable_num(lw_rtable *t, size_t row, size_t col, double v, int sig,
+                        lw_error *err)
+{
+    char buf[64] = "";
+    if (isfinite(v))
+        snprintf(buf, sizeof buf, "%.*g", sig, v);
+    lw_status st = lw_rtable_set(t, row, col, buf, err);
+    if (st != LW_OK || !isfinite(v))
+        return st;
+    lw_format_double(buf, sizeof buf, v);
+    return dup_into(&t->full[row * t->ncol + col], buf, err);
 }
 
 lw_status lw_rtable_note(lw_rtable *t, const char *text, lw_error *err)
@@ -340,8 +371,10 @@ static void write_csv(const lw_rtable *t, FILE *fp, lw_csvw *w)
         lw_csvw_text(w, t->head[c] ? t->head[c] : "");
     lw_csvw_end_row(w);
     for (size_t r = 0; r < t->nrow; r++) {
-        for (size_t c = 0; c < t->ncol; c++)
-            lw_csvw_text(w, cell_text(t, r, c));
+        for (size_t c = 0; c < t->ncol; c++) {
+            const char *f = t->full[r * t->ncol + c];
+            lw_csvw_text(w, f ? f : cell_text(t, r, c));
+        }
         lw_csvw_end_row(w);
     }
 }
@@ -362,13 +395,30 @@ lw_status lw_rtable_write(const lw_rtable *t, FILE *fp, lw_format fmt, lw_error 
 
 /* ---- the run report ---- */
 
-const char *const lw_run_columns[] = {
-    "runtime_h", "end_reason", "initial_led_ma", "initial_pack_ma", "initial_flux_lm",
-    "flux_30s_lm", "time_to_half_h", "regulated_h", "lumen_hours", "energy_drawn_wh",
-    "energy_led_wh", "energy_resistor_wh", "energy_internal_wh", "energy_driver_wh",
-    "efficiency_pct", "lm_per_w", "peak_resistor_w", "worst_led_ma", "worst_resistor_w", "final_cell_v",
-    "solves", "warnings"};
-const size_t lw_run_ncolumns = sizeof lw_run_columns / sizeof lw_run_columns[0];
+/* The run columns, in the order of lw_run_columns. */
+enum run_col {
+    RC_RUNTIME, RC_END, RC_LED_MA, RC_PACK_MA, RC_FLUX0, RC_FLUX30, RC_REF_LM, RC_REFERENCE,
+    RC_HALF, RC_REGULATED, RC_LMH, RC_E_DRAWN, RC_E_LED, RC_E_RES, RC_E_INT, RC_E_DRV,
+    RC_EFFICIENCY, RC_LM_PER_W, RC_PEAK_RES, RC_WORST_LED, RC_WORST_RES, RC_FINAL_V, RC_SOLVES,
+    RC_WARNINGS, RC_COUNT
+};
+
+/* Columns that only mean something for a light that lit (empty otherwise). */
+static bool lit_only(enum run_col c)
+{
+    return !(c == RC_RUNTIME || c == RC_END || c == RC_REFERENCE || c == RC_WORST_LED ||
+             c == RC_WORST_RES || c == RC_FINAL_V || c == RC_SOLVES || c == RC_WARNINGS);
+}
+
+const char *const lw_run_columns[RC_COUNT + 1] = {
+    "runtime_h",          "end_reason",       "initial_led_ma", "initial_pack_ma",
+    "initial_flux_lm",    "flux_30s_lm",      "reference_lm",   "cutoff_reference",
+    "time_to_half_h",     "regulated_h",      "lumen_hours",    "energy_drawn_wh",
+    "energy_led_wh",      "energy_resistor_wh", "energy_internal_wh", "energy_driver_wh",
+    "efficiency_pct",     "lm_per_w",         "peak_resistor_w", "worst_led_ma",
+    "worst_resistor_w",   "final_cell_v",     "solves",         "warnings",
+    NULL};
+const size_t lw_run_ncolumns = RC_COUNT;
 
 void lw_warnings_text(unsigned warnings, char *buf, size_t size)
 {
@@ -387,12 +437,32 @@ static double efficiency_pct(const lw_result *r)
     return r->energy_drawn_wh > 0 ? 100.0 * r->energy_led_wh / r->energy_drawn_wh : NAN;
 }
 
-/* Numbers to 6 significant digits; NaN as empty. */
-static lw_status set_num(lw_rtable *t, size_t row, size_t col, double v, lw_error *err)
+static double run_value(enum run_col c, const lw_result *r)
 {
-    if (!isfinite(v))
-        return lw_rtable_set(t, row, col, "", err);
-    return lw_rtable_setf(t, row, col, err, "%.6g", v);
+    switch (c) {
+    case RC_RUNTIME: return r->runtime_h;
+    case RC_LED_MA: return r->initial.led_a * 1e3;
+    case RC_PACK_MA: return r->initial.pack_avg_a * 1e3;
+    case RC_FLUX0: return r->initial.flux_lm;
+    case RC_FLUX30: return r->flux_30s_lm;
+    case RC_REF_LM: return r->flux_ref_lm;
+    case RC_HALF: return r->time_to_half_h;
+    case RC_REGULATED: return r->regulated_h;
+    case RC_LMH: return r->lumen_hours;
+    case RC_E_DRAWN: return r->energy_drawn_wh;
+    case RC_E_LED: return r->energy_led_wh;
+    case RC_E_RES: return r->energy_resistor_wh;
+    case RC_E_INT: return r->energy_internal_wh;
+    case RC_E_DRV: return r->energy_driver_wh;
+    case RC_EFFICIENCY: return efficiency_pct(r);
+    case RC_LM_PER_W: return r->energy_drawn_wh > 0 ? r->lumen_hours / r->energy_drawn_wh : NAN;
+    case RC_PEAK_RES: return r->peak_resistor_w;
+    case RC_WORST_LED: return r->worst_led_a * 1e3;
+    case RC_WORST_RES: return r->worst_resistor_w;
+    case RC_FINAL_V: return r->final.cell_v;
+    case RC_SOLVES: return r->solves;
+    default: return NAN;
+    }
 }
 
 lw_status lw_report_run_row(lw_rtable *t, size_t row, size_t c, const lw_light *light,
@@ -400,36 +470,17 @@ lw_status lw_report_run_row(lw_rtable *t, size_t row, size_t c, const lw_light *
 {
     char warn[512];
     lw_warnings_text(r->warnings, warn, sizeof warn);
-    double v[] = {r->runtime_h,
-                  NAN,
-                  r->initial.led_a * 1e3,
-                  r->initial.pack_a * 1e3 * light->drive.duty_pct / 100.0,
-                  r->initial.flux_lm,
-                  r->flux_ref_lm,
-                  r->time_to_half_h,
-                  r->regulated_h,
-                  r->lumen_hours,
-                  r->energy_drawn_wh,
-                  r->energy_led_wh,
-                  r->energy_resistor_wh,
-                  r->energy_internal_wh,
-                  r->energy_driver_wh,
-                  efficiency_pct(r),
-                  r->energy_drawn_wh > 0 ? r->lumen_hours / r->energy_drawn_wh : NAN,
-                  r->peak_resistor_w,
-                  r->worst_led_a * 1e3,
-                  r->worst_resistor_w,
-                  r->final.cell_v,
-                  r->solves,
-                  NAN};
+    bool dark = lw_end_is_dark(r->end_reason);
     lw_status st = LW_OK;
-    for (size_t i = 0; i < lw_run_ncolumns && st == LW_OK; i++) {
-        if (i == 1)
+    for (int i = 0; i < RC_COUNT && st == LW_OK; i++) {
+        if (i == RC_END)
             st = lw_rtable_set(t, row, c + i, lw_end_reason_names[r->end_reason], err);
-        else if (i == lw_run_ncolumns - 1)
+        else if (i == RC_REFERENCE)
+            st = lw_rtable_set(t, row, c + i, lw_reference_names[light->cutoff.reference], err);
+        else if (i == RC_WARNINGS)
             st = lw_rtable_set(t, row, c + i, warn, err);
         else
-            st = set_num(t, row, c + i, v[i], err);
+            st = lw_rtable_num(t, row, c + i, dark && lit_only(i) ? NAN : run_value(i, r), 6, err);
     }
     return st;
 }
@@ -458,14 +509,18 @@ static const char *end_text(lw_end_reason why)
     case LW_END_CAPACITY:
         return "cells fully discharged before any cutoff";
     case LW_END_NEVER_LIT:
-        return "the LEDs never light: the pack cannot exceed their forward voltage";
+        return "the LEDs never light";
+    case LW_END_EMPTY_AT_START:
+        return "the cells are empty or at their end point at switch-on";
+    case LW_END_DIM_AT_START:
+        return "the output at switch-on is already at a cutoff";
     case LW_END_DRIVER_DROPOUT:
     default:
-        return "the converter can no longer draw its input power";
+        return "the converter can no longer hold its output";
     }
 }
 
-static const char *warning_text(int bit)
+const char *lw_warning_text(int bit)
 {
     /* long texts are split across lines on purpose */
     // NOLINTBEGIN(bugprone-suspicious-missing-comma)
@@ -486,30 +541,102 @@ static const char *warning_text(int bit)
     return text[bit];
 }
 
-static void text_report(FILE *fp, const lw_profile *p, const lw_result *r)
+/* "fresh cells", or "after 24 months' storage (12.3 % discharged)". */
+static void start_condition(const lw_light *l, const lw_result *r, char *buf, size_t size)
+{
+    if (l->pack.stored_months > 0)
+        snprintf(buf, size, "after %g month%s' storage, %.1f %% discharged",
+                 l->pack.stored_months, l->pack.stored_months == 1 ? "" : "s",
+                 100.0 * r->start_depth);
+    else if (r->start_depth > 0)
+        snprintf(buf, size, "from %.1f %% depth of discharge", 100.0 * r->start_depth);
+    else
+        snprintf(buf, size, "fresh cells");
+}
+
+void lw_report_reference(const lw_light *l, char *buf, size_t size)
+{
+    if (l->cutoff.reference == LW_REF_FRESH)
+        snprintf(buf, size, "the 30-s output of fresh cells at %g C", LW_FRESH_REFERENCE_C);
+    else
+        snprintf(buf, size, "the 30-s output");
+}
+
+void lw_report_drive(const lw_light *l, char *buf, size_t size)
+{
+    const lw_drive *d = &l->drive;
+    int n = snprintf(buf, size, "%s", lw_drive_type_names[d->type]);
+    if (n > 0 && (size_t)n < size && (d->type == LW_DRIVE_RESISTOR || d->resistor_ohm > 0))
+        n += snprintf(buf + n, size - (size_t)n, ", %g ohm per string", d->resistor_ohm);
+    if (n > 0 && (size_t)n < size && d->type != LW_DRIVE_RESISTOR)
+        n += snprintf(buf + n, size - (size_t)n, ", set %g mA", d->set_a * 1e3);
+    if (n > 0 && (size_t)n < size && d->type == LW_DRIVE_CONVERTER) {
+        if (d->efficiency)
+            n += snprintf(buf + n, size - (size_t)n, ", efficiency table");
+        else
+            n += snprintf(buf + n, size - (size_t)n, " at %g %%", d->efficiency_pct);
+        if (d->fallback_a > 0 && n > 0 && (size_t)n < size)
+            n += snprintf(buf + n, size - (size_t)n, ", fallback %g mA", d->fallback_a * 1e3);
+    }
+    if (n > 0 && (size_t)n < size && d->duty_pct < 100.0)
+        snprintf(buf + n, size - (size_t)n, ", PWM %g %%", d->duty_pct);
+}
+
+static void text_header(FILE *fp, const lw_profile *p)
 {
     const lw_light *l = &p->light;
-    const lw_point *i0 = &r->initial;
-    const double duty = l->drive.duty_pct / 100.0;
-    char buf[64], buf2[64];
     fprintf(fp, "%s%s%s\n", l->name, p->mode[0] ? ", mode " : "", p->mode);
     fprintf(fp, "  pack    %d x %s (%d in series, %d in parallel) at %g C\n",
             l->pack.series * l->pack.parallel, l->pack.cell.name, l->pack.series,
             l->pack.parallel, l->pack.ambient_c);
     fprintf(fp, "  LEDs    %d string%s of %d, %s model\n", l->led.strings,
             l->led.strings == 1 ? "" : "s", l->led.count, lw_led_model_names[l->led.model]);
-    fprintf(fp, "  drive   %s", lw_drive_type_names[l->drive.type]);
-    if (l->drive.type == LW_DRIVE_RESISTOR || l->drive.resistor_ohm > 0)
-        fprintf(fp, ", %g ohm per string", l->drive.resistor_ohm);
-    if (l->drive.type != LW_DRIVE_RESISTOR)
-        fprintf(fp, ", set %g mA", l->drive.set_a * 1e3);
-    if (duty < 1.0)
-        fprintf(fp, ", PWM %g %%", l->drive.duty_pct);
-    fputs("\n\nAt switch-on (fresh cells)\n", fp);
+    char drive[160];
+    lw_report_drive(l, drive, sizeof drive);
+    fprintf(fp, "  drive   %s\n", drive);
+}
+
+/* Why a light gave no light, with the figures that show it. */
+static void text_dark(FILE *fp, const lw_light *l, const lw_result *r)
+{
+    const lw_point *i0 = &r->initial;
+    fprintf(fp, "  %s: %s\n", lw_end_reason_names[r->end_reason], end_text(r->end_reason));
+    switch (r->end_reason) {
+    case LW_END_NEVER_LIT:
+        fprintf(fp, "  output at switch-on %.3g lm, below the visibility floor of %g lm\n",
+                i0->flux_lm, LW_VISIBLE_LM);
+        if (i0->regime == LW_REGIME_DROPOUT)
+            fputs("  the converter cannot start: the pack cannot supply it or is below its "
+                  "min_input_v\n",
+                  fp);
+        break;
+    case LW_END_EMPTY_AT_START:
+        if (r->start_depth >= 1.0)
+            fputs("  the cells hold no charge at switch-on\n", fp);
+        else
+            fprintf(fp, "  loaded cell voltage %.3f V at switch-on, at or below the end point "
+                        "%.3g V\n",
+                    i0->cell_v, l->cutoff.cell_v);
+        break;
+    case LW_END_DIM_AT_START:
+    default:
+        fprintf(fp, "  output at switch-on %.4g lm; the cutoff is %g %% of %.4g lm", i0->flux_lm,
+                l->cutoff.relative_pct, r->flux_ref_lm);
+        if (l->cutoff.flux_lm > 0)
+            fprintf(fp, " or %g lm", l->cutoff.flux_lm);
+        fputc('\n', fp);
+        break;
+    }
+}
+
+static void text_switch_on(FILE *fp, const lw_light *l, const lw_result *r)
+{
+    const lw_point *i0 = &r->initial;
+    const double duty = l->drive.duty_pct / 100.0;
     fprintf(fp, "  pack voltage        %.3f V open circuit, %.3f V loaded\n",
             l->pack.series * i0->ocv_v, i0->pack_v);
     fprintf(fp, "  LED current         %.2f mA per string%s (pack %.2f mA)\n", i0->led_a * 1e3,
-            duty < 1.0 ? " peak" : "", i0->pack_a * duty * 1e3);
+            duty < 1.0 ? " peak" : "", i0->pack_avg_a * 1e3);
     fprintf(fp, "  LED voltage         %.3f V per LED\n", i0->led_v);
     if (l->drive.resistor_ohm > 0)
         fprintf(fp, "  resistor            %.3f V, %.1f mW each%s\n",
@@ -519,11 +646,15 @@ static void text_report(FILE *fp, const lw_profile *p, const lw_result *r)
         fprintf(fp, "  driver loss         %.1f mW\n", i0->p_drv_w * 1e3);
     fprintf(fp, "  LED power           %.1f mW\n", i0->p_led_w * 1e3);
     fprintf(fp, "  light output        %.4g lm (%.4g lm after 30 s)\n", i0->flux_lm,
-            r->flux_ref_lm);
+            r->flux_30s_lm);
     if (i0->p_drawn_w > 0)
         fprintf(fp, "  efficiency          %.1f %% of the power drawn reaches the LEDs\n",
                 100.0 * i0->p_led_w / i0->p_drawn_w);
-    fputs("\nRun\n", fp);
+}
+
+static void text_run(FILE *fp, const lw_light *l, const lw_result *r)
+{
+    char buf[96];
     lw_format_hours(r->runtime_h, buf, sizeof buf);
     fprintf(fp, "  runtime to cutoff   %s  [%s: %s]\n", buf, lw_end_reason_names[r->end_reason],
             end_text(r->end_reason));
@@ -535,16 +666,18 @@ static void text_report(FILE *fp, const lw_profile *p, const lw_result *r)
     }
     fprintf(fp, "  lumen-hours         %.4g lm h (%.3g lm per W drawn from the cells)\n",
             r->lumen_hours, r->energy_drawn_wh > 0 ? r->lumen_hours / r->energy_drawn_wh : 0.0);
-    if (l->pack.stored_months > 0)
-        fprintf(fp, "  after storage       %g months on the shelf: starts at %.1f %% depth\n",
-                l->pack.stored_months, 100.0 * r->start_depth);
-    fprintf(fp, "  cutoff              %g %% of the 30-s output", l->cutoff.relative_pct);
+    lw_report_reference(l, buf, sizeof buf);
+    fprintf(fp, "  cutoff              %g %% of %s (%.4g lm)", l->cutoff.relative_pct, buf,
+            r->flux_ref_lm);
     if (l->cutoff.flux_lm > 0)
         fprintf(fp, ", or %g lm", l->cutoff.flux_lm);
     fprintf(fp, ", or %.3g V per cell loaded\n", l->cutoff.cell_v);
     fprintf(fp, "  at the end          %.3f V per cell loaded, depth %.1f %%\n", r->final.cell_v,
             100.0 * r->end_depth);
-    fputs("\nEnergy\n", fp);
+}
+
+static void text_energy(FILE *fp, const lw_light *l, const lw_result *r)
+{
     double drawn = r->energy_drawn_wh;
     const struct {
         const char *name;
@@ -557,22 +690,47 @@ static void text_report(FILE *fp, const lw_profile *p, const lw_result *r)
     for (size_t k = 0; k < sizeof e / sizeof e[0]; k++) {
         if (k == 3 && l->drive.type == LW_DRIVE_RESISTOR)
             continue;
-        snprintf(buf2, sizeof buf2, "%.1f %%", drawn > 0 ? 100.0 * e[k].wh / drawn : 0.0);
-        fprintf(fp, "  %-19s %.4g Wh  %s\n", e[k].name, e[k].wh, buf2);
+        fprintf(fp, "  %-19s %.4g Wh  %.1f %%\n", e[k].name, e[k].wh,
+                drawn > 0 ? 100.0 * e[k].wh / drawn : 0.0);
+    }
+}
+
+static void text_warnings(FILE *fp, const lw_light *l, const lw_result *r)
+{
+    unsigned w = r->warnings & ~(unsigned)LW_WARN_NEVER_LIT; /* said above */
+    if (!w)
+        return;
+    fputs("\nWarnings\n", fp);
+    for (int i = 0; i < LW_WARN_COUNT_; i++)
+        if (w & (1u << i))
+            fprintf(fp, "  ! %s\n", lw_warning_text(i));
+    if (w & (LW_WARN_LED_OVER_MAX | LW_WARN_LED_OVER_MAX_WORST))
+        fprintf(fp, "    nominal %.1f mA, worst case %.1f mA, max %.1f mA\n",
+                r->initial.led_a * 1e3, r->worst_led_a * 1e3, l->led.max_current_a * 1e3);
+    if (w & (LW_WARN_RESISTOR_HOT | LW_WARN_RESISTOR_OVER_RATING))
+        fprintf(fp, "    peak %.3g W nominal, %.3g W worst case, rating %.3g W\n",
+                r->peak_resistor_w, r->worst_resistor_w, l->drive.rating_w);
+}
+
+static void text_report(FILE *fp, const lw_profile *p, const lw_result *r)
+{
+    const lw_light *l = &p->light;
+    char cond[96];
+    start_condition(l, r, cond, sizeof cond);
+    text_header(fp, p);
+    if (lw_end_is_dark(r->end_reason)) {
+        fprintf(fp, "\nNo light at switch-on (%s)\n", cond);
+        text_dark(fp, l, r);
+    } else {
+        fprintf(fp, "\nAt switch-on (%s)\n", cond);
+        text_switch_on(fp, l, r);
+        fputs("\nRun\n", fp);
+        text_run(fp, l, r);
+        fputs("\nEnergy\n", fp);
+        text_energy(fp, l, r);
     }
     fprintf(fp, "\n  (%d operating-point solves)\n", r->solves);
-    if (r->warnings) {
-        fputs("\nWarnings\n", fp);
-        for (int i = 0; i < LW_WARN_COUNT_; i++)
-            if (r->warnings & (1u << i))
-                fprintf(fp, "  ! %s\n", warning_text(i));
-        if (r->warnings & (LW_WARN_LED_OVER_MAX | LW_WARN_LED_OVER_MAX_WORST))
-            fprintf(fp, "    nominal %.1f mA, worst case %.1f mA, max %.1f mA\n",
-                    r->initial.led_a * 1e3, r->worst_led_a * 1e3, l->led.max_current_a * 1e3);
-        if (r->warnings & (LW_WARN_RESISTOR_HOT | LW_WARN_RESISTOR_OVER_RATING))
-            fprintf(fp, "    peak %.3g W nominal, %.3g W worst case, rating %.3g W\n",
-                    r->peak_resistor_w, r->worst_resistor_w, l->drive.rating_w);
-    }
+    text_warnings(fp, l, r);
     fprintf(fp, "\n%s\n", lw_caution_line);
 }
 
@@ -600,4 +758,30 @@ lw_status lw_report_run(FILE *fp, lw_format fmt, const lw_profile *prof, const l
         st = lw_rtable_write(t, fp, fmt, err);
     lw_rtable_free(t);
     return st;
+}
+
+/* ---- the trace ---- */
+
+lw_status lw_report_trace_csv(FILE *fp, const lw_trace *tr, lw_error *err)
+{
+    static const char *const head[] = {"time_h",  "depth_pct", "pack_v",     "cell_v",
+                                       "ocv_cell_v", "led_ma", "led_v",      "resistor_w",
+                                       "led_w",   "driver_w",  "flux_lm",    "flux_pct"};
+    lw_csvw w;
+    lw_csvw_init(&w, fp);
+    for (size_t k = 0; k < sizeof head / sizeof head[0]; k++)
+        lw_csvw_text(&w, head[k]);
+    lw_csvw_end_row(&w);
+    for (size_t i = 0; i < tr->n; i++) {
+        const lw_point *p = &tr->rows[i].pt;
+        const double v[] = {tr->rows[i].t_h, 100.0 * p->depth, p->pack_v,   p->cell_v,
+                            p->ocv_v,        p->led_a * 1e3,   p->led_v,    p->p_res_w,
+                            p->p_led_w,      p->p_drv_w,       p->flux_lm,  tr->rows[i].pct_of_ref};
+        for (size_t k = 0; k < sizeof v / sizeof v[0]; k++)
+            lw_csvw_num(&w, v[k]);
+        lw_csvw_end_row(&w);
+    }
+    if (w.failed || ferror(fp))
+        return lw_error_set(err, LW_EIO, NULL, 0, "write error");
+    return LW_OK;
 }

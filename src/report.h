@@ -25,6 +25,8 @@ typedef struct lw_rtable {
     char **group;        /* ncol group labels (text: a line above spanning equal
                             neighbours; md and csv: prefixed to the name), or NULL */
     char **cell;         /* nrow * ncol texts (NULL = empty) */
+    char **full;         /* nrow * ncol full-precision texts of numbers for CSV
+                            (NULL: the same as cell) */
     char **notes;        /* lines printed under the table (text and md) */
     size_t nnotes;
     char *title;         /* printed above (text and md), may be NULL */
@@ -39,18 +41,25 @@ lw_status lw_rtable_group(lw_rtable *t, size_t col, const char *group, lw_error 
 /* Append an empty row; returns its index via *row. */
 lw_status lw_rtable_add_row(lw_rtable *t, size_t *row, lw_error *err);
 lw_status lw_rtable_set(lw_rtable *t, size_t row, size_t col, const char *text, lw_error *err);
+/* Copy cell (sr, sc) of src, full precision included, into (row, col). */
+lw_status lw_rtable_copy_cell(lw_rtable *t, size_t row, size_t col, const lw_rtable *src,
+                              size_t sr, size_t sc, lw_error *err);
 lw_status lw_rtable_setf(lw_rtable *t, size_t row, size_t col, lw_error *err, const char *fmt,
                          ...)
 #if defined(__GNUC__)
     __attribute__((format(printf, 5, 6)))
 #endif
     ;
+/* A number: `sig` significant digits in text and Markdown, full precision
+ * (the shortest text that reads back exactly) in CSV; NaN is empty. */
+lw_status lw_rtable_num(lw_rtable *t, size_t row, size_t col, double v, int sig,
+                        lw_error *err);
 lw_status lw_rtable_note(lw_rtable *t, const char *text, lw_error *err);
 lw_status lw_rtable_set_title(lw_rtable *t, const char *text, lw_error *err);
 /* Render; returns LW_EIO if a write failed. */
 lw_status lw_rtable_write(const lw_rtable *t, FILE *fp, lw_format fmt, lw_error *err);
 
-/* Number of the run columns, and their names in order. */
+/* Number of the run columns, and their names in order (NULL-terminated). */
 extern const char *const lw_run_columns[];
 extern const size_t lw_run_ncolumns;
 
@@ -62,8 +71,22 @@ lw_status lw_report_run_row(lw_rtable *t, size_t row, size_t first, const lw_lig
 lw_status lw_report_run(FILE *fp, lw_format fmt, const lw_profile *prof, const lw_result *res,
                         lw_error *err);
 
+/* The trace of a run as CSV (columns in docs/formats.md), full precision. */
+lw_status lw_report_trace_csv(FILE *fp, const lw_trace *trace, lw_error *err);
+
 /* Warning names joined by ';' ("" for none). */
 void lw_warnings_text(unsigned warnings, char *buf, size_t size);
+
+/* The drive in words: "resistor, 33 ohm per string", "converter, set 50 mA
+ * at 85 %, fallback 5 mA, PWM 30 %". */
+void lw_report_drive(const lw_light *light, char *buf, size_t size);
+
+/* A warning in words, by bit index (LW_WARN_* = 1u << bit). */
+const char *lw_warning_text(int bit);
+
+/* What the relative cutoff refers to, in words ("the 30-s output", "the
+ * 30-s output of fresh cells at 20 C"). */
+void lw_report_reference(const lw_light *light, char *buf, size_t size);
 
 /* Human duration: "41.3 h", "52 min", "3.2 d" style. */
 void lw_format_hours(double h, char *buf, size_t size);

@@ -48,7 +48,7 @@ static lw_status push_num(lw_vary *v, size_t *cap, double x, lw_error *err)
  * or resistor code. */
 static bool parse_num(const char *s, double *out)
 {
-    return lw_parse_double(s, out) || lw_parse_si(s, out);
+    return lw_parse_number(s, out);
 }
 
 /* "FROM..TO[:STEP]"; *step points at STEP or is NULL. */
@@ -71,7 +71,7 @@ static bool parse_span(const char *s, double *lo, double *hi, const char **step)
     return parse_num(a, lo) && parse_num(b, hi);
 }
 
-static lw_status parse_values(const char *arg, const char *vals, bool numeric,
+static lw_status parse_values(const char *arg, const char *vals, bool numeric, const char *dir,
                               const lw_search *search, lw_vary *v, lw_error *err)
 {
     size_t cap = 0;
@@ -100,11 +100,9 @@ static lw_status parse_values(const char *arg, const char *vals, bool numeric,
             return LW_OK;
         }
     }
-    if (strstr(vals, "..")) {
+    if (numeric && strstr(vals, "..")) { /* (a path like ../cells/x.ini is a text) */
         double lo, hi, step = 1.0;
         const char *stext;
-        if (!numeric)
-            return vary_error(arg, "a range needs a numeric key", err);
         if (!parse_span(vals, &lo, &hi, &stext) || hi < lo)
             return vary_error(arg, "a range is FROM..TO or FROM..TO:STEP with FROM <= TO", err);
         if (stext && (!parse_num(stext, &step) || !(step > 0)))
@@ -122,18 +120,28 @@ static lw_status parse_values(const char *arg, const char *vals, bool numeric,
     if (!strcmp(vals, "all")) {
         if (strcmp(v->key, "pack.cell") != 0)
             return vary_error(arg, "'all' is for pack.cell", err);
-        /* the cell library folders only: a profile's own folder also holds
-         * profiles, so cells kept beside a profile are named explicitly */
+        /* the profile's folder first, as a cell name is looked up */
         lw_search s;
         memset(&s, 0, sizeof s);
+        if (dir)
+            lw_search_add(&s, dir);
         for (size_t i = 0; search && i < search->n; i++)
             lw_search_add(&s, search->dirs[i]);
-        char **names = NULL, **paths = NULL;
-        size_t n = 0;
-        lw_status st = lw_cell_names(&s, &names, &paths, &n, err);
-        for (size_t i = 0; st == LW_OK && i < n; i++)
-            st = push(v, &cap, names[i], err);
-        lw_cell_names_free(names, paths, n);
+        lw_cell_list list;
+        lw_status st = lw_cell_list_read(&s, &list, err);
+        for (size_t i = 0; st == LW_OK && i < list.n; i++)
+            st = push(v, &cap, list.names[i], err);
+        if (st == LW_OK && list.nskipped) {
+            snprintf(v->note, sizeof v->note, "skipped %zu file%s that %s not cell files (no "
+                                              "[cell] section): ",
+                     list.nskipped, list.nskipped == 1 ? "" : "s",
+                     list.nskipped == 1 ? "is" : "are");
+            for (size_t i = 0; i < list.nskipped; i++) {
+                strncat(v->note, i ? ", " : "", sizeof v->note - strlen(v->note) - 1);
+                strncat(v->note, list.skipped[i], sizeof v->note - strlen(v->note) - 1);
+            }
+        }
+        lw_cell_list_clear(&list);
         if (st == LW_OK && v->n == 0)
             return vary_error(arg, "no cell files found", err);
         return st;
@@ -180,7 +188,7 @@ static lw_status parse_modes(const char *arg, const char *vals, const lw_profile
         }
         return LW_OK;
     }
-    lw_status st = parse_values(arg, vals, false, NULL, v, err);
+    lw_status st = parse_values(arg, vals, false, NULL, NULL, v, err);
     for (size_t k = 0; st == LW_OK && k < v->n; k++) {
         bool found = false;
         for (size_t i = 0; i < nm && !found; i++)
@@ -221,7 +229,21 @@ lw_status lw_vary_parse(const char *arg, const lw_profile *prof, lw_vary *v, lw_
             return lw_key_unknown(lw_profile_keys, lw_profile_nkeys, section, key, "--vary", 0,
                                   err);
         bool numeric = d->type == LW_K_NUM || d->type == LW_K_INT;
-        st = parse_values(arg, eq + 1, numeric, prof ? &prof->search : NULL, v, err);
+        st = parse_values(arg, eq + 1, numeric, prof ? prof->dir : NULL,
+                          prof ? &prof->search : NULL, v, err);
+        for (size_t i = 0; st == LW_OK && d->type == LW_K_CHOICE && i < v->n; i++) {
+            bool known = false;
+            for (size_t c = 0; d->choices[c] && !known; c++)
+                known = !strcmp(d->choices[c], v->values[i]);
+            if (!known) {
+                char why[256] = "not one of the values of the key: ";
+                for (size_t c = 0; d->choices[c]; c++) {
+                    strncat(why, c ? ", " : "", sizeof why - strlen(why) - 1);
+                    strncat(why, d->choices[c], sizeof why - strlen(why) - 1);
+                }
+                st = vary_error(arg, why, err);
+            }
+        }
     }
     if (st != LW_OK)
         lw_vary_clear(v);
@@ -298,4 +320,163 @@ void lw_sweep_clear(lw_sweep *sw)
     sw->cases = NULL;
     sw->index = NULL;
     sw->n = 0;
+}
+
+/* ---- the sweep's table and chart ---- */
+
+static const char *const sweep_text_cols[] = {
+    "initial_led_ma", "flux_30s_lm", "runtime_h",     "end_reason",     "regulated_h",
+    "time_to_half_h", "lumen_hours", "efficiency_pct", "lm_per_w",       "peak_resistor_w",
+    "warnings"};
+
+/* At most this many --columns entries. */
+#define SWEEP_COLUMNS_MAX 64
+
+static lw_status sweep_columns(const char *list, lw_format fmt, size_t *cols, size_t *n,
+                               lw_error *err)
+{
+    *n = 0;
+    if (!list) {
+        size_t k = fmt == LW_FMT_TEXT ? sizeof sweep_text_cols / sizeof sweep_text_cols[0]
+                                      : lw_run_ncolumns;
+        for (size_t i = 0; i < k; i++) {
+            size_t c = i;
+            if (fmt == LW_FMT_TEXT)
+                for (c = 0; strcmp(lw_run_columns[c], sweep_text_cols[i]) != 0; c++)
+                    ;
+            cols[(*n)++] = c;
+        }
+        return LW_OK;
+    }
+    for (const char *p = list; *p;) {
+        const char *comma = strchr(p, ',');
+        size_t len = comma ? (size_t)(comma - p) : strlen(p);
+        size_t i = 0;
+        while (i < lw_run_ncolumns &&
+               (strlen(lw_run_columns[i]) != len || strncmp(lw_run_columns[i], p, len) != 0))
+            i++;
+        if (i == lw_run_ncolumns) {
+            char known[1024] = "";
+            for (size_t k = 0; k < lw_run_ncolumns; k++) {
+                strncat(known, k ? ", " : "", sizeof known - strlen(known) - 1);
+                strncat(known, lw_run_columns[k], sizeof known - strlen(known) - 1);
+            }
+            return lw_error_set(err, LW_EINPUT, "--columns", 0,
+                                "unknown column '%.*s'; the columns are: %s", (int)len, p,
+                                known);
+        }
+        if (*n == SWEEP_COLUMNS_MAX)
+            return lw_error_set(err, LW_EINPUT, "--columns", 0, "more than %d columns",
+                                SWEEP_COLUMNS_MAX);
+        cols[(*n)++] = i;
+        p += len + (comma ? 1 : 0);
+    }
+    return LW_OK;
+}
+
+lw_status lw_sweep_table(const lw_sweep *sw, lw_format fmt, const char *columns, lw_rtable **out,
+                         lw_error *err)
+{
+    size_t cols[SWEEP_COLUMNS_MAX];
+    size_t ncols;
+    *out = NULL;
+    lw_status st = sweep_columns(columns, fmt, cols, &ncols, err);
+    if (st != LW_OK)
+        return st;
+    size_t nk = sw->nvary;
+    lw_rtable *t = lw_rtable_new(nk + ncols, err);
+    lw_rtable *full = t ? lw_rtable_new(lw_run_ncolumns, err) : NULL;
+    if (!t || !full) {
+        lw_rtable_free(t);
+        return LW_ENOMEM;
+    }
+    for (size_t k = 0; k < nk && st == LW_OK; k++)
+        st = lw_rtable_head(t, k, sw->vary[k].key, err);
+    for (size_t c = 0; c < ncols && st == LW_OK; c++)
+        st = lw_rtable_head(t, nk + c, lw_run_columns[cols[c]], err);
+    size_t frow = 0;
+    if (st == LW_OK)
+        st = lw_rtable_add_row(full, &frow, err);
+    for (size_t r = 0; r < sw->n && st == LW_OK; r++) {
+        size_t row = 0;
+        st = lw_rtable_add_row(t, &row, err);
+        for (size_t k = 0; k < nk && st == LW_OK; k++)
+            st = lw_rtable_set(t, row, k, sw->vary[k].values[sw->index[r * nk + k]], err);
+        if (st == LW_OK)
+            st = lw_report_run_row(full, frow, 0, &sw->cases[r].light, &sw->cases[r].res, err);
+        for (size_t c = 0; c < ncols && st == LW_OK; c++)
+            st = lw_rtable_copy_cell(t, row, nk + c, full, frow, cols[c], err);
+    }
+    lw_rtable_free(full);
+    if (st == LW_OK && fmt != LW_FMT_CSV)
+        st = lw_rtable_note(t, lw_caution_line, err);
+    if (st != LW_OK) {
+        lw_rtable_free(t);
+        return st;
+    }
+    *out = t;
+    return LW_OK;
+}
+
+lw_status lw_sweep_chart(const lw_profile *prof, const lw_sweep *sw, lw_chart *c, void **buf,
+                         lw_error *err)
+{
+    size_t nk = sw->nvary, group_k = nk, label_k = nk ? nk - 1 : 0;
+    for (size_t k = 0; k < nk; k++)
+        if (!strcmp(sw->vary[k].key, "drive.resistor_ohm"))
+            label_k = k;
+    for (size_t k = 0; k < nk && group_k == nk; k++)
+        if (k != label_k)
+            group_k = k;
+    size_t ngroups = group_k < nk ? sw->vary[group_k].n : 1;
+    if (ngroups > LW_PLOT_SERIES_MAX)
+        ngroups = LW_PLOT_SERIES_MAX;
+    /* one block: x and y of every point, their labels, and the subtitle */
+    size_t bytes = 2 * sw->n * sizeof(double) + sw->n * sizeof(const char *) + 256;
+    char *block = malloc(bytes);
+    *buf = block;
+    if (!block)
+        return lw_error_set(err, LW_ENOMEM, NULL, 0, "out of memory");
+    double *xy = (double *)(void *)block;
+    const char **labels = (const char **)(void *)(xy + 2 * sw->n);
+    char *sub = (char *)(labels + sw->n);
+    memset(c, 0, sizeof *c);
+    snprintf(sub, 256, "each point one full discharge; labels: %s",
+             nk ? sw->vary[label_k].key : "");
+    c->title = prof->light.name;
+    c->subtitle = sub;
+    c->npanels = 1;
+    lw_panel *p = &c->panels[0];
+    double xmin = INFINITY, xmax = 0, ymin = INFINITY, ymax = 0;
+    size_t used = 0;
+    for (size_t g = 0; g < ngroups; g++) {
+        lw_series *s = &p->series[p->nseries];
+        size_t start = used;
+        for (size_t r = 0; r < sw->n; r++) {
+            if (group_k < nk && sw->index[r * nk + group_k] != g)
+                continue;
+            const lw_result *res = &sw->cases[r].res;
+            if (!(res->flux_30s_lm > 0 && res->runtime_h > 0))
+                continue;
+            xy[used] = res->flux_30s_lm;
+            xy[sw->n + used] = res->runtime_h;
+            labels[used] = nk ? sw->vary[label_k].values[sw->index[r * nk + label_k]] : NULL;
+            xmin = fmin(xmin, xy[used]);
+            xmax = fmax(xmax, xy[used]);
+            ymin = fmin(ymin, xy[sw->n + used]);
+            ymax = fmax(ymax, xy[sw->n + used]);
+            used++;
+        }
+        if (used == start)
+            continue;
+        *s = (lw_series){.name = group_k < nk ? sw->vary[group_k].values[g] : "runs",
+                         .x = xy + start, .y = xy + sw->n + start, .n = used - start,
+                         .points = true, .labels = labels + start};
+        p->nseries++;
+    }
+    c->x = (lw_axis){.label = "light output 30 s after switch-on (lm)",
+                     .log = xmax > 30 * xmin, .from_zero = !(xmax > 30 * xmin)};
+    p->y = (lw_axis){.label = "runtime to cutoff (h)", .log = ymax > 30 * ymin,
+                     .from_zero = !(ymax > 30 * ymin)};
+    return LW_OK;
 }

@@ -10,7 +10,9 @@
  *                     numbers: 2.2k, 4k7, 1M, 4R7)
  *   1..4  1..4:0.5    a numeric range, step 1 or the step after ':'
  *   E24:10..1k        the values of a preferred series in a range
- *   all               for pack.cell: every cell on the search path;
+ *   all               for pack.cell: every cell file in the profile's folder
+ *                     and on the search path (INI files without a [cell]
+ *                     section are skipped, with a note);
  *                     for mode: every mode of the profile
  */
 #ifndef LW_SWEEP_H
@@ -18,6 +20,8 @@
 
 #include "batch.h"
 #include "cellfile.h"
+#include "plot.h"
+#include "report.h"
 
 #define LW_VARY_MAX_VALUES 100000
 
@@ -25,6 +29,7 @@ typedef struct lw_vary {
     char key[2 * LW_INI_NAME_MAX];
     size_t n;
     char (*values)[LW_CASE_VALUE_MAX]; /* n texts, as set into the profile */
+    char note[512];       /* "" or a note for the user (files skipped by 'all') */
 } lw_vary;
 
 /* The accepted forms, for messages and help. */
@@ -48,6 +53,19 @@ typedef struct lw_sweep {
 /* Build and run the grid (the last vary changes fastest).  Fails with the
  * first case error (bad input) or LW_ENOMEM; a light that never lights is a
  * row, not an error.  Free with lw_sweep_clear. */
+/* The table of a sweep: the varied keys, then the run columns `columns`
+ * (comma-separated names of lw_run_columns; NULL: every column for CSV and
+ * Markdown, a readable subset for text).  Fails with the unknown column. */
+lw_status lw_sweep_table(const lw_sweep *sw, lw_format fmt, const char *columns, lw_rtable **out,
+                         lw_error *err);
+
+/* The trade-off chart of a sweep: runtime against the 30-s light output, one
+ * series per value of the first varied key other than the resistor, points
+ * labelled with the resistor (or the last varied key).  Fill *chart; the
+ * arrays it points to are malloc'd into *buf (free it after writing). */
+lw_status lw_sweep_chart(const lw_profile *prof, const lw_sweep *sw, lw_chart *chart,
+                         void **buf, lw_error *err);
+
 lw_status lw_sweep_run(const lw_profile *base, const lw_vary *vary, size_t nvary, int threads,
                        lw_progress_fn progress, void *progress_ctx, lw_sweep *sw, lw_error *err);
 void lw_sweep_clear(lw_sweep *sw);

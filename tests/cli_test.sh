@@ -63,8 +63,8 @@ expect 2 "typo.ini:10: unknown key 'resistr_ohm' in \[drive\]; did you mean 'dri
 sed 's/^curve = .*/curve = gone.csv/' "$SRC/cells/HR6-nimh.ini" > "$TMP/p/mycell.ini"
 expect 2 "mycell.ini:[0-9]+: \[cell\] curve: cannot open" "$LW" run "$TMP/p/light.ini"
 cp "$SRC/cells/HR6-nimh.ini" "$TMP/p/mycell.ini"
-awk 'NR == 5 { print "10,1.27,0.031"; next } { print }' "$SRC/cells/HR6-nimh.curve.csv" > "$TMP/p/HR6-nimh.curve.csv"
-expect 2 "HR6-nimh.curve.csv:5: depth_pct = 10 does not increase" "$LW" run "$TMP/p/light.ini"
+awk 'NR == 5 { print "5,1.27,0.031"; next } { print }' "$SRC/cells/HR6-nimh.curve.csv" > "$TMP/p/HR6-nimh.curve.csv"
+expect 2 "HR6-nimh.curve.csv:5: depth_pct = 5 does not increase" "$LW" run "$TMP/p/light.ini"
 cp "$SRC/cells/HR6-nimh.curve.csv" "$TMP/p/"
 expect 2 "^lampwick: --set led.forward_v: \[led\] forward_v = abc: expected a number" "$LW" run "$TMP/p/light.ini" --set led.forward_v=abc
 
@@ -90,7 +90,12 @@ expect 2 "VALUES may be a list .*E24:10..1k" "$LW" sweep profiles/demo.ini --var
 expect 2 "did you mean 'drive.resistor_ohm'" "$LW" sweep profiles/demo.ini --vary drive.resistr_ohm=1,2
 expect 2 'give at least one --vary' "$LW" sweep profiles/demo.ini
 expect 0 'chosen +36 ohm' "$LW" pick profiles/demo.ini --target-ma 50
-expect 0 '^resistor_ohm,series,tolerance_pct,ideal_ohm,nominal_led_ma,worst_led_ma' "$LW" pick profiles/demo.ini --target-ma 50 --format csv
+expect 0 '^cell,resistor_ohm,eseries,tolerance_pct,ideal_ohm,nominal_led_ma' "$LW" pick profiles/demo.ini --target-ma 50 --format csv
+expect 0 '^LR6-alkaline,36,E24,' "$LW" pick profiles/demo.ini --target-ma 50 --format csv
+expect 0 'worst hot' "$LW" pick profiles/demo.ini --target-ma 50
+expect 0 'cold \(-20 C\)' "$LW" pick profiles/demo.ini --target-ma 50
+n=$("$LW" pick profiles/demo.ini --target-ma 50 --cells LR6-alkaline,HR6-nimh,FR6-lithium --format csv | tail -n +2 | wc -l)
+if [ "$n" -eq 3 ]; then ok; else bad "pick --cells gave $n rows"; fi
 expect 1 'nearest safe part' "$LW" pick profiles/demo.ini --target-ma 400
 expect 2 'exactly one of --target-ma and --target-lm' "$LW" pick profiles/demo.ini
 expect 0 '^cell +series +parallel +resistor_ohm' "$LW" size profiles/demo.ini --runtime-h 40 --flux-lm 15 --cells all
@@ -140,9 +145,42 @@ expect 2 'give the end-point voltage' "$LW" fit cell "$EX/nimh-aa-8r2.csv" --loa
 
 # regulated drives side by side, storage
 expect 0 '^\| mode \| runtime_h \| end_reason .*\| regulated_h \|' "$LW" sweep profiles/lantern-drives.ini --vary mode=all --format md
-expect 0 'after storage +24 months on the shelf' "$LW" run profiles/lantern-drives.ini --stored-months 24
+expect 0 "At switch-on \(after 24 months' storage" "$LW" run profiles/lantern-drives.ini --stored-months 24
 expect 2 "no \[mode turbo\]" "$LW" sweep profiles/lantern-drives.ini --vary mode=resistor,turbo
 expect 0 'converter' "$LW" table profiles/lantern-drives.ini
+
+# lights that give no light: an answer of their own, exit 1
+expect 1 'empty-at-start' "$LW" run profiles/demo.ini --set pack.cell=CR2032-lithium
+expect 1 'empty-at-start' "$LW" run profiles/demo.ini --set pack.stored_months=600 --set pack.cell=HR6-nimh
+expect 1 'never-lit' "$LW" run profiles/demo.ini --set led.count=3
+expect 1 'no light: the cells are empty' "$LW" run profiles/demo.ini --set pack.cell=CR2032-lithium
+out=$("$LW" run profiles/demo.ini --set pack.cell=CR2032-lithium 2>/dev/null)
+if printf '%s' "$out" | grep -q 'after 30 s'; then bad "a dark run reports output figures"; else ok; fi
+expect 0 'no light .*empty-at-start' "$LW" table profiles/demo.ini --cells CR2032-lithium,LR6-alkaline
+# a converter that cannot start: its fallback level, or never lit
+expect 0 'LED current +5.00 mA' "$LW" run profiles/lantern-drives.ini --mode converter --set drive.min_input_v=4.8
+expect 1 'never-lit' "$LW" run profiles/lantern-drives.ini --mode converter --set drive.min_input_v=4.8 --set drive.fallback_ma=0
+# the table says what it computed
+expect 0 "after 60 months' storage .*or to 20 lm" "$LW" table profiles/lantern-drives.ini --set pack.stored_months=60 --set cutoff.flux_lm=20
+expect 0 'of the 30-s output of fresh cells at 20 C' "$LW" table profiles/demo.ini --set cutoff.reference=fresh
+expect 0 'cutoff +10 % of the 30-s output of fresh cells at 20 C' "$LW" run profiles/demo.ini --set cutoff.reference=fresh --set pack.stored_months=60
+# one number grammar: resistor codes in --set, --vary and files alike
+expect 0 'runtime to cutoff' "$LW" run profiles/demo.ini --set drive.resistor_ohm=4k7
+expect 0 '^4700,' "$LW" sweep profiles/demo.ini --vary drive.resistor_ohm=4k7 --format csv
+# one message per usage error, naming the option
+out=$("$LW" run profiles/demo.ini --bogus 2>&1)
+if [ "$(printf '%s\n' "$out" | grep -c 'unknown option')" -eq 1 ] && printf '%s' "$out" | grep -q "'--bogus'"; then ok; else bad "usage error: $out"; fi
+expect 0 '--cells LIST' "$LW" help table
+expect 0 '--eseries E24' "$LW" help pick
+expect 2 "unknown option '--series'" "$LW" pick profiles/demo.ini --target-ma 50 --series E24
+# a regulated drive: size sizes the pack alone
+expect 0 'The drive regulates' "$LW" size profiles/lantern-drives.ini --mode linear --runtime-h 10 --cells LR6-alkaline,HR6-nimh
+# a profile kept beside the cells is skipped, with a note
+mkdir -p "$TMP/lib"
+cp "$SRC/cells/LR6-alkaline.ini" "$SRC/cells/LR6-alkaline.curve.csv" "$SRC/cells/alkaline.temperature.csv" "$TMP/lib/"
+cp "$SRC/profiles/demo.ini" "$TMP/lib/"
+expect 0 'not a cell file' env LAMPWICK_CELLS="$TMP/lib" "$LW" cells
+expect 0 'LR6-alkaline' env LAMPWICK_CELLS="$TMP/lib" "$LW" sweep "$TMP/lib/demo.ini" --vary pack.cell=all --columns runtime_h
 
 # regression of run --format csv on every bundled profile and mode
 compare() { # compare GOLDEN ACTUAL

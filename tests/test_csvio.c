@@ -96,8 +96,8 @@ static void writer_quotes_per_rfc4180(void **state)
     lw_csvw_text(&w, "plain");
     lw_csvw_text(&w, "a,b");
     lw_csvw_text(&w, "say \"hi\"");
-    lw_csvw_num(&w, 1.0 / 3.0, 4);
-    lw_csvw_num(&w, NAN, 4);
+    lw_csvw_num(&w, 1.0 / 3.0);
+    lw_csvw_num(&w, NAN);
     lw_csvw_end_row(&w);
     fclose(fp);
     assert_false(w.failed);
@@ -108,7 +108,30 @@ static void writer_quotes_per_rfc4180(void **state)
     buf[n] = '\0';
     /* RFC 4180 section 2: fields with commas or quotes are quoted, quotes
      * doubled; records end in CRLF. */
-    assert_string_equal(buf, "plain,\"a,b\",\"say \"\"hi\"\"\",0.3333,\r\n");
+    assert_string_equal(buf,
+                        "plain,\"a,b\",\"say \"\"hi\"\"\",0.3333333333333333,\r\n");
+}
+
+/* Numbers in CSV carry full precision: the shortest decimal that reads back
+ * as exactly the same double (IEEE 754 binary64; 17 significant digits
+ * always suffice, common practice, no source). */
+static void numbers_round_trip(void **state)
+{
+    (void)state;
+    const double vals[] = {0.1, 1.0 / 3.0, 2.0 / 3.0, 59.878917329, 1e-300, 123456789012345678.0,
+                           0.30000000000000004, 4.6e-18, -2.5, 1e22};
+    const char *const want[] = {"0.1", NULL, NULL, "59.878917329", "1e-300", NULL,
+                                "0.30000000000000004", "4.6e-18", "-2.5", "1e+22"};
+    for (size_t i = 0; i < sizeof vals / sizeof vals[0]; i++) {
+        char buf[32];
+        lw_format_double(buf, sizeof buf, vals[i]);
+        assert_true(strtod(buf, NULL) == vals[i]);
+        if (want[i])
+            assert_string_equal(buf, want[i]);
+    }
+    char buf[32];
+    lw_format_double(buf, sizeof buf, NAN);
+    assert_string_equal(buf, "");
 }
 
 static void outfile_is_atomic(void **state)
@@ -143,6 +166,7 @@ int main(void)
         cmocka_unit_test(refuses_unknown_and_duplicate_columns),
         cmocka_unit_test(refuses_nonfinite_and_blank_fields),
         cmocka_unit_test(writer_quotes_per_rfc4180),
+        cmocka_unit_test(numbers_round_trip),
         cmocka_unit_test(outfile_is_atomic),
     };
     return cmocka_run_group_tests(tests, NULL, tmp_teardown);

@@ -28,14 +28,19 @@ static void pick_worst_case_by_hand(void **state)
     assert_close(pk.ideal_ohm, 49.5, 1e-9);
     assert_close(pk.resistor_ohm, 51, 0);
     assert_close(pk.tolerance_pct, 5, 0);
-    assert_close(pk.nominal_led_a, 1.0 / 51.5, 1e-12);
-    assert_close(pk.worst_led_a, 1.10 / 48.95, 1e-12);
+    assert_close(pk.corners[LW_CORNER_NOMINAL].pt.led_a, 1.0 / 51.5, 1e-12);
+    assert_close(pk.corners[LW_CORNER_HOT].pt.led_a, 1.10 / 48.95, 1e-12);
     double i = 1.10 / 48.95;
-    assert_close(pk.worst_resistor_w, i * i * 48.45, 1e-12);
+    assert_close(pk.corners[LW_CORNER_HOT].pt.p_res_peak_w, i * i * 48.45, 1e-12);
     assert_close(pk.recommended_rating_w, 0.063, 0);
     assert_true(pk.meets_target && pk.within_ratings);
     /* the full run confirms the part: Coulomb counting on the flat cell */
     assert_close(pk.run.runtime_h, 2.0 / (1.0 / 51.5), 1e-9);
+    /* the flat cell has no temperature table: the cold corner is nominal;
+     * the end of the run is the run's own last point */
+    assert_false(pk.corners[LW_CORNER_COLD].from_table);
+    assert_close(pk.corners[LW_CORNER_COLD].pt.led_a, 1.0 / 51.5, 1e-12);
+    assert_close(pk.corners[LW_CORNER_END].pt.depth, pk.run.end_depth, 0);
     lw_result_clear(&pk.run);
     lw_profile_clear(&p);
 }
@@ -56,8 +61,8 @@ static void pick_never_proposes_an_unsafe_part(void **state)
     lw_pick pk;
     assert_int_equal(lw_pick_resistor(&p, LW_TARGET_CURRENT, 0.020, 24, &pk, &e), LW_ENOANSWER);
     assert_close(pk.resistor_ohm, 56, 0);
-    assert_close(pk.worst_led_a, 1.10 / 53.7, 1e-12);
-    assert_true(pk.worst_led_a <= 0.022);
+    assert_close(pk.corners[LW_CORNER_HOT].pt.led_a, 1.10 / 53.7, 1e-12);
+    assert_true(pk.corners[LW_CORNER_HOT].pt.led_a <= 0.022);
     assert_non_null(strstr(e.msg, "nearest safe part is 56 ohm"));
     lw_result_clear(&pk.run);
     /* a flux target the LED cannot reach within its rating at all */
@@ -80,7 +85,7 @@ static void pick_flux_target(void **state)
     assert_int_equal(lw_pick_resistor(&p, LW_TARGET_FLUX, 8.0, 24, &pk, &e), LW_OK);
     assert_close(pk.ideal_ohm, 62.0, 1e-9);
     assert_close(pk.resistor_ohm, 62, 0);
-    assert_true(pk.nominal_flux_lm >= 8.0 * (1 - 1e-12));
+    assert_true(pk.corners[LW_CORNER_NOMINAL].pt.flux_lm >= 8.0 * (1 - 1e-12));
     lw_result_clear(&pk.run);
     lw_profile_clear(&p);
 }
@@ -143,6 +148,108 @@ static void size_results_pass_their_own_runs(void **state)
     lw_profile_clear(&p);
 }
 
+/* size never proposes a resistor beyond its rating: with rating_w = 0.0625
+ * W every chosen part's worst-case dissipation is within it, and each row
+ * states that dissipation and the recommended rating (at least twice it). */
+static void size_respects_the_resistor_rating(void **state)
+{
+    (void)state;
+    lw_profile p;
+    load_fixture("rating_w = 0.02\n", &p);
+    const char *cells[] = {"flat", NULL};
+    lw_size_options opt = {.runtime_h = 10, .flux_lm = NAN, .cells = cells, .max_series = 3,
+                           .max_parallel = 1, .eseries = 24, .threads = 1};
+    lw_size_row *rows;
+    size_t n;
+    lw_error e;
+    lw_error_clear(&e);
+    assert_int_equal(lw_size_packs(&p, &opt, &rows, &n, &e), LW_OK);
+    assert_true(n >= 2);
+    for (size_t i = 0; i < n; i++) {
+        assert_true(rows[i].worst_resistor_w <= 0.02);
+        assert_true(rows[i].rating_w >= 2 * rows[i].worst_resistor_w);
+        /* a part just below would break the rating or the LED's maximum */
+        lw_profile q;
+        assert_int_equal(lw_profile_copy(&q, &p, &e), LW_OK);
+        char buf[32];
+        snprintf(buf, sizeof buf, "%d", rows[i].series);
+        lw_profile_set(&q, "pack.series", buf, LW_FROM_OPTION, "t", 0, &e);
+        assert_int_equal(lw_profile_resolve(&q, &e), LW_OK);
+        lw_point w;
+        double below = lw_eseries_round(24, rows[i].resistor_ohm * (1 - 1e-6), false);
+        lw_light l = q.light;
+        l.drive.resistor_ohm = below;
+        assert_int_equal(lw_worst_case(&l, &w, &e), LW_OK);
+        if (rows[i].resistor_ohm > 49.5 * 1.06) /* above the design current's value */
+            assert_true(w.p_res_peak_w > 0.02 || w.led_a > l.led.max_current_a);
+        lw_profile_clear(&q);
+    }
+    free(rows);
+    lw_profile_clear(&p);
+}
+
+/* size with a regulated drive: no resistor to choose, each pack is run with
+ * the drive as it is (here a linear regulator at the design current). */
+static void size_regulated_drive(void **state)
+{
+    (void)state;
+    lw_profile p;
+    load_fixture("type = linear-cc\nset_ma = 20\ndropout_v = 0.2\n", &p);
+    const char *cells[] = {"flat", NULL};
+    lw_size_options opt = {.runtime_h = 150, .flux_lm = NAN, .cells = cells, .max_series = 2,
+                           .max_parallel = 2, .eseries = 24, .threads = 1};
+    lw_size_row *rows;
+    size_t n;
+    lw_error e;
+    lw_error_clear(&e);
+    assert_int_equal(lw_size_packs(&p, &opt, &rows, &n, &e), LW_OK);
+    assert_int_equal(n, 4);
+    /* two cells in series hold the regulator at 20 mA to the end: Coulomb
+     * counting, P x 2 Ah at 20 mA; one cell saturates it at
+     * (3.0 - 0.2 - 2.0)/(49.5 + 0.5/P) */
+    for (size_t i = 0; i < n; i++) {
+        assert_true(isnan(rows[i].resistor_ohm));
+        assert_int_equal(rows[i].end_reason, LW_END_CAPACITY);
+        double ia = rows[i].series == 2 ? 0.020 : 0.8 / (49.5 + 0.5 / rows[i].parallel);
+        assert_close(rows[i].runtime_h, rows[i].parallel * 2.0 / ia, 1e-9);
+    }
+    assert_true(rows[0].fits && rows[0].parallel == 2 && rows[0].series == 1);
+    free(rows);
+    lw_profile_clear(&p);
+}
+
+/* The table's notes state the conditions actually computed: storage and
+ * the flux floor set by --set appear, and a warning is marked on its row. */
+static void table_notes_follow_the_conditions(void **state)
+{
+    (void)state;
+    lw_profile p;
+    load_fixture("[mode hi]\ndrive.resistor_ohm = 33\n[mode lo]\ndrive.resistor_ohm = 100\n"
+                 "pack.stored_months = 24\n",
+                 &p);
+    lw_error e;
+    lw_error_clear(&e);
+    assert_int_equal(lw_profile_set_arg(&p, "cutoff.flux_lm=2", &e), LW_OK);
+    assert_int_equal(lw_profile_set_arg(&p, "pack.ambient_c=5", &e), LW_OK);
+    assert_int_equal(lw_profile_resolve(&p, &e), LW_OK);
+    lw_rtable *t;
+    assert_int_equal(lw_spec_table(&p, NULL, LW_FMT_TEXT, 1, &t, &e), LW_OK);
+    char all[8192] = "";
+    for (size_t i = 0; i < t->nnotes; i++) {
+        strncat(all, t->notes[i], sizeof all - strlen(all) - 1);
+        strncat(all, "\n", sizeof all - strlen(all) - 1);
+    }
+    assert_non_null(strstr(all, "5 C ambient"));
+    assert_non_null(strstr(all, "or to 2 lm"));
+    assert_non_null(strstr(all, "Storage: fresh cells (mode hi); after 24 months' storage"));
+    assert_null(strstr(all, "unless a mode sets"));
+    /* 33 ohm: (3 - 2)/33.5 = 29.9 mA against max 30 mA, worst case over it */
+    assert_non_null(strstr(all, "(b) worst case"));
+    assert_non_null(strstr(t->cell[t->ncol - 1], "b"));
+    lw_rtable_free(t);
+    lw_profile_clear(&p);
+}
+
 /* The table's CSV numbers are the runs of each mode and cell. */
 static void table_consistent_with_run(void **state)
 {
@@ -157,9 +264,9 @@ static void table_consistent_with_run(void **state)
     lw_error_clear(&e);
     assert_int_equal(lw_spec_table(&p, cells, LW_FMT_CSV, 2, &t, &e), LW_OK);
     assert_int_equal(t->nrow, 2);
-    assert_int_equal(t->ncol, 11);
+    assert_int_equal(t->ncol, 15); /* mode + 7 per cell: 5 figures, end reason, warnings */
     assert_string_equal(t->head[1], "flat.flux_lm");
-    assert_string_equal(t->head[7], "slope.runtime_h");
+    assert_string_equal(t->head[9], "slope.runtime_h");
     for (size_t r = 0; r < 2; r++) {
         const char *mode = r == 0 ? "hi" : "lo";
         assert_string_equal(t->cell[r * t->ncol], mode);
@@ -173,12 +280,19 @@ static void table_consistent_with_run(void **state)
             lw_run_options o = lw_run_options_default();
             assert_int_equal(lw_run(&q.light, &o, &res, &e), LW_OK);
             double v;
-            assert_true(lw_parse_double(t->cell[r * t->ncol + 1 + c * 5 + 1], &v));
+            if (lw_end_is_dark(res.end_reason)) {
+                /* a light that gives no light: no figures at all */
+                for (size_t k = 0; k < 5; k++)
+                    assert_string_equal(t->cell[r * t->ncol + 1 + c * 7 + k], "");
+                lw_profile_clear(&q);
+                continue;
+            }
+            assert_true(lw_parse_double(t->cell[r * t->ncol + 1 + c * 7 + 1], &v));
             assert_close(v, res.runtime_h, 1e-5);
-            assert_true(lw_parse_double(t->cell[r * t->ncol + 1 + c * 5 + 0], &v));
-            assert_close(v, res.flux_ref_lm, 1e-5);
-            assert_true(lw_parse_double(t->cell[r * t->ncol + 1 + c * 5 + 3], &v));
-            assert_close(v, lw_cone_intensity_cd(res.flux_ref_lm, 60), 1e-5);
+            assert_true(lw_parse_double(t->cell[r * t->ncol + 1 + c * 7 + 0], &v));
+            assert_close(v, res.flux_30s_lm, 1e-5);
+            assert_true(lw_parse_double(t->cell[r * t->ncol + 1 + c * 7 + 3], &v));
+            assert_close(v, lw_photometry_cone_cd(res.flux_30s_lm, 60), 1e-5);
             lw_profile_clear(&q);
         }
     }
@@ -194,12 +308,12 @@ static void table_consistent_with_run(void **state)
 static void photometry_check_values(void **state)
 {
     (void)state;
-    assert_close(lw_beam_distance_m(4000), 126.49, 5e-5);
-    assert_close(lw_beam_distance_m(10000), 200.0, 1e-12);
-    assert_close(lw_cone_intensity_cd(100, 60), 118.79, 5e-5);
-    assert_close(lw_cone_intensity_cd(100, 120), 31.831, 5e-5);
-    assert_close(lw_beam_distance_m(2000 * 2 * 2), 178.885, 5e-6);
-    assert_true(lw_beam_distance_m(0) == 0);
+    assert_close(lw_photometry_beam_m(4000), 126.49, 5e-5);
+    assert_close(lw_photometry_beam_m(10000), 200.0, 1e-12);
+    assert_close(lw_photometry_cone_cd(100, 60), 118.79, 5e-5);
+    assert_close(lw_photometry_cone_cd(100, 120), 31.831, 5e-5);
+    assert_close(lw_photometry_beam_m(2000 * 2 * 2), 178.885, 5e-6);
+    assert_true(lw_photometry_beam_m(0) == 0);
 }
 
 /* Rounding rule of the specification table. */
@@ -217,9 +331,9 @@ static void spec_rounding(void **state)
     lw_spec_hours(62.4, b, sizeof b);
     assert_string_equal(b, "62 h");
     /* standard power ratings with 2x margin (common practice, no source) */
-    assert_close(lw_recommended_rating_w(0.1), 0.25, 0);
-    assert_close(lw_recommended_rating_w(0.126), 0.333, 0);
-    assert_true(isnan(lw_recommended_rating_w(6.0)));
+    assert_close(lw_resistor_rating_w(0.1), 0.25, 0);
+    assert_close(lw_resistor_rating_w(0.126), 0.333, 0);
+    assert_true(isnan(lw_resistor_rating_w(6.0)));
 }
 
 int main(void)
@@ -230,6 +344,9 @@ int main(void)
         cmocka_unit_test(pick_flux_target),
         cmocka_unit_test(size_results_pass_their_own_runs),
         cmocka_unit_test(table_consistent_with_run),
+        cmocka_unit_test(size_respects_the_resistor_rating),
+        cmocka_unit_test(size_regulated_drive),
+        cmocka_unit_test(table_notes_follow_the_conditions),
         cmocka_unit_test(photometry_check_values),
         cmocka_unit_test(spec_rounding),
     };

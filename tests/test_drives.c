@@ -204,7 +204,7 @@ static void pwm_scales_output_and_runtime(void **state)
     lw_result full = run_ok(&l, false);
     l.drive.duty_pct = 25;
     lw_result pwm = run_ok(&l, false);
-    assert_close(pwm.flux_ref_lm, 0.25 * full.flux_ref_lm, 1e-12);
+    assert_close(pwm.flux_30s_lm, 0.25 * full.flux_30s_lm, 1e-12);
     assert_close(pwm.runtime_h, full.runtime_h / 0.25, 1e-12);
     assert_close(pwm.initial.led_a, 0.020, 1e-12);            /* peak */
     assert_true(pwm.warnings & LW_WARN_LED_OVER_MAX);         /* rated on the peak */
@@ -287,6 +287,158 @@ static void energy_conserved_for_every_drive(void **state)
     }
 }
 
+/* Exact integral of a piecewise-linear table from a to b (trapezoids). */
+static double table_integral(const lw_table *t, double a, double b)
+{
+    double sum = 0.0;
+    for (size_t i = 0; i + 1 < t->n; i++) {
+        double x0 = fmax(a, t->x[i]), x1 = fmin(b, t->x[i + 1]);
+        if (x1 <= x0)
+            continue;
+        sum += 0.5 * (x1 - x0) * (lw_table_linear(t, x0) + lw_table_linear(t, x1));
+    }
+    return sum;
+}
+
+/* Charge conservation (Kirchhoff): every ampere-hour the drive draws moves
+ * the depth, so with k = 1 and no self-discharge the energy drawn from the
+ * cells' EMF is S P C k_T times the integral of OCV over the depths
+ * discharged, for every drive type, with and without PWM (an identity of
+ * the model: E = S OCV, I_pack = P Ic, dd/dt = Ic / (k_T C)). */
+static void energy_drawn_equals_charge_times_ocv(void **state)
+{
+    (void)state;
+    for (int t = 0; t < 3; t++)
+        for (int pwm = 0; pwm < 2; pwm++) {
+            lw_light l;
+            base_light(&l);
+            sloping_cell(&l);
+            l.pack.cell.peukert = 1.0;
+            l.pack.cell.max_capacity_ah = l.pack.cell.capacity_ah;
+            l.pack.series = 3;
+            l.pack.parallel = 2;
+            l.cap_factor = 0.9;
+            constant_led(&l, 2.9);
+            l.led.strings = 2;
+            l.cutoff.cell_v = 0.5;
+            l.cutoff.relative_pct = 1;
+            l.drive.duty_pct = pwm ? 30 : 100;
+            if (t == 0) {
+                l.drive.resistor_ohm = 10;
+            } else if (t == 1) {
+                l.drive.type = LW_DRIVE_LINEAR_CC;
+                l.drive.set_a = 0.05;
+                l.drive.dropout_v = 0.25;
+            } else {
+                l.drive.type = LW_DRIVE_CONVERTER;
+                l.drive.set_a = 0.05;
+                l.drive.efficiency_pct = 85;
+                l.drive.quiescent_a = 2e-3; /* large, so that its share shows */
+                l.drive.min_input_v = 2.0;
+            }
+            lw_result r = run_ok(&l, false);
+            double want = 3 * 2 * 0.9 * 2.3 *
+                          table_integral(l.pack.cell.ocv, r.start_depth, r.end_depth);
+            assert_close(r.energy_drawn_wh, want, 1e-9);
+            expect_conservation(&r);
+            lw_light_clear(&l);
+        }
+}
+
+/* A converter at duty D: the LED output and the drawn power are D times the
+ * on-state values, but the controller's quiescent current flows all the
+ * time, so the pack's average current is D Ip + (1 - D) Iq. */
+static void converter_pwm_keeps_quiescent_draw(void **state)
+{
+    (void)state;
+    lw_light l;
+    base_light(&l);
+    flat_cell(&l, 4.0, 0.2, 2.0, 0.4, 1.0, 2.0);
+    constant_led(&l, 3.0);
+    l.drive.type = LW_DRIVE_CONVERTER;
+    l.drive.set_a = 0.1;
+    l.drive.efficiency_pct = 80;
+    l.drive.quiescent_a = 1e-3;
+    lw_error e;
+    lw_error_clear(&e);
+    lw_point on, pw;
+    assert_int_equal(lw_light_point(&l, 0.5, false, &on, &e), LW_OK);
+    l.drive.duty_pct = 30;
+    assert_int_equal(lw_light_point(&l, 0.5, false, &pw, &e), LW_OK);
+    assert_close(pw.pack_a, on.pack_a, 1e-15); /* the on-state current */
+    assert_close(pw.pack_avg_a, 0.3 * on.pack_a + 0.7 * 1e-3, 1e-14);
+    assert_close(pw.p_led_w, 0.3 * on.p_led_w, 1e-14);
+    assert_close(pw.flux_lm, 0.3 * on.flux_lm, 1e-14);
+    /* Coulomb counting on the flat cell: runtime = C / average current */
+    lw_result r = run_ok(&l, false);
+    assert_close(r.runtime_h, 2.0 / pw.pack_avg_a, 1e-12);
+    lw_light_clear(&l);
+}
+
+/* A converter whose undervoltage lockout is above the fresh pack voltage
+ * cannot start: without a fallback level the light never lights; with one
+ * it runs at the fallback level from switch-on. */
+static void converter_below_lockout_at_switch_on(void **state)
+{
+    (void)state;
+    lw_light l;
+    converter_light(&l, 0.0);
+    l.drive.min_input_v = 3.3; /* the fresh pair gives 3.16 V open circuit */
+    lw_result r = run_ok(&l, false);
+    assert_int_equal(r.end_reason, LW_END_NEVER_LIT);
+    assert_true(r.runtime_h == 0.0);
+    l.drive.fallback_a = 0.02;
+    r = run_ok(&l, false);
+    assert_int_equal(r.initial.regime, LW_REGIME_FALLBACK);
+    assert_close(r.initial.led_a, 0.02, 0);
+    assert_true(r.runtime_h > 0);
+    assert_true(!(r.regulated_h > 0)); /* never at the set level */
+    lw_light_clear(&l);
+}
+
+/* At a power-limit dropout the run reports the last operating point the
+ * driver held: still regulated at the set current, its loaded cell voltage
+ * by Ohm's law from its own current. */
+static void dropout_reports_last_held_point(void **state)
+{
+    (void)state;
+    lw_light l;
+    converter_light(&l, 0.0);
+    l.drive.min_input_v = 0.5; /* the power limit ends it, not the lockout */
+    lw_result r = run_ok(&l, false);
+    assert_int_equal(r.end_reason, LW_END_DRIVER_DROPOUT);
+    assert_int_equal(r.final.regime, LW_REGIME_REGULATED);
+    assert_close(r.final.led_a, 0.3, 0);
+    assert_close(r.final.cell_v, r.final.ocv_v - r.final.cell_a * r.final.r_cell_ohm, 1e-14);
+    assert_near(r.final.regulation_margin, 0.0, 1e-9);
+    assert_close(r.final.depth, r.end_depth, 1e-9);
+    lw_light_clear(&l);
+}
+
+/* Time to half is the first time the output is at or below 50 % of the
+ * reference while the light is on, a jump included: a fallback step to 10 %
+ * sets it at the step; a fallback below the relative cutoff sets it at the
+ * step that ends the run; a dropout to dark never does. */
+static void time_to_half_at_jumps(void **state)
+{
+    (void)state;
+    lw_light l;
+    converter_light(&l, 0.03); /* 10 % of the set level */
+    l.cutoff.relative_pct = 5;
+    lw_result r = run_ok(&l, false);
+    assert_true(r.runtime_h > r.regulated_h);
+    assert_close(r.time_to_half_h, r.regulated_h, 1e-12);
+    l.drive.fallback_a = 0.009; /* 3 %: below the 5 % cutoff */
+    r = run_ok(&l, false);
+    assert_int_equal(r.end_reason, LW_END_RELATIVE);
+    assert_close(r.time_to_half_h, r.runtime_h, 1e-12);
+    l.drive.fallback_a = 0;
+    r = run_ok(&l, false);
+    assert_int_equal(r.end_reason, LW_END_DRIVER_DROPOUT);
+    assert_true(isnan(r.time_to_half_h));
+    lw_light_clear(&l);
+}
+
 int main(void)
 {
     const struct CMUnitTest tests[] = {
@@ -298,6 +450,11 @@ int main(void)
         cmocka_unit_test(pwm_scales_output_and_runtime),
         cmocka_unit_test(stored_run_starting_depth),
         cmocka_unit_test(energy_conserved_for_every_drive),
+        cmocka_unit_test(energy_drawn_equals_charge_times_ocv),
+        cmocka_unit_test(converter_pwm_keeps_quiescent_draw),
+        cmocka_unit_test(converter_below_lockout_at_switch_on),
+        cmocka_unit_test(dropout_reports_last_held_point),
+        cmocka_unit_test(time_to_half_at_jumps),
     };
     return cmocka_run_group_tests(tests, NULL, NULL);
 }

@@ -235,6 +235,32 @@ static void runtime_against_gsl_reference(void **state)
     }
 }
 
+/* The 30-s reference solves t(d) = 30 s exactly (Newton on the run's own
+ * quadrature), not by a trapezoid estimate: on a light whose first 30 s
+ * take a large share of a short run, the depth and the output there agree
+ * with GSL's root of the QAGP time integral to 1e-11. */
+static void thirty_second_point_is_exact(void **state)
+{
+    (void)state;
+    const double resistors[] = {2.0, 10.0};
+    for (size_t k = 0; k < 2; k++) {
+        lw_light l;
+        shockley_demo_light(&l);
+        l.pack.cell.capacity_ah = 0.02; /* a run of minutes */
+        l.pack.cell.max_capacity_ah = 0.025;
+        l.drive.resistor_ohm = resistors[k];
+        l.cutoff.cell_v = 0.5;
+        lw_result r = run_ok(&l, false);
+        ref q = {&l, 0, 0, 0, 0};
+        double d30 = gsl_brent(t_minus_30s, &q, 1e-12, 0.9, 1e-16, 1e-14);
+        assert_true(d30 > 0.02); /* a large share of the run */
+        assert_close(r.depth_30s, d30, 1e-11);
+        assert_close(r.flux_30s_lm, ref_flux(&l, ref_current(&l, d30)), 1e-11);
+        assert_close(r.flux_ref_lm, r.flux_30s_lm, 0);
+        lw_light_clear(&l);
+    }
+}
+
 /* Same, ending on the loaded cell voltage: the end depth solves
  * OCV(d) - Ic R(d) = cutoff, found here with GSL. */
 static double cellv_minus_cutoff(double d, void *p)
@@ -292,6 +318,82 @@ static void never_lit(void **state)
     assert_true(r.runtime_h == 0.0);
     assert_true(r.warnings & LW_WARN_NEVER_LIT);
     assert_true(r.solves < 10);
+    lw_light_clear(&l);
+}
+
+/* A densely measured LED (500 knots of I-V and flux from the demo's
+ * Shockley LED) runs, and agrees with the closed-form LED it samples to the
+ * interpolation error: the current crosses several knots between nodes, so
+ * each crossing must restart from the located knot, not from the node. */
+static void dense_led_table_runs(void **state)
+{
+    (void)state;
+    lw_light sh;
+    shockley_demo_light(&sh);
+    sh.cutoff.cell_v = 0.5;
+    lw_result want = run_ok(&sh, false);
+    enum { NK = 500 };
+    double ia[NK], va[NK], fa[NK];
+    for (int k = 0; k < NK; k++) {
+        ia[k] = 1e-4 * pow(2000.0, (double)k / (NK - 1)); /* 0.1 to 200 mA */
+        va[k] = lw_led_voltage(&sh.led, ia[k], NULL);
+        fa[k] = lw_led_flux(&sh.led, ia[k], NULL);
+    }
+    lw_light l;
+    shockley_demo_light(&l);
+    l.cutoff.cell_v = 0.5;
+    lw_error e;
+    lw_error_clear(&e);
+    l.led.model = LW_LED_TABLE;
+    l.led.iv = lw_table_new(ia, va, NK, &e);
+    l.led.flux = lw_table_new(ia, fa, NK, &e);
+    assert_non_null(l.led.iv);
+    assert_non_null(l.led.flux);
+    lw_result r = run_ok(&l, false);
+    assert_int_equal(r.end_reason, want.end_reason);
+    assert_close(r.runtime_h, want.runtime_h, 1e-5);
+    assert_close(r.lumen_hours, want.lumen_hours, 1e-5);
+    assert_close(r.flux_30s_lm, want.flux_30s_lm, 1e-5);
+    lw_light_clear(&l);
+    lw_light_clear(&sh);
+}
+
+/* No light at switch-on is an end of its own, not a result: cells emptied
+ * by storage, and a pack already at its end point under the load. */
+static void dark_at_switch_on(void **state)
+{
+    (void)state;
+    lw_light l;
+    shockley_demo_light(&l);
+    l.pack.cell.self_discharge_pct_month = 5;
+    l.pack.stored_months = 600; /* fifty years on the shelf */
+    lw_result r = run_ok(&l, false);
+    assert_int_equal(r.end_reason, LW_END_EMPTY_AT_START);
+    assert_true(lw_end_is_dark(r.end_reason));
+    assert_true(r.runtime_h == 0.0 && isnan(r.flux_30s_lm) && isnan(r.time_to_half_h));
+    l.pack.stored_months = 0;
+    l.cutoff.cell_v = 1.57; /* the loaded cell starts below its end point */
+    r = run_ok(&l, false);
+    assert_int_equal(r.end_reason, LW_END_EMPTY_AT_START);
+    l.cutoff.cell_v = 0.9;
+    l.cutoff.flux_lm = 1000; /* far above the light's output */
+    r = run_ok(&l, false);
+    assert_int_equal(r.end_reason, LW_END_DIM_AT_START);
+    assert_true(lw_end_is_dark(r.end_reason));
+    lw_light_clear(&l);
+}
+
+/* Below the visibility floor (LW_VISIBLE_LM) a light counts as never lit,
+ * however long its cells would last. */
+static void below_visibility_is_never_lit(void **state)
+{
+    (void)state;
+    lw_light l;
+    shockley_demo_light(&l);
+    l.led.count = 3; /* three LEDs in series on 4.7 V: a faint glow */
+    lw_result r = run_ok(&l, false);
+    assert_true(r.initial.flux_lm > 0 && r.initial.flux_lm < LW_VISIBLE_LM);
+    assert_int_equal(r.end_reason, LW_END_NEVER_LIT);
     lw_light_clear(&l);
 }
 
@@ -390,8 +492,12 @@ int main(void)
         cmocka_unit_test(kirchhoff_and_energy_conservation),
         cmocka_unit_test(runtime_against_gsl_reference),
         cmocka_unit_test(cell_voltage_end_against_gsl),
+        cmocka_unit_test(thirty_second_point_is_exact),
         cmocka_unit_test(cutoff_located_exactly),
         cmocka_unit_test(never_lit),
+        cmocka_unit_test(dense_led_table_runs),
+        cmocka_unit_test(dark_at_switch_on),
+        cmocka_unit_test(below_visibility_is_never_lit),
         cmocka_unit_test(trace_is_dense_monotone_and_ends_at_cutoff),
         cmocka_unit_test(warnings_fire),
         cmocka_unit_test(run_options_are_validated),

@@ -86,6 +86,8 @@ static void ranges_rounding_and_tolerances(void **state)
     assert_false(lw_eseries_parse("X24", &n));
 }
 
+/* One number grammar in files, --set and --vary: plain numbers and the
+ * resistor-code / SI-letter forms of IEC 60062 (from memory). */
 static void value_parsing(void **state)
 {
     (void)state;
@@ -93,17 +95,17 @@ static void value_parsing(void **state)
         const char *s;
         double v;
     } ok[] = {{"470", 470}, {"2.2k", 2200}, {"1M", 1e6}, {"4k7", 4700},
-              {"4R7", 4.7}, {"0R22", 0.22}, {"1k", 1000}, {" 33 ", 33}};
+              {"4R7", 4.7}, {"0R22", 0.22}, {"1k", 1000}, {" 33 ", 33}, {"-5", -5}};
     for (size_t i = 0; i < sizeof ok / sizeof ok[0]; i++) {
         double v = -1;
-        if (!lw_parse_si(ok[i].s, &v))
+        if (!lw_parse_number(ok[i].s, &v))
             fail_msg("refused '%s'", ok[i].s);
         assert_close(v, ok[i].v, 1e-15);
     }
-    const char *bad[] = {"", "k", "4k7k", "4.7k7", "-5", "1m", "R5", "5R", "abc", "1e999"};
+    const char *bad[] = {"", "k", "4k7k", "4.7k7", "-4k7", "1m", "R5", "5R", "abc", "1e999"};
     for (size_t i = 0; i < sizeof bad / sizeof bad[0]; i++) {
         double v;
-        if (lw_parse_si(bad[i], &v))
+        if (lw_parse_number(bad[i], &v))
             fail_msg("accepted '%s'", bad[i]);
     }
 }

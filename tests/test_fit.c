@@ -274,6 +274,39 @@ static void cell_fit_round_trip(void **state)
     lw_dlog_clear(&logs[1]);
 }
 
+/* The bundled example logs (with their noise) against the model that
+ * generated them (docs/examples/nimh-aa-sample.ini, whose resistance rises
+ * from 0.033 ohm at mid depth to 0.12 ohm when empty): the fitted
+ * resistance must not collapse towards the end, where both logs are pinned
+ * to the end point -- it keeps rising or holds from its last well-determined
+ * value, at least the mid-depth value (a collapse gave 0.017 ohm). */
+static void cell_fit_resistance_near_empty(void **state)
+{
+    (void)state;
+    lw_dlog logs[2];
+    lw_error e;
+    lw_error_clear(&e);
+    assert_int_equal(lw_dlog_read(LW_SOURCE_ROOT "/docs/examples/nimh-aa-3r9.csv", 3.9, NAN,
+                                  &logs[0], &e),
+                     LW_OK);
+    assert_int_equal(lw_dlog_read(LW_SOURCE_ROOT "/docs/examples/nimh-aa-8r2.csv", 8.2, NAN,
+                                  &logs[1], &e),
+                     LW_OK);
+    lw_cellfit_options opt = {.cutoff_v = 1.0, .tolerance_v = 0.005, .name = "ex",
+                              .chemistry = LW_CHEM_NIMH, .rechargeable = true, .nominal_v = NAN};
+    lw_cellfit fit;
+    assert_int_equal(lw_fit_cell(logs, 2, &opt, &fit, &e), LW_OK);
+    double r_mid = lw_table_linear(fit.cell.res, 0.5);
+    assert_close(r_mid, 0.033, 0.10);
+    assert_true(fit.reliable_depth > 0.9 && fit.reliable_depth < 1.0);
+    for (double d = fit.reliable_depth; d <= 1.0; d += 0.0025)
+        assert_true(lw_table_linear(fit.cell.res, fmin(d, 1.0)) >= r_mid);
+    assert_true(lw_table_linear(fit.cell.res, 1.0) >= lw_table_linear(fit.cell.res, 0.9));
+    lw_cell_clear(&fit.cell);
+    lw_dlog_clear(&logs[0]);
+    lw_dlog_clear(&logs[1]);
+}
+
 /* Coulomb counting on a constant-current log: capacity = I x t to the end. */
 static void one_log_constant_current(void **state)
 {
@@ -357,6 +390,7 @@ int main(void)
         cmocka_unit_test(flux_fit_recovers_power_law),
         cmocka_unit_test(refuses_bad_data),
         cmocka_unit_test(cell_fit_round_trip),
+        cmocka_unit_test(cell_fit_resistance_near_empty),
         cmocka_unit_test(one_log_constant_current),
         cmocka_unit_test(log_refusals),
     };

@@ -1,0 +1,227 @@
+/*
+ * cli_opts.c - the option machinery of the command line and the helpers
+ * every command shares (see cli.h).
+ */
+#include "cli.h"
+
+#include <getopt.h>
+#include <limits.h>
+#include <stdarg.h>
+#include <stdlib.h>
+#include <string.h>
+#include <sys/stat.h>
+#include <unistd.h>
+#include "lw_config.h"
+
+const cli_command *cli_find(const char *name)
+{
+    for (size_t i = 0; i < cli_ncommands; i++)
+        if (!strcmp(cli_commands[i].name, name))
+            return &cli_commands[i];
+    return NULL;
+}
+
+/* Width of the option column of the help. */
+#define HELP_COLUMN 27
+
+void cli_help(const cli_command *cmd, FILE *fp)
+{
+    fprintf(fp, "Usage: lampwick %s %s\n\n%s", cmd->name, cmd->synopsis, cmd->about);
+    if (cmd->options && cmd->options[0].name)
+        fputs("\nOptions\n", fp);
+    for (const cli_option *o = cmd->options; o && o->name; o++) {
+        char left[96];
+        snprintf(left, sizeof left, "  --%s%s%s", o->name, o->arg ? " " : "", o->arg ? o->arg : "");
+        if (o->id == OPT_HELP)
+            snprintf(left, sizeof left, "  -h, --help");
+        size_t w = strlen(left);
+        fputs(left, fp);
+        if (w + 1 >= HELP_COLUMN) {
+            fputc('\n', fp);
+            w = 0;
+        }
+        /* the help may hold several lines, each indented to the column */
+        for (const char *h = o->help; *h;) {
+            const char *nl = strchr(h, '\n');
+            size_t len = nl ? (size_t)(nl - h) : strlen(h);
+            fprintf(fp, "%*s%.*s\n", (int)(HELP_COLUMN - w), "", (int)len, h);
+            w = 0;
+            h += len + (nl ? 1 : 0);
+        }
+    }
+    if (cmd->notes)
+        fprintf(fp, "\n%s", cmd->notes);
+}
+
+int cli_parse(const cli_command *cmd, int argc, char **argv, cli_on_option fn, void *ctx,
+              int *first)
+{
+    size_t n = 0;
+    while (cmd->options[n].name)
+        n++;
+    struct option *lo = calloc(n + 1, sizeof *lo);
+    if (!lo) {
+        fputs("lampwick: out of memory\n", stderr);
+        return EXIT_BADINPUT;
+    }
+    for (size_t i = 0; i < n; i++)
+        lo[i] = (struct option){cmd->options[i].name,
+                                cmd->options[i].arg ? required_argument : no_argument, NULL,
+                                cmd->options[i].id};
+    opterr = 0; /* one message, ours */
+    optind = 1;
+    int c, rc = 0;
+    while (rc == 0 && (c = getopt_long(argc, argv, ":h", lo, NULL)) != -1) {
+        const char *opt = optind > 0 && optind <= argc ? argv[optind - 1] : "?";
+        if (c == '?') {
+            if (optopt && optopt < 256)
+                rc = usage_error(cmd->name, "unknown option '-%c'", optopt);
+            else
+                rc = usage_error(cmd->name, "unknown option '%s'", opt);
+        } else if (c == ':') {
+            rc = usage_error(cmd->name, "option '%s' needs an argument", opt);
+        } else if (c == OPT_HELP) {
+            cli_help(cmd, stdout);
+            rc = -1;
+        } else {
+            rc = fn(ctx, c, optarg);
+        }
+    }
+    free(lo);
+    *first = optind;
+    return rc;
+}
+
+int common_option(const char *cmd, common_opts *o, int id, const char *arg)
+{
+    switch (id) {
+    case OPT_SET:
+        if (o->nsets == sizeof o->sets / sizeof o->sets[0])
+            return usage_error(cmd, "too many --set options (at most %zu)",
+                               sizeof o->sets / sizeof o->sets[0]);
+        o->sets[o->nsets++] = arg;
+        return 0;
+    case OPT_MODE:
+        o->mode = arg;
+        return 0;
+    case OPT_FORMAT:
+        if (!lw_format_parse(arg, &o->fmt))
+            return usage_error(cmd, "--format takes text, csv or md");
+        return 0;
+    case OPT_THREADS:
+        if (!lw_parse_int(arg, &o->threads) || o->threads < 1 || o->threads > LW_POOL_THREADS_MAX)
+            return usage_error(cmd, "--threads takes a whole number from 1 to %d",
+                               LW_POOL_THREADS_MAX);
+        return 0;
+    default:
+        return 1;
+    }
+}
+
+int exit_code(lw_status st)
+{
+    switch (st) {
+    case LW_OK:
+        return 0;
+    case LW_ENOANSWER:
+    case LW_ENUMERIC:
+        return EXIT_NOANSWER;
+    default:
+        return EXIT_BADINPUT;
+    }
+}
+
+int report_error(const lw_error *err)
+{
+    char buf[LW_ERR_FILE_MAX + LW_ERR_MSG_MAX + 32];
+    lw_error_format(err, buf, sizeof buf);
+    fprintf(stderr, "lampwick: %s\n", buf);
+    return exit_code(err->code);
+}
+
+int usage_error(const char *cmd, const char *fmt, ...)
+{
+    char msg[512];
+    va_list ap;
+    va_start(ap, fmt);
+    vsnprintf(msg, sizeof msg, fmt, ap); // NOLINT(clang-analyzer-valist.Uninitialized): va_start above
+    va_end(ap);
+    fprintf(stderr, "lampwick %s: %s\nTry 'lampwick help %s'.\n", cmd, msg, cmd);
+    return EXIT_BADINPUT;
+}
+
+static bool file_exists(const char *path)
+{
+    struct stat sb;
+    return stat(path, &sb) == 0;
+}
+
+/* The cell search path: LAMPWICK_CELLS, the installed library, and the
+ * source tree's cells/ when this executable runs from a meson build folder. */
+void build_search(lw_search *s)
+{
+    memset(s, 0, sizeof *s);
+    lw_search_add_list(s, getenv("LAMPWICK_CELLS"));
+    char exe[PATH_MAX], dir[PATH_MAX], probe[PATH_MAX + 32];
+    ssize_t n = readlink("/proc/self/exe", exe, sizeof exe - 1);
+    bool in_build = false;
+    if (n > 0) {
+        exe[n] = '\0';
+        lw_path_dir(dir, sizeof dir, exe);
+        snprintf(probe, sizeof probe, "%s/../build.ninja", dir);
+        in_build = file_exists(probe);
+        snprintf(probe, sizeof probe, "%s/build.ninja", dir);
+        in_build = in_build || file_exists(probe);
+    }
+    lw_search_add(s, LW_DATADIR "/cells");
+    if (in_build)
+        lw_search_add(s, LW_SOURCE_CELLS);
+}
+
+lw_status load_profile(const char *path, const common_opts *o, lw_profile *prof, lw_error *err)
+{
+    lw_search search;
+    build_search(&search);
+    lw_status st = lw_profile_load(path, &search, prof, err);
+    if (st == LW_OK && o->mode)
+        st = lw_profile_apply_mode(prof, o->mode, err);
+    for (size_t i = 0; st == LW_OK && i < o->nsets; i++)
+        st = lw_profile_set_arg(prof, o->sets[i], err);
+    if (st == LW_OK && (o->mode || o->nsets))
+        st = lw_profile_resolve(prof, err);
+    return st;
+}
+
+lw_status write_chart(const char *path, const lw_chart *chart, lw_error *err)
+{
+    lw_outfile out;
+    lw_status st = lw_outfile_open(&out, path, err);
+    if (st != LW_OK)
+        return st;
+    st = lw_plot_svg(out.fp, chart, err);
+    if (st != LW_OK) {
+        lw_outfile_abort(&out);
+        return st;
+    }
+    return lw_outfile_commit(&out, err);
+}
+
+lw_status parse_cells(const char *list, const lw_profile *prof, lw_vary *v, const char ***cells,
+                      lw_error *err)
+{
+    char arg[1024];
+    if ((size_t)snprintf(arg, sizeof arg, "pack.cell=%s", list) >= sizeof arg)
+        return lw_error_set(err, LW_EINPUT, "--cells", 0, "the list of cells is too long");
+    lw_status st = lw_vary_parse(arg, prof, v, err);
+    if (st != LW_OK)
+        return st;
+    if (v->note[0])
+        fprintf(stderr, "lampwick: note: %s\n", v->note);
+    const char **c = calloc(v->n + 1, sizeof *c);
+    if (!c)
+        return lw_error_set(err, LW_ENOMEM, NULL, 0, "out of memory");
+    for (size_t i = 0; i < v->n; i++)
+        c[i] = v->values[i];
+    *cells = c;
+    return LW_OK;
+}

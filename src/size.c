@@ -1,0 +1,403 @@
+/*
+ * size.c - sizing the pack (see size.h).
+ */
+#include "size.h"
+
+#include <math.h>
+#include <stdio.h>
+#include <stdlib.h>
+#include <string.h>
+#include "batch.h"
+#include "eseries.h"
+#include "pool.h"
+#include "resistor.h"
+
+typedef struct size_job {
+    const lw_profile *prof;
+    const lw_size_options *opt;
+    const char *const *cells;
+    lw_size_row *rows;
+    lw_status *status;
+    lw_error *errs;
+    double design_a;      /* nominal fresh LED current of the profile as written */
+} size_job;
+
+static lw_status run_with(const lw_light *l, double r, lw_result *res, lw_error *err)
+{
+    lw_light x = *l; /* shallow: tables borrowed */
+    x.drive.resistor_ohm = r;
+    lw_run_options opt = lw_run_options_default();
+    return lw_run(&x, &opt, res, err);
+}
+
+/* Worst-case dissipation of resistor r within max_w? */
+static lw_status power_ok(const lw_light *l, double r, double max_w, bool *ok, lw_error *err)
+{
+    lw_point w;
+    lw_status st = lw_resistor_point(l, r, true, &w, err);
+    *ok = st == LW_OK && w.p_res_peak_w <= max_w;
+    return st;
+}
+
+/* The resistor keeping the profile's design current, safe: the smallest
+ * series value at or above both the current's value and the safe minimum
+ * whose worst-case dissipation is within max_w. */
+static lw_status keep_current(const size_job *j, const lw_light *l, double r_safe, double max_w,
+                              double *r_out, lw_error *err)
+{
+    double r_ideal;
+    lw_status st = lw_resistor_for(l, LW_TARGET_CURRENT, j->design_a, false, &r_ideal, err);
+    *r_out = NAN;
+    if (st != LW_OK || !(r_ideal > 0) || !isfinite(r_ideal))
+        return st;
+    double r = fmax(lw_eseries_round(j->opt->eseries, r_ideal, true), r_safe);
+    for (int k = 0; k < LW_SIZE_CANDIDATES_MAX && isfinite(r); k++) {
+        bool ok;
+        if ((st = power_ok(l, r, max_w, &ok, err)) != LW_OK)
+            return st;
+        if (ok) {
+            *r_out = r;
+            return LW_OK;
+        }
+        r = lw_eseries_round(j->opt->eseries, r * (1.0 + 1e-6), true);
+    }
+    return LW_OK;
+}
+
+/* Runtime over the floor of resistor cand[i] (-1 when it is not safe). */
+static lw_status floor_runtime(const lw_light *l, const double *cand, size_t i, double max_w,
+                               lw_result *res, double *t_h, lw_error *err)
+{
+    bool ok;
+    lw_status st = power_ok(l, cand[i], max_w, &ok, err);
+    *t_h = -1.0;
+    if (st != LW_OK || !ok)
+        return st;
+    st = run_with(l, cand[i], res, err);
+    if (st == LW_OK)
+        *t_h = lw_end_is_dark(res->end_reason) ? 0.0 : res->runtime_h;
+    return st;
+}
+
+/* The brightest safe resistor down to the one that just makes the floor at
+ * switch-on: the runtime over the floor peaks in between, and is searched
+ * by golden section over the candidates' index (it is unimodal in R). */
+static lw_status best_for_floor(const size_job *j, const lw_light *l, double r_safe,
+                                double max_w, double *r_out, lw_result *res, lw_error *err)
+{
+    static const double golden = 0.6180339887498949; /* (sqrt(5) - 1) / 2 */
+    double r_hi;
+    lw_status st = lw_resistor_for(l, LW_TARGET_FLUX, j->opt->flux_lm, false, &r_hi, err);
+    *r_out = NAN;
+    if (st != LW_OK || !(r_hi > 0) || !isfinite(r_hi) || r_hi < r_safe)
+        return st;
+    double *cand = malloc(LW_SIZE_CANDIDATES_MAX * sizeof *cand);
+    if (!cand)
+        return lw_error_set(err, LW_ENOMEM, NULL, 0, "out of memory");
+    size_t n = lw_eseries_range(j->opt->eseries, r_safe, r_hi, cand, LW_SIZE_CANDIDATES_MAX);
+    if (n > LW_SIZE_CANDIDATES_MAX)
+        n = LW_SIZE_CANDIDATES_MAX;
+    size_t lo = 0, hi = n ? n - 1 : 0;
+    while (st == LW_OK && n > 0 && hi - lo > 2) {
+        lw_result r1 = {0}, r2 = {0};
+        size_t m1 = lo + (size_t)((double)(hi - lo) * (1.0 - golden));
+        size_t m2 = lo + (size_t)((double)(hi - lo) * golden);
+        if (m2 <= m1)
+            m2 = m1 + 1; /* hi - lo > 2: both stay inside and the bracket shrinks */
+        double t1, t2;
+        st = floor_runtime(l, cand, m1, max_w, &r1, &t1, err);
+        if (st == LW_OK)
+            st = floor_runtime(l, cand, m2, max_w, &r2, &t2, err);
+        lw_result_clear(&r1);
+        lw_result_clear(&r2);
+        if (st != LW_OK)
+            break;
+        if (t1 >= t2)
+            hi = m2;
+        else
+            lo = m1;
+    }
+    double best = -1.0;
+    for (size_t i = lo; st == LW_OK && n > 0 && i <= hi; i++) {
+        double t;
+        lw_result ri = {0};
+        st = floor_runtime(l, cand, i, max_w, &ri, &t, err);
+        if (st == LW_OK && t > best) {
+            best = t;
+            *res = ri;
+            *r_out = cand[i];
+        }
+    }
+    free(cand);
+    return st;
+}
+
+static void fill_from_run(lw_size_row *row, const lw_result *res, const lw_size_options *opt)
+{
+    bool dark = lw_end_is_dark(res->end_reason);
+    row->end_reason = res->end_reason;
+    row->warnings = res->warnings;
+    row->runtime_h = dark ? 0.0 : res->runtime_h;
+    row->flux_30s_lm = dark ? NAN : res->flux_30s_lm;
+    row->margin_pct = 100.0 * (row->runtime_h / opt->runtime_h - 1.0);
+    row->fits = !dark && row->runtime_h >= opt->runtime_h;
+}
+
+static lw_status size_one(const size_job *j, size_t idx, lw_size_row *row, bool *keep,
+                          lw_error *err)
+{
+    const lw_size_options *opt = j->opt;
+    size_t per_cell = (size_t)opt->max_series * (size_t)opt->max_parallel;
+    const char *cell = j->cells[idx / per_cell];
+    int s = 1 + (int)(idx % per_cell) / opt->max_parallel;
+    int p = 1 + (int)(idx % per_cell) % opt->max_parallel;
+    memset(row, 0, sizeof *row);
+    row->resistor_ohm = row->worst_resistor_w = row->rating_w = row->flux_30s_lm = NAN;
+    *keep = false;
+    lw_strlcpy(row->cell, cell, sizeof row->cell);
+    row->series = s;
+    row->parallel = p;
+    lw_case variant = {0};
+    char buf[32];
+    bool ok = lw_case_set(&variant, "pack.cell", cell);
+    snprintf(buf, sizeof buf, "%d", s);
+    ok = ok && lw_case_set(&variant, "pack.series", buf);
+    snprintf(buf, sizeof buf, "%d", p);
+    ok = ok && lw_case_set(&variant, "pack.parallel", buf);
+    if (!isnan(opt->flux_lm)) {
+        snprintf(buf, sizeof buf, "%.17g", opt->flux_lm);
+        ok = ok && lw_case_set(&variant, "cutoff.flux_lm", buf);
+    }
+    if (!ok)
+        return lw_error_set(err, LW_EINPUT, "--cells", 0, "cell name too long: %s", cell);
+    lw_profile prof;
+    lw_status st = lw_case_profile(j->prof, &variant, "size", &prof, err);
+    if (st != LW_OK) {
+        lw_profile_clear(&prof);
+        return st;
+    }
+    row->mass_g = prof.light.pack.cell.mass_g * s * p;
+    lw_light l = prof.light; /* shallow: tables borrowed from prof */
+    lw_result res = {0};
+    if (l.drive.type != LW_DRIVE_RESISTOR) {
+        st = run_with(&l, l.drive.resistor_ohm, &res, err);
+        if (st == LW_OK) {
+            fill_from_run(row, &res, opt);
+            *keep = true;
+        }
+    } else {
+        l.drive.tolerance_pct = lw_resistor_tolerance_pct(
+            &prof.light, lw_profile_given(&prof, "drive.tolerance_pct"), opt->eseries);
+        double max_w = l.drive.rating_w > 0
+                           ? l.drive.rating_w
+                           : lw_resistor_ratings_w[lw_resistor_nratings - 1] /
+                                 LW_RESISTOR_DERATING;
+        double r_safe, r = NAN;
+        st = lw_resistor_min_safe(&l, opt->eseries, max_w, &r_safe, err);
+        if (st == LW_OK && isfinite(r_safe)) {
+            if (isnan(opt->flux_lm)) {
+                st = keep_current(j, &l, r_safe, max_w, &r, err);
+                if (st == LW_OK && isfinite(r))
+                    st = run_with(&l, r, &res, err);
+            } else {
+                st = best_for_floor(j, &l, r_safe, max_w, &r, &res, err);
+            }
+        }
+        lw_point w;
+        if (st == LW_OK && isfinite(r) && (st = lw_resistor_point(&l, r, true, &w, err)) == LW_OK) {
+            row->resistor_ohm = r;
+            row->worst_resistor_w = w.p_res_peak_w;
+            row->rating_w = lw_resistor_rating_w(w.p_res_peak_w);
+            fill_from_run(row, &res, opt);
+            *keep = true;
+        }
+    }
+    lw_result_clear(&res);
+    lw_profile_clear(&prof);
+    return st;
+}
+
+struct size_task_ctx {
+    size_job *j;
+    bool *keep;
+};
+
+static void size_task(size_t i, void *vctx)
+{
+    struct size_task_ctx *c = vctx;
+    lw_error_clear(&c->j->errs[i]);
+    c->j->status[i] = size_one(c->j, i, &c->j->rows[i], &c->keep[i], &c->j->errs[i]);
+}
+
+static int cmp_rows(const void *a, const void *b)
+{
+    const lw_size_row *x = a, *y = b;
+    if (x->fits != y->fits)
+        return x->fits ? -1 : 1;
+    if (x->fits) {
+        int cx = x->series * x->parallel, cy = y->series * y->parallel;
+        if (cx != cy)
+            return cx < cy ? -1 : 1;
+        if (x->mass_g != y->mass_g)
+            return x->mass_g < y->mass_g ? -1 : 1;
+    }
+    if (x->runtime_h != y->runtime_h)
+        return x->runtime_h > y->runtime_h ? -1 : 1;
+    int c = strcmp(x->cell, y->cell);
+    if (c)
+        return c;
+    if (x->series != y->series)
+        return x->series < y->series ? -1 : 1;
+    return (x->parallel > y->parallel) - (x->parallel < y->parallel);
+}
+
+lw_status lw_size_packs(const lw_profile *prof, const lw_size_options *opt, lw_size_row **rows,
+                        size_t *n_rows, lw_error *err)
+{
+    *rows = NULL;
+    *n_rows = 0;
+    const char *own[2] = {prof->cell_ref, NULL};
+    const char *const *cells = opt->cells ? opt->cells : own;
+    size_t ncells = 0;
+    while (cells[ncells])
+        ncells++;
+    lw_point p0;
+    lw_status st = lw_light_point(&prof->light, 0.0, false, &p0, err);
+    if (st != LW_OK)
+        return st;
+    size_t n = ncells * (size_t)opt->max_series * (size_t)opt->max_parallel;
+    size_job j = {.prof = prof, .opt = opt, .cells = cells, .design_a = p0.led_a};
+    j.rows = calloc(n ? n : 1, sizeof *j.rows);
+    j.status = calloc(n ? n : 1, sizeof *j.status);
+    j.errs = calloc(n ? n : 1, sizeof *j.errs);
+    bool *keep = calloc(n ? n : 1, sizeof *keep);
+    if (!j.rows || !j.status || !j.errs || !keep) {
+        free(j.rows);
+        free(j.status);
+        free(j.errs);
+        free(keep);
+        return lw_error_set(err, LW_ENOMEM, NULL, 0, "out of memory");
+    }
+    struct size_task_ctx ctx = {&j, keep};
+    lw_parallel_for(n, opt->threads, size_task, &ctx, NULL, NULL);
+    size_t kept = 0;
+    for (size_t i = 0; i < n; i++) {
+        if (j.status[i] != LW_OK && st == LW_OK) {
+            st = j.status[i];
+            if (err && err->code == LW_OK)
+                *err = j.errs[i];
+        }
+        if (j.status[i] == LW_OK && keep[i])
+            j.rows[kept++] = j.rows[i];
+    }
+    free(j.status);
+    free(j.errs);
+    free(keep);
+    if (st != LW_OK) {
+        free(j.rows);
+        return st;
+    }
+    qsort(j.rows, kept, sizeof *j.rows, cmp_rows);
+    *rows = j.rows;
+    *n_rows = kept;
+    return LW_OK;
+}
+
+/* ---- the table ---- */
+
+enum {
+    ZC_CELL, ZC_S, ZC_P, ZC_R, ZC_WORST_W, ZC_RATING, ZC_RUNTIME, ZC_MARGIN, ZC_FLUX, ZC_MASS,
+    ZC_END, ZC_WARN, ZC_COUNT
+};
+
+lw_status lw_size_table(const lw_profile *prof, const lw_size_options *opt,
+                        const lw_size_row *rows, size_t show, bool fits, lw_format fmt,
+                        lw_rtable **out, lw_error *err)
+{
+    static const char *const head[ZC_COUNT] = {
+        "cell",      "series",     "parallel",    "resistor_ohm", "worst_resistor_w",
+        "rating_w",  "runtime_h",  "margin_pct",  "flux_30s_lm",  "mass_g",
+        "end_reason", "warnings"};
+    *out = NULL;
+    bool regulated = prof->light.drive.type != LW_DRIVE_RESISTOR;
+    lw_rtable *t = lw_rtable_new(ZC_COUNT, err);
+    if (!t)
+        return LW_ENOMEM;
+    lw_status st = LW_OK;
+    unsigned used = 0;
+    for (size_t k = 0; k < ZC_COUNT && st == LW_OK; k++)
+        st = lw_rtable_head(t, k, head[k], err);
+    for (size_t i = 0; i < show && st == LW_OK; i++) {
+        const lw_size_row *w = &rows[i];
+        size_t r;
+        st = lw_rtable_add_row(t, &r, err);
+        if (st != LW_OK)
+            break;
+        const double v[ZC_COUNT] = {NAN,           w->series,      w->parallel,
+                                    w->resistor_ohm, w->worst_resistor_w, w->rating_w,
+                                    w->runtime_h,  w->margin_pct, w->flux_30s_lm,
+                                    w->mass_g,     NAN,           NAN};
+        const int sig[ZC_COUNT] = {0, 6, 6, 6, 3, 6, 4, 3, 4, 6, 0, 0};
+        for (size_t k = ZC_S; k <= ZC_MASS && st == LW_OK; k++)
+            st = lw_rtable_num(t, r, k, v[k], sig[k], err);
+        char warn[512] = "";
+        if (fmt == LW_FMT_CSV) {
+            lw_warnings_text(w->warnings, warn, sizeof warn);
+        } else {
+            for (int b = 0; b < LW_WARN_COUNT_; b++)
+                if (w->warnings & (1u << b)) {
+                    size_t m = strlen(warn);
+                    snprintf(warn + m, sizeof warn - m, "%s%c", m ? "," : "", 'a' + b);
+                    used |= 1u << b;
+                }
+        }
+        if (st == LW_OK)
+            st = lw_rtable_set(t, r, ZC_CELL, w->cell, err);
+        if (st == LW_OK)
+            st = lw_rtable_set(t, r, ZC_END, lw_end_reason_names[w->end_reason], err);
+        if (st == LW_OK)
+            st = lw_rtable_set(t, r, ZC_WARN, warn, err);
+    }
+    char note[512];
+    if (st == LW_OK && fmt != LW_FMT_CSV) {
+        if (!isnan(opt->flux_lm))
+            snprintf(note, sizeof note,
+                     "Requirement: at least %g lm for %g h. Ranked by cell count, then mass.",
+                     opt->flux_lm, opt->runtime_h);
+        else
+            snprintf(note, sizeof note,
+                     "Requirement: %g h to the cutoff at the profile's LED current. Ranked by "
+                     "cell count, then mass.",
+                     opt->runtime_h);
+        st = lw_rtable_note(t, note, err);
+        if (st == LW_OK && regulated)
+            st = lw_rtable_note(t, "The drive regulates: no resistor to choose; each pack runs "
+                                   "with the drive as it is, its dropout included.",
+                                err);
+        else if (st == LW_OK) {
+            snprintf(note, sizeof note,
+                     "Resistor: E%d values, worst case (fresh cells, resistor at -tolerance, "
+                     "low forward voltage) within the LED's max_current_ma and %s; rating_w: "
+                     "the smallest standard rating of at least twice the worst-case power.",
+                     opt->eseries,
+                     prof->light.drive.rating_w > 0 ? "the profile's rating_w"
+                                                    : "a standard rating with 2x derating");
+            st = lw_rtable_note(t, note, err);
+        }
+        for (int b = 0; b < LW_WARN_COUNT_ && st == LW_OK; b++)
+            if (used & (1u << b)) {
+                snprintf(note, sizeof note, "(%c) %s.", 'a' + b, lw_warning_text(b));
+                st = lw_rtable_note(t, note, err);
+            }
+        if (st == LW_OK && !fits)
+            st = lw_rtable_note(t, "Nothing fits; the row above is what came closest.", err);
+        if (st == LW_OK)
+            st = lw_rtable_note(t, lw_caution_line, err);
+    }
+    if (st != LW_OK) {
+        lw_rtable_free(t);
+        return st;
+    }
+    *out = t;
+    return LW_OK;
+}

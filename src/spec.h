@@ -1,0 +1,57 @@
+/*
+ * spec.h - the runtime table of a product specification: the runs behind
+ * it (lw_spec) and its rendering as a text, CSV or Markdown table.
+ *
+ * Owns: lw_spec (one run per mode and cell, through lw_batch_run, so every
+ * figure is the figure `lampwick run` gives for that mode and cell),
+ * lw_spec_compute, lw_spec_render and the rounding rules of a specification
+ * table.
+ *
+ * Table (docs/formats.md): one row per mode (the profile as written when it
+ * has none), one column group per cell: light output 30 s after switch-on,
+ * runtime to the cutoff, time to 50 %, hours at full output when a mode
+ * regulates, peak intensity and beam distance with an [optics] section
+ * (ANSI/PLATO FL 1 definitions), and the markers of that run's warnings.
+ * The notes under the table state the conditions actually computed --
+ * storage, ambient, the cutoff rule and its reference, the drive -- once when
+ * every run shares them, per mode or cell where they differ.
+ */
+#ifndef LW_SPEC_H
+#define LW_SPEC_H
+
+#include "batch.h"
+#include "report.h"
+
+typedef struct lw_spec {
+    const lw_profile *prof;  /* borrowed */
+    size_t nrows, ncells;    /* modes (1 for a profile without modes), cells */
+    bool has_modes;
+    lw_case *cases;          /* nrows * ncells, row-major: the run of mode r, cell c */
+    bool regulated;          /* some run regulates: the "at full" column */
+    bool optics;             /* the profile has an [optics] section */
+} lw_spec;
+
+/* Run every mode with every cell (`cells` NULL-terminated names; NULL: the
+ * profile's own cell).  A light that gives no light is a row, not an error;
+ * bad input fails with the first case's error.  Free with lw_spec_clear. */
+lw_status lw_spec_compute(const lw_profile *prof, const char *const *cells, int threads,
+                          lw_spec *spec, lw_error *err);
+void lw_spec_clear(lw_spec *spec);
+
+/* Render the table.  Text and Markdown are rounded as specification tables
+ * are (the rule is printed in the notes); CSV carries full precision in fixed
+ * units, one column per quantity and cell ("CELL.flux_lm", ...). */
+lw_status lw_spec_render(const lw_spec *spec, lw_format fmt, lw_rtable **out, lw_error *err);
+
+/* Compute and render in one call. */
+lw_status lw_spec_table(const lw_profile *prof, const char *const *cells, lw_format fmt,
+                        int threads, lw_rtable **out, lw_error *err);
+
+/* Round for a specification table: 2 significant figures below 100, whole
+ * numbers from 100 up. */
+double lw_spec_round(double v);
+/* Runtime for a specification table: whole minutes below 1 h ("45 min"),
+ * 0.1 h below 10 h ("7.5 h"), whole hours from 10 h ("62 h"). */
+void lw_spec_hours(double h, char *buf, size_t size);
+
+#endif
