@@ -58,6 +58,7 @@ flux_current_ma = 50
 resistor_ohm = 22
 INI
 expect 0 ': ok' "$LW" check "$TMP/p/light.ini"
+printf '[light]\nname = coin light\n[pack]\ncell = mycell\n[led]\nmodel = constant\nforward_v = 1.0\nflux_lm = 20\nflux_current_ma = 50\n[drive]\nresistor_ohm = 22\n' > "$TMP/p/coin.ini"
 sed 's/resistor_ohm/resistr_ohm/' "$TMP/p/light.ini" > "$TMP/p/typo.ini"
 expect 2 "typo.ini:10: unknown key 'resistr_ohm' in \[drive\]; did you mean 'drive.resistor_ohm'" "$LW" check "$TMP/p/typo.ini"
 sed 's/^curve = .*/curve = gone.csv/' "$SRC/cells/HR6-nimh.ini" > "$TMP/p/mycell.ini"
@@ -173,6 +174,18 @@ if [ "$(printf '%s\n' "$out" | grep -c 'unknown option')" -eq 1 ] && printf '%s'
 expect 0 '--cells LIST' "$LW" help table
 expect 0 '--eseries E24' "$LW" help pick
 expect 2 "unknown option '--series'" "$LW" pick profiles/demo.ini --target-ma 50 --series E24
+# junction_c is the temperature of the LED data, not a heating knob
+expect 0 'junction_c .*not a heating setting' "$LW" help keys
+expect 0 '^junction_c = 25$' "$LW" fit led docs/examples/white-led-bench.csv --model linear --write-profile-section
+expect 0 '^junction_c = 40$' "$LW" fit led docs/examples/white-led-bench.csv --junction-c 40 --write-profile-section
+# plain numbers in the notes and charts
+expect 0 'HR6-nimh: 1 cell \(1 in series' "$LW" table "$TMP/p/coin.ini"
+"$LW" run profiles/demo.ini --set drive.resistor_ohm=2 --set pack.cell=INR18650-li-ion --plot "$TMP/short.svg" > "$TMP/short.txt" 2>&1
+rt=$(sed -n 's/.*runtime to cutoff *\([0-9.]* [a-z]*\).*/\1/p' "$TMP/short.txt")
+if [ -n "$rt" ] && grep -q "runtime to cutoff $rt" "$TMP/short.svg"; then ok; else bad "chart subtitle does not say '$rt'"; fi
+# size and table CSV carry full precision
+n=$("$LW" size profiles/demo.ini --runtime-h 40 --format csv | sed -n 2p | cut -d, -f7)
+case "$n" in *.????????*) ok ;; *) bad "size csv runtime '$n' is rounded" ;; esac
 # a regulated drive: size sizes the pack alone
 expect 0 'The drive regulates' "$LW" size profiles/lantern-drives.ini --mode linear --runtime-h 10 --cells LR6-alkaline,HR6-nimh
 # a profile kept beside the cells is skipped, with a note

@@ -78,6 +78,54 @@ static void temperature_factors_interpolate_and_clamp(void **state)
     assert_close(kr, 1.0, 0);
 }
 
+/* Every bundled curve runs past its end point: a resistive load drawing a
+ * tenth of the rated current, or the rated current itself, ends on the
+ * cell's end-point voltage, never on the table's end (common practice, no
+ * source: a run is judged at the maker's end point, not where a table
+ * stops). */
+static void bundled_curves_reach_their_end_point(void **state)
+{
+    (void)state;
+    lw_search s;
+    memset(&s, 0, sizeof s);
+    lw_search_add(&s, LW_SOURCE_ROOT "/cells");
+    lw_cell_list list;
+    lw_error e;
+    lw_error_clear(&e);
+    assert_int_equal(lw_cell_list_read(&s, &list, &e), LW_OK);
+    assert_true(list.n >= 8);
+    for (size_t i = 0; i < list.n; i++) {
+        lw_cell cell;
+        assert_int_equal(lw_cell_load(list.paths[i], &cell, &e), LW_OK);
+        assert_true(cell.ocv->y[cell.ocv->n - 1] < cell.cutoff_v);
+        for (int k = 0; k < 2; k++) {
+            double load_a = cell.rated_a * (k ? 1.0 : 0.1);
+            lw_light l;
+            memset(&l, 0, sizeof l);
+            lw_cell_copy(&l.pack.cell, &cell);
+            l.pack.series = l.pack.parallel = 1;
+            l.pack.ambient_c = 20;
+            l.led = (lw_led){.model = LW_LED_CONSTANT, .count = 1, .strings = 1, .v_scale = 1,
+                             .forward_v = 1e-9, .flux_lm = 1, .flux_current_a = load_a,
+                             .flux_exponent = 1, .max_current_a = 100};
+            l.drive = (lw_drive){.type = LW_DRIVE_RESISTOR, .duty_pct = 100,
+                                 .resistor_ohm = cell.nominal_v / load_a};
+            l.cutoff = (lw_cutoff){.relative_pct = 1e-6, .cell_v = cell.cutoff_v};
+            lw_light_update_factors(&l, NULL);
+            lw_run_options o = lw_run_options_default();
+            o.visible_lm = 0;
+            lw_result r;
+            assert_int_equal(lw_run(&l, &o, &r, &e), LW_OK);
+            if (r.end_reason != LW_END_CELL_VOLTAGE)
+                fail_msg("%s at %g mA ends on %s", cell.name, load_a * 1e3,
+                         lw_end_reason_names[r.end_reason]);
+            lw_light_clear(&l);
+        }
+        lw_cell_clear(&cell);
+    }
+    lw_cell_list_clear(&list);
+}
+
 int main(void)
 {
     const struct CMUnitTest tests[] = {
@@ -85,6 +133,7 @@ int main(void)
         cmocka_unit_test(peukert_published_form_hp),
         cmocka_unit_test(low_drain_cap_and_factor),
         cmocka_unit_test(temperature_factors_interpolate_and_clamp),
+        cmocka_unit_test(bundled_curves_reach_their_end_point),
     };
     return cmocka_run_group_tests(tests, NULL, NULL);
 }

@@ -383,6 +383,37 @@ static void dark_at_switch_on(void **state)
     lw_light_clear(&l);
 }
 
+/* With cutoff.reference = fresh the relative cutoff and the 50 % mark refer
+ * to the 30-s output of the same light with fresh cells at 20 C: after
+ * storage the light starts dimmer than that reference and so ends sooner
+ * than against its own output; fresh and at 20 C both references agree. */
+static void fresh_reference_shows_storage(void **state)
+{
+    (void)state;
+    lw_light l;
+    shockley_demo_light(&l);
+    l.cutoff.cell_v = 0.5;
+    lw_result fresh = run_ok(&l, false);
+    l.cutoff.reference = LW_REF_FRESH;
+    lw_result same = run_ok(&l, false);
+    assert_close(same.flux_ref_lm, fresh.flux_30s_lm, 1e-12);
+    assert_close(same.runtime_h, fresh.runtime_h, 1e-12);
+    l.pack.cell.self_discharge_pct_month = 2;
+    l.cutoff.reference = LW_REF_OWN;
+    fresh = run_ok(&l, false); /* the same cells unstored */
+    l.cutoff.reference = LW_REF_FRESH;
+    l.pack.stored_months = 24;
+    lw_result stored_fresh = run_ok(&l, false);
+    l.cutoff.reference = LW_REF_OWN;
+    lw_result stored_own = run_ok(&l, false);
+    assert_close(stored_fresh.flux_ref_lm, fresh.flux_30s_lm, 1e-9);
+    assert_true(stored_own.flux_ref_lm < fresh.flux_30s_lm);
+    assert_true(stored_fresh.runtime_h < stored_own.runtime_h);
+    assert_true(stored_fresh.time_to_half_h < stored_own.time_to_half_h);
+    assert_close(stored_fresh.final.flux_lm, 0.1 * fresh.flux_30s_lm, 1e-9);
+    lw_light_clear(&l);
+}
+
 /* Below the visibility floor (LW_VISIBLE_LM) a light counts as never lit,
  * however long its cells would last. */
 static void below_visibility_is_never_lit(void **state)
@@ -498,6 +529,7 @@ int main(void)
         cmocka_unit_test(dense_led_table_runs),
         cmocka_unit_test(dark_at_switch_on),
         cmocka_unit_test(below_visibility_is_never_lit),
+        cmocka_unit_test(fresh_reference_shows_storage),
         cmocka_unit_test(trace_is_dense_monotone_and_ends_at_cutoff),
         cmocka_unit_test(warnings_fire),
         cmocka_unit_test(run_options_are_validated),
