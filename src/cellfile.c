@@ -12,6 +12,7 @@
 #include <string.h>
 #include <sys/stat.h>
 #include "csvio.h"
+#include "alloc.h"
 
 /* What a cell file holds besides the lw_cell itself. */
 typedef struct cellspec {
@@ -53,12 +54,14 @@ const lw_keydef lw_cell_keys[] = {
 };
 const size_t lw_cell_nkeys = sizeof lw_cell_keys / sizeof lw_cell_keys[0];
 
-void lw_path_join(char *out, size_t size, const char *dir, const char *rel)
+bool lw_path_join(char *out, size_t size, const char *dir, const char *rel)
 {
+    int n;
     if (rel[0] == '/' || !dir[0] || !strcmp(dir, "."))
-        snprintf(out, size, "%s", rel);
+        n = snprintf(out, size, "%s", rel);
     else
-        snprintf(out, size, "%s/%s", dir, rel);
+        n = snprintf(out, size, "%s/%s", dir, rel);
+    return n >= 0 && (size_t)n < size;
 }
 
 void lw_path_dir(char *out, size_t size, const char *path)
@@ -114,7 +117,7 @@ static lw_status load_curve(const char *path, lw_cell *cell, lw_error *err)
         return st;
     st = lw_csv_expect(&csv, curve_cols, NULL, err);
     size_t n = csv.nrow;
-    double *buf = st == LW_OK ? malloc(3 * n * sizeof *buf) : NULL;
+    double *buf = st == LW_OK ? lw_malloc(3 * n * sizeof *buf) : NULL;
     if (!buf) {
         lw_csv_clear(&csv);
         return st != LW_OK ? st : lw_error_set(err, LW_ENOMEM, path, 0, "out of memory");
@@ -174,7 +177,7 @@ static lw_status load_temperature(const char *path, lw_cell *cell, lw_error *err
         return st;
     st = lw_csv_expect(&csv, temp_cols, NULL, err);
     size_t n = csv.nrow;
-    double *buf = st == LW_OK ? malloc(3 * n * sizeof *buf) : NULL;
+    double *buf = st == LW_OK ? lw_malloc(3 * n * sizeof *buf) : NULL;
     if (!buf) {
         lw_csv_clear(&csv);
         return st != LW_OK ? st : lw_error_set(err, LW_ENOMEM, path, 0, "out of memory");
@@ -254,11 +257,21 @@ static lw_status check_cell(const lw_ini *ini, cellspec *spec, const bool *given
     return LW_OK;
 }
 
+/* Each key as the file is read must be a cell-file key. */
+static lw_status cell_check(void *ctx, const char *section, const char *key, const char *file,
+                            int line, lw_error *err)
+{
+    (void)ctx;
+    if (lw_key_find(lw_cell_keys, lw_cell_nkeys, section, key))
+        return LW_OK;
+    return lw_key_unknown(lw_cell_keys, lw_cell_nkeys, section, key, file, line, err);
+}
+
 lw_status lw_cell_load(const char *path, lw_cell *cell, lw_error *err)
 {
     memset(cell, 0, sizeof *cell);
     lw_ini ini;
-    lw_status st = lw_ini_read(path, &ini, err);
+    lw_status st = lw_ini_read(path, &ini, cell_check, NULL, err);
     if (st != LW_OK)
         return st;
     cellspec spec;
@@ -272,15 +285,22 @@ lw_status lw_cell_load(const char *path, lw_cell *cell, lw_error *err)
         st = check_cell(&ini, &spec, given, err);
     char dir[LW_PATH_MAX], file[LW_PATH_MAX];
     lw_path_dir(dir, sizeof dir, path);
+    if (st == LW_OK && !lw_path_join(file, sizeof file, dir, spec.curve))
+        st = lw_error_set(err, LW_EINPUT, path, lw_ini_key_line(&ini, "cell", "curve"),
+                          "[cell] curve: the path is too long (at most %d bytes)",
+                          LW_PATH_MAX - 1);
     if (st == LW_OK) {
-        lw_path_join(file, sizeof file, dir, spec.curve);
         st = lw_check_readable(file, path, lw_ini_key_line(&ini, "cell", "curve"), "[cell] curve",
                                err);
         if (st == LW_OK)
             st = load_curve(file, &spec.cell, err);
     }
+    if (st == LW_OK && spec.temperature[0] &&
+        !lw_path_join(file, sizeof file, dir, spec.temperature))
+        st = lw_error_set(err, LW_EINPUT, path, lw_ini_key_line(&ini, "cell", "temperature"),
+                          "[cell] temperature: the path is too long (at most %d bytes)",
+                          LW_PATH_MAX - 1);
     if (st == LW_OK && spec.temperature[0]) {
-        lw_path_join(file, sizeof file, dir, spec.temperature);
         st = lw_check_readable(file, path, lw_ini_key_line(&ini, "cell", "temperature"),
                                "[cell] temperature", err);
         if (st == LW_OK)
@@ -304,12 +324,11 @@ lw_status lw_cell_load(const char *path, lw_cell *cell, lw_error *err)
 lw_status lw_check_readable(const char *path, const char *from_file, int from_line,
                             const char *what, lw_error *err)
 {
-    FILE *fp = fopen(path, "rb");
-    if (!fp)
-        return lw_error_set(err, LW_EINPUT, from_file, from_line, "%s: cannot open '%s': %s",
-                            what, path, strerror(errno));
-    fclose(fp);
-    return LW_OK;
+    FILE *fp;
+    lw_status st = lw_open_regular(path, "rb", &fp, from_file, from_line, what, err);
+    if (fp)
+        fclose(fp);
+    return st;
 }
 
 static bool is_file(const char *path)
@@ -325,23 +344,22 @@ lw_status lw_cell_find(const char *ref, const char *base_dir, const lw_search *s
     bool is_path = strchr(ref, '/') || (len > 4 && !strcmp(ref + len - 4, ".ini"));
     char cand[LW_PATH_MAX], name[LW_PATH_MAX];
     if (is_path) {
-        lw_path_join(cand, sizeof cand, base_dir, ref);
+        if (!lw_path_join(cand, sizeof cand, base_dir, ref))
+            return lw_error_set(err, LW_EINPUT, NULL, 0, "the cell path is too long");
         if (!is_file(cand))
             return lw_error_set(err, LW_EINPUT, NULL, 0, "cell file '%s' not found", cand);
         lw_strlcpy(path, cand, size);
         return LW_OK;
     }
     snprintf(name, sizeof name, "%s.ini", ref);
-    lw_path_join(cand, sizeof cand, base_dir, name);
-    if (is_file(cand)) {
+    if (lw_path_join(cand, sizeof cand, base_dir, name) && is_file(cand)) {
         lw_strlcpy(path, cand, size);
         return LW_OK;
     }
     char tried[1024];
     snprintf(tried, sizeof tried, "%s", base_dir);
     for (size_t i = 0; search && i < search->n; i++) {
-        lw_path_join(cand, sizeof cand, search->dirs[i], name);
-        if (is_file(cand)) {
+        if (lw_path_join(cand, sizeof cand, search->dirs[i], name) && is_file(cand)) {
             lw_strlcpy(path, cand, size);
             return LW_OK;
         }
@@ -374,8 +392,7 @@ void lw_cell_list_clear(lw_cell_list *l)
     memset(l, 0, sizeof *l);
 }
 
-/* Does the file have a [cell] section?  (Only its first lines are read.) */
-static bool has_cell_section(const char *path)
+bool lw_cell_is_cell_file(const char *path)
 {
     FILE *fp = fopen(path, "r");
     if (!fp)
@@ -395,11 +412,11 @@ static bool has_cell_section(const char *path)
 /* Append a copy of text to a growing array. */
 static bool push_str(char ***arr, size_t n, const char *text)
 {
-    char **a = realloc(*arr, (n + 1) * sizeof *a);
+    char **a = lw_realloc(*arr, (n + 1) * sizeof *a);
     if (!a)
         return false;
     *arr = a;
-    a[n] = strdup(text);
+    a[n] = lw_strdup(text);
     return a[n] != NULL; /* a[n] is not counted on failure: nothing to free */
 }
 
@@ -419,13 +436,14 @@ lw_status lw_cell_list_read(const lw_search *search, lw_cell_list *l, lw_error *
                 continue;
             char name[LW_PATH_MAX], full[LW_PATH_MAX];
             snprintf(name, sizeof name, "%.*s", (int)(len - 4), de->d_name);
-            lw_path_join(full, sizeof full, search->dirs[i], de->d_name);
+            if (!lw_path_join(full, sizeof full, search->dirs[i], de->d_name))
+                continue; /* too long to be opened by name: not listed */
             bool dup = false;
             for (size_t k = 0; k < l->n && !dup; k++)
                 dup = !strcmp(l->names[k], name);
             if (dup)
                 continue;
-            if (!has_cell_section(full)) {
+            if (!lw_cell_is_cell_file(full)) {
                 oom = !push_str(&l->skipped, l->nskipped, full);
                 l->nskipped += !oom;
                 continue;

@@ -60,6 +60,10 @@ typedef struct lw_cell_list {
     size_t nskipped;
 } lw_cell_list;
 
+/* Does the file have a [cell] section (among its first 2,000 lines)?  An
+ * unreadable file counts as one (loading it then says why). */
+bool lw_cell_is_cell_file(const char *path);
+
 lw_status lw_cell_list_read(const lw_search *search, lw_cell_list *list, lw_error *err);
 void lw_cell_list_clear(lw_cell_list *list);
 
@@ -75,8 +79,9 @@ lw_status lw_check_readable(const char *path, const char *from_file, int from_li
 lw_status lw_cell_save(const char *ini_path, const lw_cell *cell, const char *comment,
                        lw_error *err);
 
-/* Join dir and rel ("rel" when rel is absolute or dir is empty). */
-void lw_path_join(char *out, size_t size, const char *dir, const char *rel);
+/* Join dir and rel ("rel" when rel is absolute or dir is empty); false when
+ * the result does not fit (out then holds a cut text: do not use it). */
+bool lw_path_join(char *out, size_t size, const char *dir, const char *rel);
 /* The folder part of a path ("." when there is none). */
 void lw_path_dir(char *out, size_t size, const char *path);
 

@@ -7,6 +7,7 @@
 #include <stdlib.h>
 #include <string.h>
 #include "csvio.h"
+#include "alloc.h"
 
 #define DENSE 401 /* depths at which the logs are compared */
 
@@ -50,8 +51,8 @@ lw_status lw_dlog_read(const char *path, double load_ohm, double load_a, lw_dlog
                           "%zu samples are too few for a discharge log (need at least 10)",
                           csv.nrow);
     size_t n = csv.nrow;
-    double *buf = st == LW_OK ? malloc(3 * n * sizeof *buf) : NULL;
-    int *lines = buf ? malloc(n * sizeof *lines) : NULL;
+    double *buf = st == LW_OK ? lw_malloc(3 * n * sizeof *buf) : NULL;
+    int *lines = buf ? lw_malloc(n * sizeof *lines) : NULL;
     if (!buf || !lines) {
         free(buf);
         lw_csv_clear(&csv);
@@ -78,7 +79,7 @@ lw_status lw_dlog_read(const char *path, double load_ohm, double load_a, lw_dlog
         buf[2 * n + k] = i;
     }
     /* gaps: a step over 10 times the median step */
-    double *steps = st == LW_OK ? malloc((n - 1) * sizeof *steps) : NULL;
+    double *steps = st == LW_OK ? lw_malloc((n - 1) * sizeof *steps) : NULL;
     if (st == LW_OK && !steps)
         st = lw_error_set(err, LW_ENOMEM, path, 0, "out of memory");
     if (steps) {
@@ -139,7 +140,7 @@ static lw_status reduce(const lw_dlog *log, double cutoff_v, reduced *r, lw_erro
                             "the voltage is at the end point %g V after only %zu samples",
                             cutoff_v, end);
     r->n = end + 1;
-    r->q = malloc(3 * r->n * sizeof *r->q);
+    r->q = lw_malloc(3 * r->n * sizeof *r->q);
     if (!r->q)
         return lw_error_set(err, LW_ENOMEM, NULL, 0, "out of memory");
     r->v = r->q + r->n;

@@ -356,7 +356,9 @@ static int help(int argc, char **argv)
         bool fit = !strcmp(argv[2], "fit") && argc == 3;
         const cli_command *c = fit ? NULL : cli_find(name);
         if (!c && !fit) {
-            fprintf(stderr, "lampwick: no command '%s'; see 'lampwick help'\n", name);
+            char safe[256];
+            lw_escape(safe, sizeof safe, name);
+            fprintf(stderr, "lampwick: no command '%s'; see 'lampwick help'\n", safe);
             return EXIT_BADINPUT;
         }
         if (fit) {
@@ -397,7 +399,9 @@ static int run_command(int argc, char **argv)
     }
     const cli_command *c = cli_find(cmd);
     if (!c || strchr(cmd, ' ')) {
-        fprintf(stderr, "lampwick: unknown command '%s'; see 'lampwick help'\n", cmd);
+        char safe[256];
+        lw_escape(safe, sizeof safe, cmd);
+        fprintf(stderr, "lampwick: unknown command '%s'; see 'lampwick help'\n", safe);
         return EXIT_BADINPUT;
     }
     return c->run(argc - 1, argv + 1);

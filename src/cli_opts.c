@@ -141,12 +141,13 @@ int report_error(const lw_error *err)
 
 int usage_error(const char *cmd, const char *fmt, ...)
 {
-    char msg[512];
+    char msg[512], safe[2048];
     va_list ap;
     va_start(ap, fmt);
     vsnprintf(msg, sizeof msg, fmt, ap); // NOLINT(clang-analyzer-valist.Uninitialized): va_start above
     va_end(ap);
-    fprintf(stderr, "lampwick %s: %s\nTry 'lampwick help %s'.\n", cmd, msg, cmd);
+    lw_escape(safe, sizeof safe, msg);
+    fprintf(stderr, "lampwick %s: %s\nTry 'lampwick help %s'.\n", cmd, safe, cmd);
     return EXIT_BADINPUT;
 }
 

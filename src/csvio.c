@@ -3,6 +3,8 @@
  * (see csvio.h).
  */
 #include "csvio.h"
+#include "inifile.h"
+#include "alloc.h"
 
 #include <csv.h>
 #include <ctype.h>
@@ -14,7 +16,6 @@
 #include <sys/stat.h>
 #include <unistd.h>
 
-#define LW_CSV_ROWS_MAX 1000000
 
 struct rd {
     lw_csv *csv;
@@ -28,7 +29,9 @@ struct rd {
     bool failed;
 };
 
-static void trim_copy(char *dst, size_t size, const char *src, size_t len)
+/* Copy the field without its surrounding blanks; false when it does not
+ * fit (nothing is cut silently). */
+static bool trim_copy(char *dst, size_t size, const char *src, size_t len)
 {
     while (len > 0 && isspace((unsigned char)*src)) {
         src++;
@@ -36,10 +39,13 @@ static void trim_copy(char *dst, size_t size, const char *src, size_t len)
     }
     while (len > 0 && isspace((unsigned char)src[len - 1]))
         len--;
-    if (len >= size)
-        len = size - 1;
+    if (len >= size) {
+        dst[0] = '\0';
+        return false;
+    }
     memcpy(dst, src, len);
     dst[len] = '\0';
+    return true;
 }
 
 static void on_field(void *s, size_t len, void *data)
@@ -58,7 +64,13 @@ static void on_field(void *s, size_t len, void *data)
                          LW_CSV_COLS_MAX);
             return;
         }
-        trim_copy(c->names[idx], LW_CSV_NAME_MAX, s ? s : "", s ? len : 0);
+        if (!trim_copy(c->names[idx], LW_CSV_NAME_MAX, s ? s : "", s ? len : 0)) {
+            r->failed = true;
+            lw_error_set(r->err, LW_EINPUT, c->path, r->rec_line,
+                         "column %zu of the header is longer than %d characters", idx + 1,
+                         LW_CSV_NAME_MAX - 1);
+            return;
+        }
         if (!c->names[idx][0]) {
             r->failed = true;
             lw_error_set(r->err, LW_EINPUT, c->path, r->rec_line,
@@ -68,8 +80,14 @@ static void on_field(void *s, size_t len, void *data)
     }
     if (idx >= c->ncol)
         return; /* reported as ragged at the end of the record */
-    char buf[128];
-    trim_copy(buf, sizeof buf, s ? s : "", s ? len : 0);
+    char buf[LW_CSV_FIELD_MAX];
+    if (!trim_copy(buf, sizeof buf, s ? s : "", s ? len : 0)) {
+        r->failed = true;
+        lw_error_set(r->err, LW_EINPUT, c->path, r->rec_line,
+                     "column '%s': the field is longer than %d characters", c->names[idx],
+                     LW_CSV_FIELD_MAX - 1);
+        return;
+    }
     if (!lw_parse_double(buf, &r->rowbuf[idx])) {
         r->failed = true;
         lw_error_set(r->err, LW_EINPUT, c->path, r->rec_line,
@@ -114,10 +132,10 @@ static void on_record(int ch, void *data)
     }
     if (c->nrow == r->cap) {
         size_t cap = r->cap ? 2 * r->cap : 64;
-        double *v = realloc(c->v, cap * c->ncol * sizeof *v);
+        double *v = lw_realloc(c->v, cap * c->ncol * sizeof *v);
         if (v)
             c->v = v;
-        int *ln = v ? realloc(c->line, cap * sizeof *ln) : NULL;
+        int *ln = v ? lw_realloc(c->line, cap * sizeof *ln) : NULL;
         if (ln)
             c->line = ln;
         if (!v || !ln) {
@@ -135,20 +153,39 @@ lw_status lw_csv_read(const char *path, lw_csv *csv, lw_error *err)
 {
     memset(csv, 0, sizeof *csv);
     lw_strlcpy(csv->path, path, sizeof csv->path);
-    FILE *fp = fopen(path, "rb");
-    if (!fp)
-        return lw_error_set(err, LW_EINPUT, path, 0, "cannot open: %s", strerror(errno));
+    if (strlen(path) >= sizeof csv->path)
+        return lw_error_set(err, LW_EINPUT, NULL, 0, "the path '%.60s...' is too long", path);
+    FILE *fp;
+    lw_status ost = lw_open_regular(path, "rb", &fp, NULL, 0, NULL, err);
+    if (ost != LW_OK)
+        return ost;
     struct csv_parser p;
     if (csv_init(&p, CSV_STRICT | CSV_STRICT_FINI | CSV_APPEND_NULL) != 0) {
         fclose(fp);
         return lw_error_set(err, LW_ENOMEM, path, 0, "out of memory");
     }
+    csv_set_realloc_func(&p, lw_realloc);
+    csv_set_free_func(&p, free);
     struct rd r = {.csv = csv, .err = err};
     char *linebuf = NULL;
     size_t linecap = 0;
     ssize_t got;
+    long bytes = 0;
     while (!r.failed && (got = getline(&linebuf, &linecap, fp)) >= 0) {
         r.line++;
+        bytes += got;
+        if (bytes > LW_CSV_BYTES_MAX) {
+            r.failed = true;
+            lw_error_set(err, LW_EINPUT, path, r.line, "the file is larger than %d bytes",
+                         LW_CSV_BYTES_MAX);
+            break;
+        }
+        if (memchr(linebuf, '\0', (size_t)got)) {
+            r.failed = true;
+            lw_error_set(err, LW_EINPUT, path, r.line,
+                         "a NUL byte in the line: this is not a text file");
+            break;
+        }
         char *text = linebuf;
         /* a UTF-8 byte-order mark, as spreadsheet exports write */
         if (r.line == 1 && got >= 3 && !memcmp(text, "\xEF\xBB\xBF", 3)) {

@@ -7,10 +7,12 @@
  * lw_outfile (an output file written under a temporary name and renamed on
  * success, so a failed run never leaves half a file).
  *
- * Reading is strict (libcsv's CSV_STRICT): a bad quote, an empty file, a
- * header without names, a row with a different number of fields than the
- * header (ragged), or a field that is not a finite number are refused with
- * file:line and the column name.
+ * Reading is strict (libcsv's CSV_STRICT): a path that is not a regular file,
+ * a file over LW_CSV_BYTES_MAX or LW_CSV_ROWS_MAX rows, a NUL byte, a bad
+ * quote, an empty file, a header without names, a row with a different
+ * number of fields than the header (ragged), a field longer than
+ * LW_CSV_FIELD_MAX - 1 or that is not a finite number are refused with
+ * file:line and the column name; nothing is cut silently.
  */
 #ifndef LW_CSVIO_H
 #define LW_CSVIO_H
@@ -21,6 +23,11 @@
 
 #define LW_CSV_NAME_MAX 64
 #define LW_CSV_COLS_MAX 64
+/* Limits of one CSV file (a 1 Hz discharge log of 100 days is 8.6 M rows
+ * of about 20 bytes: 170 MB; logs are kept at a sample a minute or slower). */
+#define LW_CSV_FIELD_MAX 128
+#define LW_CSV_BYTES_MAX (64 * 1024 * 1024)
+#define LW_CSV_ROWS_MAX 1000000
 
 typedef struct lw_csv {
     char path[512];

@@ -14,6 +14,7 @@
 #include <stdlib.h>
 #include <string.h>
 #include "roots.h"
+#include "alloc.h"
 
 const char *const lw_end_reason_names[LW_END_COUNT + 1] = {
     "relative-brightness", "flux-floor", "cell-voltage", "capacity", "never-lit",
@@ -66,6 +67,7 @@ typedef struct engine {
     bool positive[NEV];       /* for kinks: sign of g at the current depth */
     double tot[NQ];
     double d_now;
+    double density[NQ];       /* totals per unit depth over the current interval */
     size_t cap_pieces;
     size_t seg;               /* curve interval being integrated; SIZE_MAX: search */
     double d0;                /* depth at switch-on */
@@ -82,7 +84,11 @@ typedef struct engine {
  * (e->seg), so OCV and R come straight from it without a table search. */
 static lw_status eval(engine *e, double d, lw_point *pt)
 {
-    e->res->solves++;
+    if (++e->res->solves > e->opt->max_solves)
+        return lw_error_set(e->err, LW_ENUMERIC, NULL, 0,
+                            "the run stopped after %d operating-point solves near depth %.6g "
+                            "without meeting its tolerance (max_solves)",
+                            e->opt->max_solves, d);
     if (e->seg == SIZE_MAX)
         return lw_light_point(e->l, d, e->fallback, pt, e->err);
     const lw_table *o = e->l->pack.cell.ocv, *r = e->l->pack.cell.res;
@@ -274,19 +280,31 @@ static lw_status eval_nodes(engine *e, double a, double b, lw_point pts[NODES])
 /* Kronrod sums with half-width h of integrand values f at the 15 nodes in
  * ascending order, and the error estimate of each: the difference from the
  * embedded 7-point Gauss rule (conservative: the 15-point result is usually
- * far better). */
-static void gk_rule(double h, double f[NODES][NQ], double k[NQ], double err[NQ])
+ * far better).  dx_round is the rounding of the integration variable at the
+ * nodes (a few ulps); the integrand's change across the piece times that is
+ * the rounding noise of the sums, which no halving reduces, so an estimate
+ * within ROUNDING_GUARD times it counts as converged. */
+#define ROUNDING_GUARD 256.0
+
+static void gk_rule(double h, double dx_round, double f[NODES][NQ], double k[NQ],
+                    double err[NQ])
 {
     for (int q = 0; q < NQ; q++) {
         double sk = wgk[7] * f[7][q], sg = wg[3] * f[7][q];
+        double lo = f[0][q], hi = f[0][q];
         for (int j = 0; j < 7; j++) {
             double pair = f[j][q] + f[14 - j][q];
             sk += wgk[j] * pair;
             if (j % 2 == 1)
                 sg += wg[j / 2] * pair;
         }
+        for (int j = 1; j < NODES; j++) {
+            lo = fmin(lo, f[j][q]);
+            hi = fmax(hi, f[j][q]);
+        }
         k[q] = h * sk;
-        err[q] = fabs(h * (sk - sg));
+        double noise = ROUNDING_GUARD * (hi - lo) * dx_round;
+        err[q] = fmax(0.0, fabs(h * (sk - sg)) - noise);
     }
 }
 
@@ -296,16 +314,47 @@ static void gk_sums(double a, double b, const lw_point pts[NODES], double k[NQ],
     double f[NODES][NQ];
     for (int j = 0; j < NODES; j++)
         integrand(&pts[j], f[j]);
-    gk_rule(0.5 * (b - a), f, k, err);
+    gk_rule(0.5 * (b - a), DBL_EPSILON * fmax(fabs(a), fabs(b)), f, k, err);
 }
 
-/* Does every total meet the relative tolerance on this piece? */
-static bool accurate(const engine *e, const double k[NQ], const double err[NQ])
+/* May [a, b] be halved again?  Not past max_halvings, and not below
+ * LW_PIECE_MIN_REL of its depth: there the nodes sit a few thousand ulps
+ * apart, rounding noise in the integrand outweighs any rule's error, and
+ * halving could only go on forever. */
+static bool may_halve(const engine *e, double a, double b, int depth)
 {
-    for (int q = 0; q < NQ; q++)
-        if (!(err[q] <= e->opt->rtol * fabs(k[q]) + 1e-300))
+    return depth < e->opt->max_halvings && b - a > LW_PIECE_MIN_REL * fmax(fabs(a), fabs(b));
+}
+
+/* Does every total meet the tolerance on the piece of width w (in depth)?
+ * Each total is judged against the larger of the piece's own value and its
+ * share, by width, of the whole curve interval (e->density, from the
+ * interval's first estimate): so the sum of the pieces' errors stays within
+ * about twice the tolerance of the interval, and a piece where a total
+ * nearly vanishes (the light output as the LEDs stop conducting) is not
+ * asked for relative accuracy of almost nothing.  The energies are judged
+ * against the energy drawn, of which each is a share (so a loss that is zero
+ * up to rounding, an ideal converter's, does not demand accuracy of noise). */
+static bool accurate(const engine *e, double w, const double k[NQ], const double err[NQ])
+{
+    double rtol = e->opt->rtol;
+    for (int q = 0; q < NQ; q++) {
+        int ref = q < Q_LED ? q : Q_DRAWN;
+        double scale = fmax(fabs(k[ref]), e->density[ref] * w);
+        if (!(err[q] <= rtol * scale + 1e-300))
             return false;
+    }
     return true;
+}
+
+/* The density of each total over [a, b], per unit depth, from the nodes of
+ * the interval's first pass (0 where not finite). */
+static void set_density(engine *e, double a, double b, const lw_point pts[NODES])
+{
+    double k[NQ], g[NQ];
+    gk_sums(a, b, pts, k, g);
+    for (int q = 0; q < NQ; q++)
+        e->density[q] = isfinite(k[q]) && b > a ? fabs(k[q]) / (b - a) : 0.0;
 }
 
 static lw_status add_piece(engine *e, double a, double b)
@@ -315,7 +364,7 @@ static lw_status add_piece(engine *e, double a, double b)
     lw_result *r = e->res;
     if (r->n_pieces == e->cap_pieces) {
         size_t cap = e->cap_pieces ? 2 * e->cap_pieces : 64;
-        lw_piece *p = realloc(r->pieces, cap * sizeof *p);
+        lw_piece *p = lw_realloc(r->pieces, cap * sizeof *p);
         if (!p)
             return lw_error_set(e->err, LW_ENOMEM, NULL, 0, "out of memory for the trace");
         r->pieces = p;
@@ -333,9 +382,12 @@ static void note_point(engine *e, const lw_point *pt)
         e->res->warnings |= LW_WARN_EXTRAPOLATED;
 }
 
-/* Add an accepted piece [a, b] with its totals k and node points. */
+/* Add an accepted piece [a, b] with its totals k, their error estimates g
+ * and node points.  A piece that missed the tolerance on its own (it could
+ * not be halved further) is flagged only when its error also shows against
+ * the run's totals so far. */
 static lw_status accept_piece(engine *e, double a, double b, const lw_point pts[NODES],
-                              const double k[NQ], bool ok)
+                              const double k[NQ], const double g[NQ], bool ok)
 {
     for (int q = 0; q < NQ; q++)
         if (!isfinite(k[q]))
@@ -343,8 +395,13 @@ static lw_status accept_piece(engine *e, double a, double b, const lw_point pts[
                                 "the discharge rate vanished inside the run near depth %.6g "
                                 "(the light went dark without reaching a cutoff)",
                                 0.5 * (a + b));
-    if (!ok)
-        e->res->warnings |= LW_WARN_TOLERANCE;
+    if (!ok) {
+        double tot[NQ];
+        for (int q = 0; q < NQ; q++)
+            tot[q] = e->tot[q] + k[q];
+        if (!accurate(e, b - a, tot, g))
+            e->res->warnings |= LW_WARN_TOLERANCE;
+    }
     lw_status st = add_piece(e, a, b);
     if (st != LW_OK)
         return st;
@@ -364,8 +421,10 @@ static lw_status integrate_nodes(engine *e, double a, double b, const lw_point p
 {
     double k[NQ], g[NQ];
     gk_sums(a, b, pts, k, g);
-    bool ok = accurate(e, k, g);
-    if (!ok && depth < e->opt->max_halvings) {
+    bool ok = accurate(e, b - a, k, g);
+    if (!isfinite(k[Q_T]))
+        return accept_piece(e, a, b, pts, k, g, ok); /* refuses it: no halving helps */
+    if (!ok && may_halve(e, a, b, depth)) {
         double m = 0.5 * (a + b);
         lw_point half[NODES];
         lw_status st = eval_nodes(e, a, m, half);
@@ -377,13 +436,15 @@ static lw_status integrate_nodes(engine *e, double a, double b, const lw_point p
             st = integrate_nodes(e, m, b, half, depth + 1);
         return st;
     }
-    return accept_piece(e, a, b, pts, k, ok);
+    return accept_piece(e, a, b, pts, k, g, ok);
 }
 
 static lw_status integrate_plain(engine *e, double a, double b)
 {
     lw_point pts[NODES];
     lw_status st = eval_nodes(e, a, b, pts);
+    if (st == LW_OK)
+        set_density(e, a, b, pts);
     return st == LW_OK ? integrate_nodes(e, a, b, pts, 0) : st;
 }
 
@@ -407,14 +468,19 @@ static lw_status integrate_to_limit(engine *e, double a, double b, double s0, do
             f[j][q] *= 2.0 * (b - a) * sj;
     }
     double k[NQ], g[NQ];
-    gk_rule(0.5 * (s1 - s0), f, k, g);
-    bool ok = accurate(e, k, g);
-    if (!ok && depth < e->opt->max_halvings) {
+    /* depth rounds by ulps of b; in s that is ds = dd / (2 (b - a) s) */
+    double s_mid = fmax(0.5 * (s0 + s1), 1e-300);
+    gk_rule(0.5 * (s1 - s0), DBL_EPSILON * fabs(b) / (2.0 * (b - a) * s_mid), f, k, g);
+    if (depth == 0) /* the whole piece: its totals per unit depth */
+        for (int q = 0; q < NQ; q++)
+            e->density[q] = isfinite(k[q]) ? fabs(k[q]) / (b - a) : 0.0;
+    bool ok = accurate(e, (b - a) * (s1 * s1 - s0 * s0), k, g);
+    if (!ok && may_halve(e, s0, s1, depth)) {
         double m = 0.5 * (s0 + s1);
         lw_status st = integrate_to_limit(e, a, b, m, s1, depth + 1);
         return st == LW_OK ? integrate_to_limit(e, a, b, s0, m, depth + 1) : st;
     }
-    return accept_piece(e, b - (b - a) * s1 * s1, s0 > 0 ? b - (b - a) * s0 * s0 : b, pts, k,
+    return accept_piece(e, b - (b - a) * s1 * s1, s0 > 0 ? b - (b - a) * s0 * s0 : b, pts, k, g,
                         ok);
 }
 
@@ -429,28 +495,33 @@ static void finish(engine *e, lw_end_reason why, const lw_point *pt)
 /* The last operating point the driver held before it went dark at d: walk
  * back from d in growing steps, at most to the not-fired side of the
  * located event. */
-static lw_status held_point(engine *e, double d, lw_point *pt)
+static bool lit(const lw_point *pt)
 {
-    double lo = e->fire_from;
-    double step = e->opt->event_tol * (fabs(d) + 1e-3);
-    for (int i = 0; i < 64; i++) {
-        double x = fmax(lo, d - step);
-        lw_status st = eval(e, x, pt);
-        if (st != LW_OK || pt->regime != LW_REGIME_DROPOUT || x == lo)
-            return st;
-        step *= 4.0;
-    }
-    return LW_OK;
+    return pt->regime != LW_REGIME_DROPOUT && isfinite(pt->dtdd_h);
 }
 
-/* Act on event k located at depth d (the totals already reach d). */
+static lw_status held_point(engine *e, double d, lw_point *pt)
+{
+    lw_status st = eval(e, d, pt);
+    double lo = e->fire_from;
+    double step = e->opt->event_tol * (fabs(d) + 1e-3);
+    for (int i = 0; i < 64 && st == LW_OK && !lit(pt) && d > lo; i++) {
+        double x = fmax(lo, d - step);
+        st = eval(e, x, pt);
+        if (x == lo)
+            break;
+        step *= 4.0;
+    }
+    return st;
+}
+
+/* Act on event k located at depth d (the totals already reach d); *pt is
+ * the point at d. */
 static lw_status fire(engine *e, int k, double d, lw_point *pt)
 {
     static const lw_end_reason why[] = {LW_END_RELATIVE, LW_END_FLUX_FLOOR,
                                         LW_END_CELL_VOLTAGE, LW_END_DRIVER_DROPOUT};
-    lw_status st = eval(e, d, pt);
-    if (st != LW_OK)
-        return st;
+    lw_status st = LW_OK;
     if (k == EV_DROPOUT) {
         lw_point held = *pt; /* run_interval ends the lit part where the driver held */
         if (!e->fallback && e->l->drive.fallback_a > 0.0) {
@@ -496,7 +567,11 @@ static lw_status time_integral(engine *e, double a, double b, int depth, double 
         return st;
     double k[NQ], err[NQ];
     gk_sums(a, b, pts, k, err);
-    if (err[Q_T] <= e->opt->rtol * fabs(k[Q_T]) || depth >= e->opt->max_halvings) {
+    if (!isfinite(k[Q_T])) { /* dark somewhere in [a, b]: no time reaches b */
+        *t_h = INFINITY;
+        return LW_OK;
+    }
+    if (err[Q_T] <= e->opt->rtol * fabs(k[Q_T]) || !may_halve(e, a, b, depth)) {
         *t_h += k[Q_T];
         return LW_OK;
     }
@@ -553,7 +628,7 @@ static lw_status run_interval(engine *e, double a, double b, lw_point pa, int de
     /* each pass ends at an event or at b; a model has a handful of events,
      * so the cap only guards against an event that keeps re-firing */
     for (int pass = 0; !e->done && a < b; pass++) {
-        if (pass == 1000)
+        if (pass == LW_EVENTS_PER_INTERVAL_MAX)
             return lw_error_set(e->err, LW_ENUMERIC, NULL, 0,
                                 "too many events between depths %.6g and %.6g", a, b);
         lw_point pts[NODES + 1];
@@ -574,11 +649,29 @@ static lw_status run_interval(engine *e, double a, double b, lw_point pa, int de
         double d_prev = a;
         for (int j = 0; j <= NODES && first_k < 0; j++) {
             double dj = j < NODES ? node_depth(a, b, j) : b;
+            /* at a dark node the other events are judged at the last point
+             * the driver held before it went dark: a cutoff crossed on the
+             * way there comes first */
+            const lw_point *node = &pts[j];
+            double dn = dj;
+            lw_point held;
+            if (fired(e, EV_DROPOUT, node)) {
+                double dk;
+                st = locate(e, EV_DROPOUT, d_prev, dj, prev, node, &dk);
+                if (st == LW_OK)
+                    st = held_point(e, dk, &held);
+                if (st != LW_OK)
+                    return st;
+                first_k = EV_DROPOUT;
+                d_star = dk;
+                node = &held;
+                dn = held.depth;
+            }
             for (int k = 0; k < NEV; k++) {
-                if (!fired(e, k, &pts[j]))
+                if (k == EV_DROPOUT || !fired(e, k, node) || !(dn > d_prev))
                     continue;
                 double dk;
-                st = locate(e, k, d_prev, dj, prev, &pts[j], &dk);
+                st = locate(e, k, d_prev, dn, prev, node, &dk);
                 if (st != LW_OK)
                     return st;
                 if (first_k < 0 || dk < d_star) {
@@ -599,12 +692,14 @@ static lw_status run_interval(engine *e, double a, double b, lw_point pa, int de
             goto rescan;
         }
         if (first_k < 0) {
-            if (depth >= e->opt->max_halvings)
+            if (!may_halve(e, a, b, depth))
                 return integrate_nodes(e, a, b, pts, e->opt->max_halvings);
             /* accept if the error estimate allows; otherwise halve with events */
             double kk[NQ], gg[NQ];
+            if (depth == 0)
+                set_density(e, a, b, pts);
             gk_sums(a, b, pts, kk, gg);
-            if (accurate(e, kk, gg)) {
+            if (accurate(e, b - a, kk, gg)) {
                 e->end_d = b; /* the next interval starts from this point */
                 e->end_pt = pts[NODES];
                 return integrate_nodes(e, a, b, pts, 0);
@@ -618,20 +713,20 @@ static lw_status run_interval(engine *e, double a, double b, lw_point pa, int de
                 return st;
             return run_interval(e, m, b, pm, depth + 1);
         }
-        if (first_k == EV_DROPOUT) {
-            /* end the lit part where the driver still held its level */
-            lw_point held;
-            st = held_point(e, d_star, &held);
-            if (st != LW_OK)
-                return st;
-            d_star = held.depth;
-        }
+        /* end the lit part where the light is still lit: the driver still
+         * held its level, or the current had not yet reached zero */
+        lw_point at;
+        st = held_point(e, d_star, &at);
+        if (st != LW_OK)
+            return st;
+        d_star = at.depth;
         if (d_star > a) {
             st = first_k == EV_DROPOUT ? integrate_to_limit(e, a, d_star, 0.0, 1.0, 0)
                                        : integrate_plain(e, a, d_star);
             if (st != LW_OK)
                 return st;
         }
+        pa = at;
         st = fire(e, first_k, d_star, &pa);
         if (st == LW_OK && !e->done && first_k == EV_DROPOUT)
             st = settle(e, d_star, &pa);
@@ -649,6 +744,7 @@ lw_run_options lw_run_options_default(void)
                             .visible_lm = LW_VISIBLE_LM,
                             .event_tol = 1e-13,
                             .event_iter_max = 200,
+                            .max_solves = LW_MAX_SOLVES_DEFAULT,
                             .start_depth = 0.0,
                             .want_trace = false};
 }
@@ -747,13 +843,15 @@ static lw_status point_at_30s(engine *e, const lw_point *p0, lw_point *p30, doub
     *p30 = *p0;
     *d30 = e->d0;
     for (int it = 0; it < LW_T30_ITER_MAX; it++) {
-        double dt = 0.0;
-        lw_status st = fabs(d - d_prev) <= 1e-3 * (d_prev - e->d0)
-                           ? time_short(e, fmin(d, d_prev), fmax(d, d_prev), &dt)
-                           : time_between(e, fmin(d, d_prev), fmax(d, d_prev), &dt);
         lw_point pt;
-        if (st == LW_OK)
-            st = eval(e, d, &pt);
+        lw_status st = eval(e, d, &pt);
+        if (st != LW_OK)
+            return st;
+        double dt = 0.0;
+        if (isfinite(pt.dtdd_h))
+            st = fabs(d - d_prev) <= 1e-3 * (d_prev - e->d0)
+                     ? time_short(e, fmin(d, d_prev), fmax(d, d_prev), &dt)
+                     : time_between(e, fmin(d, d_prev), fmax(d, d_prev), &dt);
         if (st != LW_OK)
             return st;
         double t = d >= d_prev ? t_prev + dt : t_prev - dt;
@@ -910,11 +1008,11 @@ lw_status lw_run(const lw_light *light, const lw_run_options *opt, lw_result *re
     if (!(opt->rtol >= 1e-14 && opt->rtol <= 1e-3) || opt->max_halvings < 0 ||
         opt->max_halvings > 60 || !(opt->start_depth >= 0.0 && opt->start_depth <= 1.0) ||
         !(opt->visible_lm >= 0.0) || !(opt->event_tol >= 1e-16 && opt->event_tol <= 1e-6) ||
-        opt->event_iter_max < 10 || opt->event_iter_max > 10000)
+        opt->event_iter_max < 10 || opt->event_iter_max > 10000 || opt->max_solves < 100)
         return lw_error_set(err, LW_EINPUT, NULL, 0,
                             "run options: rtol must be 1e-14 to 1e-3, max_halvings 0 to 60, "
                             "start_depth 0 to 1, visible_lm >= 0, event_tol 1e-16 to 1e-6, "
-                            "event_iter_max 10 to 10000");
+                            "event_iter_max 10 to 10000, max_solves >= 100");
     res->time_to_half_h = NAN;
     res->flux_30s_lm = res->flux_ref_lm = NAN;
     engine e = {.l = light, .opt = opt, .res = res, .err = err, .seg = SIZE_MAX, .end_d = -1};
@@ -991,7 +1089,7 @@ lw_status lw_trace_build(const lw_light *light, const lw_result *res, size_t min
         per_piece = 1;
     /* first pass: how many rows each piece gets (denser where output bends) */
     size_t total = 1;
-    size_t *k = calloc(res->n_pieces + 1, sizeof *k);
+    size_t *k = lw_calloc(res->n_pieces + 1, sizeof *k);
     if (!k)
         return lw_error_set(err, LW_ENOMEM, NULL, 0, "out of memory for the trace");
     lw_status st = LW_OK;
@@ -1009,7 +1107,7 @@ lw_status lw_trace_build(const lw_light *light, const lw_result *res, size_t min
         k[i] = n > 200 ? 200 : n;
         total += k[i];
     }
-    lw_trace_row *rows = st == LW_OK ? malloc(total * sizeof *rows) : NULL;
+    lw_trace_row *rows = st == LW_OK ? lw_malloc(total * sizeof *rows) : NULL;
     if (!rows) {
         free(k);
         return st != LW_OK ? st

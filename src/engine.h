@@ -48,6 +48,22 @@ bool lw_end_is_dark(lw_end_reason why);
  * indicating purpose (common practice, no source). */
 #define LW_VISIBLE_LM 1e-3
 
+/* Default cap on the solves of one run: a thousand times what the bundled
+ * profiles need, about a second of work; a run that needs more has met a
+ * model it cannot integrate to its tolerance and fails (LW_ENUMERIC). */
+#define LW_MAX_SOLVES_DEFAULT 1000000
+
+/* The narrowest piece, relative to its depth, that the integration halves:
+ * below it the quadrature nodes are a few thousand ulps apart and rounding
+ * in the integrand, not the rule, limits the accuracy (such pieces are
+ * accepted as they are and flagged when they miss the tolerance). */
+#define LW_PIECE_MIN_REL 1e-12
+
+/* Cap on the events within one piece of the cell curve: a model has a
+ * handful (its end, 50 %, kinks, a few hundred LED-table knots at most);
+ * more means an event that keeps firing, and the run fails. */
+#define LW_EVENTS_PER_INTERVAL_MAX 10000
+
 /* Cap on the Newton steps that solve t(d) = 30 s (it converges in three or
  * four; bisection safeguards the rest). */
 #define LW_T30_ITER_MAX 100
@@ -80,6 +96,8 @@ typedef struct lw_run_options {
                              default 1e-13 (a few ulps of the depth scale) */
     int event_iter_max;   /* cap on Brent iterations per event, default 200 (it
                              converges in under 50 from any bracket) */
+    int max_solves;       /* cap on the operating-point solves of one run: the
+                             bound on its total work, default LW_MAX_SOLVES_DEFAULT */
     double start_depth;   /* depth at switch-on, 0..1, default 0; the light's own
                              storage (pack.stored_months) is applied when deeper */
     bool want_trace;      /* record the pieces for lw_trace_build */

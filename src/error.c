@@ -22,35 +22,69 @@ void lw_error_clear(lw_error *err)
     err->msg[0] = '\0';
 }
 
-lw_status lw_error_set(lw_error *err, lw_status code, const char *file, int line,
-                       const char *fmt, ...)
+lw_status lw_error_vset(lw_error *err, lw_status code, const char *file, int line,
+                        const char *fmt, va_list ap)
 {
     if (!err || err->code != LW_OK)
         return code;
     err->code = code;
     lw_strlcpy(err->file, file ? file : "", sizeof err->file);
     err->line = line;
+    vsnprintf(err->msg, sizeof err->msg, fmt, ap); // NOLINT(clang-analyzer-valist.Uninitialized): va_start in the caller
+    return code;
+}
+
+lw_status lw_error_set(lw_error *err, lw_status code, const char *file, int line,
+                       const char *fmt, ...)
+{
     va_list ap;
     va_start(ap, fmt);
-    vsnprintf(err->msg, sizeof err->msg, fmt, ap); // NOLINT(clang-analyzer-valist.Uninitialized): va_start above
+    lw_status st = lw_error_vset(err, code, file, line, fmt, ap);
     va_end(ap);
-    return code;
+    return st;
+}
+
+/* Copy text into out (room for size), with every byte that could steer a
+ * terminal -- a control character, DEL, or a byte of invalid UTF-8 --
+ * written as \xNN.  Returns the length written. */
+size_t lw_escape(char *out, size_t size, const char *text)
+{
+    size_t o = 0;
+    const unsigned char *s = (const unsigned char *)text;
+    while (*s && o + 5 < size) {
+        unsigned char c = *s;
+        size_t len = c < 0x80 ? 1 : (c >> 5) == 6 ? 2 : (c >> 4) == 14 ? 3 : (c >> 3) == 30 ? 4 : 0;
+        bool ok = len > 0 && c >= 0x20 && c != 0x7F && !(len == 2 && c < 0xC2) && !(c > 0xF4);
+        for (size_t k = 1; ok && k < len; k++)
+            ok = (s[k] & 0xC0) == 0x80;
+        if (ok && o + len < size) {
+            memcpy(out + o, s, len);
+            o += len;
+            s += len;
+        } else {
+            o += (size_t)snprintf(out + o, size - o, "\\x%02X", c);
+            s++;
+        }
+    }
+    out[o] = '\0';
+    return o;
 }
 
 void lw_error_format(const lw_error *err, char *buf, size_t size)
 {
     if (!buf || size == 0)
         return;
-    if (!err) {
-        buf[0] = '\0';
+    buf[0] = '\0';
+    if (!err)
         return;
-    }
+    char raw[LW_ERR_FILE_MAX + LW_ERR_MSG_MAX + 32];
     if (err->file[0] && err->line > 0)
-        snprintf(buf, size, "%s:%d: %s", err->file, err->line, err->msg);
+        snprintf(raw, sizeof raw, "%s:%d: %s", err->file, err->line, err->msg);
     else if (err->file[0])
-        snprintf(buf, size, "%s: %s", err->file, err->msg);
+        snprintf(raw, sizeof raw, "%s: %s", err->file, err->msg);
     else
-        snprintf(buf, size, "%s", err->msg);
+        snprintf(raw, sizeof raw, "%s", err->msg);
+    lw_escape(buf, size, raw);
 }
 
 static const char *skip_blank(const char *s)
@@ -206,3 +240,35 @@ void lw_format_double(char *buf, size_t size, double v)
             return;
     }
 }
+
+/* (see error.h) */
+bool lw_utf8_valid(const char *s, size_t n, size_t *at)
+{
+    size_t i = 0;
+    while (i < n) {
+        unsigned char c = (unsigned char)s[i];
+        size_t len = c < 0x80 ? 1 : (c >> 5) == 6 ? 2 : (c >> 4) == 14 ? 3 : (c >> 3) == 30 ? 4 : 0;
+        if (len == 0 || i + len > n || (len == 2 && c < 0xC2) || (len == 4 && c > 0xF4))
+            goto bad;
+        for (size_t k = 1; k < len; k++)
+            if (((unsigned char)s[i + k] & 0xC0) != 0x80)
+                goto bad;
+        if (len == 3) {
+            unsigned char c1 = (unsigned char)s[i + 1];
+            if ((c == 0xE0 && c1 < 0xA0) || (c == 0xED && c1 >= 0xA0)) /* overlong, surrogate */
+                goto bad;
+        }
+        if (len == 4) {
+            unsigned char c1 = (unsigned char)s[i + 1];
+            if ((c == 0xF0 && c1 < 0x90) || (c == 0xF4 && c1 >= 0x90))
+                goto bad;
+        }
+        i += len;
+    }
+    return true;
+bad:
+    if (at)
+        *at = i;
+    return false;
+}
+

@@ -13,6 +13,7 @@
 #ifndef LW_ERROR_H
 #define LW_ERROR_H
 
+#include <stdarg.h>
 #include <stdbool.h>
 #include <stddef.h>
 
@@ -47,8 +48,27 @@ lw_status lw_error_set(lw_error *err, lw_status code, const char *file, int line
 #endif
     ;
 
-/* Format "file:line: message" (or "file: message", or "message") into buf. */
+/* The same with a va_list. */
+lw_status lw_error_vset(lw_error *err, lw_status code, const char *file, int line,
+                        const char *fmt, va_list ap)
+#if defined(__GNUC__)
+    __attribute__((format(printf, 5, 0)))
+#endif
+    ;
+
+/* Format "file:line: message" (or "file: message", or "message") into buf,
+ * with control characters and invalid UTF-8 shown as \xNN, so that no byte
+ * of an input can steer the terminal it is printed on. */
 void lw_error_format(const lw_error *err, char *buf, size_t size);
+
+/* Is s[0..n) valid UTF-8 (no overlong forms, no surrogates, at most
+ * U+10FFFF)?  On false, *at (may be NULL) is the offset of the first bad
+ * byte. */
+bool lw_utf8_valid(const char *s, size_t n, size_t *at);
+
+/* Copy text into out (size bytes) with control characters, DEL and bytes of
+ * invalid UTF-8 written as \xNN; returns the length written. */
+size_t lw_escape(char *out, size_t size, const char *text);
 
 /* Strict parse of a whole string as a finite double: leading/trailing blanks
  * allowed, nothing else.  Refuses "", "4.7x", "1,2", "nan", "inf".

@@ -13,6 +13,7 @@
 #include <stdlib.h>
 #include <string.h>
 #include "led.h"
+#include "alloc.h"
 
 lw_status lw_lsq_solve(const double *const *x, size_t p, const double *y, size_t n,
                        lw_lsq *out, lw_error *err)
@@ -24,7 +25,7 @@ lw_status lw_lsq_solve(const double *const *x, size_t p, const double *y, size_t
         return lw_error_set(err, LW_EINPUT, NULL, 0,
                             "%zu points are too few to fit %zu parameters (need at least %zu)",
                             n, p, p + 1);
-    double *a = malloc((p + 1) * n * sizeof *a); /* column-major, last column is y */
+    double *a = lw_malloc((p + 1) * n * sizeof *a); /* column-major, last column is y */
     if (!a)
         return lw_error_set(err, LW_ENOMEM, NULL, 0, "out of memory");
     double scale[LW_LSQ_MAX_P] = {0};
@@ -149,7 +150,7 @@ static lw_status check_points(const double *i_a, const double *v, size_t n, size
 static lw_status lsq_with_constant(const double *const *cols, size_t p, const double *y,
                                    size_t n, lw_lsq *out, lw_error *err)
 {
-    double *one = malloc(n * sizeof *one);
+    double *one = lw_malloc(n * sizeof *one);
     if (!one)
         return lw_error_set(err, LW_ENOMEM, NULL, 0, "out of memory");
     for (size_t k = 0; k < n; k++)
@@ -196,7 +197,7 @@ lw_status lw_fit_led_shockley(const double *i_a, const double *v, size_t n, doub
     lw_status st = check_points(i_a, v, n, 4, err);
     if (st != LW_OK)
         return st;
-    double *ln_i = malloc(n * sizeof *ln_i);
+    double *ln_i = lw_malloc(n * sizeof *ln_i);
     if (!ln_i)
         return lw_error_set(err, LW_ENOMEM, NULL, 0, "out of memory");
     for (size_t k = 0; k < n; k++)
@@ -229,7 +230,7 @@ lw_status lw_fit_flux(const double *i_a, const double *flux, size_t n, lw_flux_f
     lw_status st = check_points(i_a, flux, n, 3, err);
     if (st != LW_OK)
         return st;
-    double *buf = malloc(2 * n * sizeof *buf);
+    double *buf = lw_malloc(2 * n * sizeof *buf);
     if (!buf)
         return lw_error_set(err, LW_ENOMEM, NULL, 0, "out of memory");
     double log_ref = 0;

@@ -3,23 +3,84 @@
  * (see inifile.h).
  */
 #include "inifile.h"
+#include "alloc.h"
 
 #include <ctype.h>
 #include <errno.h>
 #include <ini.h>
 #include <math.h>
+#include <stdarg.h>
+#include <stdint.h>
 #include <stdio.h>
 #include <stdlib.h>
 #include <string.h>
+#include <sys/stat.h>
+
+/* Duplicate (section, key) detection in O(1) per entry: open addressing
+ * on an FNV-1a hash of "section\0key", the table kept at most half full. */
+static uint64_t entry_hash(const char *section, const char *key)
+{
+    uint64_t h = 1469598103934665603u;
+    for (const char *p = section; *p; p++)
+        h = (h ^ (unsigned char)*p) * 1099511628211u;
+    h = (h ^ 0xFFu) * 1099511628211u;
+    for (const char *p = key; *p; p++)
+        h = (h ^ (unsigned char)*p) * 1099511628211u;
+    return h;
+}
 
 struct reader {
     FILE *fp;
     int line;
-    bool too_long;
     lw_ini *ini;
-    lw_error *err;
-    bool oom;
+    lw_error *err;          /* the first error of reading, or of the check */
+    lw_ini_check check;
+    void *check_ctx;
+    size_t *slots;          /* hash table of entry index + 1 (0: empty) */
+    size_t nslots;
+    char *buf;              /* getline buffer */
+    size_t bufcap;
+    long bytes;
+    bool stop;              /* an error is recorded: feed inih no more lines */
 };
+
+static bool fail(struct reader *r, lw_status code, const char *fmt, ...)
+#if defined(__GNUC__)
+    __attribute__((format(printf, 3, 4)))
+#endif
+    ;
+
+static bool fail(struct reader *r, lw_status code, const char *fmt, ...)
+{
+    va_list ap;
+    va_start(ap, fmt);
+    lw_error_vset(r->err, code, r->ini->path, r->line, fmt, ap);
+    va_end(ap);
+    r->stop = true;
+    return false;
+}
+
+/* Check one raw line: no NUL byte, no control character but tab, valid
+ * UTF-8, shorter than LW_INI_LINE_MAX. */
+static bool line_ok(struct reader *r, const char *s, size_t n)
+{
+    if (memchr(s, '\0', n))
+        return fail(r, LW_EINPUT, "a NUL byte in the line: this is not a text file");
+    size_t len = n;
+    while (len > 0 && (s[len - 1] == '\n' || s[len - 1] == '\r'))
+        len--;
+    if (len >= LW_INI_LINE_MAX - 1)
+        return fail(r, LW_EINPUT, "line is too long (at most %d characters)",
+                    LW_INI_LINE_MAX - 2);
+    for (size_t i = 0; i < len; i++)
+        if ((unsigned char)s[i] < 0x20 && s[i] != '\t')
+            return fail(r, LW_EINPUT, "control character \\x%02X in the line",
+                        (unsigned char)s[i]);
+    size_t at;
+    if (!lw_utf8_valid(s, len, &at))
+        return fail(r, LW_EINPUT, "invalid UTF-8 at column %zu", at + 1);
+    return true;
+}
 
 static void note_section(struct reader *r, const char *text)
 {
@@ -33,17 +94,6 @@ static void note_section(struct reader *r, const char *text)
     if (!end)
         return; /* inih reports the malformed header */
     lw_ini *ini = r->ini;
-    if (ini->n_sections == ini->cap_sections) {
-        size_t cap = ini->cap_sections ? 2 * ini->cap_sections : 16;
-        lw_ini_section *s = realloc(ini->sections, cap * sizeof *s);
-        if (!s) {
-            r->oom = true;
-            return;
-        }
-        ini->sections = s;
-        ini->cap_sections = cap;
-    }
-    lw_ini_section *s = &ini->sections[ini->n_sections++];
     size_t len = (size_t)(end - p);
     while (len > 0 && isspace((unsigned char)p[len - 1]))
         len--;
@@ -51,100 +101,192 @@ static void note_section(struct reader *r, const char *text)
         p++;
         len--;
     }
-    if (len >= sizeof s->name)
-        len = sizeof s->name - 1;
+    if (len >= LW_INI_NAME_MAX) {
+        fail(r, LW_EINPUT, "section name too long (at most %d characters)", LW_INI_NAME_MAX - 1);
+        return;
+    }
+    if (ini->n_sections == LW_INI_SECTIONS_MAX) {
+        fail(r, LW_EINPUT, "more than %d sections", LW_INI_SECTIONS_MAX);
+        return;
+    }
+    if (ini->n_sections == ini->cap_sections) {
+        size_t cap = ini->cap_sections ? 2 * ini->cap_sections : 16;
+        lw_ini_section *s = lw_realloc(ini->sections, cap * sizeof *s);
+        if (!s) {
+            fail(r, LW_ENOMEM, "out of memory");
+            return;
+        }
+        ini->sections = s;
+        ini->cap_sections = cap;
+    }
+    lw_ini_section *s = &ini->sections[ini->n_sections++];
     memcpy(s->name, p, len);
     s->name[len] = '\0';
     s->line = r->line;
 }
 
-/* fgets-style reader for inih: counts lines and refuses over-long ones. */
+/* fgets-style reader for inih: counts lines, checks each, and stops the
+ * parse (end of input) once an error is recorded. */
 static char *read_line(char *str, int num, void *stream)
 {
     struct reader *r = stream;
-    if (r->too_long || r->oom)
+    if (r->stop)
         return NULL;
-    if (!fgets(str, num, r->fp))
+    ssize_t got = getline(&r->buf, &r->bufcap, r->fp);
+    if (got < 0)
         return NULL;
     r->line++;
-    size_t len = strlen(str);
-    if (len > 0 && str[len - 1] != '\n' && !feof(r->fp)) {
-        r->too_long = true;
+    r->bytes += got;
+    if (r->bytes > LW_INI_BYTES_MAX) {
+        fail(r, LW_EINPUT, "the file is larger than %d bytes", LW_INI_BYTES_MAX);
         return NULL;
     }
+    if (!line_ok(r, r->buf, (size_t)got) || got >= num)
+        return NULL;
+    memcpy(str, r->buf, (size_t)got + 1);
     note_section(r, str);
-    return str;
+    return r->stop ? NULL : str;
+}
+
+static bool grow_slots(struct reader *r)
+{
+    size_t n = r->nslots ? 2 * r->nslots : 64;
+    size_t *slots = lw_calloc(n, sizeof *slots);
+    if (!slots)
+        return false;
+    for (size_t i = 0; i < r->ini->n; i++) {
+        const lw_ini_entry *e = &r->ini->entries[i];
+        size_t h = (size_t)entry_hash(e->section, e->key) & (n - 1);
+        while (slots[h])
+            h = (h + 1) & (n - 1);
+        slots[h] = i + 1;
+    }
+    free(r->slots);
+    r->slots = slots;
+    r->nslots = n;
+    return true;
 }
 
 static int on_value(void *user, const char *section, const char *name, const char *value)
 {
     struct reader *r = user;
     lw_ini *ini = r->ini;
+    if (r->stop)
+        return 0;
     if (!section[0]) {
-        lw_error_set(r->err, LW_EINPUT, ini->path, r->line,
-                     "key '%s' comes before any [section]", name);
+        fail(r, LW_EINPUT, "key '%s' comes before any [section]", name);
         return 0;
     }
-    for (size_t i = 0; i < ini->n; i++) {
-        if (!strcmp(ini->entries[i].section, section) && !strcmp(ini->entries[i].key, name)) {
+    if (strlen(section) >= LW_INI_NAME_MAX || strlen(name) >= LW_INI_NAME_MAX) {
+        fail(r, LW_EINPUT, "section or key name too long (at most %d characters)",
+             LW_INI_NAME_MAX - 1);
+        return 0;
+    }
+    if (r->check && r->check(r->check_ctx, section, name, ini->path, r->line, r->err) != LW_OK) {
+        r->stop = true;
+        return 0;
+    }
+    if (2 * (ini->n + 1) > r->nslots && !grow_slots(r)) {
+        fail(r, LW_ENOMEM, "out of memory");
+        return 0;
+    }
+    size_t h = (size_t)entry_hash(section, name) & (r->nslots - 1);
+    for (; r->slots[h]; h = (h + 1) & (r->nslots - 1)) {
+        const lw_ini_entry *e = &ini->entries[r->slots[h] - 1];
+        if (!strcmp(e->section, section) && !strcmp(e->key, name)) {
             lw_error_set(r->err, LW_EINPUT, ini->path, r->line,
                          "[%s] %s is given twice (first on line %d); an indented line also "
                          "continues the previous value",
-                         section, name, ini->entries[i].line);
+                         section, name, e->line);
+            r->stop = true;
             return 0;
         }
     }
-    if (strlen(section) >= LW_INI_NAME_MAX || strlen(name) >= LW_INI_NAME_MAX) {
-        lw_error_set(r->err, LW_EINPUT, ini->path, r->line, "section or key name too long");
+    if (ini->n == LW_INI_ENTRIES_MAX) {
+        fail(r, LW_EINPUT, "more than %d keys", LW_INI_ENTRIES_MAX);
         return 0;
     }
     if (ini->n == ini->cap) {
         size_t cap = ini->cap ? 2 * ini->cap : 32;
-        lw_ini_entry *e = realloc(ini->entries, cap * sizeof *e);
+        lw_ini_entry *e = lw_realloc(ini->entries, cap * sizeof *e);
         if (!e) {
-            r->oom = true;
+            fail(r, LW_ENOMEM, "out of memory");
             return 0;
         }
         ini->entries = e;
         ini->cap = cap;
     }
+    r->slots[h] = ini->n + 1;
     lw_ini_entry *e = &ini->entries[ini->n++];
     lw_strlcpy(e->section, section, sizeof e->section);
     lw_strlcpy(e->key, name, sizeof e->key);
-    lw_strlcpy(e->value, value, sizeof e->value);
+    lw_strlcpy(e->value, value, sizeof e->value); /* lines are shorter than the value field */
     e->line = r->line;
     return 1;
 }
 
-lw_status lw_ini_read(const char *path, lw_ini *ini, lw_error *err)
+lw_status lw_open_regular(const char *path, const char *mode, FILE **fp, const char *what_file,
+                          int what_line, const char *what, lw_error *err)
+{
+    *fp = NULL;
+    struct stat sb;
+    const char *at = what_file ? what_file : path;
+    int line = what_file ? what_line : 0;
+    /* "[cell] curve: cannot open 'x.csv': ..." for a file named by a key;
+     * "cannot open: ..." for the path itself, which the message names */
+    char label[1024] = "", quoted[600] = "";
+    if (what_file) {
+        snprintf(label, sizeof label, "%s: ", what ? what : "file");
+        snprintf(quoted, sizeof quoted, " '%s'", path);
+    }
+    if (stat(path, &sb) != 0)
+        return lw_error_set(err, LW_EINPUT, at, line, "%scannot open%s: %s", label, quoted,
+                            strerror(errno));
+    if (S_ISDIR(sb.st_mode))
+        return lw_error_set(err, LW_EINPUT, at, line, "%scannot open%s: it is a folder", label,
+                            quoted);
+    if (!S_ISREG(sb.st_mode))
+        return lw_error_set(err, LW_EINPUT, at, line,
+                            "%scannot open%s: not a regular file (a device, pipe or socket)",
+                            label, quoted);
+    FILE *f = fopen(path, mode);
+    if (!f)
+        return lw_error_set(err, LW_EINPUT, at, line, "%scannot open%s: %s", label, quoted,
+                            strerror(errno));
+    *fp = f;
+    return LW_OK;
+}
+
+lw_status lw_ini_read(const char *path, lw_ini *ini, lw_ini_check check, void *check_ctx,
+                      lw_error *err)
 {
     memset(ini, 0, sizeof *ini);
-    lw_strlcpy(ini->path, path, sizeof ini->path);
-    FILE *fp = fopen(path, "r");
-    if (!fp)
-        return lw_error_set(err, LW_EINPUT, path, 0, "cannot open: %s", strerror(errno));
+    if (!lw_strlcpy(ini->path, path, sizeof ini->path))
+        return lw_error_set(err, LW_EINPUT, NULL, 0, "the path '%.60s...' is too long", path);
+    FILE *fp;
+    lw_status st = lw_open_regular(path, "r", &fp, NULL, 0, NULL, err);
+    if (st != LW_OK)
+        return st;
     lw_error local;
     lw_error_clear(&local);
-    struct reader r = {fp, 0, false, ini, &local, false};
+    struct reader r = {.fp = fp, .ini = ini, .err = &local, .check = check,
+                       .check_ctx = check_ctx};
     int rc = ini_parse_stream(read_line, &r, on_value, &r);
     bool read_error = ferror(fp);
     fclose(fp);
-    lw_status st = LW_OK;
-    if (r.oom)
-        st = lw_error_set(err, LW_ENOMEM, path, r.line, "out of memory");
-    else if (r.too_long)
-        st = lw_error_set(err, LW_EINPUT, path, r.line,
-                          "line is too long (at most %d characters)", LW_INI_LINE_MAX - 2);
-    else if (rc > 0 && (local.code == LW_OK || rc < local.line))
-        st = lw_error_set(err, LW_EINPUT, path, rc, "expected '[section]' or 'key = value'");
-    else if (local.code != LW_OK) {
+    free(r.slots);
+    free(r.buf);
+    if (local.code != LW_OK && (rc <= 0 || local.line <= rc)) {
         if (err && err->code == LW_OK)
             *err = local;
         st = local.code;
-    } else if (read_error)
+    } else if (rc > 0) {
+        st = lw_error_set(err, LW_EINPUT, path, rc, "expected '[section]' or 'key = value'");
+    } else if (read_error) {
         st = lw_error_set(err, LW_EIO, path, 0, "read error");
-    else if (rc < 0)
-        st = lw_error_set(err, LW_EIO, path, 0, "cannot read");
+    } else if (rc < 0) {
+        st = lw_error_set(err, LW_ENOMEM, path, 0, "out of memory");
+    }
     if (st != LW_OK)
         lw_ini_clear(ini);
     return st;
@@ -311,21 +453,23 @@ static bool parse_bool(const char *s, bool *out)
 lw_status lw_key_apply(const lw_keydef *d, void *target, const char *value, const char *file,
                        int line, lw_error *err)
 {
-    char *at = (char *)target + d->offset;
+    char *dst = (char *)target + d->offset;
     switch (d->type) {
     case LW_K_NUM: {
         double v;
         if (!lw_parse_number(value, &v) || !in_range(d, v))
             return range_error(d, value, file, line, err);
+        if (v == 0.0)
+            v = 0.0; /* no negative zero: "-0" is 0 */
         double si = v * d->scale;
-        memcpy(at, &si, sizeof si);
+        memcpy(dst, &si, sizeof si);
         return LW_OK;
     }
     case LW_K_INT: {
         int v;
         if (!lw_parse_int(value, &v) || !in_range(d, v))
             return range_error(d, value, file, line, err);
-        memcpy(at, &v, sizeof v);
+        memcpy(dst, &v, sizeof v);
         return LW_OK;
     }
     case LW_K_BOOL: {
@@ -333,13 +477,13 @@ lw_status lw_key_apply(const lw_keydef *d, void *target, const char *value, cons
         if (!parse_bool(value, &v))
             return lw_error_set(err, LW_EINPUT, file, line,
                                 "[%s] %s = %s: expected yes or no", d->section, d->name, value);
-        memcpy(at, &v, sizeof v);
+        memcpy(dst, &v, sizeof v);
         return LW_OK;
     }
     case LW_K_CHOICE: {
         for (int i = 0; d->choices[i]; i++) {
             if (!strcmp(d->choices[i], value)) {
-                memcpy(at, &i, sizeof i);
+                memcpy(dst, &i, sizeof i);
                 return LW_OK;
             }
         }
@@ -352,14 +496,25 @@ lw_status lw_key_apply(const lw_keydef *d, void *target, const char *value, cons
                             d->section, d->name, value, list);
     }
     case LW_K_TEXT:
-    default:
+    default: {
+        size_t len = strlen(value), at;
         if (!value[0])
             return lw_error_set(err, LW_EINPUT, file, line, "[%s] %s is empty", d->section,
                                 d->name);
-        if (!lw_strlcpy(at, value, d->size))
+        for (size_t i = 0; i < len; i++)
+            if ((unsigned char)value[i] < 0x20 || value[i] == 0x7F)
+                return lw_error_set(err, LW_EINPUT, file, line,
+                                    "[%s] %s: control character \\x%02X in the text",
+                                    d->section, d->name, (unsigned char)value[i]);
+        if (!lw_utf8_valid(value, len, &at))
+            return lw_error_set(err, LW_EINPUT, file, line,
+                                "[%s] %s: invalid UTF-8 at byte %zu", d->section, d->name,
+                                at + 1);
+        if (!lw_strlcpy(dst, value, d->size))
             return lw_error_set(err, LW_EINPUT, file, line, "[%s] %s is too long (at most %zu)",
                                 d->section, d->name, d->size - 1);
         return LW_OK;
+    }
     }
 }
 

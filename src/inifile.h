@@ -9,19 +9,31 @@
  * closest known key for a misspelling.  Used by the light profiles
  * (profile.c) and the cell files (cellfile.c).
  *
- * Refused, each with file:line: lines of 200 bytes or more (inih would split
- * them silently), lines that are neither `[section]` nor `key = value`,
- * repeated keys within a section (this also catches indented lines, which
- * inih would join to the previous value), and keys before any section.
+ * Refused, each with file:line: a path that is not a regular file (a
+ * folder, device, pipe), a file over LW_INI_BYTES_MAX, lines of 200 bytes or
+ * more (inih would split them silently), a NUL byte, a control character
+ * other than tab, invalid UTF-8, lines that are neither `[section]` nor
+ * `key = value`, repeated keys within a section (this also catches indented
+ * lines, which inih would join to the previous value; found in O(1) by a
+ * hash), keys before any section, more than LW_INI_ENTRIES_MAX keys or
+ * LW_INI_SECTIONS_MAX sections, names of 64 bytes or more.  Reading stops at
+ * the first error, so a misspelt key on line 2 is reported at once.
  */
 #ifndef LW_INIFILE_H
 #define LW_INIFILE_H
 
+#include <stdbool.h>
 #include <stddef.h>
+#include <stdio.h>
 #include "error.h"
 
 #define LW_INI_LINE_MAX 200
 #define LW_INI_NAME_MAX 64
+/* Limits of one INI file: far above any real profile or cell file (the
+ * bundled ones are under 2 kB, 60 keys, 10 sections). */
+#define LW_INI_BYTES_MAX (1024 * 1024)
+#define LW_INI_ENTRIES_MAX 10000
+#define LW_INI_SECTIONS_MAX 1000
 
 typedef struct lw_ini_entry {
     char section[LW_INI_NAME_MAX];
@@ -43,8 +55,23 @@ typedef struct lw_ini {
     size_t n_sections, cap_sections;
 } lw_ini;
 
-/* Read a whole INI file.  On failure nothing is kept (*ini is empty). */
-lw_status lw_ini_read(const char *path, lw_ini *ini, lw_error *err);
+/* Called for each key as it is read (check_ctx passed through): a status
+ * other than LW_OK stops reading at that line. */
+typedef lw_status (*lw_ini_check)(void *check_ctx, const char *section, const char *key,
+                                  const char *file, int line, lw_error *err);
+
+/* Read a whole INI file; `check` may be NULL.  On failure nothing is kept
+ * (*ini is empty). */
+lw_status lw_ini_read(const char *path, lw_ini *ini, lw_ini_check check, void *check_ctx,
+                      lw_error *err);
+
+/* Open a regular file for reading; a folder, device, pipe or socket is
+ * refused.  Errors name what_file:what_line and `what` ("[cell] curve") when
+ * what_file is given (the key that named the file), else the path. */
+lw_status lw_open_regular(const char *path, const char *mode, FILE **fp, const char *what_file,
+                          int what_line, const char *what, lw_error *err);
+
+
 void lw_ini_clear(lw_ini *ini);
 /* Line of the header of section `name`, 0 if absent. */
 int lw_ini_section_line(const lw_ini *ini, const char *name);

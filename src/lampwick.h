@@ -5,7 +5,8 @@
  * light output falls as the cells discharge.  Include this one header; it
  * brings in every module a user needs:
  *
- *   error.h     lw_error, status codes, strict number parsing
+ *   alloc.h     allocation wrappers with a failure hook for tests
+ *   error.h     lw_error, status codes, the number grammar
  *   table.h     monotone interpolation tables
  *   roots.h     Brent's root finder, Wright omega function
  *   cell.h      cell model (OCV and R against depth, Peukert's law, temperature)
@@ -38,6 +39,7 @@
 #ifndef LAMPWICK_H
 #define LAMPWICK_H
 
+#include "alloc.h"
 #include "error.h"
 #include "table.h"
 #include "roots.h"

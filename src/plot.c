@@ -11,6 +11,7 @@
 #include <stdlib.h>
 #include <string.h>
 #include "report.h"
+#include "alloc.h"
 
 static const char *const palette[] = {"#1b6f8a", "#c4541b", "#5a7d2a", "#8a3f86",
                                       "#b08a00", "#3a3a9c", "#9c3a3a", "#2f8f6f"};
@@ -62,9 +63,27 @@ static void fmt_tick(char *buf, size_t size, double v)
         snprintf(buf, size, "%.10g", v);
 }
 
+/* Text for an XML document: markup characters escaped; characters XML 1.0
+ * does not allow (C0 controls but tab, newline and return) and bytes of
+ * invalid UTF-8 become U+FFFD, so the SVG is always well formed. */
 static void xml_text(FILE *fp, const char *s)
 {
     for (; s && *s; s++) {
+        unsigned char c = (unsigned char)*s;
+        if (c >= 0x80) {
+            size_t n = strlen(s), len = (c >> 5) == 6 ? 2 : (c >> 4) == 14 ? 3 : (c >> 3) == 30 ? 4 : 0;
+            if (len && len <= n && lw_utf8_valid(s, len, NULL)) {
+                fwrite(s, 1, len, fp);
+                s += len - 1;
+            } else {
+                fputs("\xEF\xBF\xBD", fp);
+            }
+            continue;
+        }
+        if (c < 0x20 && c != '\t' && c != '\n' && c != '\r') {
+            fputs("\xEF\xBF\xBD", fp);
+            continue;
+        }
         switch (*s) {
         case '<':
             fputs("&lt;", fp);
@@ -381,7 +400,7 @@ lw_status lw_plot_run(FILE *fp, const char *title, const lw_light *light, const 
                       const lw_trace *trace, lw_error *err)
 {
     size_t n = trace->n;
-    double *buf = malloc(4 * (n ? n : 1) * sizeof *buf);
+    double *buf = lw_malloc(4 * (n ? n : 1) * sizeof *buf);
     if (!buf)
         return lw_error_set(err, LW_ENOMEM, NULL, 0, "out of memory for the plot");
     double *t = buf, *pct = buf + n, *vload = buf + 2 * n, *vocv = buf + 3 * n;
@@ -438,7 +457,7 @@ lw_status lw_plot_led_fit(FILE *fp, const double *i_a, const double *v, size_t n
                           const lw_led_fit *lin, const lw_led_fit *sh, lw_error *err)
 {
     size_t nc = 200;
-    double *b = malloc((3 * n + 4 * nc) * sizeof *b);
+    double *b = lw_malloc((3 * n + 4 * nc) * sizeof *b);
     if (!b)
         return lw_error_set(err, LW_ENOMEM, NULL, 0, "out of memory");
     double *ima = b, *rl = b + n, *rs = b + 2 * n, *cx = b + 3 * n, *cl = cx + nc,

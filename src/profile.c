@@ -13,6 +13,7 @@
 #include <stdlib.h>
 #include <string.h>
 #include "csvio.h"
+#include "alloc.h"
 
 #define PK(sec, name_, type_, field_, scale_, min_, max_, flags_, def_, help_)                \
     {sec, name_, type_, offsetof(lw_profile, field_), 0, scale_, min_, max_, flags_, NULL,    \
@@ -119,14 +120,32 @@ static bool given(const lw_profile *p, const char *section, const char *name)
     return d && p->key_origin[key_index(d)] != LW_FROM_DEFAULT;
 }
 
+/* Where to point a message about a key's value: the option that set it, or
+ * the file and its line. */
+static void where_of(const lw_profile *p, const char *section, const char *name,
+                     const char **file, int *line);
+
 /* Where to point a message about a key: its own line, else its section's. */
 static int line_of(const lw_profile *p, const char *section, const char *name)
 {
     const lw_keydef *d = lw_key_find(lw_profile_keys, lw_profile_nkeys, section, name);
     if (d && p->key_line[key_index(d)] > 0)
         return p->key_line[key_index(d)];
-    int l = lw_ini_section_line(&p->ini, section);
+    int l = lw_ini_section_line(p->ini, section);
     return l > 0 ? l : 1;
+}
+
+static void where_of(const lw_profile *p, const char *section, const char *name,
+                     const char **file, int *line)
+{
+    const lw_keydef *d = lw_key_find(lw_profile_keys, lw_profile_nkeys, section, name);
+    if (d && p->key_origin[key_index(d)] == LW_FROM_OPTION && p->key_option[key_index(d)][0]) {
+        *file = p->key_option[key_index(d)];
+        *line = 0;
+        return;
+    }
+    *file = p->path;
+    *line = line_of(p, section, name);
 }
 
 static bool split_dotted(const char *dotted, char *section, size_t ss, char *key, size_t ks)
@@ -155,6 +174,8 @@ lw_status lw_profile_set(lw_profile *prof, const char *dotted_key, const char *v
         return st;
     prof->key_origin[key_index(d)] = (unsigned char)origin;
     prof->key_line[key_index(d)] = origin == LW_FROM_OPTION ? 0 : line;
+    if (origin == LW_FROM_OPTION)
+        lw_strlcpy(prof->key_option[key_index(d)], file ? file : "", 48);
     return LW_OK;
 }
 
@@ -188,8 +209,8 @@ size_t lw_profile_mode_count(const lw_profile *prof)
 {
     size_t n = 0;
     const char *name;
-    for (size_t i = 0; prof->ini.sections && i < prof->ini.n_sections; i++)
-        if (is_mode_section(prof->ini.sections[i].name, &name))
+    for (size_t i = 0; prof->ini->sections && i < prof->ini->n_sections; i++)
+        if (is_mode_section(prof->ini->sections[i].name, &name))
             n++;
     return n;
 }
@@ -197,8 +218,8 @@ size_t lw_profile_mode_count(const lw_profile *prof)
 const char *lw_profile_mode_name(const lw_profile *prof, size_t k)
 {
     const char *name;
-    for (size_t i = 0; prof->ini.sections && i < prof->ini.n_sections; i++)
-        if (is_mode_section(prof->ini.sections[i].name, &name) && k-- == 0)
+    for (size_t i = 0; prof->ini->sections && i < prof->ini->n_sections; i++)
+        if (is_mode_section(prof->ini->sections[i].name, &name) && k-- == 0)
             return name;
     return NULL;
 }
@@ -207,8 +228,8 @@ lw_status lw_profile_apply_mode(lw_profile *prof, const char *name, lw_error *er
 {
     bool found = false;
     const char *mname;
-    for (size_t i = 0; prof->ini.sections && i < prof->ini.n_sections && !found; i++)
-        found = is_mode_section(prof->ini.sections[i].name, &mname) && !strcmp(mname, name);
+    for (size_t i = 0; prof->ini->sections && i < prof->ini->n_sections && !found; i++)
+        found = is_mode_section(prof->ini->sections[i].name, &mname) && !strcmp(mname, name);
     if (!found) {
         char list[512] = "";
         for (size_t i = 0; i < lw_profile_mode_count(prof); i++) {
@@ -218,8 +239,8 @@ lw_status lw_profile_apply_mode(lw_profile *prof, const char *name, lw_error *er
         return lw_error_set(err, LW_EINPUT, prof->path, 0, "no [mode %s]; the modes are: %s",
                             name, list[0] ? list : "(none)");
     }
-    for (size_t i = 0; i < prof->ini.n; i++) {
-        const lw_ini_entry *e = &prof->ini.entries[i];
+    for (size_t i = 0; i < prof->ini->n; i++) {
+        const lw_ini_entry *e = &prof->ini->entries[i];
         if (!is_mode_section(e->section, &mname) || strcmp(mname, name) != 0)
             continue;
         lw_status st = lw_profile_set(prof, e->key, e->value, LW_FROM_MODE, prof->path, e->line,
@@ -241,9 +262,12 @@ static lw_status load_xy(const lw_profile *p, const char *section, const char *k
                          double yscale, unsigned flags, lw_table **out, lw_error *err)
 {
     char path[LW_PATH_MAX];
-    lw_path_join(path, sizeof path, p->dir, rel);
     char what[2 * LW_INI_NAME_MAX + 4];
     snprintf(what, sizeof what, "[%s] %s", section, key);
+    if (!lw_path_join(path, sizeof path, p->dir, rel))
+        return lw_error_set(err, LW_EINPUT, p->path, line_of(p, section, key),
+                            "%s: the path is too long (at most %d bytes)", what,
+                            LW_PATH_MAX - 1);
     lw_status st = lw_check_readable(path, p->path, line_of(p, section, key), what, err);
     if (st != LW_OK)
         return st;
@@ -254,7 +278,7 @@ static lw_status load_xy(const lw_profile *p, const char *section, const char *k
     const char *cols[] = {xcol, ycol, NULL};
     st = lw_csv_expect(&csv, cols, NULL, err);
     size_t n = csv.nrow, off = 0;
-    double *x = st == LW_OK ? malloc(2 * (n + 1) * sizeof *x) : NULL;
+    double *x = st == LW_OK ? lw_malloc(2 * (n + 1) * sizeof *x) : NULL;
     if (!x) {
         lw_csv_clear(&csv);
         return st != LW_OK ? st : lw_error_set(err, LW_ENOMEM, path, 0, "out of memory");
@@ -414,11 +438,17 @@ static lw_status load_cell(lw_profile *p, lw_error *err)
     char path[LW_PATH_MAX];
     lw_error local;
     lw_error_clear(&local);
+    const char *file;
+    int line;
+    where_of(p, "pack", "cell", &file, &line);
     if (lw_cell_find(p->cell_ref, p->dir, &p->search, path, sizeof path, &local) != LW_OK)
-        return lw_error_set(err, LW_EINPUT, p->path, line_of(p, "pack", "cell"), "[pack] cell: %s",
-                            local.msg);
+        return lw_error_set(err, LW_EINPUT, file, line, "[pack] cell: %s", local.msg);
     if (!strcmp(path, p->cell_path) && p->light.pack.cell.ocv)
         return LW_OK;
+    if (!lw_cell_is_cell_file(path))
+        return lw_error_set(err, LW_EINPUT, file, line,
+                            "[pack] cell: '%s' is not a cell file (it has no [cell] section)",
+                            path);
     lw_cell cell;
     lw_status st = lw_cell_load(path, &cell, err);
     if (st != LW_OK)
@@ -447,6 +477,16 @@ lw_status lw_profile_resolve(lw_profile *p, lw_error *err)
     lw_light *l = &p->light;
     l->led.v_scale = 1.0;
     l->cutoff.cell_v = isnan(p->cutoff_cell_v) ? l->pack.cell.cutoff_v : p->cutoff_cell_v;
+    if (!(l->cutoff.cell_v < l->pack.cell.ocv->y[0])) {
+        /* the same rule as a cell file's cutoff_v */
+        const char *file;
+        int line;
+        where_of(p, "cutoff", "cell_v", &file, &line);
+        return lw_error_set(err, LW_EINPUT, file, line,
+                            "[cutoff] cell_v = %g is not below the fresh open-circuit voltage "
+                            "%g V of %s",
+                            l->cutoff.cell_v, l->pack.cell.ocv->y[0], l->pack.cell.name);
+    }
     if (given(p, "optics", "beam_angle_deg") && given(p, "optics", "peak_cd_per_lm"))
         return lw_error_set(err, LW_EINPUT, p->path, line_of(p, "optics", "peak_cd_per_lm"),
                             "[optics] give beam_angle_deg or peak_cd_per_lm, not both");
@@ -461,8 +501,8 @@ lw_status lw_profile_resolve(lw_profile *p, lw_error *err)
 static lw_status apply_file(lw_profile *p, lw_error *err)
 {
     const char *mname;
-    for (size_t i = 0; i < p->ini.n; i++) {
-        const lw_ini_entry *e = &p->ini.entries[i];
+    for (size_t i = 0; i < p->ini->n; i++) {
+        const lw_ini_entry *e = &p->ini->entries[i];
         if (is_mode_section(e->section, &mname))
             continue;
         const lw_keydef *d = lw_key_find(lw_profile_keys, lw_profile_nkeys, e->section, e->key);
@@ -482,19 +522,19 @@ static lw_status apply_file(lw_profile *p, lw_error *err)
  * mode is reported with its line even when it is not used. */
 static lw_status check_modes(const lw_profile *p, lw_error *err)
 {
-    for (size_t i = 0; p->ini.sections && i < p->ini.n_sections; i++) {
+    for (size_t i = 0; p->ini->sections && i < p->ini->n_sections; i++) {
         const char *mname;
-        const char *sec = p->ini.sections[i].name;
+        const char *sec = p->ini->sections[i].name;
         if (strncmp(sec, "mode", 4) == 0 && !is_mode_section(sec, &mname))
-            return lw_error_set(err, LW_EINPUT, p->path, p->ini.sections[i].line,
+            return lw_error_set(err, LW_EINPUT, p->path, p->ini->sections[i].line,
                                 "a mode section needs a name: [mode NAME]");
         if (!is_mode_section(sec, &mname))
             continue;
         for (size_t k = 0; k < i; k++)
-            if (!strcmp(p->ini.sections[k].name, sec))
-                return lw_error_set(err, LW_EINPUT, p->path, p->ini.sections[i].line,
+            if (!strcmp(p->ini->sections[k].name, sec))
+                return lw_error_set(err, LW_EINPUT, p->path, p->ini->sections[i].line,
                                     "[%s] appears twice (first on line %d)", sec,
-                                    p->ini.sections[k].line);
+                                    p->ini->sections[k].line);
         lw_profile copy;
         lw_status st = lw_profile_copy(&copy, p, err);
         if (st == LW_OK)
@@ -508,18 +548,51 @@ static lw_status check_modes(const lw_profile *p, lw_error *err)
     return LW_OK;
 }
 
+/* Each key as the file is read: a known key of a known section, or in a
+ * [mode NAME] section a known "section.key"; the first unknown one stops
+ * the reading at its line. */
+static lw_status profile_check(void *ctx, const char *section, const char *key,
+                               const char *file, int line, lw_error *err)
+{
+    (void)ctx;
+    const char *mname;
+    char sec[LW_INI_NAME_MAX], k[LW_INI_NAME_MAX];
+    if (is_mode_section(section, &mname)) {
+        if (!split_dotted(key, sec, sizeof sec, k, sizeof k))
+            return lw_error_set(err, LW_EINPUT, file, line,
+                                "[%s] '%s': expected section.key (for example "
+                                "drive.resistor_ohm): a mode holds overrides",
+                                section, key);
+        section = sec;
+        key = k;
+    }
+    if (lw_key_find(lw_profile_keys, lw_profile_nkeys, section, key))
+        return LW_OK;
+    return lw_key_unknown(lw_profile_keys, lw_profile_nkeys, section, key, file, line, err);
+}
+
 lw_status lw_profile_load(const char *path, const lw_search *search, lw_profile *p,
                           lw_error *err)
 {
     memset(p, 0, sizeof *p);
-    lw_strlcpy(p->path, path, sizeof p->path);
+    if (!lw_strlcpy(p->path, path, sizeof p->path))
+        return lw_error_set(err, LW_EINPUT, NULL, 0, "the profile path is too long (at most %d "
+                                                     "bytes)",
+                            LW_PATH_MAX - 1);
     lw_path_dir(p->dir, sizeof p->dir, path);
     if (search)
         p->search = *search;
     p->cutoff_cell_v = NAN;
+    p->ini = lw_calloc(1, sizeof *p->ini);
+    if (!p->ini)
+        return lw_error_set(err, LW_ENOMEM, NULL, 0, "out of memory");
+    p->owns_ini = true;
     lw_status st = lw_key_defaults(lw_profile_keys, lw_profile_nkeys, p, err);
     if (st == LW_OK)
-        st = lw_ini_read(path, &p->ini, err);
+        st = lw_ini_read(path, p->ini, profile_check, NULL, err);
+    if (st == LW_OK && lw_profile_mode_count(p) > LW_PROFILE_MODES_MAX)
+        st = lw_error_set(err, LW_EINPUT, path, 0, "more than %d [mode] sections",
+                          LW_PROFILE_MODES_MAX);
     if (st == LW_OK)
         st = apply_file(p, err);
     if (st == LW_OK)
@@ -536,30 +609,21 @@ void lw_profile_clear(lw_profile *p)
     if (!p)
         return;
     lw_light_clear(&p->light);
-    lw_ini_clear(&p->ini);
+    if (p->owns_ini && p->ini) {
+        lw_ini_clear(p->ini);
+        free(p->ini);
+    }
+    p->ini = NULL;
+    p->owns_ini = false;
     p->cell_path[0] = '\0';
 }
 
 lw_status lw_profile_copy(lw_profile *dst, const lw_profile *src, lw_error *err)
 {
+    (void)err;
     *dst = *src;
     lw_light_copy(&dst->light, &src->light);
-    dst->ini.entries = NULL;
-    dst->ini.sections = NULL;
-    size_t ne = src->ini.n * sizeof *src->ini.entries;
-    size_t ns = src->ini.n_sections * sizeof *src->ini.sections;
-    dst->ini.entries = ne ? malloc(ne) : NULL;
-    dst->ini.sections = ns ? malloc(ns) : NULL;
-    if ((ne && !dst->ini.entries) || (ns && !dst->ini.sections)) {
-        lw_profile_clear(dst);
-        return lw_error_set(err, LW_ENOMEM, NULL, 0, "out of memory copying a profile");
-    }
-    if (ne)
-        memcpy(dst->ini.entries, src->ini.entries, ne);
-    if (ns)
-        memcpy(dst->ini.sections, src->ini.sections, ns);
-    dst->ini.cap = src->ini.n;
-    dst->ini.cap_sections = src->ini.n_sections;
+    dst->owns_ini = false; /* the file's entries are read-only: shared with the source */
     return LW_OK;
 }
 

@@ -20,6 +20,9 @@
 #include "inifile.h"
 
 #define LW_PROFILE_KEYS_MAX 64
+/* At most this many [mode NAME] sections in a profile (a real light has a
+ * handful; each is checked at load). */
+#define LW_PROFILE_MODES_MAX 256
 
 typedef enum lw_origin { LW_FROM_DEFAULT, LW_FROM_FILE, LW_FROM_MODE, LW_FROM_OPTION } lw_origin;
 
@@ -35,8 +38,11 @@ typedef struct lw_profile {
     double peak_cd_per_lm;            /* [optics]: peak intensity per lumen, 0 if not given */
     int key_line[LW_PROFILE_KEYS_MAX];
     unsigned char key_origin[LW_PROFILE_KEYS_MAX]; /* lw_origin */
+    char key_option[LW_PROFILE_KEYS_MAX][48]; /* for option values: "--set drive.x" */
     char mode[LW_NAME_MAX];           /* mode applied, "" for none */
-    lw_ini ini;                       /* the file's entries (modes are applied from it) */
+    lw_ini *ini;                      /* the file's entries (modes are applied from it);
+                                         read-only, shared by copies */
+    bool owns_ini;                    /* this profile frees ini (the loaded one) */
     lw_search search;                 /* where cell names are looked up after dir */
 } lw_profile;
 
@@ -51,7 +57,8 @@ lw_status lw_profile_load(const char *path, const lw_search *search, lw_profile 
 /* Free what the profile holds.  NULL-safe. */
 void lw_profile_clear(lw_profile *prof);
 
-/* Independent copy (tables shared by reference). */
+/* Copy (tables and the file's entries shared by reference: the source
+ * must outlive the copy).  Cannot fail today; returns LW_OK. */
 lw_status lw_profile_copy(lw_profile *dst, const lw_profile *src, lw_error *err);
 
 /* Set "section.key" to value (same checks as the file).  `file` and `line`

@@ -8,6 +8,7 @@
 #include <stdlib.h>
 #include <string.h>
 #include "csvio.h"
+#include "alloc.h"
 
 const char *const lw_caution_line =
     "Caution: estimates from typical data. Follow the cell maker's limits and the applicable "
@@ -28,10 +29,10 @@ bool lw_format_parse(const char *s, lw_format *fmt)
 
 lw_rtable *lw_rtable_new(size_t ncol, lw_error *err)
 {
-    lw_rtable *t = calloc(1, sizeof *t);
+    lw_rtable *t = lw_calloc(1, sizeof *t);
     if (t) {
-        t->head = calloc(ncol ? ncol : 1, sizeof *t->head);
-        t->group = calloc(ncol ? ncol : 1, sizeof *t->group);
+        t->head = lw_calloc(ncol ? ncol : 1, sizeof *t->head);
+        t->group = lw_calloc(ncol ? ncol : 1, sizeof *t->group);
     }
     if (!t || !t->head || !t->group) {
         if (t) {
@@ -71,7 +72,7 @@ void lw_rtable_free(lw_rtable *t)
 
 static lw_status dup_into(char **slot, const char *text, lw_error *err)
 {
-    char *s = strdup(text ? text : "");
+    char *s = lw_strdup(text ? text : "");
     if (!s)
         return lw_error_set(err, LW_ENOMEM, NULL, 0, "out of memory for a table");
     free(*slot);
@@ -93,10 +94,10 @@ lw_status lw_rtable_add_row(lw_rtable *t, size_t *row, lw_error *err)
 {
     if (t->nrow == t->cap) {
         size_t cap = t->cap ? 2 * t->cap : 16;
-        char **c = realloc(t->cell, cap * t->ncol * sizeof *c);
+        char **c = lw_realloc(t->cell, cap * t->ncol * sizeof *c);
         if (c)
             t->cell = c;
-        char **f = c ? realloc(t->full, cap * t->ncol * sizeof *f) : NULL;
+        char **f = c ? lw_realloc(t->full, cap * t->ncol * sizeof *f) : NULL;
         if (f)
             t->full = f;
         if (!c || !f)
@@ -150,7 +151,7 @@ lw_status lw_rtable_num(lw_rtable *t, size_t row, size_t col, double v, int sig,
 
 lw_status lw_rtable_note(lw_rtable *t, const char *text, lw_error *err)
 {
-    char **n = realloc(t->notes, (t->nnotes + 1) * sizeof *n);
+    char **n = lw_realloc(t->notes, (t->nnotes + 1) * sizeof *n);
     if (!n)
         return lw_error_set(err, LW_ENOMEM, NULL, 0, "out of memory for a table");
     t->notes = n;
@@ -258,8 +259,8 @@ static void pad(FILE *fp, size_t n)
 
 static void write_text(const lw_rtable *t, FILE *fp)
 {
-    size_t *w = calloc(t->ncol, sizeof *w);
-    bool *num = calloc(t->ncol, sizeof *num);
+    size_t *w = lw_calloc(t->ncol, sizeof *w);
+    bool *num = lw_calloc(t->ncol, sizeof *num);
     if (!w || !num) {
         free(w);
         free(num);

@@ -11,6 +11,7 @@
 #include "eseries.h"
 #include "pool.h"
 #include "resistor.h"
+#include "alloc.h"
 
 typedef struct size_job {
     const lw_profile *prof;
@@ -91,7 +92,7 @@ static lw_status best_for_floor(const size_job *j, const lw_light *l, double r_s
     *r_out = NAN;
     if (st != LW_OK || !(r_hi > 0) || !isfinite(r_hi) || r_hi < r_safe)
         return st;
-    double *cand = malloc(LW_SIZE_CANDIDATES_MAX * sizeof *cand);
+    double *cand = lw_malloc(LW_SIZE_CANDIDATES_MAX * sizeof *cand);
     if (!cand)
         return lw_error_set(err, LW_ENOMEM, NULL, 0, "out of memory");
     size_t n = lw_eseries_range(j->opt->eseries, r_safe, r_hi, cand, LW_SIZE_CANDIDATES_MAX);
@@ -267,10 +268,10 @@ lw_status lw_size_packs(const lw_profile *prof, const lw_size_options *opt, lw_s
         return st;
     size_t n = ncells * (size_t)opt->max_series * (size_t)opt->max_parallel;
     size_job j = {.prof = prof, .opt = opt, .cells = cells, .design_a = p0.led_a};
-    j.rows = calloc(n ? n : 1, sizeof *j.rows);
-    j.status = calloc(n ? n : 1, sizeof *j.status);
-    j.errs = calloc(n ? n : 1, sizeof *j.errs);
-    bool *keep = calloc(n ? n : 1, sizeof *keep);
+    j.rows = lw_calloc(n ? n : 1, sizeof *j.rows);
+    j.status = lw_calloc(n ? n : 1, sizeof *j.status);
+    j.errs = lw_calloc(n ? n : 1, sizeof *j.errs);
+    bool *keep = lw_calloc(n ? n : 1, sizeof *keep);
     if (!j.rows || !j.status || !j.errs || !keep) {
         free(j.rows);
         free(j.status);

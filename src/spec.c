@@ -8,6 +8,7 @@
 #include <stdlib.h>
 #include <string.h>
 #include "photometry.h"
+#include "alloc.h"
 
 /* ---- the runs ---- */
 
@@ -28,7 +29,7 @@ lw_status lw_spec_compute(const lw_profile *prof, const char *const *cells, int 
     spec->nrows = nmodes ? nmodes : 1;
     spec->optics = prof->beam_angle_deg > 0 || prof->peak_cd_per_lm > 0;
     size_t n = spec->nrows * spec->ncells;
-    spec->cases = calloc(n, sizeof *spec->cases);
+    spec->cases = lw_calloc(n, sizeof *spec->cases);
     if (!spec->cases)
         return lw_error_set(err, LW_ENOMEM, NULL, 0, "out of memory");
     for (size_t r = 0; r < spec->nrows; r++)
@@ -191,7 +192,7 @@ static lw_status aspect(const lw_spec *s, const char *label, aspect_fn f, char *
                         size_t csize, lw_rtable *t, lw_error *err)
 {
     size_t n = s->nrows * s->ncells;
-    bool *done = calloc(2 * n, sizeof *done);
+    bool *done = lw_calloc(2 * n, sizeof *done);
     if (!done)
         return lw_error_set(err, LW_ENOMEM, NULL, 0, "out of memory");
     bool *sel = done + n;

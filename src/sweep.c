@@ -8,6 +8,7 @@
 #include <stdlib.h>
 #include <string.h>
 #include "eseries.h"
+#include "alloc.h"
 
 const char *const lw_vary_forms =
     "a list (22,33,47; 2.2k, 4k7, 1M accepted), a range (1..4 or 1..4:0.5), a preferred-value "
@@ -27,7 +28,7 @@ static lw_status push(lw_vary *v, size_t *cap, const char *text, lw_error *err)
                             LW_VARY_MAX_VALUES);
     if (v->n == *cap) {
         size_t nc = *cap ? 2 * *cap : 16;
-        void *p = realloc(v->values, nc * sizeof *v->values);
+        void *p = lw_realloc(v->values, nc * sizeof *v->values);
         if (!p)
             return lw_error_set(err, LW_ENOMEM, NULL, 0, "out of memory");
         v->values = p;
@@ -275,8 +276,8 @@ lw_status lw_sweep_run(const lw_profile *base, const lw_vary *vary, size_t nvary
     if (nvary > LW_CASE_SETS)
         return lw_error_set(err, LW_EINPUT, "--vary", 0, "at most %d --vary options",
                             LW_CASE_SETS);
-    sw->index = calloc(n * (nvary ? nvary : 1), sizeof *sw->index);
-    sw->cases = calloc(n, sizeof *sw->cases);
+    sw->index = lw_calloc(n * (nvary ? nvary : 1), sizeof *sw->index);
+    sw->cases = lw_calloc(n, sizeof *sw->cases);
     if (!sw->index || !sw->cases) {
         lw_sweep_clear(sw);
         return lw_error_set(err, LW_ENOMEM, NULL, 0, "out of memory for %zu rows", n);
@@ -433,7 +434,7 @@ lw_status lw_sweep_chart(const lw_profile *prof, const lw_sweep *sw, lw_chart *c
         ngroups = LW_PLOT_SERIES_MAX;
     /* one block: x and y of every point, their labels, and the subtitle */
     size_t bytes = 2 * sw->n * sizeof(double) + sw->n * sizeof(const char *) + 256;
-    char *block = malloc(bytes);
+    char *block = lw_malloc(bytes);
     *buf = block;
     if (!block)
         return lw_error_set(err, LW_ENOMEM, NULL, 0, "out of memory");

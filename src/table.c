@@ -6,6 +6,7 @@
  * two end values whenever the data are monotone there.
  */
 #include "table.h"
+#include "alloc.h"
 
 #include <math.h>
 #include <stdlib.h>
@@ -71,8 +72,8 @@ lw_table *lw_table_new(const double *x, const double *y, size_t n, lw_error *err
             return NULL;
         }
     }
-    lw_table *t = calloc(1, sizeof *t);
-    double *buf = malloc(3 * n * sizeof *buf);
+    lw_table *t = lw_calloc(1, sizeof *t);
+    double *buf = lw_malloc(3 * n * sizeof *buf);
     if (!t || !buf) {
         free(t);
         free(buf);

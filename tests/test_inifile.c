@@ -18,7 +18,7 @@ static void reads_entries_with_lines(void **state)
     lw_ini ini;
     lw_error e;
     lw_error_clear(&e);
-    assert_int_equal(lw_ini_read(p, &ini, &e), LW_OK);
+    assert_int_equal(lw_ini_read(p, &ini, NULL, NULL, &e), LW_OK);
     assert_int_equal(ini.n, 2);
     assert_string_equal(ini.entries[0].section, "one");
     assert_int_equal(ini.entries[0].line, 3);
@@ -48,7 +48,7 @@ static void refuses_bad_lines(void **state)
         lw_ini ini;
         lw_error e;
         lw_error_clear(&e);
-        assert_int_equal(lw_ini_read(p, &ini, &e), LW_EINPUT);
+        assert_int_equal(lw_ini_read(p, &ini, NULL, NULL, &e), LW_EINPUT);
         assert_error_at(e, "bad.ini", cases[i].line, cases[i].msg);
         assert_int_equal(ini.n, 0);
     }
@@ -67,7 +67,7 @@ static void refuses_overlong_lines(void **state)
     lw_ini ini;
     lw_error e;
     lw_error_clear(&e);
-    assert_int_equal(lw_ini_read(p, &ini, &e), LW_EINPUT);
+    assert_int_equal(lw_ini_read(p, &ini, NULL, NULL, &e), LW_EINPUT);
     assert_error_at(e, "long.ini", 3, "too long");
 }
 
@@ -77,7 +77,7 @@ static void missing_file(void **state)
     lw_ini ini;
     lw_error e;
     lw_error_clear(&e);
-    assert_int_equal(lw_ini_read("/nonexistent/x.ini", &ini, &e), LW_EINPUT);
+    assert_int_equal(lw_ini_read("/nonexistent/x.ini", &ini, NULL, NULL, &e), LW_EINPUT);
     assert_non_null(strstr(e.msg, "cannot open"));
 }
 

@@ -1,0 +1,314 @@
+/*
+ * test_property.c - property tests of the engine on random valid lights at
+ * ordinary and extreme settings (fixed seed, so every run of the suite
+ * checks the same thousands of lights).  For each light: the run ends
+ * (within its work cap) with an answer, no figure is NaN, and the energy
+ * ledger balances to 1e-9 (Kirchhoff's law, charge conservation).  On
+ * families of lights the results move the way physics says: less series
+ * resistance never lengthens the run to the cells' end point; more capacity
+ * never shortens it (both compared for runs that end at the cells' end
+ * point: a light that goes dark as its LEDs stop conducting ends on a
+ * brightness tail that depends on its own reference); a higher undervoltage
+ * lockout or a larger regulator dropout never adds hours in regulation, and
+ * without a fallback level a higher lockout never lengthens the run.
+ */
+#include "testutil.h"
+#include <stdlib.h>
+#include "lampwick.h"
+
+/* splitmix64 (S. Vigna's public-domain generator): deterministic test data. */
+static uint64_t rng_state = 0x9E3779B97F4A7C15u;
+static double uni(void)
+{
+    uint64_t z = (rng_state += 0x9E3779B97F4A7C15u);
+    z = (z ^ (z >> 30)) * 0xBF58476D1CE4E5B9u;
+    z = (z ^ (z >> 27)) * 0x94D049BB133111EBu;
+    z ^= z >> 31;
+    return (double)(z >> 11) * (1.0 / 9007199254740992.0);
+}
+static double between(double a, double b) { return a + (b - a) * uni(); }
+static double log_between(double a, double b) { return a * pow(b / a, uni()); }
+static int pick(int n) { return (int)(uni() * n) % n; }
+
+static void random_cell(lw_cell *c)
+{
+    memset(c, 0, sizeof *c);
+    lw_strlcpy(c->name, "random", sizeof c->name);
+    size_t n = 2 + (size_t)pick(14);
+    double d[16], v[16], r[16];
+    double v0 = between(1.0, 4.3), v1 = v0 * between(0.3, 0.95);
+    double r0 = log_between(0.005, 20.0), rise = log_between(1.0, 20.0);
+    for (size_t i = 0; i < n; i++) {
+        double u = (double)i / (double)(n - 1);
+        d[i] = i == 0 ? 0.0 : (i == n - 1 ? 1.0 : d[i - 1] + (1.0 - d[i - 1]) * between(0.05, 0.5));
+        (void)u;
+    }
+    for (size_t i = 0; i < n; i++) {
+        double u = d[i];
+        v[i] = v0 - (v0 - v1) * pow(u, between(0.5, 4.0));
+        if (i > 0 && v[i] > v[i - 1])
+            v[i] = v[i - 1];
+        r[i] = r0 * (1.0 + (rise - 1.0) * pow(u, 3.0));
+    }
+    lw_error e;
+    lw_error_clear(&e);
+    c->ocv = lw_table_new(d, v, n, &e);
+    c->res = lw_table_new(d, r, n, &e);
+    assert_non_null(c->res);
+    c->capacity_ah = log_between(0.01, 10.0);
+    c->rated_a = c->capacity_ah / log_between(1.0, 100.0);
+    c->peukert = uni() < 0.3 ? 1.0 : between(1.0, 1.4);
+    c->max_capacity_ah = c->capacity_ah * between(1.0, 1.5);
+    c->cutoff_v = v0 * between(0.4, 0.9);
+    c->self_discharge_pct_month = uni() < 0.5 ? 0.0 : between(0.0, 10.0);
+    c->nominal_v = v0;
+}
+
+static void random_led(lw_led *l, double pack_v)
+{
+    memset(l, 0, sizeof *l);
+    l->model = (lw_led_model)pick(4);
+    l->count = 1 + pick(4);
+    l->strings = 1 + pick(4);
+    l->v_scale = 1.0;
+    double vf = pack_v / l->count * between(0.4, 1.3);
+    l->junction_c = 25;
+    l->forward_v = vf;
+    l->threshold_v = vf * between(0.6, 1.0);
+    l->slope_ohm = log_between(0.1, 100.0);
+    l->ideality = between(1.0, 8.0);
+    l->series_ohm = uni() < 0.2 ? 0.0 : log_between(0.01, 20.0);
+    /* Is from the voltage at 20 mA */
+    double vt = lw_thermal_voltage(25) * l->ideality;
+    l->saturation_a = fmax(1e-300, 0.02 / expm1(fmin(700.0, vf / vt)));
+    if (l->model == LW_LED_TABLE) {
+        double ia[40], va[40];
+        size_t n = 2 + (size_t)pick(38);
+        for (size_t k = 0; k < n; k++) {
+            ia[k] = 1e-4 * pow(1e4, (double)k / (double)(n - 1));
+            va[k] = vf * (0.8 + 0.2 * (double)k / (double)(n - 1)) + 0.5 * ia[k];
+        }
+        lw_error e;
+        lw_error_clear(&e);
+        l->iv = lw_table_new(ia, va, n, &e);
+        assert_non_null(l->iv);
+    }
+    l->flux_lm = log_between(0.01, 500.0);
+    l->flux_current_a = log_between(0.001, 1.0);
+    l->flux_exponent = between(0.5, 1.2);
+    l->max_current_a = log_between(0.001, 2.0);
+    l->forward_spread_pct = between(0, 10);
+}
+
+static void random_light(lw_light *l)
+{
+    memset(l, 0, sizeof *l);
+    lw_strlcpy(l->name, "random", sizeof l->name);
+    random_cell(&l->pack.cell);
+    l->pack.series = 1 + pick(8);
+    l->pack.parallel = 1 + pick(4);
+    l->pack.ambient_c = 20;
+    random_led(&l->led, l->pack.series * l->pack.cell.ocv->y[0]);
+    l->drive.type = (lw_drive_type)pick(3);
+    l->drive.duty_pct = uni() < 0.3 ? between(1.0, 100.0) : 100.0;
+    l->drive.tolerance_pct = 5;
+    l->drive.resistor_ohm = uni() < 0.1 ? 0.0 : log_between(0.01, 2000.0);
+    if (l->led.model == LW_LED_CONSTANT && l->drive.resistor_ohm == 0.0)
+        l->drive.resistor_ohm = 1.0;
+    if (l->drive.type == LW_DRIVE_LINEAR_CC) {
+        l->drive.resistor_ohm = uni() < 0.5 ? 0.0 : l->drive.resistor_ohm;
+        l->drive.set_a = log_between(1e-8, 1.0);
+        l->drive.dropout_v = uni() < 0.2 ? 0.0 : log_between(1e-9, 2.0);
+        if (l->led.model == LW_LED_CONSTANT && l->drive.resistor_ohm == 0.0)
+            l->drive.resistor_ohm = 1.0;
+    } else if (l->drive.type == LW_DRIVE_CONVERTER) {
+        l->drive.resistor_ohm = 0.0;
+        l->drive.set_a = log_between(1e-6, 1.0);
+        l->drive.efficiency_pct = uni() < 0.2 ? 100.0 : between(50, 100);
+        l->drive.quiescent_a = uni() < 0.3 ? 0.0 : log_between(1e-7, 1e-2);
+        l->drive.min_input_v = uni() < 0.5 ? 0.0 : between(0, l->pack.series * 4.0);
+        l->drive.fallback_a = uni() < 0.5 ? 0.0 : l->drive.set_a * between(0.01, 0.9);
+    }
+    l->cutoff.relative_pct = between(1, 90);
+    l->cutoff.flux_lm = uni() < 0.2 ? log_between(0.01, 100.0) : 0.0;
+    l->cutoff.cell_v = l->pack.cell.cutoff_v;
+    lw_light_update_factors(l, NULL);
+}
+
+/* What a failing light is, for the message. */
+static void describe(const lw_light *l, int i)
+{
+    const lw_cell *c = &l->pack.cell;
+    fprintf(stderr,
+            "light %d: %dS%dP cell %zu pts %.4g..%.4g V R %.4g..%.4g ohm C %.4g Ah k %.3g "
+            "cutoff %.4g V sd %.3g%%; led %s x%d /%d vf %.4g vth %.4g rd %.4g n %.3g is %.3g "
+            "rs %.3g; drive %s R %.4g set %.4g A drop %.4g eta %.4g iq %.3g uvlo %.3g fb %.3g "
+            "duty %.3g; cut %.3g%% floor %.3g\n",
+            i, l->pack.series, l->pack.parallel, c->ocv->n, c->ocv->y[0], c->ocv->y[c->ocv->n - 1],
+            c->res->y[0], c->res->y[c->res->n - 1], c->capacity_ah, c->peukert, c->cutoff_v,
+            c->self_discharge_pct_month, lw_led_model_names[l->led.model], l->led.count,
+            l->led.strings, l->led.forward_v, l->led.threshold_v, l->led.slope_ohm,
+            l->led.ideality, l->led.saturation_a, l->led.series_ohm,
+            lw_drive_type_names[l->drive.type], l->drive.resistor_ohm, l->drive.set_a,
+            l->drive.dropout_v, l->drive.efficiency_pct, l->drive.quiescent_a,
+            l->drive.min_input_v, l->drive.fallback_a, l->drive.duty_pct, l->cutoff.relative_pct,
+            l->cutoff.flux_lm);
+}
+
+static void check_result(const lw_light *l, const lw_result *r, int i)
+{
+    if (lw_end_is_dark(r->end_reason)) {
+        assert_true(r->runtime_h == 0.0);
+        return;
+    }
+    const double v[] = {r->runtime_h, r->lumen_hours, r->energy_drawn_wh, r->energy_led_wh,
+                        r->energy_resistor_wh, r->energy_internal_wh, r->energy_driver_wh,
+                        r->flux_30s_lm, r->flux_ref_lm, r->final.cell_v};
+    for (size_t k = 0; k < sizeof v / sizeof v[0]; k++)
+        if (!isfinite(v[k]))
+            fail_msg("light %d: figure %zu is %g", i, k, v[k]);
+    assert_true(r->runtime_h >= 0.0);
+    double sum = r->energy_led_wh + r->energy_resistor_wh + r->energy_internal_wh +
+                 r->energy_driver_wh;
+    if (!(fabs(sum - r->energy_drawn_wh) <= 1e-9 * fabs(r->energy_drawn_wh) + 1e-300))
+        fail_msg("light %d: energy %.17g drawn, %.17g accounted", i, r->energy_drawn_wh, sum);
+    if (!isnan(r->time_to_half_h))
+        assert_true(r->time_to_half_h <= r->runtime_h * (1 + 1e-12));
+    (void)l;
+}
+
+static lw_status run_light(const lw_light *l, lw_result *r, lw_error *e)
+{
+    lw_run_options o = lw_run_options_default();
+    lw_error_clear(e);
+    return lw_run(l, &o, r, e);
+}
+
+/* The same, to the cells' end point only: no brightness cutoff, no
+ * visibility floor (a brighter light stays above a floor longer, so only
+ * the end point is monotone in the current). */
+static lw_status run_to_end_point(const lw_light *l, lw_result *r, lw_error *e)
+{
+    lw_run_options o = lw_run_options_default();
+    o.visible_lm = 0;
+    lw_error_clear(e);
+    return lw_run(l, &o, r, e);
+}
+
+/* Thousands of random lights: every one ends with an answer. */
+static void random_lights_end_with_an_answer(void **state)
+{
+    (void)state;
+    int failed = 0, dark = 0;
+    for (int i = 0; i < 20000; i++) {
+        lw_light l;
+        random_light(&l);
+        lw_result r;
+        lw_error e;
+        lw_status st = run_light(&l, &r, &e);
+        if (st != LW_OK) {
+            failed++;
+            describe(&l, i);
+            fprintf(stderr, "  -> %s\n", e.msg);
+        } else {
+            check_result(&l, &r, i);
+            dark += lw_end_is_dark(r.end_reason);
+        }
+        lw_result_clear(&r);
+        lw_light_clear(&l);
+    }
+    assert_int_equal(failed, 0);
+    assert_true(dark < 15000); /* most of them light */
+}
+
+/* Ended at the cells' end point or their full depth (not by brightness). */
+static bool at_end_point(const lw_result *r)
+{
+    return r->end_reason == LW_END_CELL_VOLTAGE || r->end_reason == LW_END_CAPACITY;
+}
+
+static void run_ok_or_fail(const lw_light *l, lw_result *r, int i)
+{
+    lw_error e;
+    if (run_to_end_point(l, r, &e) != LW_OK) {
+        describe(l, i);
+        fail_msg("light %d: %s", i, e.msg);
+    }
+}
+
+/* Monotone in the resistor, the capacity, the lockout and the dropout. */
+static void results_move_the_way_physics_says(void **state)
+{
+    (void)state;
+    for (int i = 0; i < 3000; i++) {
+        lw_light l;
+        random_light(&l);
+        l.cutoff.relative_pct = 1e-12; /* run to the cells' end point */
+        l.cutoff.flux_lm = 0;
+        l.drive.duty_pct = 100;
+        lw_result base, other;
+        run_ok_or_fail(&l, &base, i);
+        if (lw_end_is_dark(base.end_reason)) {
+            lw_light_clear(&l);
+            continue;
+        }
+        if (l.drive.type == LW_DRIVE_RESISTOR) {
+            /* less resistance: more current, never a longer run to the end point */
+            lw_light m = l;
+            m.drive.resistor_ohm = l.drive.resistor_ohm * 0.8;
+            run_ok_or_fail(&m, &other, i);
+            if (at_end_point(&base) && at_end_point(&other) &&
+                !(other.runtime_h <= base.runtime_h * (1 + 1e-9)))
+                fail_msg("light %d: R %g -> %g lengthened %g -> %g h", i, l.drive.resistor_ohm,
+                         m.drive.resistor_ohm, base.runtime_h, other.runtime_h);
+        }
+        /* a higher lockout or a larger dropout leaves regulation at a lower
+         * depth with the same regulated current before it: never more hours
+         * in regulation; without a fallback level a converter's run ends at
+         * its dropout, so never a longer run either */
+        if (l.drive.type == LW_DRIVE_CONVERTER || l.drive.type == LW_DRIVE_LINEAR_CC) {
+            lw_light m = l;
+            if (l.drive.type == LW_DRIVE_CONVERTER)
+                m.drive.min_input_v = l.drive.min_input_v + 0.5;
+            else
+                m.drive.dropout_v = l.drive.dropout_v + 0.2;
+            run_ok_or_fail(&m, &other, i);
+            double reg_b = isnan(base.regulated_h) ? 0 : base.regulated_h;
+            double reg_o = isnan(other.regulated_h) || lw_end_is_dark(other.end_reason)
+                               ? 0
+                               : other.regulated_h;
+            if (!(reg_o <= reg_b * (1 + 1e-9) + 1e-12))
+                fail_msg("light %d: more lockout or dropout, regulated %g -> %g h", i, reg_b,
+                         reg_o);
+            if (l.drive.type == LW_DRIVE_CONVERTER && l.drive.fallback_a == 0 &&
+                !(other.runtime_h <= base.runtime_h * (1 + 1e-9) ||
+                  lw_end_is_dark(other.end_reason)))
+                fail_msg("light %d: a higher lockout lengthened %g -> %g h", i, base.runtime_h,
+                         other.runtime_h);
+        }
+        /* more capacity (every capacity figure x 1.5): never a shorter run */
+        lw_light m = l;
+        m.pack.cell.capacity_ah *= 1.5;
+        m.pack.cell.max_capacity_ah *= 1.5;
+        m.pack.cell.rated_a *= 1.5;
+        run_ok_or_fail(&m, &other, i);
+        if (at_end_point(&base) && at_end_point(&other) &&
+            !(other.runtime_h >= base.runtime_h * (1 - 1e-9)))
+            fail_msg("light %d: capacity x1.5 shortened %g -> %g h", i, base.runtime_h,
+                     other.runtime_h);
+        lw_light_clear(&l);
+    }
+}
+
+int main(void)
+{
+    /* LW_PROPERTY_SEED explores other lights (the suite's seed is fixed) */
+    const char *seed = getenv("LW_PROPERTY_SEED");
+    if (seed)
+        rng_state = strtoull(seed, NULL, 10);
+    const struct CMUnitTest tests[] = {
+        cmocka_unit_test(random_lights_end_with_an_answer),
+        cmocka_unit_test(results_move_the_way_physics_says),
+    };
+    return cmocka_run_group_tests(tests, NULL, NULL);
+}
