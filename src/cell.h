@@ -41,6 +41,8 @@ extern const char *const lw_chemistry_names[LW_CHEM_COUNT + 1];
 typedef struct lw_cell {
     char name[LW_NAME_MAX];        /* e.g. "LR6-alkaline" */
     char path[LW_PATH_MAX];        /* cell file it came from, for messages */
+    char curve_path[LW_PATH_MAX];  /* its curve CSV, "" when built in code */
+    char temperature_path[LW_PATH_MAX]; /* its temperature CSV, or "" */
     lw_chemistry chemistry;
     double nominal_v;              /* V, nameplate */
     double capacity_ah;            /* Ah delivered at rated_a to cutoff_v, 20 C */

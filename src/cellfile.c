@@ -3,6 +3,7 @@
  */
 #include "cellfile.h"
 
+#include <ctype.h>
 #include <dirent.h>
 #include <errno.h>
 #include <math.h>
@@ -11,6 +12,8 @@
 #include <stdlib.h>
 #include <string.h>
 #include <sys/stat.h>
+#include <time.h>
+#include <unistd.h>
 #include "csvio.h"
 #include "alloc.h"
 
@@ -294,6 +297,7 @@ lw_status lw_cell_load(const char *path, lw_cell *cell, lw_error *err)
                                err);
         if (st == LW_OK)
             st = load_curve(file, &spec.cell, err);
+        lw_strlcpy(spec.cell.curve_path, file, sizeof spec.cell.curve_path);
     }
     if (st == LW_OK && spec.temperature[0] &&
         !lw_path_join(file, sizeof file, dir, spec.temperature))
@@ -305,6 +309,7 @@ lw_status lw_cell_load(const char *path, lw_cell *cell, lw_error *err)
                                "[cell] temperature", err);
         if (st == LW_OK)
             st = load_temperature(file, &spec.cell, err);
+        lw_strlcpy(spec.cell.temperature_path, file, sizeof spec.cell.temperature_path);
     }
     if (st == LW_OK && !(spec.cell.cutoff_v < spec.cell.ocv->y[0])) {
         st = lw_error_set(err, LW_EINPUT, path, lw_ini_key_line(&ini, "cell", "cutoff_v"),
@@ -475,25 +480,101 @@ lw_status lw_cell_list_read(const lw_search *search, lw_cell_list *l, lw_error *
     return LW_OK;
 }
 
+/* Can text be written as an INI value and read back as exactly itself?
+ * Not empty, at most max bytes, valid UTF-8, no control character, no
+ * leading or trailing blank (the reader trims them), no ';' or '#' (comment
+ * starts) and no '[' or '=' (a line that could read as a section or key). */
+static bool ini_value_ok(const char *text, size_t max, const char **why)
+{
+    size_t n = strlen(text);
+    *why = NULL;
+    if (n == 0)
+        *why = "is empty";
+    else if (n > max)
+        *why = "is too long";
+    else if (!lw_utf8_valid(text, n, NULL))
+        *why = "is not valid UTF-8";
+    else if (isspace((unsigned char)text[0]) || isspace((unsigned char)text[n - 1]))
+        *why = "starts or ends with a blank";
+    for (size_t i = 0; i < n && !*why; i++) {
+        unsigned char c = (unsigned char)text[i];
+        if (c < 0x20 || c == 0x7F)
+            *why = "holds a control character";
+        else if (c == ';' || c == '#' || c == '[' || c == ']' || c == '=')
+            *why = "holds one of ; # [ ] =";
+    }
+    return *why == NULL;
+}
+
+/* The curve named by an existing cell file, if it is one this function
+ * wrote (BASE.curve-XXXXXXXX.csv beside it): replaced on success. */
+static void previous_curve(const char *ini_path, const char *base, char *out, size_t size)
+{
+    out[0] = '\0';
+    lw_ini old;
+    lw_error ignore;
+    lw_error_clear(&ignore);
+    if (access(ini_path, F_OK) != 0 || lw_ini_read(ini_path, &old, NULL, NULL, &ignore) != LW_OK)
+        return;
+    for (size_t i = 0; i < old.n; i++) {
+        const char *v = old.entries[i].value;
+        size_t lb = strlen(base);
+        if (!strcmp(old.entries[i].key, "curve") && !strncmp(v, base, lb) &&
+            !strncmp(v + lb, ".curve-", 7) && strlen(v) == lb + 7 + 8 + 4 &&
+            !strcmp(v + lb + 15, ".csv")) {
+            char dir[LW_PATH_MAX];
+            lw_path_dir(dir, sizeof dir, ini_path);
+            if (!lw_path_join(out, size, dir, v))
+                out[0] = '\0';
+        }
+    }
+    lw_ini_clear(&old);
+}
+
 lw_status lw_cell_save(const char *ini_path, const lw_cell *cell, const char *comment,
                        lw_error *err)
 {
     size_t len = strlen(ini_path);
+    const char *why;
     if (len < 5 || strcmp(ini_path + len - 4, ".ini") != 0)
         return lw_error_set(err, LW_EINPUT, ini_path, 0, "a cell file name must end in .ini");
-    char curve_path[LW_PATH_MAX], curve_name[LW_PATH_MAX];
-    snprintf(curve_path, sizeof curve_path, "%.*s.curve.csv", (int)(len - 4), ini_path);
-    const char *slash = strrchr(curve_path, '/');
-    lw_strlcpy(curve_name, slash ? slash + 1 : curve_path, sizeof curve_name);
+    if (!ini_value_ok(cell->name, LW_NAME_MAX - 1, &why))
+        return lw_error_set(err, LW_EINPUT, ini_path, 0,
+                            "the cell name %s: it could not be read back as written", why);
+    /* the curve: BASE.curve-XXXXXXXX.csv, a new name every time, so that the
+     * old cell file never points at a new curve */
+    const char *slash = strrchr(ini_path, '/');
+    const char *base_start = slash ? slash + 1 : ini_path;
+    char base[LW_PATH_MAX], curve_path[LW_PATH_MAX], curve_name[LW_PATH_MAX];
+    snprintf(base, sizeof base, "%.*s", (int)(len - 4 - (size_t)(base_start - ini_path)),
+             base_start);
+    if (strlen(base) > 400)
+        return lw_error_set(err, LW_EINPUT, ini_path, 0,
+                            "the cell file's name is longer than 400 bytes");
+    unsigned seed = (unsigned)getpid() * 2654435761u ^ (unsigned)time(NULL);
     lw_outfile ini, csv;
-    lw_status st = lw_outfile_open(&csv, curve_path, err);
+    lw_status st = LW_EIO;
+    for (int attempt = 0; attempt < 16 && st != LW_OK; attempt++) {
+        seed = seed * 1103515245u + 12345u;
+        if ((size_t)snprintf(curve_name, sizeof curve_name, "%.400s.curve-%08x.csv", base,
+                             seed) >= sizeof curve_name)
+            return lw_error_set(err, LW_EINPUT, ini_path, 0, "the path is too long");
+        if (!ini_value_ok(curve_name, LW_INI_LINE_MAX - 16, &why))
+            return lw_error_set(err, LW_EINPUT, ini_path, 0,
+                                "the curve's file name %s (from the cell file's name)", why);
+        if ((size_t)snprintf(curve_path, sizeof curve_path, "%.*s%s",
+                             (int)(base_start - ini_path), ini_path,
+                             curve_name) >= sizeof curve_path)
+            return lw_error_set(err, LW_EINPUT, ini_path, 0, "the path is too long");
+        if (access(curve_path, F_OK) == 0)
+            continue; /* taken: another name */
+        st = lw_outfile_open(&csv, curve_path, err);
+    }
     if (st != LW_OK)
         return st;
-    st = lw_outfile_open(&ini, ini_path, err);
-    if (st != LW_OK) {
-        lw_outfile_abort(&csv);
-        return st;
-    }
+    csv.durable = true;
+    char old_curve[LW_PATH_MAX];
+    previous_curve(ini_path, base, old_curve, sizeof old_curve);
     lw_csvw w;
     lw_csvw_init(&w, csv.fp);
     lw_csvw_text(&w, "depth_pct");
@@ -506,33 +587,53 @@ lw_status lw_cell_save(const char *ini_path, const lw_cell *cell, const char *co
         lw_csvw_num(&w, cell->res->y[i]);
         lw_csvw_end_row(&w);
     }
+    if (w.failed) {
+        lw_outfile_abort(&csv);
+        return lw_error_set(err, LW_EIO, curve_path, 0, "write error");
+    }
+    /* 1: the curve under its new name; the old pair is untouched */
+    if ((st = lw_outfile_commit(&csv, err)) != LW_OK)
+        return st;
+    st = lw_outfile_open(&ini, ini_path, err);
+    if (st != LW_OK) {
+        unlink(curve_path);
+        return st;
+    }
+    ini.durable = true;
     FILE *fp = ini.fp;
     for (const char *p = comment; p && *p;) {
         const char *nl = strchr(p, '\n');
-        int n = nl ? (int)(nl - p) : (int)strlen(p);
-        fprintf(fp, "; %.*s\n", n, p);
+        size_t n = nl ? (size_t)(nl - p) : strlen(p);
+        char line[LW_INI_LINE_MAX], safe[4 * LW_INI_LINE_MAX];
+        snprintf(line, sizeof line, "%.*s", (int)(n < 150 ? n : 150), p);
+        lw_escape(safe, sizeof safe, line);
+        fprintf(fp, "; %.180s\n", safe);
         p += n + (nl ? 1 : 0);
     }
-    fprintf(fp, "[cell]\nname = %s\nchemistry = %s\nnominal_v = %.4g\ncapacity_mah = %.6g\n"
-                "rated_ma = %.6g\npeukert = %.4g\nmax_capacity_mah = %.6g\ncutoff_v = %.4g\n"
+    fprintf(fp, "[cell]\nname = %s\nchemistry = %s\nnominal_v = %.17g\ncapacity_mah = %.17g\n"
+                "rated_ma = %.17g\npeukert = %.17g\nmax_capacity_mah = %.17g\ncutoff_v = %.17g\n"
                 "rechargeable = %s\n",
             cell->name, lw_chemistry_names[cell->chemistry], cell->nominal_v,
             cell->capacity_ah * 1e3, cell->rated_a * 1e3, cell->peukert,
             cell->max_capacity_ah * 1e3, cell->cutoff_v, cell->rechargeable ? "yes" : "no");
     if (cell->mass_g > 0)
-        fprintf(fp, "mass_g = %g\n", cell->mass_g);
+        fprintf(fp, "mass_g = %.17g\n", cell->mass_g);
     if (cell->self_discharge_pct_month > 0)
-        fprintf(fp, "self_discharge_pct_month = %g\n", cell->self_discharge_pct_month);
+        fprintf(fp, "self_discharge_pct_month = %.17g\n", cell->self_discharge_pct_month);
     fprintf(fp, "curve = %s\n", curve_name);
-    if (w.failed || ferror(fp)) {
+    if (ferror(fp)) {
         lw_outfile_abort(&ini);
-        lw_outfile_abort(&csv);
+        unlink(curve_path);
         return lw_error_set(err, LW_EIO, ini_path, 0, "write error");
     }
-    st = lw_outfile_commit(&csv, err);
-    if (st == LW_OK)
-        st = lw_outfile_commit(&ini, err);
-    else
-        lw_outfile_abort(&ini);
-    return st;
+    /* 2: the cell file naming the new curve, renamed last */
+    st = lw_outfile_commit(&ini, err);
+    if (st != LW_OK) {
+        unlink(curve_path);
+        return st;
+    }
+    /* 3: the curve the old cell file named, no longer used */
+    if (old_curve[0] && strcmp(old_curve, curve_path) != 0)
+        unlink(old_curve);
+    return LW_OK;
 }

@@ -72,10 +72,16 @@ void lw_cell_list_clear(lw_cell_list *list);
 lw_status lw_check_readable(const char *path, const char *from_file, int from_line,
                             const char *what, lw_error *err);
 
-/* Write a cell file at ini_path and its curve beside it as BASE.curve.csv
- * (both through temporary names, renamed only when both are complete).
- * `comment` (may hold several lines) goes at the top of the INI file as
- * ';' comments.  The cell must not have a temperature table. */
+/* Write a cell file at ini_path and its curve beside it as
+ * BASE.curve-XXXXXXXX.csv, a new name at every write: first the curve, then
+ * the cell file naming it (each through a temporary name, synced, renamed),
+ * then the curve the old cell file named is removed.  Any failure leaves
+ * the old pair as it was (a crash between the steps leaves at most an
+ * unused curve file).  Every value written reads back exactly: a cell name
+ * that could not (a control character, ';', '#', '[', ']', '=', a leading or
+ * trailing blank, invalid UTF-8, too long) is refused.  `comment` (may hold
+ * several lines) goes at the top as ';' comments, control characters shown
+ * as \xNN.  The cell must not have a temperature table. */
 lw_status lw_cell_save(const char *ini_path, const lw_cell *cell, const char *comment,
                        lw_error *err);
 

@@ -21,7 +21,13 @@
 #define EXIT_NOANSWER 1
 #define EXIT_BADINPUT 2
 
+/* The whole program: signal handlers, the command, and the check that
+ * standard output got everything (see cli_main.c). */
 int lw_cli_main(int argc, char **argv);
+
+/* One command line, without the process-wide set-up and checks (for tests
+ * and the fuzzer, which run many in one process). */
+int lw_cli_run(int argc, char **argv);
 
 /* ---- option and command tables ---- */
 
@@ -109,6 +115,13 @@ lw_status write_chart(const char *path, const lw_chart *chart, lw_error *err);
  * NULL-terminated array owned by *v. */
 lw_status parse_cells(const char *list, const lw_profile *prof, lw_vary *v, const char ***cells,
                       lw_error *err);
+
+/* Refuse outputs that are one of the inputs (the profile's files when prof
+ * is given, and `inputs`) or the same file as another output.  outs[i] may
+ * be NULL (option not given); names[i] is its option ("--trace"). */
+lw_status check_outputs(const lw_profile *prof, const char *const *inputs, size_t ninputs,
+                        const char *const *outs, const char *const *names, size_t n,
+                        lw_error *err);
 
 /* The commands. */
 int cli_run(int argc, char **argv);

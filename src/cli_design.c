@@ -105,6 +105,9 @@ int cli_sweep(int argc, char **argv)
     lw_sweep sw = {0};
     lw_rtable *t = NULL;
     lw_status st = load_profile(argv[first], &a.o, &prof, &err);
+    const char *outs[] = {a.plot_path}, *names[] = {"--plot"};
+    if (st == LW_OK)
+        st = check_outputs(&prof, NULL, 0, outs, names, 1, &err);
     for (size_t k = 0; k < a.nvary && st == LW_OK; k++) {
         st = lw_vary_parse(a.varies[k], &prof, &vary[k], &err);
         if (st == LW_OK && vary[k].note[0])

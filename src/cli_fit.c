@@ -273,10 +273,13 @@ int cli_fit_led(int argc, char **argv)
         return usage_error("fit led", "fit led takes one measurements file");
     lw_error err;
     lw_error_clear(&err);
-    led_data d;
+    led_data d = {0};
     lw_led_fit lin = {0}, sh = {0};
     lw_flux_fit fx = {0};
-    lw_status st = read_led_data(argv[first], &d, &err);
+    const char *in[] = {argv[first]}, *outs[] = {a.plot_path}, *names[] = {"--plot"};
+    lw_status st = check_outputs(NULL, in, 1, outs, names, 1, &err);
+    if (st == LW_OK)
+        st = read_led_data(argv[first], &d, &err);
     if (st == LW_OK && a.want_lin)
         st = lw_fit_led_linear(d.i_a, d.v, d.n, &lin, &err);
     if (st == LW_OK && a.want_sh)
@@ -418,7 +421,9 @@ int cli_fit_cell(int argc, char **argv)
     lw_error_clear(&err);
     lw_dlog logs[2];
     memset(logs, 0, sizeof logs);
-    lw_status st = LW_OK;
+    const char *in[2] = {argv[optind_], nlogs > 1 ? argv[optind_ + 1] : NULL};
+    const char *outs[] = {out_path}, *names[] = {"--out"};
+    lw_status st = check_outputs(NULL, in, 2, outs, names, 1, &err);
     for (int k = 0; k < nlogs && st == LW_OK; k++)
         st = lw_dlog_read(argv[optind_ + k], load_ohm[k], load_a[k], &logs[k], &err);
     lw_cellfit fit;

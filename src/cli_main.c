@@ -8,9 +8,13 @@
  */
 #include "cli.h"
 
+#include <errno.h>
+#include <fcntl.h>
 #include <math.h>
+#include <signal.h>
 #include <stdlib.h>
 #include <string.h>
+#include <unistd.h>
 #include "lw_config.h"
 
 static const char *const safety_text =
@@ -407,11 +411,61 @@ static int run_command(int argc, char **argv)
     return c->run(argc - 1, argv + 1);
 }
 
-int lw_cli_main(int argc, char **argv)
+/* SIGINT, SIGTERM, SIGHUP and SIGPIPE: remove the temporary files of
+ * unfinished outputs, then end as the signal would have ended us. */
+static void on_signal(int sig)
+{
+    lw_outfile_remove_all();
+    signal(sig, SIG_DFL);
+    raise(sig);
+}
+
+/* Everything written to standard output must have reached it: a full disk,
+ * a closed stream or a write error gives exit status 2 and a message; a
+ * reader that went away (a broken pipe) ends us quietly, as a Unix tool. */
+static int finish_stdout(int code)
+{
+    errno = 0;
+    bool bad = fflush(stdout) != 0 || ferror(stdout);
+    int e = errno;
+    if (fclose(stdout) != 0 && !bad) {
+        bad = true;
+        e = errno;
+    }
+    if (!bad)
+        return code;
+    if (e == EPIPE) {
+        signal(SIGPIPE, SIG_DFL);
+        raise(SIGPIPE);
+    }
+    fprintf(stderr, "lampwick: cannot write the output: %s\n", e ? strerror(e) : "write error");
+    return EXIT_BADINPUT;
+}
+
+int lw_cli_run(int argc, char **argv)
 {
     if (argc < 2) {
         fputs(main_help, stderr);
         return EXIT_BADINPUT;
     }
     return run_command(argc, argv);
+}
+
+int lw_cli_main(int argc, char **argv)
+{
+    /* a closed standard output would let the next file opened take its
+     * place: refuse to run rather than write a report into a data file */
+    if (fcntl(STDOUT_FILENO, F_GETFD) < 0) {
+        fputs("lampwick: standard output is closed\n", stderr);
+        return EXIT_BADINPUT;
+    }
+    const int sigs[] = {SIGINT, SIGTERM, SIGHUP, SIGPIPE};
+    for (size_t i = 0; i < sizeof sigs / sizeof sigs[0]; i++) {
+        struct sigaction sa;
+        memset(&sa, 0, sizeof sa);
+        sa.sa_handler = on_signal;
+        sigemptyset(&sa.sa_mask);
+        sigaction(sigs[i], &sa, NULL);
+    }
+    return finish_stdout(lw_cli_run(argc, argv));
 }

@@ -69,7 +69,7 @@ int cli_parse(const cli_command *cmd, int argc, char **argv, cli_on_option fn, v
                                 cmd->options[i].arg ? required_argument : no_argument, NULL,
                                 cmd->options[i].id};
     opterr = 0; /* one message, ours */
-    optind = 1;
+    optind = 0;   /* 0, not 1: GNU getopt then starts over completely */
     int c, rc = 0;
     while (rc == 0 && (c = getopt_long(argc, argv, ":h", lo, NULL)) != -1) {
         const char *opt = optind > 0 && optind <= argc ? argv[optind - 1] : "?";
@@ -225,4 +225,32 @@ lw_status parse_cells(const char *list, const lw_profile *prof, lw_vary *v, cons
         c[i] = v->values[i];
     *cells = c;
     return LW_OK;
+}
+
+lw_status check_outputs(const lw_profile *prof, const char *const *inputs, size_t ninputs,
+                        const char *const *outs, const char *const *names, size_t n,
+                        lw_error *err)
+{
+    enum { MAX = 32 };
+    char files[MAX][LW_PATH_MAX];
+    const char *others[MAX + 16];
+    size_t m = prof ? lw_profile_inputs(prof, files, MAX) : 0, k = 0;
+    for (size_t i = 0; i < m; i++)
+        others[k++] = files[i];
+    for (size_t i = 0; i < ninputs && k < MAX; i++)
+        others[k++] = inputs[i];
+    lw_status st = LW_OK;
+    for (size_t i = 0; i < n && st == LW_OK; i++) {
+        if (!outs[i])
+            continue;
+        st = lw_outfile_check(outs[i], names[i], others, k, err);
+        for (size_t j = 0; j < i && st == LW_OK; j++)
+            if (outs[j]) {
+                const char *pair[1] = {outs[j]};
+                st = lw_outfile_check(outs[i], names[i], pair, 1, err);
+                if (st != LW_OK)
+                    break;
+            }
+    }
+    return st;
 }

@@ -101,6 +101,9 @@ int cli_run(int argc, char **argv)
     lw_error err;
     lw_error_clear(&err);
     lw_status st = load_profile(argv[first], &a.o, &prof, &err);
+    const char *outs[] = {a.trace_path, a.plot_path}, *names[] = {"--trace", "--plot"};
+    if (st == LW_OK)
+        st = check_outputs(&prof, NULL, 0, outs, names, 2, &err);
     lw_result res = {0};
     lw_trace tr = {0};
     bool want_trace = a.trace_path || a.plot_path;

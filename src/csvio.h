@@ -2,10 +2,8 @@
  * csvio.h - every CSV read and write of lampwick, through libcsv.
  *
  * Owns: lw_csv (a numeric table read from a CSV file: a header row of
- * column names, then rows of numbers, each row with its line number),
- * lw_csvw (a CSV writer: RFC 4180 quoting by libcsv, CRLF line ends), and
- * lw_outfile (an output file written under a temporary name and renamed on
- * success, so a failed run never leaves half a file).
+ * column names, then rows of numbers, each row with its line number) and
+ * lw_csvw (a CSV writer: RFC 4180 quoting by libcsv, CRLF line ends).
  *
  * Reading is strict (libcsv's CSV_STRICT): a path that is not a regular file,
  * a file over LW_CSV_BYTES_MAX or LW_CSV_ROWS_MAX rows, a NUL byte, a bad
@@ -20,6 +18,7 @@
 #include <stdbool.h>
 #include <stdio.h>
 #include "error.h"
+#include "outfile.h"
 
 #define LW_CSV_NAME_MAX 64
 #define LW_CSV_COLS_MAX 64
@@ -71,22 +70,5 @@ void lw_csvw_text(lw_csvw *w, const char *s);
  * NaN and infinities are written as an empty field. */
 void lw_csvw_num(lw_csvw *w, double v);
 void lw_csvw_end_row(lw_csvw *w);
-
-/* ---- output files ---- */
-
-typedef struct lw_outfile {
-    FILE *fp;
-    char path[512];
-    char tmp[600];
-    bool is_stdout;
-} lw_outfile;
-
-/* Open `path` for writing under a temporary name in the same folder ("-" is
- * standard output). */
-lw_status lw_outfile_open(lw_outfile *out, const char *path, lw_error *err);
-/* Flush, close and rename into place; on any failure remove the temporary. */
-lw_status lw_outfile_commit(lw_outfile *out, lw_error *err);
-/* Close and remove the temporary.  Safe on an unopened or committed file. */
-void lw_outfile_abort(lw_outfile *out);
 
 #endif

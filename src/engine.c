@@ -1103,7 +1103,9 @@ lw_status lw_trace_build(const lw_light *light, const lw_result *res, size_t min
             break;
         double bend = res->flux_ref_lm > 0 ? fabs(p1.flux_lm - p0.flux_lm) / res->flux_ref_lm
                                            : 0.0;
-        size_t n = per_piece + (size_t)ceil(bend / 0.01);
+        /* a row per 1 % of the reference the output moves, at most 200 */
+        double extra = isfinite(bend) ? fmin(200.0, ceil(bend / 0.01)) : 200.0;
+        size_t n = per_piece + (size_t)extra;
         k[i] = n > 200 ? 200 : n;
         total += k[i];
     }

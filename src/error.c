@@ -54,9 +54,9 @@ size_t lw_escape(char *out, size_t size, const char *text)
     while (*s && o + 5 < size) {
         unsigned char c = *s;
         size_t len = c < 0x80 ? 1 : (c >> 5) == 6 ? 2 : (c >> 4) == 14 ? 3 : (c >> 3) == 30 ? 4 : 0;
-        bool ok = len > 0 && c >= 0x20 && c != 0x7F && !(len == 2 && c < 0xC2) && !(c > 0xF4);
-        for (size_t k = 1; ok && k < len; k++)
-            ok = (s[k] & 0xC0) == 0x80;
+        size_t avail = strnlen((const char *)s, 4);
+        bool ok = len > 0 && len <= avail && c >= 0x20 && c != 0x7F &&
+                  lw_utf8_valid((const char *)s, len, NULL);
         if (ok && o + len < size) {
             memcpy(out + o, s, len);
             o += len;

@@ -16,7 +16,8 @@
  *   inifile.h   INI reading and key schemas
  *   cellfile.h  cell files and the cell search path
  *   profile.h   light profiles, modes, --set overrides
- *   csvio.h     CSV reading and writing, atomic output files
+ *   csvio.h     CSV reading and writing
+ *   outfile.h   output files that are whole or absent
  *   report.h    text, CSV and Markdown summaries
  *   plot.h      standalone SVG plots
  *   eseries.h   IEC 60063 preferred values, resistance parsing
@@ -51,6 +52,7 @@
 #include "cellfile.h"
 #include "profile.h"
 #include "csvio.h"
+#include "outfile.h"
 #include "report.h"
 #include "plot.h"
 #include "eseries.h"

@@ -19,9 +19,11 @@ static const char *const palette[] = {"#1b6f8a", "#c4541b", "#5a7d2a", "#8a3f86"
 
 size_t lw_nice_ticks(double lo, double hi, size_t max_ticks, double *ticks)
 {
-    if (!(hi > lo) || max_ticks < 2)
+    if (!(hi > lo) || max_ticks < 2 || !isfinite(hi - lo))
         return 0;
     double raw = (hi - lo) / (double)(max_ticks - 1);
+    if (!(raw > 0) || !isfinite(log10(raw)))
+        return 0;
     double mag = pow(10.0, floor(log10(raw)));
     double step = mag;
     if (raw / mag > 5.0)
@@ -41,6 +43,8 @@ size_t lw_nice_ticks(double lo, double hi, size_t max_ticks, double *ticks)
 static size_t log_ticks(double lo, double hi, double *ticks)
 {
     size_t n = 0;
+    if (!(lo > 0) || !(hi >= lo) || !isfinite(log10(lo)) || !isfinite(log10(hi)))
+        return 0;
     int d0 = (int)floor(log10(lo)), d1 = (int)ceil(log10(hi));
     bool fine = d1 - d0 <= 3;
     for (int d = d0; d <= d1 && n < 30; d++) {
@@ -137,10 +141,14 @@ static void data_range(const lw_axis *ax, const lw_series *s, size_t ns, bool wa
             b = fmax(b, v);
         }
     for (size_t i = 0; i < nrefs; i++) {
+        if (!isfinite(refs[i].y) || (ax->log && refs[i].y <= 0))
+            continue;
         a = fmin(a, refs[i].y);
         b = fmax(b, refs[i].y);
     }
-    if (!isfinite(a)) {
+    /* nothing to show, or a span no double can hold: a plain default */
+    if (!isfinite(a) || !isfinite(b) || !isfinite(b - a) ||
+        (ax->log && !(isfinite(log10(b) - log10(a))))) {
         a = ax->log ? 1 : 0;
         b = ax->log ? 10 : 1;
     }

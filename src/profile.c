@@ -627,6 +627,21 @@ lw_status lw_profile_copy(lw_profile *dst, const lw_profile *src, lw_error *err)
     return LW_OK;
 }
 
+size_t lw_profile_inputs(const lw_profile *p, char (*paths)[LW_PATH_MAX], size_t max)
+{
+    const char *direct[] = {p->path, p->cell_path, p->light.pack.cell.curve_path,
+                            p->light.pack.cell.temperature_path};
+    const char *rel[] = {p->iv_file, p->flux_file, p->efficiency_file};
+    size_t n = 0;
+    for (size_t i = 0; i < sizeof direct / sizeof direct[0] && n < max; i++)
+        if (direct[i][0])
+            lw_strlcpy(paths[n++], direct[i], LW_PATH_MAX);
+    for (size_t i = 0; i < sizeof rel / sizeof rel[0] && n < max; i++)
+        if (rel[i][0] && lw_path_join(paths[n], LW_PATH_MAX, p->dir, rel[i]))
+            n++;
+    return n;
+}
+
 bool lw_profile_given(const lw_profile *p, const char *dotted_key)
 {
     char section[LW_INI_NAME_MAX], key[LW_INI_NAME_MAX];

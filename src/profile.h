@@ -81,6 +81,11 @@ const char *lw_profile_mode_name(const lw_profile *prof, size_t i);
 /* Load what the profile names and check model-specific needs. */
 lw_status lw_profile_resolve(lw_profile *prof, lw_error *err);
 
+/* The files the profile reads (itself, its cell file and curves, LED and
+ * driver tables): up to `max` paths into paths[], each LW_PATH_MAX bytes;
+ * returns how many. */
+size_t lw_profile_inputs(const lw_profile *prof, char (*paths)[LW_PATH_MAX], size_t max);
+
 /* True when "section.key" was set by the file, a mode or an option. */
 bool lw_profile_given(const lw_profile *prof, const char *dotted_key);
 

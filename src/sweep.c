@@ -133,10 +133,10 @@ static lw_status parse_values(const char *arg, const char *vals, bool numeric, c
         for (size_t i = 0; st == LW_OK && i < list.n; i++)
             st = push(v, &cap, list.names[i], err);
         if (st == LW_OK && list.nskipped) {
-            snprintf(v->note, sizeof v->note, "skipped %zu file%s that %s not cell files (no "
-                                              "[cell] section): ",
-                     list.nskipped, list.nskipped == 1 ? "" : "s",
-                     list.nskipped == 1 ? "is" : "are");
+            snprintf(v->note, sizeof v->note, "skipped %zu %s (no [cell] section): ",
+                     list.nskipped,
+                     list.nskipped == 1 ? "file that is not a cell file"
+                                        : "files that are not cell files");
             for (size_t i = 0; i < list.nskipped; i++) {
                 strncat(v->note, i ? ", " : "", sizeof v->note - strlen(v->note) - 1);
                 strncat(v->note, list.skipped[i], sizeof v->note - strlen(v->note) - 1);
