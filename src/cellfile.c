@@ -265,7 +265,7 @@ static lw_status cell_check(void *ctx, const char *section, const char *key, con
                             int line, lw_error *err)
 {
     (void)ctx;
-    if (lw_key_find(lw_cell_keys, lw_cell_nkeys, section, key))
+    if (key && lw_key_find(lw_cell_keys, lw_cell_nkeys, section, key))
         return LW_OK;
     return lw_key_unknown(lw_cell_keys, lw_cell_nkeys, section, key, file, line, err);
 }

@@ -264,6 +264,11 @@ lw_status lw_csv_expect(const lw_csv *csv, const char *const *required,
         join(want + strlen(want), sizeof want - strlen(want), optional);
         strncat(want, ")", sizeof want - strlen(want) - 1);
     }
+    for (size_t c = 0; c < csv->ncol; c++)
+        for (size_t k = 0; k < c; k++)
+            if (!strcasecmp(csv->names[c], csv->names[k]))
+                return lw_error_set(err, LW_EINPUT, csv->path, csv->header_line,
+                                    "column '%s' appears twice", csv->names[c]);
     for (size_t i = 0; required[i]; i++)
         if (lw_csv_column(csv, required[i]) < 0)
             return lw_error_set(err, LW_EINPUT, csv->path, csv->header_line,
@@ -274,10 +279,6 @@ lw_status lw_csv_expect(const lw_csv *csv, const char *const *required,
             known = !strcasecmp(csv->names[c], required[i]);
         for (size_t i = 0; optional && optional[i] && !known; i++)
             known = !strcasecmp(csv->names[c], optional[i]);
-        for (size_t k = 0; k < c && known; k++)
-            if (!strcasecmp(csv->names[c], csv->names[k]))
-                return lw_error_set(err, LW_EINPUT, csv->path, csv->header_line,
-                                    "column '%s' appears twice", csv->names[c]);
         if (!known)
             return lw_error_set(err, LW_EINPUT, csv->path, csv->header_line,
                                 "unknown column '%s'; expected columns: %s", csv->names[c],

@@ -60,6 +60,29 @@ static bool fail(struct reader *r, lw_status code, const char *fmt, ...)
     return false;
 }
 
+/* The key of a "key = value" line whose '=' comes before column at, as
+ * plain printable ASCII, so that a message about the value can name it. */
+static bool key_before(const char *s, size_t at, char *key, size_t size)
+{
+    const char *eq = memchr(s, '=', at);
+    if (!eq)
+        return false;
+    const char *b = s, *e = eq;
+    while (b < e && (*b == ' ' || *b == '\t'))
+        b++;
+    while (e > b && (e[-1] == ' ' || e[-1] == '\t'))
+        e--;
+    size_t n = (size_t)(e - b);
+    if (n == 0 || n >= size || *b == '[' || *b == ';' || *b == '#')
+        return false;
+    for (const char *c = b; c < e; c++)
+        if (*c <= ' ' || *c > '~')
+            return false;
+    memcpy(key, b, n);
+    key[n] = '\0';
+    return true;
+}
+
 /* Check one raw line: no NUL byte, no control character but tab, valid
  * UTF-8, shorter than LW_INI_LINE_MAX. */
 static bool line_ok(struct reader *r, const char *s, size_t n)
@@ -72,13 +95,21 @@ static bool line_ok(struct reader *r, const char *s, size_t n)
     if (len >= LW_INI_LINE_MAX - 1)
         return fail(r, LW_EINPUT, "line is too long (at most %d characters)",
                     LW_INI_LINE_MAX - 2);
+    char key[LW_INI_NAME_MAX];
     for (size_t i = 0; i < len; i++)
-        if ((unsigned char)s[i] < 0x20 && s[i] != '\t')
+        if ((unsigned char)s[i] < 0x20 && s[i] != '\t') {
+            if (key_before(s, i, key, sizeof key))
+                return fail(r, LW_EINPUT, "%s: control character \\x%02X in the value", key,
+                            (unsigned char)s[i]);
             return fail(r, LW_EINPUT, "control character \\x%02X in the line",
                         (unsigned char)s[i]);
+        }
     size_t at;
-    if (!lw_utf8_valid(s, len, &at))
+    if (!lw_utf8_valid(s, len, &at)) {
+        if (key_before(s, at, key, sizeof key))
+            return fail(r, LW_EINPUT, "%s: invalid UTF-8 in the value (column %zu)", key, at + 1);
         return fail(r, LW_EINPUT, "invalid UTF-8 at column %zu", at + 1);
+    }
     return true;
 }
 
@@ -119,10 +150,19 @@ static void note_section(struct reader *r, const char *text)
         ini->sections = s;
         ini->cap_sections = cap;
     }
-    lw_ini_section *s = &ini->sections[ini->n_sections++];
+    lw_ini_section *s = &ini->sections[ini->n_sections];
     memcpy(s->name, p, len);
     s->name[len] = '\0';
     s->line = r->line;
+    for (size_t k = 0; k < ini->n_sections; k++)
+        if (!strcmp(ini->sections[k].name, s->name)) {
+            fail(r, LW_EINPUT, "[%s] appears twice (first on line %d)", s->name,
+                 ini->sections[k].line);
+            return;
+        }
+    ini->n_sections++;
+    if (r->check && r->check(r->check_ctx, s->name, NULL, ini->path, r->line, r->err) != LW_OK)
+        r->stop = true;
 }
 
 /* fgets-style reader for inih: counts lines, checks each, and stops the
@@ -398,10 +438,15 @@ lw_status lw_key_unknown(const lw_keydef *defs, size_t n, const char *section, c
             strncat(list, defs[i].section, sizeof list - strlen(list) - 1);
             strncat(list, "]", sizeof list - strlen(list) - 1);
         }
+        if (!key)
+            return lw_error_set(err, LW_EINPUT, file, line,
+                                "unknown section [%s]; known sections: %s", section, list);
         return lw_error_set(err, LW_EINPUT, file, line,
                             "unknown section [%s] (key '%s'); known sections: %s", section, key,
                             list);
     }
+    if (!key)
+        return LW_OK;
     char buf[160];
     const char *near = lw_key_suggest(defs, n, section, key, buf, sizeof buf);
     if (near)

@@ -55,8 +55,10 @@ typedef struct lw_ini {
     size_t n_sections, cap_sections;
 } lw_ini;
 
-/* Called for each key as it is read (check_ctx passed through): a status
- * other than LW_OK stops reading at that line. */
+/* Called for each section header (key NULL) and each key as it is read
+ * (check_ctx passed through): a status other than LW_OK stops reading at
+ * that line.  A section header that repeats an earlier one is refused by
+ * the reader itself. */
 typedef lw_status (*lw_ini_check)(void *check_ctx, const char *section, const char *key,
                                   const char *file, int line, lw_error *err);
 
@@ -113,7 +115,8 @@ const char *lw_key_suggest(const lw_keydef *defs, size_t n, const char *section,
                            const char *name, char *buf, size_t size);
 
 /* Record the error for an unknown key (or section) with the closest known
- * key as a suggestion; returns LW_EINPUT. */
+ * key as a suggestion; returns LW_EINPUT.  With key NULL only the section
+ * is judged: LW_OK when defs know it. */
 lw_status lw_key_unknown(const lw_keydef *defs, size_t n, const char *section, const char *key,
                          const char *file, int line, lw_error *err);
 

@@ -125,10 +125,12 @@ static bool given(const lw_profile *p, const char *section, const char *name)
 static void where_of(const lw_profile *p, const char *section, const char *name,
                      const char **file, int *line);
 
-/* Where to point a message about a key: its own line, else its section's. */
+/* Where to point a message about a key: its own line, else its section's
+ * (name NULL: the section's). */
 static int line_of(const lw_profile *p, const char *section, const char *name)
 {
-    const lw_keydef *d = lw_key_find(lw_profile_keys, lw_profile_nkeys, section, name);
+    const lw_keydef *d = name ? lw_key_find(lw_profile_keys, lw_profile_nkeys, section, name)
+                              : NULL;
     if (d && p->key_line[key_index(d)] > 0)
         return p->key_line[key_index(d)];
     int l = lw_ini_section_line(p->ini, section);
@@ -378,7 +380,7 @@ static lw_status check_led(lw_profile *p, lw_error *err)
     lw_table_free(led->flux);
     led->flux = NULL;
     if (!by_rating)
-        return lw_error_set(err, LW_EINPUT, p->path, line_of(p, "led", "model"),
+        return lw_error_set(err, LW_EINPUT, p->path, line_of(p, "led", NULL),
                             "[led] needs the light output: flux_lm with flux_current_ma, or "
                             "flux_file");
     st = need(p, "led", "flux_lm", "flux_current_ma", err);
@@ -525,16 +527,8 @@ static lw_status check_modes(const lw_profile *p, lw_error *err)
     for (size_t i = 0; p->ini->sections && i < p->ini->n_sections; i++) {
         const char *mname;
         const char *sec = p->ini->sections[i].name;
-        if (strncmp(sec, "mode", 4) == 0 && !is_mode_section(sec, &mname))
-            return lw_error_set(err, LW_EINPUT, p->path, p->ini->sections[i].line,
-                                "a mode section needs a name: [mode NAME]");
         if (!is_mode_section(sec, &mname))
-            continue;
-        for (size_t k = 0; k < i; k++)
-            if (!strcmp(p->ini->sections[k].name, sec))
-                return lw_error_set(err, LW_EINPUT, p->path, p->ini->sections[i].line,
-                                    "[%s] appears twice (first on line %d)", sec,
-                                    p->ini->sections[k].line);
+            continue; /* names and repeats were judged as the file was read */
         lw_profile copy;
         lw_status st = lw_profile_copy(&copy, p, err);
         if (st == LW_OK)
@@ -557,6 +551,16 @@ static lw_status profile_check(void *ctx, const char *section, const char *key,
     (void)ctx;
     const char *mname;
     char sec[LW_INI_NAME_MAX], k[LW_INI_NAME_MAX];
+    if (!key && !strcmp(section, "mode"))
+        return lw_error_set(err, LW_EINPUT, file, line, "a mode section needs a name: [mode NAME]");
+    if (!key && is_mode_section(section, &mname))
+        return LW_OK;
+    if (!key && !strcmp(section, "cell"))
+        return lw_error_set(err, LW_EINPUT, file, line,
+                            "[cell] opens a cell file, not a light profile: name the cell in a "
+                            "profile's [pack] cell");
+    if (!key)
+        return lw_key_unknown(lw_profile_keys, lw_profile_nkeys, section, NULL, file, line, err);
     if (is_mode_section(section, &mname)) {
         if (!split_dotted(key, sec, sizeof sec, k, sizeof k))
             return lw_error_set(err, LW_EINPUT, file, line,

@@ -136,7 +136,7 @@ static void profile_refusals(void **state)
          "q.ini", 9, "did you mean 'drive.resistor_ohm'?"},
         {"[pack]\ncell = t\n[led]\nmodel = constant\nforward_v = 2\nflux_lm = 1\n"
          "flux_current_ma = 20\n[drive]\nresistor_ohm = 33\n[bogus]\nx = 1\n",
-         "q.ini", 11, "unknown section [bogus]"},
+         "q.ini", 10, "unknown section [bogus]"},
         {"[pack]\ncell = t\n[led]\nmodel = constant\nflux_lm = 1\nflux_current_ma = 20\n"
          "[drive]\nresistor_ohm = 33\n",
          "q.ini", 4, "needs the key 'forward_v'"},
@@ -151,7 +151,7 @@ static void profile_refusals(void **state)
          "expected one of constant, linear, shockley, table"},
         {"[pack]\ncell = t\n[led]\nmodel = constant\nforward_v = 2\n[drive]\n"
          "resistor_ohm = 33\n",
-         "q.ini", 4, "needs the light output"},
+         "q.ini", 3, "needs the light output"},
         {"[pack]\ncell = t\n[led]\nmodel = constant\nforward_v = 2\nflux_lm = 1\n"
          "flux_current_ma = 20\nflux_file = f.csv\n[drive]\nresistor_ohm = 33\n",
          "q.ini", 8, "either flux_file or flux_lm"},
