@@ -531,6 +531,57 @@ static void previous_curve(const char *ini_path, const char *base, char *out, si
     lw_ini_clear(&old);
 }
 
+static lw_status write_curve(FILE *fp, const void *ctx, lw_error *err)
+{
+    const lw_cell *cell = ctx;
+    lw_csvw w;
+    lw_csvw_init(&w, fp);
+    lw_csvw_text(&w, "depth_pct");
+    lw_csvw_text(&w, "open_circuit_v");
+    lw_csvw_text(&w, "resistance_ohm");
+    lw_csvw_end_row(&w);
+    for (size_t i = 0; i < cell->ocv->n; i++) {
+        lw_csvw_num(&w, 100.0 * cell->ocv->x[i]);
+        lw_csvw_num(&w, cell->ocv->y[i]);
+        lw_csvw_num(&w, cell->res->y[i]);
+        lw_csvw_end_row(&w);
+    }
+    return w.failed ? lw_error_set(err, LW_EIO, NULL, 0, "write error") : LW_OK;
+}
+
+typedef struct {
+    const lw_cell *cell;
+    const char *comment;
+    const char *curve_name;
+} cell_text;
+
+static lw_status write_cell_text(FILE *fp, const void *ctx, lw_error *err)
+{
+    const cell_text *t = ctx;
+    const lw_cell *cell = t->cell;
+    for (const char *p = t->comment; p && *p;) {
+        const char *nl = strchr(p, '\n');
+        size_t n = nl ? (size_t)(nl - p) : strlen(p);
+        char line[LW_INI_LINE_MAX], safe[4 * LW_INI_LINE_MAX];
+        snprintf(line, sizeof line, "%.*s", (int)(n < 150 ? n : 150), p);
+        lw_escape(safe, sizeof safe, line);
+        fprintf(fp, "; %.180s\n", safe);
+        p += n + (nl ? 1 : 0);
+    }
+    fprintf(fp, "[cell]\nname = %s\nchemistry = %s\nnominal_v = %.17g\ncapacity_mah = %.17g\n"
+                "rated_ma = %.17g\npeukert = %.17g\nmax_capacity_mah = %.17g\ncutoff_v = %.17g\n"
+                "rechargeable = %s\n",
+            cell->name, lw_chemistry_names[cell->chemistry], cell->nominal_v,
+            cell->capacity_ah * 1e3, cell->rated_a * 1e3, cell->peukert,
+            cell->max_capacity_ah * 1e3, cell->cutoff_v, cell->rechargeable ? "yes" : "no");
+    if (cell->mass_g > 0)
+        fprintf(fp, "mass_g = %.17g\n", cell->mass_g);
+    if (cell->self_discharge_pct_month > 0)
+        fprintf(fp, "self_discharge_pct_month = %.17g\n", cell->self_discharge_pct_month);
+    fprintf(fp, "curve = %s\n", t->curve_name);
+    return ferror(fp) ? lw_error_set(err, LW_EIO, NULL, 0, "write error") : LW_OK;
+}
+
 lw_status lw_cell_save(const char *ini_path, const lw_cell *cell, const char *comment,
                        lw_error *err)
 {
@@ -552,9 +603,8 @@ lw_status lw_cell_save(const char *ini_path, const lw_cell *cell, const char *co
         return lw_error_set(err, LW_EINPUT, ini_path, 0,
                             "the cell file's name is longer than 400 bytes");
     unsigned seed = (unsigned)getpid() * 2654435761u ^ (unsigned)time(NULL);
-    lw_outfile ini, csv;
-    lw_status st = LW_EIO;
-    for (int attempt = 0; attempt < 16 && st != LW_OK; attempt++) {
+    bool named = false;
+    for (int attempt = 0; attempt < 16 && !named; attempt++) {
         seed = seed * 1103515245u + 12345u;
         if ((size_t)snprintf(curve_name, sizeof curve_name, "%.400s.curve-%08x.csv", base,
                              seed) >= sizeof curve_name)
@@ -566,70 +616,27 @@ lw_status lw_cell_save(const char *ini_path, const lw_cell *cell, const char *co
                              (int)(base_start - ini_path), ini_path,
                              curve_name) >= sizeof curve_path)
             return lw_error_set(err, LW_EINPUT, ini_path, 0, "the path is too long");
-        if (access(curve_path, F_OK) == 0)
-            continue; /* taken: another name */
-        st = lw_outfile_open(&csv, curve_path, err);
+        named = access(curve_path, F_OK) != 0; /* else taken: another name */
     }
-    if (st != LW_OK)
-        return st;
-    csv.durable = true;
+    if (!named)
+        return lw_error_set(err, LW_EIO, ini_path, 0, "no free name for the curve file");
     char old_curve[LW_PATH_MAX];
     previous_curve(ini_path, base, old_curve, sizeof old_curve);
-    lw_csvw w;
-    lw_csvw_init(&w, csv.fp);
-    lw_csvw_text(&w, "depth_pct");
-    lw_csvw_text(&w, "open_circuit_v");
-    lw_csvw_text(&w, "resistance_ohm");
-    lw_csvw_end_row(&w);
-    for (size_t i = 0; i < cell->ocv->n; i++) {
-        lw_csvw_num(&w, 100.0 * cell->ocv->x[i]);
-        lw_csvw_num(&w, cell->ocv->y[i]);
-        lw_csvw_num(&w, cell->res->y[i]);
-        lw_csvw_end_row(&w);
-    }
-    if (w.failed) {
-        lw_outfile_abort(&csv);
-        return lw_error_set(err, LW_EIO, curve_path, 0, "write error");
-    }
-    /* 1: the curve under its new name; the old pair is untouched */
-    if ((st = lw_outfile_commit(&csv, err)) != LW_OK)
-        return st;
-    st = lw_outfile_open(&ini, ini_path, err);
+    /* 1: the curve under its new name, removed again by a signal until the
+     * cell file naming it is in place; the old pair is untouched */
+    int guard = lw_outfile_guard(curve_path);
+    lw_status st = lw_outfile_write_durable(curve_path, -1, write_curve, cell, err);
     if (st != LW_OK) {
-        unlink(curve_path);
+        lw_outfile_unguard(guard);
         return st;
     }
-    ini.durable = true;
-    FILE *fp = ini.fp;
-    for (const char *p = comment; p && *p;) {
-        const char *nl = strchr(p, '\n');
-        size_t n = nl ? (size_t)(nl - p) : strlen(p);
-        char line[LW_INI_LINE_MAX], safe[4 * LW_INI_LINE_MAX];
-        snprintf(line, sizeof line, "%.*s", (int)(n < 150 ? n : 150), p);
-        lw_escape(safe, sizeof safe, line);
-        fprintf(fp, "; %.180s\n", safe);
-        p += n + (nl ? 1 : 0);
-    }
-    fprintf(fp, "[cell]\nname = %s\nchemistry = %s\nnominal_v = %.17g\ncapacity_mah = %.17g\n"
-                "rated_ma = %.17g\npeukert = %.17g\nmax_capacity_mah = %.17g\ncutoff_v = %.17g\n"
-                "rechargeable = %s\n",
-            cell->name, lw_chemistry_names[cell->chemistry], cell->nominal_v,
-            cell->capacity_ah * 1e3, cell->rated_a * 1e3, cell->peukert,
-            cell->max_capacity_ah * 1e3, cell->cutoff_v, cell->rechargeable ? "yes" : "no");
-    if (cell->mass_g > 0)
-        fprintf(fp, "mass_g = %.17g\n", cell->mass_g);
-    if (cell->self_discharge_pct_month > 0)
-        fprintf(fp, "self_discharge_pct_month = %.17g\n", cell->self_discharge_pct_month);
-    fprintf(fp, "curve = %s\n", curve_name);
-    if (ferror(fp)) {
-        lw_outfile_abort(&ini);
-        unlink(curve_path);
-        return lw_error_set(err, LW_EIO, ini_path, 0, "write error");
-    }
-    /* 2: the cell file naming the new curve, renamed last */
-    st = lw_outfile_commit(&ini, err);
+    /* 2: the cell file naming the new curve, renamed last; the guard is
+     * released in the same step as that rename */
+    cell_text text = {cell, comment, curve_name};
+    st = lw_outfile_write_durable(ini_path, guard, write_cell_text, &text, err);
     if (st != LW_OK) {
         unlink(curve_path);
+        lw_outfile_unguard(guard);
         return st;
     }
     /* 3: the curve the old cell file named, no longer used */

@@ -205,9 +205,9 @@ int cli_pick(int argc, char **argv)
     size_t n = 0;
     while (st == LW_OK && list[n])
         n++;
-    lw_pick *picks = st == LW_OK ? calloc(n ? n : 1, sizeof *picks) : NULL;
-    lw_status *status = picks ? calloc(n ? n : 1, sizeof *status) : NULL;
-    lw_error *errs = status ? calloc(n ? n : 1, sizeof *errs) : NULL;
+    lw_pick *picks = st == LW_OK ? lw_calloc(n ? n : 1, sizeof *picks) : NULL;
+    lw_status *status = picks ? lw_calloc(n ? n : 1, sizeof *status) : NULL;
+    lw_error *errs = status ? lw_calloc(n ? n : 1, sizeof *errs) : NULL;
     if (st == LW_OK && !errs)
         st = lw_error_set(&err, LW_ENOMEM, NULL, 0, "out of memory");
     if (st == LW_OK && !cells) {

@@ -58,7 +58,7 @@ static lw_status read_led_data(const char *path, led_data *d, lw_error *err)
     if (cf < 0)
         cf = cr;
     size_t n = csv.nrow;
-    double *buf = st == LW_OK ? malloc(3 * n * sizeof *buf) : NULL;
+    double *buf = st == LW_OK ? lw_malloc(3 * n * sizeof *buf) : NULL;
     if (!buf) {
         lw_csv_clear(&csv);
         return st != LW_OK ? st : lw_error_set(err, LW_ENOMEM, NULL, 0, "out of memory");
@@ -248,19 +248,22 @@ static int led_option(void *ctx, int id, const char *arg)
     }
 }
 
+typedef struct {
+    const led_data *d;
+    const lw_led_fit *lin, *sh;
+} fit_plot_ctx;
+
+static lw_status fit_plot_fn(FILE *fp, const void *ctx, lw_error *err)
+{
+    const fit_plot_ctx *c = ctx;
+    return lw_plot_led_fit(fp, c->d->i_a, c->d->v, c->d->n, c->lin, c->sh, err);
+}
+
 static lw_status fit_plot(const char *path, const led_data *d, const lw_led_fit *lin,
                           const lw_led_fit *sh, lw_error *err)
 {
-    lw_outfile out;
-    lw_status st = lw_outfile_open(&out, path, err);
-    if (st != LW_OK)
-        return st;
-    st = lw_plot_led_fit(out.fp, d->i_a, d->v, d->n, lin, sh, err);
-    if (st != LW_OK) {
-        lw_outfile_abort(&out);
-        return st;
-    }
-    return lw_outfile_commit(&out, err);
+    fit_plot_ctx c = {d, lin, sh};
+    return lw_outfile_write(path, fit_plot_fn, &c, err);
 }
 
 int cli_fit_led(int argc, char **argv)

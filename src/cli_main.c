@@ -52,8 +52,8 @@ static const char *const main_help =
     "Cell names are looked up in the profile's folder, then in the folders of\n"
     "LAMPWICK_CELLS (colon-separated), then in the installed cell library.\n"
     "\n"
-    "Exit status: 0 success, 1 no answer (the light gives no light, nothing fits),\n"
-    "2 bad usage or bad input.\n";
+    "Exit status: 0 success, 1 no answer (the light gives no light, nothing fits,\n"
+    "no convergence, out of memory), 2 bad usage, bad input or a failed write.\n";
 
 /* ---- check ---- */
 
@@ -459,6 +459,9 @@ int lw_cli_main(int argc, char **argv)
         fputs("lampwick: standard output is closed\n", stderr);
         return EXIT_BADINPUT;
     }
+    /* past a file-size limit (ulimit -f) a write fails with EFBIG and is
+     * reported, instead of the signal ending us with a temporary file left */
+    signal(SIGXFSZ, SIG_IGN);
     const int sigs[] = {SIGINT, SIGTERM, SIGHUP, SIGPIPE};
     for (size_t i = 0; i < sizeof sigs / sizeof sigs[0]; i++) {
         struct sigaction sa;

@@ -59,10 +59,10 @@ int cli_parse(const cli_command *cmd, int argc, char **argv, cli_on_option fn, v
     size_t n = 0;
     while (cmd->options[n].name)
         n++;
-    struct option *lo = calloc(n + 1, sizeof *lo);
+    struct option *lo = lw_calloc(n + 1, sizeof *lo);
     if (!lo) {
         fputs("lampwick: out of memory\n", stderr);
-        return EXIT_BADINPUT;
+        return EXIT_NOANSWER;
     }
     for (size_t i = 0; i < n; i++)
         lo[i] = (struct option){cmd->options[i].name,
@@ -125,6 +125,7 @@ int exit_code(lw_status st)
         return 0;
     case LW_ENOANSWER:
     case LW_ENUMERIC:
+    case LW_ENOMEM: /* the run could not be done here: not the input's fault */
         return EXIT_NOANSWER;
     default:
         return EXIT_BADINPUT;
@@ -193,18 +194,14 @@ lw_status load_profile(const char *path, const common_opts *o, lw_profile *prof,
     return st;
 }
 
+static lw_status chart_fn(FILE *fp, const void *ctx, lw_error *err)
+{
+    return lw_plot_svg(fp, ctx, err);
+}
+
 lw_status write_chart(const char *path, const lw_chart *chart, lw_error *err)
 {
-    lw_outfile out;
-    lw_status st = lw_outfile_open(&out, path, err);
-    if (st != LW_OK)
-        return st;
-    st = lw_plot_svg(out.fp, chart, err);
-    if (st != LW_OK) {
-        lw_outfile_abort(&out);
-        return st;
-    }
-    return lw_outfile_commit(&out, err);
+    return lw_outfile_write(path, chart_fn, chart, err);
 }
 
 lw_status parse_cells(const char *list, const lw_profile *prof, lw_vary *v, const char ***cells,
@@ -218,7 +215,7 @@ lw_status parse_cells(const char *list, const lw_profile *prof, lw_vary *v, cons
         return st;
     if (v->note[0])
         fprintf(stderr, "lampwick: note: %s\n", v->note);
-    const char **c = calloc(v->n + 1, sizeof *c);
+    const char **c = lw_calloc(v->n + 1, sizeof *c);
     if (!c)
         return lw_error_set(err, LW_ENOMEM, NULL, 0, "out of memory");
     for (size_t i = 0; i < v->n; i++)

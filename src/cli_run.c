@@ -45,36 +45,36 @@ static int run_option(void *ctx, int id, const char *arg)
     }
 }
 
+static lw_status trace_fn(FILE *fp, const void *ctx, lw_error *err)
+{
+    return lw_report_trace_csv(fp, ctx, err);
+}
+
+typedef struct {
+    const lw_profile *prof;
+    const lw_result *res;
+    const lw_trace *tr;
+} plot_ctx;
+
+static lw_status plot_fn(FILE *fp, const void *ctx, lw_error *err)
+{
+    const plot_ctx *c = ctx;
+    char title[160];
+    snprintf(title, sizeof title, "%s%s%s", c->prof->light.name, c->prof->mode[0] ? ", mode " : "",
+             c->prof->mode);
+    return lw_plot_run(fp, title, &c->prof->light, c->res, c->tr, err);
+}
+
 static lw_status write_trace(const char *path, const lw_trace *tr, lw_error *err)
 {
-    lw_outfile out;
-    lw_status st = lw_outfile_open(&out, path, err);
-    if (st != LW_OK)
-        return st;
-    st = lw_report_trace_csv(out.fp, tr, err);
-    if (st != LW_OK) {
-        lw_outfile_abort(&out);
-        return st;
-    }
-    return lw_outfile_commit(&out, err);
+    return lw_outfile_write(path, trace_fn, tr, err);
 }
 
 static lw_status write_plot(const char *path, const lw_profile *prof, const lw_result *res,
                             const lw_trace *tr, lw_error *err)
 {
-    lw_outfile out;
-    lw_status st = lw_outfile_open(&out, path, err);
-    if (st != LW_OK)
-        return st;
-    char title[160];
-    snprintf(title, sizeof title, "%s%s%s", prof->light.name, prof->mode[0] ? ", mode " : "",
-             prof->mode);
-    st = lw_plot_run(out.fp, title, &prof->light, res, tr, err);
-    if (st != LW_OK) {
-        lw_outfile_abort(&out);
-        return st;
-    }
-    return lw_outfile_commit(&out, err);
+    plot_ctx c = {prof, res, tr};
+    return lw_outfile_write(path, plot_fn, &c, err);
 }
 
 static const char *dark_text(lw_end_reason why)

@@ -7,40 +7,76 @@
 #include <errno.h>
 #include <fcntl.h>
 #include <limits.h>
+#include <pthread.h>
 #include <signal.h>
+#include <stdatomic.h>
 #include <stdlib.h>
 #include <string.h>
 #include <sys/stat.h>
 #include <unistd.h>
 
 /* Temporary files open at the moment, for lw_outfile_remove_all.  A command
- * has one or two outputs open at once; a slot is claimed and released by the
- * thread that writes the file, and read by a signal handler. */
+ * has a few outputs open at once; a slot is claimed (free -> taking), filled,
+ * published (-> ready) and released by the thread that writes the file, and
+ * read by a signal handler, which unlinks only ready slots.  Lock-free
+ * atomics are safe in a signal handler (C17 7.14.1.1). */
 #define SLOTS 16
+enum { SLOT_FREE, SLOT_TAKING, SLOT_READY };
 static char slot_path[SLOTS][LW_OUTFILE_PATH_MAX + 32];
-static volatile sig_atomic_t slot_used[SLOTS];
+static atomic_int slot_state[SLOTS];
 
 static int claim_slot(const char *tmp)
 {
-    for (int i = 0; i < SLOTS; i++)
-        if (!slot_used[i]) {
+    for (int i = 0; i < SLOTS; i++) {
+        int want = SLOT_FREE;
+        if (atomic_compare_exchange_strong(&slot_state[i], &want, SLOT_TAKING)) {
             memcpy(slot_path[i], tmp, strlen(tmp) + 1);
-            slot_used[i] = 1;
+            atomic_store(&slot_state[i], SLOT_READY);
             return i;
         }
+    }
     return -1; /* not registered: an interrupt would leave it (very many open) */
 }
 
 static void release_slot(int i)
 {
     if (i >= 0 && i < SLOTS)
-        slot_used[i] = 0;
+        atomic_store(&slot_state[i], SLOT_FREE);
+}
+
+/* Signals held off across the steps that create or rename a registered
+ * file, so that a handler never finds a file that is made but not yet
+ * registered (or renamed but still registered).  Worker threads run with
+ * every signal blocked (pool.c), so the handler runs on this thread. */
+static bool hold_signals(sigset_t *old)
+{
+    sigset_t all;
+    sigfillset(&all);
+    return pthread_sigmask(SIG_SETMASK, &all, old) == 0;
+}
+
+static void release_signals(bool held, const sigset_t *old)
+{
+    if (held)
+        pthread_sigmask(SIG_SETMASK, old, NULL);
+}
+
+int lw_outfile_guard(const char *path)
+{
+    if (strlen(path) >= sizeof slot_path[0])
+        return -1;
+    return claim_slot(path);
+}
+
+void lw_outfile_unguard(int guard)
+{
+    release_slot(guard);
 }
 
 void lw_outfile_remove_all(void)
 {
     for (int i = 0; i < SLOTS; i++)
-        if (slot_used[i])
+        if (atomic_load(&slot_state[i]) == SLOT_READY)
             unlink(slot_path[i]);
 }
 
@@ -82,6 +118,7 @@ lw_status lw_outfile_open(lw_outfile *out, const char *path, lw_error *err)
 {
     memset(out, 0, sizeof *out);
     out->slot = -1;
+    out->release_on_commit = -1;
     if (strlen(path) > LW_OUTFILE_PATH_MAX)
         return lw_error_set(err, LW_EINPUT, NULL, 0,
                             "the output path '%.60s...' is longer than %d bytes", path,
@@ -96,24 +133,41 @@ lw_status lw_outfile_open(lw_outfile *out, const char *path, lw_error *err)
     if (st != LW_OK)
         return st;
     snprintf(out->tmp, sizeof out->tmp, "%s.tmpXXXXXX", out->dest);
+    sigset_t mask_old;
+    bool held = hold_signals(&mask_old);
     int fd = mkstemp(out->tmp);
+    int e = errno;
+    if (fd >= 0)
+        out->slot = claim_slot(out->tmp);
+    release_signals(held, &mask_old);
     if (fd < 0) {
         out->tmp[0] = '\0';
-        return lw_error_set(err, LW_EIO, path, 0, "cannot write: %s", strerror(errno));
+        return lw_error_set(err, LW_EIO, path, 0, "cannot write: %s", strerror(e));
     }
-    out->slot = claim_slot(out->tmp);
     /* mkstemp makes the file private; give it the usual mode */
     mode_t mask = umask(0);
     umask(mask);
     (void)fchmod(fd, 0666 & ~mask);
     out->fp = fdopen(fd, "wb");
     if (!out->fp) {
-        int e = errno;
+        e = errno;
         close(fd);
         lw_outfile_abort(out);
         return lw_error_set(err, LW_EIO, path, 0, "cannot write: %s", strerror(e));
     }
     return LW_OK;
+}
+
+/* The reason a stream has its error flag set: the failed write is tried
+ * again (the data is lost either way) to learn the system's errno. */
+static int write_errno(FILE *fp)
+{
+    int e = errno;
+    clearerr(fp);
+    errno = 0;
+    if (fflush(fp) != 0 && errno)
+        e = errno;
+    return e;
 }
 
 /* fsync the folder of path, so that a rename into it survives a crash. */
@@ -147,29 +201,38 @@ lw_status lw_outfile_commit(lw_outfile *out, lw_error *err)
     }
     int e = 0;
     bool bad = ferror(out->fp) != 0;
-    if (!bad && fflush(out->fp) != 0)
-        bad = true;
-    if (!bad && out->durable && fsync(fileno(out->fp)) != 0)
-        bad = true;
     if (bad)
+        e = write_errno(out->fp);
+    else if (fflush(out->fp) != 0 || (out->durable && fsync(fileno(out->fp)) != 0)) {
+        bad = true;
         e = errno;
+    }
     if (fclose(out->fp) != 0 && !bad) {
         bad = true;
         e = errno;
     }
     out->fp = NULL;
-    if (!bad && rename(out->tmp, out->dest) != 0) {
-        bad = true;
-        e = errno;
+    sigset_t mask_old;
+    bool held = false;
+    if (!bad) {
+        held = hold_signals(&mask_old);
+        if (rename(out->tmp, out->dest) != 0) {
+            bad = true;
+            e = errno;
+        } else {
+            release_slot(out->slot);
+            release_slot(out->release_on_commit);
+            out->slot = -1;
+            out->release_on_commit = -1;
+            out->tmp[0] = '\0';
+        }
+        release_signals(held, &mask_old);
     }
     if (bad) {
         lw_outfile_abort(out);
         return lw_error_set(err, LW_EIO, out->path, 0, "cannot write: %s",
                             e ? strerror(e) : "write error");
     }
-    release_slot(out->slot);
-    out->slot = -1;
-    out->tmp[0] = '\0';
     if (out->durable && sync_folder(out->dest) != 0)
         return lw_error_set(err, LW_EIO, out->path, 0, "cannot sync the folder: %s",
                             strerror(errno));
@@ -223,4 +286,41 @@ lw_status lw_outfile_check(const char *path, const char *what, const char *const
                                 "'%s' is the same file as '%s': refusing to write over it",
                                 path, others[i]);
     return LW_OK;
+}
+
+static lw_status write_whole(const char *path, bool durable, int guard, lw_outfile_fn fn,
+                             const void *ctx, lw_error *err)
+{
+    lw_outfile out;
+    lw_status st = lw_outfile_open(&out, path, err);
+    if (st != LW_OK)
+        return st;
+    out.durable = durable;
+    out.release_on_commit = guard;
+    st = fn(out.fp, ctx, err);
+    if (st == LW_EIO && !out.is_stdout) {
+        /* a writer knows only that the stream failed: name the file and
+         * the reason */
+        int e = write_errno(out.fp);
+        lw_outfile_abort(&out);
+        lw_error_clear(err);
+        return lw_error_set(err, LW_EIO, path, 0, "cannot write: %s",
+                            e ? strerror(e) : "write error");
+    }
+    if (st != LW_OK) {
+        lw_outfile_abort(&out);
+        return st;
+    }
+    return lw_outfile_commit(&out, err);
+}
+
+lw_status lw_outfile_write(const char *path, lw_outfile_fn fn, const void *ctx, lw_error *err)
+{
+    return write_whole(path, false, -1, fn, ctx, err);
+}
+
+lw_status lw_outfile_write_durable(const char *path, int guard, lw_outfile_fn fn,
+                                   const void *ctx, lw_error *err)
+{
+    return write_whole(path, true, guard, fn, ctx, err);
 }

@@ -33,6 +33,7 @@ typedef struct lw_outfile {
     bool is_stdout;
     bool durable;       /* fsync the file and its folder at commit */
     int slot;           /* registry slot of tmp, -1 for none */
+    int release_on_commit; /* a guard released with the rename, -1 for none */
 } lw_outfile;
 
 /* Open `path` for writing under a temporary name in the destination's
@@ -54,6 +55,24 @@ void lw_outfile_abort(lw_outfile *out);
  * message names the option (`what`, e.g. "--trace"). */
 lw_status lw_outfile_check(const char *path, const char *what, const char *const *others,
                            size_t n, lw_error *err);
+
+/* Write a whole file: open `path`, call fn with the temporary's stream,
+ * commit.  A writer's LW_EIO (the stream failed) is reported with the path
+ * and the system's reason ("cannot write: No space left on device"). */
+typedef lw_status (*lw_outfile_fn)(FILE *fp, const void *ctx, lw_error *err);
+lw_status lw_outfile_write(const char *path, lw_outfile_fn fn, const void *ctx, lw_error *err);
+
+/* The same, synced to disk with its folder (files that matter: cell files
+ * and their curves), and releasing `guard` (lw_outfile_guard, or -1) in
+ * the same step as the rename into place. */
+lw_status lw_outfile_write_durable(const char *path, int guard, lw_outfile_fn fn,
+                                   const void *ctx, lw_error *err);
+
+/* Have lw_outfile_remove_all remove `path` too, until unguarded: a file
+ * that is complete but not yet wanted (a new cell curve until its cell
+ * file is in place).  Returns a guard for lw_outfile_unguard (-1: none). */
+int lw_outfile_guard(const char *path);
+void lw_outfile_unguard(int guard);
 
 /* Remove every temporary file still open (for a signal handler: only
  * async-signal-safe calls). */

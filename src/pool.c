@@ -5,6 +5,8 @@
 #include "pool.h"
 
 #include <pthread.h>
+#include <signal.h>
+#include <stdbool.h>
 #include <sched.h>
 #include <stdatomic.h>
 #include <unistd.h>
@@ -65,11 +67,19 @@ void lw_parallel_for(size_t n, int threads, lw_task_fn fn, void *ctx, lw_progres
     pthread_mutex_init(&j.lock, NULL);
     pthread_t tid[LW_POOL_THREADS_MAX];
     int started = 0;
+    /* workers are made with every signal blocked (they inherit the mask), so
+     * that a signal is taken by the calling thread, whose handler may
+     * remove temporary files while no worker is half way through anything */
+    sigset_t all, old;
+    sigfillset(&all);
+    bool masked = threads > 1 && pthread_sigmask(SIG_SETMASK, &all, &old) == 0;
     for (int t = 1; t < threads; t++) {
         if (pthread_create(&tid[started], NULL, worker, &j) != 0)
             break;
         started++;
     }
+    if (masked)
+        pthread_sigmask(SIG_SETMASK, &old, NULL);
     worker(&j);
     for (int t = 0; t < started; t++)
         pthread_join(tid[t], NULL);

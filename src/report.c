@@ -257,14 +257,15 @@ static void pad(FILE *fp, size_t n)
         fputc(' ', fp);
 }
 
-static void write_text(const lw_rtable *t, FILE *fp)
+/* false: out of memory, nothing written */
+static bool write_text(const lw_rtable *t, FILE *fp)
 {
     size_t *w = lw_calloc(t->ncol, sizeof *w);
     bool *num = lw_calloc(t->ncol, sizeof *num);
     if (!w || !num) {
         free(w);
         free(num);
-        return;
+        return false;
     }
     for (size_t c = 0; c < t->ncol; c++) {
         w[c] = width(t->head[c] ? t->head[c] : "");
@@ -322,6 +323,7 @@ static void write_text(const lw_rtable *t, FILE *fp)
         fprintf(fp, "%s\n", t->notes[i]);
     free(w);
     free(num);
+    return true;
 }
 
 static void md_cell(FILE *fp, const char *s)
@@ -387,8 +389,8 @@ lw_status lw_rtable_write(const lw_rtable *t, FILE *fp, lw_format fmt, lw_error 
         write_csv(t, fp, &w);
     else if (fmt == LW_FMT_MD)
         write_md(t, fp);
-    else
-        write_text(t, fp);
+    else if (!write_text(t, fp))
+        return lw_error_set(err, LW_ENOMEM, NULL, 0, "out of memory");
     if (w.failed || ferror(fp))
         return lw_error_set(err, LW_EIO, NULL, 0, "write error");
     return LW_OK;
