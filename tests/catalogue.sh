@@ -88,8 +88,20 @@ EOF
     (cd "$T/w" && ls -l --time-style=+%s.%N; md5sum *) > "$T/before"
 }
 
+# LAMPWICK_CATALOGUE_CORPUS=DIR also writes each case as an input of the
+# fuzzer's cli target there (tests/fuzz/fuzz_targets.h), for seeding.
+ncase=0
+as_corpus() { # ARGS...
+    [ -n "${LAMPWICK_CATALOGUE_CORPUS:-}" ] || return 0
+    ncase=$((ncase + 1))
+    f="$LAMPWICK_CATALOGUE_CORPUS/catalogue-$ncase"
+    printf 'lampwick %s\n' "$*" > "$f"
+    for x in "$T"/w/*; do printf '=== %s\n' "$(basename "$x")" >> "$f"; cat "$x" >> "$f"; done
+}
+
 check() { # STATUS REGEX DESC ARGS...
     want=$1; pat=$2; desc=$3; shift 3
+    as_corpus "$@"
     out=$(cd "$T/w" && LAMPWICK_CELLS=/nonexistent "$LW" "$@" 2>&1 </dev/null)
     rc=$?
     (cd "$T/w" && ls -l --time-style=+%s.%N; md5sum *) > "$T/after"
