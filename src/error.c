@@ -51,7 +51,7 @@ size_t lw_escape(char *out, size_t size, const char *text)
 {
     size_t o = 0;
     const unsigned char *s = (const unsigned char *)text;
-    while (*s && o + 5 < size) {
+    while (*s && o + 5 <= size) { /* room for one \xNN and the NUL */
         unsigned char c = *s;
         size_t len = c < 0x80 ? 1 : (c >> 5) == 6 ? 2 : (c >> 4) == 14 ? 3 : (c >> 3) == 30 ? 4 : 0;
         size_t avail = strnlen((const char *)s, 4);

@@ -195,6 +195,72 @@ cp "$SRC/profiles/demo.ini" "$TMP/lib/"
 expect 0 'not a cell file' env LAMPWICK_CELLS="$TMP/lib" "$LW" cells
 expect 0 'LR6-alkaline' env LAMPWICK_CELLS="$TMP/lib" "$LW" sweep "$TMP/lib/demo.ini" --vary pack.cell=all --columns runtime_h
 
+# ---- drives that once hung or failed: right answers, bounded work ----
+# runtime_h of `run --format csv ARGS` (empty on failure; 60 s bound)
+runtime() {
+    timeout 60 "$LW" run "$@" --format csv 2>/dev/null | awk -F, '
+        NR == 1 { for (i = 1; i <= NF; i++) if ($i == "runtime_h") c = i; next }
+        NR == 2 && c { print $c }'
+}
+# near A B REL: |A - B| <= REL * |B|, both numbers
+near() { awk -v a="$1" -v b="$2" -v r="$3" 'BEGIN {
+    if (a == "" || b == "") exit 1; d = a - b; if (d < 0) d = -d; s = b < 0 ? -b : b
+    exit !(d <= r * s) }'; }
+within() { # DESC A B REL
+    if near "$2" "$3" "$4"; then ok; else bad "$1: $2 vs $3 (relative $4)"; fi
+}
+L=profiles/lantern-drives.ini
+# a lossless converter (efficiency 100 %, no quiescent draw) is the limit of
+# lossy ones, not a hang: continuous in the efficiency (runtime ~ efficiency
+# while the LED power is held, so 99.99 % gives 0.01 % less)
+a=$(runtime $L --mode converter --set drive.efficiency_pct=100 --set drive.quiescent_ua=0)
+b=$(runtime $L --mode converter --set drive.efficiency_pct=99.99 --set drive.quiescent_ua=0)
+within "converter at 100 % against 99.99 %" "$b" "$a" 3e-4
+# a linear regulator with no dropout is the limit of small dropouts
+a=$(runtime $L --mode linear --set drive.dropout_v=0)
+b=$(runtime $L --mode linear --set drive.dropout_v=1e-9)
+c=$(runtime $L --mode linear --set drive.dropout_v=1e-4)
+within "linear, dropout 0 against 1e-9 V" "$b" "$a" 1e-6
+within "linear, dropout 0 against 0.1 mV" "$c" "$a" 1e-3
+# a set current on a knot of the LED's tables lies between its neighbours
+H=profiles/headlamp-18650.ini
+a=$(runtime $H --set drive.type=converter --set drive.set_ma=99 --set drive.efficiency_pct=85)
+b=$(runtime $H --set drive.type=converter --set drive.set_ma=100 --set drive.efficiency_pct=85)
+c=$(runtime $H --set drive.type=converter --set drive.set_ma=101 --set drive.efficiency_pct=85)
+if awk -v a="$a" -v b="$b" -v c="$c" 'BEGIN { exit !(b != "" && a > b && b > c) }'; then ok
+else bad "set_ma 99, 100, 101: $a, $b, $c h are not in order"; fi
+# lights below the visibility floor (LW_VISIBLE_LM, 1 mlm) never light
+expect 1 'below the visibility floor of 0.001 lm' "$LW" run profiles/demo.ini --set led.count=1000
+expect 1 'never-lit' timeout 60 "$LW" run profiles/demo.ini --set led.saturation_a=4e-153
+expect 1 'never-lit' timeout 60 "$LW" run profiles/demo.ini --set led.model=table \
+    --set led.iv_file=white-led-iv.csv --set drive.type=linear-cc --set drive.set_ma=1e-5 \
+    --set drive.dropout_v=0.2
+# special files are refused at once, not read forever
+mkfifo "$TMP/fifo.ini"
+expect 2 'fifo.ini: cannot open: not a regular file' timeout 10 "$LW" run "$TMP/fifo.ini"
+expect 2 '/dev/zero: cannot open: not a regular file' timeout 10 "$LW" run /dev/zero
+# one validation path, whichever way a value comes
+expect 2 '^lampwick: --set cutoff.cell_v: .*not below the fresh open-circuit voltage' \
+    "$LW" run profiles/demo.ini --set cutoff.cell_v=100
+expect 2 "--vary pack.cell: \[pack\] cell: cell file '.*x.ini' not found" \
+    "$LW" sweep profiles/demo.ini --vary pack.cell=../cells/x.ini
+expect 0 'resistor, 0 ohm per string' "$LW" run profiles/demo.ini --set drive.resistor_ohm=-0 \
+    --set led.count=1 --set pack.series=2
+# reading stops at the first unknown key, after 20,000 lines before it
+awk 'BEGIN { print "[light]"; print "name = many"; for (i = 0; i < 20000; i++) print "; " i
+             print "[mode a]"; for (i = 0; i < 20000; i++) print "drive.resistor_ohm" i " = 1" }' \
+    > "$TMP/many.ini"
+expect 2 'many.ini:20004: unknown key .resistor_ohm0. in \[drive\]' timeout 10 "$LW" run "$TMP/many.ini"
+# and at the documented limits (docs/formats.md)
+awk 'BEGIN { for (i = 0; i < 300; i++) { print "[mode m" i "]"; print "drive.resistor_ohm = " i + 1 } }' \
+    > "$TMP/modes.ini"
+expect 2 'modes.ini: more than 256 \[mode\] sections' timeout 10 "$LW" run "$TMP/modes.ini"
+awk 'BEGIN { for (i = 0; i < 1100; i++) print "[mode m" i "]" }' > "$TMP/sections.ini"
+expect 2 'sections.ini:1001: more than 1000 sections' timeout 10 "$LW" run "$TMP/sections.ini"
+awk 'BEGIN { for (i = 0; i < 12000; i++) print "; a comment line of about a hundred characters, repeated until the file is over a megabyte" }' \
+    > "$TMP/big.ini"
+expect 2 'big.ini:[0-9]+: the file is larger than 1048576 bytes' timeout 10 "$LW" run "$TMP/big.ini"
+
 # regression of run --format csv on every bundled profile and mode
 compare() { # compare GOLDEN ACTUAL
     awk -F, -v g="$1" '

@@ -73,6 +73,33 @@ static void strlcpy_truncates_safely(void **state)
     assert_string_equal(b, "ab");
 }
 
+/* No byte of an input reaches a terminal raw: control characters (C0, DEL)
+ * and invalid UTF-8 become \xNN; valid UTF-8 stays (RFC 3629 for the
+ * encoding: overlong forms and surrogates are invalid). */
+static void messages_escape_terminal_bytes(void **state)
+{
+    (void)state;
+    char out[128];
+    lw_escape(out, sizeof out, "a\x1b[31mb\x7f\x07");
+    assert_string_equal(out, "a\\x1B[31mb\\x7F\\x07");
+    lw_escape(out, sizeof out, "\xc0\xaf \xed\xa0\x80 \xe2\x82\xac");
+    assert_string_equal(out, "\\xC0\\xAF \\xED\\xA0\\x80 \xe2\x82\xac");
+    size_t at;
+    assert_false(lw_utf8_valid("ok\xf4\x90\x80\x80", 6, &at)); /* above U+10FFFF */
+    assert_int_equal(at, 2);
+    assert_true(lw_utf8_valid("\xf4\x8f\xbf\xbf", 4, &at)); /* U+10FFFF itself */
+    lw_error e;
+    lw_error_clear(&e);
+    lw_error_set(&e, LW_EINPUT, "p\x1b.ini", 3, "name = \x9b" "2J");
+    char buf[LW_ERR_FILE_MAX + LW_ERR_MSG_MAX + 32];
+    lw_error_format(&e, buf, sizeof buf);
+    assert_string_equal(buf, "p\\x1B.ini:3: name = \\x9B2J");
+    /* a long escape never overruns, and ends on a whole \xNN */
+    char small[7];
+    lw_escape(small, sizeof small, "ab\x01\x02");
+    assert_string_equal(small, "ab\\x01");
+}
+
 int main(void)
 {
     const struct CMUnitTest tests[] = {
@@ -81,6 +108,7 @@ int main(void)
         cmocka_unit_test(parse_int_is_strict),
         cmocka_unit_test(first_error_wins_and_formats),
         cmocka_unit_test(strlcpy_truncates_safely),
+        cmocka_unit_test(messages_escape_terminal_bytes),
     };
     return cmocka_run_group_tests(tests, NULL, NULL);
 }
