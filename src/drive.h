@@ -140,11 +140,6 @@ lw_status lw_light_point(const lw_light *light, double depth, bool fallback, lw_
 lw_status lw_light_point_at(const lw_light *light, double depth, double ocv_v,
                             double r_cell_ohm, bool fallback, lw_point *pt, lw_error *err);
 
-/* Passes of the converter's fixed point between efficiency and input
- * voltage (efficiency table only); it settles in two to four passes on any
- * table whose efficiency changes by less than its value per volt. */
-#define LW_CONVERTER_FIXED_POINT_MAX 50
-
 /* Hours in an average month (365.25 x 24 / 12). */
 #define LW_HOURS_PER_MONTH 730.5
 
