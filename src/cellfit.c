@@ -240,8 +240,10 @@ static double mid_median(const double *d, const double *f)
     for (size_t k = 0; k < DENSE; k++)
         if (d[k] >= 0.1 && d[k] <= 0.9)
             mid[nm++] = f[k];
+    if (nm == 0)
+        return f[DENSE / 2];
     qsort(mid, nm, sizeof *mid, cmp_dbl);
-    return nm ? mid[nm / 2] : f[DENSE / 2];
+    return mid[nm / 2];
 }
 
 static size_t reliable_limit(const reduced *lo, const reduced *hi, double cutoff_v,
@@ -345,7 +347,8 @@ lw_status lw_fit_cell(const lw_dlog *logs, size_t nlogs, const lw_cellfit_option
         }
         rs[k] = s / m;
     }
-    out->reliable_depth = d[lim];
+    if (st == LW_OK)
+        out->reliable_depth = d[lim];
     if (st == LW_OK && lim + 1 < DENSE)
         extend_near_end(&r[lo], d, lim, rs, ocv);
     for (size_t k = 0; k < DENSE && st == LW_OK; k++)

@@ -208,8 +208,10 @@ int cli_pick(int argc, char **argv)
     lw_pick *picks = st == LW_OK ? lw_calloc(n ? n : 1, sizeof *picks) : NULL;
     lw_status *status = picks ? lw_calloc(n ? n : 1, sizeof *status) : NULL;
     lw_error *errs = status ? lw_calloc(n ? n : 1, sizeof *errs) : NULL;
-    if (st == LW_OK && !errs)
-        st = lw_error_set(&err, LW_ENOMEM, NULL, 0, "out of memory");
+    if (st == LW_OK && (!picks || !status || !errs)) {
+        lw_error_set(&err, LW_ENOMEM, NULL, 0, "out of memory");
+        st = LW_ENOMEM;
+    }
     if (st == LW_OK && !cells) {
         status[0] = lw_pick_resistor(&prof, a.kind, target, a.eseries, &picks[0], &errs[0]);
         if (status[0] != LW_OK && status[0] != LW_ENOANSWER)

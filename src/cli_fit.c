@@ -107,7 +107,7 @@ static void print_section(FILE *fp, const lw_led_fit *lin, const lw_led_fit *sh,
     if (sh) {
         fprintf(fp, "model = shockley\nideality = %.5g\nsaturation_a = %.5g\nseries_ohm = %.5g\n",
                 sh->ideality, sh->saturation_a, sh->series_ohm);
-    } else {
+    } else if (lin) {
         fprintf(fp, "model = linear\nthreshold_v = %.5g\nslope_ohm = %.5g\n", lin->threshold_v,
                 lin->slope_ohm);
     }

@@ -176,7 +176,7 @@ lw_status lw_csv_read(const char *path, lw_csv *csv, lw_error *err)
         bytes += got;
         if (bytes > LW_CSV_BYTES_MAX) {
             r.failed = true;
-            lw_error_set(err, LW_EINPUT, path, r.line, "the file is larger than %d bytes",
+            lw_error_set(err, LW_EINPUT, path, r.line, "the file is larger than %ld bytes",
                          LW_CSV_BYTES_MAX);
             break;
         }

@@ -25,7 +25,7 @@
 /* Limits of one CSV file (a 1 Hz discharge log of 100 days is 8.6 M rows
  * of about 20 bytes: 170 MB; logs are kept at a sample a minute or slower). */
 #define LW_CSV_FIELD_MAX 128
-#define LW_CSV_BYTES_MAX (64 * 1024 * 1024)
+#define LW_CSV_BYTES_MAX (64L * 1024 * 1024)
 #define LW_CSV_ROWS_MAX 1000000
 
 typedef struct lw_csv {

@@ -84,11 +84,13 @@ typedef struct engine {
  * (e->seg), so OCV and R come straight from it without a table search. */
 static lw_status eval(engine *e, double d, lw_point *pt)
 {
-    if (++e->res->solves > e->opt->max_solves)
+    if (++e->res->solves > e->opt->max_solves) {
+        *pt = (lw_point){.depth = d, .dtdd_h = INFINITY, .regime = LW_REGIME_DROPOUT};
         return lw_error_set(e->err, LW_ENUMERIC, NULL, 0,
                             "the run stopped after %d operating-point solves near depth %.6g "
                             "without meeting its tolerance (max_solves)",
                             e->opt->max_solves, d);
+    }
     if (e->seg == SIZE_MAX)
         return lw_light_point(e->l, d, e->fallback, pt, e->err);
     const lw_table *o = e->l->pack.cell.ocv, *r = e->l->pack.cell.res;

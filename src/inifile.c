@@ -178,7 +178,7 @@ static char *read_line(char *str, int num, void *stream)
     r->line++;
     r->bytes += got;
     if (r->bytes > LW_INI_BYTES_MAX) {
-        fail(r, LW_EINPUT, "the file is larger than %d bytes", LW_INI_BYTES_MAX);
+        fail(r, LW_EINPUT, "the file is larger than %ld bytes", LW_INI_BYTES_MAX);
         return NULL;
     }
     if (!line_ok(r, r->buf, (size_t)got) || got >= num)

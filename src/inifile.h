@@ -31,7 +31,7 @@
 #define LW_INI_NAME_MAX 64
 /* Limits of one INI file: far above any real profile or cell file (the
  * bundled ones are under 2 kB, 60 keys, 10 sections). */
-#define LW_INI_BYTES_MAX (1024 * 1024)
+#define LW_INI_BYTES_MAX (1024L * 1024)
 #define LW_INI_ENTRIES_MAX 10000
 #define LW_INI_SECTIONS_MAX 1000
 

@@ -192,6 +192,8 @@ static lw_status aspect(const lw_spec *s, const char *label, aspect_fn f, char *
                         size_t csize, lw_rtable *t, lw_error *err)
 {
     size_t n = s->nrows * s->ncells;
+    if (n == 0)
+        return LW_OK; /* no runs: nothing to say */
     bool *done = lw_calloc(2 * n, sizeof *done);
     if (!done)
         return lw_error_set(err, LW_ENOMEM, NULL, 0, "out of memory");
