@@ -246,6 +246,10 @@ expect 2 "--vary pack.cell: \[pack\] cell: cell file '.*x.ini' not found" \
     "$LW" sweep profiles/demo.ini --vary pack.cell=../cells/x.ini
 expect 0 'resistor, 0 ohm per string' "$LW" run profiles/demo.ini --set drive.resistor_ohm=-0 \
     --set led.count=1 --set pack.series=2
+# every column may be asked for, more than once (once refused past 22)
+cols=$(awk 'BEGIN { for (i = 0; i < 30; i++) printf "%sruntime_h", i ? "," : "" }')
+n=$("$LW" sweep profiles/demo.ini --vary drive.resistor_ohm=22 --columns "$cols" --format csv | head -1 | awk -F, '{ print NF }')
+[ "$n" = 31 ] && ok || bad "30 columns asked for, $n given"
 # reading stops at the first unknown key, after 20,000 lines before it
 awk 'BEGIN { print "[light]"; print "name = many"; for (i = 0; i < 20000; i++) print "; " i
              print "[mode a]"; for (i = 0; i < 20000; i++) print "drive.resistor_ohm" i " = 1" }' \

@@ -514,6 +514,31 @@ static void solve_budget(void **state)
     lw_light_clear(&l);
 }
 
+/* The per-run work cap: a run that would need more solves than allowed
+ * stops with LW_ENUMERIC at the cap, saying where (never a hang). */
+static void work_cap_stops_a_run(void **state)
+{
+    (void)state;
+    lw_light l;
+    shockley_demo_light(&l);
+    lw_result full = run_ok(&l, false);
+    lw_run_options o = lw_run_options_default();
+    o.max_solves = (int)(full.solves / 2);
+    lw_result r;
+    lw_error e;
+    lw_error_clear(&e);
+    assert_int_equal(lw_run(&l, &o, &r, &e), LW_ENUMERIC);
+    assert_non_null(strstr(e.msg, "operating-point solves near depth"));
+    lw_result_clear(&r);
+    o.max_solves = (int)full.solves; /* exactly enough */
+    lw_error_clear(&e);
+    assert_int_equal(lw_run(&l, &o, &r, &e), LW_OK);
+    assert_close(r.runtime_h, full.runtime_h, 0);
+    lw_result_clear(&r);
+    lw_result_clear(&full);
+    lw_light_clear(&l);
+}
+
 int main(void)
 {
     gsl_set_error_handler_off();
@@ -534,6 +559,7 @@ int main(void)
         cmocka_unit_test(warnings_fire),
         cmocka_unit_test(run_options_are_validated),
         cmocka_unit_test(solve_budget),
+        cmocka_unit_test(work_cap_stops_a_run),
     };
     return cmocka_run_group_tests(tests, NULL, NULL);
 }
