@@ -365,7 +365,16 @@ args 2 "cannot open: not a regular file" run /dev/null
 args 2 "--trace: 'p.ini' is the same file as 'p.ini'" run p.ini --trace p.ini
 args 2 "--plot: 'cellA.curve.csv' is the same file as" run p.ini --plot cellA.curve.csv
 args 2 "--plot: 'same.svg' is the same file as 'same.svg'" run p.ini --trace same.svg --plot same.svg
-args 2 "cannot write: not a regular file" run p.ini --trace /dev/null
+# a device or pipe as a destination: a private one, never the system's
+# (a lampwick that wrongly replaced it would, as root, replace /dev/null)
+if mknod "$T/node" c 1 3 2>/dev/null; then kind=c; else mkfifo "$T/node"; kind=p; fi
+args 2 "cannot write: not a regular file" run p.ini --trace "$T/node"
+if [ -$kind "$T/node" ]; then pass=$((pass + 1)); else
+    fail=$((fail + 1)); echo "FAIL [--trace DEVICE] the device was replaced"; fi
+mkfifo "$T/pipe"
+args 2 "cannot write: not a regular file" run p.ini --plot "$T/pipe"
+if [ -p "$T/pipe" ]; then pass=$((pass + 1)); else
+    fail=$((fail + 1)); echo "FAIL [--plot FIFO] the pipe was replaced"; fi
 args 2 "is longer than 511 bytes" run p.ini --trace "$(printf 'x%.0s' $(seq 1 600)).csv"
 args 2 "--out: 'log.csv' is the same file" fit cell log.csv --load-ohm 3.9 --cutoff-v 1.1 --resistance-ohm 0.03 --out log.csv
 args 2 "a cell file name must end in .ini" fit cell log.csv --load-ohm 3.9 --cutoff-v 1.1 --resistance-ohm 0.03 --out out.txt
