@@ -14,8 +14,8 @@ static inline void set_curve(lw_cell *c, const double *d, const double *ocv, con
 {
     lw_error e;
     lw_error_clear(&e);
-    c->ocv = lw_table_new(d, ocv, n, &e);
-    c->res = lw_table_new(d, r, n, &e);
+    c->ocv = lw_interp_new(d, ocv, n, &e);
+    c->res = lw_interp_new(d, r, n, &e);
     assert_non_null(c->ocv);
     assert_non_null(c->res);
 }

@@ -61,8 +61,8 @@ static void temperature_factors_interpolate_and_clamp(void **state)
     lw_error_clear(&e);
     lw_cell c;
     memset(&c, 0, sizeof c);
-    c.temp_capacity = lw_table_new(t, cf, 3, &e);
-    c.temp_resistance = lw_table_new(t, rf, 3, &e);
+    c.temp_capacity = lw_interp_new(t, cf, 3, &e);
+    c.temp_resistance = lw_interp_new(t, rf, 3, &e);
     double kc, kr;
     bool out = true;
     lw_cell_temperature_factors(&c, -10, &kc, &kr, &out);

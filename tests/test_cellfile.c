@@ -26,8 +26,8 @@ static lw_cell small_cell(const char *name)
     const double d[] = {0, 0.5, 1}, v[] = {1.4, 1.25, 0.9}, r[] = {0.03, 0.033, 0.12};
     lw_error e;
     lw_error_clear(&e);
-    c.ocv = lw_table_new(d, v, 3, &e);
-    c.res = lw_table_new(d, r, 3, &e);
+    c.ocv = lw_interp_new(d, v, 3, &e);
+    c.res = lw_interp_new(d, r, 3, &e);
     return c;
 }
 
@@ -51,7 +51,7 @@ static void names_round_trip_or_are_refused(void **state)
         assert_int_equal(lw_cell_load(path, &back, &e), LW_OK);
         assert_string_equal(back.name, good[i]);
         assert_close(back.capacity_ah, c.capacity_ah, 1e-15); /* full precision */
-        assert_close(lw_table_linear(back.res, 1.0), 0.12, 1e-15);
+        assert_close(lw_interp_linear(back.res, 1.0), 0.12, 1e-15);
         lw_cell_clear(&back);
         lw_cell_clear(&c);
     }

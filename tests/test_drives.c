@@ -175,14 +175,14 @@ static void converter_efficiency_table(void **state)
     const double vin[] = {1.0, 2.0, 3.0, 4.0}, eta[] = {70, 80, 88, 90};
     lw_error e;
     lw_error_clear(&e);
-    l.drive.efficiency = lw_table_new(vin, eta, 4, &e);
+    l.drive.efficiency = lw_interp_new(vin, eta, 4, &e);
     assert_non_null(l.drive.efficiency);
     for (double d = 0; d <= 0.1; d += 0.02) {
         lw_point p;
         assert_int_equal(lw_light_point(&l, d, false, &p, &e), LW_OK);
         if (p.regime == LW_REGIME_DROPOUT)
             continue;
-        double eta_v = lw_table_linear(l.drive.efficiency, p.pack_v) / 100.0;
+        double eta_v = lw_interp_linear(l.drive.efficiency, p.pack_v) / 100.0;
         assert_close(p.p_drawn_w - p.p_int_w, p.p_led_w / eta_v + p.pack_v * 100e-6, 1e-10);
     }
     lw_result r = run_ok(&l, false);
@@ -204,7 +204,7 @@ static void converter_steep_efficiency_notch(void **state)
     const double vin[] = {1.5, 1.55, 3.2}, eta[] = {75, 8, 90};
     lw_error e;
     lw_error_clear(&e);
-    l.drive.efficiency = lw_table_new(vin, eta, 3, &e);
+    l.drive.efficiency = lw_interp_new(vin, eta, 3, &e);
     assert_non_null(l.drive.efficiency);
     int lit = 0;
     for (double d = 0; d <= 1.0; d += 1.0 / 512) {
@@ -218,7 +218,7 @@ static void converter_steep_efficiency_notch(void **state)
         double pout = p.p_led_w / (l.drive.duty_pct / 100.0);
         double iq = l.drive.quiescent_a;
         double scale = ev * ev / r;
-#define F_AT(v) ((v) * (ev - (v)) / r - (v) * iq - pout / (lw_table_linear(l.drive.efficiency, (v)) / 100.0))
+#define F_AT(v) ((v) * (ev - (v)) / r - (v) * iq - pout / (lw_interp_linear(l.drive.efficiency, (v)) / 100.0))
         assert_near(F_AT(p.pack_v), 0.0, 1e-9 * scale);
         for (int k = 1; k <= 400; k++) {
             double v = p.pack_v + (ev - p.pack_v) * k / 400.0;
@@ -335,14 +335,14 @@ static void energy_conserved_for_every_drive(void **state)
 }
 
 /* Exact integral of a piecewise-linear table from a to b (trapezoids). */
-static double table_integral(const lw_table *t, double a, double b)
+static double table_integral(const lw_interp *t, double a, double b)
 {
     double sum = 0.0;
     for (size_t i = 0; i + 1 < t->n; i++) {
         double x0 = fmax(a, t->x[i]), x1 = fmin(b, t->x[i + 1]);
         if (x1 <= x0)
             continue;
-        sum += 0.5 * (x1 - x0) * (lw_table_linear(t, x0) + lw_table_linear(t, x1));
+        sum += 0.5 * (x1 - x0) * (lw_interp_linear(t, x0) + lw_interp_linear(t, x1));
     }
     return sum;
 }

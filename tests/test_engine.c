@@ -112,7 +112,7 @@ typedef struct ref {
     double d0;       /* for the 30-s search */
 } ref;
 
-static double interp(const lw_table *t, double x)
+static double interp(const lw_interp *t, double x)
 {
     if (x <= t->x[0])
         return t->y[0];
@@ -172,7 +172,7 @@ static double ref_integral(const lw_light *l, int what, double a, double b)
 {
     ref q = {l, 0, 0, what, 0};
     gsl_function F = {ref_integrand, &q};
-    const lw_table *t = l->pack.cell.ocv;
+    const lw_interp *t = l->pack.cell.ocv;
     double pts[64];
     size_t np = 0;
     pts[np++] = a;
@@ -345,8 +345,8 @@ static void dense_led_table_runs(void **state)
     lw_error e;
     lw_error_clear(&e);
     l.led.model = LW_LED_TABLE;
-    l.led.iv = lw_table_new(ia, va, NK, &e);
-    l.led.flux = lw_table_new(ia, fa, NK, &e);
+    l.led.iv = lw_interp_new(ia, va, NK, &e);
+    l.led.flux = lw_interp_new(ia, fa, NK, &e);
     assert_non_null(l.led.iv);
     assert_non_null(l.led.flux);
     lw_result r = run_ok(&l, false);

@@ -254,7 +254,7 @@ static void cell_fit_round_trip(void **state)
     assert_true(fit.cell.peukert > 1.0 && fit.cell.peukert < 1.15);
     assert_true(fit.max_dev_v <= 0.002 + 1e-12);
     /* the internal resistance recovered at mid depth (truth: 0.033 ohm) */
-    assert_close(lw_table_linear(fit.cell.res, 0.5), 0.033, 0.10);
+    assert_close(lw_interp_linear(fit.cell.res, 0.5), 0.033, 0.10);
     double t_true = runtime_on(&truth, 5.6, 1.0);
     double t_fit = runtime_on(&fit.cell, 5.6, 1.0);
     assert_close(t_fit, t_true, 0.01);
@@ -296,12 +296,12 @@ static void cell_fit_resistance_near_empty(void **state)
                               .chemistry = LW_CHEM_NIMH, .rechargeable = true, .nominal_v = NAN};
     lw_cellfit fit;
     assert_int_equal(lw_fit_cell(logs, 2, &opt, &fit, &e), LW_OK);
-    double r_mid = lw_table_linear(fit.cell.res, 0.5);
+    double r_mid = lw_interp_linear(fit.cell.res, 0.5);
     assert_close(r_mid, 0.033, 0.10);
     assert_true(fit.reliable_depth > 0.9 && fit.reliable_depth < 1.0);
     for (double d = fit.reliable_depth; d <= 1.0; d += 0.0025)
-        assert_true(lw_table_linear(fit.cell.res, fmin(d, 1.0)) >= r_mid);
-    assert_true(lw_table_linear(fit.cell.res, 1.0) >= lw_table_linear(fit.cell.res, 0.9));
+        assert_true(lw_interp_linear(fit.cell.res, fmin(d, 1.0)) >= r_mid);
+    assert_true(lw_interp_linear(fit.cell.res, 1.0) >= lw_interp_linear(fit.cell.res, 0.9));
     lw_cell_clear(&fit.cell);
     lw_dlog_clear(&logs[0]);
     lw_dlog_clear(&logs[1]);

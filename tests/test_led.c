@@ -165,7 +165,7 @@ static void table_model_against_gsl(void **state)
     lw_error e;
     lw_error_clear(&e);
     lw_led led = base_led(LW_LED_TABLE);
-    led.iv = lw_table_new(ia, v, 6, &e);
+    led.iv = lw_interp_new(ia, v, 6, &e);
     double i = 0;
     bool ext = false;
     assert_int_equal(lw_led_solve(&led, 3.7, 2.2, &i, &ext, &e), LW_OK);
@@ -192,7 +192,7 @@ static void flux_models(void **state)
     const double ia[] = {0, 0.1, 0.2}, lm[] = {0, 15, 28};
     lw_error e;
     lw_error_clear(&e);
-    led.flux = lw_table_new(ia, lm, 3, &e);
+    led.flux = lw_interp_new(ia, lm, 3, &e);
     bool ext = false;
     assert_close(lw_led_flux(&led, 0.1, &ext), 15, 1e-15);
     assert_false(ext);

@@ -319,7 +319,7 @@ static void cell_library_loads(void **state)
         if (lw_cell_load(g.gl_pathv[i], &c, &e) != LW_OK)
             fail_msg("%s: %s:%d: %s", g.gl_pathv[i], e.file, e.line, e.msg);
         assert_true(c.capacity_ah > 0 && c.max_capacity_ah >= c.capacity_ah);
-        assert_int_equal(lw_table_direction(c.ocv, 0), -1);
+        assert_int_equal(lw_interp_direction(c.ocv, 0), -1);
         assert_true(c.cutoff_v < c.ocv->y[0]);
         assert_true(c.nominal_v < c.ocv->y[0] && c.nominal_v > c.cutoff_v);
         assert_true(c.mass_g > 0);

@@ -52,8 +52,8 @@ static void random_cell(lw_cell *c)
     }
     lw_error e;
     lw_error_clear(&e);
-    c->ocv = lw_table_new(d, v, n, &e);
-    c->res = lw_table_new(d, r, n, &e);
+    c->ocv = lw_interp_new(d, v, n, &e);
+    c->res = lw_interp_new(d, r, n, &e);
     assert_non_null(c->res);
     c->capacity_ah = log_between(0.01, 10.0);
     c->rated_a = c->capacity_ah / log_between(1.0, 100.0);
@@ -90,7 +90,7 @@ static void random_led(lw_led *l, double pack_v)
         }
         lw_error e;
         lw_error_clear(&e);
-        l->iv = lw_table_new(ia, va, n, &e);
+        l->iv = lw_interp_new(ia, va, n, &e);
         assert_non_null(l->iv);
     }
     l->flux_lm = log_between(0.01, 500.0);

@@ -25,7 +25,7 @@
 #define LW_CELL_H
 
 #include <stdbool.h>
-#include "table.h"
+#include "interp.h"
 
 #define LW_NAME_MAX 64
 #define LW_PATH_MAX 512
@@ -53,10 +53,10 @@ typedef struct lw_cell {
     bool rechargeable;
     double mass_g;                 /* g, 0 when not given */
     double self_discharge_pct_month; /* % of capacity lost per month at 20 C */
-    lw_table *ocv;                 /* depth fraction -> open-circuit V, non-increasing */
-    lw_table *res;                 /* depth fraction -> internal ohm, > 0 */
-    lw_table *temp_capacity;       /* deg C -> capacity factor, or NULL */
-    lw_table *temp_resistance;     /* deg C -> resistance factor, or NULL */
+    lw_interp *ocv;                 /* depth fraction -> open-circuit V, non-increasing */
+    lw_interp *res;                 /* depth fraction -> internal ohm, > 0 */
+    lw_interp *temp_capacity;       /* deg C -> capacity factor, or NULL */
+    lw_interp *temp_resistance;     /* deg C -> resistance factor, or NULL */
 } lw_cell;
 
 /* Drop the tables a cell holds (it does not free the struct itself). */

@@ -55,7 +55,7 @@ typedef struct lw_drive {
     double set_a;            /* regulated current per string, A */
     double dropout_v;        /* linear-cc: minimum headroom, V */
     double efficiency_pct;   /* converter: efficiency, % (when no table) */
-    lw_table *efficiency;    /* converter: input V -> efficiency %, or NULL */
+    lw_interp *efficiency;    /* converter: input V -> efficiency %, or NULL */
     double quiescent_a;      /* converter: quiescent input current, A */
     double min_input_v;      /* converter: undervoltage lockout, V */
     double fallback_a;       /* converter: current after dropout, A (0: off) */

@@ -42,7 +42,7 @@
 
 #include "alloc.h"
 #include "error.h"
-#include "table.h"
+#include "interp.h"
 #include "roots.h"
 #include "cell.h"
 #include "led.h"

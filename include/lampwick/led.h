@@ -28,7 +28,7 @@
 #define LW_LED_H
 
 #include <stdbool.h>
-#include "table.h"
+#include "interp.h"
 
 typedef enum lw_led_model {
     LW_LED_CONSTANT, LW_LED_LINEAR, LW_LED_SHOCKLEY, LW_LED_TABLE, LW_LED_MODEL_COUNT
@@ -51,11 +51,11 @@ typedef struct lw_led {
     double saturation_a;    /* shockley: Is, A */
     double series_ohm;      /* shockley: Rs, ohm */
     double junction_c;      /* shockley: junction temperature, deg C */
-    lw_table *iv;           /* table: A -> V, or NULL */
+    lw_interp *iv;           /* table: A -> V, or NULL */
     double flux_lm;         /* lm per LED at flux_current_a */
     double flux_current_a;  /* A */
     double flux_exponent;   /* dimensionless, > 0 */
-    lw_table *flux;         /* A -> lm per LED (through (0,0)), or NULL */
+    lw_interp *flux;         /* A -> lm per LED (through (0,0)), or NULL */
     double max_current_a;   /* absolute maximum continuous current, A */
     double forward_spread_pct; /* +- spread of forward voltage between parts, % */
     double v_scale;         /* multiplier on every forward voltage, 1 nominal */

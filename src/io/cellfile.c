@@ -162,8 +162,8 @@ static lw_status load_curve(const char *path, lw_cell *cell, lw_error *err)
                           "depth_pct must end at 100 (fully discharged), got %g",
                           buf[n - 1] * 100.0);
     if (st == LW_OK) {
-        cell->ocv = lw_table_new(buf, buf + n, n, err);
-        cell->res = cell->ocv ? lw_table_new(buf, buf + 2 * n, n, err) : NULL;
+        cell->ocv = lw_interp_new(buf, buf + n, n, err);
+        cell->res = cell->ocv ? lw_interp_new(buf, buf + 2 * n, n, err) : NULL;
         if (!cell->res)
             st = err && err->code ? err->code : LW_ENOMEM;
     }
@@ -211,9 +211,9 @@ static lw_status load_temperature(const char *path, lw_cell *cell, lw_error *err
         st = lw_error_set(err, LW_EINPUT, path, csv.line[0],
                           "a temperature table needs at least 2 rows");
     if (st == LW_OK) {
-        cell->temp_capacity = lw_table_new(buf, buf + n, n, err);
+        cell->temp_capacity = lw_interp_new(buf, buf + n, n, err);
         cell->temp_resistance =
-            cell->temp_capacity ? lw_table_new(buf, buf + 2 * n, n, err) : NULL;
+            cell->temp_capacity ? lw_interp_new(buf, buf + 2 * n, n, err) : NULL;
         if (!cell->temp_resistance)
             st = err && err->code ? err->code : LW_ENOMEM;
     }

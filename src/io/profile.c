@@ -261,7 +261,7 @@ enum { XY_Y_POSITIVE = 1, XY_Y_NONDECREASING = 2, XY_THROUGH_ORIGIN = 4 };
 /* Read a two-column CSV (x in file units * xscale) into a table. */
 static lw_status load_xy(const lw_profile *p, const char *section, const char *key,
                          const char *rel, const char *xcol, const char *ycol, double xscale,
-                         double yscale, unsigned flags, lw_table **out, lw_error *err)
+                         double yscale, unsigned flags, lw_interp **out, lw_error *err)
 {
     char path[LW_PATH_MAX];
     char what[2 * LW_INI_NAME_MAX + 4];
@@ -316,11 +316,11 @@ static lw_status load_xy(const lw_profile *p, const char *section, const char *k
     if (st == LW_OK && n + off < 2)
         st = lw_error_set(err, LW_EINPUT, path, csv.line[0], "at least 2 rows are needed");
     if (st == LW_OK) {
-        lw_table *t = lw_table_new(x, y, n + off, err);
+        lw_interp *t = lw_interp_new(x, y, n + off, err);
         if (!t)
             st = err && err->code ? err->code : LW_ENOMEM;
         else {
-            lw_table_free(*out);
+            lw_interp_free(*out);
             *out = t;
         }
     }
@@ -377,7 +377,7 @@ static lw_status check_led(lw_profile *p, lw_error *err)
     if (by_file)
         return load_xy(p, "led", "flux_file", p->flux_file, "current_ma", "flux_lm", 1e-3, 1.0,
                        XY_THROUGH_ORIGIN, &led->flux, err);
-    lw_table_free(led->flux);
+    lw_interp_free(led->flux);
     led->flux = NULL;
     if (!by_rating)
         return lw_error_set(err, LW_EINPUT, p->path, line_of(p, "led", NULL),
@@ -429,7 +429,7 @@ static lw_status check_drive(lw_profile *p, lw_error *err)
         break;
     }
     if (st == LW_OK && drv->type != LW_DRIVE_CONVERTER) {
-        lw_table_free(drv->efficiency);
+        lw_interp_free(drv->efficiency);
         drv->efficiency = NULL;
     }
     return st;

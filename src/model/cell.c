@@ -14,29 +14,29 @@ void lw_cell_clear(lw_cell *cell)
 {
     if (!cell)
         return;
-    lw_table_free(cell->ocv);
-    lw_table_free(cell->res);
-    lw_table_free(cell->temp_capacity);
-    lw_table_free(cell->temp_resistance);
+    lw_interp_free(cell->ocv);
+    lw_interp_free(cell->res);
+    lw_interp_free(cell->temp_capacity);
+    lw_interp_free(cell->temp_resistance);
     cell->ocv = cell->res = cell->temp_capacity = cell->temp_resistance = NULL;
 }
 
 void lw_cell_copy(lw_cell *dst, const lw_cell *src)
 {
     *dst = *src;
-    lw_table_ref(dst->ocv);
-    lw_table_ref(dst->res);
-    lw_table_ref(dst->temp_capacity);
-    lw_table_ref(dst->temp_resistance);
+    lw_interp_ref(dst->ocv);
+    lw_interp_ref(dst->res);
+    lw_interp_ref(dst->temp_capacity);
+    lw_interp_ref(dst->temp_resistance);
 }
 
-static double factor_at(const lw_table *t, double temp_c, bool *outside)
+static double factor_at(const lw_interp *t, double temp_c, bool *outside)
 {
     if (!t)
         return 1.0;
     if (temp_c < t->x[0] || temp_c > t->x[t->n - 1])
         *outside = true;
-    return lw_table_linear(t, temp_c);
+    return lw_interp_linear(t, temp_c);
 }
 
 void lw_cell_temperature_factors(const lw_cell *cell, double ambient_c, double *cap_factor,

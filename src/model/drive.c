@@ -15,7 +15,7 @@ void lw_light_clear(lw_light *light)
         return;
     lw_cell_clear(&light->pack.cell);
     lw_led_clear(&light->led);
-    lw_table_free(light->drive.efficiency);
+    lw_interp_free(light->drive.efficiency);
     light->drive.efficiency = NULL;
 }
 
@@ -24,7 +24,7 @@ void lw_light_copy(lw_light *dst, const lw_light *src)
     *dst = *src;
     lw_cell_copy(&dst->pack.cell, &src->pack.cell);
     lw_led_copy(&dst->led, &src->led);
-    lw_table_ref(dst->drive.efficiency);
+    lw_interp_ref(dst->drive.efficiency);
 }
 
 void lw_light_update_factors(lw_light *light, bool *temperature_outside)
@@ -49,7 +49,7 @@ bool lw_converter_input_current(double e_v, double r_ohm, double iq_a, double p_
 static double efficiency_at(const lw_drive *drv, double vin)
 {
     if (drv->efficiency)
-        return lw_table_linear(drv->efficiency, vin) / 100.0;
+        return lw_interp_linear(drv->efficiency, vin) / 100.0;
     return drv->efficiency_pct / 100.0;
 }
 
@@ -158,7 +158,7 @@ static bool conv_piece_root(const conv_piece *c, double lo, double hi, double *r
  * 1 in t->y / 100) at open-circuit e_v, resistance r_ohm > 0, quiescent
  * iq_a and output power p_w: the highest root of F, or false.  Work: a
  * binary search for E's piece, then one cubic per piece walked down. */
-static bool converter_vin_table(const lw_table *t, double e_v, double r_ohm, double iq_a,
+static bool converter_vin_table(const lw_interp *t, double e_v, double r_ohm, double iq_a,
                                 double p_w, double *vin)
 {
     const double vpk = 0.5 * (e_v - r_ohm * iq_a);
@@ -166,11 +166,11 @@ static bool converter_vin_table(const lw_table *t, double e_v, double r_ohm, dou
         return false;
     conv_piece c = {e_v, r_ohm, iq_a, p_w, 0.0, 0.0};
     /* the knots below E, walked from the top */
-    size_t i = e_v >= t->x[t->n - 1] ? t->n : (e_v <= t->x[0] ? 0 : lw_table_find(t, e_v) + 1);
+    size_t i = e_v >= t->x[t->n - 1] ? t->n : (e_v <= t->x[0] ? 0 : lw_interp_find(t, e_v) + 1);
     double hi = e_v;
     while (hi > vpk) {
         double lo = i > 0 ? fmax(t->x[i - 1], vpk) : vpk;
-        double eh = lw_table_linear(t, hi) / 100.0, el = lw_table_linear(t, lo) / 100.0;
+        double eh = lw_interp_linear(t, hi) / 100.0, el = lw_interp_linear(t, lo) / 100.0;
         c.b = hi > lo ? (eh - el) / (hi - lo) : 0.0;
         c.a = el - c.b * lo;
         if (lo < hi && conv_piece_root(&c, lo, hi, vin))
@@ -315,8 +315,8 @@ lw_status lw_light_point(const lw_light *light, double depth, bool fallback, lw_
                          lw_error *err)
 {
     const lw_cell *c = &light->pack.cell;
-    double ocv = lw_table_linear(c->ocv, depth);
-    double r = lw_table_linear(c->res, depth) * light->res_factor;
+    double ocv = lw_interp_linear(c->ocv, depth);
+    double r = lw_interp_linear(c->res, depth) * light->res_factor;
     return lw_light_point_at(light, depth, ocv, r, fallback, pt, err);
 }
 

@@ -93,7 +93,7 @@ static lw_status eval(engine *e, double d, lw_point *pt)
     }
     if (e->seg == SIZE_MAX)
         return lw_light_point(e->l, d, e->fallback, pt, e->err);
-    const lw_table *o = e->l->pack.cell.ocv, *r = e->l->pack.cell.res;
+    const lw_interp *o = e->l->pack.cell.ocv, *r = e->l->pack.cell.res;
     size_t i = e->seg;
     double u = (d - o->x[i]) / (o->x[i + 1] - o->x[i]);
     u = u < 0.0 ? 0.0 : (u > 1.0 ? 1.0 : u);
@@ -159,7 +159,7 @@ static bool fired(const engine *e, int k, const lw_point *pt)
 static double next_knot(const engine *e, double x, int dir)
 {
     const lw_led *led = &e->l->led;
-    const lw_table *t[2] = {led->model == LW_LED_TABLE ? led->iv : NULL, led->flux};
+    const lw_interp *t[2] = {led->model == LW_LED_TABLE ? led->iv : NULL, led->flux};
     double best = dir > 0 ? INFINITY : -INFINITY;
     for (int k = 0; k < 2; k++) {
         if (!t[k])
@@ -797,13 +797,13 @@ static void set_warnings(const lw_light *l, lw_result *r)
  * part to the run's tolerance (the search-mode solve finds the interval). */
 static lw_status time_between(engine *e, double a, double b, double *t_h)
 {
-    const lw_table *o = e->l->pack.cell.ocv;
+    const lw_interp *o = e->l->pack.cell.ocv;
     size_t saved = e->seg;
     e->seg = SIZE_MAX;
     *t_h = 0.0;
     lw_status st = LW_OK;
     for (double x = a; st == LW_OK && x < b;) {
-        size_t i = lw_table_find(o, x);
+        size_t i = lw_interp_find(o, x);
         double end = i + 2 < o->n ? fmin(b, o->x[i + 1]) : b;
         st = time_integral(e, x, end, 0, t_h);
         x = end;
@@ -905,7 +905,7 @@ static void init_events(engine *e, const lw_point *p0)
 
 static lw_status run_body(engine *e, lw_point p0)
 {
-    const lw_table *curve = e->l->pack.cell.ocv;
+    const lw_interp *curve = e->l->pack.cell.ocv;
     double a = e->d0;
     lw_point pa = p0;
     for (size_t i = 0; i + 1 < curve->n && !e->done; i++) {

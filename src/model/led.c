@@ -13,16 +13,16 @@ void lw_led_clear(lw_led *led)
 {
     if (!led)
         return;
-    lw_table_free(led->iv);
-    lw_table_free(led->flux);
+    lw_interp_free(led->iv);
+    lw_interp_free(led->flux);
     led->iv = led->flux = NULL;
 }
 
 void lw_led_copy(lw_led *dst, const lw_led *src)
 {
     *dst = *src;
-    lw_table_ref(dst->iv);
-    lw_table_ref(dst->flux);
+    lw_interp_ref(dst->iv);
+    lw_interp_ref(dst->flux);
 }
 
 double lw_thermal_voltage(double temp_c)
@@ -32,15 +32,15 @@ double lw_thermal_voltage(double temp_c)
 
 /* Table read with the documented ends: clamp below, continue on the last
  * slope above. */
-static double table_extended(const lw_table *t, double x, bool *extrapolated)
+static double table_extended(const lw_interp *t, double x, bool *extrapolated)
 {
     double xe = t->x[t->n - 1];
     if (x > xe) {
         if (extrapolated)
             *extrapolated = true;
-        return t->y[t->n - 1] + (x - xe) * lw_table_end_slope(t);
+        return t->y[t->n - 1] + (x - xe) * lw_interp_end_slope(t);
     }
-    return lw_table_cubic(t, x);
+    return lw_interp_cubic(t, x);
 }
 
 double lw_led_voltage(const lw_led *led, double i_a, bool *extrapolated)
@@ -109,14 +109,14 @@ static lw_status solve_shockley(const lw_led *led, double e_v, double r_ohm, dou
  * and above the last it continues on the last slope: f is linear there. */
 static double knot_residual(const lw_led *led, double e_v, double r_ohm, size_t k)
 {
-    const lw_table *t = led->iv;
+    const lw_interp *t = led->iv;
     return e_v - t->x[k] * r_ohm - led->count * led->v_scale * t->y[k];
 }
 
 static lw_status solve_table(const lw_led *led, double e_v, double r_ohm, double *i_a,
                              bool *extrapolated, lw_error *err)
 {
-    const lw_table *t = led->iv;
+    const lw_interp *t = led->iv;
     const double nv = led->count * led->v_scale;
     const size_t n = t->n;
     if (e_v - nv * t->y[0] <= 0.0) {
@@ -129,7 +129,7 @@ static lw_status solve_table(const lw_led *led, double e_v, double r_ohm, double
         return LW_OK;
     }
     if (knot_residual(led, e_v, r_ohm, n - 1) > 0.0) {
-        double slope = lw_table_end_slope(t);
+        double slope = lw_interp_end_slope(t);
         double denom = r_ohm + nv * slope;
         if (!(denom > 0.0))
             return lw_error_set(err, LW_EINPUT, NULL, 0,

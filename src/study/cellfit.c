@@ -415,8 +415,8 @@ lw_status lw_fit_cell(const lw_dlog *logs, size_t nlogs, const lw_cellfit_option
             double u = (0.5 - kd[j2]) / (kd[j2 + 1] - kd[j2]);
             c->nominal_v = round(100.0 * (kv[j2] + u * (kv[j2 + 1] - kv[j2]))) / 100.0;
         }
-        c->ocv = lw_table_new(kd, kv, nk, err);
-        c->res = c->ocv ? lw_table_new(kd, kr, nk, err) : NULL;
+        c->ocv = lw_interp_new(kd, kv, nk, err);
+        c->res = c->ocv ? lw_interp_new(kd, kr, nk, err) : NULL;
         if (!c->res)
             st = err && err->code ? err->code : LW_ENOMEM;
         if (st == LW_OK && !(c->cutoff_v < kv[0]))

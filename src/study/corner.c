@@ -17,7 +17,7 @@ lw_status lw_corners(const lw_light *light, const lw_result *run,
     if (st != LW_OK)
         return st;
     lw_light cold = *light; /* shallow: tables borrowed */
-    const lw_table *t = light->pack.cell.temp_resistance;
+    const lw_interp *t = light->pack.cell.temp_resistance;
     if (t) {
         cold.pack.ambient_c = t->x[0];
         out[LW_CORNER_COLD].ambient_c = t->x[0];

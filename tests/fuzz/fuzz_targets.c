@@ -381,8 +381,8 @@ int fuzz_writers(const uint8_t *data, size_t size)
     memset(&cell, 0, sizeof cell);
     lw_strlcpy(cell.name, texts[0], sizeof cell.name);
     const double d[] = {0, 1}, v[] = {1.4, 0.9}, r[] = {0.03, 0.1};
-    cell.ocv = lw_table_new(d, v, 2, &e);
-    cell.res = lw_table_new(d, r, 2, &e);
+    cell.ocv = lw_interp_new(d, v, 2, &e);
+    cell.res = lw_interp_new(d, r, 2, &e);
     cell.nominal_v = 1.2;
     cell.capacity_ah = 2;
     cell.rated_a = 0.4;

@@ -1,7 +1,7 @@
 /*
- * table.h - monotone x -> y tables: linear and monotone-cubic interpolation.
+ * interp.h - monotone x -> y tables: linear and monotone-cubic interpolation.
  *
- * Owns: lw_table, an immutable, reference-counted pair of arrays with x
+ * Owns: lw_interp, an immutable, reference-counted pair of arrays with x
  * strictly increasing.  Shared by the cell curve (depth -> OCV, R), the cell
  * temperature factors, and the LED I-V and flux tables.
  *
@@ -13,48 +13,48 @@
  *
  * Outside [x0, xn-1] both evaluators clamp to the end value; they never
  * extrapolate.  Callers that need an extension (the LED tables) say so and
- * build it from lw_table_end_slope().
+ * build it from lw_interp_end_slope().
  */
-#ifndef LW_TABLE_H
-#define LW_TABLE_H
+#ifndef LW_INTERP_H
+#define LW_INTERP_H
 
 #include <stdatomic.h>
 #include <stddef.h>
 #include "error.h"
 
-typedef struct lw_table {
+typedef struct lw_interp {
     size_t n;     /* number of points, >= 2 */
     double *x;    /* strictly increasing, finite */
     double *y;    /* finite */
     double *m;    /* monotone-cubic slopes dy/dx at the points */
     _Atomic int refs; /* reference count (atomic: copies may be dropped on any thread) */
-} lw_table;
+} lw_interp;
 
 /* Copy n points into a new table (refs = 1).  Fails with LW_EINPUT if n < 2,
  * a value is not finite or x is not strictly increasing (the message names the
  * 0-based index; callers add file:line), LW_ENOMEM if allocation fails. */
-lw_table *lw_table_new(const double *x, const double *y, size_t n, lw_error *err);
+lw_interp *lw_interp_new(const double *x, const double *y, size_t n, lw_error *err);
 
 /* Take another reference; returns t.  NULL-safe. */
-lw_table *lw_table_ref(lw_table *t);
+lw_interp *lw_interp_ref(lw_interp *t);
 
 /* Drop a reference; frees on the last.  NULL-safe. */
-void lw_table_free(lw_table *t);
+void lw_interp_free(lw_interp *t);
 
 /* Index i of the interval with x[i] <= x < x[i+1], clamped to [0, n-2]. */
-size_t lw_table_find(const lw_table *t, double x);
+size_t lw_interp_find(const lw_interp *t, double x);
 
 /* Piecewise-linear value, clamped outside the table. */
-double lw_table_linear(const lw_table *t, double x);
+double lw_interp_linear(const lw_interp *t, double x);
 
 /* Monotone-cubic value, clamped outside the table. */
-double lw_table_cubic(const lw_table *t, double x);
+double lw_interp_cubic(const lw_interp *t, double x);
 
 /* Slope (y[n-1]-y[n-2])/(x[n-1]-x[n-2]) of the last interval. */
-double lw_table_end_slope(const lw_table *t);
+double lw_interp_end_slope(const lw_interp *t);
 
 /* 1 if y is non-decreasing, -1 if non-increasing, 0 if neither (a constant
  * table counts as non-decreasing).  With `strict`, equal neighbours fail. */
-int lw_table_direction(const lw_table *t, int strict);
+int lw_interp_direction(const lw_interp *t, int strict);
 
 #endif

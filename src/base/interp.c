@@ -1,11 +1,11 @@
 /*
- * table.c - monotone x -> y tables (see table.h for the method and sources).
+ * interp.c - monotone interpolation tables (see interp.h).
  *
  * Invariant: n >= 2, x strictly increasing, every value finite, m[] holds the
  * Fritsch-Carlson slopes, which keep each cubic piece inside the range of its
  * two end values whenever the data are monotone there.
  */
-#include "table.h"
+#include "interp.h"
 #include "alloc.h"
 
 #include <math.h>
@@ -26,7 +26,7 @@ static double end_slope(double h0, double h1, double d0, double d1)
     return s;
 }
 
-static void compute_slopes(lw_table *t)
+static void compute_slopes(lw_interp *t)
 {
     size_t n = t->n;
     if (n == 2) {
@@ -54,7 +54,7 @@ static void compute_slopes(lw_table *t)
     t->m[n - 1] = end_slope(h0, h1, d0, d1);
 }
 
-lw_table *lw_table_new(const double *x, const double *y, size_t n, lw_error *err)
+lw_interp *lw_interp_new(const double *x, const double *y, size_t n, lw_error *err)
 {
     if (n < 2) {
         lw_error_set(err, LW_EINPUT, NULL, 0, "a table needs at least 2 points, got %zu", n);
@@ -72,7 +72,7 @@ lw_table *lw_table_new(const double *x, const double *y, size_t n, lw_error *err
             return NULL;
         }
     }
-    lw_table *t = lw_calloc(1, sizeof *t);
+    lw_interp *t = lw_calloc(1, sizeof *t);
     double *buf = lw_malloc(3 * n * sizeof *buf);
     if (!t || !buf) {
         free(t);
@@ -91,14 +91,14 @@ lw_table *lw_table_new(const double *x, const double *y, size_t n, lw_error *err
     return t;
 }
 
-lw_table *lw_table_ref(lw_table *t)
+lw_interp *lw_interp_ref(lw_interp *t)
 {
     if (t)
         atomic_fetch_add(&t->refs, 1);
     return t;
 }
 
-void lw_table_free(lw_table *t)
+void lw_interp_free(lw_interp *t)
 {
     if (!t || atomic_fetch_sub(&t->refs, 1) > 1)
         return;
@@ -106,7 +106,7 @@ void lw_table_free(lw_table *t)
     free(t);
 }
 
-size_t lw_table_find(const lw_table *t, double x)
+size_t lw_interp_find(const lw_interp *t, double x)
 {
     size_t lo = 0, hi = t->n - 1;
     if (x <= t->x[0])
@@ -123,24 +123,24 @@ size_t lw_table_find(const lw_table *t, double x)
     return lo;
 }
 
-double lw_table_linear(const lw_table *t, double x)
+double lw_interp_linear(const lw_interp *t, double x)
 {
     if (x <= t->x[0])
         return t->y[0];
     if (x >= t->x[t->n - 1])
         return t->y[t->n - 1];
-    size_t i = lw_table_find(t, x);
+    size_t i = lw_interp_find(t, x);
     double u = (x - t->x[i]) / (t->x[i + 1] - t->x[i]);
     return t->y[i] + u * (t->y[i + 1] - t->y[i]);
 }
 
-double lw_table_cubic(const lw_table *t, double x)
+double lw_interp_cubic(const lw_interp *t, double x)
 {
     if (x <= t->x[0])
         return t->y[0];
     if (x >= t->x[t->n - 1])
         return t->y[t->n - 1];
-    size_t i = lw_table_find(t, x);
+    size_t i = lw_interp_find(t, x);
     double h = t->x[i + 1] - t->x[i];
     double s = (x - t->x[i]) / h;
     double s2 = s * s, s3 = s2 * s;
@@ -150,13 +150,13 @@ double lw_table_cubic(const lw_table *t, double x)
     return t->y[i] + (t->y[i + 1] - t->y[i]) * h01 + h * (h10 * t->m[i] + h11 * t->m[i + 1]);
 }
 
-double lw_table_end_slope(const lw_table *t)
+double lw_interp_end_slope(const lw_interp *t)
 {
     size_t n = t->n;
     return (t->y[n - 1] - t->y[n - 2]) / (t->x[n - 1] - t->x[n - 2]);
 }
 
-int lw_table_direction(const lw_table *t, int strict)
+int lw_interp_direction(const lw_interp *t, int strict)
 {
     int up = 1, down = 1;
     for (size_t i = 1; i < t->n; i++) {

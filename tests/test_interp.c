@@ -1,14 +1,14 @@
 /*
- * test_table.c - interpolation tables.
+ * test_interp.c - interpolation tables (interp.h).
  */
 #include "testutil.h"
 #include "lampwick.h"
 
-static lw_table *mk(const double *x, const double *y, size_t n)
+static lw_interp *mk(const double *x, const double *y, size_t n)
 {
     lw_error e;
     lw_error_clear(&e);
-    lw_table *t = lw_table_new(x, y, n, &e);
+    lw_interp *t = lw_interp_new(x, y, n, &e);
     assert_non_null(t);
     return t;
 }
@@ -17,27 +17,27 @@ static void linear_interpolates_and_clamps(void **state)
 {
     (void)state;
     const double x[] = {0, 1, 3}, y[] = {10, 20, 0};
-    lw_table *t = mk(x, y, 3);
-    assert_close(lw_table_linear(t, 0.5), 15, 1e-15);
-    assert_close(lw_table_linear(t, 2.0), 10, 1e-15);
-    assert_close(lw_table_linear(t, -5), 10, 0);  /* clamped, not extrapolated */
-    assert_close(lw_table_linear(t, 99), 0, 0);
-    assert_int_equal(lw_table_find(t, 1.0), 1);
-    assert_int_equal(lw_table_find(t, 3.0), 1);
-    assert_int_equal(lw_table_direction(t, 0), 0);
-    lw_table_free(t);
+    lw_interp *t = mk(x, y, 3);
+    assert_close(lw_interp_linear(t, 0.5), 15, 1e-15);
+    assert_close(lw_interp_linear(t, 2.0), 10, 1e-15);
+    assert_close(lw_interp_linear(t, -5), 10, 0);  /* clamped, not extrapolated */
+    assert_close(lw_interp_linear(t, 99), 0, 0);
+    assert_int_equal(lw_interp_find(t, 1.0), 1);
+    assert_int_equal(lw_interp_find(t, 3.0), 1);
+    assert_int_equal(lw_interp_direction(t, 0), 0);
+    lw_interp_free(t);
 }
 
 static void cubic_passes_through_points_and_is_exact_on_lines(void **state)
 {
     (void)state;
     const double x[] = {0, 0.5, 2, 3, 7}, y[] = {1, 2, 5, 7, 15}; /* y = 2x + 1 */
-    lw_table *t = mk(x, y, 5);
+    lw_interp *t = mk(x, y, 5);
     for (size_t i = 0; i < 5; i++)
-        assert_close(lw_table_cubic(t, x[i]), y[i], 1e-15);
+        assert_close(lw_interp_cubic(t, x[i]), y[i], 1e-15);
     for (double u = 0; u <= 7; u += 0.01)
-        assert_close(lw_table_cubic(t, u), 2 * u + 1, 1e-12);
-    lw_table_free(t);
+        assert_close(lw_interp_cubic(t, u), 2 * u + 1, 1e-12);
+    lw_interp_free(t);
 }
 
 /* Fritsch & Carlson (1980): with their slope conditions the interpolant of
@@ -47,16 +47,16 @@ static void cubic_preserves_monotonicity(void **state)
 {
     (void)state;
     const double x[] = {0, 1, 2, 3, 4, 5, 6, 7}, y[] = {0, 0, 0.1, 5, 5.1, 5.1, 9, 9};
-    lw_table *t = mk(x, y, 8);
+    lw_interp *t = mk(x, y, 8);
     double prev = -1;
     for (double u = 0; u <= 7; u += 1e-3) {
-        double v = lw_table_cubic(t, u);
+        double v = lw_interp_cubic(t, u);
         if (v < prev - 1e-15)
             fail_msg("not monotone at %g: %g < %g", u, v, prev);
         assert_true(v >= 0 && v <= 9);
         prev = v;
     }
-    lw_table_free(t);
+    lw_interp_free(t);
 }
 
 static double max_error_exp(size_t n)
@@ -66,11 +66,11 @@ static double max_error_exp(size_t n)
         x[i] = 2.0 * (double)i / (double)(n - 1);
         y[i] = exp(x[i]);
     }
-    lw_table *t = mk(x, y, n);
+    lw_interp *t = mk(x, y, n);
     double worst = 0;
     for (double u = 0.2; u <= 1.8; u += 1e-3)
-        worst = fmax(worst, fabs(lw_table_cubic(t, u) - exp(u)));
-    lw_table_free(t);
+        worst = fmax(worst, fabs(lw_interp_cubic(t, u) - exp(u)));
+    lw_interp_free(t);
     return worst;
 }
 
@@ -92,15 +92,15 @@ static void refuses_bad_tables(void **state)
     lw_error e;
     const double x[] = {0, 1, 1}, y[] = {0, 1, 2};
     lw_error_clear(&e);
-    assert_null(lw_table_new(x, y, 3, &e));
+    assert_null(lw_interp_new(x, y, 3, &e));
     assert_int_equal(e.code, LW_EINPUT);
     assert_non_null(strstr(e.msg, "point 3"));
     lw_error_clear(&e);
-    assert_null(lw_table_new(x, y, 1, &e));
+    assert_null(lw_interp_new(x, y, 1, &e));
     assert_int_equal(e.code, LW_EINPUT);
     const double xn[] = {0, NAN}, yn[] = {0, 1};
     lw_error_clear(&e);
-    assert_null(lw_table_new(xn, yn, 2, &e));
+    assert_null(lw_interp_new(xn, yn, 2, &e));
     assert_int_equal(e.code, LW_EINPUT);
 }
 
@@ -108,14 +108,14 @@ static void reference_counting(void **state)
 {
     (void)state;
     const double x[] = {0, 1}, y[] = {3, 1};
-    lw_table *t = mk(x, y, 2);
-    assert_ptr_equal(lw_table_ref(t), t);
+    lw_interp *t = mk(x, y, 2);
+    assert_ptr_equal(lw_interp_ref(t), t);
     assert_int_equal(t->refs, 2);
-    lw_table_free(t);
+    lw_interp_free(t);
     assert_int_equal(t->refs, 1);
-    assert_int_equal(lw_table_direction(t, 1), -1);
-    lw_table_free(t);
-    lw_table_free(NULL);
+    assert_int_equal(lw_interp_direction(t, 1), -1);
+    lw_interp_free(t);
+    lw_interp_free(NULL);
 }
 
 int main(void)
