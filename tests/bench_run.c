@@ -7,7 +7,7 @@
 #include <stdio.h>
 #include <string.h>
 #include <time.h>
-#include "lampwick.h"
+#include <lampwick/lampwick.h>
 
 static double now_s(void)
 {

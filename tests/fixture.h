@@ -8,7 +8,7 @@
 #define LW_FIXTURE_H
 
 #include "tmpdir.h"
-#include "lampwick.h"
+#include <lampwick/lampwick.h>
 
 static inline const char *write_flat_light(const char *extra)
 {

@@ -6,7 +6,7 @@
 #ifndef LW_LIGHTS_H
 #define LW_LIGHTS_H
 
-#include "lampwick.h"
+#include <lampwick/lampwick.h>
 
 /* ---- building lights in code ---- */
 
@@ -23,7 +23,7 @@ static inline void set_curve(lw_cell *c, const double *d, const double *ocv, con
 static inline void base_light(lw_light *l)
 {
     memset(l, 0, sizeof *l);
-    lw_strlcpy(l->name, "test", sizeof l->name);
+    lw_text_copy(l->name, "test", sizeof l->name);
     l->pack.series = 1;
     l->pack.parallel = 1;
     l->pack.ambient_c = 20;

@@ -88,7 +88,7 @@ static bool cell_pair_whole(const char *dir, const char *ini)
         return count_prefix(dir, prefix, false) == 0;
     lw_cell cell;
     lw_error err;
-    if (lw_cell_load(path, &cell, &err) != LW_OK)
+    if (lw_cellfile_load(path, &cell, &err) != LW_OK)
         return false;
     lw_cell_clear(&cell);
     return count_prefix(dir, prefix, false) == 1;

@@ -3,7 +3,7 @@
  * temperature factors.
  */
 #include "testutil.h"
-#include "lampwick.h"
+#include <lampwick/lampwick.h>
 
 static lw_cell peukert_cell(double c_ah, double rated_a, double k, double cmax_ah)
 {
@@ -89,14 +89,14 @@ static void bundled_curves_reach_their_end_point(void **state)
     lw_search s;
     memset(&s, 0, sizeof s);
     lw_search_add(&s, LW_SOURCE_ROOT "/cells");
-    lw_cell_list list;
+    lw_cellfile_list list;
     lw_error e;
     lw_error_clear(&e);
-    assert_int_equal(lw_cell_list_read(&s, &list, &e), LW_OK);
+    assert_int_equal(lw_cellfile_list_read(&s, &list, &e), LW_OK);
     assert_true(list.n >= 8);
     for (size_t i = 0; i < list.n; i++) {
         lw_cell cell;
-        assert_int_equal(lw_cell_load(list.paths[i], &cell, &e), LW_OK);
+        assert_int_equal(lw_cellfile_load(list.paths[i], &cell, &e), LW_OK);
         assert_true(cell.ocv->y[cell.ocv->n - 1] < cell.cutoff_v);
         for (int k = 0; k < 2; k++) {
             double load_a = cell.rated_a * (k ? 1.0 : 0.1);
@@ -118,12 +118,12 @@ static void bundled_curves_reach_their_end_point(void **state)
             assert_int_equal(lw_run(&l, &o, &r, &e), LW_OK);
             if (r.end_reason != LW_END_CELL_VOLTAGE)
                 fail_msg("%s at %g mA ends on %s", cell.name, load_a * 1e3,
-                         lw_end_reason_names[r.end_reason]);
+                         lw_run_end_names[r.end_reason]);
             lw_light_clear(&l);
         }
         lw_cell_clear(&cell);
     }
-    lw_cell_list_clear(&list);
+    lw_cellfile_list_clear(&list);
 }
 
 int main(void)

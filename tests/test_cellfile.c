@@ -8,13 +8,13 @@
 #include <sys/stat.h>
 #include <unistd.h>
 #include "tmpdir.h"
-#include "lampwick.h"
+#include <lampwick/lampwick.h>
 
 static lw_cell small_cell(const char *name)
 {
     lw_cell c;
     memset(&c, 0, sizeof c);
-    lw_strlcpy(c.name, name, sizeof c.name);
+    lw_text_copy(c.name, name, sizeof c.name);
     c.chemistry = LW_CHEM_NIMH;
     c.nominal_v = 1.2;
     c.capacity_ah = 2.0;
@@ -46,9 +46,9 @@ static void names_round_trip_or_are_refused(void **state)
         lw_cell c = small_cell(good[i]);
         lw_error e;
         lw_error_clear(&e);
-        assert_int_equal(lw_cell_save(path, &c, "a comment\nwith\x1b[31m escapes", &e), LW_OK);
+        assert_int_equal(lw_cellfile_save(path, &c, "a comment\nwith\x1b[31m escapes", &e), LW_OK);
         lw_cell back;
-        assert_int_equal(lw_cell_load(path, &back, &e), LW_OK);
+        assert_int_equal(lw_cellfile_load(path, &back, &e), LW_OK);
         assert_string_equal(back.name, good[i]);
         assert_close(back.capacity_ah, c.capacity_ah, 1e-15); /* full precision */
         assert_close(lw_interp_linear(back.res, 1.0), 0.12, 1e-15);
@@ -57,10 +57,10 @@ static void names_round_trip_or_are_refused(void **state)
     }
     for (size_t i = 0; i < sizeof bad / sizeof bad[0]; i++) {
         lw_cell c = small_cell("ok");
-        lw_strlcpy(c.name, bad[i], sizeof c.name);
+        lw_text_copy(c.name, bad[i], sizeof c.name);
         lw_error e;
         lw_error_clear(&e);
-        if (lw_cell_save(path, &c, NULL, &e) != LW_EINPUT)
+        if (lw_cellfile_save(path, &c, NULL, &e) != LW_EINPUT)
             fail_msg("name %zu was written", i);
         assert_non_null(strstr(e.msg, "cell name"));
         lw_cell_clear(&c);
@@ -92,22 +92,22 @@ static void pair_replaced_whole_or_not_at_all(void **state)
     lw_cell c = small_cell("first");
     lw_error e;
     lw_error_clear(&e);
-    assert_int_equal(lw_cell_save(path, &c, NULL, &e), LW_OK);
+    assert_int_equal(lw_cellfile_save(path, &c, NULL, &e), LW_OK);
     assert_int_equal(count_curves("pair"), 1);
-    lw_strlcpy(c.name, "second", sizeof c.name);
-    assert_int_equal(lw_cell_save(path, &c, NULL, &e), LW_OK);
+    lw_text_copy(c.name, "second", sizeof c.name);
+    assert_int_equal(lw_cellfile_save(path, &c, NULL, &e), LW_OK);
     assert_int_equal(count_curves("pair"), 1);
     lw_cell back;
-    assert_int_equal(lw_cell_load(path, &back, &e), LW_OK);
+    assert_int_equal(lw_cellfile_load(path, &back, &e), LW_OK);
     assert_string_equal(back.name, "second");
     lw_cell_clear(&back);
     /* the cell file's place taken by a folder: its write fails */
     char blocked[600];
     snprintf(blocked, sizeof blocked, "%s/blocked.ini", tmp_root());
     assert_int_equal(mkdir(blocked, 0755), 0);
-    lw_strlcpy(c.name, "third", sizeof c.name);
+    lw_text_copy(c.name, "third", sizeof c.name);
     lw_error_clear(&e);
-    assert_int_not_equal(lw_cell_save(blocked, &c, NULL, &e), LW_OK);
+    assert_int_not_equal(lw_cellfile_save(blocked, &c, NULL, &e), LW_OK);
     assert_int_equal(count_curves("blocked"), 0);
     rmdir(blocked);
     lw_cell_clear(&c);
@@ -126,19 +126,19 @@ static void cell_list_skips_profiles(void **state)
     lw_cell c = small_cell("mycell");
     lw_error e;
     lw_error_clear(&e);
-    assert_int_equal(lw_cell_save(p, &c, NULL, &e), LW_OK);
+    assert_int_equal(lw_cellfile_save(p, &c, NULL, &e), LW_OK);
     lw_cell_clear(&c);
     tmp_write("lib/light.ini", "[light]\nname = x\n[pack]\ncell = mycell\n");
     lw_search s;
     memset(&s, 0, sizeof s);
     lw_search_add(&s, dir);
-    lw_cell_list list;
-    assert_int_equal(lw_cell_list_read(&s, &list, &e), LW_OK);
+    lw_cellfile_list list;
+    assert_int_equal(lw_cellfile_list_read(&s, &list, &e), LW_OK);
     assert_int_equal(list.n, 1);
     assert_string_equal(list.names[0], "mycell");
     assert_int_equal(list.nskipped, 1);
     assert_non_null(strstr(list.skipped[0], "light.ini"));
-    lw_cell_list_clear(&list);
+    lw_cellfile_list_clear(&list);
 }
 
 int main(void)

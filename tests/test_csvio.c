@@ -5,7 +5,7 @@
 #include "testutil.h"
 #include <sys/stat.h>
 #include "tmpdir.h"
-#include "lampwick.h"
+#include <lampwick/lampwick.h>
 
 static void reads_numbers_with_lines_and_quotes(void **state)
 {
@@ -124,13 +124,13 @@ static void numbers_round_trip(void **state)
                                 "0.30000000000000004", "4.6e-18", "-2.5", "1e+22"};
     for (size_t i = 0; i < sizeof vals / sizeof vals[0]; i++) {
         char buf[32];
-        lw_format_double(buf, sizeof buf, vals[i]);
+        lw_number_format(buf, sizeof buf, vals[i]);
         assert_true(strtod(buf, NULL) == vals[i]);
         if (want[i])
             assert_string_equal(buf, want[i]);
     }
     char buf[32];
-    lw_format_double(buf, sizeof buf, NAN);
+    lw_number_format(buf, sizeof buf, NAN);
     assert_string_equal(buf, "");
 }
 

@@ -41,7 +41,7 @@ static void pick_worst_case_by_hand(void **state)
     assert_false(pk.corners[LW_CORNER_COLD].from_table);
     assert_close(pk.corners[LW_CORNER_COLD].pt.led_a, 1.0 / 51.5, 1e-12);
     assert_close(pk.corners[LW_CORNER_END].pt.depth, pk.run.end_depth, 0);
-    lw_result_clear(&pk.run);
+    lw_run_result_clear(&pk.run);
     lw_profile_clear(&p);
 }
 
@@ -64,11 +64,11 @@ static void pick_never_proposes_an_unsafe_part(void **state)
     assert_close(pk.corners[LW_CORNER_HOT].pt.led_a, 1.10 / 53.7, 1e-12);
     assert_true(pk.corners[LW_CORNER_HOT].pt.led_a <= 0.022);
     assert_non_null(strstr(e.msg, "nearest safe part is 56 ohm"));
-    lw_result_clear(&pk.run);
+    lw_run_result_clear(&pk.run);
     /* a flux target the LED cannot reach within its rating at all */
     lw_error_clear(&e);
     assert_int_equal(lw_pick_resistor(&p, LW_TARGET_FLUX, 50.0, 24, &pk, &e), LW_ENOANSWER);
-    lw_result_clear(&pk.run);
+    lw_run_result_clear(&pk.run);
     lw_profile_clear(&p);
 }
 
@@ -86,7 +86,7 @@ static void pick_flux_target(void **state)
     assert_close(pk.ideal_ohm, 62.0, 1e-9);
     assert_close(pk.resistor_ohm, 62, 0);
     assert_true(pk.corners[LW_CORNER_NOMINAL].pt.flux_lm >= 8.0 * (1 - 1e-12));
-    lw_result_clear(&pk.run);
+    lw_run_result_clear(&pk.run);
     lw_profile_clear(&p);
 }
 
@@ -131,7 +131,7 @@ static void size_results_pass_their_own_runs(void **state)
         assert_true(r.runtime_h >= 60.0);
         assert_close(r.runtime_h, rows[i].runtime_h, 1e-12);
         lw_point w;
-        assert_int_equal(lw_worst_case(&q.light, &w, &e), LW_OK);
+        assert_int_equal(lw_run_worst_case(&q.light, &w, &e), LW_OK);
         assert_true(w.led_a <= q.light.led.max_current_a);
         lw_profile_clear(&q);
     }
@@ -179,7 +179,7 @@ static void size_respects_the_resistor_rating(void **state)
         double below = lw_eseries_round(24, rows[i].resistor_ohm * (1 - 1e-6), false);
         lw_light l = q.light;
         l.drive.resistor_ohm = below;
-        assert_int_equal(lw_worst_case(&l, &w, &e), LW_OK);
+        assert_int_equal(lw_run_worst_case(&l, &w, &e), LW_OK);
         if (rows[i].resistor_ohm > 49.5 * 1.06) /* above the design current's value */
             assert_true(w.p_res_peak_w > 0.02 || w.led_a > l.led.max_current_a);
         lw_profile_clear(&q);
@@ -280,18 +280,18 @@ static void table_consistent_with_run(void **state)
             lw_run_options o = lw_run_options_default();
             assert_int_equal(lw_run(&q.light, &o, &res, &e), LW_OK);
             double v;
-            if (lw_end_is_dark(res.end_reason)) {
+            if (lw_run_end_is_dark(res.end_reason)) {
                 /* a light that gives no light: no figures at all */
                 for (size_t k = 0; k < 5; k++)
                     assert_string_equal(t->cell[r * t->ncol + 1 + c * 7 + k], "");
                 lw_profile_clear(&q);
                 continue;
             }
-            assert_true(lw_parse_double(t->cell[r * t->ncol + 1 + c * 7 + 1], &v));
+            assert_true(lw_number_parse_double(t->cell[r * t->ncol + 1 + c * 7 + 1], &v));
             assert_close(v, res.runtime_h, 1e-5);
-            assert_true(lw_parse_double(t->cell[r * t->ncol + 1 + c * 7 + 0], &v));
+            assert_true(lw_number_parse_double(t->cell[r * t->ncol + 1 + c * 7 + 0], &v));
             assert_close(v, res.flux_30s_lm, 1e-5);
-            assert_true(lw_parse_double(t->cell[r * t->ncol + 1 + c * 7 + 3], &v));
+            assert_true(lw_number_parse_double(t->cell[r * t->ncol + 1 + c * 7 + 3], &v));
             assert_close(v, lw_photometry_cone_cd(res.flux_30s_lm, 60), 1e-5);
             lw_profile_clear(&q);
         }

@@ -99,16 +99,16 @@ static void converter_quadratic_against_gsl(void **state)
                     double e_v = es[a], r = rs[b], iq = iqs[c], p = ps[d];
                     double x0, x1, ip;
                     int n = gsl_poly_solve_quadratic(r, -(e_v + r * iq), e_v * iq + p, &x0, &x1);
-                    bool ok = lw_converter_input_current(e_v, r, iq, p, &ip);
+                    bool ok = lw_drive_converter_input_current(e_v, r, iq, p, &ip);
                     assert_int_equal(ok, n == 2);
                     if (ok)
                         assert_close(ip, fmin(x0, x1), 1e-12);
                 }
     /* at the published discriminant condition, from both sides */
     double e_v = 3.0, r = 1.0, pmax = e_v * e_v / (4 * r), ip;
-    assert_true(lw_converter_input_current(e_v, r, 0, pmax * (1 - 1e-9), &ip));
+    assert_true(lw_drive_converter_input_current(e_v, r, 0, pmax * (1 - 1e-9), &ip));
     assert_close(ip, e_v / (2 * r), 1e-4);
-    assert_false(lw_converter_input_current(e_v, r, 0, pmax * (1 + 1e-9), &ip));
+    assert_false(lw_drive_converter_input_current(e_v, r, 0, pmax * (1 + 1e-9), &ip));
 }
 
 static void converter_light(lw_light *l, double fallback_a)
@@ -232,7 +232,7 @@ static void converter_steep_efficiency_notch(void **state)
     lw_result r = run_ok(&l, false);
     assert_true(r.solves < 20000);
     expect_conservation(&r);
-    lw_result_clear(&r);
+    lw_run_result_clear(&r);
     lw_light_clear(&l);
 }
 
@@ -274,7 +274,7 @@ static void stored_run_starting_depth(void **state)
     l.pack.cell.self_discharge_pct_month = 2.0;
     l.pack.stored_months = 12;
     double kept = pow(0.98, 12);
-    assert_close(lw_stored_depth(&l), 1.0 - kept, 1e-12);
+    assert_close(lw_light_stored_depth(&l), 1.0 - kept, 1e-12);
     lw_result r = run_ok(&l, false);
     assert_close(r.start_depth, 1.0 - kept, 1e-12);
     /* during the run the charge left r = 1 - d obeys dr/dt = -I/C - lambda r
@@ -282,16 +282,16 @@ static void stored_run_starting_depth(void **state)
      * ODE whose exact solution reaches r = 0 at t = ln(1 + r0/a)/lambda with
      * a = I/(C lambda) */
     double lambda = -log(0.98) / 730.5, a = 0.020 / (2.0 * lambda);
-    assert_close(lw_self_discharge_per_h(&l.pack.cell), lambda, 1e-15);
+    assert_close(lw_cell_self_discharge_per_h(&l.pack.cell), lambda, 1e-15);
     assert_close(r.runtime_h, log(1.0 + kept / a) / lambda, 1e-9);
     /* standby drain of 10 uA for the same 12 months, two cells in parallel */
     l.drive.standby_a = 10e-6;
     l.pack.parallel = 2;
     double drained = 10e-6 * 12 * 730.5 / (2 * 2.0);
-    assert_close(lw_stored_depth(&l), 1.0 - kept + drained, 1e-12);
+    assert_close(lw_light_stored_depth(&l), 1.0 - kept + drained, 1e-12);
     /* nothing left after enough years */
     l.pack.stored_months = 600;
-    assert_close(lw_stored_depth(&l), 1.0, 0);
+    assert_close(lw_light_stored_depth(&l), 1.0, 0);
     lw_light_clear(&l);
 }
 

@@ -12,7 +12,7 @@
 #include <gsl/gsl_errno.h>
 #include <gsl/gsl_integration.h>
 #include "gslref.h"
-#include "lampwick.h"
+#include <lampwick/lampwick.h>
 
 #include "lights.h"
 
@@ -140,7 +140,7 @@ static double ref_current(const lw_light *l, double d)
     double e = l->pack.series * ocv;
     double r = l->drive.resistor_ohm +
                l->pack.series * led->strings * rc / l->pack.parallel;
-    struct loop q = {e, r, led->count * led->ideality * lw_thermal_voltage(led->junction_c),
+    struct loop q = {e, r, led->count * led->ideality * lw_led_thermal_voltage(led->junction_c),
                      led->saturation_a, led->count * led->series_ohm};
     return gsl_brent(loop_residual, &q, 0, e / r, 0, 1e-15);
 }
@@ -369,7 +369,7 @@ static void dark_at_switch_on(void **state)
     l.pack.stored_months = 600; /* fifty years on the shelf */
     lw_result r = run_ok(&l, false);
     assert_int_equal(r.end_reason, LW_END_EMPTY_AT_START);
-    assert_true(lw_end_is_dark(r.end_reason));
+    assert_true(lw_run_end_is_dark(r.end_reason));
     assert_true(r.runtime_h == 0.0 && isnan(r.flux_30s_lm) && isnan(r.time_to_half_h));
     l.pack.stored_months = 0;
     l.cutoff.cell_v = 1.57; /* the loaded cell starts below its end point */
@@ -379,7 +379,7 @@ static void dark_at_switch_on(void **state)
     l.cutoff.flux_lm = 1000; /* far above the light's output */
     r = run_ok(&l, false);
     assert_int_equal(r.end_reason, LW_END_DIM_AT_START);
-    assert_true(lw_end_is_dark(r.end_reason));
+    assert_true(lw_run_end_is_dark(r.end_reason));
     lw_light_clear(&l);
 }
 
@@ -448,7 +448,7 @@ static void trace_is_dense_monotone_and_ends_at_cutoff(void **state)
     /* the second-to-last row's time is an independent sum of pieces */
     assert_true(tr.rows[tr.n - 2].t_h < r.runtime_h);
     lw_trace_clear(&tr);
-    lw_result_clear(&r);
+    lw_run_result_clear(&r);
     lw_light_clear(&l);
 }
 
@@ -529,13 +529,13 @@ static void work_cap_stops_a_run(void **state)
     lw_error_clear(&e);
     assert_int_equal(lw_run(&l, &o, &r, &e), LW_ENUMERIC);
     assert_non_null(strstr(e.msg, "operating-point solves near depth"));
-    lw_result_clear(&r);
+    lw_run_result_clear(&r);
     o.max_solves = (int)full.solves; /* exactly enough */
     lw_error_clear(&e);
     assert_int_equal(lw_run(&l, &o, &r, &e), LW_OK);
     assert_close(r.runtime_h, full.runtime_h, 0);
-    lw_result_clear(&r);
-    lw_result_clear(&full);
+    lw_run_result_clear(&r);
+    lw_run_result_clear(&full);
     lw_light_clear(&l);
 }
 

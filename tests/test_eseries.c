@@ -3,7 +3,7 @@
  * parsing.
  */
 #include "testutil.h"
-#include "lampwick.h"
+#include <lampwick/lampwick.h>
 
 static void expect_series(int n, const double *want, size_t count)
 {
@@ -98,14 +98,14 @@ static void value_parsing(void **state)
               {"4R7", 4.7}, {"0R22", 0.22}, {"1k", 1000}, {" 33 ", 33}, {"-5", -5}};
     for (size_t i = 0; i < sizeof ok / sizeof ok[0]; i++) {
         double v = -1;
-        if (!lw_parse_number(ok[i].s, &v))
+        if (!lw_number_parse(ok[i].s, &v))
             fail_msg("refused '%s'", ok[i].s);
         assert_close(v, ok[i].v, 1e-15);
     }
     const char *bad[] = {"", "k", "4k7k", "4.7k7", "-4k7", "1m", "R5", "5R", "abc", "1e999"};
     for (size_t i = 0; i < sizeof bad / sizeof bad[0]; i++) {
         double v;
-        if (lw_parse_number(bad[i], &v))
+        if (lw_number_parse(bad[i], &v))
             fail_msg("accepted '%s'", bad[i]);
     }
 }

@@ -6,7 +6,7 @@
 #include <gsl/gsl_fit.h>
 #include <gsl/gsl_multifit.h>
 #include "tmpdir.h"
-#include "lampwick.h"
+#include <lampwick/lampwick.h>
 
 /* deterministic noise: a 64-bit LCG (Knuth's MMIX constants) and Box-Muller */
 static unsigned long long rng = 12345;
@@ -49,7 +49,7 @@ static void linear_fit_against_gsl(void **state)
 static void shockley_recovers_noise_free_parameters(void **state)
 {
     (void)state;
-    const double n = 3.0, is = 4.6e-18, rs = 1.5, vt = lw_thermal_voltage(25);
+    const double n = 3.0, is = 4.6e-18, rs = 1.5, vt = lw_led_thermal_voltage(25);
     double v[NCUR];
     for (size_t k = 0; k < NCUR; k++)
         v[k] = n * vt * log(cur_a[k] / is) + rs * cur_a[k];
@@ -69,7 +69,7 @@ static void shockley_recovers_noise_free_parameters(void **state)
 static void shockley_with_noise_within_bounds(void **state)
 {
     (void)state;
-    const double n = 3.0, is = 4.6e-18, rs = 1.5, vt = lw_thermal_voltage(25);
+    const double n = 3.0, is = 4.6e-18, rs = 1.5, vt = lw_led_thermal_voltage(25);
     double v[NCUR];
     rng = 99;
     for (size_t k = 0; k < NCUR; k++)
@@ -181,7 +181,7 @@ static void load_light(lw_light *l, const lw_cell *cell, double r_ohm)
 }
 
 /* A log sampled every 60 s from the engine's trace of a resistive load. */
-static void synth_log(const lw_cell *cell, double r_ohm, lw_dlog *log)
+static void synth_log(const lw_cell *cell, double r_ohm, lw_cellfit_log *log)
 {
     lw_light l;
     load_light(&l, cell, r_ohm);
@@ -195,7 +195,7 @@ static void synth_log(const lw_cell *cell, double r_ohm, lw_dlog *log)
     assert_int_equal(lw_trace_build(&l, &r, 2000, &tr, &e), LW_OK);
     size_t n = (size_t)(r.runtime_h * 60.0) + 1;
     memset(log, 0, sizeof *log);
-    lw_strlcpy(log->path, "synthetic", sizeof log->path);
+    lw_text_copy(log->path, "synthetic", sizeof log->path);
     log->t_h = malloc(3 * n * sizeof(double));
     log->line = calloc(n, sizeof(int));
     log->v = log->t_h + n;
@@ -214,7 +214,7 @@ static void synth_log(const lw_cell *cell, double r_ohm, lw_dlog *log)
         log->line[s] = (int)s + 2;
     }
     lw_trace_clear(&tr);
-    lw_result_clear(&r);
+    lw_run_result_clear(&r);
     lw_light_clear(&l);
 }
 
@@ -241,15 +241,15 @@ static void cell_fit_round_trip(void **state)
     lw_cell truth;
     lw_error e;
     lw_error_clear(&e);
-    assert_int_equal(lw_cell_load(LW_SOURCE_ROOT "/docs/examples/nimh-aa-sample.ini", &truth, &e),
+    assert_int_equal(lw_cellfile_load(LW_SOURCE_ROOT "/docs/examples/nimh-aa-sample.ini", &truth, &e),
                      LW_OK);
-    lw_dlog logs[2];
+    lw_cellfit_log logs[2];
     synth_log(&truth, 3.9, &logs[0]);
     synth_log(&truth, 8.2, &logs[1]);
     lw_cellfit_options opt = {.cutoff_v = 1.0, .tolerance_v = 0.002, .name = "refit",
                               .chemistry = LW_CHEM_NIMH, .rechargeable = true, .nominal_v = NAN};
     lw_cellfit fit;
-    assert_int_equal(lw_fit_cell(logs, 2, &opt, &fit, &e), LW_OK);
+    assert_int_equal(lw_cellfit_fit(logs, 2, &opt, &fit, &e), LW_OK);
     assert_true(fit.peukert_estimated);
     assert_true(fit.cell.peukert > 1.0 && fit.cell.peukert < 1.15);
     assert_true(fit.max_dev_v <= 0.002 + 1e-12);
@@ -261,17 +261,17 @@ static void cell_fit_round_trip(void **state)
     /* and the file it writes loads back unchanged */
     char path[600];
     snprintf(path, sizeof path, "%s/refit.ini", tmp_root());
-    assert_int_equal(lw_cell_save(path, &fit.cell, "test", &e), LW_OK);
+    assert_int_equal(lw_cellfile_save(path, &fit.cell, "test", &e), LW_OK);
     lw_cell back;
-    assert_int_equal(lw_cell_load(path, &back, &e), LW_OK);
+    assert_int_equal(lw_cellfile_load(path, &back, &e), LW_OK);
     /* the file holds 6 significant figures */
     assert_close(back.capacity_ah, fit.cell.capacity_ah, 1e-5);
     assert_close(runtime_on(&back, 5.6, 1.0), t_fit, 1e-3);
     lw_cell_clear(&back);
     lw_cell_clear(&fit.cell);
     lw_cell_clear(&truth);
-    lw_dlog_clear(&logs[0]);
-    lw_dlog_clear(&logs[1]);
+    lw_cellfit_log_clear(&logs[0]);
+    lw_cellfit_log_clear(&logs[1]);
 }
 
 /* The bundled example logs (with their noise) against the model that
@@ -283,19 +283,19 @@ static void cell_fit_round_trip(void **state)
 static void cell_fit_resistance_near_empty(void **state)
 {
     (void)state;
-    lw_dlog logs[2];
+    lw_cellfit_log logs[2];
     lw_error e;
     lw_error_clear(&e);
-    assert_int_equal(lw_dlog_read(LW_SOURCE_ROOT "/docs/examples/nimh-aa-3r9.csv", 3.9, NAN,
+    assert_int_equal(lw_cellfit_log_read(LW_SOURCE_ROOT "/docs/examples/nimh-aa-3r9.csv", 3.9, NAN,
                                   &logs[0], &e),
                      LW_OK);
-    assert_int_equal(lw_dlog_read(LW_SOURCE_ROOT "/docs/examples/nimh-aa-8r2.csv", 8.2, NAN,
+    assert_int_equal(lw_cellfit_log_read(LW_SOURCE_ROOT "/docs/examples/nimh-aa-8r2.csv", 8.2, NAN,
                                   &logs[1], &e),
                      LW_OK);
     lw_cellfit_options opt = {.cutoff_v = 1.0, .tolerance_v = 0.005, .name = "ex",
                               .chemistry = LW_CHEM_NIMH, .rechargeable = true, .nominal_v = NAN};
     lw_cellfit fit;
-    assert_int_equal(lw_fit_cell(logs, 2, &opt, &fit, &e), LW_OK);
+    assert_int_equal(lw_cellfit_fit(logs, 2, &opt, &fit, &e), LW_OK);
     double r_mid = lw_interp_linear(fit.cell.res, 0.5);
     assert_close(r_mid, 0.033, 0.10);
     assert_true(fit.reliable_depth > 0.9 && fit.reliable_depth < 1.0);
@@ -303,8 +303,8 @@ static void cell_fit_resistance_near_empty(void **state)
         assert_true(lw_interp_linear(fit.cell.res, fmin(d, 1.0)) >= r_mid);
     assert_true(lw_interp_linear(fit.cell.res, 1.0) >= lw_interp_linear(fit.cell.res, 0.9));
     lw_cell_clear(&fit.cell);
-    lw_dlog_clear(&logs[0]);
-    lw_dlog_clear(&logs[1]);
+    lw_cellfit_log_clear(&logs[0]);
+    lw_cellfit_log_clear(&logs[1]);
 }
 
 /* Coulomb counting on a constant-current log: capacity = I x t to the end. */
@@ -319,21 +319,21 @@ static void one_log_constant_current(void **state)
         strcat(text, row);
     }
     const char *p = tmp_write("cc.csv", text);
-    lw_dlog log;
+    lw_cellfit_log log;
     lw_error e;
     lw_error_clear(&e);
-    assert_int_equal(lw_dlog_read(p, NAN, 0.5, &log, &e), LW_OK);
+    assert_int_equal(lw_cellfit_log_read(p, NAN, 0.5, &log, &e), LW_OK);
     lw_cellfit_options opt = {.cutoff_v = 1.0, .resistance_ohm = 0.05, .tolerance_v = 0.001,
                               .chemistry = LW_CHEM_OTHER, .nominal_v = NAN};
     lw_cellfit fit;
-    assert_int_equal(lw_fit_cell(&log, 1, &opt, &fit, &e), LW_OK);
+    assert_int_equal(lw_cellfit_fit(&log, 1, &opt, &fit, &e), LW_OK);
     assert_close(fit.cell.capacity_ah, 0.5 * 380 * 36 / 3600.0, 1e-9); /* 1.9 Ah */
     assert_close(fit.cell.peukert, 1.0, 0);
     /* OCV = V + I R at the start: 1.3 + 0.5 x 0.05 */
     assert_close(fit.cell.ocv->y[0], 1.325, 1e-9);
     assert_true(fit.cell.ocv->n <= 4); /* a straight line needs only its ends */
     lw_cell_clear(&fit.cell);
-    lw_dlog_clear(&log);
+    lw_cellfit_log_clear(&log);
 }
 
 static void log_refusals(void **state)
@@ -358,10 +358,10 @@ static void log_refusals(void **state)
     };
     for (size_t k = 0; k < sizeof cases / sizeof cases[0]; k++) {
         const char *p = tmp_write("bad-log.csv", cases[k].text);
-        lw_dlog log;
+        lw_cellfit_log log;
         lw_error e;
         lw_error_clear(&e);
-        if (lw_dlog_read(p, 3.9, NAN, &log, &e) != LW_EINPUT)
+        if (lw_cellfit_log_read(p, 3.9, NAN, &log, &e) != LW_EINPUT)
             fail_msg("case %zu accepted", k);
         assert_error_at(e, "bad-log.csv", cases[k].line, cases[k].msg);
     }
@@ -369,15 +369,15 @@ static void log_refusals(void **state)
     const char *p = tmp_write("high.csv", "time_s,voltage_v\n0,1.3\n60,1.29\n120,1.28\n"
                                           "180,1.27\n240,1.26\n300,1.25\n360,1.24\n"
                                           "420,1.23\n480,1.22\n540,1.21\n");
-    lw_dlog log;
+    lw_cellfit_log log;
     lw_error e;
     lw_error_clear(&e);
-    assert_int_equal(lw_dlog_read(p, 3.9, NAN, &log, &e), LW_OK);
+    assert_int_equal(lw_cellfit_log_read(p, 3.9, NAN, &log, &e), LW_OK);
     lw_cellfit_options opt = {.cutoff_v = 1.0, .resistance_ohm = 0.05, .nominal_v = NAN};
     lw_cellfit fit;
-    assert_int_equal(lw_fit_cell(&log, 1, &opt, &fit, &e), LW_EINPUT);
+    assert_int_equal(lw_cellfit_fit(&log, 1, &opt, &fit, &e), LW_EINPUT);
     assert_error_at(e, "high.csv", 11, "never reaches the end point 1 V");
-    lw_dlog_clear(&log);
+    lw_cellfit_log_clear(&log);
 }
 
 int main(void)

@@ -3,7 +3,7 @@
  */
 #include "testutil.h"
 #include "tmpdir.h"
-#include "lampwick.h"
+#include <lampwick/lampwick.h>
 
 static void reads_entries_with_lines(void **state)
 {
@@ -167,7 +167,7 @@ static void suggestions_for_misspellings(void **state)
     lw_key_unknown(defs, NDEFS, "s", "zzzzzzzz", "p.ini", 6, &e);
     assert_error_at(e, "p.ini", 6, "unknown key 'zzzzzzzz' in [s]");
     assert_null(strstr(e.msg, "did you mean"));
-    assert_int_equal(lw_edit_distance("kitten", "sitting"), 3);
+    assert_int_equal(lw_text_edit_distance("kitten", "sitting"), 3);
 }
 
 int main(void)

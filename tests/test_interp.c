@@ -2,7 +2,7 @@
  * test_interp.c - interpolation tables (interp.h).
  */
 #include "testutil.h"
-#include "lampwick.h"
+#include <lampwick/lampwick.h>
 
 static lw_interp *mk(const double *x, const double *y, size_t n)
 {

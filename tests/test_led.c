@@ -6,7 +6,7 @@
 #include <gsl/gsl_errno.h>
 #include "gslref.h"
 #include <gsl/gsl_sf_lambert.h>
-#include "lampwick.h"
+#include <lampwick/lampwick.h>
 
 static lw_led base_led(lw_led_model m)
 {
@@ -72,7 +72,7 @@ static void shockley_against_gsl(void **state)
                 led.saturation_a = iss[a];
                 led.series_ohm = rs[b];
                 led.junction_c = 25;
-                double vt = lw_thermal_voltage(25), nvt = ns[a] * vt;
+                double vt = lw_led_thermal_voltage(25), nvt = ns[a] * vt;
                 lw_error e;
                 lw_error_clear(&e);
                 double i = 0;
@@ -101,7 +101,7 @@ static void shockley_zero_resistance_limit(void **state)
     led.junction_c = 25;
     lw_error e;
     lw_error_clear(&e);
-    double i = 0, vt = lw_thermal_voltage(25);
+    double i = 0, vt = lw_led_thermal_voltage(25);
     assert_int_equal(lw_led_solve(&led, 1.0, 0.0, &i, NULL, &e), LW_OK);
     assert_close(i, 1e-12 * expm1(1.0 / (2 * vt)), 1e-13);
     /* and it meets the tiny-resistance closed form continuously */
@@ -205,8 +205,8 @@ static void flux_models(void **state)
 static void thermal_voltage(void **state)
 {
     (void)state;
-    assert_close(lw_thermal_voltage(25), 1.380649e-23 * 298.15 / 1.602176634e-19, 1e-15);
-    assert_close(lw_thermal_voltage(25), 0.025693, 1e-4);
+    assert_close(lw_led_thermal_voltage(25), 1.380649e-23 * 298.15 / 1.602176634e-19, 1e-15);
+    assert_close(lw_led_thermal_voltage(25), 0.025693, 1e-4);
 }
 
 int main(void)

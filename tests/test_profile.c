@@ -6,7 +6,7 @@
 #include "testutil.h"
 #include <glob.h>
 #include "tmpdir.h"
-#include "lampwick.h"
+#include <lampwick/lampwick.h>
 
 static const char *const good_cell = "; a test cell\n"
                                      "[cell]\n"
@@ -240,7 +240,7 @@ static void cell_refusals(void **state)
         lw_cell c;
         lw_error e;
         lw_error_clear(&e);
-        if (lw_cell_load(path, &c, &e) != LW_EINPUT)
+        if (lw_cellfile_load(path, &c, &e) != LW_EINPUT)
             fail_msg("case %zu accepted", i);
         assert_error_at(e, cases[i].file, cases[i].line, cases[i].msg);
         assert_null(c.ocv);
@@ -281,7 +281,7 @@ static void accepted_forms(void **state)
                      v ? yes[k] : no[k]);
             lw_cell c;
             lw_error_clear(&e);
-            assert_int_equal(lw_cell_load(tmp_write("b.ini", text), &c, &e), LW_OK);
+            assert_int_equal(lw_cellfile_load(tmp_write("b.ini", text), &c, &e), LW_OK);
             assert_int_equal(c.rechargeable, v == 1);
             lw_cell_clear(&c);
         }
@@ -298,10 +298,10 @@ static void search_path_finds_cells(void **state)
     char path[512];
     lw_error e;
     lw_error_clear(&e);
-    assert_int_equal(lw_cell_find("LR6-alkaline", "/tmp", &s, path, sizeof path, &e), LW_OK);
+    assert_int_equal(lw_cellfile_find("LR6-alkaline", "/tmp", &s, path, sizeof path, &e), LW_OK);
     assert_non_null(strstr(path, "cells/LR6-alkaline.ini"));
     lw_error_clear(&e);
-    assert_int_equal(lw_cell_find("nope", "/tmp", &s, path, sizeof path, &e), LW_EINPUT);
+    assert_int_equal(lw_cellfile_find("nope", "/tmp", &s, path, sizeof path, &e), LW_EINPUT);
     assert_non_null(strstr(e.msg, "/nonexistent"));
 }
 
@@ -316,7 +316,7 @@ static void cell_library_loads(void **state)
         lw_cell c;
         lw_error e;
         lw_error_clear(&e);
-        if (lw_cell_load(g.gl_pathv[i], &c, &e) != LW_OK)
+        if (lw_cellfile_load(g.gl_pathv[i], &c, &e) != LW_OK)
             fail_msg("%s: %s:%d: %s", g.gl_pathv[i], e.file, e.line, e.msg);
         assert_true(c.capacity_ah > 0 && c.max_capacity_ah >= c.capacity_ah);
         assert_int_equal(lw_interp_direction(c.ocv, 0), -1);

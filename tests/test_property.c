@@ -14,7 +14,7 @@
  */
 #include "testutil.h"
 #include <stdlib.h>
-#include "lampwick.h"
+#include <lampwick/lampwick.h>
 
 /* splitmix64 (S. Vigna's public-domain generator): deterministic test data. */
 static uint64_t rng_state = 0x9E3779B97F4A7C15u;
@@ -33,7 +33,7 @@ static int pick(int n) { return (int)(uni() * n) % n; }
 static void random_cell(lw_cell *c)
 {
     memset(c, 0, sizeof *c);
-    lw_strlcpy(c->name, "random", sizeof c->name);
+    lw_text_copy(c->name, "random", sizeof c->name);
     size_t n = 2 + (size_t)pick(14);
     double d[16], v[16], r[16];
     double v0 = between(1.0, 4.3), v1 = v0 * between(0.3, 0.95);
@@ -79,7 +79,7 @@ static void random_led(lw_led *l, double pack_v)
     l->ideality = between(1.0, 8.0);
     l->series_ohm = uni() < 0.2 ? 0.0 : log_between(0.01, 20.0);
     /* Is from the voltage at 20 mA */
-    double vt = lw_thermal_voltage(25) * l->ideality;
+    double vt = lw_led_thermal_voltage(25) * l->ideality;
     l->saturation_a = fmax(1e-300, 0.02 / expm1(fmin(700.0, vf / vt)));
     if (l->model == LW_LED_TABLE) {
         double ia[40], va[40];
@@ -103,7 +103,7 @@ static void random_led(lw_led *l, double pack_v)
 static void random_light(lw_light *l)
 {
     memset(l, 0, sizeof *l);
-    lw_strlcpy(l->name, "random", sizeof l->name);
+    lw_text_copy(l->name, "random", sizeof l->name);
     random_cell(&l->pack.cell);
     l->pack.series = 1 + pick(8);
     l->pack.parallel = 1 + pick(4);
@@ -157,7 +157,7 @@ static void describe(const lw_light *l, int i)
 
 static void check_result(const lw_light *l, const lw_result *r, int i)
 {
-    if (lw_end_is_dark(r->end_reason)) {
+    if (lw_run_end_is_dark(r->end_reason)) {
         assert_true(r->runtime_h == 0.0);
         return;
     }
@@ -212,9 +212,9 @@ static void random_lights_end_with_an_answer(void **state)
             fprintf(stderr, "  -> %s\n", e.msg);
         } else {
             check_result(&l, &r, i);
-            dark += lw_end_is_dark(r.end_reason);
+            dark += lw_run_end_is_dark(r.end_reason);
         }
-        lw_result_clear(&r);
+        lw_run_result_clear(&r);
         lw_light_clear(&l);
     }
     assert_int_equal(failed, 0);
@@ -248,7 +248,7 @@ static void results_move_the_way_physics_says(void **state)
         l.drive.duty_pct = 100;
         lw_result base, other;
         run_ok_or_fail(&l, &base, i);
-        if (lw_end_is_dark(base.end_reason)) {
+        if (lw_run_end_is_dark(base.end_reason)) {
             lw_light_clear(&l);
             continue;
         }
@@ -274,7 +274,7 @@ static void results_move_the_way_physics_says(void **state)
                 m.drive.dropout_v = l.drive.dropout_v + 0.2;
             run_ok_or_fail(&m, &other, i);
             double reg_b = isnan(base.regulated_h) ? 0 : base.regulated_h;
-            double reg_o = isnan(other.regulated_h) || lw_end_is_dark(other.end_reason)
+            double reg_o = isnan(other.regulated_h) || lw_run_end_is_dark(other.end_reason)
                                ? 0
                                : other.regulated_h;
             if (!(reg_o <= reg_b * (1 + 1e-9) + 1e-12))
@@ -282,7 +282,7 @@ static void results_move_the_way_physics_says(void **state)
                          reg_o);
             if (l.drive.type == LW_DRIVE_CONVERTER && l.drive.fallback_a == 0 &&
                 !(other.runtime_h <= base.runtime_h * (1 + 1e-9) ||
-                  lw_end_is_dark(other.end_reason)))
+                  lw_run_end_is_dark(other.end_reason)))
                 fail_msg("light %d: a higher lockout lengthened %g -> %g h", i, base.runtime_h,
                          other.runtime_h);
         }

@@ -4,9 +4,9 @@
  */
 #include "testutil.h"
 #include "tmpdir.h"
-#include "lampwick.h"
+#include <lampwick/lampwick.h>
 
-static char *render(const lw_rtable *t, lw_format fmt)
+static char *render(const lw_rtable *t, lw_rtable_format fmt)
 {
     static char buf[4096];
     const char *p = tmp_write("r.txt", "");
@@ -33,8 +33,8 @@ static void run_columns_contract(void **state)
                           "regulated_h",      "energy_driver_wh",  "warnings"};
     for (size_t i = 0; i < sizeof need / sizeof need[0]; i++) {
         bool found = false;
-        for (size_t k = 0; k < lw_run_ncolumns; k++)
-            found = found || !strcmp(lw_run_columns[k], need[i]);
+        for (size_t k = 0; k < lw_report_run_ncolumns; k++)
+            found = found || !strcmp(lw_report_run_columns[k], need[i]);
         if (!found)
             fail_msg("column %s missing", need[i]);
     }
@@ -83,17 +83,17 @@ static void nice_ticks_are_round(void **state)
 {
     (void)state;
     double t[33];
-    size_t n = lw_nice_ticks(0, 59.88, 8, t);
+    size_t n = lw_plot_ticks(0, 59.88, 8, t);
     assert_true(n >= 4 && n <= 8);
     for (size_t i = 0; i < n; i++) {
         double step = t[1] - t[0];
         assert_close(step, 10, 1e-12);
         assert_close(t[i], 10.0 * (double)i, 1e-12);
     }
-    n = lw_nice_ticks(0.9, 1.6, 6, t);
+    n = lw_plot_ticks(0.9, 1.6, 6, t);
     assert_close(t[0], 1.0, 1e-12);
     assert_close(t[1] - t[0], 0.2, 1e-12);
-    assert_int_equal(lw_nice_ticks(1, 1, 6, t), 0);
+    assert_int_equal(lw_plot_ticks(1, 1, 6, t), 0);
 }
 
 /* Whatever bytes a label holds, the SVG is well-formed XML 1.0 (W3C XML
@@ -123,7 +123,7 @@ static void svg_text_is_always_well_formed(void **state)
     assert_int_equal(lw_plot_svg(fp, &c, &e), LW_OK);
     fclose(fp);
     size_t at;
-    assert_true(lw_utf8_valid(text, len, &at));
+    assert_true(lw_text_utf8_valid(text, len, &at));
     for (size_t i = 0; i < len; i++)
         if ((unsigned char)text[i] < 0x20 && text[i] != '\n' && text[i] != '\t')
             fail_msg("control byte 0x%02x at %zu", (unsigned char)text[i], i);
@@ -138,14 +138,14 @@ static void hours_formatting(void **state)
 {
     (void)state;
     char b[64];
-    lw_format_hours(0.5, b, sizeof b);
+    lw_report_hours(0.5, b, sizeof b);
     assert_string_equal(b, "30.0 min");
-    lw_format_hours(12.345, b, sizeof b);
+    lw_report_hours(12.345, b, sizeof b);
     assert_string_equal(b, "12.35 h");
-    lw_format_hours(NAN, b, sizeof b);
+    lw_report_hours(NAN, b, sizeof b);
     assert_string_equal(b, "not reached");
     char w[128];
-    lw_warnings_text(LW_WARN_LED_OVER_MAX | LW_WARN_RESISTOR_HOT, w, sizeof w);
+    lw_report_warnings(LW_WARN_LED_OVER_MAX | LW_WARN_RESISTOR_HOT, w, sizeof w);
     assert_string_equal(w, "led-over-max;resistor-hot");
 }
 

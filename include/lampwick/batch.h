@@ -5,7 +5,7 @@
  * "section.key" overrides, and after the run its status, error, result and
  * resolved light) and lw_batch_run, which runs every case through the same
  * path as `lampwick run` (copy profile -> mode -> overrides -> resolve ->
- * lw_run) with lw_parallel_for.  Results are identical to running the cases
+ * lw_run) with lw_pool_for.  Results are identical to running the cases
  * one by one, and stay in input order.  Sweeps, pick, size and table are all
  * built on it, so one code path computes every number.
  */
@@ -49,7 +49,7 @@ lw_status lw_case_profile(const lw_profile *base, const lw_case *c, const char *
 /* Run every case.  threads <= 0: all cores.  Returns LW_OK even when cases
  * failed (see each case's status). */
 void lw_batch_run(const lw_profile *base, lw_case *cases, size_t n, int threads,
-                  lw_progress_fn progress, void *progress_ctx);
+                  lw_pool_progress_fn progress, void *progress_ctx);
 
 /* Free what the cases hold (not the array). */
 void lw_batch_clear(lw_case *cases, size_t n);

@@ -36,7 +36,7 @@ typedef enum lw_chemistry {
 } lw_chemistry;
 
 /* Names as written in cell files ("alkaline", "nimh", ..., "other"). */
-extern const char *const lw_chemistry_names[LW_CHEM_COUNT + 1];
+extern const char *const lw_cell_chemistry_names[LW_CHEM_COUNT + 1];
 
 typedef struct lw_cell {
     char name[LW_NAME_MAX];        /* e.g. "LR6-alkaline" */
@@ -78,10 +78,10 @@ double lw_cell_capacity_ah(const lw_cell *cell, double ic_a, double cap_factor);
 
 /* Self-discharge rate lambda in 1/h from self_discharge_pct_month s:
  * -ln(1 - s/100) / 730.5 h (730.5 h = an average month); 0 for s = 0. */
-double lw_self_discharge_per_h(const lw_cell *cell);
+double lw_cell_self_discharge_per_h(const lw_cell *cell);
 
 /* True for chemistries whose cells must not be discharged past the maker's
  * end-point voltage (lithium-ion, LiFePO4): the over-discharge warning. */
-bool lw_chemistry_needs_endpoint(lw_chemistry chem);
+bool lw_cell_chemistry_needs_endpoint(lw_chemistry chem);
 
 #endif

@@ -3,7 +3,7 @@
  * finding a cell by name along the search path.
  *
  * Owns: the cell-file schema (docs/formats.md), lw_search (the folders a cell
- * name is looked up in), lw_cell_load() and lw_cell_find().
+ * name is looked up in), lw_cellfile_load() and lw_cellfile_find().
  *
  * Cell file keys ([cell] section; units in the names, converted to SI here):
  *   name, chemistry, nominal_v, capacity_mah, rated_ma, peukert (1),
@@ -35,41 +35,41 @@ void lw_search_add(lw_search *s, const char *dir);
 void lw_search_add_list(lw_search *s, const char *list);
 
 /* The cell-file schema, for documentation and tests. */
-extern const lw_keydef lw_cell_keys[];
-extern const size_t lw_cell_nkeys;
+extern const lw_keydef lw_cellfile_keys[];
+extern const size_t lw_cellfile_nkeys;
 
 /* Load a cell file and the CSV files it names (relative to its folder).
  * On failure *cell is left empty.  Free with lw_cell_clear. */
-lw_status lw_cell_load(const char *path, lw_cell *cell, lw_error *err);
+lw_status lw_cellfile_load(const char *path, lw_cell *cell, lw_error *err);
 
 /* Resolve a cell reference: a path (contains '/' or ends in ".ini") is taken
  * relative to base_dir; a name is looked up as NAME.ini in base_dir, then in
  * each folder of `search`.  Writes the file's path on success; the error
  * lists the folders searched. */
-lw_status lw_cell_find(const char *ref, const char *base_dir, const lw_search *search,
+lw_status lw_cellfile_find(const char *ref, const char *base_dir, const lw_search *search,
                        char *path, size_t size, lw_error *err);
 
 /* The cell files of the search folders: names (file names without
  * ".ini"), first folder first, each name once, sorted within a folder.  An
  * INI file without a [cell] section (a light profile kept beside the
  * cells) is not a cell file: its path goes to `skipped`. */
-typedef struct lw_cell_list {
+typedef struct lw_cellfile_list {
     char **names, **paths;
     size_t n;
     char **skipped;
     size_t nskipped;
-} lw_cell_list;
+} lw_cellfile_list;
 
 /* Does the file have a [cell] section (among its first 2,000 lines)?  An
  * unreadable file counts as one (loading it then says why). */
-bool lw_cell_is_cell_file(const char *path);
+bool lw_cellfile_is_cell(const char *path);
 
-lw_status lw_cell_list_read(const lw_search *search, lw_cell_list *list, lw_error *err);
-void lw_cell_list_clear(lw_cell_list *list);
+lw_status lw_cellfile_list_read(const lw_search *search, lw_cellfile_list *list, lw_error *err);
+void lw_cellfile_list_clear(lw_cellfile_list *list);
 
 /* Check that a file named by a key can be opened; the error names the file
  * and line of the key (from_file:from_line) and `what` (e.g. "[cell] curve"). */
-lw_status lw_check_readable(const char *path, const char *from_file, int from_line,
+lw_status lw_path_check_readable(const char *path, const char *from_file, int from_line,
                             const char *what, lw_error *err);
 
 /* Write a cell file at ini_path and its curve beside it as
@@ -82,7 +82,7 @@ lw_status lw_check_readable(const char *path, const char *from_file, int from_li
  * trailing blank, invalid UTF-8, too long) is refused.  `comment` (may hold
  * several lines) goes at the top as ';' comments, control characters shown
  * as \xNN.  The cell must not have a temperature table. */
-lw_status lw_cell_save(const char *ini_path, const lw_cell *cell, const char *comment,
+lw_status lw_cellfile_save(const char *ini_path, const lw_cell *cell, const char *comment,
                        lw_error *err);
 
 /* Join dir and rel ("rel" when rel is absolute or dir is empty); false when

@@ -1,8 +1,8 @@
 /*
  * cellfit.h - a cell model from discharge logs.
  *
- * Owns: lw_dlog (a discharge log: time, terminal voltage and current, as
- * read from CSV and checked) and lw_fit_cell (one or two logs -> lw_cell
+ * Owns: lw_cellfit_log (a discharge log: time, terminal voltage and current, as
+ * read from CSV and checked) and lw_cellfit_fit (one or two logs -> lw_cell
  * with a thinned curve).
  *
  * Method (docs/model.md):
@@ -26,23 +26,23 @@
 #include <stdbool.h>
 #include "cell.h"
 
-typedef struct lw_dlog {
+typedef struct lw_cellfit_log {
     char path[LW_PATH_MAX];
     size_t n;
     double *t_h;     /* hours since the start */
     double *v;       /* terminal voltage, V */
     double *i_a;     /* current, A */
     int *line;       /* CSV line of each sample */
-} lw_dlog;
+} lw_cellfit_log;
 
 /* Read a log: columns time_s, voltage_v and optionally current_ma.  Without
  * current_ma the current is voltage/load_ohm (load_ohm > 0) or load_a.
  * Refuses, with file:line: missing columns, fewer than 10 samples, time not
  * strictly increasing, gaps (a step over 10 times the median step),
  * non-positive voltage or current. */
-lw_status lw_dlog_read(const char *path, double load_ohm, double load_a, lw_dlog *log,
+lw_status lw_cellfit_log_read(const char *path, double load_ohm, double load_a, lw_cellfit_log *log,
                        lw_error *err);
-void lw_dlog_clear(lw_dlog *log);
+void lw_cellfit_log_clear(lw_cellfit_log *log);
 
 typedef struct lw_cellfit_options {
     double cutoff_v;          /* end-point voltage, V */
@@ -69,7 +69,7 @@ typedef struct lw_cellfit {
 } lw_cellfit;
 
 /* Fit from one or two logs (two: at different loads). */
-lw_status lw_fit_cell(const lw_dlog *logs, size_t nlogs, const lw_cellfit_options *opt,
+lw_status lw_cellfit_fit(const lw_cellfit_log *logs, size_t nlogs, const lw_cellfit_options *opt,
                       lw_cellfit *out, lw_error *err);
 
 #endif

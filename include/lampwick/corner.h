@@ -2,12 +2,12 @@
  * corner.h - the corners of a design: the operating points a design review
  * checks against the ratings and the runtime claims.
  *
- * Owns: lw_corner and lw_corners().  With fresh cells unless said:
+ * Owns: lw_corner and lw_corner_compute().  With fresh cells unless said:
  *   nominal    nominal parts at the profile's ambient;
  *   worst hot  the ratings case: the cells at the top of their open-circuit
  *              curve and the bottom of their resistance curve, the resistor
  *              at minus its tolerance, the LED forward voltage at minus its
- *              spread (lw_worst_case);
+ *              spread (lw_run_worst_case);
  *   cold       nominal parts at the lowest temperature of the cell's
  *              temperature table (the cells' resistance and capacity there);
  *              without a table the profile's ambient;
@@ -33,7 +33,7 @@ typedef struct lw_corner {
 } lw_corner;
 
 /* The four corners of `light`; `run` is its nominal run (for the end). */
-lw_status lw_corners(const lw_light *light, const lw_result *run,
+lw_status lw_corner_compute(const lw_light *light, const lw_result *run,
                      lw_corner out[LW_CORNER_COUNT], lw_error *err);
 
 #endif

@@ -66,7 +66,7 @@ typedef struct lw_drive {
 typedef enum lw_reference { LW_REF_OWN, LW_REF_FRESH, LW_REF_COUNT } lw_reference;
 
 /* Names as written in profiles ("own", "fresh"). */
-extern const char *const lw_reference_names[LW_REF_COUNT + 1];
+extern const char *const lw_light_reference_names[LW_REF_COUNT + 1];
 
 /* Ambient temperature of the fresh reference, deg C. */
 #define LW_FRESH_REFERENCE_C 20.0
@@ -150,12 +150,12 @@ lw_status lw_light_point_at(const lw_light *light, double depth, double ocv_v,
  * shared by the P parallel strings of cells:
  * d0 = 1 - (1 - s/100)^M + I_sb * M * 730.5 h / (P * C), with C the rated
  * capacity at ambient.  Clamped to [0, 1]. */
-double lw_stored_depth(const lw_light *light);
+double lw_light_stored_depth(const lw_light *light);
 
 /* Pack current of a converter: the smaller root of
  * R*Ip^2 - (E + R*Iq)*Ip + (E*Iq + P) = 0, in cancellation-free form.
  * Returns false when there is no real root (the pack cannot deliver P). */
-bool lw_converter_input_current(double e_v, double r_ohm, double iq_a, double p_w,
+bool lw_drive_converter_input_current(double e_v, double r_ohm, double iq_a, double p_w,
                                 double *ip_a);
 
 #endif

@@ -39,7 +39,7 @@ typedef enum lw_end_reason {
 
 /* True for the end reasons that mean the light gave no light at all (the
  * run's figures are not those of a lit light). */
-bool lw_end_is_dark(lw_end_reason why);
+bool lw_run_end_is_dark(lw_end_reason why);
 
 /* The visibility floor, lm: a light whose output at switch-on and 30 s
  * later is below it counts as never lit, and a run ends when its output
@@ -68,7 +68,7 @@ bool lw_end_is_dark(lw_end_reason why);
  * four; bisection safeguards the rest). */
 #define LW_T30_ITER_MAX 100
 
-extern const char *const lw_end_reason_names[LW_END_COUNT + 1];
+extern const char *const lw_run_end_names[LW_END_COUNT + 1];
 
 /* Warning flags of a run. */
 enum {
@@ -86,7 +86,7 @@ enum {
 };
 
 /* Short machine names of the warning flags, by bit index. */
-extern const char *const lw_warning_names[LW_WARN_COUNT_];
+extern const char *const lw_run_warning_names[LW_WARN_COUNT_];
 
 typedef struct lw_run_options {
     double rtol;          /* relative tolerance of each integral, default 1e-10 */
@@ -144,16 +144,16 @@ typedef struct lw_result {
  * lights returns LW_OK with end_reason LW_END_NEVER_LIT.  Fails only on
  * options out of range or a loop without finite solution (LW_EINPUT), a
  * numerical failure (LW_ENUMERIC) or memory (LW_ENOMEM).  opt may be NULL
- * for the defaults.  Free with lw_result_clear. */
+ * for the defaults.  Free with lw_run_result_clear. */
 lw_status lw_run(const lw_light *light, const lw_run_options *opt, lw_result *res,
                  lw_error *err);
 
-void lw_result_clear(lw_result *res);
+void lw_run_result_clear(lw_result *res);
 
 /* Worst case at fresh cells: highest OCV (the curve's first point), lowest
  * internal resistance (the curve's minimum), resistor at minus its tolerance,
  * LED forward voltage at minus its spread.  Fills *pt. */
-lw_status lw_worst_case(const lw_light *light, lw_point *pt, lw_error *err);
+lw_status lw_run_worst_case(const lw_light *light, lw_point *pt, lw_error *err);
 
 /* One row of a trace. */
 typedef struct lw_trace_row {

@@ -1,9 +1,8 @@
 /*
- * error.h - lampwick's error record and strict number parsing.
+ * error.h - lampwick's error record.
  *
- * Owns: struct lw_error (code, file, line, message), the status codes every
- * library function returns, and the number parsers used for every value that
- * comes from a file or the command line.
+ * Owns: struct lw_error (code, file, line, message) and the status codes
+ * every library function returns.
  *
  * Convention: a function that can fail takes `lw_error *err` as its last
  * parameter and returns an lw_status.  The first error wins: once err->code is
@@ -14,7 +13,6 @@
 #define LW_ERROR_H
 
 #include <stdarg.h>
-#include <stdbool.h>
 #include <stddef.h>
 
 typedef enum lw_status {
@@ -60,36 +58,5 @@ lw_status lw_error_vset(lw_error *err, lw_status code, const char *file, int lin
  * with control characters and invalid UTF-8 shown as \xNN, so that no byte
  * of an input can steer the terminal it is printed on. */
 void lw_error_format(const lw_error *err, char *buf, size_t size);
-
-/* Is s[0..n) valid UTF-8 (no overlong forms, no surrogates, at most
- * U+10FFFF)?  On false, *at (may be NULL) is the offset of the first bad
- * byte. */
-bool lw_utf8_valid(const char *s, size_t n, size_t *at);
-
-/* Copy text into out (size bytes) with control characters, DEL and bytes of
- * invalid UTF-8 written as \xNN; returns the length written. */
-size_t lw_escape(char *out, size_t size, const char *text);
-
-/* Strict parse of a whole string as a finite double: leading/trailing blanks
- * allowed, nothing else.  Refuses "", "4.7x", "1,2", "nan", "inf".
- * Writes *out only on success. */
-bool lw_parse_double(const char *s, double *out);
-
-/* lampwick's number grammar, the same in files, --set and --vary: a plain
- * number as lw_parse_double, or a non-negative value with a resistor-code
- * or SI letter (IEC 60062 style): "2.2k", "1M", "4k7", "4R7", "0R22"
- * (R = 1, k = 1e3, M = 1e6).  Writes *out only on success. */
-bool lw_parse_number(const char *s, double *out);
-
-/* Strict parse of a whole string as a decimal integer in [INT_MIN, INT_MAX]. */
-bool lw_parse_int(const char *s, int *out);
-
-/* The shortest decimal text that reads back as exactly v (at most 17
- * significant digits, "%g" style); "" for a non-finite v.  buf needs 32
- * bytes. */
-void lw_format_double(char *buf, size_t size, double v);
-
-/* Copy src into dst (size bytes), always NUL-terminated; returns false if cut. */
-bool lw_strlcpy(char *dst, const char *src, size_t size);
 
 #endif

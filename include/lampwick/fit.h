@@ -34,7 +34,7 @@ typedef struct lw_lsq {
 /* Solve min |X c - y| for X given column-wise: x[j][i] is column j, row i.
  * Needs n > p.  Fails with LW_EINPUT when the columns are (numerically)
  * dependent, e.g. all currents equal. */
-lw_status lw_lsq_solve(const double *const *x, size_t p, const double *y, size_t n,
+lw_status lw_fit_lsq_solve(const double *const *x, size_t p, const double *y, size_t n,
                        lw_lsq *out, lw_error *err);
 
 typedef struct lw_led_fit {

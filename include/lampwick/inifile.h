@@ -70,7 +70,7 @@ lw_status lw_ini_read(const char *path, lw_ini *ini, lw_ini_check check, void *c
 /* Open a regular file for reading; a folder, device, pipe or socket is
  * refused.  Errors name what_file:what_line and `what` ("[cell] curve") when
  * what_file is given (the key that named the file), else the path. */
-lw_status lw_open_regular(const char *path, const char *mode, FILE **fp, const char *what_file,
+lw_status lw_path_open_regular(const char *path, const char *mode, FILE **fp, const char *what_file,
                           int what_line, const char *what, lw_error *err);
 
 
@@ -128,7 +128,5 @@ lw_status lw_key_apply(const lw_keydef *def, void *target, const char *value, co
 /* Write the default of every key that has one into target. */
 lw_status lw_key_defaults(const lw_keydef *defs, size_t n, void *target, lw_error *err);
 
-/* Levenshtein distance of two short strings (capped at 99). */
-int lw_edit_distance(const char *a, const char *b);
 
 #endif

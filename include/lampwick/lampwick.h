@@ -42,6 +42,8 @@
 
 #include "alloc.h"
 #include "error.h"
+#include "number.h"
+#include "text.h"
 #include "interp.h"
 #include "roots.h"
 #include "cell.h"

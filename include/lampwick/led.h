@@ -65,7 +65,7 @@ void lw_led_clear(lw_led *led);            /* drop the tables */
 void lw_led_copy(lw_led *dst, const lw_led *src); /* tables shared by reference */
 
 /* Thermal voltage k*T/q in V at temp_c. */
-double lw_thermal_voltage(double temp_c);
+double lw_led_thermal_voltage(double temp_c);
 
 /* Forward voltage of one LED at current i_a >= 0. *extrapolated (may be
  * NULL) is set when a table model is read beyond its last point. */

@@ -58,6 +58,6 @@ void lw_pick_clear(lw_pick *pick);
 /* The report of n picks (one per cell): text with each part's corner table
  * and recommendation, or one CSV/Markdown row per cell. */
 lw_status lw_pick_report(FILE *fp, const lw_profile *prof, const lw_pick *picks, size_t n,
-                         lw_target_kind kind, double target, lw_format fmt, lw_error *err);
+                         lw_target_kind kind, double target, lw_rtable_format fmt, lw_error *err);
 
 #endif

@@ -66,7 +66,7 @@ lw_status lw_plot_svg(FILE *fp, const lw_chart *chart, lw_error *err);
 
 /* Round tick positions covering [lo, hi]: at most max_ticks, steps of
  * 1, 2 or 5 x 10^k.  Returns the count written to ticks (cap 32). */
-size_t lw_nice_ticks(double lo, double hi, size_t max_ticks, double *ticks);
+size_t lw_plot_ticks(double lo, double hi, size_t max_ticks, double *ticks);
 
 /* The chart of a run: light output (% of the 30-s output, and lm) with the
  * cutoff line, and pack voltage (loaded and open circuit), against hours. */

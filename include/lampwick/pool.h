@@ -1,7 +1,7 @@
 /*
  * pool.h - a portable parallel-for over POSIX threads.
  *
- * Owns: lw_parallel_for, which runs fn(i) for i in [0, n) on up to
+ * Owns: lw_pool_for, which runs fn(i) for i in [0, n) on up to
  * `threads` threads (the caller's included).  Work is handed out one index
  * at a time from an atomic counter; each call writes only its own result
  * slot, so results are identical to a single-threaded run and in the same
@@ -18,16 +18,16 @@
  * targets). */
 #define LW_POOL_THREADS_MAX 64
 
-typedef void (*lw_task_fn)(size_t i, void *ctx);
-typedef void (*lw_progress_fn)(size_t done, size_t total, void *ctx);
+typedef void (*lw_pool_task_fn)(size_t i, void *ctx);
+typedef void (*lw_pool_progress_fn)(size_t done, size_t total, void *ctx);
 
 /* Number of processors this process may run on (its CPU affinity, as
  * `taskset` sets it; at least 1). */
-int lw_cpu_count(void);
+int lw_pool_cpus(void);
 
-/* Run fn(0..n-1, ctx).  threads <= 0 means lw_cpu_count().  Falls back to
+/* Run fn(0..n-1, ctx).  threads <= 0 means lw_pool_cpus().  Falls back to
  * the calling thread alone if threads cannot be started. */
-void lw_parallel_for(size_t n, int threads, lw_task_fn fn, void *ctx, lw_progress_fn progress,
+void lw_pool_for(size_t n, int threads, lw_pool_task_fn fn, void *ctx, lw_pool_progress_fn progress,
                      void *progress_ctx);
 
 #endif

@@ -14,10 +14,10 @@
 #include "engine.h"
 #include "profile.h"
 
-typedef enum lw_format { LW_FMT_TEXT, LW_FMT_CSV, LW_FMT_MD } lw_format;
+typedef enum lw_rtable_format { LW_FMT_TEXT, LW_FMT_CSV, LW_FMT_MD } lw_rtable_format;
 
 /* Parse "text", "csv" or "md"; false if none. */
-bool lw_format_parse(const char *s, lw_format *fmt);
+bool lw_rtable_format_parse(const char *s, lw_rtable_format *fmt);
 
 typedef struct lw_rtable {
     size_t ncol, nrow, cap;
@@ -57,41 +57,41 @@ lw_status lw_rtable_num(lw_rtable *t, size_t row, size_t col, double v, int sig,
 lw_status lw_rtable_note(lw_rtable *t, const char *text, lw_error *err);
 lw_status lw_rtable_set_title(lw_rtable *t, const char *text, lw_error *err);
 /* Render; returns LW_EIO if a write failed. */
-lw_status lw_rtable_write(const lw_rtable *t, FILE *fp, lw_format fmt, lw_error *err);
+lw_status lw_rtable_write(const lw_rtable *t, FILE *fp, lw_rtable_format fmt, lw_error *err);
 
 /* Number of the run columns, and their names in order (NULL-terminated). */
-extern const char *const lw_run_columns[];
-extern const size_t lw_run_ncolumns;
+extern const char *const lw_report_run_columns[];
+extern const size_t lw_report_run_ncolumns;
 
-/* Fill columns [first, first + lw_run_ncolumns) of `row` from a result. */
+/* Fill columns [first, first + lw_report_run_ncolumns) of `row` from a result. */
 lw_status lw_report_run_row(lw_rtable *t, size_t row, size_t first, const lw_light *light,
                             const lw_result *res, lw_error *err);
 
 /* The whole report of one run in the chosen format. */
-lw_status lw_report_run(FILE *fp, lw_format fmt, const lw_profile *prof, const lw_result *res,
+lw_status lw_report_run(FILE *fp, lw_rtable_format fmt, const lw_profile *prof, const lw_result *res,
                         lw_error *err);
 
 /* The trace of a run as CSV (columns in docs/formats.md), full precision. */
 lw_status lw_report_trace_csv(FILE *fp, const lw_trace *trace, lw_error *err);
 
 /* Warning names joined by ';' ("" for none). */
-void lw_warnings_text(unsigned warnings, char *buf, size_t size);
+void lw_report_warnings(unsigned warnings, char *buf, size_t size);
 
 /* The drive in words: "resistor, 33 ohm per string", "converter, set 50 mA
  * at 85 %, fallback 5 mA, PWM 30 %". */
 void lw_report_drive(const lw_light *light, char *buf, size_t size);
 
 /* A warning in words, by bit index (LW_WARN_* = 1u << bit). */
-const char *lw_warning_text(int bit);
+const char *lw_report_warning(int bit);
 
 /* What the relative cutoff refers to, in words ("the 30-s output", "the
  * 30-s output of fresh cells at 20 C"). */
 void lw_report_reference(const lw_light *light, char *buf, size_t size);
 
 /* Human duration: "41.3 h", "52 min", "3.2 d" style. */
-void lw_format_hours(double h, char *buf, size_t size);
+void lw_report_hours(double h, char *buf, size_t size);
 
 /* The one-line caution printed with every result. */
-extern const char *const lw_caution_line;
+extern const char *const lw_report_caution;
 
 #endif

@@ -6,7 +6,7 @@
  * Owns: the standard power ratings, the recommended rating (at least twice
  * the worst-case dissipation: derating to 50 % of rated power, common
  * practice, no source), and searches over the resistance of a light's drive
- * at fresh cells (nominal, or the worst case of lw_worst_case).  All values
+ * at fresh cells (nominal, or the worst case of lw_run_worst_case).  All values
  * come from the operating-point solution of drive.c; nothing here uses a
  * second, simpler model.
  */
@@ -30,7 +30,7 @@ double lw_resistor_rating_w(double p_w);
 double lw_resistor_tolerance_pct(const lw_light *light, bool tolerance_given, int eseries);
 
 /* The fresh operating point of `light` with resistor r_ohm: nominal, or the
- * worst case (lw_worst_case) when `worst`. */
+ * worst case (lw_run_worst_case) when `worst`. */
 lw_status lw_resistor_point(const lw_light *light, double r_ohm, bool worst, lw_point *pt,
                             lw_error *err);
 

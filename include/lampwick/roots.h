@@ -4,7 +4,7 @@
  * Owns: lw_root_brent (Brent's method: R. P. Brent, "Algorithms for
  * Minimization without Derivatives", Prentice-Hall 1973, ch. 4), used by the
  * LED table model and by the engine to locate cutoff crossings; and
- * lw_wright_omega, the solution w of w + ln w = x, which is W0(e^x) without
+ * lw_root_wright_omega, the solution w of w + ln w = x, which is W0(e^x) without
  * overflow (R. M. Corless and D. J. Jeffrey, "The Wright omega function",
  * 2002; P. W. Lawrence, R. M. Corless, D. J. Jeffrey, "Algorithm 917: Complex
  * double-precision evaluation of the Wright omega function", ACM TOMS 38(3),
@@ -29,6 +29,6 @@ lw_status lw_root_brent(lw_root_fn f, void *ctx, double a, double b, double fa, 
 /* Wright omega function for real x: the real w > 0 with w + ln(w) = x.
  * Accurate to a few ulps while the result is a normal double (x > -708);
  * never overflows for finite x; 0 for x < -745. */
-double lw_wright_omega(double x);
+double lw_root_wright_omega(double x);
 
 #endif

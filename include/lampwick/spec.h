@@ -41,10 +41,10 @@ void lw_spec_clear(lw_spec *spec);
 /* Render the table.  Text and Markdown are rounded as specification tables
  * are (the rule is printed in the notes); CSV carries full precision in fixed
  * units, one column per quantity and cell ("CELL.flux_lm", ...). */
-lw_status lw_spec_render(const lw_spec *spec, lw_format fmt, lw_rtable **out, lw_error *err);
+lw_status lw_spec_render(const lw_spec *spec, lw_rtable_format fmt, lw_rtable **out, lw_error *err);
 
 /* Compute and render in one call. */
-lw_status lw_spec_table(const lw_profile *prof, const char *const *cells, lw_format fmt,
+lw_status lw_spec_table(const lw_profile *prof, const char *const *cells, lw_rtable_format fmt,
                         int threads, lw_rtable **out, lw_error *err);
 
 /* Round for a specification table: 2 significant figures below 100, whole

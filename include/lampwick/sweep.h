@@ -54,9 +54,9 @@ typedef struct lw_sweep {
  * first case error (bad input) or LW_ENOMEM; a light that never lights is a
  * row, not an error.  Free with lw_sweep_clear. */
 /* The table of a sweep: the varied keys, then the run columns `columns`
- * (comma-separated names of lw_run_columns; NULL: every column for CSV and
+ * (comma-separated names of lw_report_run_columns; NULL: every column for CSV and
  * Markdown, a readable subset for text).  Fails with the unknown column. */
-lw_status lw_sweep_table(const lw_sweep *sw, lw_format fmt, const char *columns, lw_rtable **out,
+lw_status lw_sweep_table(const lw_sweep *sw, lw_rtable_format fmt, const char *columns, lw_rtable **out,
                          lw_error *err);
 
 /* The trade-off chart of a sweep: runtime against the 30-s light output, one
@@ -67,7 +67,7 @@ lw_status lw_sweep_chart(const lw_profile *prof, const lw_sweep *sw, lw_chart *c
                          void **buf, lw_error *err);
 
 lw_status lw_sweep_run(const lw_profile *base, const lw_vary *vary, size_t nvary, int threads,
-                       lw_progress_fn progress, void *progress_ctx, lw_sweep *sw, lw_error *err);
+                       lw_pool_progress_fn progress, void *progress_ctx, lw_sweep *sw, lw_error *err);
 void lw_sweep_clear(lw_sweep *sw);
 
 #endif

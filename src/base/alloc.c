@@ -1,7 +1,7 @@
 /*
  * alloc.c - allocation wrappers with a failure hook for tests (alloc.h).
  */
-#include "alloc.h"
+#include "lampwick/alloc.h"
 
 #include <stdatomic.h>
 #include <stdlib.h>

@@ -1,12 +1,13 @@
 /*
  * eseries.c - IEC 60063 preferred numbers and value parsing (see eseries.h).
  */
-#include "eseries.h"
+#include "lampwick/eseries.h"
+#include "lampwick/number.h"
 
 #include <ctype.h>
 #include <math.h>
 #include <string.h>
-#include "error.h"
+#include "lampwick/error.h"
 
 static const short e3[] = {10, 22, 47};
 static const short e6[] = {10, 15, 22, 33, 47, 68};
@@ -33,7 +34,7 @@ bool lw_eseries_parse(const char *name, int *n)
     if ((name[0] != 'E' && name[0] != 'e') || !isdigit((unsigned char)name[1]))
         return false;
     int v;
-    if (!lw_parse_int(name + 1, &v))
+    if (!lw_number_parse_int(name + 1, &v))
         return false;
     if (v != 3 && v != 6 && v != 12 && v != 24 && v != 48 && v != 96 && v != 192)
         return false;

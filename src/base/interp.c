@@ -5,8 +5,8 @@
  * Fritsch-Carlson slopes, which keep each cubic piece inside the range of its
  * two end values whenever the data are monotone there.
  */
-#include "interp.h"
-#include "alloc.h"
+#include "lampwick/interp.h"
+#include "lampwick/alloc.h"
 
 #include <math.h>
 #include <stdlib.h>

@@ -2,7 +2,7 @@
  * pool.c - parallel-for over POSIX threads (see pool.h).
  */
 #define _GNU_SOURCE /* sched_getaffinity, CPU_COUNT */
-#include "pool.h"
+#include "lampwick/pool.h"
 
 #include <pthread.h>
 #include <signal.h>
@@ -15,14 +15,14 @@ typedef struct job {
     size_t n;
     atomic_size_t next;
     size_t done;
-    lw_task_fn fn;
+    lw_pool_task_fn fn;
     void *ctx;
-    lw_progress_fn progress;
+    lw_pool_progress_fn progress;
     void *progress_ctx;
     pthread_mutex_t lock;
 } job;
 
-int lw_cpu_count(void)
+int lw_pool_cpus(void)
 {
     cpu_set_t set;
     CPU_ZERO(&set);
@@ -53,11 +53,11 @@ static void *worker(void *arg)
     return NULL;
 }
 
-void lw_parallel_for(size_t n, int threads, lw_task_fn fn, void *ctx, lw_progress_fn progress,
+void lw_pool_for(size_t n, int threads, lw_pool_task_fn fn, void *ctx, lw_pool_progress_fn progress,
                      void *progress_ctx)
 {
     if (threads <= 0)
-        threads = lw_cpu_count();
+        threads = lw_pool_cpus();
     if ((size_t)threads > n)
         threads = n > 0 ? (int)n : 1;
     if (threads > LW_POOL_THREADS_MAX)

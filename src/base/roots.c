@@ -2,7 +2,7 @@
  * roots.c - Brent's root finder and the real Wright omega function
  * (sources in roots.h).
  */
-#include "roots.h"
+#include "lampwick/roots.h"
 
 #include <float.h>
 #include <math.h>
@@ -82,7 +82,7 @@ lw_status lw_root_brent(lw_root_fn f, void *ctx, double a, double b, double fa, 
                         "root finder: no convergence in %d evaluations", max_iter);
 }
 
-double lw_wright_omega(double x)
+double lw_root_wright_omega(double x)
 {
     if (x < -745.0)
         return 0.0;

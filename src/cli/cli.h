@@ -16,7 +16,7 @@
 
 #include <stdbool.h>
 #include <stdio.h>
-#include "lampwick.h"
+#include <lampwick/lampwick.h>
 
 #define EXIT_NOANSWER 1
 #define EXIT_BADINPUT 2
@@ -89,7 +89,7 @@ typedef struct common_opts {
     const char *sets[64];
     size_t nsets;
     const char *mode;
-    lw_format fmt;
+    lw_rtable_format fmt;
     int threads;
 } common_opts;
 

@@ -9,6 +9,7 @@
 #include <string.h>
 #include <unistd.h>
 #include "cli.h"
+#include "lampwick/number.h"
 
 /* ---- progress on a terminal ---- */
 
@@ -165,7 +166,7 @@ static int pick_option(void *ctx, int id, const char *arg)
     switch (id) {
     case OPT_TARGET_MA:
     case OPT_TARGET_LM:
-        if (!lw_parse_double(arg, &a->target) || !(a->target > 0))
+        if (!lw_number_parse_double(arg, &a->target) || !(a->target > 0))
             return usage_error("pick", "the target must be a positive number");
         a->kind = id == OPT_TARGET_MA ? LW_TARGET_CURRENT : LW_TARGET_FLUX;
         a->ntargets++;
@@ -275,11 +276,11 @@ static int size_option(void *ctx, int id, const char *arg)
     size_args *a = ctx;
     switch (id) {
     case OPT_RUNTIME:
-        if (!lw_parse_double(arg, &a->opt.runtime_h) || !(a->opt.runtime_h > 0))
+        if (!lw_number_parse_double(arg, &a->opt.runtime_h) || !(a->opt.runtime_h > 0))
             return usage_error("size", "--runtime-h takes a positive number of hours");
         return 0;
     case OPT_FLUX:
-        if (!lw_parse_double(arg, &a->opt.flux_lm) || !(a->opt.flux_lm > 0))
+        if (!lw_number_parse_double(arg, &a->opt.flux_lm) || !(a->opt.flux_lm > 0))
             return usage_error("size", "--flux-lm takes a positive number of lumens");
         return 0;
     case OPT_CELLS:
@@ -288,7 +289,7 @@ static int size_option(void *ctx, int id, const char *arg)
     case OPT_MAXS:
     case OPT_MAXP: {
         int v;
-        if (!lw_parse_int(arg, &v) || v < 1 || v > 24)
+        if (!lw_number_parse_int(arg, &v) || v < 1 || v > 24)
             return usage_error("size", "--max-series and --max-parallel take 1 to 24");
         *(id == OPT_MAXS ? &a->opt.max_series : &a->opt.max_parallel) = v;
         return 0;
@@ -296,7 +297,7 @@ static int size_option(void *ctx, int id, const char *arg)
     case OPT_ESERIES:
         return parse_eseries("size", arg, &a->opt.eseries);
     case OPT_TOP:
-        if (!lw_parse_int(arg, &a->top) || a->top < 1)
+        if (!lw_number_parse_int(arg, &a->top) || a->top < 1)
             return usage_error("size", "--top takes a positive whole number");
         return 0;
     default:

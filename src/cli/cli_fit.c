@@ -8,6 +8,8 @@
 #include <string.h>
 #include <time.h>
 #include "cli.h"
+#include "lampwick/text.h"
+#include "lampwick/number.h"
 
 const cli_option cli_fit_led_options[] = {
     {"model", "linear|shockley|both", OPT_MODEL, "which I-V models to fit (default both)"},
@@ -172,7 +174,7 @@ static void print_fit_text(const lw_led_fit *lin, const lw_led_fit *sh, const lw
 }
 
 static lw_status fit_table(const lw_led_fit *lin, const lw_led_fit *sh, const lw_flux_fit *fx,
-                           lw_format fmt, lw_error *err)
+                           lw_rtable_format fmt, lw_error *err)
 {
     static const char *const head[] = {"model",        "threshold_v", "slope_ohm",
                                        "ideality",     "saturation_a", "series_ohm",
@@ -234,7 +236,7 @@ static int led_option(void *ctx, int id, const char *arg)
             return usage_error("fit led", "--model takes linear, shockley or both");
         return 0;
     case OPT_JUNCTION:
-        if (!lw_parse_double(arg, &a->tj) || a->tj < -60 || a->tj > 250)
+        if (!lw_number_parse_double(arg, &a->tj) || a->tj < -60 || a->tj > 250)
             return usage_error("fit led", "--junction-c takes a temperature from -60 to 250");
         return 0;
     case OPT_SECTION:
@@ -290,7 +292,7 @@ int cli_fit_led(int argc, char **argv)
     if (st == LW_OK && d.flux)
         st = lw_fit_flux(d.i_a, d.flux, d.n, &fx, &err);
     if (st != LW_OK && err.file[0] == '\0')
-        lw_strlcpy(err.file, argv[first], sizeof err.file);
+        lw_text_copy(err.file, argv[first], sizeof err.file);
     const lw_led_fit *pl = a.want_lin ? &lin : NULL, *ps = a.want_sh ? &sh : NULL;
     const lw_flux_fit *pf = d.flux ? &fx : NULL;
     if (st == LW_OK && a.plot_path)
@@ -316,13 +318,13 @@ static int parse_pair(const char *s, double *a, double *b)
     const char *comma = strchr(s, ',');
     char first[64];
     if (!comma)
-        return lw_parse_double(s, a) && *a > 0 ? 1 : 0;
+        return lw_number_parse_double(s, a) && *a > 0 ? 1 : 0;
     size_t n = (size_t)(comma - s);
     if (n >= sizeof first)
         return 0;
     memcpy(first, s, n);
     first[n] = '\0';
-    return lw_parse_double(first, a) && lw_parse_double(comma + 1, b) && *a > 0 && *b > 0 ? 2
+    return lw_number_parse_double(first, a) && lw_number_parse_double(comma + 1, b) && *a > 0 && *b > 0 ? 2
                                                                                           : 0;
 }
 
@@ -353,15 +355,15 @@ static int cell_option(void *ctx, int id, const char *arg)
         return 0;
     }
     case OPT_CUTOFF:
-        if (!lw_parse_double(arg, &a->opt.cutoff_v) || !(a->opt.cutoff_v > 0))
+        if (!lw_number_parse_double(arg, &a->opt.cutoff_v) || !(a->opt.cutoff_v > 0))
             return usage_error("fit cell", "--cutoff-v takes a positive voltage");
         return 0;
     case OPT_RES:
-        if (!lw_parse_double(arg, &a->opt.resistance_ohm) || !(a->opt.resistance_ohm > 0))
+        if (!lw_number_parse_double(arg, &a->opt.resistance_ohm) || !(a->opt.resistance_ohm > 0))
             return usage_error("fit cell", "--resistance-ohm takes a positive resistance");
         return 0;
     case OPT_NAME:
-        if (!lw_strlcpy(a->name, arg, sizeof a->name))
+        if (!lw_text_copy(a->name, arg, sizeof a->name))
             return usage_error("fit cell", "--name is too long (at most %d bytes)",
                                LW_NAME_MAX - 1);
         return 0;
@@ -370,9 +372,9 @@ static int cell_option(void *ctx, int id, const char *arg)
         return 0;
     case OPT_CHEM: {
         int k = 0;
-        while (lw_chemistry_names[k] && strcmp(lw_chemistry_names[k], arg) != 0)
+        while (lw_cell_chemistry_names[k] && strcmp(lw_cell_chemistry_names[k], arg) != 0)
             k++;
-        if (!lw_chemistry_names[k])
+        if (!lw_cell_chemistry_names[k])
             return usage_error("fit cell", "--chemistry takes alkaline, nimh, nicd, li-fes2, "
                                            "li-mno2, li-ion, lifepo4, lead-acid or other");
         a->opt.chemistry = (lw_chemistry)k;
@@ -385,7 +387,7 @@ static int cell_option(void *ctx, int id, const char *arg)
         return 0;
     case OPT_TOL: {
         double mv;
-        if (!lw_parse_double(arg, &mv) || !(mv > 0) || mv > 500)
+        if (!lw_number_parse_double(arg, &mv) || !(mv > 0) || mv > 500)
             return usage_error("fit cell", "--tolerance-mv takes 0 to 500");
         a->opt.tolerance_v = mv * 1e-3;
         return 0;
@@ -422,17 +424,17 @@ int cli_fit_cell(int argc, char **argv)
     opt.name = name[0] ? name : "fitted-cell";
     lw_error err;
     lw_error_clear(&err);
-    lw_dlog logs[2];
+    lw_cellfit_log logs[2];
     memset(logs, 0, sizeof logs);
     const char *in[2] = {argv[optind_], nlogs > 1 ? argv[optind_ + 1] : NULL};
     const char *outs[] = {out_path}, *names[] = {"--out"};
     lw_status st = check_outputs(NULL, in, 2, outs, names, 1, &err);
     for (int k = 0; k < nlogs && st == LW_OK; k++)
-        st = lw_dlog_read(argv[optind_ + k], load_ohm[k], load_a[k], &logs[k], &err);
+        st = lw_cellfit_log_read(argv[optind_ + k], load_ohm[k], load_a[k], &logs[k], &err);
     lw_cellfit fit;
     memset(&fit, 0, sizeof fit);
     if (st == LW_OK)
-        st = lw_fit_cell(logs, (size_t)nlogs, &opt, &fit, &err);
+        st = lw_cellfit_fit(logs, (size_t)nlogs, &opt, &fit, &err);
     if (st == LW_OK) {
         const lw_cell *cl = &fit.cell;
         printf("cell %s from %d log%s, end point %g V\n", cl->name, nlogs, nlogs > 1 ? "s" : "",
@@ -469,7 +471,7 @@ int cli_fit_cell(int argc, char **argv)
                      "maker's data.",
                      date, argv[optind_], nlogs > 1 ? " and " : "", nlogs > 1 ? argv[optind_ + 1] : "",
                      opt.cutoff_v);
-            st = lw_cell_save(out_path, cl, comment, &err);
+            st = lw_cellfile_save(out_path, cl, comment, &err);
             if (st == LW_OK)
                 printf("  wrote %s and its curve\n", out_path);
         }
@@ -477,6 +479,6 @@ int cli_fit_cell(int argc, char **argv)
     int code = st == LW_OK ? 0 : report_error(&err);
     lw_cell_clear(&fit.cell);
     for (int k = 0; k < 2; k++)
-        lw_dlog_clear(&logs[k]);
+        lw_cellfit_log_clear(&logs[k]);
     return code;
 }

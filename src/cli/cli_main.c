@@ -7,6 +7,7 @@
  * the check and cells commands.
  */
 #include "cli.h"
+#include "lampwick/text.h"
 
 #include <errno.h>
 #include <fcntl.h>
@@ -169,8 +170,8 @@ int cli_cells(int argc, char **argv)
     build_search(&search);
     lw_error err;
     lw_error_clear(&err);
-    lw_cell_list list;
-    lw_status st = lw_cell_list_read(&search, &list, &err);
+    lw_cellfile_list list;
+    lw_status st = lw_cellfile_list_read(&search, &list, &err);
     if (st != LW_OK)
         return report_error(&err);
     for (size_t i = 0; i < list.nskipped; i++)
@@ -188,7 +189,7 @@ int cli_cells(int argc, char **argv)
         lw_cell cell;
         lw_error cerr;
         lw_error_clear(&cerr);
-        if (lw_cell_load(paths[i], &cell, &cerr) != LW_OK) {
+        if (lw_cellfile_load(paths[i], &cell, &cerr) != LW_OK) {
             bad = report_error(&cerr);
             continue;
         }
@@ -197,7 +198,7 @@ int cli_cells(int argc, char **argv)
         if (st == LW_OK)
             st = lw_rtable_set(t, row, 0, names[i], &err);
         if (st == LW_OK)
-            st = lw_rtable_set(t, row, 1, lw_chemistry_names[cell.chemistry], &err);
+            st = lw_rtable_set(t, row, 1, lw_cell_chemistry_names[cell.chemistry], &err);
         const double v[] = {cell.nominal_v, cell.capacity_ah * 1e3, cell.rated_a * 1e3,
                             cell.cutoff_v};
         for (size_t k = 0; k < 4 && st == LW_OK; k++)
@@ -215,7 +216,7 @@ int cli_cells(int argc, char **argv)
     if (t && st == LW_OK)
         st = lw_rtable_write(t, stdout, o.fmt, &err);
     lw_rtable_free(t);
-    lw_cell_list_clear(&list);
+    lw_cellfile_list_clear(&list);
     if (!t || st != LW_OK)
         return report_error(&err);
     if (n == 0) {
@@ -345,7 +346,7 @@ static int help_keys(void)
                "overrides",
                lw_profile_keys, lw_profile_nkeys);
     printf("\n");
-    print_keys("Cell file keys (cells/*.ini)", lw_cell_keys, lw_cell_nkeys);
+    print_keys("Cell file keys (cells/*.ini)", lw_cellfile_keys, lw_cellfile_nkeys);
     printf("\nNumbers may carry a resistor-code or SI letter: 4k7, 2.2k, 1M, 4R7.\n");
     return 0;
 }
@@ -361,7 +362,7 @@ static int help(int argc, char **argv)
         const cli_command *c = fit ? NULL : cli_find(name);
         if (!c && !fit) {
             char safe[256];
-            lw_escape(safe, sizeof safe, name);
+            lw_text_escape(safe, sizeof safe, name);
             fprintf(stderr, "lampwick: no command '%s'; see 'lampwick help'\n", safe);
             return EXIT_BADINPUT;
         }
@@ -404,7 +405,7 @@ static int run_command(int argc, char **argv)
     const cli_command *c = cli_find(cmd);
     if (!c || strchr(cmd, ' ')) {
         char safe[256];
-        lw_escape(safe, sizeof safe, cmd);
+        lw_text_escape(safe, sizeof safe, cmd);
         fprintf(stderr, "lampwick: unknown command '%s'; see 'lampwick help'\n", safe);
         return EXIT_BADINPUT;
     }

@@ -3,6 +3,8 @@
  * every command shares (see cli.h).
  */
 #include "cli.h"
+#include "lampwick/text.h"
+#include "lampwick/number.h"
 
 #include <getopt.h>
 #include <limits.h>
@@ -105,11 +107,11 @@ int common_option(const char *cmd, common_opts *o, int id, const char *arg)
         o->mode = arg;
         return 0;
     case OPT_FORMAT:
-        if (!lw_format_parse(arg, &o->fmt))
+        if (!lw_rtable_format_parse(arg, &o->fmt))
             return usage_error(cmd, "--format takes text, csv or md");
         return 0;
     case OPT_THREADS:
-        if (!lw_parse_int(arg, &o->threads) || o->threads < 1 || o->threads > LW_POOL_THREADS_MAX)
+        if (!lw_number_parse_int(arg, &o->threads) || o->threads < 1 || o->threads > LW_POOL_THREADS_MAX)
             return usage_error(cmd, "--threads takes a whole number from 1 to %d",
                                LW_POOL_THREADS_MAX);
         return 0;
@@ -147,7 +149,7 @@ int usage_error(const char *cmd, const char *fmt, ...)
     va_start(ap, fmt);
     vsnprintf(msg, sizeof msg, fmt, ap); // NOLINT(clang-analyzer-valist.Uninitialized): va_start above
     va_end(ap);
-    lw_escape(safe, sizeof safe, msg);
+    lw_text_escape(safe, sizeof safe, msg);
     fprintf(stderr, "lampwick %s: %s\nTry 'lampwick help %s'.\n", cmd, safe, cmd);
     return EXIT_BADINPUT;
 }

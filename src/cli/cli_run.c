@@ -2,6 +2,8 @@
  * cli_run.c - `lampwick run`: options, the run, its report, trace and chart.
  */
 #include "cli.h"
+#include "lampwick/text.h"
+#include "lampwick/number.h"
 
 #include <string.h>
 
@@ -29,7 +31,7 @@ static int run_option(void *ctx, int id, const char *arg)
     switch (id) {
     case OPT_STORED: {
         double m;
-        if (!lw_parse_double(arg, &m) || m < 0 || m > 600)
+        if (!lw_number_parse_double(arg, &m) || m < 0 || m > 600)
             return usage_error("run", "--stored-months takes 0 to 600");
         snprintf(a->stored_arg, sizeof a->stored_arg, "pack.stored_months=%s", arg);
         return common_option("run", &a->o, OPT_SET, a->stored_arg);
@@ -112,7 +114,7 @@ int cli_run(int argc, char **argv)
         opt.want_trace = want_trace;
         st = lw_run(&prof.light, &opt, &res, &err);
         if (st != LW_OK && !err.file[0]) /* a numerical failure: say which profile */
-            lw_strlcpy(err.file, prof.path, sizeof err.file);
+            lw_text_copy(err.file, prof.path, sizeof err.file);
     }
     if (st == LW_OK && want_trace)
         st = lw_trace_build(&prof.light, &res, 200, &tr, &err);
@@ -123,12 +125,12 @@ int cli_run(int argc, char **argv)
     if (st == LW_OK)
         st = lw_report_run(stdout, a.o.fmt, &prof, &res, &err);
     int code = st == LW_OK ? 0 : report_error(&err);
-    if (st == LW_OK && lw_end_is_dark(res.end_reason)) {
+    if (st == LW_OK && lw_run_end_is_dark(res.end_reason)) {
         fprintf(stderr, "lampwick: %s: no light: %s\n", prof.path, dark_text(res.end_reason));
         code = EXIT_NOANSWER;
     }
     lw_trace_clear(&tr);
-    lw_result_clear(&res);
+    lw_run_result_clear(&res);
     lw_profile_clear(&prof);
     return code;
 }

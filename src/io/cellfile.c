@@ -1,7 +1,8 @@
 /*
  * cellfile.c - cell files and the cell search path (see cellfile.h).
  */
-#include "cellfile.h"
+#include "lampwick/cellfile.h"
+#include "lampwick/text.h"
 
 #include <ctype.h>
 #include <dirent.h>
@@ -14,8 +15,8 @@
 #include <sys/stat.h>
 #include <time.h>
 #include <unistd.h>
-#include "csvio.h"
-#include "alloc.h"
+#include "lampwick/csvio.h"
+#include "lampwick/alloc.h"
 
 /* What a cell file holds besides the lw_cell itself. */
 typedef struct cellspec {
@@ -29,11 +30,11 @@ typedef struct cellspec {
     {"cell", name_, type_, offsetof(cellspec, field_), 0, scale_, min_, max_, flags_, NULL,   \
      def_, help_}
 
-const lw_keydef lw_cell_keys[] = {
+const lw_keydef lw_cellfile_keys[] = {
     {"cell", "name", LW_K_TEXT, offsetof(cellspec, cell.name), LW_NAME_MAX, 1, NAN, NAN,
      LW_KF_REQUIRED, NULL, "", "cell type name"},
     {"cell", "chemistry", LW_K_CHOICE, offsetof(cellspec, cell.chemistry), 0, 1, NAN, NAN,
-     LW_KF_REQUIRED, lw_chemistry_names, "", "electrochemical system"},
+     LW_KF_REQUIRED, lw_cell_chemistry_names, "", "electrochemical system"},
     CK("nominal_v", LW_K_NUM, cell.nominal_v, 1, 0, 100, LW_KF_REQUIRED | LW_KF_MIN_OPEN, "",
        "nameplate voltage, V"),
     CK("capacity_mah", LW_K_NUM, cell.capacity_ah, 1e-3, 0, 1e7, LW_KF_REQUIRED | LW_KF_MIN_OPEN,
@@ -55,7 +56,7 @@ const lw_keydef lw_cell_keys[] = {
     CK("self_discharge_pct_month", LW_K_NUM, cell.self_discharge_pct_month, 1, 0, 50, 0, "0",
        "charge lost per month in storage at 20 C, %"),
 };
-const size_t lw_cell_nkeys = sizeof lw_cell_keys / sizeof lw_cell_keys[0];
+const size_t lw_cellfile_nkeys = sizeof lw_cellfile_keys / sizeof lw_cellfile_keys[0];
 
 bool lw_path_join(char *out, size_t size, const char *dir, const char *rel)
 {
@@ -87,7 +88,7 @@ void lw_search_add(lw_search *s, const char *dir)
 {
     if (!dir || !dir[0] || s->n == LW_SEARCH_MAX)
         return;
-    lw_strlcpy(s->dirs[s->n++], dir, LW_PATH_MAX);
+    lw_text_copy(s->dirs[s->n++], dir, LW_PATH_MAX);
 }
 
 void lw_search_add_list(lw_search *s, const char *list)
@@ -227,14 +228,14 @@ static lw_status apply_cell_entries(const lw_ini *ini, cellspec *spec, bool *giv
 {
     for (size_t i = 0; i < ini->n; i++) {
         const lw_ini_entry *e = &ini->entries[i];
-        const lw_keydef *d = lw_key_find(lw_cell_keys, lw_cell_nkeys, e->section, e->key);
+        const lw_keydef *d = lw_key_find(lw_cellfile_keys, lw_cellfile_nkeys, e->section, e->key);
         if (!d)
-            return lw_key_unknown(lw_cell_keys, lw_cell_nkeys, e->section, e->key, ini->path,
+            return lw_key_unknown(lw_cellfile_keys, lw_cellfile_nkeys, e->section, e->key, ini->path,
                                   e->line, err);
         lw_status st = lw_key_apply(d, spec, e->value, ini->path, e->line, err);
         if (st != LW_OK)
             return st;
-        given[d - lw_cell_keys] = true;
+        given[d - lw_cellfile_keys] = true;
     }
     return LW_OK;
 }
@@ -243,11 +244,11 @@ static lw_status check_cell(const lw_ini *ini, cellspec *spec, const bool *given
                             lw_error *err)
 {
     int sec = lw_ini_section_line(ini, "cell");
-    for (size_t k = 0; k < lw_cell_nkeys; k++)
-        if ((lw_cell_keys[k].flags & LW_KF_REQUIRED) && !given[k])
+    for (size_t k = 0; k < lw_cellfile_nkeys; k++)
+        if ((lw_cellfile_keys[k].flags & LW_KF_REQUIRED) && !given[k])
             return lw_error_set(err, LW_EINPUT, ini->path, sec ? sec : 1,
-                                "[cell] is missing the key '%s' (%s)", lw_cell_keys[k].name,
-                                lw_cell_keys[k].help);
+                                "[cell] is missing the key '%s' (%s)", lw_cellfile_keys[k].name,
+                                lw_cellfile_keys[k].help);
     lw_cell *c = &spec->cell;
     c->max_capacity_ah = isnan(spec->max_capacity_ah) ? c->capacity_ah : spec->max_capacity_ah;
     if (c->max_capacity_ah < c->capacity_ah) {
@@ -265,12 +266,12 @@ static lw_status cell_check(void *ctx, const char *section, const char *key, con
                             int line, lw_error *err)
 {
     (void)ctx;
-    if (key && lw_key_find(lw_cell_keys, lw_cell_nkeys, section, key))
+    if (key && lw_key_find(lw_cellfile_keys, lw_cellfile_nkeys, section, key))
         return LW_OK;
-    return lw_key_unknown(lw_cell_keys, lw_cell_nkeys, section, key, file, line, err);
+    return lw_key_unknown(lw_cellfile_keys, lw_cellfile_nkeys, section, key, file, line, err);
 }
 
-lw_status lw_cell_load(const char *path, lw_cell *cell, lw_error *err)
+lw_status lw_cellfile_load(const char *path, lw_cell *cell, lw_error *err)
 {
     memset(cell, 0, sizeof *cell);
     lw_ini ini;
@@ -280,8 +281,8 @@ lw_status lw_cell_load(const char *path, lw_cell *cell, lw_error *err)
     cellspec spec;
     memset(&spec, 0, sizeof spec);
     spec.max_capacity_ah = NAN;
-    bool given[sizeof lw_cell_keys / sizeof lw_cell_keys[0]] = {false};
-    st = lw_key_defaults(lw_cell_keys, lw_cell_nkeys, &spec, err);
+    bool given[sizeof lw_cellfile_keys / sizeof lw_cellfile_keys[0]] = {false};
+    st = lw_key_defaults(lw_cellfile_keys, lw_cellfile_nkeys, &spec, err);
     if (st == LW_OK)
         st = apply_cell_entries(&ini, &spec, given, err);
     if (st == LW_OK)
@@ -293,11 +294,11 @@ lw_status lw_cell_load(const char *path, lw_cell *cell, lw_error *err)
                           "[cell] curve: the path is too long (at most %d bytes)",
                           LW_PATH_MAX - 1);
     if (st == LW_OK) {
-        st = lw_check_readable(file, path, lw_ini_key_line(&ini, "cell", "curve"), "[cell] curve",
+        st = lw_path_check_readable(file, path, lw_ini_key_line(&ini, "cell", "curve"), "[cell] curve",
                                err);
         if (st == LW_OK)
             st = load_curve(file, &spec.cell, err);
-        lw_strlcpy(spec.cell.curve_path, file, sizeof spec.cell.curve_path);
+        lw_text_copy(spec.cell.curve_path, file, sizeof spec.cell.curve_path);
     }
     if (st == LW_OK && spec.temperature[0] &&
         !lw_path_join(file, sizeof file, dir, spec.temperature))
@@ -305,11 +306,11 @@ lw_status lw_cell_load(const char *path, lw_cell *cell, lw_error *err)
                           "[cell] temperature: the path is too long (at most %d bytes)",
                           LW_PATH_MAX - 1);
     if (st == LW_OK && spec.temperature[0]) {
-        st = lw_check_readable(file, path, lw_ini_key_line(&ini, "cell", "temperature"),
+        st = lw_path_check_readable(file, path, lw_ini_key_line(&ini, "cell", "temperature"),
                                "[cell] temperature", err);
         if (st == LW_OK)
             st = load_temperature(file, &spec.cell, err);
-        lw_strlcpy(spec.cell.temperature_path, file, sizeof spec.cell.temperature_path);
+        lw_text_copy(spec.cell.temperature_path, file, sizeof spec.cell.temperature_path);
     }
     if (st == LW_OK && !(spec.cell.cutoff_v < spec.cell.ocv->y[0])) {
         st = lw_error_set(err, LW_EINPUT, path, lw_ini_key_line(&ini, "cell", "cutoff_v"),
@@ -321,16 +322,16 @@ lw_status lw_cell_load(const char *path, lw_cell *cell, lw_error *err)
         lw_cell_clear(&spec.cell);
         return st;
     }
-    lw_strlcpy(spec.cell.path, path, sizeof spec.cell.path);
+    lw_text_copy(spec.cell.path, path, sizeof spec.cell.path);
     *cell = spec.cell;
     return LW_OK;
 }
 
-lw_status lw_check_readable(const char *path, const char *from_file, int from_line,
+lw_status lw_path_check_readable(const char *path, const char *from_file, int from_line,
                             const char *what, lw_error *err)
 {
     FILE *fp;
-    lw_status st = lw_open_regular(path, "rb", &fp, from_file, from_line, what, err);
+    lw_status st = lw_path_open_regular(path, "rb", &fp, from_file, from_line, what, err);
     if (fp)
         fclose(fp);
     return st;
@@ -342,7 +343,7 @@ static bool is_file(const char *path)
     return stat(path, &sb) == 0 && S_ISREG(sb.st_mode);
 }
 
-lw_status lw_cell_find(const char *ref, const char *base_dir, const lw_search *search,
+lw_status lw_cellfile_find(const char *ref, const char *base_dir, const lw_search *search,
                        char *path, size_t size, lw_error *err)
 {
     size_t len = strlen(ref);
@@ -353,19 +354,19 @@ lw_status lw_cell_find(const char *ref, const char *base_dir, const lw_search *s
             return lw_error_set(err, LW_EINPUT, NULL, 0, "the cell path is too long");
         if (!is_file(cand))
             return lw_error_set(err, LW_EINPUT, NULL, 0, "cell file '%s' not found", cand);
-        lw_strlcpy(path, cand, size);
+        lw_text_copy(path, cand, size);
         return LW_OK;
     }
     snprintf(name, sizeof name, "%s.ini", ref);
     if (lw_path_join(cand, sizeof cand, base_dir, name) && is_file(cand)) {
-        lw_strlcpy(path, cand, size);
+        lw_text_copy(path, cand, size);
         return LW_OK;
     }
     char tried[1024];
     snprintf(tried, sizeof tried, "%s", base_dir);
     for (size_t i = 0; search && i < search->n; i++) {
         if (lw_path_join(cand, sizeof cand, search->dirs[i], name) && is_file(cand)) {
-            lw_strlcpy(path, cand, size);
+            lw_text_copy(path, cand, size);
             return LW_OK;
         }
         strncat(tried, ", ", sizeof tried - strlen(tried) - 1);
@@ -381,7 +382,7 @@ static int cmp_str(const void *a, const void *b)
     return strcmp(*(char *const *)a, *(char *const *)b);
 }
 
-void lw_cell_list_clear(lw_cell_list *l)
+void lw_cellfile_list_clear(lw_cellfile_list *l)
 {
     if (!l)
         return;
@@ -397,7 +398,7 @@ void lw_cell_list_clear(lw_cell_list *l)
     memset(l, 0, sizeof *l);
 }
 
-bool lw_cell_is_cell_file(const char *path)
+bool lw_cellfile_is_cell(const char *path)
 {
     FILE *fp = fopen(path, "r");
     if (!fp)
@@ -425,7 +426,7 @@ static bool push_str(char ***arr, size_t n, const char *text)
     return a[n] != NULL; /* a[n] is not counted on failure: nothing to free */
 }
 
-lw_status lw_cell_list_read(const lw_search *search, lw_cell_list *l, lw_error *err)
+lw_status lw_cellfile_list_read(const lw_search *search, lw_cellfile_list *l, lw_error *err)
 {
     memset(l, 0, sizeof *l);
     for (size_t i = 0; i < search->n; i++) {
@@ -448,7 +449,7 @@ lw_status lw_cell_list_read(const lw_search *search, lw_cell_list *l, lw_error *
                 dup = !strcmp(l->names[k], name);
             if (dup)
                 continue;
-            if (!lw_cell_is_cell_file(full)) {
+            if (!lw_cellfile_is_cell(full)) {
                 oom = !push_str(&l->skipped, l->nskipped, full);
                 l->nskipped += !oom;
                 continue;
@@ -463,7 +464,7 @@ lw_status lw_cell_list_read(const lw_search *search, lw_cell_list *l, lw_error *
         }
         closedir(dir);
         if (oom) {
-            lw_cell_list_clear(l);
+            lw_cellfile_list_clear(l);
             return lw_error_set(err, LW_ENOMEM, NULL, 0, "out of memory");
         }
         /* sort this folder's names, keeping paths alongside */
@@ -492,7 +493,7 @@ static bool ini_value_ok(const char *text, size_t max, const char **why)
         *why = "is empty";
     else if (n > max)
         *why = "is too long";
-    else if (!lw_utf8_valid(text, n, NULL))
+    else if (!lw_text_utf8_valid(text, n, NULL))
         *why = "is not valid UTF-8";
     else if (isspace((unsigned char)text[0]) || isspace((unsigned char)text[n - 1]))
         *why = "starts or ends with a blank";
@@ -564,14 +565,14 @@ static lw_status write_cell_text(FILE *fp, const void *ctx, lw_error *err)
         size_t n = nl ? (size_t)(nl - p) : strlen(p);
         char line[LW_INI_LINE_MAX], safe[4 * LW_INI_LINE_MAX];
         snprintf(line, sizeof line, "%.*s", (int)(n < 150 ? n : 150), p);
-        lw_escape(safe, sizeof safe, line);
+        lw_text_escape(safe, sizeof safe, line);
         fprintf(fp, "; %.180s\n", safe);
         p += n + (nl ? 1 : 0);
     }
     fprintf(fp, "[cell]\nname = %s\nchemistry = %s\nnominal_v = %.17g\ncapacity_mah = %.17g\n"
                 "rated_ma = %.17g\npeukert = %.17g\nmax_capacity_mah = %.17g\ncutoff_v = %.17g\n"
                 "rechargeable = %s\n",
-            cell->name, lw_chemistry_names[cell->chemistry], cell->nominal_v,
+            cell->name, lw_cell_chemistry_names[cell->chemistry], cell->nominal_v,
             cell->capacity_ah * 1e3, cell->rated_a * 1e3, cell->peukert,
             cell->max_capacity_ah * 1e3, cell->cutoff_v, cell->rechargeable ? "yes" : "no");
     if (cell->mass_g > 0)
@@ -582,7 +583,7 @@ static lw_status write_cell_text(FILE *fp, const void *ctx, lw_error *err)
     return ferror(fp) ? lw_error_set(err, LW_EIO, NULL, 0, "write error") : LW_OK;
 }
 
-lw_status lw_cell_save(const char *ini_path, const lw_cell *cell, const char *comment,
+lw_status lw_cellfile_save(const char *ini_path, const lw_cell *cell, const char *comment,
                        lw_error *err)
 {
     size_t len = strlen(ini_path);

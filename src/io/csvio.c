@@ -2,9 +2,11 @@
  * csvio.c - CSV reading and writing through libcsv, atomic output files
  * (see csvio.h).
  */
-#include "csvio.h"
-#include "inifile.h"
-#include "alloc.h"
+#include "lampwick/csvio.h"
+#include "lampwick/text.h"
+#include "lampwick/number.h"
+#include "lampwick/inifile.h"
+#include "lampwick/alloc.h"
 
 #include <csv.h>
 #include <ctype.h>
@@ -88,7 +90,7 @@ static void on_field(void *s, size_t len, void *data)
                      LW_CSV_FIELD_MAX - 1);
         return;
     }
-    if (!lw_parse_double(buf, &r->rowbuf[idx])) {
+    if (!lw_number_parse_double(buf, &r->rowbuf[idx])) {
         r->failed = true;
         lw_error_set(r->err, LW_EINPUT, c->path, r->rec_line,
                      "column '%s': '%s' is not a number", c->names[idx], buf);
@@ -152,11 +154,11 @@ static void on_record(int ch, void *data)
 lw_status lw_csv_read(const char *path, lw_csv *csv, lw_error *err)
 {
     memset(csv, 0, sizeof *csv);
-    lw_strlcpy(csv->path, path, sizeof csv->path);
+    lw_text_copy(csv->path, path, sizeof csv->path);
     if (strlen(path) >= sizeof csv->path)
         return lw_error_set(err, LW_EINPUT, NULL, 0, "the path '%.60s...' is too long", path);
     FILE *fp;
-    lw_status ost = lw_open_regular(path, "rb", &fp, NULL, 0, NULL, err);
+    lw_status ost = lw_path_open_regular(path, "rb", &fp, NULL, 0, NULL, err);
     if (ost != LW_OK)
         return ost;
     struct csv_parser p;
@@ -320,7 +322,7 @@ void lw_csvw_text(lw_csvw *w, const char *s)
 void lw_csvw_num(lw_csvw *w, double v)
 {
     char buf[64];
-    lw_format_double(buf, sizeof buf, v);
+    lw_number_format(buf, sizeof buf, v);
     lw_csvw_text(w, buf);
 }
 

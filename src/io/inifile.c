@@ -2,8 +2,10 @@
  * inifile.c - INI reading with line numbers and schema-driven values
  * (see inifile.h).
  */
-#include "inifile.h"
-#include "alloc.h"
+#include "lampwick/inifile.h"
+#include "lampwick/text.h"
+#include "lampwick/number.h"
+#include "lampwick/alloc.h"
 
 #include <ctype.h>
 #include <errno.h>
@@ -105,7 +107,7 @@ static bool line_ok(struct reader *r, const char *s, size_t n)
                         (unsigned char)s[i]);
         }
     size_t at;
-    if (!lw_utf8_valid(s, len, &at)) {
+    if (!lw_text_utf8_valid(s, len, &at)) {
         if (key_before(s, at, key, sizeof key))
             return fail(r, LW_EINPUT, "%s: invalid UTF-8 in the value (column %zu)", key, at + 1);
         return fail(r, LW_EINPUT, "invalid UTF-8 at column %zu", at + 1);
@@ -258,14 +260,14 @@ static int on_value(void *user, const char *section, const char *name, const cha
     }
     r->slots[h] = ini->n + 1;
     lw_ini_entry *e = &ini->entries[ini->n++];
-    lw_strlcpy(e->section, section, sizeof e->section);
-    lw_strlcpy(e->key, name, sizeof e->key);
-    lw_strlcpy(e->value, value, sizeof e->value); /* lines are shorter than the value field */
+    lw_text_copy(e->section, section, sizeof e->section);
+    lw_text_copy(e->key, name, sizeof e->key);
+    lw_text_copy(e->value, value, sizeof e->value); /* lines are shorter than the value field */
     e->line = r->line;
     return 1;
 }
 
-lw_status lw_open_regular(const char *path, const char *mode, FILE **fp, const char *what_file,
+lw_status lw_path_open_regular(const char *path, const char *mode, FILE **fp, const char *what_file,
                           int what_line, const char *what, lw_error *err)
 {
     *fp = NULL;
@@ -301,10 +303,10 @@ lw_status lw_ini_read(const char *path, lw_ini *ini, lw_ini_check check, void *c
                       lw_error *err)
 {
     memset(ini, 0, sizeof *ini);
-    if (!lw_strlcpy(ini->path, path, sizeof ini->path))
+    if (!lw_text_copy(ini->path, path, sizeof ini->path))
         return lw_error_set(err, LW_EINPUT, NULL, 0, "the path '%.60s...' is too long", path);
     FILE *fp;
-    lw_status st = lw_open_regular(path, "r", &fp, NULL, 0, NULL, err);
+    lw_status st = lw_path_open_regular(path, "r", &fp, NULL, 0, NULL, err);
     if (st != LW_OK)
         return st;
     lw_error local;
@@ -370,32 +372,6 @@ const lw_keydef *lw_key_find(const lw_keydef *defs, size_t n, const char *sectio
     return NULL;
 }
 
-int lw_edit_distance(const char *a, const char *b)
-{
-    size_t la = strlen(a), lb = strlen(b);
-    if (la > 63 || lb > 63)
-        return 99;
-    int row[64];
-    for (size_t j = 0; j <= lb; j++)
-        row[j] = (int)j;
-    for (size_t i = 1; i <= la; i++) {
-        int diag = row[0];
-        row[0] = (int)i;
-        for (size_t j = 1; j <= lb; j++) {
-            int up = row[j];
-            int cost = tolower((unsigned char)a[i - 1]) != tolower((unsigned char)b[j - 1]);
-            int best = diag + cost;
-            if (row[j - 1] + 1 < best)
-                best = row[j - 1] + 1;
-            if (up + 1 < best)
-                best = up + 1;
-            row[j] = best;
-            diag = up;
-        }
-    }
-    return row[lb];
-}
-
 const char *lw_key_suggest(const lw_keydef *defs, size_t n, const char *section,
                            const char *name, char *buf, size_t size)
 {
@@ -406,7 +382,7 @@ const char *lw_key_suggest(const lw_keydef *defs, size_t n, const char *section,
         /* prefer keys of the same section; a key of another section costs 1;
          * a key without its unit suffix ("resistor" for "resistor_ohm")
          * counts as close */
-        int d = lw_edit_distance(defs[i].name, name) + (strcmp(defs[i].section, section) != 0);
+        int d = lw_text_edit_distance(defs[i].name, name) + (strcmp(defs[i].section, section) != 0);
         if (len >= 3 && !strncmp(defs[i].name, name, len) && defs[i].name[len] == '_')
             d = 1 + (strcmp(defs[i].section, section) != 0);
         if (d < best) {
@@ -502,7 +478,7 @@ lw_status lw_key_apply(const lw_keydef *d, void *target, const char *value, cons
     switch (d->type) {
     case LW_K_NUM: {
         double v;
-        if (!lw_parse_number(value, &v) || !in_range(d, v))
+        if (!lw_number_parse(value, &v) || !in_range(d, v))
             return range_error(d, value, file, line, err);
         if (v == 0.0)
             v = 0.0; /* no negative zero: "-0" is 0 */
@@ -512,7 +488,7 @@ lw_status lw_key_apply(const lw_keydef *d, void *target, const char *value, cons
     }
     case LW_K_INT: {
         int v;
-        if (!lw_parse_int(value, &v) || !in_range(d, v))
+        if (!lw_number_parse_int(value, &v) || !in_range(d, v))
             return range_error(d, value, file, line, err);
         memcpy(dst, &v, sizeof v);
         return LW_OK;
@@ -551,11 +527,11 @@ lw_status lw_key_apply(const lw_keydef *d, void *target, const char *value, cons
                 return lw_error_set(err, LW_EINPUT, file, line,
                                     "[%s] %s: control character \\x%02X in the text",
                                     d->section, d->name, (unsigned char)value[i]);
-        if (!lw_utf8_valid(value, len, &at))
+        if (!lw_text_utf8_valid(value, len, &at))
             return lw_error_set(err, LW_EINPUT, file, line,
                                 "[%s] %s: invalid UTF-8 at byte %zu", d->section, d->name,
                                 at + 1);
-        if (!lw_strlcpy(dst, value, d->size))
+        if (!lw_text_copy(dst, value, d->size))
             return lw_error_set(err, LW_EINPUT, file, line, "[%s] %s is too long (at most %zu)",
                                 d->section, d->name, d->size - 1);
         return LW_OK;

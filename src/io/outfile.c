@@ -2,7 +2,7 @@
  * outfile.c - output files that are whole or absent (see outfile.h).
  */
 #define _XOPEN_SOURCE 700 /* realpath */
-#include "outfile.h"
+#include "lampwick/outfile.h"
 
 #include <errno.h>
 #include <fcntl.h>

@@ -5,15 +5,16 @@
  * lw_profile_resolve; a failed resolve leaves the previous tables in place
  * but returns the error, and callers stop there.
  */
-#include "profile.h"
+#include "lampwick/profile.h"
+#include "lampwick/text.h"
 
 #include <math.h>
 #include <stddef.h>
 #include <stdio.h>
 #include <stdlib.h>
 #include <string.h>
-#include "csvio.h"
-#include "alloc.h"
+#include "lampwick/csvio.h"
+#include "lampwick/alloc.h"
 
 #define PK(sec, name_, type_, field_, scale_, min_, max_, flags_, def_, help_)                \
     {sec, name_, type_, offsetof(lw_profile, field_), 0, scale_, min_, max_, flags_, NULL,    \
@@ -95,7 +96,7 @@ const lw_keydef lw_profile_keys[] = {
     PK("cutoff", "relative_pct", LW_K_NUM, light.cutoff.relative_pct, 1, 0, 100,
        OPEN | LW_KF_MAX_OPEN, "10", "end at this % of the output 30 s after switch-on"),
     {"cutoff", "reference", LW_K_CHOICE, offsetof(lw_profile, light.cutoff.reference), 0, 1, NAN,
-     NAN, 0, lw_reference_names, "own",
+     NAN, 0, lw_light_reference_names, "own",
      "what relative_pct refers to: own (this run's 30-s output) or fresh (the 30-s output of "
      "fresh cells at 20 C, so storage and cold show in the runtime)"},
     PK("cutoff", "flux_lm", LW_K_NUM, light.cutoff.flux_lm, 1, 0, 1e7, 0, "0",
@@ -157,7 +158,7 @@ static bool split_dotted(const char *dotted, char *section, size_t ss, char *key
         return false;
     memcpy(section, dotted, (size_t)(dot - dotted));
     section[dot - dotted] = '\0';
-    return lw_strlcpy(key, dot + 1, ks);
+    return lw_text_copy(key, dot + 1, ks);
 }
 
 lw_status lw_profile_set(lw_profile *prof, const char *dotted_key, const char *value,
@@ -177,7 +178,7 @@ lw_status lw_profile_set(lw_profile *prof, const char *dotted_key, const char *v
     prof->key_origin[key_index(d)] = (unsigned char)origin;
     prof->key_line[key_index(d)] = origin == LW_FROM_OPTION ? 0 : line;
     if (origin == LW_FROM_OPTION)
-        lw_strlcpy(prof->key_option[key_index(d)], file ? file : "", 48);
+        lw_text_copy(prof->key_option[key_index(d)], file ? file : "", 48);
     return LW_OK;
 }
 
@@ -250,7 +251,7 @@ lw_status lw_profile_apply_mode(lw_profile *prof, const char *name, lw_error *er
         if (st != LW_OK)
             return st;
     }
-    lw_strlcpy(prof->mode, name, sizeof prof->mode);
+    lw_text_copy(prof->mode, name, sizeof prof->mode);
     return LW_OK;
 }
 
@@ -270,7 +271,7 @@ static lw_status load_xy(const lw_profile *p, const char *section, const char *k
         return lw_error_set(err, LW_EINPUT, p->path, line_of(p, section, key),
                             "%s: the path is too long (at most %d bytes)", what,
                             LW_PATH_MAX - 1);
-    lw_status st = lw_check_readable(path, p->path, line_of(p, section, key), what, err);
+    lw_status st = lw_path_check_readable(path, p->path, line_of(p, section, key), what, err);
     if (st != LW_OK)
         return st;
     lw_csv csv;
@@ -443,21 +444,21 @@ static lw_status load_cell(lw_profile *p, lw_error *err)
     const char *file;
     int line;
     where_of(p, "pack", "cell", &file, &line);
-    if (lw_cell_find(p->cell_ref, p->dir, &p->search, path, sizeof path, &local) != LW_OK)
+    if (lw_cellfile_find(p->cell_ref, p->dir, &p->search, path, sizeof path, &local) != LW_OK)
         return lw_error_set(err, LW_EINPUT, file, line, "[pack] cell: %s", local.msg);
     if (!strcmp(path, p->cell_path) && p->light.pack.cell.ocv)
         return LW_OK;
-    if (!lw_cell_is_cell_file(path))
+    if (!lw_cellfile_is_cell(path))
         return lw_error_set(err, LW_EINPUT, file, line,
                             "[pack] cell: '%s' is not a cell file (it has no [cell] section)",
                             path);
     lw_cell cell;
-    lw_status st = lw_cell_load(path, &cell, err);
+    lw_status st = lw_cellfile_load(path, &cell, err);
     if (st != LW_OK)
         return st;
     lw_cell_clear(&p->light.pack.cell);
     p->light.pack.cell = cell;
-    lw_strlcpy(p->cell_path, path, sizeof p->cell_path);
+    lw_text_copy(p->cell_path, path, sizeof p->cell_path);
     return LW_OK;
 }
 
@@ -494,7 +495,7 @@ lw_status lw_profile_resolve(lw_profile *p, lw_error *err)
                             "[optics] give beam_angle_deg or peak_cd_per_lm, not both");
     if (!l->name[0]) {
         const char *base = strrchr(p->path, '/');
-        lw_strlcpy(l->name, base ? base + 1 : p->path, sizeof l->name);
+        lw_text_copy(l->name, base ? base + 1 : p->path, sizeof l->name);
     }
     lw_light_update_factors(l, NULL);
     return LW_OK;
@@ -579,7 +580,7 @@ lw_status lw_profile_load(const char *path, const lw_search *search, lw_profile 
                           lw_error *err)
 {
     memset(p, 0, sizeof *p);
-    if (!lw_strlcpy(p->path, path, sizeof p->path))
+    if (!lw_text_copy(p->path, path, sizeof p->path))
         return lw_error_set(err, LW_EINPUT, NULL, 0, "the profile path is too long (at most %d "
                                                      "bytes)",
                             LW_PATH_MAX - 1);
@@ -639,7 +640,7 @@ size_t lw_profile_inputs(const lw_profile *p, char (*paths)[LW_PATH_MAX], size_t
     size_t n = 0;
     for (size_t i = 0; i < sizeof direct / sizeof direct[0] && n < max; i++)
         if (direct[i][0])
-            lw_strlcpy(paths[n++], direct[i], LW_PATH_MAX);
+            lw_text_copy(paths[n++], direct[i], LW_PATH_MAX);
     for (size_t i = 0; i < sizeof rel / sizeof rel[0] && n < max; i++)
         if (rel[i][0] && lw_path_join(paths[n], LW_PATH_MAX, p->dir, rel[i]))
             n++;

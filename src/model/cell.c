@@ -1,12 +1,12 @@
 /*
  * cell.c - the cell model (see cell.h for the equations and their sources).
  */
-#include "cell.h"
+#include "lampwick/cell.h"
 
 #include <math.h>
 #include <string.h>
 
-const char *const lw_chemistry_names[LW_CHEM_COUNT + 1] = {
+const char *const lw_cell_chemistry_names[LW_CHEM_COUNT + 1] = {
     "alkaline", "nimh", "nicd", "li-fes2", "li-mno2", "li-ion", "lifepo4", "lead-acid", "other",
     NULL};
 
@@ -63,13 +63,13 @@ double lw_cell_capacity_ah(const lw_cell *cell, double ic_a, double cap_factor)
     return cap_factor * c;
 }
 
-double lw_self_discharge_per_h(const lw_cell *cell)
+double lw_cell_self_discharge_per_h(const lw_cell *cell)
 {
     double s = cell->self_discharge_pct_month / 100.0;
     return s > 0.0 ? -log1p(-s) / 730.5 : 0.0;
 }
 
-bool lw_chemistry_needs_endpoint(lw_chemistry chem)
+bool lw_cell_chemistry_needs_endpoint(lw_chemistry chem)
 {
     return chem == LW_CHEM_LI_ION || chem == LW_CHEM_LIFEPO4;
 }

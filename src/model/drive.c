@@ -1,13 +1,13 @@
 /*
  * drive.c - operating point of a light at one depth (see drive.h).
  */
-#include "drive.h"
+#include "lampwick/drive.h"
 
 #include <math.h>
 
 const char *const lw_drive_type_names[LW_DRIVE_TYPE_COUNT + 1] = {"resistor", "linear-cc",
                                                                    "converter", NULL};
-const char *const lw_reference_names[LW_REF_COUNT + 1] = {"own", "fresh", NULL};
+const char *const lw_light_reference_names[LW_REF_COUNT + 1] = {"own", "fresh", NULL};
 
 void lw_light_clear(lw_light *light)
 {
@@ -33,7 +33,7 @@ void lw_light_update_factors(lw_light *light, bool *temperature_outside)
                                 &light->res_factor, temperature_outside);
 }
 
-bool lw_converter_input_current(double e_v, double r_ohm, double iq_a, double p_w, double *ip_a)
+bool lw_drive_converter_input_current(double e_v, double r_ohm, double iq_a, double p_w, double *ip_a)
 {
     double b = e_v + r_ohm * iq_a;
     double c = e_v * iq_a + p_w;
@@ -211,7 +211,7 @@ static void point_converter(const lw_light *l, double e_v, double r_pack, bool f
             eta = efficiency_at(drv, 0.5 * (e_v - r_pack * iq)); /* at the peak of g */
         }
     } else {
-        ok = lw_converter_input_current(e_v, r_pack, iq, p_out / eta, &ip);
+        ok = lw_drive_converter_input_current(e_v, r_pack, iq, p_out / eta, &ip);
     }
     /* the event function of the dropout: (g_max - P/eta) 4R / E^2, with eta
      * at the operating point (>= 0 there), or at the peak of g when there
@@ -303,7 +303,7 @@ lw_status lw_light_point_at(const lw_light *l, double depth, double ocv_v, doubl
     if (pt->regime != LW_REGIME_DROPOUT) {
         double ic_avg = pt->pack_avg_a / p;
         /* discharge by the current plus self-discharge of the charge left */
-        double rate = lw_self_discharge_per_h(&l->pack.cell) * (1.0 - depth);
+        double rate = lw_cell_self_discharge_per_h(&l->pack.cell) * (1.0 - depth);
         if (ic_avg > 0.0)
             rate += ic_avg / lw_cell_capacity_ah(&l->pack.cell, ic_avg, l->cap_factor);
         pt->dtdd_h = rate > 0.0 ? 1.0 / rate : INFINITY;
@@ -320,13 +320,13 @@ lw_status lw_light_point(const lw_light *light, double depth, bool fallback, lw_
     return lw_light_point_at(light, depth, ocv, r, fallback, pt, err);
 }
 
-double lw_stored_depth(const lw_light *l)
+double lw_light_stored_depth(const lw_light *l)
 {
     double m = l->pack.stored_months;
     if (!(m > 0))
         return 0.0;
     const lw_cell *c = &l->pack.cell;
-    double kept = exp(-lw_self_discharge_per_h(c) * m * LW_HOURS_PER_MONTH);
+    double kept = exp(-lw_cell_self_discharge_per_h(c) * m * LW_HOURS_PER_MONTH);
     double cap_ah = c->capacity_ah * l->cap_factor * l->pack.parallel;
     double drained = cap_ah > 0 ? l->drive.standby_a * m * LW_HOURS_PER_MONTH / cap_ah : 0.0;
     double d = 1.0 - kept + drained;

@@ -5,7 +5,7 @@
  * `d_now` of the accepted pieces, and no active event has triggered before
  * d_now.  Every operating-point solve goes through eval(), which counts it.
  */
-#include "engine.h"
+#include "lampwick/engine.h"
 
 #include <float.h>
 #include <math.h>
@@ -13,19 +13,19 @@
 #include <stdio.h>
 #include <stdlib.h>
 #include <string.h>
-#include "roots.h"
-#include "alloc.h"
+#include "lampwick/roots.h"
+#include "lampwick/alloc.h"
 
-const char *const lw_end_reason_names[LW_END_COUNT + 1] = {
+const char *const lw_run_end_names[LW_END_COUNT + 1] = {
     "relative-brightness", "flux-floor", "cell-voltage", "capacity", "never-lit",
     "driver-dropout", "empty-at-start", "dim-at-start", NULL};
 
-bool lw_end_is_dark(lw_end_reason why)
+bool lw_run_end_is_dark(lw_end_reason why)
 {
     return why == LW_END_NEVER_LIT || why == LW_END_EMPTY_AT_START || why == LW_END_DIM_AT_START;
 }
 
-const char *const lw_warning_names[LW_WARN_COUNT_] = {
+const char *const lw_run_warning_names[LW_WARN_COUNT_] = {
     "led-over-max", "led-over-max-worst-case", "resistor-hot", "over-discharge", "never-lit",
     "no-cutoff", "led-table-extrapolated", "temperature-outside-table", "tolerance-not-met",
     "resistor-over-rating"};
@@ -751,7 +751,7 @@ lw_run_options lw_run_options_default(void)
                             .want_trace = false};
 }
 
-void lw_result_clear(lw_result *res)
+void lw_run_result_clear(lw_result *res)
 {
     if (!res)
         return;
@@ -760,7 +760,7 @@ void lw_result_clear(lw_result *res)
     res->n_pieces = 0;
 }
 
-lw_status lw_worst_case(const lw_light *light, lw_point *pt, lw_error *err)
+lw_status lw_run_worst_case(const lw_light *light, lw_point *pt, lw_error *err)
 {
     lw_light w = *light; /* shallow: tables borrowed, never freed here */
     const lw_cell *c = &light->pack.cell;
@@ -784,7 +784,7 @@ static void set_warnings(const lw_light *l, lw_result *r)
         r->warnings |= LW_WARN_RESISTOR_HOT;
     if (l->drive.rating_w > 0.0 && p_res > l->drive.rating_w)
         r->warnings |= LW_WARN_RESISTOR_OVER_RATING;
-    if (lw_chemistry_needs_endpoint(l->pack.cell.chemistry) &&
+    if (lw_cell_chemistry_needs_endpoint(l->pack.cell.chemistry) &&
         l->cutoff.cell_v < l->pack.cell.cutoff_v)
         r->warnings |= LW_WARN_OVER_DISCHARGE;
     if (r->end_reason == LW_END_NEVER_LIT)
@@ -1018,10 +1018,10 @@ lw_status lw_run(const lw_light *light, const lw_run_options *opt, lw_result *re
     res->time_to_half_h = NAN;
     res->flux_30s_lm = res->flux_ref_lm = NAN;
     engine e = {.l = light, .opt = opt, .res = res, .err = err, .seg = SIZE_MAX, .end_d = -1};
-    e.d0 = fmin(1.0, fmax(opt->start_depth, lw_stored_depth(light)));
+    e.d0 = fmin(1.0, fmax(opt->start_depth, lw_light_stored_depth(light)));
     res->start_depth = e.d0;
     res->depth_30s = e.d0;
-    lw_status st = lw_worst_case(light, &res->initial, err);
+    lw_status st = lw_run_worst_case(light, &res->initial, err);
     res->solves++; /* the worst case is an operating-point solve too */
     if (st != LW_OK)
         return st;
@@ -1035,7 +1035,7 @@ lw_status lw_run(const lw_light *light, const lw_run_options *opt, lw_result *re
         st = run_body(&e, p0);
     }
     if (st != LW_OK) {
-        lw_result_clear(res);
+        lw_run_result_clear(res);
         return st;
     }
     res->runtime_h = e.tot[Q_T];

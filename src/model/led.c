@@ -1,10 +1,10 @@
 /*
  * led.c - LED I-V models, flux, and the series-loop solution (see led.h).
  */
-#include "led.h"
+#include "lampwick/led.h"
 
 #include <math.h>
-#include "roots.h"
+#include "lampwick/roots.h"
 
 const char *const lw_led_model_names[LW_LED_MODEL_COUNT + 1] = {"constant", "linear", "shockley",
                                                                  "table", NULL};
@@ -25,7 +25,7 @@ void lw_led_copy(lw_led *dst, const lw_led *src)
     lw_interp_ref(dst->flux);
 }
 
-double lw_thermal_voltage(double temp_c)
+double lw_led_thermal_voltage(double temp_c)
 {
     return LW_BOLTZMANN_J_K * (temp_c + 273.15) / LW_ELEMENTARY_C;
 }
@@ -54,7 +54,7 @@ double lw_led_voltage(const lw_led *led, double i_a, bool *extrapolated)
         v = led->threshold_v + led->slope_ohm * i_a;
         break;
     case LW_LED_SHOCKLEY:
-        v = led->ideality * lw_thermal_voltage(led->junction_c) * log1p(i_a / led->saturation_a) +
+        v = led->ideality * lw_led_thermal_voltage(led->junction_c) * log1p(i_a / led->saturation_a) +
             led->series_ohm * i_a;
         break;
     case LW_LED_TABLE:
@@ -84,13 +84,13 @@ double lw_led_flux(const lw_led *led, double i_a, bool *extrapolated)
 static lw_status solve_shockley(const lw_led *led, double e_v, double r_ohm, double *i_a,
                                 lw_error *err)
 {
-    double a = led->count * led->v_scale * led->ideality * lw_thermal_voltage(led->junction_c);
+    double a = led->count * led->v_scale * led->ideality * lw_led_thermal_voltage(led->junction_c);
     double is = led->saturation_a;
     double r = r_ohm + led->count * led->v_scale * led->series_ohm;
     double i;
     if (r > 0.0) {
         double x = log(is * r / a) + (e_v + is * r) / a;
-        i = (a / r) * lw_wright_omega(x) - is;
+        i = (a / r) * lw_root_wright_omega(x) - is;
     } else {
         i = is * expm1(e_v / a);
         if (!isfinite(i))

@@ -1,7 +1,7 @@
 /*
  * photometry.c - beam photometry (see photometry.h for the definitions).
  */
-#include "photometry.h"
+#include "lampwick/photometry.h"
 
 #include <math.h>
 

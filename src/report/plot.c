@@ -5,19 +5,20 @@
  * the bottom, legend in the top-right of each panel.  Colours are a fixed,
  * colour-blind-considerate palette of our own.
  */
-#include "plot.h"
+#include "lampwick/plot.h"
+#include "lampwick/text.h"
 
 #include <math.h>
 #include <stdlib.h>
 #include <string.h>
-#include "report.h"
-#include "alloc.h"
+#include "lampwick/report.h"
+#include "lampwick/alloc.h"
 
 static const char *const palette[] = {"#1b6f8a", "#c4541b", "#5a7d2a", "#8a3f86",
                                       "#b08a00", "#3a3a9c", "#9c3a3a", "#2f8f6f"};
 #define NPAL (sizeof palette / sizeof palette[0])
 
-size_t lw_nice_ticks(double lo, double hi, size_t max_ticks, double *ticks)
+size_t lw_plot_ticks(double lo, double hi, size_t max_ticks, double *ticks)
 {
     if (!(hi > lo) || max_ticks < 2 || !isfinite(hi - lo))
         return 0;
@@ -76,7 +77,7 @@ static void xml_text(FILE *fp, const char *s)
         unsigned char c = (unsigned char)*s;
         if (c >= 0x80) {
             size_t n = strlen(s), len = (c >> 5) == 6 ? 2 : (c >> 4) == 14 ? 3 : (c >> 3) == 30 ? 4 : 0;
-            if (len && len <= n && lw_utf8_valid(s, len, NULL)) {
+            if (len && len <= n && lw_text_utf8_valid(s, len, NULL)) {
                 fwrite(s, 1, len, fp);
                 s += len - 1;
             } else {
@@ -163,7 +164,7 @@ static void data_range(const lw_axis *ax, const lw_series *s, size_t ns, bool wa
         if (b <= a)
             b = a + (a != 0 ? fabs(a) * 0.1 : 1.0);
         double t[33];
-        size_t n = lw_nice_ticks(a, b, 6, t);
+        size_t n = lw_plot_ticks(a, b, 6, t);
         double step = n >= 2 ? t[1] - t[0] : (b - a);
         a = floor(a / step + 1e-9) * step;
         b = ceil(b / step - 1e-9) * step;
@@ -182,7 +183,7 @@ static void draw_axes(FILE *fp, const frame *f, const lw_panel *p, bool bottom,
     fprintf(fp, "<rect x='%.1f' y='%.1f' width='%.1f' height='%.1f' fill='#ffffff' "
                 "stroke='#555' stroke-width='1'/>\n",
             f->x0, f->y0, f->x1 - f->x0, f->y1 - f->y0);
-    size_t n = f->ylog ? log_ticks(f->ylo, f->yhi, t) : lw_nice_ticks(f->ylo, f->yhi, 8, t);
+    size_t n = f->ylog ? log_ticks(f->ylo, f->yhi, t) : lw_plot_ticks(f->ylo, f->yhi, 8, t);
     for (size_t i = 0; i < n; i++) {
         double y = py(f, t[i]);
         fprintf(fp, "<line x1='%.1f' y1='%.1f' x2='%.1f' y2='%.1f' stroke='#e3e3e3'/>\n", f->x0,
@@ -194,7 +195,7 @@ static void draw_axes(FILE *fp, const frame *f, const lw_panel *p, bool bottom,
     if (p->y2_label && p->y2_scale > 0) {
         /* the right axis gets round numbers of its own unit */
         double t2[33];
-        size_t n2 = lw_nice_ticks(f->ylo * p->y2_scale, f->yhi * p->y2_scale, 6, t2);
+        size_t n2 = lw_plot_ticks(f->ylo * p->y2_scale, f->yhi * p->y2_scale, 6, t2);
         for (size_t i = 0; i < n2; i++) {
             double y = py(f, t2[i] / p->y2_scale);
             fmt_tick(buf, sizeof buf, t2[i]);
@@ -217,7 +218,7 @@ static void draw_axes(FILE *fp, const frame *f, const lw_panel *p, bool bottom,
         xml_text(fp, p->y2_label);
         fputs("</text>\n", fp);
     }
-    n = f->xlog ? log_ticks(f->lo, f->hi, t) : lw_nice_ticks(f->lo, f->hi, 8, t);
+    n = f->xlog ? log_ticks(f->lo, f->hi, t) : lw_plot_ticks(f->lo, f->hi, 8, t);
     for (size_t i = 0; i < n; i++) {
         double x = px(f, t[i]);
         fprintf(fp, "<line x1='%.1f' y1='%.1f' x2='%.1f' y2='%.1f' stroke='#e3e3e3'/>\n", x,
@@ -420,11 +421,11 @@ lw_status lw_plot_run(FILE *fp, const char *title, const lw_light *light, const 
     }
     char sub[256], cut[64];
     char runtime[64];
-    lw_format_hours(res->runtime_h, runtime, sizeof runtime);
+    lw_report_hours(res->runtime_h, runtime, sizeof runtime);
     snprintf(sub, sizeof sub, "%d x %s, %s drive; runtime to cutoff %s (%s)",
              light->pack.series * light->pack.parallel, light->pack.cell.name,
              lw_drive_type_names[light->drive.type], runtime,
-             lw_end_reason_names[res->end_reason]);
+             lw_run_end_names[res->end_reason]);
     snprintf(cut, sizeof cut, "cutoff %g %%", light->cutoff.relative_pct);
     lw_chart c = {0};
     c.title = title;

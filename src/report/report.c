@@ -1,20 +1,21 @@
 /*
  * report.c - text / CSV / Markdown tables and the run report (see report.h).
  */
-#include "report.h"
+#include "lampwick/report.h"
+#include "lampwick/number.h"
 
 #include <math.h>
 #include <stdarg.h>
 #include <stdlib.h>
 #include <string.h>
-#include "csvio.h"
-#include "alloc.h"
+#include "lampwick/csvio.h"
+#include "lampwick/alloc.h"
 
-const char *const lw_caution_line =
+const char *const lw_report_caution =
     "Caution: estimates from typical data. Follow the cell maker's limits and the applicable "
     "safety standards; have a product checked by qualified people.";
 
-bool lw_format_parse(const char *s, lw_format *fmt)
+bool lw_rtable_format_parse(const char *s, lw_rtable_format *fmt)
 {
     if (!strcmp(s, "text"))
         *fmt = LW_FMT_TEXT;
@@ -145,7 +146,7 @@ lw_status lw_rtable_num(lw_rtable *t, size_t row, size_t col, double v, int sig,
     lw_status st = lw_rtable_set(t, row, col, buf, err);
     if (st != LW_OK || !isfinite(v))
         return st;
-    lw_format_double(buf, sizeof buf, v);
+    lw_number_format(buf, sizeof buf, v);
     return dup_into(&t->full[row * t->ncol + col], buf, err);
 }
 
@@ -186,7 +187,7 @@ static bool numeric_column(const lw_rtable *t, size_t c)
         double v;
         if (!s[0] || !strcmp(s, "-"))
             continue;
-        if (!lw_parse_double(s, &v)) {
+        if (!lw_number_parse_double(s, &v)) {
             char num[64];
             const char *sp = strchr(s, ' ');
             size_t len = sp ? (size_t)(sp - s) : 0;
@@ -194,7 +195,7 @@ static bool numeric_column(const lw_rtable *t, size_t c)
                 return false;
             memcpy(num, s, len);
             num[len] = '\0';
-            if (!lw_parse_double(num, &v))
+            if (!lw_number_parse_double(num, &v))
                 return false;
         }
         any = true;
@@ -382,7 +383,7 @@ static void write_csv(const lw_rtable *t, FILE *fp, lw_csvw *w)
     }
 }
 
-lw_status lw_rtable_write(const lw_rtable *t, FILE *fp, lw_format fmt, lw_error *err)
+lw_status lw_rtable_write(const lw_rtable *t, FILE *fp, lw_rtable_format fmt, lw_error *err)
 {
     lw_csvw w = {0};
     if (fmt == LW_FMT_CSV)
@@ -398,7 +399,7 @@ lw_status lw_rtable_write(const lw_rtable *t, FILE *fp, lw_format fmt, lw_error 
 
 /* ---- the run report ---- */
 
-/* The run columns, in the order of lw_run_columns. */
+/* The run columns, in the order of lw_report_run_columns. */
 enum run_col {
     RC_RUNTIME, RC_END, RC_LED_MA, RC_PACK_MA, RC_FLUX0, RC_FLUX30, RC_REF_LM, RC_REFERENCE,
     RC_HALF, RC_REGULATED, RC_LMH, RC_E_DRAWN, RC_E_LED, RC_E_RES, RC_E_INT, RC_E_DRV,
@@ -413,7 +414,7 @@ static bool lit_only(enum run_col c)
              c == RC_WORST_RES || c == RC_FINAL_V || c == RC_SOLVES || c == RC_WARNINGS);
 }
 
-const char *const lw_run_columns[RC_COUNT + 1] = {
+const char *const lw_report_run_columns[RC_COUNT + 1] = {
     "runtime_h",          "end_reason",       "initial_led_ma", "initial_pack_ma",
     "initial_flux_lm",    "flux_30s_lm",      "reference_lm",   "cutoff_reference",
     "time_to_half_h",     "regulated_h",      "lumen_hours",    "energy_drawn_wh",
@@ -421,9 +422,9 @@ const char *const lw_run_columns[RC_COUNT + 1] = {
     "efficiency_pct",     "lm_per_w",         "peak_resistor_w", "worst_led_ma",
     "worst_resistor_w",   "final_cell_v",     "solves",         "warnings",
     NULL};
-const size_t lw_run_ncolumns = RC_COUNT;
+const size_t lw_report_run_ncolumns = RC_COUNT;
 
-void lw_warnings_text(unsigned warnings, char *buf, size_t size)
+void lw_report_warnings(unsigned warnings, char *buf, size_t size)
 {
     buf[0] = '\0';
     for (int i = 0; i < LW_WARN_COUNT_; i++) {
@@ -431,7 +432,7 @@ void lw_warnings_text(unsigned warnings, char *buf, size_t size)
             continue;
         if (buf[0])
             strncat(buf, ";", size - strlen(buf) - 1);
-        strncat(buf, lw_warning_names[i], size - strlen(buf) - 1);
+        strncat(buf, lw_run_warning_names[i], size - strlen(buf) - 1);
     }
 }
 
@@ -472,14 +473,14 @@ lw_status lw_report_run_row(lw_rtable *t, size_t row, size_t c, const lw_light *
                             const lw_result *r, lw_error *err)
 {
     char warn[512];
-    lw_warnings_text(r->warnings, warn, sizeof warn);
-    bool dark = lw_end_is_dark(r->end_reason);
+    lw_report_warnings(r->warnings, warn, sizeof warn);
+    bool dark = lw_run_end_is_dark(r->end_reason);
     lw_status st = LW_OK;
     for (int i = 0; i < RC_COUNT && st == LW_OK; i++) {
         if (i == RC_END)
-            st = lw_rtable_set(t, row, c + i, lw_end_reason_names[r->end_reason], err);
+            st = lw_rtable_set(t, row, c + i, lw_run_end_names[r->end_reason], err);
         else if (i == RC_REFERENCE)
-            st = lw_rtable_set(t, row, c + i, lw_reference_names[light->cutoff.reference], err);
+            st = lw_rtable_set(t, row, c + i, lw_light_reference_names[light->cutoff.reference], err);
         else if (i == RC_WARNINGS)
             st = lw_rtable_set(t, row, c + i, warn, err);
         else
@@ -488,7 +489,7 @@ lw_status lw_report_run_row(lw_rtable *t, size_t row, size_t c, const lw_light *
     return st;
 }
 
-void lw_format_hours(double h, char *buf, size_t size)
+void lw_report_hours(double h, char *buf, size_t size)
 {
     if (!isfinite(h))
         snprintf(buf, size, "not reached");
@@ -523,7 +524,7 @@ static const char *end_text(lw_end_reason why)
     }
 }
 
-const char *lw_warning_text(int bit)
+const char *lw_report_warning(int bit)
 {
     /* long texts are split across lines on purpose */
     // NOLINTBEGIN(bugprone-suspicious-missing-comma)
@@ -603,7 +604,7 @@ static void text_header(FILE *fp, const lw_profile *p)
 static void text_dark(FILE *fp, const lw_light *l, const lw_result *r)
 {
     const lw_point *i0 = &r->initial;
-    fprintf(fp, "  %s: %s\n", lw_end_reason_names[r->end_reason], end_text(r->end_reason));
+    fprintf(fp, "  %s: %s\n", lw_run_end_names[r->end_reason], end_text(r->end_reason));
     switch (r->end_reason) {
     case LW_END_NEVER_LIT:
         fprintf(fp, "  output at switch-on %.3g lm, below the visibility floor of %g lm\n",
@@ -658,13 +659,13 @@ static void text_switch_on(FILE *fp, const lw_light *l, const lw_result *r)
 static void text_run(FILE *fp, const lw_light *l, const lw_result *r)
 {
     char buf[96];
-    lw_format_hours(r->runtime_h, buf, sizeof buf);
-    fprintf(fp, "  runtime to cutoff   %s  [%s: %s]\n", buf, lw_end_reason_names[r->end_reason],
+    lw_report_hours(r->runtime_h, buf, sizeof buf);
+    fprintf(fp, "  runtime to cutoff   %s  [%s: %s]\n", buf, lw_run_end_names[r->end_reason],
             end_text(r->end_reason));
-    lw_format_hours(r->time_to_half_h, buf, sizeof buf);
+    lw_report_hours(r->time_to_half_h, buf, sizeof buf);
     fprintf(fp, "  time to 50 %%        %s\n", buf);
     if (isfinite(r->regulated_h)) {
-        lw_format_hours(r->regulated_h, buf, sizeof buf);
+        lw_report_hours(r->regulated_h, buf, sizeof buf);
         fprintf(fp, "  in regulation       %s\n", buf);
     }
     fprintf(fp, "  lumen-hours         %.4g lm h (%.3g lm per W drawn from the cells)\n",
@@ -706,7 +707,7 @@ static void text_warnings(FILE *fp, const lw_light *l, const lw_result *r)
     fputs("\nWarnings\n", fp);
     for (int i = 0; i < LW_WARN_COUNT_; i++)
         if (w & (1u << i))
-            fprintf(fp, "  ! %s\n", lw_warning_text(i));
+            fprintf(fp, "  ! %s\n", lw_report_warning(i));
     if (w & (LW_WARN_LED_OVER_MAX | LW_WARN_LED_OVER_MAX_WORST))
         fprintf(fp, "    nominal %.1f mA, worst case %.1f mA, max %.1f mA\n",
                 r->initial.led_a * 1e3, r->worst_led_a * 1e3, l->led.max_current_a * 1e3);
@@ -721,7 +722,7 @@ static void text_report(FILE *fp, const lw_profile *p, const lw_result *r)
     char cond[96];
     start_condition(l, r, cond, sizeof cond);
     text_header(fp, p);
-    if (lw_end_is_dark(r->end_reason)) {
+    if (lw_run_end_is_dark(r->end_reason)) {
         fprintf(fp, "\nNo light at switch-on (%s)\n", cond);
         text_dark(fp, l, r);
     } else {
@@ -734,29 +735,29 @@ static void text_report(FILE *fp, const lw_profile *p, const lw_result *r)
     }
     fprintf(fp, "\n  (%d operating-point solves)\n", r->solves);
     text_warnings(fp, l, r);
-    fprintf(fp, "\n%s\n", lw_caution_line);
+    fprintf(fp, "\n%s\n", lw_report_caution);
 }
 
-lw_status lw_report_run(FILE *fp, lw_format fmt, const lw_profile *prof, const lw_result *res,
+lw_status lw_report_run(FILE *fp, lw_rtable_format fmt, const lw_profile *prof, const lw_result *res,
                         lw_error *err)
 {
     if (fmt == LW_FMT_TEXT) {
         text_report(fp, prof, res);
         return ferror(fp) ? lw_error_set(err, LW_EIO, NULL, 0, "write error") : LW_OK;
     }
-    lw_rtable *t = lw_rtable_new(lw_run_ncolumns, err);
+    lw_rtable *t = lw_rtable_new(lw_report_run_ncolumns, err);
     if (!t)
         return LW_ENOMEM;
     lw_status st = LW_OK;
     size_t row;
-    for (size_t c = 0; c < lw_run_ncolumns && st == LW_OK; c++)
-        st = lw_rtable_head(t, c, lw_run_columns[c], err);
+    for (size_t c = 0; c < lw_report_run_ncolumns && st == LW_OK; c++)
+        st = lw_rtable_head(t, c, lw_report_run_columns[c], err);
     if (st == LW_OK)
         st = lw_rtable_add_row(t, &row, err);
     if (st == LW_OK)
         st = lw_report_run_row(t, row, 0, &prof->light, res, err);
     if (st == LW_OK && fmt == LW_FMT_MD)
-        st = lw_rtable_note(t, lw_caution_line, err);
+        st = lw_rtable_note(t, lw_report_caution, err);
     if (st == LW_OK)
         st = lw_rtable_write(t, fp, fmt, err);
     lw_rtable_free(t);

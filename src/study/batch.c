@@ -1,7 +1,8 @@
 /*
  * batch.c - running many variants of a profile (see batch.h).
  */
-#include "batch.h"
+#include "lampwick/batch.h"
+#include "lampwick/text.h"
 
 #include <stdio.h>
 #include <string.h>
@@ -11,7 +12,7 @@ bool lw_case_set(lw_case *c, const char *key, const char *value)
     if (c->nset == LW_CASE_SETS)
         return false;
     lw_override *o = &c->set[c->nset];
-    if (!lw_strlcpy(o->key, key, sizeof o->key) || !lw_strlcpy(o->value, value, sizeof o->value))
+    if (!lw_text_copy(o->key, key, sizeof o->key) || !lw_text_copy(o->value, value, sizeof o->value))
         return false;
     c->nset++;
     return true;
@@ -49,7 +50,7 @@ static void run_case(size_t i, void *vctx)
         lw_run_options opt = lw_run_options_default();
         c->status = lw_run(&p.light, &opt, &c->res, &c->err);
         if (c->status != LW_OK && !c->err.file[0])
-            lw_strlcpy(c->err.file, b->base->path, sizeof c->err.file);
+            lw_text_copy(c->err.file, b->base->path, sizeof c->err.file);
     }
     if (c->status == LW_OK) {
         lw_light_copy(&c->light, &p.light);
@@ -59,19 +60,19 @@ static void run_case(size_t i, void *vctx)
 }
 
 void lw_batch_run(const lw_profile *base, lw_case *cases, size_t n, int threads,
-                  lw_progress_fn progress, void *progress_ctx)
+                  lw_pool_progress_fn progress, void *progress_ctx)
 {
     struct batch b = {base, cases};
     /* small batches are not worth a thread start */
     if (n < 16)
         threads = 1;
-    lw_parallel_for(n, threads, run_case, &b, progress, progress_ctx);
+    lw_pool_for(n, threads, run_case, &b, progress, progress_ctx);
 }
 
 void lw_batch_clear(lw_case *cases, size_t n)
 {
     for (size_t i = 0; cases && i < n; i++) {
-        lw_result_clear(&cases[i].res);
+        lw_run_result_clear(&cases[i].res);
         if (cases[i].has_light)
             lw_light_clear(&cases[i].light);
         cases[i].has_light = false;

@@ -1,17 +1,18 @@
 /*
  * cellfit.c - cell models from discharge logs (see cellfit.h).
  */
-#include "cellfit.h"
+#include "lampwick/cellfit.h"
+#include "lampwick/text.h"
 
 #include <math.h>
 #include <stdlib.h>
 #include <string.h>
-#include "csvio.h"
-#include "alloc.h"
+#include "lampwick/csvio.h"
+#include "lampwick/alloc.h"
 
 #define DENSE 401 /* depths at which the logs are compared */
 
-void lw_dlog_clear(lw_dlog *log)
+void lw_cellfit_log_clear(lw_cellfit_log *log)
 {
     if (!log)
         return;
@@ -28,11 +29,11 @@ static int cmp_double(const void *a, const void *b)
     return (x > y) - (x < y);
 }
 
-lw_status lw_dlog_read(const char *path, double load_ohm, double load_a, lw_dlog *log,
+lw_status lw_cellfit_log_read(const char *path, double load_ohm, double load_a, lw_cellfit_log *log,
                        lw_error *err)
 {
     memset(log, 0, sizeof *log);
-    lw_strlcpy(log->path, path, sizeof log->path);
+    lw_text_copy(log->path, path, sizeof log->path);
     lw_csv csv;
     lw_status st = lw_csv_read(path, &csv, err);
     if (st != LW_OK)
@@ -117,7 +118,7 @@ typedef struct reduced {
     double cap_ah, hours;
 } reduced;
 
-static lw_status reduce(const lw_dlog *log, double cutoff_v, reduced *r, lw_error *err)
+static lw_status reduce(const lw_cellfit_log *log, double cutoff_v, reduced *r, lw_error *err)
 {
     memset(r, 0, sizeof *r);
     size_t end = 0;
@@ -288,7 +289,7 @@ static void extend_near_end(const reduced *lo, const double *d, size_t lim, doub
     }
 }
 
-lw_status lw_fit_cell(const lw_dlog *logs, size_t nlogs, const lw_cellfit_options *opt,
+lw_status lw_cellfit_fit(const lw_cellfit_log *logs, size_t nlogs, const lw_cellfit_options *opt,
                       lw_cellfit *out, lw_error *err)
 {
     memset(out, 0, sizeof *out);
@@ -386,7 +387,7 @@ lw_status lw_fit_cell(const lw_dlog *logs, size_t nlogs, const lw_cellfit_option
         }
         out->dense_points = DENSE;
         lw_cell *c = &out->cell;
-        lw_strlcpy(c->name, opt->name ? opt->name : "fitted-cell", sizeof c->name);
+        lw_text_copy(c->name, opt->name ? opt->name : "fitted-cell", sizeof c->name);
         c->chemistry = opt->chemistry;
         c->rechargeable = opt->rechargeable;
         c->cutoff_v = opt->cutoff_v;

@@ -1,19 +1,19 @@
 /*
  * corner.c - the corners of a design (see corner.h).
  */
-#include "corner.h"
+#include "lampwick/corner.h"
 
 const char *const lw_corner_names[LW_CORNER_COUNT + 1] = {"nominal", "worst hot", "cold",
                                                           "end of run", NULL};
 
-lw_status lw_corners(const lw_light *light, const lw_result *run,
+lw_status lw_corner_compute(const lw_light *light, const lw_result *run,
                      lw_corner out[LW_CORNER_COUNT], lw_error *err)
 {
     for (int k = 0; k < LW_CORNER_COUNT; k++)
         out[k] = (lw_corner){.kind = (lw_corner_kind)k, .ambient_c = light->pack.ambient_c};
     lw_status st = lw_light_point(light, 0.0, false, &out[LW_CORNER_NOMINAL].pt, err);
     if (st == LW_OK)
-        st = lw_worst_case(light, &out[LW_CORNER_HOT].pt, err);
+        st = lw_run_worst_case(light, &out[LW_CORNER_HOT].pt, err);
     if (st != LW_OK)
         return st;
     lw_light cold = *light; /* shallow: tables borrowed */

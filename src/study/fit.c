@@ -6,16 +6,16 @@
  * (ln I, 1, I) with I in amperes is as well conditioned as the data allow;
  * the scaling is undone on the coefficients.
  */
-#include "fit.h"
+#include "lampwick/fit.h"
 
 #include <float.h>
 #include <math.h>
 #include <stdlib.h>
 #include <string.h>
-#include "led.h"
-#include "alloc.h"
+#include "lampwick/led.h"
+#include "lampwick/alloc.h"
 
-lw_status lw_lsq_solve(const double *const *x, size_t p, const double *y, size_t n,
+lw_status lw_fit_lsq_solve(const double *const *x, size_t p, const double *y, size_t n,
                        lw_lsq *out, lw_error *err)
 {
     if (p == 0 || p > LW_LSQ_MAX_P)
@@ -158,7 +158,7 @@ static lw_status lsq_with_constant(const double *const *cols, size_t p, const do
     const double *all[LW_LSQ_MAX_P] = {one};
     for (size_t j = 0; j < p && j + 1 < LW_LSQ_MAX_P; j++)
         all[j + 1] = cols[j];
-    lw_status st = lw_lsq_solve(all, p + 1, y, n, out, err);
+    lw_status st = lw_fit_lsq_solve(all, p + 1, y, n, out, err);
     free(one);
     return st;
 }
@@ -214,7 +214,7 @@ lw_status lw_fit_led_shockley(const double *i_a, const double *v, size_t n, doub
                             "follow a diode law",
                             nvt);
     out->junction_c = junction_c;
-    out->ideality = nvt / lw_thermal_voltage(junction_c);
+    out->ideality = nvt / lw_led_thermal_voltage(junction_c);
     out->saturation_a = exp(-out->lsq.coef[0] / nvt);
     out->series_ohm = out->lsq.coef[2];
     current_range(i_a, n, out);

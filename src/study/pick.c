@@ -1,17 +1,18 @@
 /*
  * pick.c - choosing the series resistor (see pick.h).
  */
-#include "pick.h"
+#include "lampwick/pick.h"
+#include "lampwick/text.h"
 
 #include <math.h>
 #include <string.h>
-#include "batch.h"
-#include "eseries.h"
+#include "lampwick/batch.h"
+#include "lampwick/eseries.h"
 
 void lw_pick_clear(lw_pick *pick)
 {
     if (pick)
-        lw_result_clear(&pick->run);
+        lw_run_result_clear(&pick->run);
 }
 
 lw_status lw_pick_resistor(const lw_profile *prof, lw_target_kind kind, double target,
@@ -20,7 +21,7 @@ lw_status lw_pick_resistor(const lw_profile *prof, lw_target_kind kind, double t
     memset(out, 0, sizeof *out);
     out->recommended_rating_w = NAN;
     out->eseries = eseries;
-    lw_strlcpy(out->cell, prof->light.pack.cell.name, sizeof out->cell);
+    lw_text_copy(out->cell, prof->light.pack.cell.name, sizeof out->cell);
     if (prof->light.drive.type != LW_DRIVE_RESISTOR)
         return lw_error_set(err, LW_EINPUT, prof->path, 0,
                             "pick chooses a series resistor: the profile's drive.type must be "
@@ -61,7 +62,7 @@ lw_status lw_pick_resistor(const lw_profile *prof, lw_target_kind kind, double t
     out->resistor_ohm = r;
     light.drive.resistor_ohm = r;
     lw_point worst;
-    st = lw_worst_case(&light, &worst, err);
+    st = lw_run_worst_case(&light, &worst, err);
     if (st != LW_OK)
         return st;
     out->recommended_rating_w = lw_resistor_rating_w(worst.p_res_peak_w);
@@ -71,7 +72,7 @@ lw_status lw_pick_resistor(const lw_profile *prof, lw_target_kind kind, double t
     lw_run_options opt = lw_run_options_default();
     st = lw_run(&light, &opt, &out->run, err);
     if (st == LW_OK)
-        st = lw_corners(&light, &out->run, out->corners, err);
+        st = lw_corner_compute(&light, &out->run, out->corners, err);
     if (st != LW_OK)
         return st;
     const lw_point *nom = &out->corners[LW_CORNER_NOMINAL].pt;
@@ -107,7 +108,7 @@ lw_status lw_pick_cells(const lw_profile *prof, const char *const *cells, lw_tar
             return st;
         }
         status[i] = lw_pick_resistor(&p, kind, target, eseries, &out[i], &errs[i]);
-        lw_strlcpy(out[i].cell, cells[i], sizeof out[i].cell);
+        lw_text_copy(out[i].cell, cells[i], sizeof out[i].cell);
         lw_profile_clear(&p);
         if (status[i] != LW_OK && status[i] != LW_ENOANSWER) {
             if (err && err->code == LW_OK)
@@ -122,7 +123,7 @@ lw_status lw_pick_cells(const lw_profile *prof, const char *const *cells, lw_tar
 
 /* The corner table of one pick: current, output, dissipation and the
  * margin to each rating at every corner. */
-static lw_status corner_table(const lw_pick *pk, lw_format fmt, lw_rtable **out, lw_error *err)
+static lw_status corner_table(const lw_pick *pk, lw_rtable_format fmt, lw_rtable **out, lw_error *err)
 {
     static const char *const head[] = {"corner",     "led_ma",         "flux_lm",
                                        "resistor_w", "led_margin_pct", "resistor_margin_pct"};
@@ -168,7 +169,7 @@ static lw_status pick_text(FILE *fp, const lw_profile *prof, const lw_pick *pk,
                            lw_target_kind kind, double target, lw_error *err)
 {
     char rt[64];
-    lw_format_hours(pk->run.runtime_h, rt, sizeof rt);
+    lw_report_hours(pk->run.runtime_h, rt, sizeof rt);
     fprintf(fp, "%s, %s: series resistor for %g %s, E%d parts +-%g %%\n", prof->light.name,
             pk->cell, kind == LW_TARGET_CURRENT ? target * 1e3 : target,
             kind == LW_TARGET_CURRENT ? "mA per string" : "lm", pk->eseries, pk->tolerance_pct);
@@ -186,7 +187,7 @@ static lw_status pick_text(FILE *fp, const lw_profile *prof, const lw_pick *pk,
     const lw_corner *hot = &pk->corners[LW_CORNER_HOT], *cold = &pk->corners[LW_CORNER_COLD];
     fprintf(fp, "\n  margins to the LED's max_current_ma %.4g mA and to the recommended rating\n",
             pk->max_led_a * 1e3);
-    fprintf(fp, "  runtime to cutoff    %s (%s)\n", rt, lw_end_reason_names[pk->run.end_reason]);
+    fprintf(fp, "  runtime to cutoff    %s (%s)\n", rt, lw_run_end_names[pk->run.end_reason]);
     if (isfinite(pk->recommended_rating_w))
         fprintf(fp, "\nRecommendation: %g ohm, E%d +-%g %%, rated %g W (at least twice the "
                     "worst-case %.3g W)\n",
@@ -216,7 +217,7 @@ static lw_status pick_text(FILE *fp, const lw_profile *prof, const lw_pick *pk,
 }
 
 lw_status lw_pick_report(FILE *fp, const lw_profile *prof, const lw_pick *picks, size_t n,
-                         lw_target_kind kind, double target, lw_format fmt, lw_error *err)
+                         lw_target_kind kind, double target, lw_rtable_format fmt, lw_error *err)
 {
     lw_status st = LW_OK;
     if (fmt == LW_FMT_TEXT) {
@@ -226,7 +227,7 @@ lw_status lw_pick_report(FILE *fp, const lw_profile *prof, const lw_pick *picks,
             st = pick_text(fp, prof, &picks[i], kind, target, err);
         }
         if (st == LW_OK)
-            fprintf(fp, "%s\n", lw_caution_line);
+            fprintf(fp, "%s\n", lw_report_caution);
         return st == LW_OK && ferror(fp) ? lw_error_set(err, LW_EIO, NULL, 0, "write error")
                                          : st;
     }
@@ -267,14 +268,14 @@ lw_status lw_pick_report(FILE *fp, const lw_profile *prof, const lw_pick *picks,
         for (size_t k = 0; k < sizeof v / sizeof v[0] && st == LW_OK; k++)
             st = lw_rtable_num(t, row, 3 + k, v[k], 6, err);
         if (st == LW_OK)
-            st = lw_rtable_set(t, row, nh - 3, lw_end_reason_names[pk->run.end_reason], err);
+            st = lw_rtable_set(t, row, nh - 3, lw_run_end_names[pk->run.end_reason], err);
         if (st == LW_OK)
             st = lw_rtable_set(t, row, nh - 2, pk->meets_target ? "yes" : "no", err);
         if (st == LW_OK)
             st = lw_rtable_set(t, row, nh - 1, pk->within_ratings ? "yes" : "no", err);
     }
     if (st == LW_OK && fmt == LW_FMT_MD)
-        st = lw_rtable_note(t, lw_caution_line, err);
+        st = lw_rtable_note(t, lw_report_caution, err);
     if (st == LW_OK)
         st = lw_rtable_write(t, fp, fmt, err);
     lw_rtable_free(t);

@@ -1,12 +1,12 @@
 /*
  * resistor.c - the series resistor as a part (see resistor.h).
  */
-#include "resistor.h"
+#include "lampwick/resistor.h"
 
 #include <math.h>
-#include "engine.h"
-#include "eseries.h"
-#include "roots.h"
+#include "lampwick/engine.h"
+#include "lampwick/eseries.h"
+#include "lampwick/roots.h"
 
 const double lw_resistor_ratings_w[] = {0.063, 0.1, 0.125, 0.25, 0.333, 0.5, 0.75,
                                         1.0,   2.0, 3.0,   5.0,  10.0};
@@ -34,7 +34,7 @@ lw_status lw_resistor_point(const lw_light *light, double r_ohm, bool worst, lw_
 {
     lw_light w = *light; /* shallow: tables borrowed, never freed here */
     w.drive.resistor_ohm = r_ohm;
-    return worst ? lw_worst_case(&w, pt, err) : lw_light_point(&w, 0.0, false, pt, err);
+    return worst ? lw_run_worst_case(&w, pt, err) : lw_light_point(&w, 0.0, false, pt, err);
 }
 
 typedef struct search {

@@ -1,17 +1,18 @@
 /*
  * size.c - sizing the pack (see size.h).
  */
-#include "size.h"
+#include "lampwick/size.h"
+#include "lampwick/text.h"
 
 #include <math.h>
 #include <stdio.h>
 #include <stdlib.h>
 #include <string.h>
-#include "batch.h"
-#include "eseries.h"
-#include "pool.h"
-#include "resistor.h"
-#include "alloc.h"
+#include "lampwick/batch.h"
+#include "lampwick/eseries.h"
+#include "lampwick/pool.h"
+#include "lampwick/resistor.h"
+#include "lampwick/alloc.h"
 
 typedef struct size_job {
     const lw_profile *prof;
@@ -76,7 +77,7 @@ static lw_status floor_runtime(const lw_light *l, const double *cand, size_t i, 
         return st;
     st = run_with(l, cand[i], res, err);
     if (st == LW_OK)
-        *t_h = lw_end_is_dark(res->end_reason) ? 0.0 : res->runtime_h;
+        *t_h = lw_run_end_is_dark(res->end_reason) ? 0.0 : res->runtime_h;
     return st;
 }
 
@@ -109,8 +110,8 @@ static lw_status best_for_floor(const size_job *j, const lw_light *l, double r_s
         st = floor_runtime(l, cand, m1, max_w, &r1, &t1, err);
         if (st == LW_OK)
             st = floor_runtime(l, cand, m2, max_w, &r2, &t2, err);
-        lw_result_clear(&r1);
-        lw_result_clear(&r2);
+        lw_run_result_clear(&r1);
+        lw_run_result_clear(&r2);
         if (st != LW_OK)
             break;
         if (t1 >= t2)
@@ -135,7 +136,7 @@ static lw_status best_for_floor(const size_job *j, const lw_light *l, double r_s
 
 static void fill_from_run(lw_size_row *row, const lw_result *res, const lw_size_options *opt)
 {
-    bool dark = lw_end_is_dark(res->end_reason);
+    bool dark = lw_run_end_is_dark(res->end_reason);
     row->end_reason = res->end_reason;
     row->warnings = res->warnings;
     row->runtime_h = dark ? 0.0 : res->runtime_h;
@@ -155,7 +156,7 @@ static lw_status size_one(const size_job *j, size_t idx, lw_size_row *row, bool 
     memset(row, 0, sizeof *row);
     row->resistor_ohm = row->worst_resistor_w = row->rating_w = row->flux_30s_lm = NAN;
     *keep = false;
-    lw_strlcpy(row->cell, cell, sizeof row->cell);
+    lw_text_copy(row->cell, cell, sizeof row->cell);
     row->series = s;
     row->parallel = p;
     lw_case variant = {0};
@@ -213,7 +214,7 @@ static lw_status size_one(const size_job *j, size_t idx, lw_size_row *row, bool 
             *keep = true;
         }
     }
-    lw_result_clear(&res);
+    lw_run_result_clear(&res);
     lw_profile_clear(&prof);
     return st;
 }
@@ -280,7 +281,7 @@ lw_status lw_size_packs(const lw_profile *prof, const lw_size_options *opt, lw_s
         return lw_error_set(err, LW_ENOMEM, NULL, 0, "out of memory");
     }
     struct size_task_ctx ctx = {&j, keep};
-    lw_parallel_for(n, opt->threads, size_task, &ctx, NULL, NULL);
+    lw_pool_for(n, opt->threads, size_task, &ctx, NULL, NULL);
     size_t kept = 0;
     for (size_t i = 0; i < n; i++) {
         if (j.status[i] != LW_OK && st == LW_OK) {
@@ -312,7 +313,7 @@ enum {
 };
 
 lw_status lw_size_table(const lw_profile *prof, const lw_size_options *opt,
-                        const lw_size_row *rows, size_t show, bool fits, lw_format fmt,
+                        const lw_size_row *rows, size_t show, bool fits, lw_rtable_format fmt,
                         lw_rtable **out, lw_error *err)
 {
     static const char *const head[ZC_COUNT] = {
@@ -343,7 +344,7 @@ lw_status lw_size_table(const lw_profile *prof, const lw_size_options *opt,
             st = lw_rtable_num(t, r, k, v[k], sig[k], err);
         char warn[512] = "";
         if (fmt == LW_FMT_CSV) {
-            lw_warnings_text(w->warnings, warn, sizeof warn);
+            lw_report_warnings(w->warnings, warn, sizeof warn);
         } else {
             for (int b = 0; b < LW_WARN_COUNT_; b++)
                 if (w->warnings & (1u << b)) {
@@ -355,7 +356,7 @@ lw_status lw_size_table(const lw_profile *prof, const lw_size_options *opt,
         if (st == LW_OK)
             st = lw_rtable_set(t, r, ZC_CELL, w->cell, err);
         if (st == LW_OK)
-            st = lw_rtable_set(t, r, ZC_END, lw_end_reason_names[w->end_reason], err);
+            st = lw_rtable_set(t, r, ZC_END, lw_run_end_names[w->end_reason], err);
         if (st == LW_OK)
             st = lw_rtable_set(t, r, ZC_WARN, warn, err);
     }
@@ -387,13 +388,13 @@ lw_status lw_size_table(const lw_profile *prof, const lw_size_options *opt,
         }
         for (int b = 0; b < LW_WARN_COUNT_ && st == LW_OK; b++)
             if (used & (1u << b)) {
-                snprintf(note, sizeof note, "(%c) %s.", 'a' + b, lw_warning_text(b));
+                snprintf(note, sizeof note, "(%c) %s.", 'a' + b, lw_report_warning(b));
                 st = lw_rtable_note(t, note, err);
             }
         if (st == LW_OK && !fits)
             st = lw_rtable_note(t, "Nothing fits; the row above is what came closest.", err);
         if (st == LW_OK)
-            st = lw_rtable_note(t, lw_caution_line, err);
+            st = lw_rtable_note(t, lw_report_caution, err);
     }
     if (st != LW_OK) {
         lw_rtable_free(t);

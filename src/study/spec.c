@@ -1,14 +1,14 @@
 /*
  * spec.c - the runtime table of a product specification (see spec.h).
  */
-#include "spec.h"
+#include "lampwick/spec.h"
 
 #include <math.h>
 #include <stdio.h>
 #include <stdlib.h>
 #include <string.h>
-#include "photometry.h"
-#include "alloc.h"
+#include "lampwick/photometry.h"
+#include "lampwick/alloc.h"
 
 /* ---- the runs ---- */
 
@@ -273,7 +273,7 @@ static lw_status spec_notes(const lw_spec *s, unsigned used, lw_rtable *t, lw_er
                  "%s: %d cell%s (%d in series, %d in parallel), %s, typical data; end point "
                  "%.3g V per cell.",
                  cl->pack.cell.name, cells, cells == 1 ? "" : "s", cl->pack.series,
-                 cl->pack.parallel, lw_chemistry_names[cl->pack.cell.chemistry],
+                 cl->pack.parallel, lw_cell_chemistry_names[cl->pack.cell.chemistry],
                  cl->cutoff.cell_v);
         st = lw_rtable_note(t, buf, err);
     }
@@ -293,7 +293,7 @@ static lw_status spec_notes(const lw_spec *s, unsigned used, lw_rtable *t, lw_er
     for (int i = 0; i < LW_WARN_COUNT_ && st == LW_OK; i++) {
         if (!(used & (1u << i)))
             continue;
-        snprintf(buf, sizeof buf, "(%c) %s.", marker(i), lw_warning_text(i));
+        snprintf(buf, sizeof buf, "(%c) %s.", marker(i), lw_report_warning(i));
         st = lw_rtable_note(t, buf, err);
     }
     if (st == LW_OK && (used & (1u << LW_WARN_COUNT_)))
@@ -308,7 +308,7 @@ static lw_status spec_notes(const lw_spec *s, unsigned used, lw_rtable *t, lw_er
                             "whole hours above; distance in whole metres.",
                             err);
     if (st == LW_OK)
-        st = lw_rtable_note(t, lw_caution_line, err);
+        st = lw_rtable_note(t, lw_report_caution, err);
     return st;
 }
 
@@ -326,17 +326,17 @@ static double peak_cd(const lw_profile *p, double flux_lm)
 }
 
 /* The text of one table cell of quantity `kind` for run k. */
-static lw_status spec_cell(const lw_spec *s, const lw_case *k, int kind, lw_format fmt,
+static lw_status spec_cell(const lw_spec *s, const lw_case *k, int kind, lw_rtable_format fmt,
                            lw_rtable *t, size_t row, size_t col, lw_error *err)
 {
     const lw_result *res = &k->res;
-    bool dark = lw_end_is_dark(res->end_reason);
+    bool dark = lw_run_end_is_dark(res->end_reason);
     char buf[512];
     if (kind == SC_END)
-        return lw_rtable_set(t, row, col, lw_end_reason_names[res->end_reason], err);
+        return lw_rtable_set(t, row, col, lw_run_end_names[res->end_reason], err);
     if (kind == SC_NOTES) {
         if (fmt == LW_FMT_CSV) {
-            lw_warnings_text(res->warnings, buf, sizeof buf);
+            lw_report_warnings(res->warnings, buf, sizeof buf);
         } else {
             /* "empty-at-start", "(a,c)", or both */
             char marks[2 * LW_WARN_COUNT_ + 1] = "";
@@ -348,7 +348,7 @@ static lw_status spec_cell(const lw_spec *s, const lw_case *k, int kind, lw_form
                         marks[++m] = marker(i);
                     marks[m + 1] = '\0';
                 }
-            snprintf(buf, sizeof buf, "%s%s%s%s%s", dark ? lw_end_reason_names[res->end_reason] : "",
+            snprintf(buf, sizeof buf, "%s%s%s%s%s", dark ? lw_run_end_names[res->end_reason] : "",
                      dark && marks[0] ? " " : "", marks[0] ? "(" : "", marks,
                      marks[0] ? ")" : "");
         }
@@ -371,7 +371,7 @@ static lw_status spec_cell(const lw_spec *s, const lw_case *k, int kind, lw_form
     return lw_rtable_set(t, row, col, buf, err);
 }
 
-lw_status lw_spec_render(const lw_spec *s, lw_format fmt, lw_rtable **out, lw_error *err)
+lw_status lw_spec_render(const lw_spec *s, lw_rtable_format fmt, lw_rtable **out, lw_error *err)
 {
     static const char *const csv_names[SC_COUNT] = {
         "flux_lm", "runtime_h", "half_h", "regulated_h", "peak_cd", "beam_m", "end_reason",
@@ -383,7 +383,7 @@ lw_status lw_spec_render(const lw_spec *s, lw_format fmt, lw_rtable **out, lw_er
     unsigned used = 0;
     for (size_t i = 0; i < s->nrows * s->ncells; i++) {
         used |= s->cases[i].res.warnings & ~(unsigned)LW_WARN_NEVER_LIT;
-        if (lw_end_is_dark(s->cases[i].res.end_reason))
+        if (lw_run_end_is_dark(s->cases[i].res.end_reason))
             used |= 1u << LW_WARN_COUNT_;
     }
     int kinds[SC_COUNT];
@@ -442,7 +442,7 @@ lw_status lw_spec_render(const lw_spec *s, lw_format fmt, lw_rtable **out, lw_er
     return LW_OK;
 }
 
-lw_status lw_spec_table(const lw_profile *prof, const char *const *cells, lw_format fmt,
+lw_status lw_spec_table(const lw_profile *prof, const char *const *cells, lw_rtable_format fmt,
                         int threads, lw_rtable **out, lw_error *err)
 {
     lw_spec s;

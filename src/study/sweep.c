@@ -1,14 +1,16 @@
 /*
  * sweep.c - --vary parsing and grids of runs (see sweep.h).
  */
-#include "sweep.h"
+#include "lampwick/sweep.h"
+#include "lampwick/text.h"
+#include "lampwick/number.h"
 
 #include <math.h>
 #include <stdio.h>
 #include <stdlib.h>
 #include <string.h>
-#include "eseries.h"
-#include "alloc.h"
+#include "lampwick/eseries.h"
+#include "lampwick/alloc.h"
 
 const char *const lw_vary_forms =
     "a list (22,33,47; 2.2k, 4k7, 1M accepted), a range (1..4 or 1..4:0.5), a preferred-value "
@@ -34,7 +36,7 @@ static lw_status push(lw_vary *v, size_t *cap, const char *text, lw_error *err)
         v->values = p;
         *cap = nc;
     }
-    lw_strlcpy(v->values[v->n++], text, LW_CASE_VALUE_MAX);
+    lw_text_copy(v->values[v->n++], text, LW_CASE_VALUE_MAX);
     return LW_OK;
 }
 
@@ -49,7 +51,7 @@ static lw_status push_num(lw_vary *v, size_t *cap, double x, lw_error *err)
  * or resistor code. */
 static bool parse_num(const char *s, double *out)
 {
-    return lw_parse_number(s, out);
+    return lw_number_parse(s, out);
 }
 
 /* "FROM..TO[:STEP]"; *step points at STEP or is NULL. */
@@ -128,8 +130,8 @@ static lw_status parse_values(const char *arg, const char *vals, bool numeric, c
             lw_search_add(&s, dir);
         for (size_t i = 0; search && i < search->n; i++)
             lw_search_add(&s, search->dirs[i]);
-        lw_cell_list list;
-        lw_status st = lw_cell_list_read(&s, &list, err);
+        lw_cellfile_list list;
+        lw_status st = lw_cellfile_list_read(&s, &list, err);
         for (size_t i = 0; st == LW_OK && i < list.n; i++)
             st = push(v, &cap, list.names[i], err);
         if (st == LW_OK && list.nskipped) {
@@ -142,7 +144,7 @@ static lw_status parse_values(const char *arg, const char *vals, bool numeric, c
                 strncat(v->note, list.skipped[i], sizeof v->note - strlen(v->note) - 1);
             }
         }
-        lw_cell_list_clear(&list);
+        lw_cellfile_list_clear(&list);
         if (st == LW_OK && v->n == 0)
             return vary_error(arg, "no cell files found", err);
         return st;
@@ -224,7 +226,7 @@ lw_status lw_vary_parse(const char *arg, const lw_profile *prof, lw_vary *v, lw_
                               err);
         memcpy(section, v->key, (size_t)(dot - v->key));
         section[dot - v->key] = '\0';
-        lw_strlcpy(key, dot + 1, sizeof key);
+        lw_text_copy(key, dot + 1, sizeof key);
         const lw_keydef *d = lw_key_find(lw_profile_keys, lw_profile_nkeys, section, key);
         if (!d)
             return lw_key_unknown(lw_profile_keys, lw_profile_nkeys, section, key, "--vary", 0,
@@ -261,7 +263,7 @@ void lw_vary_clear(lw_vary *v)
 }
 
 lw_status lw_sweep_run(const lw_profile *base, const lw_vary *vary, size_t nvary, int threads,
-                       lw_progress_fn progress, void *progress_ctx, lw_sweep *sw, lw_error *err)
+                       lw_pool_progress_fn progress, void *progress_ctx, lw_sweep *sw, lw_error *err)
 {
     memset(sw, 0, sizeof *sw);
     sw->vary = vary;
@@ -333,17 +335,17 @@ static const char *const sweep_text_cols[] = {
 /* At most this many --columns entries. */
 #define SWEEP_COLUMNS_MAX 64
 
-static lw_status sweep_columns(const char *list, lw_format fmt, size_t *cols, size_t *n,
+static lw_status sweep_columns(const char *list, lw_rtable_format fmt, size_t *cols, size_t *n,
                                lw_error *err)
 {
     *n = 0;
     if (!list) {
         size_t k = fmt == LW_FMT_TEXT ? sizeof sweep_text_cols / sizeof sweep_text_cols[0]
-                                      : lw_run_ncolumns;
+                                      : lw_report_run_ncolumns;
         for (size_t i = 0; i < k; i++) {
             size_t c = i;
             if (fmt == LW_FMT_TEXT)
-                for (c = 0; strcmp(lw_run_columns[c], sweep_text_cols[i]) != 0; c++)
+                for (c = 0; strcmp(lw_report_run_columns[c], sweep_text_cols[i]) != 0; c++)
                     ;
             cols[(*n)++] = c;
         }
@@ -353,14 +355,14 @@ static lw_status sweep_columns(const char *list, lw_format fmt, size_t *cols, si
         const char *comma = strchr(p, ',');
         size_t len = comma ? (size_t)(comma - p) : strlen(p);
         size_t i = 0;
-        while (i < lw_run_ncolumns &&
-               (strlen(lw_run_columns[i]) != len || strncmp(lw_run_columns[i], p, len) != 0))
+        while (i < lw_report_run_ncolumns &&
+               (strlen(lw_report_run_columns[i]) != len || strncmp(lw_report_run_columns[i], p, len) != 0))
             i++;
-        if (i == lw_run_ncolumns) {
+        if (i == lw_report_run_ncolumns) {
             char known[1024] = "";
-            for (size_t k = 0; k < lw_run_ncolumns; k++) {
+            for (size_t k = 0; k < lw_report_run_ncolumns; k++) {
                 strncat(known, k ? ", " : "", sizeof known - strlen(known) - 1);
-                strncat(known, lw_run_columns[k], sizeof known - strlen(known) - 1);
+                strncat(known, lw_report_run_columns[k], sizeof known - strlen(known) - 1);
             }
             return lw_error_set(err, LW_EINPUT, "--columns", 0,
                                 "unknown column '%.*s'; the columns are: %s", (int)len, p,
@@ -375,7 +377,7 @@ static lw_status sweep_columns(const char *list, lw_format fmt, size_t *cols, si
     return LW_OK;
 }
 
-lw_status lw_sweep_table(const lw_sweep *sw, lw_format fmt, const char *columns, lw_rtable **out,
+lw_status lw_sweep_table(const lw_sweep *sw, lw_rtable_format fmt, const char *columns, lw_rtable **out,
                          lw_error *err)
 {
     size_t cols[SWEEP_COLUMNS_MAX];
@@ -386,7 +388,7 @@ lw_status lw_sweep_table(const lw_sweep *sw, lw_format fmt, const char *columns,
         return st;
     size_t nk = sw->nvary;
     lw_rtable *t = lw_rtable_new(nk + ncols, err);
-    lw_rtable *full = t ? lw_rtable_new(lw_run_ncolumns, err) : NULL;
+    lw_rtable *full = t ? lw_rtable_new(lw_report_run_ncolumns, err) : NULL;
     if (!t || !full) {
         lw_rtable_free(t);
         return LW_ENOMEM;
@@ -394,7 +396,7 @@ lw_status lw_sweep_table(const lw_sweep *sw, lw_format fmt, const char *columns,
     for (size_t k = 0; k < nk && st == LW_OK; k++)
         st = lw_rtable_head(t, k, sw->vary[k].key, err);
     for (size_t c = 0; c < ncols && st == LW_OK; c++)
-        st = lw_rtable_head(t, nk + c, lw_run_columns[cols[c]], err);
+        st = lw_rtable_head(t, nk + c, lw_report_run_columns[cols[c]], err);
     size_t frow = 0;
     if (st == LW_OK)
         st = lw_rtable_add_row(full, &frow, err);
@@ -410,7 +412,7 @@ lw_status lw_sweep_table(const lw_sweep *sw, lw_format fmt, const char *columns,
     }
     lw_rtable_free(full);
     if (st == LW_OK && fmt != LW_FMT_CSV)
-        st = lw_rtable_note(t, lw_caution_line, err);
+        st = lw_rtable_note(t, lw_report_caution, err);
     if (st != LW_OK) {
         lw_rtable_free(t);
         return st;

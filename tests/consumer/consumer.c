@@ -26,8 +26,8 @@ int main(int argc, char **argv)
     lw_status st = lw_run(&prof.light, &opt, &res, &err);
     if (st == LW_OK)
         printf("%s: %.2f h to %s\n", prof.light.name, res.runtime_h,
-               lw_end_reason_names[res.end_reason]);
-    lw_result_clear(&res);
+               lw_run_end_names[res.end_reason]);
+    lw_run_result_clear(&res);
     lw_profile_clear(&prof);
     return st == LW_OK && res.runtime_h > 0 ? 0 : 1;
 }

@@ -16,7 +16,7 @@
 #include <sys/stat.h>
 #include <unistd.h>
 #include "cli.h"
-#include "lampwick.h"
+#include <lampwick/lampwick.h>
 
 #ifndef LW_SOURCE_ROOT
 #define LW_SOURCE_ROOT "."
@@ -97,7 +97,7 @@ static void exercise(lw_profile *p)
             }
             fclose(sink);
         }
-        lw_result_clear(&r);
+        lw_run_result_clear(&r);
     }
     if (lw_profile_mode_count(p) <= 8) {
         lw_rtable *t;
@@ -138,7 +138,7 @@ int fuzz_cell(const uint8_t *data, size_t size)
     lw_error_clear(&e);
     char path[256];
     snprintf(path, sizeof path, "%s/c.ini", dir);
-    if (lw_cell_load(path, &c, &e) == LW_OK) {
+    if (lw_cellfile_load(path, &c, &e) == LW_OK) {
         lw_cell_clear(&c);
         lw_profile p;
         snprintf(path, sizeof path, "%s/p.ini", dir);
@@ -160,14 +160,14 @@ int fuzz_csv(const uint8_t *data, size_t size)
     lw_error e;
     lw_error_clear(&e);
     if (kind == 5) { /* a discharge log, fitted */
-        lw_dlog log;
-        if (lw_dlog_read(put("log.csv", data, size), 3.9, 0, &log, &e) == LW_OK) {
+        lw_cellfit_log log;
+        if (lw_cellfit_log_read(put("log.csv", data, size), 3.9, 0, &log, &e) == LW_OK) {
             lw_cellfit_options opt = {.cutoff_v = 1.0, .resistance_ohm = 0.05,
                                       .tolerance_v = 0.005, .nominal_v = NAN};
             lw_cellfit fit;
-            if (lw_fit_cell(&log, 1, &opt, &fit, &e) == LW_OK)
+            if (lw_cellfit_fit(&log, 1, &opt, &fit, &e) == LW_OK)
                 lw_cell_clear(&fit.cell);
-            lw_dlog_clear(&log);
+            lw_cellfit_log_clear(&log);
         }
         return 0;
     }
@@ -360,7 +360,7 @@ int fuzz_writers(const uint8_t *data, size_t size)
         lw_rtable_note(t, texts[nt - 1], &e);
         lw_rtable_set_title(t, texts[0], &e);
         for (int f = 0; f < 3; f++)
-            lw_rtable_write(t, sink, (lw_format)f, &e);
+            lw_rtable_write(t, sink, (lw_rtable_format)f, &e);
         lw_rtable_free(t);
     }
     double x[4] = {nums[2], nums[3], 1, 2}, y[4] = {nums[4], nums[5], 3, 4};
@@ -379,7 +379,7 @@ int fuzz_writers(const uint8_t *data, size_t size)
     /* a cell named by the input: written only if it reads back exactly */
     lw_cell cell;
     memset(&cell, 0, sizeof cell);
-    lw_strlcpy(cell.name, texts[0], sizeof cell.name);
+    lw_text_copy(cell.name, texts[0], sizeof cell.name);
     const double d[] = {0, 1}, v[] = {1.4, 0.9}, r[] = {0.03, 0.1};
     cell.ocv = lw_interp_new(d, v, 2, &e);
     cell.res = lw_interp_new(d, r, 2, &e);
@@ -392,10 +392,10 @@ int fuzz_writers(const uint8_t *data, size_t size)
     char path[256];
     snprintf(path, sizeof path, "%s/w.ini", dir);
     lw_error_clear(&e);
-    if (cell.ocv && cell.res && lw_cell_save(path, &cell, texts[nt - 1], &e) == LW_OK) {
+    if (cell.ocv && cell.res && lw_cellfile_save(path, &cell, texts[nt - 1], &e) == LW_OK) {
         lw_cell back;
         lw_error_clear(&e);
-        if (lw_cell_load(path, &back, &e) != LW_OK || strcmp(back.name, cell.name) != 0)
+        if (lw_cellfile_load(path, &back, &e) != LW_OK || strcmp(back.name, cell.name) != 0)
             abort(); /* what is written must read back exactly */
         lw_cell_clear(&back);
     }

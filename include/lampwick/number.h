@@ -1,0 +1,34 @@
+/*
+ * number.h - lampwick's number grammar, the same in files, --set and
+ * --vary, and the shortest text that reads back exactly.
+ *
+ * Owns: lw_number_parse (plain decimals and resistor codes), the strict
+ * double and integer parsers under it, and lw_number_format.  The resistor
+ * codes follow IEC 60062.
+ */
+#ifndef LW_NUMBER_H
+#define LW_NUMBER_H
+
+#include <stdbool.h>
+#include <stddef.h>
+
+/* Strict parse of a whole string as a finite double: leading/trailing blanks
+ * allowed, nothing else.  Refuses "", "4.7x", "1,2", "nan", "inf".
+ * Writes *out only on success. */
+bool lw_number_parse_double(const char *s, double *out);
+
+/* lampwick's number grammar, the same in files, --set and --vary: a plain
+ * number as lw_number_parse_double, or a non-negative value with a resistor-code
+ * or SI letter (IEC 60062 style): "2.2k", "1M", "4k7", "4R7", "0R22"
+ * (R = 1, k = 1e3, M = 1e6).  Writes *out only on success. */
+bool lw_number_parse(const char *s, double *out);
+
+/* Strict parse of a whole string as a decimal integer in [INT_MIN, INT_MAX]. */
+bool lw_number_parse_int(const char *s, int *out);
+
+/* The shortest decimal text that reads back as exactly v (at most 17
+ * significant digits, "%g" style); "" for a non-finite v.  buf needs 32
+ * bytes. */
+void lw_number_format(char *buf, size_t size, double v);
+
+#endif
