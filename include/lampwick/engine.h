@@ -1,8 +1,9 @@
 /*
  * engine.h - the discharge engine: integrate a light's run in depth of
- * discharge, locate its end exactly, and keep the energy ledger and trace.
+ * discharge, locate its end exactly, and keep the energy ledger (and the
+ * pieces a trace is built from, trace.h).
  *
- * Owns: lw_run_options, lw_result, lw_trace and lw_run().
+ * Owns: lw_run_options, lw_result and lw_run().
  *
  * Method (docs/model.md): with d the depth of discharge of each cell,
  * dd/dt = Ic/C_eff(Ic) + lambda (1 - d) (cell.h), so t(d) is the integral of
@@ -27,7 +28,7 @@
 #define LW_ENGINE_H
 
 #include <stddef.h>
-#include "drive.h"
+#include "light.h"
 
 typedef enum lw_end_reason {
     LW_END_RELATIVE, LW_END_FLUX_FLOOR, LW_END_CELL_VOLTAGE, LW_END_CAPACITY, LW_END_NEVER_LIT,
@@ -155,23 +156,10 @@ void lw_run_result_clear(lw_result *res);
  * LED forward voltage at minus its spread.  Fills *pt. */
 lw_status lw_run_worst_case(const lw_light *light, lw_point *pt, lw_error *err);
 
-/* One row of a trace. */
-typedef struct lw_trace_row {
-    double t_h;
-    lw_point pt;
-    double pct_of_ref;     /* light output in % of the 30-s output */
-} lw_trace_row;
-
-typedef struct lw_trace {
-    lw_trace_row *rows;
-    size_t n;
-} lw_trace;
-
-/* Build a trace from a result run with want_trace: points dense where the
- * output bends, at least min_rows, ending exactly at the end of the run.
- * Free with lw_trace_clear. */
-lw_status lw_trace_build(const lw_light *light, const lw_result *res, size_t min_rows,
-                         lw_trace *trace, lw_error *err);
-void lw_trace_clear(lw_trace *trace);
+/* Hours to discharge from depth d0 to d1 (d0 < d1 within one interval of
+ * the cell curve) at the light's operating points, by the run's own
+ * Gauss-Kronrod rule; `fallback` selects the converter's fallback level. */
+lw_status lw_run_hours_between(const lw_light *light, bool fallback, double d0, double d1,
+                               double *hours, lw_error *err);
 
 #endif

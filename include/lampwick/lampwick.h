@@ -11,7 +11,8 @@
  *   roots.h     Brent's root finder, Wright omega function
  *   cell.h      cell model (OCV and R against depth, Peukert's law, temperature)
  *   led.h       LED I-V models and flux
- *   drive.h     drive circuits, the light, the operating point
+ *   drive.h     the drive elements and their laws
+ *   light.h     the whole light and its operating point
  *   engine.h    the discharge run, energy ledger, trace
  *   inifile.h   INI reading and key schemas
  *   cellfile.h  cell files and the cell search path
@@ -49,7 +50,9 @@
 #include "cell.h"
 #include "led.h"
 #include "drive.h"
+#include "light.h"
 #include "engine.h"
+#include "trace.h"
 #include "inifile.h"
 #include "cellfile.h"
 #include "profile.h"

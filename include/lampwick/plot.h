@@ -12,7 +12,7 @@
 #define LW_PLOT_H
 
 #include <stdio.h>
-#include "engine.h"
+#include "trace.h"
 #include "fit.h"
 
 #define LW_PLOT_SERIES_MAX 16

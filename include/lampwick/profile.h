@@ -16,7 +16,7 @@
 #define LW_PROFILE_H
 
 #include "cellfile.h"
-#include "drive.h"
+#include "light.h"
 #include "inifile.h"
 
 #define LW_PROFILE_KEYS_MAX 64

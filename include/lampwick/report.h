@@ -11,7 +11,7 @@
 #define LW_REPORT_H
 
 #include <stdio.h>
-#include "engine.h"
+#include "trace.h"
 #include "profile.h"
 
 typedef enum lw_rtable_format { LW_FMT_TEXT, LW_FMT_CSV, LW_FMT_MD } lw_rtable_format;

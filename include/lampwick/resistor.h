@@ -13,7 +13,7 @@
 #ifndef LW_RESISTOR_H
 #define LW_RESISTOR_H
 
-#include "drive.h"
+#include "light.h"
 
 /* Standard resistor power ratings, W, ascending, and their count. */
 extern const double lw_resistor_ratings_w[];

@@ -117,7 +117,7 @@ int cli_run(int argc, char **argv)
             lw_text_copy(err.file, prof.path, sizeof err.file);
     }
     if (st == LW_OK && want_trace)
-        st = lw_trace_build(&prof.light, &res, 200, &tr, &err);
+        st = lw_trace_build(&prof.light, &res, LW_TRACE_ROWS_MIN, &tr, &err);
     if (st == LW_OK && a.trace_path)
         st = write_trace(a.trace_path, &tr, &err);
     if (st == LW_OK && a.plot_path)

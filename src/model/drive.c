@@ -1,5 +1,5 @@
 /*
- * drive.c - operating point of a light at one depth (see drive.h).
+ * drive.c - the laws of the drive elements (see drive.h).
  */
 #include "lampwick/drive.h"
 
@@ -7,31 +7,6 @@
 
 const char *const lw_drive_type_names[LW_DRIVE_TYPE_COUNT + 1] = {"resistor", "linear-cc",
                                                                    "converter", NULL};
-const char *const lw_light_reference_names[LW_REF_COUNT + 1] = {"own", "fresh", NULL};
-
-void lw_light_clear(lw_light *light)
-{
-    if (!light)
-        return;
-    lw_cell_clear(&light->pack.cell);
-    lw_led_clear(&light->led);
-    lw_interp_free(light->drive.efficiency);
-    light->drive.efficiency = NULL;
-}
-
-void lw_light_copy(lw_light *dst, const lw_light *src)
-{
-    *dst = *src;
-    lw_cell_copy(&dst->pack.cell, &src->pack.cell);
-    lw_led_copy(&dst->led, &src->led);
-    lw_interp_ref(dst->drive.efficiency);
-}
-
-void lw_light_update_factors(lw_light *light, bool *temperature_outside)
-{
-    lw_cell_temperature_factors(&light->pack.cell, light->pack.ambient_c, &light->cap_factor,
-                                &light->res_factor, temperature_outside);
-}
 
 bool lw_drive_converter_input_current(double e_v, double r_ohm, double iq_a, double p_w, double *ip_a)
 {
@@ -46,35 +21,11 @@ bool lw_drive_converter_input_current(double e_v, double r_ohm, double iq_a, dou
     return true;
 }
 
-static double efficiency_at(const lw_drive *drv, double vin)
+double lw_drive_efficiency(const lw_drive *drv, double vin)
 {
     if (drv->efficiency)
         return lw_interp_linear(drv->efficiency, vin) / 100.0;
     return drv->efficiency_pct / 100.0;
-}
-
-/* Fill the string-side quantities common to the passive and linear drives. */
-static void fill_string(const lw_light *l, lw_point *pt, double i, double v_led, double e_v,
-                        double r_pack)
-{
-    const int m = l->led.strings, n = l->led.count;
-    const double duty = l->drive.duty_pct / 100.0;
-    pt->led_a = i;
-    pt->led_v = v_led;
-    pt->pack_a = m * i;
-    pt->pack_avg_a = duty * pt->pack_a;
-    pt->cell_a = pt->pack_a / l->pack.parallel;
-    pt->pack_v = e_v - pt->pack_a * r_pack;
-    pt->cell_v = pt->ocv_v - pt->cell_a * pt->r_cell_ohm;
-    pt->p_led_w = duty * m * n * pt->led_v * i;
-    pt->p_res_peak_w = i * i * l->drive.resistor_ohm;
-    pt->p_res_w = duty * m * pt->p_res_peak_w;
-    pt->p_int_w = duty * pt->pack_a * pt->pack_a * r_pack;
-    pt->p_drawn_w = duty * e_v * pt->pack_a;
-    pt->p_drv_w = pt->p_drawn_w - pt->p_led_w - pt->p_res_w - pt->p_int_w;
-    if (l->drive.type == LW_DRIVE_RESISTOR)
-        pt->p_drv_w = 0.0; /* by Kirchhoff's law; avoids reporting rounding as a loss */
-    pt->flux_lm = duty * m * n * lw_led_flux(&l->led, i, &pt->extrapolated);
 }
 
 /* ---- a converter whose efficiency depends on its input voltage ----
@@ -184,20 +135,12 @@ static bool converter_vin_table(const lw_interp *t, double e_v, double r_ohm, do
     return false;
 }
 
-/* The converter at one point: the LEDs at the set (or fallback) current,
- * the on-state input current from the quadratic, the quiescent draw between
- * PWM pulses.  Dark (LW_REGIME_DROPOUT) when the pack cannot deliver the
- * input power, or, at the set level, when the input is below min_input_v. */
-static void point_converter(const lw_light *l, double e_v, double r_pack, bool fallback,
-                            lw_point *pt)
+lw_drive_input lw_drive_converter_input(const lw_drive *drv, double e_v, double r_pack,
+                                        double p_out)
 {
-    const lw_drive *drv = &l->drive;
-    const int m = l->led.strings, n = l->led.count;
-    const double duty = drv->duty_pct / 100.0, iq = drv->quiescent_a;
-    double i = fallback ? drv->fallback_a : drv->set_a;
-    double vled = lw_led_voltage(&l->led, i, &pt->extrapolated);
-    double p_out = m * n * vled * i; /* on-state output power */
-    double eta = efficiency_at(drv, e_v), ip = 0.0;
+    const double iq = drv->quiescent_a;
+    lw_drive_input in = {0};
+    double eta = lw_drive_efficiency(drv, e_v), ip = 0.0;
     bool ok;
     if (drv->efficiency && r_pack > 0.0) {
         /* the efficiency depends on the input voltage, which depends on
@@ -205,10 +148,10 @@ static void point_converter(const lw_light *l, double e_v, double r_pack, bool f
         double v;
         ok = converter_vin_table(drv->efficiency, e_v, r_pack, iq, p_out, &v);
         if (ok) {
-            eta = efficiency_at(drv, v);
+            eta = lw_drive_efficiency(drv, v);
             ip = (e_v - v) / r_pack;
         } else {
-            eta = efficiency_at(drv, 0.5 * (e_v - r_pack * iq)); /* at the peak of g */
+            eta = lw_drive_efficiency(drv, 0.5 * (e_v - r_pack * iq)); /* at the peak of g */
         }
     } else {
         ok = lw_drive_converter_input_current(e_v, r_pack, iq, p_out / eta, &ip);
@@ -222,113 +165,10 @@ static void point_converter(const lw_light *l, double e_v, double r_pack, bool f
     if (ok && g_disc < 0.0)
         g_disc = 0.0; /* rounding at a tangent root */
     double vin = e_v - ip * r_pack;
-    /* the event function of the dropout: negative when dark */
-    double margin = g_disc;
-    if (ok && !fallback)
-        margin = fmin(margin, (vin - drv->min_input_v) / e_v);
-    if (!ok || margin < 0.0) {
-        pt->regime = LW_REGIME_DROPOUT;
-        pt->regulation_margin = margin < 0.0 ? margin : -1e-300;
-        pt->pack_v = e_v; /* dark: no current flows */
-        pt->cell_v = pt->ocv_v;
-        pt->dtdd_h = INFINITY;
-        return;
-    }
-    pt->regime = fallback ? LW_REGIME_FALLBACK : LW_REGIME_REGULATED;
-    pt->regulation_margin = margin;
-    pt->led_a = i;
-    pt->led_v = vled;
-    pt->pack_a = ip;
-    pt->pack_avg_a = duty * ip + (1.0 - duty) * iq;
-    pt->cell_a = ip / l->pack.parallel;
-    pt->pack_v = vin;
-    pt->cell_v = pt->ocv_v - pt->cell_a * pt->r_cell_ohm;
-    pt->p_led_w = duty * p_out;
-    pt->p_res_w = pt->p_res_peak_w = 0.0;
-    /* on-state and off-state (quiescent only) loss in the cells */
-    pt->p_int_w = (duty * ip * ip + (1.0 - duty) * iq * iq) * r_pack;
-    pt->p_drawn_w = e_v * pt->pack_avg_a;
-    pt->p_drv_w = pt->p_drawn_w - pt->p_led_w - pt->p_int_w;
-    pt->flux_lm = duty * m * n * lw_led_flux(&l->led, i, &pt->extrapolated);
-}
-
-lw_status lw_light_point_at(const lw_light *l, double depth, double ocv_v, double r_cell_ohm,
-                            bool fallback, lw_point *pt, lw_error *err)
-{
-    const int s = l->pack.series, p = l->pack.parallel, m = l->led.strings;
-    *pt = (lw_point){0};
-    pt->depth = depth;
-    pt->ocv_v = ocv_v;
-    pt->r_cell_ohm = r_cell_ohm;
-    double e_v = s * ocv_v;
-    double r_pack = s * r_cell_ohm / p;         /* whole pack, as seen by its current */
-    double r_share = r_pack * m;                /* pack resistance as seen by one string */
-    double r_loop = l->drive.resistor_ohm + r_share;
-    lw_status st = LW_OK;
-    double i = 0.0, v_led = 0.0;
-    pt->regulation_margin = 1.0;
-    pt->regime = LW_REGIME_PASSIVE;
-    switch (l->drive.type) {
-    case LW_DRIVE_CONVERTER:
-        point_converter(l, e_v, r_pack, fallback, pt);
-        break;
-    case LW_DRIVE_LINEAR_CC: {
-        double set = l->drive.set_a;
-        double v_set = lw_led_voltage(&l->led, set, &pt->extrapolated);
-        double head = e_v - set * r_loop - l->led.count * v_set;
-        pt->regulation_margin = head - l->drive.dropout_v;
-        if (pt->regulation_margin >= 0.0) {
-            pt->regime = LW_REGIME_REGULATED;
-            i = set;
-            v_led = v_set;
-        } else {
-            pt->regime = LW_REGIME_SATURATED;
-            pt->extrapolated = false;
-            st = lw_led_solve_v(&l->led, e_v - l->drive.dropout_v, r_loop, &i, &v_led,
-                                &pt->extrapolated, err);
-        }
-        if (st == LW_OK)
-            fill_string(l, pt, i, v_led, e_v, r_pack);
-        break;
-    }
-    case LW_DRIVE_RESISTOR:
-    default:
-        st = lw_led_solve_v(&l->led, e_v, r_loop, &i, &v_led, &pt->extrapolated, err);
-        if (st == LW_OK)
-            fill_string(l, pt, i, v_led, e_v, r_pack);
-        break;
-    }
-    if (st != LW_OK)
-        return st;
-    if (pt->regime != LW_REGIME_DROPOUT) {
-        double ic_avg = pt->pack_avg_a / p;
-        /* discharge by the current plus self-discharge of the charge left */
-        double rate = lw_cell_self_discharge_per_h(&l->pack.cell) * (1.0 - depth);
-        if (ic_avg > 0.0)
-            rate += ic_avg / lw_cell_capacity_ah(&l->pack.cell, ic_avg, l->cap_factor);
-        pt->dtdd_h = rate > 0.0 ? 1.0 / rate : INFINITY;
-    }
-    return LW_OK;
-}
-
-lw_status lw_light_point(const lw_light *light, double depth, bool fallback, lw_point *pt,
-                         lw_error *err)
-{
-    const lw_cell *c = &light->pack.cell;
-    double ocv = lw_interp_linear(c->ocv, depth);
-    double r = lw_interp_linear(c->res, depth) * light->res_factor;
-    return lw_light_point_at(light, depth, ocv, r, fallback, pt, err);
-}
-
-double lw_light_stored_depth(const lw_light *l)
-{
-    double m = l->pack.stored_months;
-    if (!(m > 0))
-        return 0.0;
-    const lw_cell *c = &l->pack.cell;
-    double kept = exp(-lw_cell_self_discharge_per_h(c) * m * LW_HOURS_PER_MONTH);
-    double cap_ah = c->capacity_ah * l->cap_factor * l->pack.parallel;
-    double drained = cap_ah > 0 ? l->drive.standby_a * m * LW_HOURS_PER_MONTH / cap_ah : 0.0;
-    double d = 1.0 - kept + drained;
-    return d < 0.0 ? 0.0 : (d > 1.0 ? 1.0 : d);
+    in.ok = ok;
+    in.eta = eta;
+    in.ip_a = ip;
+    in.vin_v = vin;
+    in.supply_margin = g_disc;
+    return in;
 }

@@ -1,0 +1,135 @@
+/*
+ * light.h - a whole light and its operating point at one depth of discharge.
+ *
+ * Owns: lw_pack (S x P cells at an ambient temperature), lw_cutoff (when
+ * the light counts as finished), lw_light (pack + LEDs + drive + cutoff, the
+ * complete physical description the engine runs) and lw_point (everything
+ * about the light at one depth of discharge), solved by lw_light_point.
+ * No I/O.
+ *
+ * Circuit (docs/model.md): S cells in series, P strings of cells in
+ * parallel; M LED strings of N LEDs each, every string with its own drive
+ * element.  Per string, with E = S*OCV(d) and the pack's share of the loop
+ * resistance S*M*R(d)/P (all strings draw through the same pack):
+ *   resistor   E - I*(Rs + S*M*R/P) = N*V(I)                 (Kirchhoff's voltage law)
+ *   linear-cc  I = set while E - I*(Rs + S*M*R/P) - N*V(I) >= dropout;
+ *              otherwise E - dropout - I*(Rs + S*M*R/P) = N*V(I)
+ *   converter  LEDs held at I = set (or fallback); input power
+ *              P_in = P_out/eta + V_in*I_q drawn from E through S*R/P:
+ *              (E - Ip*R)*(Ip - I_q) = P_out/eta, smaller root.  Below
+ *              min_input_v at its input it cannot hold the set level: it
+ *              drops to the fallback level (which has no lockout) or goes
+ *              dark; so does it when the pack cannot deliver P_in at all.
+ * PWM at duty D: the on-state values above are peak values; the LED and
+ * resistor averages (current, power, flux) are D times them.  A converter's
+ * controller stays on between pulses: its quiescent current I_q is drawn all
+ * the time, so the pack's average current is D*Ip + (1 - D)*I_q.  The cells'
+ * depth advances at the average current; the loaded cell voltage is the
+ * on-state (peak) one.
+ */
+#ifndef LW_LIGHT_H
+#define LW_LIGHT_H
+
+#include <stdbool.h>
+#include "cell.h"
+#include "drive.h"
+#include "led.h"
+
+typedef struct lw_pack {
+    lw_cell cell;        /* the cell type (tables shared by reference) */
+    int series;          /* S >= 1 */
+    int parallel;        /* P >= 1 */
+    double ambient_c;    /* deg C */
+    double stored_months; /* months on the shelf before switch-on, >= 0 */
+} lw_pack;
+
+typedef enum lw_reference { LW_REF_OWN, LW_REF_FRESH, LW_REF_COUNT } lw_reference;
+
+/* Names as written in profiles ("own", "fresh"). */
+extern const char *const lw_light_reference_names[LW_REF_COUNT + 1];
+
+/* Ambient temperature of the fresh reference, deg C. */
+#define LW_FRESH_REFERENCE_C 20.0
+
+typedef struct lw_cutoff {
+    double relative_pct;  /* end at this % of the reference output, 0 < x < 100 */
+    lw_reference reference; /* own: this run's 30-s output; fresh: the 30-s output of
+                               the same light with fresh cells at 20 C */
+    double flux_lm;       /* end at this absolute output; 0: no floor */
+    double cell_v;        /* end at this loaded cell voltage, V */
+} lw_cutoff;
+
+typedef struct lw_light {
+    char name[LW_NAME_MAX];
+    lw_pack pack;
+    lw_led led;
+    lw_drive drive;
+    lw_cutoff cutoff;
+    double cap_factor;    /* capacity factor at ambient (derived) */
+    double res_factor;    /* resistance factor at ambient (derived) */
+} lw_light;
+
+/* Drop every table the light holds. */
+void lw_light_clear(lw_light *light);
+/* Copy with the tables shared by reference; free both with lw_light_clear. */
+void lw_light_copy(lw_light *dst, const lw_light *src);
+/* Recompute cap_factor and res_factor from the pack's cell and ambient. */
+void lw_light_update_factors(lw_light *light, bool *temperature_outside);
+
+/* Regime of the drive at a point. */
+typedef enum lw_regime {
+    LW_REGIME_PASSIVE,     /* resistor: no regulation */
+    LW_REGIME_REGULATED,   /* linear-cc or converter holding set_a */
+    LW_REGIME_SATURATED,   /* linear-cc out of headroom */
+    LW_REGIME_FALLBACK,    /* converter at fallback_a */
+    LW_REGIME_DROPOUT      /* converter cannot draw its input power: dark */
+} lw_regime;
+
+typedef struct lw_point {
+    double depth;         /* d, fraction of effective capacity */
+    double ocv_v;         /* per cell open-circuit V */
+    double r_cell_ohm;    /* per cell internal ohm at ambient */
+    double led_a;         /* per string, peak (on-state) */
+    double led_v;         /* per LED at led_a */
+    double cell_a;        /* per cell, peak (on-state) */
+    double cell_v;        /* per cell loaded V at peak current */
+    double pack_v;        /* loaded pack terminal V at peak current */
+    double pack_a;        /* pack current, peak (on-state) */
+    double pack_avg_a;    /* pack current averaged over the PWM period */
+    double p_led_w;       /* average power into all LEDs */
+    double p_res_w;       /* average power in all series resistors */
+    double p_res_peak_w;  /* peak power in one series resistor */
+    double p_int_w;       /* average power in the cells' internal resistance */
+    double p_drv_w;       /* average loss in the regulator or converter */
+    double p_drawn_w;     /* average power drawn from the cells' EMF */
+    double flux_lm;       /* average light output of the whole light */
+    double dtdd_h;        /* hours per unit depth: 1 / (dd/dt) at the average current
+                             (inf if dark) */
+    double regulation_margin; /* linear-cc: headroom - dropout (V); converter: event
+                                 function for dropout; resistor: 1 */
+    lw_regime regime;
+    bool extrapolated;    /* an LED table was read beyond its last point */
+} lw_point;
+
+/* Solve the light at depth d (0..1).  `fallback` selects the converter's
+ * fallback level.  Fails only when the loop has no finite solution. */
+lw_status lw_light_point(const lw_light *light, double depth, bool fallback, lw_point *pt,
+                         lw_error *err);
+
+/* Same, with the cell's OCV and internal resistance given directly. */
+lw_status lw_light_point_at(const lw_light *light, double depth, double ocv_v,
+                            double r_cell_ohm, bool fallback, lw_point *pt, lw_error *err);
+
+/* Hours in an average month (365.25 x 24 / 12). */
+#define LW_HOURS_PER_MONTH 730.5
+
+/* Depth of discharge at switch-on after pack.stored_months on the shelf:
+ * the cell keeps (1 - s/100)^M of its charge after M months of
+ * self-discharge at s % a month (compounded on the charge left, the same
+ * rate as during a run), less the standby drain I_sb over those months
+ * shared by the P parallel strings of cells:
+ * d0 = 1 - (1 - s/100)^M + I_sb * M * 730.5 h / (P * C), with C the rated
+ * capacity at ambient.  Clamped to [0, 1]. */
+double lw_light_stored_depth(const lw_light *light);
+
+#endif

@@ -1,0 +1,92 @@
+/*
+ * trace.c - the trace of a run: rows dense where the output bends (see
+ * trace.h).
+ */
+#include "lampwick/trace.h"
+
+#include <math.h>
+#include <stdlib.h>
+#include "lampwick/alloc.h"
+
+void lw_trace_clear(lw_trace *trace)
+{
+    if (!trace)
+        return;
+    free(trace->rows);
+    trace->rows = NULL;
+    trace->n = 0;
+}
+
+lw_status lw_trace_build(const lw_light *light, const lw_result *res, size_t min_rows,
+                         lw_trace *trace, lw_error *err)
+{
+    trace->rows = NULL;
+    trace->n = 0;
+    size_t per_piece = res->n_pieces ? (min_rows + res->n_pieces - 1) / res->n_pieces : 1;
+    if (per_piece < 1)
+        per_piece = 1;
+    /* first pass: how many rows each piece gets (denser where output bends) */
+    size_t total = 1;
+    size_t *k = lw_calloc(res->n_pieces + 1, sizeof *k);
+    if (!k)
+        return lw_error_set(err, LW_ENOMEM, NULL, 0, "out of memory for the trace");
+    lw_status st = LW_OK;
+    for (size_t i = 0; i < res->n_pieces && st == LW_OK; i++) {
+        lw_point p0, p1;
+        bool fb = res->pieces[i].fallback;
+        st = lw_light_point(light, res->pieces[i].d0, fb, &p0, err);
+        if (st == LW_OK)
+            st = lw_light_point(light, res->pieces[i].d1, fb, &p1, err);
+        if (st != LW_OK)
+            break;
+        double bend = res->flux_ref_lm > 0 ? fabs(p1.flux_lm - p0.flux_lm) / res->flux_ref_lm
+                                           : 0.0;
+        /* a row per 1 % of the reference the output moves */
+        const double most = LW_TRACE_PIECE_ROWS_MAX;
+        double extra = isfinite(bend) ? fmin(most, ceil(bend / 0.01)) : most;
+        size_t n = per_piece + (size_t)extra;
+        k[i] = n > LW_TRACE_PIECE_ROWS_MAX ? LW_TRACE_PIECE_ROWS_MAX : n;
+        total += k[i];
+    }
+    lw_trace_row *rows = st == LW_OK ? lw_malloc(total * sizeof *rows) : NULL;
+    if (!rows) {
+        free(k);
+        return st != LW_OK ? st
+                           : lw_error_set(err, LW_ENOMEM, NULL, 0, "out of memory for the trace");
+    }
+    size_t n = 0;
+    rows[n++] = (lw_trace_row){0.0, res->initial, 0.0};
+    for (size_t i = 0; i < res->n_pieces && st == LW_OK; i++) {
+        const lw_piece *pc = &res->pieces[i];
+        double t = pc->t0_h, dprev = pc->d0;
+        for (size_t j = 1; j <= k[i] && st == LW_OK; j++) {
+            double d = pc->d0 + (pc->d1 - pc->d0) * (double)j / (double)k[i];
+            if (j == k[i])
+                d = pc->d1;
+            double dt = 0.0;
+            st = lw_run_hours_between(light, pc->fallback, dprev, d, &dt, err);
+            t += dt;
+            if (st == LW_OK)
+                st = lw_light_point(light, d, pc->fallback, &rows[n].pt, err);
+            rows[n].t_h = t;
+            n++;
+            dprev = d;
+        }
+    }
+    free(k);
+    if (st != LW_OK) {
+        free(rows);
+        return st;
+    }
+    /* the last row is the end of the run itself */
+    if (n > 1) {
+        rows[n - 1].t_h = res->runtime_h;
+        rows[n - 1].pt = res->final;
+    }
+    for (size_t i = 0; i < n; i++)
+        rows[i].pct_of_ref =
+            res->flux_ref_lm > 0 ? 100.0 * rows[i].pt.flux_lm / res->flux_ref_lm : 0.0;
+    trace->rows = rows;
+    trace->n = n;
+    return LW_OK;
+}
