@@ -2,8 +2,9 @@
  * cellfile.h - cell files: reading cells/NAME.ini and its CSV curves, and
  * finding a cell by name along the search path.
  *
- * Owns: the cell-file schema (docs/formats.md), lw_search (the folders a cell
- * name is looked up in), lw_cellfile_load() and lw_cellfile_find().
+ * Owns: the cell-file schema (docs/formats.md), lw_cellfile_load(),
+ * lw_cellfile_find() along the search path (search.h), the list of cells and
+ * lw_cellfile_save().
  *
  * Cell file keys ([cell] section; units in the names, converted to SI here):
  *   name, chemistry, nominal_v, capacity_mah, rated_ma, peukert (1),
@@ -21,18 +22,7 @@
 #include <stddef.h>
 #include "cell.h"
 #include "inifile.h"
-
-#define LW_SEARCH_MAX 16
-
-typedef struct lw_search {
-    char dirs[LW_SEARCH_MAX][LW_PATH_MAX];
-    size_t n;
-} lw_search;
-
-/* Append a folder (ignored when empty or the list is full). */
-void lw_search_add(lw_search *s, const char *dir);
-/* Append each folder of a colon-separated list. */
-void lw_search_add_list(lw_search *s, const char *list);
+#include "search.h"
 
 /* The cell-file schema, for documentation and tests. */
 extern const lw_keydef lw_cellfile_keys[];
@@ -67,11 +57,6 @@ bool lw_cellfile_is_cell(const char *path);
 lw_status lw_cellfile_list_read(const lw_search *search, lw_cellfile_list *list, lw_error *err);
 void lw_cellfile_list_clear(lw_cellfile_list *list);
 
-/* Check that a file named by a key can be opened; the error names the file
- * and line of the key (from_file:from_line) and `what` (e.g. "[cell] curve"). */
-lw_status lw_path_check_readable(const char *path, const char *from_file, int from_line,
-                            const char *what, lw_error *err);
-
 /* Write a cell file at ini_path and its curve beside it as
  * BASE.curve-XXXXXXXX.csv, a new name at every write: first the curve, then
  * the cell file naming it (each through a temporary name, synced, renamed),
@@ -84,11 +69,5 @@ lw_status lw_path_check_readable(const char *path, const char *from_file, int fr
  * as \xNN.  The cell must not have a temperature table. */
 lw_status lw_cellfile_save(const char *ini_path, const lw_cell *cell, const char *comment,
                        lw_error *err);
-
-/* Join dir and rel ("rel" when rel is absolute or dir is empty); false when
- * the result does not fit (out then holds a cut text: do not use it). */
-bool lw_path_join(char *out, size_t size, const char *dir, const char *rel);
-/* The folder part of a path ("." when there is none). */
-void lw_path_dir(char *out, size_t size, const char *path);
 
 #endif

@@ -67,12 +67,6 @@ typedef lw_status (*lw_ini_check)(void *check_ctx, const char *section, const ch
 lw_status lw_ini_read(const char *path, lw_ini *ini, lw_ini_check check, void *check_ctx,
                       lw_error *err);
 
-/* Open a regular file for reading; a folder, device, pipe or socket is
- * refused.  Errors name what_file:what_line and `what` ("[cell] curve") when
- * what_file is given (the key that named the file), else the path. */
-lw_status lw_path_open_regular(const char *path, const char *mode, FILE **fp, const char *what_file,
-                          int what_line, const char *what, lw_error *err);
-
 
 void lw_ini_clear(lw_ini *ini);
 /* Line of the header of section `name`, 0 if absent. */

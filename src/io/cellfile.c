@@ -2,6 +2,7 @@
  * cellfile.c - cell files and the cell search path (see cellfile.h).
  */
 #include "lampwick/cellfile.h"
+#include "lampwick/path.h"
 #include "lampwick/text.h"
 
 #include <ctype.h>
@@ -57,58 +58,6 @@ const lw_keydef lw_cellfile_keys[] = {
        "charge lost per month in storage at 20 C, %"),
 };
 const size_t lw_cellfile_nkeys = sizeof lw_cellfile_keys / sizeof lw_cellfile_keys[0];
-
-bool lw_path_join(char *out, size_t size, const char *dir, const char *rel)
-{
-    int n;
-    if (rel[0] == '/' || !dir[0] || !strcmp(dir, "."))
-        n = snprintf(out, size, "%s", rel);
-    else
-        n = snprintf(out, size, "%s/%s", dir, rel);
-    return n >= 0 && (size_t)n < size;
-}
-
-void lw_path_dir(char *out, size_t size, const char *path)
-{
-    const char *slash = strrchr(path, '/');
-    if (!slash) {
-        snprintf(out, size, ".");
-        return;
-    }
-    size_t n = (size_t)(slash - path);
-    if (n == 0)
-        n = 1; /* "/" */
-    if (n >= size)
-        n = size - 1;
-    memcpy(out, path, n);
-    out[n] = '\0';
-}
-
-void lw_search_add(lw_search *s, const char *dir)
-{
-    if (!dir || !dir[0] || s->n == LW_SEARCH_MAX)
-        return;
-    lw_text_copy(s->dirs[s->n++], dir, LW_PATH_MAX);
-}
-
-void lw_search_add_list(lw_search *s, const char *list)
-{
-    if (!list)
-        return;
-    while (*list) {
-        const char *colon = strchr(list, ':');
-        size_t n = colon ? (size_t)(colon - list) : strlen(list);
-        char dir[LW_PATH_MAX];
-        if (n > 0 && n < sizeof dir) {
-            memcpy(dir, list, n);
-            dir[n] = '\0';
-            lw_search_add(s, dir);
-        }
-        list += n;
-        if (*list == ':')
-            list++;
-    }
-}
 
 static const char *const curve_cols[] = {"depth_pct", "open_circuit_v", "resistance_ohm", NULL};
 static const char *const temp_cols[] = {"temp_c", "capacity_factor", "resistance_factor", NULL};
@@ -325,16 +274,6 @@ lw_status lw_cellfile_load(const char *path, lw_cell *cell, lw_error *err)
     lw_text_copy(spec.cell.path, path, sizeof spec.cell.path);
     *cell = spec.cell;
     return LW_OK;
-}
-
-lw_status lw_path_check_readable(const char *path, const char *from_file, int from_line,
-                            const char *what, lw_error *err)
-{
-    FILE *fp;
-    lw_status st = lw_path_open_regular(path, "rb", &fp, from_file, from_line, what, err);
-    if (fp)
-        fclose(fp);
-    return st;
 }
 
 static bool is_file(const char *path)

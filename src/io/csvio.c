@@ -3,6 +3,7 @@
  * (see csvio.h).
  */
 #include "lampwick/csvio.h"
+#include "lampwick/path.h"
 #include "lampwick/text.h"
 #include "lampwick/number.h"
 #include "lampwick/inifile.h"

@@ -3,6 +3,7 @@
  * (see inifile.h).
  */
 #include "lampwick/inifile.h"
+#include "lampwick/path.h"
 #include "lampwick/text.h"
 #include "lampwick/number.h"
 #include "lampwick/alloc.h"
@@ -265,38 +266,6 @@ static int on_value(void *user, const char *section, const char *name, const cha
     lw_text_copy(e->value, value, sizeof e->value); /* lines are shorter than the value field */
     e->line = r->line;
     return 1;
-}
-
-lw_status lw_path_open_regular(const char *path, const char *mode, FILE **fp, const char *what_file,
-                          int what_line, const char *what, lw_error *err)
-{
-    *fp = NULL;
-    struct stat sb;
-    const char *at = what_file ? what_file : path;
-    int line = what_file ? what_line : 0;
-    /* "[cell] curve: cannot open 'x.csv': ..." for a file named by a key;
-     * "cannot open: ..." for the path itself, which the message names */
-    char label[1024] = "", quoted[600] = "";
-    if (what_file) {
-        snprintf(label, sizeof label, "%s: ", what ? what : "file");
-        snprintf(quoted, sizeof quoted, " '%s'", path);
-    }
-    if (stat(path, &sb) != 0)
-        return lw_error_set(err, LW_EINPUT, at, line, "%scannot open%s: %s", label, quoted,
-                            strerror(errno));
-    if (S_ISDIR(sb.st_mode))
-        return lw_error_set(err, LW_EINPUT, at, line, "%scannot open%s: it is a folder", label,
-                            quoted);
-    if (!S_ISREG(sb.st_mode))
-        return lw_error_set(err, LW_EINPUT, at, line,
-                            "%scannot open%s: not a regular file (a device, pipe or socket)",
-                            label, quoted);
-    FILE *f = fopen(path, mode);
-    if (!f)
-        return lw_error_set(err, LW_EINPUT, at, line, "%scannot open%s: %s", label, quoted,
-                            strerror(errno));
-    *fp = f;
-    return LW_OK;
 }
 
 lw_status lw_ini_read(const char *path, lw_ini *ini, lw_ini_check check, void *check_ctx,

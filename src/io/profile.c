@@ -6,6 +6,7 @@
  * but returns the error, and callers stop there.
  */
 #include "lampwick/profile.h"
+#include "lampwick/path.h"
 #include "lampwick/text.h"
 
 #include <math.h>

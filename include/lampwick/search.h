@@ -1,0 +1,24 @@
+/*
+ * search.h - the cell search path: the folders a cell name is looked up in
+ * (the profile's folder first, then LAMPWICK_CELLS, the installed cells,
+ * the source tree's cells; docs/formats.md).
+ */
+#ifndef LW_SEARCH_H
+#define LW_SEARCH_H
+
+#include <stddef.h>
+#include "cell.h"
+
+#define LW_SEARCH_MAX 16
+
+typedef struct lw_search {
+    char dirs[LW_SEARCH_MAX][LW_PATH_MAX];
+    size_t n;
+} lw_search;
+
+/* Append a folder (ignored when empty or the list is full). */
+void lw_search_add(lw_search *s, const char *dir);
+/* Append each folder of a colon-separated list. */
+void lw_search_add_list(lw_search *s, const char *list);
+
+#endif
