@@ -22,6 +22,7 @@
 #include <stddef.h>
 #include "cell.h"
 #include "inifile.h"
+#include "keys.h"
 #include "search.h"
 
 /* The cell-file schema, for documentation and tests. */

@@ -1,13 +1,10 @@
 /*
- * inifile.h - reading INI files with line numbers, and keyed schemas.
+ * inifile.h - reading INI files with line numbers.
  *
  * Owns: lw_ini (every `key = value` of a file with its section and line, and
  * the line of every section header), read through inih's ini_parse_stream
- * with our own line-counting reader, and lw_keydef: a table-driven schema that
- * checks a value (number, integer, choice, yes/no, text), converts it from
- * its file unit to SI, stores it at an offset in a struct, and suggests the
- * closest known key for a misspelling.  Used by the light profiles
- * (profile.c) and the cell files (cellfile.c).
+ * with our own line-counting reader.  What the keys mean is the schemas'
+ * business (keys.h).
  *
  * Refused, each with file:line: a path that is not a regular file (a
  * folder, device, pipe), a file over LW_INI_BYTES_MAX, lines of 200 bytes or
@@ -74,53 +71,5 @@ int lw_ini_section_line(const lw_ini *ini, const char *name);
 
 /* Line of `key` in `section`, 0 if absent. */
 int lw_ini_key_line(const lw_ini *ini, const char *section, const char *key);
-
-/* ---- schemas ---- */
-
-typedef enum lw_keytype { LW_K_NUM, LW_K_INT, LW_K_TEXT, LW_K_CHOICE, LW_K_BOOL } lw_keytype;
-
-enum {
-    LW_KF_REQUIRED = 1u << 0,  /* must be given (model-specific needs are checked later) */
-    LW_KF_MIN_OPEN = 1u << 1,  /* value must be > min (not >=) */
-    LW_KF_MAX_OPEN = 1u << 2   /* value must be < max */
-};
-
-typedef struct lw_keydef {
-    const char *section;
-    const char *name;
-    lw_keytype type;
-    size_t offset;            /* where the value goes in the target struct */
-    size_t size;              /* for LW_K_TEXT: buffer size */
-    double scale;             /* file unit -> SI factor (numbers) */
-    double min, max;          /* range in file units */
-    unsigned flags;
-    const char *const *choices; /* LW_K_CHOICE: NULL-terminated; stored as int */
-    const char *def;          /* default as written in docs ("" = none) */
-    const char *help;         /* unit and meaning, one line */
-} lw_keydef;
-
-/* Find the key `name` in `section` (NULL if unknown). */
-const lw_keydef *lw_key_find(const lw_keydef *defs, size_t n, const char *section,
-                             const char *name);
-
-/* Closest known "section.key" or key name to a misspelt one (edit distance
- * at most 3), or NULL. */
-const char *lw_key_suggest(const lw_keydef *defs, size_t n, const char *section,
-                           const char *name, char *buf, size_t size);
-
-/* Record the error for an unknown key (or section) with the closest known
- * key as a suggestion; returns LW_EINPUT.  With key NULL only the section
- * is judged: LW_OK when defs know it. */
-lw_status lw_key_unknown(const lw_keydef *defs, size_t n, const char *section, const char *key,
-                         const char *file, int line, lw_error *err);
-
-/* Check `value` against `def` and store it into `target`.  Errors name
- * file:line and the key and say what was expected. */
-lw_status lw_key_apply(const lw_keydef *def, void *target, const char *value, const char *file,
-                       int line, lw_error *err);
-
-/* Write the default of every key that has one into target. */
-lw_status lw_key_defaults(const lw_keydef *defs, size_t n, void *target, lw_error *err);
-
 
 #endif

@@ -55,6 +55,7 @@
 #include "engine.h"
 #include "trace.h"
 #include "inifile.h"
+#include "keys.h"
 #include "search.h"
 #include "cellfile.h"
 #include "profile.h"

@@ -18,6 +18,7 @@
 #include "cellfile.h"
 #include "light.h"
 #include "inifile.h"
+#include "keys.h"
 
 #define LW_PROFILE_KEYS_MAX 64
 /* At most this many [mode NAME] sections in a profile (a real light has a
