@@ -61,6 +61,7 @@
 #include "profile.h"
 #include "csvio.h"
 #include "outfile.h"
+#include "rtable.h"
 #include "report.h"
 #include "plot.h"
 #include "eseries.h"

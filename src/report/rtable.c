@@ -1,0 +1,397 @@
+/*
+ * rtable.c - tables of text cells rendered as aligned text, RFC 4180 CSV or
+ * Markdown (see rtable.h).
+ */
+#include "lampwick/rtable.h"
+
+#include <math.h>
+#include <stdarg.h>
+#include <stdio.h>
+#include <stdlib.h>
+#include <string.h>
+#include <strings.h>
+#include "lampwick/alloc.h"
+#include "lampwick/csvio.h"
+#include "lampwick/number.h"
+
+bool lw_rtable_format_parse(const char *s, lw_rtable_format *fmt)
+{
+    if (!strcmp(s, "text"))
+        *fmt = LW_FMT_TEXT;
+    else if (!strcmp(s, "csv"))
+        *fmt = LW_FMT_CSV;
+    else if (!strcmp(s, "md"))
+        *fmt = LW_FMT_MD;
+    else
+        return false;
+    return true;
+}
+
+lw_rtable *lw_rtable_new(size_t ncol, lw_error *err)
+{
+    lw_rtable *t = lw_calloc(1, sizeof *t);
+    if (t) {
+        t->head = lw_calloc(ncol ? ncol : 1, sizeof *t->head);
+        t->group = lw_calloc(ncol ? ncol : 1, sizeof *t->group);
+    }
+    if (!t || !t->head || !t->group) {
+        if (t) {
+            free(t->head);
+            free(t->group);
+        }
+        free(t);
+        lw_error_set(err, LW_ENOMEM, NULL, 0, "out of memory for a table");
+        return NULL;
+    }
+    t->ncol = ncol;
+    return t;
+}
+
+void lw_rtable_free(lw_rtable *t)
+{
+    if (!t)
+        return;
+    for (size_t i = 0; i < t->ncol; i++) {
+        free(t->head[i]);
+        free(t->group[i]);
+    }
+    free(t->group);
+    for (size_t i = 0; i < t->nrow * t->ncol; i++) {
+        free(t->cell[i]);
+        free(t->full[i]);
+    }
+    free(t->full);
+    for (size_t i = 0; i < t->nnotes; i++)
+        free(t->notes[i]);
+    free(t->head);
+    free(t->cell);
+    free(t->notes);
+    free(t->title);
+    free(t);
+}
+
+static lw_status dup_into(char **slot, const char *text, lw_error *err)
+{
+    char *s = lw_strdup(text ? text : "");
+    if (!s)
+        return lw_error_set(err, LW_ENOMEM, NULL, 0, "out of memory for a table");
+    free(*slot);
+    *slot = s;
+    return LW_OK;
+}
+
+lw_status lw_rtable_head(lw_rtable *t, size_t col, const char *name, lw_error *err)
+{
+    return dup_into(&t->head[col], name, err);
+}
+
+lw_status lw_rtable_group(lw_rtable *t, size_t col, const char *group, lw_error *err)
+{
+    return dup_into(&t->group[col], group, err);
+}
+
+lw_status lw_rtable_add_row(lw_rtable *t, size_t *row, lw_error *err)
+{
+    if (t->nrow == t->cap) {
+        size_t cap = t->cap ? 2 * t->cap : 16;
+        char **c = lw_realloc(t->cell, cap * t->ncol * sizeof *c);
+        if (c)
+            t->cell = c;
+        char **f = c ? lw_realloc(t->full, cap * t->ncol * sizeof *f) : NULL;
+        if (f)
+            t->full = f;
+        if (!c || !f)
+            return lw_error_set(err, LW_ENOMEM, NULL, 0, "out of memory for a table");
+        t->cap = cap;
+    }
+    memset(t->cell + t->nrow * t->ncol, 0, t->ncol * sizeof *t->cell);
+    memset(t->full + t->nrow * t->ncol, 0, t->ncol * sizeof *t->full);
+    *row = t->nrow++;
+    return LW_OK;
+}
+
+lw_status lw_rtable_set(lw_rtable *t, size_t row, size_t col, const char *text, lw_error *err)
+{
+    free(t->full[row * t->ncol + col]);
+    t->full[row * t->ncol + col] = NULL;
+    return dup_into(&t->cell[row * t->ncol + col], text, err);
+}
+
+lw_status lw_rtable_setf(lw_rtable *t, size_t row, size_t col, lw_error *err, const char *fmt,
+                         ...)
+{
+    char buf[512];
+    va_list ap;
+    va_start(ap, fmt);
+    vsnprintf(buf, sizeof buf, fmt, ap); // NOLINT(clang-analyzer-valist.Uninitialized): va_start above
+    va_end(ap);
+    return lw_rtable_set(t, row, col, buf, err);
+}
+
+lw_status lw_rtable_copy_cell(lw_rtable *t, size_t row, size_t col, const lw_rtable *src,
+                              size_t sr, size_t sc, lw_error *err)
+{
+    const char *c = src->cell[sr * src->ncol + sc], *f = src->full[sr * src->ncol + sc];
+    lw_status st = lw_rtable_set(t, row, col, c ? c : "", err);
+    return st == LW_OK && f ? dup_into(&t->full[row * t->ncol + col], f, err) : st;
+}
+
+lw_status lw_rtable_num(lw_rtable *t, size_t row, size_t col, double v, int sig,
+                        lw_error *err)
+{
+    char buf[64] = "";
+    if (isfinite(v))
+        snprintf(buf, sizeof buf, "%.*g", sig, v);
+    lw_status st = lw_rtable_set(t, row, col, buf, err);
+    if (st != LW_OK || !isfinite(v))
+        return st;
+    lw_number_format(buf, sizeof buf, v);
+    return dup_into(&t->full[row * t->ncol + col], buf, err);
+}
+
+lw_status lw_rtable_note(lw_rtable *t, const char *text, lw_error *err)
+{
+    char **n = lw_realloc(t->notes, (t->nnotes + 1) * sizeof *n);
+    if (!n)
+        return lw_error_set(err, LW_ENOMEM, NULL, 0, "out of memory for a table");
+    t->notes = n;
+    t->notes[t->nnotes] = NULL;
+    lw_status st = dup_into(&t->notes[t->nnotes], text, err);
+    if (st == LW_OK)
+        t->nnotes++;
+    return st;
+}
+
+lw_status lw_rtable_set_title(lw_rtable *t, const char *text, lw_error *err)
+{
+    return dup_into(&t->title, text, err);
+}
+
+static size_t width(const char *s);
+static void pad(FILE *fp, size_t n);
+
+static const char *cell_text(const lw_rtable *t, size_t r, size_t c)
+{
+    const char *s = t->cell[r * t->ncol + c];
+    return s ? s : "";
+}
+
+/* Right-aligned: every non-empty cell is a number, or a number with a unit
+ * ("41 h", "45 min"). */
+static bool numeric_column(const lw_rtable *t, size_t c)
+{
+    bool any = false;
+    for (size_t r = 0; r < t->nrow; r++) {
+        const char *s = cell_text(t, r, c);
+        double v;
+        if (!s[0] || !strcmp(s, "-"))
+            continue;
+        if (!lw_number_parse_double(s, &v)) {
+            char num[64];
+            const char *sp = strchr(s, ' ');
+            size_t len = sp ? (size_t)(sp - s) : 0;
+            if (!sp || len >= sizeof num || strchr(sp + 1, ' '))
+                return false;
+            memcpy(num, s, len);
+            num[len] = '\0';
+            if (!lw_number_parse_double(num, &v))
+                return false;
+        }
+        any = true;
+    }
+    return any;
+}
+
+static const char *group_of(const lw_rtable *t, size_t c)
+{
+    return t->group[c] ? t->group[c] : "";
+}
+
+/* Text: a line of group labels over their columns, underlined. */
+static void write_groups(const lw_rtable *t, FILE *fp, const size_t *w)
+{
+    bool any = false;
+    for (size_t c = 0; c < t->ncol; c++)
+        any = any || group_of(t, c)[0];
+    if (!any)
+        return;
+    for (int pass = 0; pass < 2; pass++) {
+        size_t c = 0;
+        while (c < t->ncol) {
+            size_t e = c + 1, span = w[c];
+            while (e < t->ncol && !strcmp(group_of(t, e), group_of(t, c)))
+                span += 2 + w[e++];
+            const char *g = group_of(t, c);
+            if (c)
+                fputs("  ", fp);
+            bool last = e == t->ncol;
+            if (pass == 0) {
+                fputs(g, fp);
+                if (!last)
+                    pad(fp, span > width(g) ? span - width(g) : 0);
+            } else if (g[0]) {
+                for (size_t i = 0; i < span; i++)
+                    fputc('=', fp);
+            } else if (!last) {
+                pad(fp, span);
+            }
+            c = e;
+        }
+        fputc('\n', fp);
+    }
+}
+
+/* Display width of UTF-8 text: count code points, not bytes. */
+static size_t width(const char *s)
+{
+    size_t w = 0;
+    for (; *s; s++)
+        if (((unsigned char)*s & 0xC0) != 0x80)
+            w++;
+    return w;
+}
+
+static void pad(FILE *fp, size_t n)
+{
+    for (size_t i = 0; i < n; i++)
+        fputc(' ', fp);
+}
+
+/* false: out of memory, nothing written */
+static bool write_text(const lw_rtable *t, FILE *fp)
+{
+    size_t *w = lw_calloc(t->ncol, sizeof *w);
+    bool *num = lw_calloc(t->ncol, sizeof *num);
+    if (!w || !num) {
+        free(w);
+        free(num);
+        return false;
+    }
+    for (size_t c = 0; c < t->ncol; c++) {
+        w[c] = width(t->head[c] ? t->head[c] : "");
+        for (size_t r = 0; r < t->nrow; r++)
+            if (width(cell_text(t, r, c)) > w[c])
+                w[c] = width(cell_text(t, r, c));
+        num[c] = numeric_column(t, c);
+    }
+    /* a group label wider than its columns widens the last of them */
+    for (size_t c = 0; c < t->ncol;) {
+        size_t e = c + 1, span = w[c];
+        while (e < t->ncol && !strcmp(group_of(t, e), group_of(t, c)))
+            span += 2 + w[e++];
+        if (width(group_of(t, c)) > span)
+            w[e - 1] += width(group_of(t, c)) - span;
+        c = e;
+    }
+    if (t->title)
+        fprintf(fp, "%s\n\n", t->title);
+    write_groups(t, fp, w);
+    for (size_t c = 0; c < t->ncol; c++) {
+        const char *h = t->head[c] ? t->head[c] : "";
+        if (c)
+            fputs("  ", fp);
+        if (num[c])
+            pad(fp, w[c] - width(h));
+        fputs(h, fp);
+        if (!num[c] && c + 1 < t->ncol)
+            pad(fp, w[c] - width(h));
+    }
+    fputc('\n', fp);
+    for (size_t c = 0; c < t->ncol; c++) {
+        if (c)
+            fputs("  ", fp);
+        for (size_t i = 0; i < w[c]; i++)
+            fputc('-', fp);
+    }
+    fputc('\n', fp);
+    for (size_t r = 0; r < t->nrow; r++) {
+        for (size_t c = 0; c < t->ncol; c++) {
+            const char *s = cell_text(t, r, c);
+            if (c)
+                fputs("  ", fp);
+            if (num[c])
+                pad(fp, w[c] - width(s));
+            fputs(s, fp);
+            if (!num[c] && c + 1 < t->ncol)
+                pad(fp, w[c] - width(s));
+        }
+        fputc('\n', fp);
+    }
+    if (t->nnotes)
+        fputc('\n', fp);
+    for (size_t i = 0; i < t->nnotes; i++)
+        fprintf(fp, "%s\n", t->notes[i]);
+    free(w);
+    free(num);
+    return true;
+}
+
+static void md_cell(FILE *fp, const char *s)
+{
+    fputc(' ', fp);
+    for (; *s; s++) {
+        if (*s == '|')
+            fputs("\\|", fp);
+        else if (*s == '\n')
+            fputc(' ', fp);
+        else
+            fputc(*s, fp);
+    }
+    fputs(" |", fp);
+}
+
+static void write_md(const lw_rtable *t, FILE *fp)
+{
+    if (t->title)
+        fprintf(fp, "**%s**\n\n", t->title);
+    fputc('|', fp);
+    for (size_t c = 0; c < t->ncol; c++) {
+        char h[256];
+        snprintf(h, sizeof h, "%s%s%s", group_of(t, c), group_of(t, c)[0] ? " " : "",
+                 t->head[c] ? t->head[c] : "");
+        md_cell(fp, h);
+    }
+    fputs("\n|", fp);
+    for (size_t c = 0; c < t->ncol; c++)
+        fputs(numeric_column(t, c) ? " ---: |" : " :--- |", fp);
+    fputc('\n', fp);
+    for (size_t r = 0; r < t->nrow; r++) {
+        fputc('|', fp);
+        for (size_t c = 0; c < t->ncol; c++)
+            md_cell(fp, cell_text(t, r, c));
+        fputc('\n', fp);
+    }
+    if (t->nnotes)
+        fputc('\n', fp);
+    for (size_t i = 0; i < t->nnotes; i++)
+        fprintf(fp, "%s%s\n", t->notes[i], i + 1 < t->nnotes ? "  " : "");
+}
+
+static void write_csv(const lw_rtable *t, FILE *fp, lw_csvw *w)
+{
+    lw_csvw_init(w, fp);
+    for (size_t c = 0; c < t->ncol; c++)
+        lw_csvw_text(w, t->head[c] ? t->head[c] : "");
+    lw_csvw_end_row(w);
+    for (size_t r = 0; r < t->nrow; r++) {
+        for (size_t c = 0; c < t->ncol; c++) {
+            const char *f = t->full[r * t->ncol + c];
+            lw_csvw_text(w, f ? f : cell_text(t, r, c));
+        }
+        lw_csvw_end_row(w);
+    }
+}
+
+lw_status lw_rtable_write(const lw_rtable *t, FILE *fp, lw_rtable_format fmt, lw_error *err)
+{
+    lw_csvw w = {0};
+    if (fmt == LW_FMT_CSV)
+        write_csv(t, fp, &w);
+    else if (fmt == LW_FMT_MD)
+        write_md(t, fp);
+    else if (!write_text(t, fp))
+        return lw_error_set(err, LW_ENOMEM, NULL, 0, "out of memory");
+    if (w.failed || ferror(fp))
+        return lw_error_set(err, LW_EIO, NULL, 0, "write error");
+    return LW_OK;
+}
