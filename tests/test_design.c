@@ -233,7 +233,7 @@ static void table_notes_follow_the_conditions(void **state)
     assert_int_equal(lw_profile_set_arg(&p, "pack.ambient_c=5", &e), LW_OK);
     assert_int_equal(lw_profile_resolve(&p, &e), LW_OK);
     lw_rtable *t;
-    assert_int_equal(lw_spec_table(&p, NULL, LW_FMT_TEXT, 1, &t, &e), LW_OK);
+    assert_int_equal(lw_report_spec_table(&p, NULL, LW_FMT_TEXT, 1, &t, &e), LW_OK);
     char all[8192] = "";
     for (size_t i = 0; i < t->nnotes; i++) {
         strncat(all, t->notes[i], sizeof all - strlen(all) - 1);
@@ -262,7 +262,7 @@ static void table_consistent_with_run(void **state)
     lw_rtable *t;
     lw_error e;
     lw_error_clear(&e);
-    assert_int_equal(lw_spec_table(&p, cells, LW_FMT_CSV, 2, &t, &e), LW_OK);
+    assert_int_equal(lw_report_spec_table(&p, cells, LW_FMT_CSV, 2, &t, &e), LW_OK);
     assert_int_equal(t->nrow, 2);
     assert_int_equal(t->ncol, 15); /* mode + 7 per cell: 5 figures, end reason, warnings */
     assert_string_equal(t->head[1], "flat.flux_lm");
@@ -324,11 +324,11 @@ static void spec_rounding(void **state)
     assert_close(lw_spec_round(9.649), 9.6, 1e-12);
     assert_close(lw_spec_round(123.4), 123, 0);
     char b[32];
-    lw_spec_hours(0.75, b, sizeof b);
+    lw_report_spec_hours(0.75, b, sizeof b);
     assert_string_equal(b, "45 min");
-    lw_spec_hours(7.46, b, sizeof b);
+    lw_report_spec_hours(7.46, b, sizeof b);
     assert_string_equal(b, "7.5 h");
-    lw_spec_hours(62.4, b, sizeof b);
+    lw_report_spec_hours(62.4, b, sizeof b);
     assert_string_equal(b, "62 h");
     /* standard power ratings with 2x margin (common practice, no source) */
     assert_close(lw_resistor_rating_w(0.1), 0.25, 0);

@@ -21,7 +21,6 @@
 #include <stdio.h>
 #include "corner.h"
 #include "profile.h"
-#include "report.h"
 #include "resistor.h"
 
 typedef struct lw_pick {
@@ -54,10 +53,5 @@ lw_status lw_pick_cells(const lw_profile *prof, const char *const *cells, lw_tar
                         lw_error *errs, lw_error *err);
 
 void lw_pick_clear(lw_pick *pick);
-
-/* The report of n picks (one per cell): text with each part's corner table
- * and recommendation, or one CSV/Markdown row per cell. */
-lw_status lw_pick_report(FILE *fp, const lw_profile *prof, const lw_pick *picks, size_t n,
-                         lw_target_kind kind, double target, lw_rtable_format fmt, lw_error *err);
 
 #endif

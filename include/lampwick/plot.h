@@ -14,6 +14,7 @@
 #include <stdio.h>
 #include "trace.h"
 #include "fit.h"
+#include "sweep.h"
 
 #define LW_PLOT_SERIES_MAX 16
 #define LW_PLOT_PANELS_MAX 3
@@ -77,5 +78,12 @@ lw_status lw_plot_run(FILE *fp, const char *title, const lw_light *light, const 
  * the residuals below (lin and sh may each be NULL). */
 lw_status lw_plot_led_fit(FILE *fp, const double *i_a, const double *v, size_t n,
                           const lw_led_fit *lin, const lw_led_fit *sh, lw_error *err);
+
+/* The trade-off chart of a sweep: runtime against the 30-s light output, one
+ * series per value of the first varied key other than the resistor, points
+ * labelled with the resistor (or the last varied key).  Fill *chart; the
+ * arrays it points to are malloc'd into *buf (free it after writing). */
+lw_status lw_plot_sweep(const lw_profile *prof, const lw_sweep *sw, lw_chart *chart,
+                        void **buf, lw_error *err);
 
 #endif

@@ -18,8 +18,8 @@
 #ifndef LW_SIZE_H
 #define LW_SIZE_H
 
+#include "engine.h"
 #include "profile.h"
-#include "report.h"
 
 /* At most this many preferred values are searched per pack (E192 from
  * 0.1 ohm to 1 Mohm is 1,344). */
@@ -54,11 +54,5 @@ typedef struct lw_size_options {
  * then runtime; then the rest by runtime, longest first. */
 lw_status lw_size_packs(const lw_profile *prof, const lw_size_options *opt, lw_size_row **rows,
                         size_t *n_rows, lw_error *err);
-
-/* The table of the first `show` rows, with the requirement and the marker
- * legend in the notes (text, Markdown; CSV carries the warnings column). */
-lw_status lw_size_table(const lw_profile *prof, const lw_size_options *opt,
-                        const lw_size_row *rows, size_t show, bool fits, lw_rtable_format fmt,
-                        lw_rtable **out, lw_error *err);
 
 #endif

@@ -4,7 +4,7 @@
  *
  * Owns: lw_spec (one run per mode and cell, through lw_batch_run, so every
  * figure is the figure `lampwick run` gives for that mode and cell),
- * lw_spec_compute, lw_spec_render and the rounding rules of a specification
+ * lw_spec_compute, lw_report_spec and the rounding rules of a specification
  * table.
  *
  * Table (docs/formats.md): one row per mode (the profile as written when it
@@ -20,7 +20,6 @@
 #define LW_SPEC_H
 
 #include "batch.h"
-#include "report.h"
 
 typedef struct lw_spec {
     const lw_profile *prof;  /* borrowed */
@@ -38,20 +37,7 @@ lw_status lw_spec_compute(const lw_profile *prof, const char *const *cells, int 
                           lw_spec *spec, lw_error *err);
 void lw_spec_clear(lw_spec *spec);
 
-/* Render the table.  Text and Markdown are rounded as specification tables
- * are (the rule is printed in the notes); CSV carries full precision in fixed
- * units, one column per quantity and cell ("CELL.flux_lm", ...). */
-lw_status lw_spec_render(const lw_spec *spec, lw_rtable_format fmt, lw_rtable **out, lw_error *err);
-
-/* Compute and render in one call. */
-lw_status lw_spec_table(const lw_profile *prof, const char *const *cells, lw_rtable_format fmt,
-                        int threads, lw_rtable **out, lw_error *err);
-
 /* Round for a specification table: 2 significant figures below 100, whole
  * numbers from 100 up. */
 double lw_spec_round(double v);
-/* Runtime for a specification table: whole minutes below 1 h ("45 min"),
- * 0.1 h below 10 h ("7.5 h"), whole hours from 10 h ("62 h"). */
-void lw_spec_hours(double h, char *buf, size_t size);
-
 #endif

@@ -81,7 +81,7 @@ static lw_status sweep_plot(const char *path, const lw_profile *prof, const lw_s
 {
     lw_chart c;
     void *buf = NULL;
-    lw_status st = lw_sweep_chart(prof, sw, &c, &buf, err);
+    lw_status st = lw_plot_sweep(prof, sw, &c, &buf, err);
     if (st == LW_OK)
         st = write_chart(path, &c, err);
     free(buf);
@@ -123,7 +123,7 @@ int cli_sweep(int argc, char **argv)
     if (st == LW_OK && a.plot_path)
         st = sweep_plot(a.plot_path, &prof, &sw, &err);
     if (st == LW_OK)
-        st = lw_sweep_table(&sw, a.o.fmt, a.columns, &t, &err);
+        st = lw_report_sweep(&sw, a.o.fmt, a.columns, &t, &err);
     if (st == LW_OK)
         st = lw_rtable_write(t, stdout, a.o.fmt, &err);
     int code = st == LW_OK ? 0 : report_error(&err);
@@ -228,7 +228,7 @@ int cli_pick(int argc, char **argv)
             if (status[i] == LW_OK || (picks[i].resistor_ohm > 0 && picks[i].within_ratings))
                 picks[shown++] = picks[i];
         if (shown)
-            st = lw_pick_report(stdout, &prof, picks, shown, a.kind, target, a.o.fmt, &err);
+            st = lw_report_pick(stdout, &prof, picks, shown, a.kind, target, a.o.fmt, &err);
         for (size_t i = 0; st == LW_OK && i < n; i++)
             if (status[i] != LW_OK)
                 code = report_error(&errs[i]);
@@ -337,7 +337,7 @@ int cli_size(int argc, char **argv)
         fits++;
     size_t show = fits ? (fits < (size_t)a.top ? fits : (size_t)a.top) : (n ? 1 : 0);
     if (st == LW_OK)
-        st = lw_size_table(&prof, &a.opt, rows, show, fits > 0, a.o.fmt, &t, &err);
+        st = lw_report_size(&prof, &a.opt, rows, show, fits > 0, a.o.fmt, &t, &err);
     if (st == LW_OK)
         st = lw_rtable_write(t, stdout, a.o.fmt, &err);
     int code = st == LW_OK ? 0 : report_error(&err);
@@ -399,7 +399,7 @@ int cli_table(int argc, char **argv)
     if (st == LW_OK && a.cells)
         st = parse_cells(a.cells, &prof, &cellv, &cells, &err);
     if (st == LW_OK)
-        st = lw_spec_table(&prof, cells, a.o.fmt, a.o.threads, &t, &err);
+        st = lw_report_spec_table(&prof, cells, a.o.fmt, a.o.threads, &t, &err);
     if (st == LW_OK)
         st = lw_rtable_write(t, stdout, a.o.fmt, &err);
     int code = st == LW_OK ? 0 : report_error(&err);

@@ -520,3 +520,66 @@ lw_status lw_plot_led_fit(FILE *fp, const double *i_a, const double *v, size_t n
     free(b);
     return st;
 }
+
+lw_status lw_plot_sweep(const lw_profile *prof, const lw_sweep *sw, lw_chart *c, void **buf,
+                         lw_error *err)
+{
+    size_t nk = sw->nvary, group_k = nk, label_k = nk ? nk - 1 : 0;
+    for (size_t k = 0; k < nk; k++)
+        if (!strcmp(sw->vary[k].key, "drive.resistor_ohm"))
+            label_k = k;
+    for (size_t k = 0; k < nk && group_k == nk; k++)
+        if (k != label_k)
+            group_k = k;
+    size_t ngroups = group_k < nk ? sw->vary[group_k].n : 1;
+    if (ngroups > LW_PLOT_SERIES_MAX)
+        ngroups = LW_PLOT_SERIES_MAX;
+    /* one block: x and y of every point, their labels, and the subtitle */
+    size_t bytes = 2 * sw->n * sizeof(double) + sw->n * sizeof(const char *) + 256;
+    char *block = lw_malloc(bytes);
+    *buf = block;
+    if (!block)
+        return lw_error_set(err, LW_ENOMEM, NULL, 0, "out of memory");
+    double *xy = (double *)(void *)block;
+    const char **labels = (const char **)(void *)(xy + 2 * sw->n);
+    char *sub = (char *)(labels + sw->n);
+    memset(c, 0, sizeof *c);
+    snprintf(sub, 256, "each point one full discharge; labels: %s",
+             nk ? sw->vary[label_k].key : "");
+    c->title = prof->light.name;
+    c->subtitle = sub;
+    c->npanels = 1;
+    lw_panel *p = &c->panels[0];
+    double xmin = INFINITY, xmax = 0, ymin = INFINITY, ymax = 0;
+    size_t used = 0;
+    for (size_t g = 0; g < ngroups; g++) {
+        lw_series *s = &p->series[p->nseries];
+        size_t start = used;
+        for (size_t r = 0; r < sw->n; r++) {
+            if (group_k < nk && sw->index[r * nk + group_k] != g)
+                continue;
+            const lw_result *res = &sw->cases[r].res;
+            if (!(res->flux_30s_lm > 0 && res->runtime_h > 0))
+                continue;
+            xy[used] = res->flux_30s_lm;
+            xy[sw->n + used] = res->runtime_h;
+            labels[used] = nk ? sw->vary[label_k].values[sw->index[r * nk + label_k]] : NULL;
+            xmin = fmin(xmin, xy[used]);
+            xmax = fmax(xmax, xy[used]);
+            ymin = fmin(ymin, xy[sw->n + used]);
+            ymax = fmax(ymax, xy[sw->n + used]);
+            used++;
+        }
+        if (used == start)
+            continue;
+        *s = (lw_series){.name = group_k < nk ? sw->vary[group_k].values[g] : "runs",
+                         .x = xy + start, .y = xy + sw->n + start, .n = used - start,
+                         .points = true, .labels = labels + start};
+        p->nseries++;
+    }
+    c->x = (lw_axis){.label = "light output 30 s after switch-on (lm)",
+                     .log = xmax > 30 * xmin, .from_zero = !(xmax > 30 * xmin)};
+    p->y = (lw_axis){.label = "runtime to cutoff (h)", .log = ymax > 30 * ymin,
+                     .from_zero = !(ymax > 30 * ymin)};
+    return LW_OK;
+}

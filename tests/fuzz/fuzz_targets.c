@@ -102,7 +102,7 @@ static void exercise(lw_profile *p)
     if (lw_profile_mode_count(p) <= 8) {
         lw_rtable *t;
         lw_error_clear(&e);
-        if (lw_spec_table(p, NULL, LW_FMT_TEXT, 1, &t, &e) == LW_OK)
+        if (lw_report_spec_table(p, NULL, LW_FMT_TEXT, 1, &t, &e) == LW_OK)
             lw_rtable_free(t);
     }
 }
@@ -228,7 +228,7 @@ int fuzz_args(const uint8_t *data, size_t size)
                 lw_sweep sw;
                 if (lw_sweep_run(&p, &v, 1, 1, NULL, NULL, &sw, &e) == LW_OK) {
                     lw_rtable *t;
-                    if (lw_sweep_table(&sw, LW_FMT_CSV, NULL, &t, &e) == LW_OK)
+                    if (lw_report_sweep(&sw, LW_FMT_CSV, NULL, &t, &e) == LW_OK)
                         lw_rtable_free(t);
                     lw_sweep_clear(&sw);
                 }
@@ -240,7 +240,7 @@ int fuzz_args(const uint8_t *data, size_t size)
                 lw_sweep sw;
                 if (lw_sweep_run(&p, &one, 1, 1, NULL, NULL, &sw, &e) == LW_OK) {
                     lw_rtable *t;
-                    if (lw_sweep_table(&sw, LW_FMT_TEXT, arg, &t, &e) == LW_OK)
+                    if (lw_report_sweep(&sw, LW_FMT_TEXT, arg, &t, &e) == LW_OK)
                         lw_rtable_free(t);
                     lw_sweep_clear(&sw);
                 }

@@ -1,0 +1,19 @@
+/*
+ * pickreport.h - the report of a resistor pick: for each cell the part, its
+ * corner table (current, output, dissipation and the margin to each rating
+ * at every corner) and the recommendation, or one CSV/Markdown row per cell.
+ */
+#ifndef LW_PICKREPORT_H
+#define LW_PICKREPORT_H
+
+#include <stdio.h>
+#include "pick.h"
+#include "rtable.h"
+
+/* The report of n picks (one per cell): text with each part's corner table
+ * and recommendation, or one CSV/Markdown row per cell. */
+lw_status lw_report_pick(FILE *fp, const lw_profile *prof, const lw_pick *picks, size_t n,
+                         lw_target_kind kind, double target, lw_rtable_format fmt,
+                         lw_error *err);
+
+#endif

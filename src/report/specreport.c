@@ -1,0 +1,389 @@
+/*
+ * specreport.c - the runtime table of a product specification, rendered
+ * (see specreport.h).
+ */
+#include "lampwick/specreport.h"
+
+#include <math.h>
+#include <stdio.h>
+#include <stdlib.h>
+#include <string.h>
+#include "lampwick/alloc.h"
+#include "lampwick/photometry.h"
+#include "lampwick/report.h"
+
+void lw_report_spec_hours(double h, char *buf, size_t size)
+{
+    if (!isfinite(h))
+        snprintf(buf, size, "-");
+    else if (h < 1.0)
+        snprintf(buf, size, "%.0f min", h * 60.0);
+    else if (h < 10.0)
+        snprintf(buf, size, "%.1f h", h);
+    else
+        snprintf(buf, size, "%.0f h", h);
+}
+
+/* ---- the notes: conditions as computed ---- */
+
+static const lw_case *case_at(const lw_spec *s, size_t r, size_t c)
+{
+    return &s->cases[r * s->ncells + c];
+}
+
+static const char *row_name(const lw_spec *s, size_t r)
+{
+    return s->has_modes ? s->cases[r * s->ncells].mode : "(as written)";
+}
+
+typedef void (*aspect_fn)(const lw_case *k, char *buf, size_t size);
+
+static void storage_of(const lw_case *k, char *buf, size_t size)
+{
+    const lw_light *l = &k->light;
+    if (l->pack.stored_months > 0)
+        snprintf(buf, size, "after %g month%s' storage (%.1f %% discharged)",
+                 l->pack.stored_months, l->pack.stored_months == 1 ? "" : "s",
+                 100.0 * k->res.start_depth);
+    else
+        snprintf(buf, size, "fresh cells");
+}
+
+static void ambient_of(const lw_case *k, char *buf, size_t size)
+{
+    snprintf(buf, size, "%g C ambient", k->light.pack.ambient_c);
+}
+
+static void cutoff_of(const lw_case *k, char *buf, size_t size)
+{
+    const lw_light *l = &k->light;
+    char ref[96];
+    lw_report_reference(l, ref, sizeof ref);
+    int n = snprintf(buf, size, "runtime until the output falls to %g %% of %s%s",
+                     l->cutoff.relative_pct, ref,
+                     l->cutoff.reference == LW_REF_OWN && l->cutoff.relative_pct == 10.0
+                         ? " (ANSI/PLATO FL 1 definition)"
+                         : "");
+    if (n > 0 && (size_t)n < size && l->cutoff.flux_lm > 0)
+        n += snprintf(buf + n, size - (size_t)n, " or to %g lm", l->cutoff.flux_lm);
+    if (n > 0 && (size_t)n < size)
+        snprintf(buf + n, size - (size_t)n, ", or a cell's loaded voltage reaches %s",
+                 k->light.cutoff.cell_v == k->light.pack.cell.cutoff_v ? "its end point"
+                                                                       : "the set cutoff_v");
+}
+
+static void drive_of(const lw_case *k, char *buf, size_t size)
+{
+    lw_report_drive(&k->light, buf, size);
+}
+
+/* Which runs share a value, in words: modes, cells, or mode/cell pairs. */
+static void who(const lw_spec *s, const bool *sel, char *buf, size_t size)
+{
+    bool whole_rows = true, whole_cols = true;
+    for (size_t r = 0; r < s->nrows; r++)
+        for (size_t c = 0; c < s->ncells; c++) {
+            if (sel[r * s->ncells + c] != sel[r * s->ncells])
+                whole_rows = false;
+            if (sel[r * s->ncells + c] != sel[c])
+                whole_cols = false;
+        }
+    buf[0] = '\0';
+    const char *sep = "";
+    if (whole_rows && s->has_modes) {
+        strncat(buf, "mode ", size - strlen(buf) - 1);
+        for (size_t r = 0; r < s->nrows; r++)
+            if (sel[r * s->ncells]) {
+                strncat(buf, sep, size - strlen(buf) - 1);
+                strncat(buf, row_name(s, r), size - strlen(buf) - 1);
+                sep = ", ";
+            }
+        return;
+    }
+    if (whole_cols) {
+        for (size_t c = 0; c < s->ncells; c++)
+            if (sel[c]) {
+                strncat(buf, sep, size - strlen(buf) - 1);
+                strncat(buf, case_at(s, 0, c)->light.pack.cell.name, size - strlen(buf) - 1);
+                sep = ", ";
+            }
+        return;
+    }
+    for (size_t i = 0; i < s->nrows * s->ncells; i++)
+        if (sel[i]) {
+            char pair[2 * LW_NAME_MAX + 8];
+            snprintf(pair, sizeof pair, "%s/%s", row_name(s, i / s->ncells),
+                     s->cases[i].light.pack.cell.name);
+            strncat(buf, sep, size - strlen(buf) - 1);
+            strncat(buf, pair, size - strlen(buf) - 1);
+            sep = ", ";
+        }
+}
+
+/* One aspect of the conditions: appended to `common` when every run shares
+ * it, else a note of its own listing each value and the runs it holds for. */
+static lw_status aspect(const lw_spec *s, const char *label, aspect_fn f, char *common,
+                        size_t csize, lw_rtable *t, lw_error *err)
+{
+    size_t n = s->nrows * s->ncells;
+    if (n == 0)
+        return LW_OK; /* no runs: nothing to say */
+    bool *done = lw_calloc(2 * n, sizeof *done);
+    if (!done)
+        return lw_error_set(err, LW_ENOMEM, NULL, 0, "out of memory");
+    bool *sel = done + n;
+    char first[256], v[256], line[2048], whom[1024];
+    f(&s->cases[0], first, sizeof first);
+    bool same = true;
+    for (size_t i = 1; i < n && same; i++) {
+        f(&s->cases[i], v, sizeof v);
+        same = !strcmp(v, first);
+    }
+    lw_status st = LW_OK;
+    if (same) {
+        strncat(common, "; ", csize - strlen(common) - 1);
+        strncat(common, first, csize - strlen(common) - 1);
+    } else {
+        snprintf(line, sizeof line, "%s: ", label);
+        const char *sep = "";
+        for (size_t i = 0; i < n; i++) {
+            if (done[i])
+                continue;
+            char val[256];
+            f(&s->cases[i], val, sizeof val);
+            for (size_t j = 0; j < n; j++) {
+                f(&s->cases[j], v, sizeof v);
+                sel[j] = !done[j] && !strcmp(v, val);
+                done[j] = done[j] || sel[j];
+            }
+            who(s, sel, whom, sizeof whom);
+            strncat(line, sep, sizeof line - strlen(line) - 1);
+            strncat(line, val, sizeof line - strlen(line) - 1);
+            strncat(line, " (", sizeof line - strlen(line) - 1);
+            strncat(line, whom, sizeof line - strlen(line) - 1);
+            strncat(line, ")", sizeof line - strlen(line) - 1);
+            sep = "; ";
+        }
+        strncat(line, ".", sizeof line - strlen(line) - 1);
+        st = lw_rtable_note(t, line, err);
+    }
+    free(done);
+    return st;
+}
+
+/* Marker letter of warning bit i in the table ('a' for bit 0). */
+static char marker(int bit)
+{
+    return (char)('a' + bit);
+}
+
+static lw_status spec_notes(const lw_spec *s, unsigned used, lw_rtable *t, lw_error *err)
+{
+    const lw_profile *p = s->prof;
+    char common[1024] = "Test conditions: light output 30 s after switch-on";
+    lw_status st = aspect(s, "Storage", storage_of, common, sizeof common, t, err);
+    if (st == LW_OK)
+        st = aspect(s, "Ambient", ambient_of, common, sizeof common, t, err);
+    if (st == LW_OK)
+        st = aspect(s, "Cutoff", cutoff_of, common, sizeof common, t, err);
+    if (st == LW_OK)
+        st = aspect(s, "Drive", drive_of, common, sizeof common, t, err);
+    if (st == LW_OK && s->regulated)
+        strncat(common, "; 'at full': hours in regulation", sizeof common - strlen(common) - 1);
+    strncat(common, ".", sizeof common - strlen(common) - 1);
+    /* the common sentence goes first */
+    if (st == LW_OK)
+        st = lw_rtable_note(t, common, err);
+    if (st == LW_OK && t->nnotes > 1) {
+        char *c = t->notes[t->nnotes - 1];
+        memmove(t->notes + 1, t->notes, (t->nnotes - 1) * sizeof *t->notes);
+        t->notes[0] = c;
+    }
+    char buf[512];
+    for (size_t c = 0; c < s->ncells && st == LW_OK; c++) {
+        const lw_light *cl = &case_at(s, 0, c)->light;
+        int cells = cl->pack.series * cl->pack.parallel;
+        snprintf(buf, sizeof buf,
+                 "%s: %d cell%s (%d in series, %d in parallel), %s, typical data; end point "
+                 "%.3g V per cell.",
+                 cl->pack.cell.name, cells, cells == 1 ? "" : "s", cl->pack.series,
+                 cl->pack.parallel, lw_cell_chemistry_names[cl->pack.cell.chemistry],
+                 cl->cutoff.cell_v);
+        st = lw_rtable_note(t, buf, err);
+    }
+    if (st == LW_OK && s->optics) {
+        if (p->beam_angle_deg > 0)
+            snprintf(buf, sizeof buf,
+                     "Peak intensity modelled as a uniform %g-degree cone (I = flux / solid "
+                     "angle); beam distance where the illuminance falls to 0.25 lx.",
+                     p->beam_angle_deg);
+        else
+            snprintf(buf, sizeof buf,
+                     "Peak intensity %g cd per lm of output; beam distance where the "
+                     "illuminance falls to 0.25 lx.",
+                     p->peak_cd_per_lm);
+        st = lw_rtable_note(t, buf, err);
+    }
+    for (int i = 0; i < LW_WARN_COUNT_ && st == LW_OK; i++) {
+        if (!(used & (1u << i)))
+            continue;
+        snprintf(buf, sizeof buf, "(%c) %s.", marker(i), lw_report_warning(i));
+        st = lw_rtable_note(t, buf, err);
+    }
+    if (st == LW_OK && (used & (1u << LW_WARN_COUNT_)))
+        st = lw_rtable_note(t,
+                            "no light: the run gave no light at all; the notes column names "
+                            "why (never-lit, empty-at-start, dim-at-start).",
+                            err);
+    if (st == LW_OK)
+        st = lw_rtable_note(t,
+                            "Rounding: lm and cd to 2 significant figures (whole numbers from "
+                            "100 up); runtime in whole minutes below 1 h, to 0.1 h below 10 h, "
+                            "whole hours above; distance in whole metres.",
+                            err);
+    if (st == LW_OK)
+        st = lw_rtable_note(t, lw_report_caution, err);
+    return st;
+}
+
+/* ---- the table ---- */
+
+enum { SC_FLUX, SC_RUNTIME, SC_HALF, SC_REGULATED, SC_CD, SC_BEAM, SC_END, SC_NOTES, SC_COUNT };
+
+static double peak_cd(const lw_profile *p, double flux_lm)
+{
+    if (p->peak_cd_per_lm > 0)
+        return flux_lm * p->peak_cd_per_lm;
+    if (p->beam_angle_deg > 0)
+        return lw_photometry_cone_cd(flux_lm, p->beam_angle_deg);
+    return NAN;
+}
+
+/* The text of one table cell of quantity `kind` for run k. */
+static lw_status spec_cell(const lw_spec *s, const lw_case *k, int kind, lw_rtable_format fmt,
+                           lw_rtable *t, size_t row, size_t col, lw_error *err)
+{
+    const lw_result *res = &k->res;
+    bool dark = lw_run_end_is_dark(res->end_reason);
+    char buf[512];
+    if (kind == SC_END)
+        return lw_rtable_set(t, row, col, lw_run_end_names[res->end_reason], err);
+    if (kind == SC_NOTES) {
+        if (fmt == LW_FMT_CSV) {
+            lw_report_warnings(res->warnings, buf, sizeof buf);
+        } else {
+            /* "empty-at-start", "(a,c)", or both */
+            char marks[2 * LW_WARN_COUNT_ + 1] = "";
+            for (int i = 0; i < LW_WARN_COUNT_; i++)
+                if ((res->warnings & (1u << i)) && (1u << i) != LW_WARN_NEVER_LIT) {
+                    size_t m = strlen(marks);
+                    marks[m] = m ? ',' : marker(i);
+                    if (m)
+                        marks[++m] = marker(i);
+                    marks[m + 1] = '\0';
+                }
+            snprintf(buf, sizeof buf, "%s%s%s%s%s", dark ? lw_run_end_names[res->end_reason] : "",
+                     dark && marks[0] ? " " : "", marks[0] ? "(" : "", marks,
+                     marks[0] ? ")" : "");
+        }
+        return lw_rtable_set(t, row, col, buf, err);
+    }
+    double flux = res->flux_30s_lm, cd = peak_cd(s->prof, flux);
+    const double vals[] = {flux, res->runtime_h, res->time_to_half_h, res->regulated_h, cd,
+                           lw_photometry_beam_m(cd)};
+    double v = dark ? NAN : vals[kind];
+    if (fmt == LW_FMT_CSV)
+        return lw_rtable_num(t, row, col, v, 6, err);
+    if (dark)
+        return lw_rtable_set(t, row, col, kind == SC_FLUX ? "no light" : "-", err);
+    if (kind == SC_RUNTIME || kind == SC_HALF || kind == SC_REGULATED)
+        lw_report_spec_hours(v, buf, sizeof buf);
+    else if (kind == SC_BEAM)
+        snprintf(buf, sizeof buf, "%.0f", v);
+    else
+        snprintf(buf, sizeof buf, "%.10g", lw_spec_round(v));
+    return lw_rtable_set(t, row, col, buf, err);
+}
+
+lw_status lw_report_spec(const lw_spec *s, lw_rtable_format fmt, lw_rtable **out, lw_error *err)
+{
+    static const char *const csv_names[SC_COUNT] = {
+        "flux_lm", "runtime_h", "half_h", "regulated_h", "peak_cd", "beam_m", "end_reason",
+        "warnings"};
+    static const char *const txt_names[SC_COUNT] = {"lm", "runtime", "to 50 %", "at full",
+                                                    "cd", "beam m", "", "notes"};
+    *out = NULL;
+    /* which warnings appear (bit LW_WARN_COUNT_: some run gave no light) */
+    unsigned used = 0;
+    for (size_t i = 0; i < s->nrows * s->ncells; i++) {
+        used |= s->cases[i].res.warnings & ~(unsigned)LW_WARN_NEVER_LIT;
+        if (lw_run_end_is_dark(s->cases[i].res.end_reason))
+            used |= 1u << LW_WARN_COUNT_;
+    }
+    int kinds[SC_COUNT];
+    size_t per = 0;
+    kinds[per++] = SC_FLUX;
+    kinds[per++] = SC_RUNTIME;
+    kinds[per++] = SC_HALF;
+    if (s->regulated)
+        kinds[per++] = SC_REGULATED;
+    if (s->optics) {
+        kinds[per++] = SC_CD;
+        kinds[per++] = SC_BEAM;
+    }
+    if (fmt == LW_FMT_CSV)
+        kinds[per++] = SC_END;
+    if (fmt == LW_FMT_CSV || used)
+        kinds[per++] = SC_NOTES;
+    lw_rtable *t = lw_rtable_new(1 + per * s->ncells, err);
+    if (!t)
+        return LW_ENOMEM;
+    lw_status st = lw_rtable_head(t, 0, "mode", err);
+    char buf[160];
+    for (size_t c = 0; c < s->ncells && st == LW_OK; c++)
+        for (size_t k = 0; k < per && st == LW_OK; k++) {
+            const char *cname = case_at(s, 0, c)->light.pack.cell.name;
+            size_t col = 1 + c * per + k;
+            if (fmt == LW_FMT_CSV) {
+                snprintf(buf, sizeof buf, "%s.%s", cname, csv_names[kinds[k]]);
+                st = lw_rtable_head(t, col, buf, err);
+            } else {
+                st = lw_rtable_head(t, col, txt_names[kinds[k]], err);
+                if (st == LW_OK)
+                    st = lw_rtable_group(t, col, cname, err);
+            }
+        }
+    for (size_t r = 0; r < s->nrows && st == LW_OK; r++) {
+        size_t row;
+        st = lw_rtable_add_row(t, &row, err);
+        if (st == LW_OK)
+            st = lw_rtable_set(t, row, 0, row_name(s, r), err);
+        for (size_t c = 0; c < s->ncells && st == LW_OK; c++)
+            for (size_t k = 0; k < per && st == LW_OK; k++)
+                st = spec_cell(s, case_at(s, r, c), kinds[k], fmt, t, row, 1 + c * per + k, err);
+    }
+    if (st == LW_OK && fmt != LW_FMT_CSV) {
+        snprintf(buf, sizeof buf, "Runtime table: %s", s->prof->light.name);
+        st = lw_rtable_set_title(t, buf, err);
+        if (st == LW_OK)
+            st = spec_notes(s, used, t, err);
+    }
+    if (st != LW_OK) {
+        lw_rtable_free(t);
+        return st;
+    }
+    *out = t;
+    return LW_OK;
+}
+
+lw_status lw_report_spec_table(const lw_profile *prof, const char *const *cells, lw_rtable_format fmt,
+                        int threads, lw_rtable **out, lw_error *err)
+{
+    lw_spec s;
+    *out = NULL;
+    lw_status st = lw_spec_compute(prof, cells, threads, &s, err);
+    if (st == LW_OK)
+        st = lw_report_spec(&s, fmt, out, err);
+    lw_spec_clear(&s);
+    return st;
+}
