@@ -12,6 +12,11 @@
 #ifndef LW_ALLOC_H
 #define LW_ALLOC_H
 
+/* layer 1, base (DEVELOPERS.md): only layers above may include this */
+#if defined(LW_LAYER) && LW_LAYER < 1
+#error "base-layer header included from a lower layer"
+#endif
+
 #include <stddef.h>
 
 void *lw_malloc(size_t size);

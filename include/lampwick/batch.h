@@ -12,6 +12,11 @@
 #ifndef LW_BATCH_H
 #define LW_BATCH_H
 
+/* layer 4, study (DEVELOPERS.md): only layers above may include this */
+#if defined(LW_LAYER) && LW_LAYER < 4
+#error "study-layer header included from a lower layer"
+#endif
+
 #include "engine.h"
 #include "pool.h"
 #include "profile.h"

@@ -24,6 +24,11 @@
 #ifndef LW_CELL_H
 #define LW_CELL_H
 
+/* layer 2, model (DEVELOPERS.md): only layers above may include this */
+#if defined(LW_LAYER) && LW_LAYER < 2
+#error "model-layer header included from a lower layer"
+#endif
+
 #include <stdbool.h>
 #include "interp.h"
 

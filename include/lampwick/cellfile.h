@@ -19,6 +19,11 @@
 #ifndef LW_CELLFILE_H
 #define LW_CELLFILE_H
 
+/* layer 3, io (DEVELOPERS.md): only layers above may include this */
+#if defined(LW_LAYER) && LW_LAYER < 3
+#error "io-layer header included from a lower layer"
+#endif
+
 #include <stddef.h>
 #include "cell.h"
 #include "inifile.h"

@@ -23,6 +23,11 @@
 #ifndef LW_CELLFIT_H
 #define LW_CELLFIT_H
 
+/* layer 4, study (DEVELOPERS.md): only layers above may include this */
+#if defined(LW_LAYER) && LW_LAYER < 4
+#error "study-layer header included from a lower layer"
+#endif
+
 #include <stdbool.h>
 #include "cell.h"
 

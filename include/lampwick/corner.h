@@ -16,6 +16,11 @@
 #ifndef LW_CORNER_H
 #define LW_CORNER_H
 
+/* layer 4, study (DEVELOPERS.md): only layers above may include this */
+#if defined(LW_LAYER) && LW_LAYER < 4
+#error "study-layer header included from a lower layer"
+#endif
+
 #include "engine.h"
 
 typedef enum lw_corner_kind {

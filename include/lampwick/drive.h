@@ -17,6 +17,11 @@
 #ifndef LW_DRIVE_H
 #define LW_DRIVE_H
 
+/* layer 2, model (DEVELOPERS.md): only layers above may include this */
+#if defined(LW_LAYER) && LW_LAYER < 2
+#error "model-layer header included from a lower layer"
+#endif
+
 #include <stdbool.h>
 #include "interp.h"
 

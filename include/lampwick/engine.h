@@ -27,6 +27,11 @@
 #ifndef LW_ENGINE_H
 #define LW_ENGINE_H
 
+/* layer 2, model (DEVELOPERS.md): only layers above may include this */
+#if defined(LW_LAYER) && LW_LAYER < 2
+#error "model-layer header included from a lower layer"
+#endif
+
 #include <stddef.h>
 #include "light.h"
 

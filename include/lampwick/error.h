@@ -12,6 +12,11 @@
 #ifndef LW_ERROR_H
 #define LW_ERROR_H
 
+/* layer 1, base (DEVELOPERS.md): only layers above may include this */
+#if defined(LW_LAYER) && LW_LAYER < 1
+#error "base-layer header included from a lower layer"
+#endif
+
 #include <stdarg.h>
 #include <stddef.h>
 

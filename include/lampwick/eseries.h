@@ -14,6 +14,11 @@
 #ifndef LW_ESERIES_H
 #define LW_ESERIES_H
 
+/* layer 1, base (DEVELOPERS.md): only layers above may include this */
+#if defined(LW_LAYER) && LW_LAYER < 1
+#error "base-layer header included from a lower layer"
+#endif
+
 #include <stdbool.h>
 #include <stddef.h>
 

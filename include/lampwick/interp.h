@@ -18,6 +18,11 @@
 #ifndef LW_INTERP_H
 #define LW_INTERP_H
 
+/* layer 1, base (DEVELOPERS.md): only layers above may include this */
+#if defined(LW_LAYER) && LW_LAYER < 1
+#error "base-layer header included from a lower layer"
+#endif
+
 #include <stdatomic.h>
 #include <stddef.h>
 #include "error.h"

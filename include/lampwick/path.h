@@ -10,6 +10,11 @@
 #ifndef LW_PATH_H
 #define LW_PATH_H
 
+/* layer 3, io (DEVELOPERS.md): only layers above may include this */
+#if defined(LW_LAYER) && LW_LAYER < 3
+#error "io-layer header included from a lower layer"
+#endif
+
 #include <stdbool.h>
 #include <stddef.h>
 #include <stdio.h>

@@ -11,6 +11,11 @@
 #ifndef LW_PHOTOMETRY_H
 #define LW_PHOTOMETRY_H
 
+/* layer 2, model (DEVELOPERS.md): only layers above may include this */
+#if defined(LW_LAYER) && LW_LAYER < 2
+#error "model-layer header included from a lower layer"
+#endif
+
 /* Illuminance at the FL 1 beam distance, lx. */
 #define LW_BEAM_LUX 0.25
 

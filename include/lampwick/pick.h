@@ -18,6 +18,11 @@
 #ifndef LW_PICK_H
 #define LW_PICK_H
 
+/* layer 4, study (DEVELOPERS.md): only layers above may include this */
+#if defined(LW_LAYER) && LW_LAYER < 4
+#error "study-layer header included from a lower layer"
+#endif
+
 #include <stdio.h>
 #include "corner.h"
 #include "profile.h"

@@ -6,6 +6,11 @@
 #ifndef LW_PICKREPORT_H
 #define LW_PICKREPORT_H
 
+/* layer 5, report (DEVELOPERS.md): only layers above may include this */
+#if defined(LW_LAYER) && LW_LAYER < 5
+#error "report-layer header included from a lower layer"
+#endif
+
 #include <stdio.h>
 #include "pick.h"
 #include "rtable.h"

@@ -11,6 +11,11 @@
 #ifndef LW_PLOT_H
 #define LW_PLOT_H
 
+/* layer 5, report (DEVELOPERS.md): only layers above may include this */
+#if defined(LW_LAYER) && LW_LAYER < 5
+#error "report-layer header included from a lower layer"
+#endif
+
 #include <stdio.h>
 #include "trace.h"
 #include "fit.h"

@@ -11,6 +11,11 @@
 #ifndef LW_POOL_H
 #define LW_POOL_H
 
+/* layer 1, base (DEVELOPERS.md): only layers above may include this */
+#if defined(LW_LAYER) && LW_LAYER < 1
+#error "base-layer header included from a lower layer"
+#endif
+
 #include <stddef.h>
 
 /* At most this many threads run one parallel-for (a bound on the stack

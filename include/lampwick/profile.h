@@ -15,6 +15,11 @@
 #ifndef LW_PROFILE_H
 #define LW_PROFILE_H
 
+/* layer 3, io (DEVELOPERS.md): only layers above may include this */
+#if defined(LW_LAYER) && LW_LAYER < 3
+#error "io-layer header included from a lower layer"
+#endif
+
 #include "cellfile.h"
 #include "light.h"
 #include "inifile.h"

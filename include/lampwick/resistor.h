@@ -13,6 +13,11 @@
 #ifndef LW_RESISTOR_H
 #define LW_RESISTOR_H
 
+/* layer 4, study (DEVELOPERS.md): only layers above may include this */
+#if defined(LW_LAYER) && LW_LAYER < 4
+#error "study-layer header included from a lower layer"
+#endif
+
 #include "light.h"
 
 /* Standard resistor power ratings, W, ascending, and their count. */

@@ -9,6 +9,11 @@
 #ifndef LW_RTABLE_H
 #define LW_RTABLE_H
 
+/* layer 5, report (DEVELOPERS.md): only layers above may include this */
+#if defined(LW_LAYER) && LW_LAYER < 5
+#error "report-layer header included from a lower layer"
+#endif
+
 #include <stdbool.h>
 #include <stddef.h>
 #include <stdio.h>

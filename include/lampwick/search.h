@@ -6,6 +6,11 @@
 #ifndef LW_SEARCH_H
 #define LW_SEARCH_H
 
+/* layer 3, io (DEVELOPERS.md): only layers above may include this */
+#if defined(LW_LAYER) && LW_LAYER < 3
+#error "io-layer header included from a lower layer"
+#endif
+
 #include <stddef.h>
 #include "cell.h"
 

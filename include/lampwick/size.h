@@ -18,6 +18,11 @@
 #ifndef LW_SIZE_H
 #define LW_SIZE_H
 
+/* layer 4, study (DEVELOPERS.md): only layers above may include this */
+#if defined(LW_LAYER) && LW_LAYER < 4
+#error "study-layer header included from a lower layer"
+#endif
+
 #include "engine.h"
 #include "profile.h"
 

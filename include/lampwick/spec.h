@@ -19,6 +19,11 @@
 #ifndef LW_SPEC_H
 #define LW_SPEC_H
 
+/* layer 4, study (DEVELOPERS.md): only layers above may include this */
+#if defined(LW_LAYER) && LW_LAYER < 4
+#error "study-layer header included from a lower layer"
+#endif
+
 #include "batch.h"
 
 typedef struct lw_spec {

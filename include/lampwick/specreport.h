@@ -6,6 +6,11 @@
 #ifndef LW_SPECREPORT_H
 #define LW_SPECREPORT_H
 
+/* layer 5, report (DEVELOPERS.md): only layers above may include this */
+#if defined(LW_LAYER) && LW_LAYER < 5
+#error "report-layer header included from a lower layer"
+#endif
+
 #include "rtable.h"
 #include "spec.h"
 

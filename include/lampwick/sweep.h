@@ -7,6 +7,11 @@
 #ifndef LW_SWEEP_H
 #define LW_SWEEP_H
 
+/* layer 4, study (DEVELOPERS.md): only layers above may include this */
+#if defined(LW_LAYER) && LW_LAYER < 4
+#error "study-layer header included from a lower layer"
+#endif
+
 #include "batch.h"
 #include "vary.h"
 

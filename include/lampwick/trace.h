@@ -11,6 +11,11 @@
 #ifndef LW_TRACE_H
 #define LW_TRACE_H
 
+/* layer 2, model (DEVELOPERS.md): only layers above may include this */
+#if defined(LW_LAYER) && LW_LAYER < 2
+#error "model-layer header included from a lower layer"
+#endif
+
 #include "engine.h"
 
 /* Most rows one piece of the run gets in a trace. */

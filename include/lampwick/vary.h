@@ -17,6 +17,11 @@
 #ifndef LW_VARY_H
 #define LW_VARY_H
 
+/* layer 4, study (DEVELOPERS.md): only layers above may include this */
+#if defined(LW_LAYER) && LW_LAYER < 4
+#error "study-layer header included from a lower layer"
+#endif
+
 #include "batch.h"
 #include "cellfile.h"
 

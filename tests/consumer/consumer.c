@@ -1,9 +1,14 @@
 /*
  * consumer.c - a program outside the project that uses the installed
  * liblampwick through pkg-config: load the demo profile from the installed
- * data and run it.  Built and run by .ci/run after `meson install`.
+ * data (the cells from pkg-config's cellsdir) and run it.  It includes
+ * glibc's <error.h> beside <lampwick/lampwick.h> and calls error(): the
+ * library's headers live under lampwick/ and put no generic name on the
+ * include path.  Built and run by .ci/run after `meson install`.
  */
-#include <lampwick.h>
+#define _GNU_SOURCE /* error() */
+#include <error.h>
+#include <lampwick/lampwick.h>
 #include <stdio.h>
 #include <string.h>
 
@@ -17,10 +22,8 @@ int main(int argc, char **argv)
     lw_profile prof;
     lw_error err;
     lw_error_clear(&err);
-    if (lw_profile_load(argv[1], &search, &prof, &err) != LW_OK) {
-        fprintf(stderr, "%s:%d: %s\n", err.file, err.line, err.msg);
-        return 1;
-    }
+    if (lw_profile_load(argv[1], &search, &prof, &err) != LW_OK)
+        error(1, 0, "%s:%d: %s", err.file, err.line, err.msg); /* glibc's error() */
     lw_result res;
     lw_run_options opt = lw_run_options_default();
     lw_status st = lw_run(&prof.light, &opt, &res, &err);
