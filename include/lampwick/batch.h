@@ -1,11 +1,10 @@
 /*
  * batch.h - running many variants of one profile, on all cores.
  *
- * Owns: lw_case (one variant: an optional mode and up to LW_CASE_SETS
- * "section.key" overrides, and after the run its status, error, result and
- * resolved light) and lw_batch_run, which runs every case through the same
- * path as `lampwick run` (copy profile -> mode -> overrides -> resolve ->
- * lw_run) with lw_pool_for.  Results are identical to running the cases
+ * Owns: lw_case (one variant of the profile, profile.h, and after the run
+ * its status, error, result and resolved light) and lw_batch_run, which runs
+ * every case through the same path as `lampwick run` (lw_profile_derive,
+ * then lw_run) with lw_pool_for.  Results are identical to running the cases
  * one by one, and stay in input order.  Sweeps, pick, size and table are all
  * built on it, so one code path computes every number.
  */
@@ -21,18 +20,8 @@
 #include "pool.h"
 #include "profile.h"
 
-#define LW_CASE_SETS 8
-#define LW_CASE_VALUE_MAX 128
-
-typedef struct lw_override {
-    char key[2 * LW_INI_NAME_MAX];
-    char value[LW_CASE_VALUE_MAX];
-} lw_override;
-
 typedef struct lw_case {
-    const char *mode;              /* borrowed; NULL for the profile as written */
-    lw_override set[LW_CASE_SETS];
-    size_t nset;
+    lw_profile_variant variant;    /* the mode and overrides of this case */
     /* filled by lw_batch_run: */
     lw_status status;              /* LW_OK, or why this case could not run */
     lw_error err;
@@ -41,20 +30,11 @@ typedef struct lw_case {
     bool has_light;
 } lw_case;
 
-/* Add an override to a case; false if the case is full or a text too long. */
-bool lw_case_set(lw_case *c, const char *key, const char *value);
-
-/* The profile of one case: a copy of base with the case's mode and
- * overrides applied and resolved.  Errors about an override name
- * "ORIGIN KEY" (e.g. "--vary drive.resistor_ohm").  Free with
- * lw_profile_clear (also after a failure). */
-lw_status lw_case_profile(const lw_profile *base, const lw_case *c, const char *origin,
-                          lw_profile *out, lw_error *err);
-
-/* Run every case.  threads <= 0: all cores.  Returns LW_OK even when cases
- * failed (see each case's status). */
+/* Run every case: its profile by lw_profile_derive (messages about an
+ * override name "ORIGIN KEY"), then lw_run.  threads <= 0: all cores.  Each
+ * case's status says whether it ran. */
 void lw_batch_run(const lw_profile *base, lw_case *cases, size_t n, int threads,
-                  lw_pool_progress_fn progress, void *progress_ctx);
+                  const char *origin, lw_pool_progress_fn progress, void *progress_ctx);
 
 /* Free what the cases hold (not the array). */
 void lw_batch_clear(lw_case *cases, size_t n);

@@ -24,6 +24,7 @@
 #error "io-layer header included from a lower layer"
 #endif
 
+#include <stdatomic.h>
 #include <stdbool.h>
 #include <stddef.h>
 #include <stdio.h>
@@ -55,6 +56,8 @@ typedef struct lw_ini {
     size_t n, cap;
     lw_ini_section *sections;
     size_t n_sections, cap_sections;
+    _Atomic int refs;     /* holders sharing this read-only copy (profiles);
+                             0 from lw_ini_read, kept by the holders */
 } lw_ini;
 
 /* Called for each section header (key NULL) and each key as it is read

@@ -61,6 +61,12 @@ lw_status lw_key_unknown(const lw_keydef *defs, size_t n, const char *section, c
 lw_status lw_key_apply(const lw_keydef *def, void *target, const char *value, const char *file,
                        int line, lw_error *err);
 
+/* The same check for a value given as a number (in the key's file unit,
+ * drive.resistor_ohm in ohm): range, integer keys whole, no number for a
+ * text, choice or yes/no key.  Messages show the number as text. */
+lw_status lw_key_apply_number(const lw_keydef *def, void *target, double value,
+                              const char *file, int line, lw_error *err);
+
 /* Write the default of every key that has one into target. */
 lw_status lw_key_defaults(const lw_keydef *defs, size_t n, void *target, lw_error *err);
 

@@ -47,8 +47,8 @@ typedef struct lw_profile {
     char key_option[LW_PROFILE_KEYS_MAX][48]; /* for option values: "--set drive.x" */
     char mode[LW_NAME_MAX];           /* mode applied, "" for none */
     lw_ini *ini;                      /* the file's entries (modes are applied from it);
-                                         read-only, shared by copies */
-    bool owns_ini;                    /* this profile frees ini (the loaded one) */
+                                         read-only, shared by copies (counted in
+                                         ini->refs, freed with the last) */
     lw_search search;                 /* where cell names are looked up after dir */
 } lw_profile;
 
@@ -63,8 +63,8 @@ lw_status lw_profile_load(const char *path, const lw_search *search, lw_profile 
 /* Free what the profile holds.  NULL-safe. */
 void lw_profile_clear(lw_profile *prof);
 
-/* Copy (tables and the file's entries shared by reference: the source
- * must outlive the copy).  Cannot fail today; returns LW_OK. */
+/* Copy (tables and the file's entries shared by reference counts: either
+ * may be cleared first).  Cannot fail today; returns LW_OK. */
 lw_status lw_profile_copy(lw_profile *dst, const lw_profile *src, lw_error *err);
 
 /* Set "section.key" to value (same checks as the file).  `file` and `line`
@@ -73,9 +73,52 @@ lw_status lw_profile_copy(lw_profile *dst, const lw_profile *src, lw_error *err)
 lw_status lw_profile_set(lw_profile *prof, const char *dotted_key, const char *value,
                          lw_origin origin, const char *file, int line, lw_error *err);
 
+/* Set "section.key" to a number in the key's file unit (drive.resistor_ohm
+ * in ohm), with the same checks as a text: no formatting and parsing.
+ * Messages name `option` (e.g. "--vary drive.resistor_ohm"). */
+lw_status lw_profile_set_number(lw_profile *prof, const char *dotted_key, double value,
+                                const char *option, lw_error *err);
+
 /* Parse "section.key=value" from the command line and set it; errors name
  * the option "--set section.key". */
 lw_status lw_profile_set_arg(lw_profile *prof, const char *arg, lw_error *err);
+
+/* ---- variants ----
+ * A variant of a profile is a mode and overrides; lw_profile_derive makes
+ * the profile of a variant: copy -> mode -> overrides -> resolve.  It is the
+ * one path every run takes: `lampwick run` (--mode, --set) and every case of
+ * a sweep, pick, size and table (batch.h). */
+
+#define LW_PROFILE_OVERRIDES_MAX 16
+
+typedef struct lw_profile_override {
+    const char *key;      /* "section.key", borrowed */
+    const char *text;     /* the value as text, borrowed; NULL: `number` */
+    double number;        /* the value in the key's file unit, when text is NULL */
+} lw_profile_override;
+
+typedef struct lw_profile_variant {
+    const char *mode;     /* borrowed; NULL: the profile as written */
+    lw_profile_override set[LW_PROFILE_OVERRIDES_MAX];
+    size_t nset;
+} lw_profile_variant;
+
+/* Add an override as text or as a number (key and text are borrowed: they
+ * must outlive the variant).  LW_EINPUT when the variant is full. */
+lw_status lw_profile_variant_text(lw_profile_variant *v, const char *key, const char *text,
+                                  lw_error *err);
+lw_status lw_profile_variant_number(lw_profile_variant *v, const char *key, double value,
+                                    lw_error *err);
+/* Add "section.key=value" from the command line: the key is copied into
+ * key[size] (which must outlive the variant), the value borrowed from arg. */
+lw_status lw_profile_variant_arg(lw_profile_variant *v, const char *arg, char *key, size_t size,
+                                 lw_error *err);
+
+/* The profile of a variant of base.  Messages about an override name
+ * "ORIGIN KEY" (origin "--set", "--vary", ...).  Free *out with
+ * lw_profile_clear, also after a failure. */
+lw_status lw_profile_derive(const lw_profile *base, const lw_profile_variant *v,
+                            const char *origin, lw_profile *out, lw_error *err);
 
 /* Apply the overrides of [mode NAME]; unknown names list the known modes. */
 lw_status lw_profile_apply_mode(lw_profile *prof, const char *name, lw_error *err);

@@ -15,6 +15,9 @@
 #include "batch.h"
 #include "vary.h"
 
+/* At most this many --vary options in one sweep. */
+#define LW_SWEEP_VARY_MAX 8
+
 typedef struct lw_sweep {
     const lw_vary *vary;  /* borrowed */
     size_t nvary;

@@ -26,11 +26,13 @@
 #include "cellfile.h"
 
 #define LW_VARY_MAX_VALUES 100000
+/* Longest text of one value, bytes with the NUL. */
+#define LW_VARY_VALUE_MAX 128
 
 typedef struct lw_vary {
     char key[2 * LW_INI_NAME_MAX];
     size_t n;
-    char (*values)[LW_CASE_VALUE_MAX]; /* n texts, as set into the profile */
+    char (*values)[LW_VARY_VALUE_MAX]; /* n texts, as set into the profile */
     char note[512];       /* "" or a note for the user (files skipped by 'all') */
 } lw_vary;
 

@@ -86,7 +86,7 @@ int cli_parse(const cli_command *cmd, int argc, char **argv, cli_on_option fn, v
 /* ---- shared helpers ---- */
 
 typedef struct common_opts {
-    const char *sets[64];
+    const char *sets[LW_PROFILE_OVERRIDES_MAX];
     size_t nsets;
     const char *mode;
     lw_rtable_format fmt;

@@ -51,7 +51,7 @@ const cli_option cli_sweep_options[] = {
 
 typedef struct sweep_args {
     common_opts o;
-    const char *varies[LW_CASE_SETS];
+    const char *varies[LW_SWEEP_VARY_MAX];
     size_t nvary;
     const char *plot_path, *columns;
 } sweep_args;
@@ -61,8 +61,8 @@ static int sweep_option(void *ctx, int id, const char *arg)
     sweep_args *a = ctx;
     switch (id) {
     case OPT_VARY:
-        if (a->nvary == LW_CASE_SETS)
-            return usage_error("sweep", "too many --vary options (at most %d)", LW_CASE_SETS);
+        if (a->nvary == LW_SWEEP_VARY_MAX)
+            return usage_error("sweep", "too many --vary options (at most %d)", LW_SWEEP_VARY_MAX);
         a->varies[a->nvary++] = arg;
         return 0;
     case OPT_PLOT:
@@ -101,7 +101,7 @@ int cli_sweep(int argc, char **argv)
     lw_profile prof;
     lw_error err;
     lw_error_clear(&err);
-    lw_vary vary[LW_CASE_SETS];
+    lw_vary vary[LW_SWEEP_VARY_MAX];
     memset(vary, 0, sizeof vary);
     lw_sweep sw = {0};
     lw_rtable *t = NULL;

@@ -186,13 +186,24 @@ lw_status load_profile(const char *path, const common_opts *o, lw_profile *prof,
 {
     lw_search search;
     build_search(&search);
-    lw_status st = lw_profile_load(path, &search, prof, err);
-    if (st == LW_OK && o->mode)
-        st = lw_profile_apply_mode(prof, o->mode, err);
+    lw_profile file;
+    lw_status st = lw_profile_load(path, &search, &file, err);
+    if (st != LW_OK) {
+        memset(prof, 0, sizeof *prof);
+        lw_profile_clear(&file);
+        return st;
+    }
+    /* --mode and --set: the profile of this run, by the path every case of
+     * a sweep, pick, size or table takes */
+    lw_profile_variant v = {.mode = o->mode};
+    char keys[LW_PROFILE_OVERRIDES_MAX][2 * LW_INI_NAME_MAX];
     for (size_t i = 0; st == LW_OK && i < o->nsets; i++)
-        st = lw_profile_set_arg(prof, o->sets[i], err);
-    if (st == LW_OK && (o->mode || o->nsets))
-        st = lw_profile_resolve(prof, err);
+        st = lw_profile_variant_arg(&v, o->sets[i], keys[i], sizeof keys[i], err);
+    if (st == LW_OK)
+        st = lw_profile_derive(&file, &v, "--set", prof, err);
+    else
+        memset(prof, 0, sizeof *prof);
+    lw_profile_clear(&file); /* the derived profile keeps what it shares */
     return st;
 }
 

@@ -5,6 +5,7 @@
 #include "lampwick/keys.h"
 
 #include <ctype.h>
+#include <limits.h>
 #include <math.h>
 #include <stdio.h>
 #include <string.h>
@@ -120,6 +121,41 @@ static bool parse_bool(const char *s, bool *out)
     return false;
 }
 
+/* The one check and store of a numeric value, whether it came as text or
+ * as a number; `text` is how the messages show it. */
+static lw_status store_number(const lw_keydef *d, char *dst, double v, const char *text,
+                              const char *file, int line, lw_error *err)
+{
+    if (d->type == LW_K_INT) {
+        if (!(v >= INT_MIN && v <= INT_MAX && v == floor(v)) || !in_range(d, v))
+            return range_error(d, text, file, line, err);
+        int i = (int)v;
+        memcpy(dst, &i, sizeof i);
+        return LW_OK;
+    }
+    if (!isfinite(v) || !in_range(d, v))
+        return range_error(d, text, file, line, err);
+    if (v == 0.0)
+        v = 0.0; /* no negative zero: "-0" is 0 */
+    double si = v * d->scale;
+    memcpy(dst, &si, sizeof si);
+    return LW_OK;
+}
+
+lw_status lw_key_apply_number(const lw_keydef *d, void *target, double value, const char *file,
+                              int line, lw_error *err)
+{
+    char text[32];
+    lw_number_format(text, sizeof text, value);
+    if (!text[0])
+        lw_text_copy(text, isnan(value) ? "nan" : value > 0 ? "inf" : "-inf", sizeof text);
+    if (d->type != LW_K_NUM && d->type != LW_K_INT)
+        return lw_error_set(err, LW_EINPUT, file, line, "[%s] %s = %s: expected %s", d->section,
+                            d->name, text,
+                            d->type == LW_K_BOOL ? "yes or no" : "a text, not a number");
+    return store_number(d, (char *)target + d->offset, value, text, file, line, err);
+}
+
 lw_status lw_key_apply(const lw_keydef *d, void *target, const char *value, const char *file,
                        int line, lw_error *err)
 {
@@ -127,20 +163,15 @@ lw_status lw_key_apply(const lw_keydef *d, void *target, const char *value, cons
     switch (d->type) {
     case LW_K_NUM: {
         double v;
-        if (!lw_number_parse(value, &v) || !in_range(d, v))
+        if (!lw_number_parse(value, &v))
             return range_error(d, value, file, line, err);
-        if (v == 0.0)
-            v = 0.0; /* no negative zero: "-0" is 0 */
-        double si = v * d->scale;
-        memcpy(dst, &si, sizeof si);
-        return LW_OK;
+        return store_number(d, dst, v, value, file, line, err);
     }
     case LW_K_INT: {
         int v;
-        if (!lw_number_parse_int(value, &v) || !in_range(d, v))
+        if (!lw_number_parse_int(value, &v))
             return range_error(d, value, file, line, err);
-        memcpy(dst, &v, sizeof v);
-        return LW_OK;
+        return store_number(d, dst, v, value, file, line, err);
     }
     case LW_K_BOOL: {
         bool v;

@@ -10,6 +10,7 @@
 #include "lampwick/text.h"
 
 #include <math.h>
+#include <stdatomic.h>
 #include <stddef.h>
 #include <stdio.h>
 #include <stdlib.h>
@@ -162,40 +163,136 @@ static bool split_dotted(const char *dotted, char *section, size_t ss, char *key
     return lw_text_copy(key, dot + 1, ks);
 }
 
-lw_status lw_profile_set(lw_profile *prof, const char *dotted_key, const char *value,
-                         lw_origin origin, const char *file, int line, lw_error *err)
+/* Find the definition of "section.key", or say why there is none. */
+static lw_status find_key(const char *dotted_key, const char *file, int line,
+                          const lw_keydef **def, lw_error *err)
 {
     char section[LW_INI_NAME_MAX], key[LW_INI_NAME_MAX];
     if (!split_dotted(dotted_key, section, sizeof section, key, sizeof key))
         return lw_error_set(err, LW_EINPUT, file, line,
                             "'%s': expected section.key (for example drive.resistor_ohm)",
                             dotted_key);
-    const lw_keydef *d = lw_key_find(lw_profile_keys, lw_profile_nkeys, section, key);
-    if (!d)
+    *def = lw_key_find(lw_profile_keys, lw_profile_nkeys, section, key);
+    if (!*def)
         return lw_key_unknown(lw_profile_keys, lw_profile_nkeys, section, key, file, line, err);
-    lw_status st = lw_key_apply(d, prof, value, file, line, err);
-    if (st != LW_OK)
-        return st;
+    return LW_OK;
+}
+
+/* Record where a key's value came from. */
+static void note_origin(lw_profile *prof, const lw_keydef *d, lw_origin origin, const char *file,
+                        int line)
+{
     prof->key_origin[key_index(d)] = (unsigned char)origin;
     prof->key_line[key_index(d)] = origin == LW_FROM_OPTION ? 0 : line;
     if (origin == LW_FROM_OPTION)
         lw_text_copy(prof->key_option[key_index(d)], file ? file : "", 48);
-    return LW_OK;
 }
 
-lw_status lw_profile_set_arg(lw_profile *prof, const char *arg, lw_error *err)
+lw_status lw_profile_set(lw_profile *prof, const char *dotted_key, const char *value,
+                         lw_origin origin, const char *file, int line, lw_error *err)
+{
+    const lw_keydef *d;
+    lw_status st = find_key(dotted_key, file, line, &d, err);
+    if (st == LW_OK)
+        st = lw_key_apply(d, prof, value, file, line, err);
+    if (st == LW_OK)
+        note_origin(prof, d, origin, file, line);
+    return st;
+}
+
+lw_status lw_profile_set_number(lw_profile *prof, const char *dotted_key, double value,
+                                const char *option, lw_error *err)
+{
+    const lw_keydef *d;
+    lw_status st = find_key(dotted_key, option, 0, &d, err);
+    if (st == LW_OK)
+        st = lw_key_apply_number(d, prof, value, option, 0, err);
+    if (st == LW_OK)
+        note_origin(prof, d, LW_FROM_OPTION, option, 0);
+    return st;
+}
+
+/* Split "section.key=value" into key (copied) and value (in arg). */
+static lw_status split_arg(const char *arg, char *key, size_t size, const char **value,
+                           lw_error *err)
 {
     const char *eq = strchr(arg, '=');
-    char key[2 * LW_INI_NAME_MAX], where[2 * LW_INI_NAME_MAX + 8];
-    if (!eq || eq == arg || (size_t)(eq - arg) >= sizeof key)
+    if (!eq || eq == arg || (size_t)(eq - arg) >= size)
         return lw_error_set(err, LW_EINPUT, "--set", 0,
                             "'%s': expected section.key=value (for example "
                             "drive.resistor_ohm=220)",
                             arg);
     memcpy(key, arg, (size_t)(eq - arg));
     key[eq - arg] = '\0';
+    *value = eq + 1;
+    return LW_OK;
+}
+
+lw_status lw_profile_set_arg(lw_profile *prof, const char *arg, lw_error *err)
+{
+    char key[2 * LW_INI_NAME_MAX], where[2 * LW_INI_NAME_MAX + 8];
+    const char *value;
+    lw_status st = split_arg(arg, key, sizeof key, &value, err);
+    if (st != LW_OK)
+        return st;
     snprintf(where, sizeof where, "--set %s", key);
-    return lw_profile_set(prof, key, eq + 1, LW_FROM_OPTION, where, 0, err);
+    return lw_profile_set(prof, key, value, LW_FROM_OPTION, where, 0, err);
+}
+
+/* ---- variants: one path from a profile to the profile of a case ---- */
+
+static lw_status variant_slot(lw_profile_variant *v, const char *key, lw_error *err)
+{
+    if (v->nset == LW_PROFILE_OVERRIDES_MAX)
+        return lw_error_set(err, LW_EINPUT, key, 0, "more than %d overrides of one run",
+                            LW_PROFILE_OVERRIDES_MAX);
+    return LW_OK;
+}
+
+lw_status lw_profile_variant_text(lw_profile_variant *v, const char *key, const char *text,
+                                  lw_error *err)
+{
+    lw_status st = variant_slot(v, key, err);
+    if (st == LW_OK)
+        v->set[v->nset++] = (lw_profile_override){.key = key, .text = text};
+    return st;
+}
+
+lw_status lw_profile_variant_number(lw_profile_variant *v, const char *key, double value,
+                                    lw_error *err)
+{
+    lw_status st = variant_slot(v, key, err);
+    if (st == LW_OK)
+        v->set[v->nset++] = (lw_profile_override){.key = key, .number = value};
+    return st;
+}
+
+lw_status lw_profile_variant_arg(lw_profile_variant *v, const char *arg, char *key, size_t size,
+                                 lw_error *err)
+{
+    const char *value;
+    lw_status st = split_arg(arg, key, size, &value, err);
+    if (st == LW_OK)
+        st = lw_profile_variant_text(v, key, value, err);
+    return st;
+}
+
+lw_status lw_profile_derive(const lw_profile *base, const lw_profile_variant *v,
+                            const char *origin, lw_profile *out, lw_error *err)
+{
+    lw_status st = lw_profile_copy(out, base, err);
+    if (st == LW_OK && v->mode)
+        st = lw_profile_apply_mode(out, v->mode, err);
+    for (size_t k = 0; k < v->nset && st == LW_OK; k++) {
+        const lw_profile_override *o = &v->set[k];
+        char where[2 * LW_INI_NAME_MAX + 32];
+        snprintf(where, sizeof where, "%s %s", origin, o->key);
+        st = o->text ? lw_profile_set(out, o->key, o->text, LW_FROM_OPTION, where, 0, err)
+                     : lw_profile_set_number(out, o->key, o->number, where, err);
+    }
+    if (st == LW_OK)
+        st = lw_profile_resolve(out, err);
+    return st;
 }
 
 static bool is_mode_section(const char *section, const char **name)
@@ -592,10 +689,10 @@ lw_status lw_profile_load(const char *path, const lw_search *search, lw_profile 
     p->ini = lw_calloc(1, sizeof *p->ini);
     if (!p->ini)
         return lw_error_set(err, LW_ENOMEM, NULL, 0, "out of memory");
-    p->owns_ini = true;
     lw_status st = lw_key_defaults(lw_profile_keys, lw_profile_nkeys, p, err);
     if (st == LW_OK)
         st = lw_ini_read(path, p->ini, profile_check, NULL, err);
+    atomic_store(&p->ini->refs, 1);
     if (st == LW_OK && lw_profile_mode_count(p) > LW_PROFILE_MODES_MAX)
         st = lw_error_set(err, LW_EINPUT, path, 0, "more than %d [mode] sections",
                           LW_PROFILE_MODES_MAX);
@@ -615,12 +712,11 @@ void lw_profile_clear(lw_profile *p)
     if (!p)
         return;
     lw_light_clear(&p->light);
-    if (p->owns_ini && p->ini) {
+    if (p->ini && atomic_fetch_sub(&p->ini->refs, 1) == 1) {
         lw_ini_clear(p->ini);
         free(p->ini);
     }
     p->ini = NULL;
-    p->owns_ini = false;
     p->cell_path[0] = '\0';
 }
 
@@ -629,7 +725,8 @@ lw_status lw_profile_copy(lw_profile *dst, const lw_profile *src, lw_error *err)
     (void)err;
     *dst = *src;
     lw_light_copy(&dst->light, &src->light);
-    dst->owns_ini = false; /* the file's entries are read-only: shared with the source */
+    if (dst->ini)
+        atomic_fetch_add(&dst->ini->refs, 1); /* the file's entries: read-only, shared */
     return LW_OK;
 }
 

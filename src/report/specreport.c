@@ -33,7 +33,7 @@ static const lw_case *case_at(const lw_spec *s, size_t r, size_t c)
 
 static const char *row_name(const lw_spec *s, size_t r)
 {
-    return s->has_modes ? s->cases[r * s->ncells].mode : "(as written)";
+    return s->has_modes ? s->cases[r * s->ncells].variant.mode : "(as written)";
 }
 
 typedef void (*aspect_fn)(const lw_case *k, char *buf, size_t size);

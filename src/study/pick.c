@@ -96,13 +96,14 @@ lw_status lw_pick_cells(const lw_profile *prof, const char *const *cells, lw_tar
                         lw_error *errs, lw_error *err)
 {
     for (size_t i = 0; cells[i]; i++) {
-        lw_case c = {0};
+        lw_profile_variant v = {0};
         memset(&out[i], 0, sizeof out[i]);
         lw_error_clear(&errs[i]);
-        if (!lw_case_set(&c, "pack.cell", cells[i]))
-            return lw_error_set(err, LW_EINPUT, "--cells", 0, "cell name too long: %s", cells[i]);
+        lw_status st = lw_profile_variant_text(&v, "pack.cell", cells[i], err);
+        if (st != LW_OK)
+            return st;
         lw_profile p;
-        lw_status st = lw_case_profile(prof, &c, "--cells", &p, err);
+        st = lw_profile_derive(prof, &v, "--cells", &p, err);
         if (st != LW_OK) {
             lw_profile_clear(&p);
             return st;

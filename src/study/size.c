@@ -159,21 +159,18 @@ static lw_status size_one(const size_job *j, size_t idx, lw_size_row *row, bool 
     lw_text_copy(row->cell, cell, sizeof row->cell);
     row->series = s;
     row->parallel = p;
-    lw_case variant = {0};
-    char buf[32];
-    bool ok = lw_case_set(&variant, "pack.cell", cell);
-    snprintf(buf, sizeof buf, "%d", s);
-    ok = ok && lw_case_set(&variant, "pack.series", buf);
-    snprintf(buf, sizeof buf, "%d", p);
-    ok = ok && lw_case_set(&variant, "pack.parallel", buf);
-    if (!isnan(opt->flux_lm)) {
-        snprintf(buf, sizeof buf, "%.17g", opt->flux_lm);
-        ok = ok && lw_case_set(&variant, "cutoff.flux_lm", buf);
-    }
-    if (!ok)
-        return lw_error_set(err, LW_EINPUT, "--cells", 0, "cell name too long: %s", cell);
+    lw_profile_variant variant = {0};
+    lw_status st = lw_profile_variant_text(&variant, "pack.cell", cell, err);
+    if (st == LW_OK)
+        st = lw_profile_variant_number(&variant, "pack.series", s, err);
+    if (st == LW_OK)
+        st = lw_profile_variant_number(&variant, "pack.parallel", p, err);
+    if (st == LW_OK && !isnan(opt->flux_lm))
+        st = lw_profile_variant_number(&variant, "cutoff.flux_lm", opt->flux_lm, err);
+    if (st != LW_OK)
+        return st;
     lw_profile prof;
-    lw_status st = lw_case_profile(j->prof, &variant, "size", &prof, err);
+    st = lw_profile_derive(j->prof, &variant, "size", &prof, err);
     if (st != LW_OK) {
         lw_profile_clear(&prof);
         return st;

@@ -35,14 +35,14 @@ lw_status lw_spec_compute(const lw_profile *prof, const char *const *cells, int 
     for (size_t r = 0; r < spec->nrows; r++)
         for (size_t c = 0; c < spec->ncells; c++) {
             lw_case *k = &spec->cases[r * spec->ncells + c];
-            k->mode = nmodes ? lw_profile_mode_name(prof, r) : NULL;
-            if (!lw_case_set(k, "pack.cell", cells[c])) {
+            k->variant.mode = nmodes ? lw_profile_mode_name(prof, r) : NULL;
+            lw_status st = lw_profile_variant_text(&k->variant, "pack.cell", cells[c], err);
+            if (st != LW_OK) {
                 lw_spec_clear(spec);
-                return lw_error_set(err, LW_EINPUT, "--cells", 0, "cell name too long: %s",
-                                    cells[c]);
+                return st;
             }
         }
-    lw_batch_run(prof, spec->cases, n, threads, NULL, NULL);
+    lw_batch_run(prof, spec->cases, n, threads, "--cells", NULL, NULL);
     for (size_t i = 0; i < n; i++) {
         if (spec->cases[i].status != LW_OK) {
             lw_status st = spec->cases[i].status;

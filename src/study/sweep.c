@@ -25,9 +25,9 @@ lw_status lw_sweep_run(const lw_profile *base, const lw_vary *vary, size_t nvary
                                 "the grid is empty or has more than 1000000 rows");
         n *= vary[k].n;
     }
-    if (nvary > LW_CASE_SETS)
+    if (nvary > LW_SWEEP_VARY_MAX)
         return lw_error_set(err, LW_EINPUT, "--vary", 0, "at most %d --vary options",
-                            LW_CASE_SETS);
+                            LW_SWEEP_VARY_MAX);
     sw->index = lw_calloc(n * (nvary ? nvary : 1), sizeof *sw->index);
     sw->cases = lw_calloc(n, sizeof *sw->cases);
     if (!sw->index || !sw->cases) {
@@ -42,15 +42,18 @@ lw_status lw_sweep_run(const lw_profile *base, const lw_vary *vary, size_t nvary
             rem /= vary[k].n;
             sw->index[r * nvary + k] = i;
         }
+        lw_profile_variant *v = &sw->cases[r].variant;
         for (size_t k = 0; k < nvary; k++) {
             const char *val = vary[k].values[sw->index[r * nvary + k]];
             if (!strcmp(vary[k].key, "mode"))
-                sw->cases[r].mode = val;
-            else
-                lw_case_set(&sw->cases[r], vary[k].key, val);
+                v->mode = val;
+            else if (lw_profile_variant_text(v, vary[k].key, val, err) != LW_OK) {
+                lw_sweep_clear(sw);
+                return err ? err->code : LW_EINPUT;
+            }
         }
     }
-    lw_batch_run(base, sw->cases, n, threads, progress, progress_ctx);
+    lw_batch_run(base, sw->cases, n, threads, "--vary", progress, progress_ctx);
     for (size_t r = 0; r < n; r++) {
         if (sw->cases[r].status == LW_OK)
             continue;

@@ -37,7 +37,7 @@ static lw_status push(lw_vary *v, size_t *cap, const char *text, lw_error *err)
         v->values = p;
         *cap = nc;
     }
-    lw_text_copy(v->values[v->n++], text, LW_CASE_VALUE_MAX);
+    lw_text_copy(v->values[v->n++], text, LW_VARY_VALUE_MAX);
     return LW_OK;
 }
 
@@ -155,7 +155,7 @@ static lw_status parse_values(const char *arg, const char *vals, bool numeric, c
     while (true) {
         const char *comma = strchr(p, ',');
         size_t len = comma ? (size_t)(comma - p) : strlen(p);
-        char item[LW_CASE_VALUE_MAX];
+        char item[LW_VARY_VALUE_MAX];
         if (len == 0 || len >= sizeof item)
             return vary_error(arg, "empty or over-long item in the list", err);
         memcpy(item, p, len);
