@@ -17,7 +17,7 @@ static void reads_numbers_with_lines_and_quotes(void **state)
     lw_csv c;
     lw_error e;
     lw_error_clear(&e);
-    assert_int_equal(lw_csv_read(p, &c, &e), LW_OK);
+    assert_int_equal(lw_csv_read(p, NULL, &c, &e), LW_OK);
     assert_int_equal(c.ncol, 2);
     assert_int_equal(c.nrow, 2);
     assert_int_equal(lw_csv_column(&c, "current_ma"), 0); /* case-insensitive */
@@ -43,11 +43,11 @@ static void spreadsheet_exports(void **state)
     lw_csv c;
     lw_error e;
     lw_error_clear(&e);
-    assert_int_equal(lw_csv_read(p, &c, &e), LW_OK);
+    assert_int_equal(lw_csv_read(p, NULL, &c, &e), LW_OK);
     assert_int_equal(lw_csv_column(&c, "current_ma"), 0);
     lw_csv_clear(&c);
     p = tmp_write("semi.csv", "current_ma;forward_v\n10;2.6\n");
-    assert_int_equal(lw_csv_read(p, &c, &e), LW_EINPUT);
+    assert_int_equal(lw_csv_read(p, NULL, &c, &e), LW_EINPUT);
     assert_error_at(e, "semi.csv", 1, "separated by commas");
 }
 
@@ -58,13 +58,13 @@ static void refuses_unknown_and_duplicate_columns(void **state)
     lw_csv c;
     lw_error e;
     lw_error_clear(&e);
-    assert_int_equal(lw_csv_read(p, &c, &e), LW_OK);
+    assert_int_equal(lw_csv_read(p, NULL, &c, &e), LW_OK);
     const char *req[] = {"x", "y", NULL};
     assert_int_equal(lw_csv_expect(&c, req, NULL, &e), LW_EINPUT);
     assert_non_null(strstr(e.msg, "appears twice"));
     lw_csv_clear(&c);
     p = tmp_write("b.csv", "x,y,z\n1,2,3\n");
-    assert_int_equal(lw_csv_read(p, &c, &e), LW_OK);
+    assert_int_equal(lw_csv_read(p, NULL, &c, &e), LW_OK);
     lw_error_clear(&e);
     assert_int_equal(lw_csv_expect(&c, req, NULL, &e), LW_EINPUT);
     assert_non_null(strstr(e.msg, "unknown column 'z'; expected columns: x, y"));
@@ -80,7 +80,7 @@ static void refuses_nonfinite_and_blank_fields(void **state)
         lw_csv c;
         lw_error e;
         lw_error_clear(&e);
-        assert_int_equal(lw_csv_read(p, &c, &e), LW_EINPUT);
+        assert_int_equal(lw_csv_read(p, NULL, &c, &e), LW_EINPUT);
         assert_error_at(e, "c.csv", 2, "is not a number");
         assert_null(c.v);
     }

@@ -10,6 +10,7 @@
 #include <stdlib.h>
 #include <string.h>
 #include <unistd.h>
+#include <lampwick/cache.h>
 
 static char lw_tmp_root[256];
 
@@ -36,6 +37,9 @@ static inline const char *tmp_write(const char *name, const char *text)
         abort();
     fputs(text, fp);
     fclose(fp);
+    /* a file rewritten within a timestamp tick can look unchanged to the
+     * cache of parsed files (cache.h): start it afresh */
+    lw_cache_clear();
     return p;
 }
 

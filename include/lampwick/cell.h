@@ -33,7 +33,6 @@
 #include "interp.h"
 
 #define LW_NAME_MAX 64
-#define LW_PATH_MAX 512
 
 typedef enum lw_chemistry {
     LW_CHEM_ALKALINE, LW_CHEM_NIMH, LW_CHEM_NICD, LW_CHEM_LI_FES2, LW_CHEM_LI_MNO2,

@@ -28,6 +28,7 @@
 #include "cell.h"
 #include "inifile.h"
 #include "keys.h"
+#include "path.h"
 #include "search.h"
 
 /* The cell-file schema, for documentation and tests. */
@@ -37,6 +38,12 @@ extern const size_t lw_cellfile_nkeys;
 /* Load a cell file and the CSV files it names (relative to its folder).
  * On failure *cell is left empty.  Free with lw_cell_clear. */
 lw_status lw_cellfile_load(const char *path, lw_cell *cell, lw_error *err);
+
+/* The same for a file named by a key (ref: "[pack] cell" at its line): a
+ * file that is not a cell file (its first section is not [cell]) is said
+ * to be so at the key. */
+lw_status lw_cellfile_load_named(const char *path, const lw_path_ref *ref, lw_cell *cell,
+                                 lw_error *err);
 
 /* Resolve a cell reference: a path (contains '/' or ends in ".ini") is taken
  * relative to base_dir; a name is looked up as NAME.ini in base_dir, then in

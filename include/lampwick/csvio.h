@@ -24,6 +24,7 @@
 #include <stdio.h>
 #include "error.h"
 #include "outfile.h"
+#include "path.h"
 
 #define LW_CSV_NAME_MAX 64
 #define LW_CSV_COLS_MAX 64
@@ -43,8 +44,9 @@ typedef struct lw_csv {
     int *line;      /* line of each row */
 } lw_csv;
 
-/* Read a numeric CSV file.  Free with lw_csv_clear. */
-lw_status lw_csv_read(const char *path, lw_csv *csv, lw_error *err);
+/* Read a numeric CSV file; `ref` (may be NULL) is the key that named it,
+ * for the message when it cannot be opened.  Free with lw_csv_clear. */
+lw_status lw_csv_read(const char *path, const lw_path_ref *ref, lw_csv *csv, lw_error *err);
 void lw_csv_clear(lw_csv *csv);
 
 /* Index of a column by name (case-insensitive), or -1. */

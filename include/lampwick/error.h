@@ -29,7 +29,10 @@ typedef enum lw_status {
     LW_ENUMERIC = 5   /* an iteration did not converge within its cap */
 } lw_status;
 
-#define LW_ERR_FILE_MAX 512
+/* Longest path lampwick handles, bytes with the NUL (longer ones are
+ * refused, never cut); the file an error names is one. */
+#define LW_PATH_MAX 512
+#define LW_ERR_FILE_MAX LW_PATH_MAX
 #define LW_ERR_MSG_MAX 512
 
 typedef struct lw_error {

@@ -64,12 +64,12 @@ typedef struct lw_ini {
  * (check_ctx passed through): a status other than LW_OK stops reading at
  * that line.  A section header that repeats an earlier one is refused by
  * the reader itself. */
-typedef lw_status (*lw_ini_check)(void *check_ctx, const char *section, const char *key,
+typedef lw_status (*lw_ini_check)(const void *check_ctx, const char *section, const char *key,
                                   const char *file, int line, lw_error *err);
 
 /* Read a whole INI file; `check` may be NULL.  On failure nothing is kept
  * (*ini is empty). */
-lw_status lw_ini_read(const char *path, lw_ini *ini, lw_ini_check check, void *check_ctx,
+lw_status lw_ini_read(const char *path, lw_ini *ini, lw_ini_check check, const void *check_ctx,
                       lw_error *err);
 
 

@@ -57,6 +57,7 @@
 #include "inifile.h"
 #include "keys.h"
 #include "search.h"
+#include "cache.h"
 #include "cellfile.h"
 #include "profile.h"
 #include "csvio.h"

@@ -26,16 +26,25 @@ bool lw_path_join(char *out, size_t size, const char *dir, const char *rel);
 /* The folder part of a path ("." when there is none). */
 void lw_path_dir(char *out, size_t size, const char *path);
 
-/* Open a regular file for reading; a folder, device, pipe or socket is
- * refused.  Errors name what_file:what_line and `what` ("[cell] curve") when
- * what_file is given (the key that named the file), else the path. */
-lw_status lw_path_open_regular(const char *path, const char *mode, FILE **fp,
-                               const char *what_file, int what_line, const char *what,
-                               lw_error *err);
+/* Who named a file, for messages: the key's file and line and the key in
+ * words ("[cell] curve"). */
+typedef struct lw_path_ref {
+    const char *file;
+    int line;
+    const char *what;
+} lw_path_ref;
 
-/* Check that a file named by a key can be opened; the error names the file
- * and line of the key (from_file:from_line) and `what` (e.g. "[cell] curve"). */
-lw_status lw_path_check_readable(const char *path, const char *from_file, int from_line,
-                                 const char *what, lw_error *err);
+/* Open a regular file for reading; a folder, device, pipe or socket is
+ * refused.  Errors name ref->file:ref->line and ref->what when ref is given
+ * ("[cell] curve: cannot open 'x.csv': ..."), else the path itself. */
+lw_status lw_path_open_regular(const char *path, const char *mode, const lw_path_ref *ref,
+                               FILE **fp, lw_error *err);
+
+/* How many times lw_path_open_regular opened `path` (as given) since the
+ * last lw_path_opens_reset, for tests that check a file is read once; the
+ * first LW_PATH_COUNTED paths are counted. */
+#define LW_PATH_COUNTED 256
+size_t lw_path_opens(const char *path);
+void lw_path_opens_reset(void);
 
 #endif

@@ -46,7 +46,7 @@ static lw_status read_led_data(const char *path, led_data *d, lw_error *err)
 {
     memset(d, 0, sizeof *d);
     lw_csv csv;
-    lw_status st = lw_csv_read(path, &csv, err);
+    lw_status st = lw_csv_read(path, NULL, &csv, err);
     if (st != LW_OK)
         return st;
     static const char *const req[] = {"current_ma", "forward_v", NULL};

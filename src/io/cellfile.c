@@ -62,10 +62,11 @@ const size_t lw_cellfile_nkeys = sizeof lw_cellfile_keys / sizeof lw_cellfile_ke
 static const char *const curve_cols[] = {"depth_pct", "open_circuit_v", "resistance_ohm", NULL};
 static const char *const temp_cols[] = {"temp_c", "capacity_factor", "resistance_factor", NULL};
 
-static lw_status load_curve(const char *path, lw_cell *cell, lw_error *err)
+static lw_status load_curve(const char *path, const lw_path_ref *ref, lw_cell *cell,
+                            lw_error *err)
 {
     lw_csv csv;
-    lw_status st = lw_csv_read(path, &csv, err);
+    lw_status st = lw_csv_read(path, ref, &csv, err);
     if (st != LW_OK)
         return st;
     st = lw_csv_expect(&csv, curve_cols, NULL, err);
@@ -122,10 +123,11 @@ static lw_status load_curve(const char *path, lw_cell *cell, lw_error *err)
     return st;
 }
 
-static lw_status load_temperature(const char *path, lw_cell *cell, lw_error *err)
+static lw_status load_temperature(const char *path, const lw_path_ref *ref, lw_cell *cell,
+                                  lw_error *err)
 {
     lw_csv csv;
-    lw_status st = lw_csv_read(path, &csv, err);
+    lw_status st = lw_csv_read(path, ref, &csv, err);
     if (st != LW_OK)
         return st;
     st = lw_csv_expect(&csv, temp_cols, NULL, err);
@@ -211,20 +213,37 @@ static lw_status check_cell(const lw_ini *ini, cellspec *spec, const bool *given
 }
 
 /* Each key as the file is read must be a cell-file key. */
-static lw_status cell_check(void *ctx, const char *section, const char *key, const char *file,
+/* Judged as the file is read (ctx: the key that named the file, or NULL):
+ * a file whose first section is not [cell] is not a cell file (a light
+ * profile named by mistake), said at once with the key that named it. */
+static lw_status cell_check(const void *ctx, const char *section, const char *key, const char *file,
                             int line, lw_error *err)
 {
-    (void)ctx;
-    if (key && lw_key_find(lw_cellfile_keys, lw_cellfile_nkeys, section, key))
+    const lw_path_ref *ref = ctx;
+    if (!key && strcmp(section, "cell") != 0) {
+        if (ref)
+            return lw_error_set(err, LW_EINPUT, ref->file, ref->line,
+                                "%s: '%s' is not a cell file (it has no [cell] section)",
+                                ref->what, file);
+        return lw_error_set(err, LW_EINPUT, file, line,
+                            "not a cell file: [%s] where a cell file has [cell]", section);
+    }
+    if (!key || lw_key_find(lw_cellfile_keys, lw_cellfile_nkeys, section, key))
         return LW_OK;
     return lw_key_unknown(lw_cellfile_keys, lw_cellfile_nkeys, section, key, file, line, err);
 }
 
 lw_status lw_cellfile_load(const char *path, lw_cell *cell, lw_error *err)
 {
+    return lw_cellfile_load_named(path, NULL, cell, err);
+}
+
+lw_status lw_cellfile_load_named(const char *path, const lw_path_ref *ref, lw_cell *cell,
+                                 lw_error *err)
+{
     memset(cell, 0, sizeof *cell);
     lw_ini ini;
-    lw_status st = lw_ini_read(path, &ini, cell_check, NULL, err);
+    lw_status st = lw_ini_read(path, &ini, cell_check, ref, err);
     if (st != LW_OK)
         return st;
     cellspec spec;
@@ -243,10 +262,8 @@ lw_status lw_cellfile_load(const char *path, lw_cell *cell, lw_error *err)
                           "[cell] curve: the path is too long (at most %d bytes)",
                           LW_PATH_MAX - 1);
     if (st == LW_OK) {
-        st = lw_path_check_readable(file, path, lw_ini_key_line(&ini, "cell", "curve"), "[cell] curve",
-                               err);
-        if (st == LW_OK)
-            st = load_curve(file, &spec.cell, err);
+        lw_path_ref by = {path, lw_ini_key_line(&ini, "cell", "curve"), "[cell] curve"};
+        st = load_curve(file, &by, &spec.cell, err);
         lw_text_copy(spec.cell.curve_path, file, sizeof spec.cell.curve_path);
     }
     if (st == LW_OK && spec.temperature[0] &&
@@ -255,10 +272,9 @@ lw_status lw_cellfile_load(const char *path, lw_cell *cell, lw_error *err)
                           "[cell] temperature: the path is too long (at most %d bytes)",
                           LW_PATH_MAX - 1);
     if (st == LW_OK && spec.temperature[0]) {
-        st = lw_path_check_readable(file, path, lw_ini_key_line(&ini, "cell", "temperature"),
-                               "[cell] temperature", err);
-        if (st == LW_OK)
-            st = load_temperature(file, &spec.cell, err);
+        lw_path_ref by = {path, lw_ini_key_line(&ini, "cell", "temperature"),
+                          "[cell] temperature"};
+        st = load_temperature(file, &by, &spec.cell, err);
         lw_text_copy(spec.cell.temperature_path, file, sizeof spec.cell.temperature_path);
     }
     if (st == LW_OK && !(spec.cell.cutoff_v < spec.cell.ocv->y[0])) {
@@ -339,8 +355,10 @@ void lw_cellfile_list_clear(lw_cellfile_list *l)
 
 bool lw_cellfile_is_cell(const char *path)
 {
-    FILE *fp = fopen(path, "r");
-    if (!fp)
+    FILE *fp;
+    lw_error ignore;
+    lw_error_clear(&ignore);
+    if (lw_path_open_regular(path, "r", NULL, &fp, &ignore) != LW_OK)
         return true; /* unreadable: listed, and loading it says why */
     char line[LW_INI_LINE_MAX + 2];
     bool found = false;

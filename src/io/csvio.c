@@ -152,14 +152,14 @@ static void on_record(int ch, void *data)
     c->line[c->nrow++] = r->rec_line;
 }
 
-lw_status lw_csv_read(const char *path, lw_csv *csv, lw_error *err)
+lw_status lw_csv_read(const char *path, const lw_path_ref *ref, lw_csv *csv, lw_error *err)
 {
     memset(csv, 0, sizeof *csv);
     lw_text_copy(csv->path, path, sizeof csv->path);
     if (strlen(path) >= sizeof csv->path)
         return lw_error_set(err, LW_EINPUT, NULL, 0, "the path '%.60s...' is too long", path);
     FILE *fp;
-    lw_status ost = lw_path_open_regular(path, "rb", &fp, NULL, 0, NULL, err);
+    lw_status ost = lw_path_open_regular(path, "rb", ref, &fp, err);
     if (ost != LW_OK)
         return ost;
     struct csv_parser p;

@@ -36,7 +36,7 @@ struct reader {
     lw_ini *ini;
     lw_error *err;          /* the first error of reading, or of the check */
     lw_ini_check check;
-    void *check_ctx;
+    const void *check_ctx;
     size_t *slots;          /* hash table of entry index + 1 (0: empty) */
     size_t nslots;
     char *buf;              /* getline buffer */
@@ -266,14 +266,14 @@ static int on_value(void *user, const char *section, const char *name, const cha
     return 1;
 }
 
-lw_status lw_ini_read(const char *path, lw_ini *ini, lw_ini_check check, void *check_ctx,
+lw_status lw_ini_read(const char *path, lw_ini *ini, lw_ini_check check, const void *check_ctx,
                       lw_error *err)
 {
     memset(ini, 0, sizeof *ini);
     if (!lw_text_copy(ini->path, path, sizeof ini->path))
         return lw_error_set(err, LW_EINPUT, NULL, 0, "the path '%.60s...' is too long", path);
     FILE *fp;
-    lw_status st = lw_path_open_regular(path, "r", &fp, NULL, 0, NULL, err);
+    lw_status st = lw_path_open_regular(path, "r", NULL, &fp, err);
     if (st != LW_OK)
         return st;
     lw_error local;

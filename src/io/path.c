@@ -4,6 +4,7 @@
 #include "lampwick/path.h"
 
 #include <errno.h>
+#include <pthread.h>
 #include <fcntl.h>
 #include <stdio.h>
 #include <string.h>
@@ -36,18 +37,60 @@ void lw_path_dir(char *out, size_t size, const char *path)
     out[n] = '\0';
 }
 
-lw_status lw_path_open_regular(const char *path, const char *mode, FILE **fp,
-                               const char *what_file, int what_line, const char *what,
-                               lw_error *err)
+/* Opens per path, for tests (lw_path_opens): the first LW_PATH_COUNTED
+ * paths opened since the last reset. */
+static pthread_mutex_t count_lock = PTHREAD_MUTEX_INITIALIZER;
+static struct {
+    char path[LW_PATH_MAX];
+    size_t n;
+} counted[LW_PATH_COUNTED];
+static size_t n_counted;
+
+static void count_open(const char *path)
+{
+    pthread_mutex_lock(&count_lock);
+    size_t i = 0;
+    while (i < n_counted && strcmp(counted[i].path, path) != 0)
+        i++;
+    if (i == n_counted && n_counted < LW_PATH_COUNTED && strlen(path) < LW_PATH_MAX) {
+        memcpy(counted[i].path, path, strlen(path) + 1);
+        counted[i].n = 0;
+        n_counted++;
+    }
+    if (i < n_counted)
+        counted[i].n++;
+    pthread_mutex_unlock(&count_lock);
+}
+
+size_t lw_path_opens(const char *path)
+{
+    size_t n = 0;
+    pthread_mutex_lock(&count_lock);
+    for (size_t i = 0; i < n_counted; i++)
+        if (!strcmp(counted[i].path, path))
+            n = counted[i].n;
+    pthread_mutex_unlock(&count_lock);
+    return n;
+}
+
+void lw_path_opens_reset(void)
+{
+    pthread_mutex_lock(&count_lock);
+    n_counted = 0;
+    pthread_mutex_unlock(&count_lock);
+}
+
+lw_status lw_path_open_regular(const char *path, const char *mode, const lw_path_ref *ref,
+                               FILE **fp, lw_error *err)
 {
     *fp = NULL;
-    const char *at = what_file ? what_file : path;
-    int line = what_file ? what_line : 0;
+    const char *at = ref ? ref->file : path;
+    int line = ref ? ref->line : 0;
     /* "[cell] curve: cannot open 'x.csv': ..." for a file named by a key;
      * "cannot open: ..." for the path itself, which the message names */
     char label[1024] = "", quoted[600] = "";
-    if (what_file) {
-        snprintf(label, sizeof label, "%s: ", what ? what : "file");
+    if (ref) {
+        snprintf(label, sizeof label, "%s: ", ref->what ? ref->what : "file");
         snprintf(quoted, sizeof quoted, " '%s'", path);
     }
     /* opened without blocking and judged by what was opened (not by a
@@ -75,16 +118,7 @@ lw_status lw_path_open_regular(const char *path, const char *mode, FILE **fp,
         return lw_error_set(err, LW_EINPUT, at, line, "%scannot open%s: %s", label, quoted,
                             why);
     }
+    count_open(path);
     *fp = f;
     return LW_OK;
-}
-
-lw_status lw_path_check_readable(const char *path, const char *from_file, int from_line,
-                            const char *what, lw_error *err)
-{
-    FILE *fp;
-    lw_status st = lw_path_open_regular(path, "rb", &fp, from_file, from_line, what, err);
-    if (fp)
-        fclose(fp);
-    return st;
 }

@@ -7,6 +7,7 @@
  */
 #include "lampwick/profile.h"
 #include "lampwick/path.h"
+#include "lampwick/cache.h"
 #include "lampwick/text.h"
 
 #include <math.h>
@@ -357,23 +358,23 @@ lw_status lw_profile_apply_mode(lw_profile *prof, const char *name, lw_error *er
 
 enum { XY_Y_POSITIVE = 1, XY_Y_NONDECREASING = 2, XY_THROUGH_ORIGIN = 4 };
 
-/* Read a two-column CSV (x in file units * xscale) into a table. */
-static lw_status load_xy(const lw_profile *p, const char *section, const char *key,
-                         const char *rel, const char *xcol, const char *ycol, double xscale,
-                         double yscale, unsigned flags, lw_interp **out, lw_error *err)
+/* How a two-column table is read: x in file units * xscale. */
+typedef struct xy_spec {
+    const char *xcol, *ycol;
+    double xscale, yscale;
+    unsigned flags;
+    lw_path_ref ref;   /* the key that names the file */
+} xy_spec;
+
+/* Read and check a two-column CSV into a table (lw_cache_table_fn). */
+static lw_status read_xy(const char *path, const void *ctx, lw_interp **out, lw_error *err)
 {
-    char path[LW_PATH_MAX];
-    char what[2 * LW_INI_NAME_MAX + 4];
-    snprintf(what, sizeof what, "[%s] %s", section, key);
-    if (!lw_path_join(path, sizeof path, p->dir, rel))
-        return lw_error_set(err, LW_EINPUT, p->path, line_of(p, section, key),
-                            "%s: the path is too long (at most %d bytes)", what,
-                            LW_PATH_MAX - 1);
-    lw_status st = lw_path_check_readable(path, p->path, line_of(p, section, key), what, err);
-    if (st != LW_OK)
-        return st;
+    const xy_spec *sp = ctx;
+    const char *xcol = sp->xcol, *ycol = sp->ycol;
+    const double xscale = sp->xscale, yscale = sp->yscale;
+    const unsigned flags = sp->flags;
     lw_csv csv;
-    st = lw_csv_read(path, &csv, err);
+    lw_status st = lw_csv_read(path, &sp->ref, &csv, err);
     if (st != LW_OK)
         return st;
     const char *cols[] = {xcol, ycol, NULL};
@@ -418,13 +419,36 @@ static lw_status load_xy(const lw_profile *p, const char *section, const char *k
         lw_interp *t = lw_interp_new(x, y, n + off, err);
         if (!t)
             st = err && err->code ? err->code : LW_ENOMEM;
-        else {
-            lw_interp_free(*out);
+        else
             *out = t;
-        }
     }
     free(x);
     lw_csv_clear(&csv);
+    return st;
+}
+
+
+/* The table named by [section] key = rel: read once per process (cache.h),
+ * then shared. */
+static lw_status load_xy(const lw_profile *p, const char *section, const char *key,
+                         const char *rel, const char *xcol, const char *ycol, double xscale,
+                         double yscale, unsigned flags, lw_interp **out, lw_error *err)
+{
+    char path[LW_PATH_MAX];
+    char what[2 * LW_INI_NAME_MAX + 4], kind[2 * LW_INI_NAME_MAX + 2];
+    snprintf(what, sizeof what, "[%s] %s", section, key);
+    snprintf(kind, sizeof kind, "%s.%s", section, key);
+    if (!lw_path_join(path, sizeof path, p->dir, rel))
+        return lw_error_set(err, LW_EINPUT, p->path, line_of(p, section, key),
+                            "%s: the path is too long (at most %d bytes)", what,
+                            LW_PATH_MAX - 1);
+    xy_spec spec = {xcol, ycol, xscale, yscale, flags, {p->path, line_of(p, section, key), what}};
+    lw_interp *t;
+    lw_status st = lw_cache_table(path, kind, read_xy, &spec, &t, err);
+    if (st == LW_OK) {
+        lw_interp_free(*out);
+        *out = t;
+    }
     return st;
 }
 
@@ -534,6 +558,11 @@ static lw_status check_drive(lw_profile *p, lw_error *err)
     return st;
 }
 
+static lw_status load_cell_file(const char *path, const void *ctx, lw_cell *out, lw_error *err)
+{
+    return lw_cellfile_load_named(path, ctx, out, err);
+}
+
 static lw_status load_cell(lw_profile *p, lw_error *err)
 {
     char path[LW_PATH_MAX];
@@ -546,12 +575,9 @@ static lw_status load_cell(lw_profile *p, lw_error *err)
         return lw_error_set(err, LW_EINPUT, file, line, "[pack] cell: %s", local.msg);
     if (!strcmp(path, p->cell_path) && p->light.pack.cell.ocv)
         return LW_OK;
-    if (!lw_cellfile_is_cell(path))
-        return lw_error_set(err, LW_EINPUT, file, line,
-                            "[pack] cell: '%s' is not a cell file (it has no [cell] section)",
-                            path);
+    lw_path_ref ref = {file, line, "[pack] cell"};
     lw_cell cell;
-    lw_status st = lw_cellfile_load(path, &cell, err);
+    lw_status st = lw_cache_cell(path, load_cell_file, &ref, &cell, err);
     if (st != LW_OK)
         return st;
     lw_cell_clear(&p->light.pack.cell);
@@ -644,7 +670,7 @@ static lw_status check_modes(const lw_profile *p, lw_error *err)
 /* Each key as the file is read: a known key of a known section, or in a
  * [mode NAME] section a known "section.key"; the first unknown one stops
  * the reading at its line. */
-static lw_status profile_check(void *ctx, const char *section, const char *key,
+static lw_status profile_check(const void *ctx, const char *section, const char *key,
                                const char *file, int line, lw_error *err)
 {
     (void)ctx;

@@ -35,7 +35,7 @@ lw_status lw_cellfit_log_read(const char *path, double load_ohm, double load_a, 
     memset(log, 0, sizeof *log);
     lw_text_copy(log->path, path, sizeof log->path);
     lw_csv csv;
-    lw_status st = lw_csv_read(path, &csv, err);
+    lw_status st = lw_csv_read(path, NULL, &csv, err);
     if (st != LW_OK)
         return st;
     static const char *const req[] = {"time_s", "voltage_v", NULL};

@@ -38,6 +38,7 @@ static void scratch(void)
             close(fd);
         }
     }
+    lw_cache_clear(); /* files of the same name are rewritten for every input */
     DIR *d = opendir(dir);
     if (!d)
         abort();
