@@ -71,4 +71,21 @@ typedef struct lw_flux_fit {
 lw_status lw_fit_flux(const double *i_a, const double *flux, size_t n, lw_flux_fit *out,
                       lw_error *err);
 
+/* Bench measurements of one LED: current_ma, forward_v and optionally
+ * flux_lm or relative_pct (docs/formats.md), in SI. */
+typedef struct lw_fit_data {
+    size_t n;
+    double *i_a, *v, *flux;  /* flux NULL when not measured */
+    bool relative;           /* the output column was relative_pct */
+} lw_fit_data;
+
+/* Read measurements (at least 3 rows, positive currents, voltages and
+ * outputs).  Free with lw_fit_data_clear. */
+lw_status lw_fit_led_read(const char *path, lw_fit_data *data, lw_error *err);
+void lw_fit_data_clear(lw_fit_data *data);
+
+/* The I-V model to recommend of the two fitted (either may be NULL): the
+ * Shockley fit when it is not weak and fits better, else the linear one. */
+const lw_led_fit *lw_fit_led_best(const lw_led_fit *linear, const lw_led_fit *shockley);
+
 #endif

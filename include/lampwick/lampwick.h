@@ -68,6 +68,7 @@
 #include "sizereport.h"
 #include "specreport.h"
 #include "sweepreport.h"
+#include "fitreport.h"
 #include "plot.h"
 #include "eseries.h"
 #include "pool.h"

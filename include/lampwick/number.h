@@ -5,6 +5,13 @@
  * Owns: lw_number_parse (plain decimals and resistor codes), the strict
  * double and integer parsers under it, and lw_number_format.  The resistor
  * codes follow IEC 60062.
+ *
+ * Locale: every number lampwick parses or prints is in the C locale ("3.5",
+ * never "3,5"), whatever locale the host program set.  The parsers and
+ * lw_number_format switch the calling thread to the C locale themselves;
+ * every library function that prints numbers (reports, tables, charts,
+ * cell files, messages) does the same around its work with
+ * lw_number_locale_begin/end.
  */
 #ifndef LW_NUMBER_H
 #define LW_NUMBER_H
@@ -14,6 +21,7 @@
 #error "base-layer header included from a lower layer"
 #endif
 
+#include <locale.h>
 #include <stdbool.h>
 #include <stddef.h>
 
@@ -35,5 +43,10 @@ bool lw_number_parse_int(const char *s, int *out);
  * significant digits, "%g" style); "" for a non-finite v.  buf needs 32
  * bytes. */
 void lw_number_format(char *buf, size_t size, double v);
+
+/* Switch the calling thread to the C locale; returns what to restore with
+ * lw_number_locale_end (nesting is fine). */
+locale_t lw_number_locale_begin(void);
+void lw_number_locale_end(locale_t saved);
 
 #endif

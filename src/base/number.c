@@ -7,9 +7,33 @@
 #include <errno.h>
 #include <limits.h>
 #include <math.h>
+#include <pthread.h>
 #include <stdio.h>
 #include <stdlib.h>
 #include <string.h>
+
+/* The C locale, made once (POSIX newlocale; uselocale switches only the
+ * calling thread, so a host program's locale and other threads are left
+ * alone). */
+static locale_t c_locale;
+static pthread_once_t c_locale_once = PTHREAD_ONCE_INIT;
+
+static void make_c_locale(void)
+{
+    c_locale = newlocale(LC_ALL_MASK, "C", (locale_t)0);
+}
+
+locale_t lw_number_locale_begin(void)
+{
+    pthread_once(&c_locale_once, make_c_locale);
+    return c_locale ? uselocale(c_locale) : (locale_t)0;
+}
+
+void lw_number_locale_end(locale_t saved)
+{
+    if (saved)
+        uselocale(saved);
+}
 
 static const char *skip_blank(const char *s)
 {
@@ -36,8 +60,11 @@ bool lw_number_parse_double(const char *s, double *out)
         return false;
     char *end = NULL;
     errno = 0;
+    locale_t saved = lw_number_locale_begin();
     double v = strtod(s, &end);
-    if (end == s || errno == ERANGE || !isfinite(v))
+    int e = errno;
+    lw_number_locale_end(saved);
+    if (end == s || e == ERANGE || !isfinite(v))
         return false;
     if (*skip_blank(end) != '\0')
         return false;
@@ -144,9 +171,11 @@ void lw_number_format(char *buf, size_t size, double v)
     }
     /* a decimal of at most 15 digits that reads back as v is what %.15g
      * prints (zeros trimmed); otherwise 16, and 17 always round-trips */
+    locale_t saved = lw_number_locale_begin();
     for (int prec = 15; prec <= 17; prec++) {
         snprintf(buf, size, "%.*g", prec, v);
         if (prec == 17 || strtod(buf, NULL) == v)
-            return;
+            break;
     }
+    lw_number_locale_end(saved);
 }

@@ -36,188 +36,6 @@ const cli_option cli_fit_cell_options[] = {
 
 /* ---- fit led ---- */
 
-typedef struct led_data {
-    size_t n;
-    double *i_a, *v, *flux;  /* flux NULL when not measured */
-    bool relative;           /* flux column was relative_pct */
-} led_data;
-
-static lw_status read_led_data(const char *path, led_data *d, lw_error *err)
-{
-    memset(d, 0, sizeof *d);
-    lw_csv csv;
-    lw_status st = lw_csv_read(path, NULL, &csv, err);
-    if (st != LW_OK)
-        return st;
-    static const char *const req[] = {"current_ma", "forward_v", NULL};
-    static const char *const opt[] = {"flux_lm", "relative_pct", NULL};
-    st = lw_csv_expect(&csv, req, opt, err);
-    int ci = lw_csv_column(&csv, "current_ma"), cv = lw_csv_column(&csv, "forward_v");
-    int cf = lw_csv_column(&csv, "flux_lm"), cr = lw_csv_column(&csv, "relative_pct");
-    if (st == LW_OK && cf >= 0 && cr >= 0)
-        st = lw_error_set(err, LW_EINPUT, path, csv.header_line,
-                          "give flux_lm or relative_pct, not both");
-    if (cf < 0)
-        cf = cr;
-    size_t n = csv.nrow;
-    double *buf = st == LW_OK ? lw_malloc(3 * n * sizeof *buf) : NULL;
-    if (!buf) {
-        lw_csv_clear(&csv);
-        return st != LW_OK ? st : lw_error_set(err, LW_ENOMEM, NULL, 0, "out of memory");
-    }
-    for (size_t k = 0; st == LW_OK && k < n; k++) {
-        double i = lw_csv_at(&csv, k, ci), v = lw_csv_at(&csv, k, cv);
-        if (!(i > 0))
-            st = lw_error_set(err, LW_EINPUT, path, csv.line[k],
-                              "current_ma = %g: the fits need positive currents", i);
-        else if (!(v > 0))
-            st = lw_error_set(err, LW_EINPUT, path, csv.line[k],
-                              "forward_v = %g: expected a positive voltage", v);
-        else if (cf >= 0 && !(lw_csv_at(&csv, k, cf) > 0))
-            st = lw_error_set(err, LW_EINPUT, path, csv.line[k],
-                              "%s = %g: expected a positive output", csv.names[cf],
-                              lw_csv_at(&csv, k, cf));
-        if (st == LW_OK) {
-            buf[k] = i * 1e-3;
-            buf[n + k] = v;
-            buf[2 * n + k] = cf >= 0 ? lw_csv_at(&csv, k, cf) : 0;
-        }
-    }
-    if (st == LW_OK && n < 3)
-        st = lw_error_set(err, LW_EINPUT, path, csv.line[n - 1],
-                          "%zu points are too few to fit (need at least 3; 6 or more over a "
-                          "decade of current for the Shockley model)",
-                          n);
-    lw_csv_clear(&csv);
-    if (st != LW_OK) {
-        free(buf);
-        return st;
-    }
-    d->n = n;
-    d->i_a = buf;
-    d->v = buf + n;
-    d->flux = cf >= 0 ? buf + 2 * n : NULL;
-    d->relative = cf >= 0 && cf == cr;
-    return LW_OK;
-}
-
-static void print_section(FILE *fp, const lw_led_fit *lin, const lw_led_fit *sh,
-                          const lw_flux_fit *fx, bool relative, const led_data *d,
-                          double junction_c)
-{
-    fprintf(fp, "[led]\n");
-    if (sh) {
-        fprintf(fp, "model = shockley\nideality = %.5g\nsaturation_a = %.5g\nseries_ohm = %.5g\n",
-                sh->ideality, sh->saturation_a, sh->series_ohm);
-    } else if (lin) {
-        fprintf(fp, "model = linear\nthreshold_v = %.5g\nslope_ohm = %.5g\n", lin->threshold_v,
-                lin->slope_ohm);
-    }
-    fprintf(fp, "; the junction temperature of the bench data (not a heating setting)\n"
-                "junction_c = %g\n",
-            junction_c);
-    if (fx && !relative)
-        fprintf(fp, "flux_lm = %.5g\nflux_current_ma = %.5g\nflux_exponent = %.4g\n",
-                fx->flux_lm, fx->ref_current_a * 1e3, fx->exponent);
-    else if (fx)
-        fprintf(fp, "; output was measured relative: flux_exponent = %.4g; set flux_lm at "
-                    "flux_current_ma = %.5g from the LED's data\nflux_exponent = %.4g\n",
-                fx->exponent, fx->ref_current_a * 1e3, fx->exponent);
-    if (!d->i_a || d->n == 0)
-        return;
-    double imin = d->i_a[0], imax = d->i_a[0];
-    for (size_t k = 1; k < d->n; k++) {
-        imin = fmin(imin, d->i_a[k]);
-        imax = fmax(imax, d->i_a[k]);
-    }
-    fprintf(fp, "; fitted by lampwick fit led; valid from %.4g to %.4g mA\n", imin * 1e3,
-            imax * 1e3);
-}
-
-static void print_fit_text(const lw_led_fit *lin, const lw_led_fit *sh, const lw_flux_fit *fx,
-                           bool relative, const led_data *d, double junction_c)
-{
-    if (!d->i_a || d->n == 0)
-        return;
-    double lo = d->i_a[0], hi = d->i_a[0];
-    for (size_t k = 1; k < d->n; k++) {
-        lo = fmin(lo, d->i_a[k]);
-        hi = fmax(hi, d->i_a[k]);
-    }
-    printf("%zu measurements from %.4g to %.4g mA\n\n", d->n, lo * 1e3, hi * 1e3);
-    if (lin)
-        printf("linear    threshold_v = %.5g V (+- %.2g)   slope_ohm = %.5g ohm (+- %.2g)\n"
-               "          R^2 = %.6f   residual standard error %.3g mV\n\n",
-               lin->threshold_v, lin->lsq.stderr_[0], lin->slope_ohm, lin->lsq.stderr_[1],
-               lin->lsq.r_squared, lin->lsq.rse * 1e3);
-    if (sh) {
-        printf("shockley  ideality = %.5g   saturation_a = %.4g A   series_ohm = %.5g ohm "
-               "(+- %.2g)\n"
-               "          at %g C (n Vt = %.5g V +- %.2g)   R^2 = %.6f   residual standard "
-               "error %.3g mV\n",
-               sh->ideality, sh->saturation_a, sh->series_ohm, sh->lsq.stderr_[2],
-               sh->junction_c, sh->lsq.coef[1], sh->lsq.stderr_[1], sh->lsq.r_squared,
-               sh->lsq.rse * 1e3);
-        if (sh->weak)
-            printf("          WARNING: %s; the three parameters are poorly determined\n",
-                   sh->series_ohm < 0 ? "the fitted series resistance is negative"
-                                      : "fewer than 6 points or less than a decade of current");
-        printf("\n");
-    }
-    if (fx)
-        printf("flux      %s = %.5g at %.5g mA, exponent %.4g (+- %.2g), R^2 (log) = %.6f\n\n",
-               relative ? "relative_pct" : "flux_lm", fx->flux_lm, fx->ref_current_a * 1e3,
-               fx->exponent, fx->lsq.stderr_[1], fx->lsq.r_squared);
-    printf("Paste into a profile:\n\n");
-    print_section(stdout, lin, sh && !sh->weak && (!lin || sh->lsq.rse < lin->lsq.rse) ? sh : NULL,
-                  fx, relative, d, junction_c);
-}
-
-static lw_status fit_table(const lw_led_fit *lin, const lw_led_fit *sh, const lw_flux_fit *fx,
-                           lw_rtable_format fmt, lw_error *err)
-{
-    static const char *const head[] = {"model",        "threshold_v", "slope_ohm",
-                                       "ideality",     "saturation_a", "series_ohm",
-                                       "r_squared",    "rse_v",       "flux_lm",
-                                       "flux_current_ma", "flux_exponent"};
-    lw_rtable *t = lw_rtable_new(11, err);
-    if (!t)
-        return LW_ENOMEM;
-    lw_status st = LW_OK;
-    for (size_t k = 0; k < 11 && st == LW_OK; k++)
-        st = lw_rtable_head(t, k, head[k], err);
-    const lw_led_fit *fits[2] = {lin, sh};
-    for (size_t m = 0; m < 2 && st == LW_OK; m++) {
-        const lw_led_fit *f = fits[m];
-        if (!f)
-            continue;
-        size_t r;
-        st = lw_rtable_add_row(t, &r, err);
-        lw_rtable_set(t, r, 0, m == 0 ? "linear" : "shockley", err);
-        if (m == 0) {
-            lw_rtable_setf(t, r, 1, err, "%.8g", f->threshold_v);
-            lw_rtable_setf(t, r, 2, err, "%.8g", f->slope_ohm);
-        } else {
-            lw_rtable_setf(t, r, 3, err, "%.8g", f->ideality);
-            lw_rtable_setf(t, r, 4, err, "%.8g", f->saturation_a);
-            lw_rtable_setf(t, r, 5, err, "%.8g", f->series_ohm);
-        }
-        lw_rtable_setf(t, r, 6, err, "%.8g", f->lsq.r_squared);
-        lw_rtable_setf(t, r, 7, err, "%.6g", f->lsq.rse);
-        if (fx) {
-            lw_rtable_setf(t, r, 8, err, "%.6g", fx->flux_lm);
-            lw_rtable_setf(t, r, 9, err, "%.6g", fx->ref_current_a * 1e3);
-            lw_rtable_setf(t, r, 10, err, "%.6g", fx->exponent);
-        }
-    }
-    if (st == LW_OK && err && err->code)
-        st = err->code;
-    if (st == LW_OK)
-        st = lw_rtable_write(t, stdout, fmt, err);
-    lw_rtable_free(t);
-    return st;
-}
-
 typedef struct led_args {
     common_opts o;
     bool want_lin, want_sh, section_only;
@@ -251,7 +69,7 @@ static int led_option(void *ctx, int id, const char *arg)
 }
 
 typedef struct {
-    const led_data *d;
+    const lw_fit_data *d;
     const lw_led_fit *lin, *sh;
 } fit_plot_ctx;
 
@@ -261,7 +79,7 @@ static lw_status fit_plot_fn(FILE *fp, const void *ctx, lw_error *err)
     return lw_plot_led_fit(fp, c->d->i_a, c->d->v, c->d->n, c->lin, c->sh, err);
 }
 
-static lw_status fit_plot(const char *path, const led_data *d, const lw_led_fit *lin,
+static lw_status fit_plot(const char *path, const lw_fit_data *d, const lw_led_fit *lin,
                           const lw_led_fit *sh, lw_error *err)
 {
     fit_plot_ctx c = {d, lin, sh};
@@ -278,13 +96,13 @@ int cli_fit_led(int argc, char **argv)
         return usage_error("fit led", "fit led takes one measurements file");
     lw_error err;
     lw_error_clear(&err);
-    led_data d = {0};
+    lw_fit_data d = {0};
     lw_led_fit lin = {0}, sh = {0};
     lw_flux_fit fx = {0};
     const char *in[] = {argv[first]}, *outs[] = {a.plot_path}, *names[] = {"--plot"};
     lw_status st = check_outputs(NULL, in, 1, outs, names, 1, &err);
     if (st == LW_OK)
-        st = read_led_data(argv[first], &d, &err);
+        st = lw_fit_led_read(argv[first], &d, &err);
     if (st == LW_OK && a.want_lin)
         st = lw_fit_led_linear(d.i_a, d.v, d.n, &lin, &err);
     if (st == LW_OK && a.want_sh)
@@ -297,17 +115,11 @@ int cli_fit_led(int argc, char **argv)
     const lw_flux_fit *pf = d.flux ? &fx : NULL;
     if (st == LW_OK && a.plot_path)
         st = fit_plot(a.plot_path, &d, pl, ps, &err);
-    if (st == LW_OK) {
-        if (a.section_only)
-            print_section(stdout, pl,
-                          ps && !ps->weak && (!pl || ps->lsq.rse < pl->lsq.rse) ? ps : NULL, pf,
-                          d.relative, &d, a.tj);
-        else if (a.o.fmt == LW_FMT_TEXT)
-            print_fit_text(pl, ps, pf, d.relative, &d, a.tj);
-        else
-            st = fit_table(pl, ps, pf, a.o.fmt, &err);
-    }
-    free(d.i_a);
+    if (st == LW_OK && a.section_only)
+        st = lw_report_led_section(stdout, &d, pl, ps, pf, a.tj, &err);
+    else if (st == LW_OK)
+        st = lw_report_led_fit(stdout, a.o.fmt, &d, pl, ps, pf, a.tj, &err);
+    lw_fit_data_clear(&d);
     return st == LW_OK ? 0 : report_error(&err);
 }
 
@@ -437,27 +249,8 @@ int cli_fit_cell(int argc, char **argv)
         st = lw_cellfit_fit(logs, (size_t)nlogs, &opt, &fit, &err);
     if (st == LW_OK) {
         const lw_cell *cl = &fit.cell;
-        printf("cell %s from %d log%s, end point %g V\n", cl->name, nlogs, nlogs > 1 ? "s" : "",
-               opt.cutoff_v);
-        for (int k = 0; k < nlogs; k++)
-            printf("  %s: %.5g mAh in %.4g h, mean %.5g mA\n", argv[optind_ + k],
-                   fit.capacity_ah[k] * 1e3, fit.hours[k], fit.mean_a[k] * 1e3);
-        printf("  capacity_mah %.5g at rated_ma %.5g\n", cl->capacity_ah * 1e3,
-               cl->rated_a * 1e3);
-        if (fit.peukert_estimated)
-            printf("  peukert %.4g from the two capacities%s\n", cl->peukert,
-                   fit.peukert_clamped ? " (clamped to 1..2: check the logs)" : "");
-        else
-            printf("  peukert 1 (one log: the rate effect is not measured)\n");
-        double rmin = cl->res->y[0], rmax = rmin;
-        for (size_t i = 1; i < cl->res->n; i++) {
-            rmin = fmin(rmin, cl->res->y[i]);
-            rmax = fmax(rmax, cl->res->y[i]);
-        }
-        printf("  internal resistance %.4g to %.4g ohm%s\n", rmin, rmax,
-               nlogs == 1 ? " (as given by --resistance-ohm)" : " (from the two loads)");
-        printf("  curve: %zu points kept of %zu, within %.2g mV of the logs' curve\n",
-               cl->ocv->n, fit.dense_points, fit.max_dev_v * 1e3);
+        const char *log_names[2] = {argv[optind_], nlogs > 1 ? argv[optind_ + 1] : NULL};
+        st = lw_report_cell_fit(stdout, &fit, log_names, opt.cutoff_v, &err);
         if (out_path) {
             char comment[1024];
             time_t now = time(NULL);
@@ -471,7 +264,8 @@ int cli_fit_cell(int argc, char **argv)
                      "maker's data.",
                      date, argv[optind_], nlogs > 1 ? " and " : "", nlogs > 1 ? argv[optind_ + 1] : "",
                      opt.cutoff_v);
-            st = lw_cellfile_save(out_path, cl, comment, &err);
+            if (st == LW_OK)
+                st = lw_cellfile_save(out_path, cl, comment, &err);
             if (st == LW_OK)
                 printf("  wrote %s and its curve\n", out_path);
         }

@@ -7,6 +7,7 @@
  * the scaling is undone on the coefficients.
  */
 #include "lampwick/fit.h"
+#include "lampwick/csvio.h"
 
 #include <float.h>
 #include <math.h>
@@ -254,4 +255,80 @@ lw_status lw_fit_flux(const double *i_a, const double *flux, size_t n, lw_flux_f
     out->exponent = out->lsq.coef[1];
     out->flux_lm = exp(out->lsq.coef[0] + out->exponent * (log(out->ref_current_a) - log_ref));
     return LW_OK;
+}
+
+/* ---- measurements ---- */
+
+lw_status lw_fit_led_read(const char *path, lw_fit_data *d, lw_error *err)
+{
+    memset(d, 0, sizeof *d);
+    lw_csv csv;
+    lw_status st = lw_csv_read(path, NULL, &csv, err);
+    if (st != LW_OK)
+        return st;
+    static const char *const req[] = {"current_ma", "forward_v", NULL};
+    static const char *const opt[] = {"flux_lm", "relative_pct", NULL};
+    st = lw_csv_expect(&csv, req, opt, err);
+    int ci = lw_csv_column(&csv, "current_ma"), cv = lw_csv_column(&csv, "forward_v");
+    int cf = lw_csv_column(&csv, "flux_lm"), cr = lw_csv_column(&csv, "relative_pct");
+    if (st == LW_OK && cf >= 0 && cr >= 0)
+        st = lw_error_set(err, LW_EINPUT, path, csv.header_line,
+                          "give flux_lm or relative_pct, not both");
+    if (cf < 0)
+        cf = cr;
+    size_t n = csv.nrow;
+    double *buf = st == LW_OK ? lw_malloc(3 * n * sizeof *buf) : NULL;
+    if (!buf) {
+        lw_csv_clear(&csv);
+        return st != LW_OK ? st : lw_error_set(err, LW_ENOMEM, NULL, 0, "out of memory");
+    }
+    for (size_t k = 0; st == LW_OK && k < n; k++) {
+        double i = lw_csv_at(&csv, k, ci), v = lw_csv_at(&csv, k, cv);
+        if (!(i > 0))
+            st = lw_error_set(err, LW_EINPUT, path, csv.line[k],
+                              "current_ma = %g: the fits need positive currents", i);
+        else if (!(v > 0))
+            st = lw_error_set(err, LW_EINPUT, path, csv.line[k],
+                              "forward_v = %g: expected a positive voltage", v);
+        else if (cf >= 0 && !(lw_csv_at(&csv, k, cf) > 0))
+            st = lw_error_set(err, LW_EINPUT, path, csv.line[k],
+                              "%s = %g: expected a positive output", csv.names[cf],
+                              lw_csv_at(&csv, k, cf));
+        if (st == LW_OK) {
+            buf[k] = i * 1e-3;
+            buf[n + k] = v;
+            buf[2 * n + k] = cf >= 0 ? lw_csv_at(&csv, k, cf) : 0;
+        }
+    }
+    if (st == LW_OK && n < 3)
+        st = lw_error_set(err, LW_EINPUT, path, csv.line[n - 1],
+                          "%zu points are too few to fit (need at least 3; 6 or more over a "
+                          "decade of current for the Shockley model)",
+                          n);
+    lw_csv_clear(&csv);
+    if (st != LW_OK) {
+        free(buf);
+        return st;
+    }
+    d->n = n;
+    d->i_a = buf;
+    d->v = buf + n;
+    d->flux = cf >= 0 ? buf + 2 * n : NULL;
+    d->relative = cf >= 0 && cf == cr;
+    return LW_OK;
+}
+
+void lw_fit_data_clear(lw_fit_data *d)
+{
+    if (!d)
+        return;
+    free(d->i_a);
+    memset(d, 0, sizeof *d);
+}
+
+const lw_led_fit *lw_fit_led_best(const lw_led_fit *lin, const lw_led_fit *sh)
+{
+    if (sh && !sh->weak && (!lin || sh->lsq.rse < lin->lsq.rse))
+        return sh;
+    return lin;
 }
