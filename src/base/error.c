@@ -3,6 +3,7 @@
  */
 #include "lampwick/error.h"
 #include "lampwick/text.h"
+#include "lampwick/number.h"
 
 #include <ctype.h>
 #include <errno.h>
@@ -31,7 +32,9 @@ lw_status lw_error_vset(lw_error *err, lw_status code, const char *file, int lin
     err->code = code;
     lw_text_copy(err->file, file ? file : "", sizeof err->file);
     err->line = line;
+    locale_t saved = lw_number_locale_begin(); /* numbers in messages: C locale */
     vsnprintf(err->msg, sizeof err->msg, fmt, ap); // NOLINT(clang-analyzer-valist.Uninitialized): va_start in the caller
+    lw_number_locale_end(saved);
     return code;
 }
 

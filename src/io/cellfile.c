@@ -2,6 +2,7 @@
  * cellfile.c - cell files and the cell search path (see cellfile.h).
  */
 #include "lampwick/cellfile.h"
+#include "lampwick/number.h"
 #include "lampwick/path.h"
 #include "lampwick/text.h"
 
@@ -540,7 +541,7 @@ static lw_status write_cell_text(FILE *fp, const void *ctx, lw_error *err)
     return ferror(fp) ? lw_error_set(err, LW_EIO, NULL, 0, "write error") : LW_OK;
 }
 
-lw_status lw_cellfile_save(const char *ini_path, const lw_cell *cell, const char *comment,
+static lw_status lw_cellfile_save_in_c_locale(const char *ini_path, const lw_cell *cell, const char *comment,
                        lw_error *err)
 {
     size_t len = strlen(ini_path);
@@ -601,4 +602,13 @@ lw_status lw_cellfile_save(const char *ini_path, const lw_cell *cell, const char
     if (old_curve[0] && strcmp(old_curve, curve_path) != 0)
         unlink(old_curve);
     return LW_OK;
+}
+
+lw_status lw_cellfile_save(const char *ini_path, const lw_cell *cell, const char *comment,
+                       lw_error *err)
+{
+    locale_t saved = lw_number_locale_begin();
+    lw_status result = lw_cellfile_save_in_c_locale(ini_path, cell, comment, err);
+    lw_number_locale_end(saved);
+    return result;
 }

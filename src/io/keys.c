@@ -85,11 +85,13 @@ static lw_status range_error(const lw_keydef *d, const char *value, const char *
                              lw_error *err)
 {
     char lo[40] = "", hi[40] = "";
+    locale_t saved = lw_number_locale_begin();
     if (isfinite(d->min))
         snprintf(lo, sizeof lo, "%s %g", (d->flags & LW_KF_MIN_OPEN) ? ">" : ">=", d->min);
     if (isfinite(d->max))
         snprintf(hi, sizeof hi, "%s%s %g", lo[0] ? " and " : "",
                  (d->flags & LW_KF_MAX_OPEN) ? "<" : "<=", d->max);
+    lw_number_locale_end(saved);
     return lw_error_set(err, LW_EINPUT, file, line, "[%s] %s = %s: expected %s %s%s (%s)",
                         d->section, d->name, value, d->type == LW_K_INT ? "an integer" : "a number",
                         lo, hi, d->help);

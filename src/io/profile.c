@@ -6,6 +6,7 @@
  * but returns the error, and callers stop there.
  */
 #include "lampwick/profile.h"
+#include "lampwick/number.h"
 #include "lampwick/path.h"
 #include "lampwick/cache.h"
 #include "lampwick/text.h"
@@ -778,7 +779,7 @@ bool lw_profile_given(const lw_profile *p, const char *dotted_key)
            given(p, section, key);
 }
 
-void lw_profile_value_text(const lw_profile *p, const char *dotted_key, char *buf, size_t size)
+static void lw_profile_value_text_in_c_locale(const lw_profile *p, const char *dotted_key, char *buf, size_t size)
 {
     char section[LW_INI_NAME_MAX], key[LW_INI_NAME_MAX];
     buf[0] = '\0';
@@ -818,4 +819,11 @@ void lw_profile_value_text(const lw_profile *p, const char *dotted_key, char *bu
         snprintf(buf, size, "%s", at);
         break;
     }
+}
+
+void lw_profile_value_text(const lw_profile *p, const char *dotted_key, char *buf, size_t size)
+{
+    locale_t saved = lw_number_locale_begin();
+    lw_profile_value_text_in_c_locale(p, dotted_key, buf, size);
+    lw_number_locale_end(saved);
 }

@@ -2,6 +2,7 @@
  * pickreport.c - the report of a resistor pick (see pickreport.h).
  */
 #include "lampwick/pickreport.h"
+#include "lampwick/number.h"
 
 #include <math.h>
 #include <stdio.h>
@@ -104,7 +105,7 @@ static lw_status pick_text(FILE *fp, const lw_profile *prof, const lw_pick *pk,
     return ferror(fp) ? lw_error_set(err, LW_EIO, NULL, 0, "write error") : LW_OK;
 }
 
-lw_status lw_report_pick(FILE *fp, const lw_profile *prof, const lw_pick *picks, size_t n,
+static lw_status lw_report_pick_in_c_locale(FILE *fp, const lw_profile *prof, const lw_pick *picks, size_t n,
                          lw_target_kind kind, double target, lw_rtable_format fmt, lw_error *err)
 {
     lw_status st = LW_OK;
@@ -168,4 +169,13 @@ lw_status lw_report_pick(FILE *fp, const lw_profile *prof, const lw_pick *picks,
         st = lw_rtable_write(t, fp, fmt, err);
     lw_rtable_free(t);
     return st;
+}
+
+lw_status lw_report_pick(FILE *fp, const lw_profile *prof, const lw_pick *picks, size_t n,
+                         lw_target_kind kind, double target, lw_rtable_format fmt, lw_error *err)
+{
+    locale_t saved = lw_number_locale_begin();
+    lw_status result = lw_report_pick_in_c_locale(fp, prof, picks, n, kind, target, fmt, err);
+    lw_number_locale_end(saved);
+    return result;
 }

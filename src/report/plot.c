@@ -6,6 +6,7 @@
  * colour-blind-considerate palette of our own.
  */
 #include "lampwick/plot.h"
+#include "lampwick/number.h"
 #include "lampwick/text.h"
 
 #include <math.h>
@@ -345,7 +346,7 @@ static void draw_legend(FILE *fp, const frame *f, const lw_panel *p, size_t colo
     }
 }
 
-lw_status lw_plot_svg(FILE *fp, const lw_chart *c, lw_error *err)
+static lw_status lw_plot_svg_in_c_locale(FILE *fp, const lw_chart *c, lw_error *err)
 {
     double W = c->width_px > 0 ? c->width_px : 900, H = c->height_px > 0 ? c->height_px : 560;
     double left = 80, right = 80, top = c->subtitle ? 64 : 46, bottom = 60, gap = 18;
@@ -405,7 +406,7 @@ lw_status lw_plot_svg(FILE *fp, const lw_chart *c, lw_error *err)
     return ferror(fp) ? lw_error_set(err, LW_EIO, NULL, 0, "write error") : LW_OK;
 }
 
-lw_status lw_plot_run(FILE *fp, const char *title, const lw_light *light, const lw_result *res,
+static lw_status lw_plot_run_in_c_locale(FILE *fp, const char *title, const lw_light *light, const lw_result *res,
                       const lw_trace *trace, lw_error *err)
 {
     size_t n = trace->n;
@@ -462,7 +463,7 @@ lw_status lw_plot_run(FILE *fp, const char *title, const lw_light *light, const 
     return st;
 }
 
-lw_status lw_plot_led_fit(FILE *fp, const double *i_a, const double *v, size_t n,
+static lw_status lw_plot_led_fit_in_c_locale(FILE *fp, const double *i_a, const double *v, size_t n,
                           const lw_led_fit *lin, const lw_led_fit *sh, lw_error *err)
 {
     size_t nc = 200;
@@ -521,7 +522,7 @@ lw_status lw_plot_led_fit(FILE *fp, const double *i_a, const double *v, size_t n
     return st;
 }
 
-lw_status lw_plot_sweep(const lw_profile *prof, const lw_sweep *sw, lw_chart *c, void **buf,
+static lw_status lw_plot_sweep_in_c_locale(const lw_profile *prof, const lw_sweep *sw, lw_chart *c, void **buf,
                          lw_error *err)
 {
     size_t nk = sw->nvary, group_k = nk, label_k = nk ? nk - 1 : 0;
@@ -582,4 +583,39 @@ lw_status lw_plot_sweep(const lw_profile *prof, const lw_sweep *sw, lw_chart *c,
     p->y = (lw_axis){.label = "runtime to cutoff (h)", .log = ymax > 30 * ymin,
                      .from_zero = !(ymax > 30 * ymin)};
     return LW_OK;
+}
+
+lw_status lw_plot_svg(FILE *fp, const lw_chart *c, lw_error *err)
+{
+    locale_t saved = lw_number_locale_begin();
+    lw_status result = lw_plot_svg_in_c_locale(fp, c, err);
+    lw_number_locale_end(saved);
+    return result;
+}
+
+lw_status lw_plot_run(FILE *fp, const char *title, const lw_light *light, const lw_result *res,
+                      const lw_trace *trace, lw_error *err)
+{
+    locale_t saved = lw_number_locale_begin();
+    lw_status result = lw_plot_run_in_c_locale(fp, title, light, res, trace, err);
+    lw_number_locale_end(saved);
+    return result;
+}
+
+lw_status lw_plot_led_fit(FILE *fp, const double *i_a, const double *v, size_t n,
+                          const lw_led_fit *lin, const lw_led_fit *sh, lw_error *err)
+{
+    locale_t saved = lw_number_locale_begin();
+    lw_status result = lw_plot_led_fit_in_c_locale(fp, i_a, v, n, lin, sh, err);
+    lw_number_locale_end(saved);
+    return result;
+}
+
+lw_status lw_plot_sweep(const lw_profile *prof, const lw_sweep *sw, lw_chart *c, void **buf,
+                         lw_error *err)
+{
+    locale_t saved = lw_number_locale_begin();
+    lw_status result = lw_plot_sweep_in_c_locale(prof, sw, c, buf, err);
+    lw_number_locale_end(saved);
+    return result;
 }

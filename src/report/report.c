@@ -87,7 +87,7 @@ static double run_value(enum run_col c, const lw_result *r)
     }
 }
 
-lw_status lw_report_run_row(lw_rtable *t, size_t row, size_t c, const lw_light *light,
+static lw_status lw_report_run_row_in_c_locale(lw_rtable *t, size_t row, size_t c, const lw_light *light,
                             const lw_result *r, lw_error *err)
 {
     char warn[512];
@@ -107,7 +107,7 @@ lw_status lw_report_run_row(lw_rtable *t, size_t row, size_t c, const lw_light *
     return st;
 }
 
-void lw_report_hours(double h, char *buf, size_t size)
+static void lw_report_hours_in_c_locale(double h, char *buf, size_t size)
 {
     if (!isfinite(h))
         snprintf(buf, size, "not reached");
@@ -176,7 +176,7 @@ static void start_condition(const lw_light *l, const lw_result *r, char *buf, si
         snprintf(buf, size, "fresh cells");
 }
 
-void lw_report_reference(const lw_light *l, char *buf, size_t size)
+static void lw_report_reference_in_c_locale(const lw_light *l, char *buf, size_t size)
 {
     if (l->cutoff.reference == LW_REF_FRESH)
         snprintf(buf, size, "the 30-s output of fresh cells at %g C", LW_FRESH_REFERENCE_C);
@@ -184,7 +184,7 @@ void lw_report_reference(const lw_light *l, char *buf, size_t size)
         snprintf(buf, size, "the 30-s output");
 }
 
-void lw_report_drive(const lw_light *l, char *buf, size_t size)
+static void lw_report_drive_in_c_locale(const lw_light *l, char *buf, size_t size)
 {
     const lw_drive *d = &l->drive;
     int n = snprintf(buf, size, "%s", lw_drive_type_names[d->type]);
@@ -356,7 +356,7 @@ static void text_report(FILE *fp, const lw_profile *p, const lw_result *r)
     fprintf(fp, "\n%s\n", lw_report_caution);
 }
 
-lw_status lw_report_run(FILE *fp, lw_rtable_format fmt, const lw_profile *prof, const lw_result *res,
+static lw_status lw_report_run_in_c_locale(FILE *fp, lw_rtable_format fmt, const lw_profile *prof, const lw_result *res,
                         lw_error *err)
 {
     if (fmt == LW_FMT_TEXT) {
@@ -384,7 +384,7 @@ lw_status lw_report_run(FILE *fp, lw_rtable_format fmt, const lw_profile *prof, 
 
 /* ---- the trace ---- */
 
-lw_status lw_report_trace_csv(FILE *fp, const lw_trace *tr, lw_error *err)
+static lw_status lw_report_trace_csv_in_c_locale(FILE *fp, const lw_trace *tr, lw_error *err)
 {
     static const char *const head[] = {"time_h",  "depth_pct", "pack_v",     "cell_v",
                                        "ocv_cell_v", "led_ma", "led_v",      "resistor_w",
@@ -406,4 +406,51 @@ lw_status lw_report_trace_csv(FILE *fp, const lw_trace *tr, lw_error *err)
     if (w.failed || ferror(fp))
         return lw_error_set(err, LW_EIO, NULL, 0, "write error");
     return LW_OK;
+}
+
+lw_status lw_report_run_row(lw_rtable *t, size_t row, size_t c, const lw_light *light,
+                            const lw_result *r, lw_error *err)
+{
+    locale_t saved = lw_number_locale_begin();
+    lw_status result = lw_report_run_row_in_c_locale(t, row, c, light, r, err);
+    lw_number_locale_end(saved);
+    return result;
+}
+
+void lw_report_hours(double h, char *buf, size_t size)
+{
+    locale_t saved = lw_number_locale_begin();
+    lw_report_hours_in_c_locale(h, buf, size);
+    lw_number_locale_end(saved);
+}
+
+void lw_report_reference(const lw_light *l, char *buf, size_t size)
+{
+    locale_t saved = lw_number_locale_begin();
+    lw_report_reference_in_c_locale(l, buf, size);
+    lw_number_locale_end(saved);
+}
+
+void lw_report_drive(const lw_light *l, char *buf, size_t size)
+{
+    locale_t saved = lw_number_locale_begin();
+    lw_report_drive_in_c_locale(l, buf, size);
+    lw_number_locale_end(saved);
+}
+
+lw_status lw_report_run(FILE *fp, lw_rtable_format fmt, const lw_profile *prof, const lw_result *res,
+                        lw_error *err)
+{
+    locale_t saved = lw_number_locale_begin();
+    lw_status result = lw_report_run_in_c_locale(fp, fmt, prof, res, err);
+    lw_number_locale_end(saved);
+    return result;
+}
+
+lw_status lw_report_trace_csv(FILE *fp, const lw_trace *tr, lw_error *err)
+{
+    locale_t saved = lw_number_locale_begin();
+    lw_status result = lw_report_trace_csv_in_c_locale(fp, tr, err);
+    lw_number_locale_end(saved);
+    return result;
 }

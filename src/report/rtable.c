@@ -123,7 +123,9 @@ lw_status lw_rtable_setf(lw_rtable *t, size_t row, size_t col, lw_error *err, co
     char buf[512];
     va_list ap;
     va_start(ap, fmt);
+    locale_t saved = lw_number_locale_begin();
     vsnprintf(buf, sizeof buf, fmt, ap); // NOLINT(clang-analyzer-valist.Uninitialized): va_start above
+    lw_number_locale_end(saved);
     va_end(ap);
     return lw_rtable_set(t, row, col, buf, err);
 }
@@ -136,7 +138,7 @@ lw_status lw_rtable_copy_cell(lw_rtable *t, size_t row, size_t col, const lw_rta
     return st == LW_OK && f ? dup_into(&t->full[row * t->ncol + col], f, err) : st;
 }
 
-lw_status lw_rtable_num(lw_rtable *t, size_t row, size_t col, double v, int sig,
+static lw_status lw_rtable_num_in_c_locale(lw_rtable *t, size_t row, size_t col, double v, int sig,
                         lw_error *err)
 {
     char buf[64] = "";
@@ -394,4 +396,13 @@ lw_status lw_rtable_write(const lw_rtable *t, FILE *fp, lw_rtable_format fmt, lw
     if (w.failed || ferror(fp))
         return lw_error_set(err, LW_EIO, NULL, 0, "write error");
     return LW_OK;
+}
+
+lw_status lw_rtable_num(lw_rtable *t, size_t row, size_t col, double v, int sig,
+                        lw_error *err)
+{
+    locale_t saved = lw_number_locale_begin();
+    lw_status result = lw_rtable_num_in_c_locale(t, row, col, v, sig, err);
+    lw_number_locale_end(saved);
+    return result;
 }

@@ -2,6 +2,7 @@
  * sizereport.c - the table of a pack sizing (see sizereport.h).
  */
 #include "lampwick/sizereport.h"
+#include "lampwick/number.h"
 
 #include <math.h>
 #include <stdio.h>
@@ -14,7 +15,7 @@ enum {
     ZC_END, ZC_WARN, ZC_COUNT
 };
 
-lw_status lw_report_size(const lw_profile *prof, const lw_size_options *opt,
+static lw_status lw_report_size_in_c_locale(const lw_profile *prof, const lw_size_options *opt,
                         const lw_size_row *rows, size_t show, bool fits, lw_rtable_format fmt,
                         lw_rtable **out, lw_error *err)
 {
@@ -104,4 +105,14 @@ lw_status lw_report_size(const lw_profile *prof, const lw_size_options *opt,
     }
     *out = t;
     return LW_OK;
+}
+
+lw_status lw_report_size(const lw_profile *prof, const lw_size_options *opt,
+                        const lw_size_row *rows, size_t show, bool fits, lw_rtable_format fmt,
+                        lw_rtable **out, lw_error *err)
+{
+    locale_t saved = lw_number_locale_begin();
+    lw_status result = lw_report_size_in_c_locale(prof, opt, rows, show, fits, fmt, out, err);
+    lw_number_locale_end(saved);
+    return result;
 }

@@ -3,6 +3,7 @@
  * (see specreport.h).
  */
 #include "lampwick/specreport.h"
+#include "lampwick/number.h"
 
 #include <math.h>
 #include <stdio.h>
@@ -12,7 +13,7 @@
 #include "lampwick/photometry.h"
 #include "lampwick/report.h"
 
-void lw_report_spec_hours(double h, char *buf, size_t size)
+static void lw_report_spec_hours_in_c_locale(double h, char *buf, size_t size)
 {
     if (!isfinite(h))
         snprintf(buf, size, "-");
@@ -305,7 +306,7 @@ static lw_status spec_cell(const lw_spec *s, const lw_case *k, int kind, lw_rtab
     return lw_rtable_set(t, row, col, buf, err);
 }
 
-lw_status lw_report_spec(const lw_spec *s, lw_rtable_format fmt, lw_rtable **out, lw_error *err)
+static lw_status lw_report_spec_in_c_locale(const lw_spec *s, lw_rtable_format fmt, lw_rtable **out, lw_error *err)
 {
     static const char *const csv_names[SC_COUNT] = {
         "flux_lm", "runtime_h", "half_h", "regulated_h", "peak_cd", "beam_m", "end_reason",
@@ -376,7 +377,7 @@ lw_status lw_report_spec(const lw_spec *s, lw_rtable_format fmt, lw_rtable **out
     return LW_OK;
 }
 
-lw_status lw_report_spec_table(const lw_profile *prof, const char *const *cells, lw_rtable_format fmt,
+static lw_status lw_report_spec_table_in_c_locale(const lw_profile *prof, const char *const *cells, lw_rtable_format fmt,
                         int threads, lw_rtable **out, lw_error *err)
 {
     lw_spec s;
@@ -386,4 +387,28 @@ lw_status lw_report_spec_table(const lw_profile *prof, const char *const *cells,
         st = lw_report_spec(&s, fmt, out, err);
     lw_spec_clear(&s);
     return st;
+}
+
+void lw_report_spec_hours(double h, char *buf, size_t size)
+{
+    locale_t saved = lw_number_locale_begin();
+    lw_report_spec_hours_in_c_locale(h, buf, size);
+    lw_number_locale_end(saved);
+}
+
+lw_status lw_report_spec(const lw_spec *s, lw_rtable_format fmt, lw_rtable **out, lw_error *err)
+{
+    locale_t saved = lw_number_locale_begin();
+    lw_status result = lw_report_spec_in_c_locale(s, fmt, out, err);
+    lw_number_locale_end(saved);
+    return result;
+}
+
+lw_status lw_report_spec_table(const lw_profile *prof, const char *const *cells, lw_rtable_format fmt,
+                        int threads, lw_rtable **out, lw_error *err)
+{
+    locale_t saved = lw_number_locale_begin();
+    lw_status result = lw_report_spec_table_in_c_locale(prof, cells, fmt, threads, out, err);
+    lw_number_locale_end(saved);
+    return result;
 }

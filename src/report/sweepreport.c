@@ -2,6 +2,7 @@
  * sweepreport.c - the table of a sweep (see sweepreport.h).
  */
 #include "lampwick/sweepreport.h"
+#include "lampwick/number.h"
 
 #include <stdio.h>
 #include <string.h>
@@ -57,7 +58,7 @@ static lw_status sweep_columns(const char *list, lw_rtable_format fmt, size_t *c
     return LW_OK;
 }
 
-lw_status lw_report_sweep(const lw_sweep *sw, lw_rtable_format fmt, const char *columns, lw_rtable **out,
+static lw_status lw_report_sweep_in_c_locale(const lw_sweep *sw, lw_rtable_format fmt, const char *columns, lw_rtable **out,
                          lw_error *err)
 {
     size_t cols[SWEEP_COLUMNS_MAX];
@@ -101,3 +102,11 @@ lw_status lw_report_sweep(const lw_sweep *sw, lw_rtable_format fmt, const char *
     return LW_OK;
 }
 
+lw_status lw_report_sweep(const lw_sweep *sw, lw_rtable_format fmt, const char *columns, lw_rtable **out,
+                         lw_error *err)
+{
+    locale_t saved = lw_number_locale_begin();
+    lw_status result = lw_report_sweep_in_c_locale(sw, fmt, columns, out, err);
+    lw_number_locale_end(saved);
+    return result;
+}

@@ -204,7 +204,7 @@ static lw_status parse_modes(const char *arg, const char *vals, const lw_profile
     return st;
 }
 
-lw_status lw_vary_parse(const char *arg, const lw_profile *prof, lw_vary *v, lw_error *err)
+static lw_status lw_vary_parse_in_c_locale(const char *arg, const lw_profile *prof, lw_vary *v, lw_error *err)
 {
     memset(v, 0, sizeof *v);
     const char *eq = strchr(arg, '=');
@@ -261,4 +261,12 @@ void lw_vary_clear(lw_vary *v)
     free(v->values);
     v->values = NULL;
     v->n = 0;
+}
+
+lw_status lw_vary_parse(const char *arg, const lw_profile *prof, lw_vary *v, lw_error *err)
+{
+    locale_t saved = lw_number_locale_begin();
+    lw_status result = lw_vary_parse_in_c_locale(arg, prof, v, err);
+    lw_number_locale_end(saved);
+    return result;
 }
