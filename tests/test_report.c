@@ -45,16 +45,16 @@ static lw_rtable *sample(void)
     lw_error e;
     lw_error_clear(&e);
     lw_rtable *t = lw_rtable_new(2, &e);
-    lw_rtable_head(t, 0, "cell", &e);
-    lw_rtable_head(t, 1, "runtime_h", &e);
+    assert_int_equal(lw_rtable_head(t, 0, "cell", &e), LW_OK);
+    assert_int_equal(lw_rtable_head(t, 1, "runtime_h", &e), LW_OK);
     size_t r;
-    lw_rtable_add_row(t, &r, &e);
-    lw_rtable_set(t, r, 0, "LR6|x", &e);
-    lw_rtable_setf(t, r, 1, &e, "%.1f", 12.5);
-    lw_rtable_add_row(t, &r, &e);
-    lw_rtable_set(t, r, 0, "FR6", &e);
-    lw_rtable_set(t, r, 1, "100", &e);
-    lw_rtable_note(t, "note one", &e);
+    assert_int_equal(lw_rtable_add_row(t, &r, &e), LW_OK);
+    assert_int_equal(lw_rtable_set(t, r, 0, "LR6|x", &e), LW_OK);
+    assert_int_equal(lw_rtable_setf(t, r, 1, &e, "%.1f", 12.5), LW_OK);
+    assert_int_equal(lw_rtable_add_row(t, &r, &e), LW_OK);
+    assert_int_equal(lw_rtable_set(t, r, 0, "FR6", &e), LW_OK);
+    assert_int_equal(lw_rtable_set(t, r, 1, "100", &e), LW_OK);
+    assert_int_equal(lw_rtable_note(t, "note one", &e), LW_OK);
     assert_int_equal(e.code, LW_OK);
     return t;
 }

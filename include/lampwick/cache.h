@@ -38,7 +38,7 @@ typedef lw_status (*lw_cache_table_fn)(const char *path, const void *ctx, lw_int
 
 /* The table at path read as `kind`: from the cache, or by load(path, ctx)
  * and then kept.  *out is a new reference (lw_interp_free it). */
-lw_status lw_cache_table(const char *path, const char *kind, lw_cache_table_fn load,
+LW_MUST_CHECK lw_status lw_cache_table(const char *path, const char *kind, lw_cache_table_fn load,
                          const void *ctx, lw_interp **out, lw_error *err);
 
 /* Read and parse the cell file at path (called on a miss). */
@@ -47,7 +47,7 @@ typedef lw_status (*lw_cache_cell_fn)(const char *path, const void *ctx, lw_cell
 
 /* The cell file at path: from the cache, or by load(path, ctx) and then
  * kept.  *out shares the tables (lw_cell_clear it). */
-lw_status lw_cache_cell(const char *path, lw_cache_cell_fn load, const void *ctx, lw_cell *out,
+LW_MUST_CHECK lw_status lw_cache_cell(const char *path, lw_cache_cell_fn load, const void *ctx, lw_cell *out,
                         lw_error *err);
 
 /* Drop every entry (what profiles hold stays valid: tables are counted). */

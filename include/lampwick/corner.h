@@ -38,7 +38,7 @@ typedef struct lw_corner {
 } lw_corner;
 
 /* The four corners of `light`; `run` is its nominal run (for the end). */
-lw_status lw_corner_compute(const lw_light *light, const lw_result *run,
+LW_MUST_CHECK lw_status lw_corner_compute(const lw_light *light, const lw_result *run,
                      lw_corner out[LW_CORNER_COUNT], lw_error *err);
 
 #endif

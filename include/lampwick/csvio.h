@@ -46,7 +46,7 @@ typedef struct lw_csv {
 
 /* Read a numeric CSV file; `ref` (may be NULL) is the key that named it,
  * for the message when it cannot be opened.  Free with lw_csv_clear. */
-lw_status lw_csv_read(const char *path, const lw_path_ref *ref, lw_csv *csv, lw_error *err);
+LW_MUST_CHECK lw_status lw_csv_read(const char *path, const lw_path_ref *ref, lw_csv *csv, lw_error *err);
 void lw_csv_clear(lw_csv *csv);
 
 /* Index of a column by name (case-insensitive), or -1. */
@@ -55,7 +55,7 @@ int lw_csv_column(const lw_csv *csv, const char *name);
 /* Check that the columns are exactly `required` plus any of `optional`
  * (NULL-terminated lists); the error names the file, header line, the
  * unknown or missing column and the expected ones. */
-lw_status lw_csv_expect(const lw_csv *csv, const char *const *required,
+LW_MUST_CHECK lw_status lw_csv_expect(const lw_csv *csv, const char *const *required,
                         const char *const *optional, lw_error *err);
 
 static inline double lw_csv_at(const lw_csv *csv, size_t row, int col)

@@ -151,7 +151,7 @@ typedef struct lw_result {
  * options out of range or a loop without finite solution (LW_EINPUT), a
  * numerical failure (LW_ENUMERIC) or memory (LW_ENOMEM).  opt may be NULL
  * for the defaults.  Free with lw_run_result_clear. */
-lw_status lw_run(const lw_light *light, const lw_run_options *opt, lw_result *res,
+LW_MUST_CHECK lw_status lw_run(const lw_light *light, const lw_run_options *opt, lw_result *res,
                  lw_error *err);
 
 void lw_run_result_clear(lw_result *res);
@@ -159,12 +159,12 @@ void lw_run_result_clear(lw_result *res);
 /* Worst case at fresh cells: highest OCV (the curve's first point), lowest
  * internal resistance (the curve's minimum), resistor at minus its tolerance,
  * LED forward voltage at minus its spread.  Fills *pt. */
-lw_status lw_run_worst_case(const lw_light *light, lw_point *pt, lw_error *err);
+LW_MUST_CHECK lw_status lw_run_worst_case(const lw_light *light, lw_point *pt, lw_error *err);
 
 /* Hours to discharge from depth d0 to d1 (d0 < d1 within one interval of
  * the cell curve) at the light's operating points, by the run's own
  * Gauss-Kronrod rule; `fallback` selects the converter's fallback level. */
-lw_status lw_run_hours_between(const lw_light *light, bool fallback, double d0, double d1,
+LW_MUST_CHECK lw_status lw_run_hours_between(const lw_light *light, bool fallback, double d0, double d1,
                                double *hours, lw_error *err);
 
 #endif

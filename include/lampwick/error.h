@@ -20,6 +20,14 @@
 #include <stdarg.h>
 #include <stddef.h>
 
+/* A status that must not be ignored: every lw_status-returning function
+ * but lw_error_set carries it, so an unchecked status fails the build. */
+#if defined(__GNUC__)
+#define LW_MUST_CHECK __attribute__((warn_unused_result))
+#else
+#define LW_MUST_CHECK
+#endif
+
 typedef enum lw_status {
     LW_OK = 0,
     LW_ENOANSWER = 1, /* the input is valid but has no answer (never lit, nothing fits) */

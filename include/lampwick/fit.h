@@ -39,7 +39,7 @@ typedef struct lw_lsq {
 /* Solve min |X c - y| for X given column-wise: x[j][i] is column j, row i.
  * Needs n > p.  Fails with LW_EINPUT when the columns are (numerically)
  * dependent, e.g. all currents equal. */
-lw_status lw_fit_lsq_solve(const double *const *x, size_t p, const double *y, size_t n,
+LW_MUST_CHECK lw_status lw_fit_lsq_solve(const double *const *x, size_t p, const double *y, size_t n,
                        lw_lsq *out, lw_error *err);
 
 typedef struct lw_led_fit {
@@ -54,11 +54,11 @@ typedef struct lw_led_fit {
 } lw_led_fit;
 
 /* Linear model through the points. */
-lw_status lw_fit_led_linear(const double *i_a, const double *v, size_t n, lw_led_fit *out,
+LW_MUST_CHECK lw_status lw_fit_led_linear(const double *i_a, const double *v, size_t n, lw_led_fit *out,
                             lw_error *err);
 
 /* Shockley model with series resistance at junction_c. */
-lw_status lw_fit_led_shockley(const double *i_a, const double *v, size_t n, double junction_c,
+LW_MUST_CHECK lw_status lw_fit_led_shockley(const double *i_a, const double *v, size_t n, double junction_c,
                               lw_led_fit *out, lw_error *err);
 
 typedef struct lw_flux_fit {
@@ -68,7 +68,7 @@ typedef struct lw_flux_fit {
     double exponent;
 } lw_flux_fit;
 
-lw_status lw_fit_flux(const double *i_a, const double *flux, size_t n, lw_flux_fit *out,
+LW_MUST_CHECK lw_status lw_fit_flux(const double *i_a, const double *flux, size_t n, lw_flux_fit *out,
                       lw_error *err);
 
 /* Bench measurements of one LED: current_ma, forward_v and optionally
@@ -81,7 +81,7 @@ typedef struct lw_fit_data {
 
 /* Read measurements (at least 3 rows, positive currents, voltages and
  * outputs).  Free with lw_fit_data_clear. */
-lw_status lw_fit_led_read(const char *path, lw_fit_data *data, lw_error *err);
+LW_MUST_CHECK lw_status lw_fit_led_read(const char *path, lw_fit_data *data, lw_error *err);
 void lw_fit_data_clear(lw_fit_data *data);
 
 /* The I-V model to recommend of the two fitted (either may be NULL): the

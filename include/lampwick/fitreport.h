@@ -17,19 +17,19 @@
 #include "rtable.h"
 
 /* The LED fits (lin, sh, fx may each be NULL when not fitted). */
-lw_status lw_report_led_fit(FILE *fp, lw_rtable_format fmt, const lw_fit_data *data,
+LW_MUST_CHECK lw_status lw_report_led_fit(FILE *fp, lw_rtable_format fmt, const lw_fit_data *data,
                            const lw_led_fit *lin, const lw_led_fit *sh, const lw_flux_fit *fx,
                            double junction_c, lw_error *err);
 
 /* Only the [led] section of the recommended model (lw_fit_led_best), which
  * records the junction temperature of the bench data. */
-lw_status lw_report_led_section(FILE *fp, const lw_fit_data *data, const lw_led_fit *lin,
+LW_MUST_CHECK lw_status lw_report_led_section(FILE *fp, const lw_fit_data *data, const lw_led_fit *lin,
                                 const lw_led_fit *sh, const lw_flux_fit *fx, double junction_c,
                                 lw_error *err);
 
 /* The summary of a cell fit: each log's charge, the rated capacity,
  * Peukert's exponent, the internal resistance and the curve kept. */
-lw_status lw_report_cell_fit(FILE *fp, const lw_cellfit *fit, const char *const *log_names,
+LW_MUST_CHECK lw_status lw_report_cell_fit(FILE *fp, const lw_cellfit *fit, const char *const *log_names,
                              double cutoff_v, lw_error *err);
 
 #endif

@@ -69,7 +69,7 @@ typedef lw_status (*lw_ini_check)(const void *check_ctx, const char *section, co
 
 /* Read a whole INI file; `check` may be NULL.  On failure nothing is kept
  * (*ini is empty). */
-lw_status lw_ini_read(const char *path, lw_ini *ini, lw_ini_check check, const void *check_ctx,
+LW_MUST_CHECK lw_status lw_ini_read(const char *path, lw_ini *ini, lw_ini_check check, const void *check_ctx,
                       lw_error *err);
 
 

@@ -84,12 +84,12 @@ double lw_led_flux(const lw_led *led, double i_a, bool *extrapolated);
  * e_v cannot exceed the string's voltage at zero current.  Fails (LW_ENUMERIC
  * / LW_EINPUT) only when the loop has no finite solution (no resistance with
  * a constant-voltage model) or the table solver does not converge. */
-lw_status lw_led_solve(const lw_led *led, double e_v, double r_ohm, double *i_a,
+LW_MUST_CHECK lw_status lw_led_solve(const lw_led *led, double e_v, double r_ohm, double *i_a,
                        bool *extrapolated, lw_error *err);
 
 /* Same, also giving the forward voltage of one LED at the solution (from
  * Kirchhoff's law when current flows, so that the loop balances exactly). */
-lw_status lw_led_solve_v(const lw_led *led, double e_v, double r_ohm, double *i_a,
+LW_MUST_CHECK lw_status lw_led_solve_v(const lw_led *led, double e_v, double r_ohm, double *i_a,
                          double *v_led, bool *extrapolated, lw_error *err);
 
 #endif

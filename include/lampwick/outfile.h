@@ -45,12 +45,12 @@ typedef struct lw_outfile {
  * folder ("-" is standard output).  Fails (LW_EINPUT) on a path too long, a
  * destination that is not a regular file or a dangling link; (LW_EIO) when
  * the folder cannot be written. */
-lw_status lw_outfile_open(lw_outfile *out, const char *path, lw_error *err);
+LW_MUST_CHECK lw_status lw_outfile_open(lw_outfile *out, const char *path, lw_error *err);
 
 /* Flush, close and rename into place; on any failure remove the temporary
  * and leave the destination as it was.  With out->durable set (cell files)
  * the data and the rename are synced to disk first. */
-lw_status lw_outfile_commit(lw_outfile *out, lw_error *err);
+LW_MUST_CHECK lw_status lw_outfile_commit(lw_outfile *out, lw_error *err);
 
 /* Close and remove the temporary.  Safe on an unopened or committed file. */
 void lw_outfile_abort(lw_outfile *out);
@@ -58,19 +58,19 @@ void lw_outfile_abort(lw_outfile *out);
 /* Refuse an output path that names the same file as one of `others` (the
  * command's inputs and its other outputs; NULL entries are skipped).  The
  * message names the option (`what`, e.g. "--trace"). */
-lw_status lw_outfile_check(const char *path, const char *what, const char *const *others,
+LW_MUST_CHECK lw_status lw_outfile_check(const char *path, const char *what, const char *const *others,
                            size_t n, lw_error *err);
 
 /* Write a whole file: open `path`, call fn with the temporary's stream,
  * commit.  A writer's LW_EIO (the stream failed) is reported with the path
  * and the system's reason ("cannot write: No space left on device"). */
 typedef lw_status (*lw_outfile_fn)(FILE *fp, const void *ctx, lw_error *err);
-lw_status lw_outfile_write(const char *path, lw_outfile_fn fn, const void *ctx, lw_error *err);
+LW_MUST_CHECK lw_status lw_outfile_write(const char *path, lw_outfile_fn fn, const void *ctx, lw_error *err);
 
 /* The same, synced to disk with its folder (files that matter: cell files
  * and their curves), and releasing `guard` (lw_outfile_guard, or -1) in
  * the same step as the rename into place. */
-lw_status lw_outfile_write_durable(const char *path, int guard, lw_outfile_fn fn,
+LW_MUST_CHECK lw_status lw_outfile_write_durable(const char *path, int guard, lw_outfile_fn fn,
                                    const void *ctx, lw_error *err);
 
 /* Have lw_outfile_remove_all remove `path` too, until unguarded: a file

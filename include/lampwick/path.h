@@ -37,7 +37,7 @@ typedef struct lw_path_ref {
 /* Open a regular file for reading; a folder, device, pipe or socket is
  * refused.  Errors name ref->file:ref->line and ref->what when ref is given
  * ("[cell] curve: cannot open 'x.csv': ..."), else the path itself. */
-lw_status lw_path_open_regular(const char *path, const char *mode, const lw_path_ref *ref,
+LW_MUST_CHECK lw_status lw_path_open_regular(const char *path, const char *mode, const lw_path_ref *ref,
                                FILE **fp, lw_error *err);
 
 /* How many times lw_path_open_regular opened `path` (as given) since the

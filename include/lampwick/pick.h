@@ -47,13 +47,13 @@ typedef struct lw_pick {
  * a message) when no part meets the target within the ratings; *out is
  * still filled with the nearest safe part when there is one (resistor_ohm
  * > 0 and within_ratings).  Free with lw_pick_clear. */
-lw_status lw_pick_resistor(const lw_profile *prof, lw_target_kind kind, double target,
+LW_MUST_CHECK lw_status lw_pick_resistor(const lw_profile *prof, lw_target_kind kind, double target,
                            int eseries, lw_pick *out, lw_error *err);
 
 /* The same for each cell of `cells` (NULL-terminated names): out[i],
  * status[i] and errs[i] for cell i.  Fails only on bad input (a cell that
  * cannot be loaded). */
-lw_status lw_pick_cells(const lw_profile *prof, const char *const *cells, lw_target_kind kind,
+LW_MUST_CHECK lw_status lw_pick_cells(const lw_profile *prof, const char *const *cells, lw_target_kind kind,
                         double target, int eseries, lw_pick *out, lw_status *status,
                         lw_error *errs, lw_error *err);
 

@@ -68,7 +68,7 @@ typedef struct lw_chart {
 } lw_chart;
 
 /* Write the chart as a standalone SVG document. */
-lw_status lw_plot_svg(FILE *fp, const lw_chart *chart, lw_error *err);
+LW_MUST_CHECK lw_status lw_plot_svg(FILE *fp, const lw_chart *chart, lw_error *err);
 
 /* Round tick positions covering [lo, hi]: at most max_ticks, steps of
  * 1, 2 or 5 x 10^k.  Returns the count written to ticks (cap 32). */
@@ -76,19 +76,19 @@ size_t lw_plot_ticks(double lo, double hi, size_t max_ticks, double *ticks);
 
 /* The chart of a run: light output (% of the 30-s output, and lm) with the
  * cutoff line, and pack voltage (loaded and open circuit), against hours. */
-lw_status lw_plot_run(FILE *fp, const char *title, const lw_light *light, const lw_result *res,
+LW_MUST_CHECK lw_status lw_plot_run(FILE *fp, const char *title, const lw_light *light, const lw_result *res,
                       const lw_trace *trace, lw_error *err);
 
 /* The chart of an LED fit: the measured points with the fitted curves, and
  * the residuals below (lin and sh may each be NULL). */
-lw_status lw_plot_led_fit(FILE *fp, const double *i_a, const double *v, size_t n,
+LW_MUST_CHECK lw_status lw_plot_led_fit(FILE *fp, const double *i_a, const double *v, size_t n,
                           const lw_led_fit *lin, const lw_led_fit *sh, lw_error *err);
 
 /* The trade-off chart of a sweep: runtime against the 30-s light output, one
  * series per value of the first varied key other than the resistor, points
  * labelled with the resistor (or the last varied key).  Fill *chart; the
  * arrays it points to are malloc'd into *buf (free it after writing). */
-lw_status lw_plot_sweep(const lw_profile *prof, const lw_sweep *sw, lw_chart *chart,
+LW_MUST_CHECK lw_status lw_plot_sweep(const lw_profile *prof, const lw_sweep *sw, lw_chart *chart,
                         void **buf, lw_error *err);
 
 #endif

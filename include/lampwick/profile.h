@@ -57,7 +57,7 @@ extern const size_t lw_profile_nkeys;
 
 /* Load and resolve a profile.  `search` may be NULL.  On failure *prof is
  * empty (lw_profile_clear is still safe). */
-lw_status lw_profile_load(const char *path, const lw_search *search, lw_profile *prof,
+LW_MUST_CHECK lw_status lw_profile_load(const char *path, const lw_search *search, lw_profile *prof,
                           lw_error *err);
 
 /* Free what the profile holds.  NULL-safe. */
@@ -65,23 +65,23 @@ void lw_profile_clear(lw_profile *prof);
 
 /* Copy (tables and the file's entries shared by reference counts: either
  * may be cleared first).  Cannot fail today; returns LW_OK. */
-lw_status lw_profile_copy(lw_profile *dst, const lw_profile *src, lw_error *err);
+LW_MUST_CHECK lw_status lw_profile_copy(lw_profile *dst, const lw_profile *src, lw_error *err);
 
 /* Set "section.key" to value (same checks as the file).  `file` and `line`
  * say where the value came from, for messages; call lw_profile_resolve after
  * the last set. */
-lw_status lw_profile_set(lw_profile *prof, const char *dotted_key, const char *value,
+LW_MUST_CHECK lw_status lw_profile_set(lw_profile *prof, const char *dotted_key, const char *value,
                          lw_origin origin, const char *file, int line, lw_error *err);
 
 /* Set "section.key" to a number in the key's file unit (drive.resistor_ohm
  * in ohm), with the same checks as a text: no formatting and parsing.
  * Messages name `option` (e.g. "--vary drive.resistor_ohm"). */
-lw_status lw_profile_set_number(lw_profile *prof, const char *dotted_key, double value,
+LW_MUST_CHECK lw_status lw_profile_set_number(lw_profile *prof, const char *dotted_key, double value,
                                 const char *option, lw_error *err);
 
 /* Parse "section.key=value" from the command line and set it; errors name
  * the option "--set section.key". */
-lw_status lw_profile_set_arg(lw_profile *prof, const char *arg, lw_error *err);
+LW_MUST_CHECK lw_status lw_profile_set_arg(lw_profile *prof, const char *arg, lw_error *err);
 
 /* ---- variants ----
  * A variant of a profile is a mode and overrides; lw_profile_derive makes
@@ -105,30 +105,30 @@ typedef struct lw_profile_variant {
 
 /* Add an override as text or as a number (key and text are borrowed: they
  * must outlive the variant).  LW_EINPUT when the variant is full. */
-lw_status lw_profile_variant_text(lw_profile_variant *v, const char *key, const char *text,
+LW_MUST_CHECK lw_status lw_profile_variant_text(lw_profile_variant *v, const char *key, const char *text,
                                   lw_error *err);
-lw_status lw_profile_variant_number(lw_profile_variant *v, const char *key, double value,
+LW_MUST_CHECK lw_status lw_profile_variant_number(lw_profile_variant *v, const char *key, double value,
                                     lw_error *err);
 /* Add "section.key=value" from the command line: the key is copied into
  * key[size] (which must outlive the variant), the value borrowed from arg. */
-lw_status lw_profile_variant_arg(lw_profile_variant *v, const char *arg, char *key, size_t size,
+LW_MUST_CHECK lw_status lw_profile_variant_arg(lw_profile_variant *v, const char *arg, char *key, size_t size,
                                  lw_error *err);
 
 /* The profile of a variant of base.  Messages about an override name
  * "ORIGIN KEY" (origin "--set", "--vary", ...).  Free *out with
  * lw_profile_clear, also after a failure. */
-lw_status lw_profile_derive(const lw_profile *base, const lw_profile_variant *v,
+LW_MUST_CHECK lw_status lw_profile_derive(const lw_profile *base, const lw_profile_variant *v,
                             const char *origin, lw_profile *out, lw_error *err);
 
 /* Apply the overrides of [mode NAME]; unknown names list the known modes. */
-lw_status lw_profile_apply_mode(lw_profile *prof, const char *name, lw_error *err);
+LW_MUST_CHECK lw_status lw_profile_apply_mode(lw_profile *prof, const char *name, lw_error *err);
 
 /* Number and names of the profile's modes, in file order. */
 size_t lw_profile_mode_count(const lw_profile *prof);
 const char *lw_profile_mode_name(const lw_profile *prof, size_t i);
 
 /* Load what the profile names and check model-specific needs. */
-lw_status lw_profile_resolve(lw_profile *prof, lw_error *err);
+LW_MUST_CHECK lw_status lw_profile_resolve(lw_profile *prof, lw_error *err);
 
 /* The files the profile reads (itself, its cell file and curves, LED and
  * driver tables): up to `max` paths into paths[], each LW_PATH_MAX bytes;

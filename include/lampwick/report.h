@@ -25,15 +25,15 @@ extern const char *const lw_report_run_columns[];
 extern const size_t lw_report_run_ncolumns;
 
 /* Fill columns [first, first + lw_report_run_ncolumns) of `row` from a result. */
-lw_status lw_report_run_row(lw_rtable *t, size_t row, size_t first, const lw_light *light,
+LW_MUST_CHECK lw_status lw_report_run_row(lw_rtable *t, size_t row, size_t first, const lw_light *light,
                             const lw_result *res, lw_error *err);
 
 /* The whole report of one run in the chosen format. */
-lw_status lw_report_run(FILE *fp, lw_rtable_format fmt, const lw_profile *prof, const lw_result *res,
+LW_MUST_CHECK lw_status lw_report_run(FILE *fp, lw_rtable_format fmt, const lw_profile *prof, const lw_result *res,
                         lw_error *err);
 
 /* The trace of a run as CSV (columns in docs/formats.md), full precision. */
-lw_status lw_report_trace_csv(FILE *fp, const lw_trace *trace, lw_error *err);
+LW_MUST_CHECK lw_status lw_report_trace_csv(FILE *fp, const lw_trace *trace, lw_error *err);
 
 /* Warning names joined by ';' ("" for none). */
 void lw_report_warnings(unsigned warnings, char *buf, size_t size);

@@ -39,17 +39,17 @@ typedef struct lw_rtable {
 
 lw_rtable *lw_rtable_new(size_t ncol, lw_error *err);
 void lw_rtable_free(lw_rtable *t);
-lw_status lw_rtable_head(lw_rtable *t, size_t col, const char *name, lw_error *err);
+LW_MUST_CHECK lw_status lw_rtable_head(lw_rtable *t, size_t col, const char *name, lw_error *err);
 /* Set the group label of a column (neighbours with the same label form one
  * group: a spanning line above the header in text). */
-lw_status lw_rtable_group(lw_rtable *t, size_t col, const char *group, lw_error *err);
+LW_MUST_CHECK lw_status lw_rtable_group(lw_rtable *t, size_t col, const char *group, lw_error *err);
 /* Append an empty row; returns its index via *row. */
-lw_status lw_rtable_add_row(lw_rtable *t, size_t *row, lw_error *err);
-lw_status lw_rtable_set(lw_rtable *t, size_t row, size_t col, const char *text, lw_error *err);
+LW_MUST_CHECK lw_status lw_rtable_add_row(lw_rtable *t, size_t *row, lw_error *err);
+LW_MUST_CHECK lw_status lw_rtable_set(lw_rtable *t, size_t row, size_t col, const char *text, lw_error *err);
 /* Copy cell (sr, sc) of src, full precision included, into (row, col). */
-lw_status lw_rtable_copy_cell(lw_rtable *t, size_t row, size_t col, const lw_rtable *src,
+LW_MUST_CHECK lw_status lw_rtable_copy_cell(lw_rtable *t, size_t row, size_t col, const lw_rtable *src,
                               size_t sr, size_t sc, lw_error *err);
-lw_status lw_rtable_setf(lw_rtable *t, size_t row, size_t col, lw_error *err, const char *fmt,
+LW_MUST_CHECK lw_status lw_rtable_setf(lw_rtable *t, size_t row, size_t col, lw_error *err, const char *fmt,
                          ...)
 #if defined(__GNUC__)
     __attribute__((format(printf, 5, 6)))
@@ -57,11 +57,11 @@ lw_status lw_rtable_setf(lw_rtable *t, size_t row, size_t col, lw_error *err, co
     ;
 /* A number: `sig` significant digits in text and Markdown, full precision
  * (the shortest text that reads back exactly) in CSV; NaN is empty. */
-lw_status lw_rtable_num(lw_rtable *t, size_t row, size_t col, double v, int sig,
+LW_MUST_CHECK lw_status lw_rtable_num(lw_rtable *t, size_t row, size_t col, double v, int sig,
                         lw_error *err);
-lw_status lw_rtable_note(lw_rtable *t, const char *text, lw_error *err);
-lw_status lw_rtable_set_title(lw_rtable *t, const char *text, lw_error *err);
+LW_MUST_CHECK lw_status lw_rtable_note(lw_rtable *t, const char *text, lw_error *err);
+LW_MUST_CHECK lw_status lw_rtable_set_title(lw_rtable *t, const char *text, lw_error *err);
 /* Render; returns LW_EIO if a write failed. */
-lw_status lw_rtable_write(const lw_rtable *t, FILE *fp, lw_rtable_format fmt, lw_error *err);
+LW_MUST_CHECK lw_status lw_rtable_write(const lw_rtable *t, FILE *fp, lw_rtable_format fmt, lw_error *err);
 
 #endif

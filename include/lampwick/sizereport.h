@@ -17,7 +17,7 @@
 
 /* The table of the first `show` rows, with the requirement and the marker
  * legend in the notes (text, Markdown; CSV carries the warnings column). */
-lw_status lw_report_size(const lw_profile *prof, const lw_size_options *opt,
+LW_MUST_CHECK lw_status lw_report_size(const lw_profile *prof, const lw_size_options *opt,
                          const lw_size_row *rows, size_t show, bool fits, lw_rtable_format fmt,
                          lw_rtable **out, lw_error *err);
 

@@ -17,11 +17,11 @@
 /* Render the table.  Text and Markdown are rounded as specification tables
  * are (the rule is printed in the notes); CSV carries full precision in fixed
  * units, one column per quantity and cell ("CELL.flux_lm", ...). */
-lw_status lw_report_spec(const lw_spec *spec, lw_rtable_format fmt, lw_rtable **out,
+LW_MUST_CHECK lw_status lw_report_spec(const lw_spec *spec, lw_rtable_format fmt, lw_rtable **out,
                          lw_error *err);
 
 /* Compute and render in one call. */
-lw_status lw_report_spec_table(const lw_profile *prof, const char *const *cells,
+LW_MUST_CHECK lw_status lw_report_spec_table(const lw_profile *prof, const char *const *cells,
                                lw_rtable_format fmt, int threads, lw_rtable **out,
                                lw_error *err);
 

@@ -39,7 +39,7 @@ typedef struct lw_trace {
 /* Build a trace from a result run with want_trace: points dense where the
  * output bends, at least min_rows, ending exactly at the end of the run.
  * Free with lw_trace_clear. */
-lw_status lw_trace_build(const lw_light *light, const lw_result *res, size_t min_rows,
+LW_MUST_CHECK lw_status lw_trace_build(const lw_light *light, const lw_result *res, size_t min_rows,
                          lw_trace *trace, lw_error *err);
 void lw_trace_clear(lw_trace *trace);
 
