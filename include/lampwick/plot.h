@@ -70,8 +70,12 @@ typedef struct lw_chart {
 /* Write the chart as a standalone SVG document. */
 LW_MUST_CHECK lw_status lw_plot_svg(FILE *fp, const lw_chart *chart, lw_error *err);
 
-/* Round tick positions covering [lo, hi]: at most max_ticks, steps of
- * 1, 2 or 5 x 10^k.  Returns the count written to ticks (cap 32). */
+/* The most ticks an axis carries: the size of a tick buffer. */
+#define LW_PLOT_TICKS_MAX 32
+
+/* Round tick positions covering [lo, hi]: about max_ticks, steps of
+ * 1, 2 or 5 x 10^k.  ticks holds LW_PLOT_TICKS_MAX values; returns the
+ * count written, 0 when the range is empty or not finite. */
 size_t lw_plot_ticks(double lo, double hi, size_t max_ticks, double *ticks);
 
 /* The chart of a run: light output (% of the 30-s output, and lm) with the

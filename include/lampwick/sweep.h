@@ -17,6 +17,10 @@
 
 /* At most this many --vary options in one sweep. */
 #define LW_SWEEP_VARY_MAX 8
+/* The largest grid: the product of the --vary counts.  A million rows is
+ * minutes of work and some hundreds of megabytes held; beyond it a sweep is
+ * almost surely a typing slip. */
+#define LW_SWEEP_ROWS_MAX 1000000
 
 typedef struct lw_sweep {
     const lw_vary *vary;  /* borrowed */

@@ -28,6 +28,9 @@
 #define LW_VARY_MAX_VALUES 100000
 /* Longest text of one value, bytes with the NUL. */
 #define LW_VARY_VALUE_MAX 128
+/* The most values a preferred-value range (E24:FROM..TO) may expand to:
+ * E192 over about 21 decades, far beyond any real part search. */
+#define LW_VARY_ESERIES_MAX 4096
 
 typedef struct lw_vary {
     char key[2 * LW_INI_NAME_MAX];

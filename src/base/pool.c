@@ -32,7 +32,7 @@ int lw_pool_cpus(void)
             return n;
     }
     long n = sysconf(_SC_NPROCESSORS_ONLN);
-    return n > 0 && n < 1024 ? (int)n : 1;
+    return n > 0 && n <= CPU_SETSIZE ? (int)n : 1;
 }
 
 static void *worker(void *arg)

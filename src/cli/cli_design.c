@@ -23,9 +23,13 @@ static void progress(size_t done, size_t total, void *ctx)
         fputs("\r                          \r", stderr);
 }
 
+/* Runs from which a sweep is slow enough (a second or more) that a
+ * progress count on a terminal helps. */
+#define PROGRESS_RUNS_MIN 500
+
 static bool want_progress(size_t n)
 {
-    return n >= 500 && isatty(STDERR_FILENO);
+    return n >= PROGRESS_RUNS_MIN && isatty(STDERR_FILENO);
 }
 
 static int parse_eseries(const char *cmd, const char *arg, int *eseries)

@@ -20,6 +20,11 @@
 #include "lampwick/csvio.h"
 #include "lampwick/alloc.h"
 
+/* How far into a file lw_cellfile_is_cell looks for a [cell] section: a
+ * cell file opens with it after a comment block, so a listing of a folder
+ * need not read whole unrelated files. */
+#define CELL_SECTION_LINES_MAX 2000
+
 /* What a cell file holds besides the lw_cell itself. */
 typedef struct cellspec {
     lw_cell cell;
@@ -363,7 +368,7 @@ bool lw_cellfile_is_cell(const char *path)
         return true; /* unreadable: listed, and loading it says why */
     char line[LW_INI_LINE_MAX + 2];
     bool found = false;
-    for (int k = 0; k < 2000 && !found && fgets(line, sizeof line, fp); k++) {
+    for (int k = 0; k < CELL_SECTION_LINES_MAX && !found && fgets(line, sizeof line, fp); k++) {
         const char *p = line;
         while (*p == ' ' || *p == '\t')
             p++;

@@ -19,6 +19,20 @@ static const char *const palette[] = {"#1b6f8a", "#c4541b", "#5a7d2a", "#8a3f86"
                                       "#b08a00", "#3a3a9c", "#9c3a3a", "#2f8f6f"};
 #define NPAL (sizeof palette / sizeof palette[0])
 
+/* The default canvas, pixels: wide enough for a legend beside a 10-tick axis,
+ * in proportion near the golden ratio (common practice, no source). */
+#define CANVAS_W_PX 900
+#define CANVAS_H_PX 560
+/* An axis goes logarithmic when its data span more than this ratio: below
+ * it a linear axis from zero reads better; above, small values crowd into
+ * the corner (common practice, no source).  LED fit residuals use a lower
+ * ratio on current, since a forward-voltage sweep is usually taken in
+ * decades. */
+#define LOG_AXIS_RATIO 30.0
+#define LOG_AXIS_RATIO_LED_I 20.0
+/* Points on each fitted LED curve: smooth at 900 px. */
+#define LED_CURVE_POINTS 200
+
 size_t lw_plot_ticks(double lo, double hi, size_t max_ticks, double *ticks)
 {
     if (!(hi > lo) || max_ticks < 2 || !isfinite(hi - lo))
@@ -35,7 +49,8 @@ size_t lw_plot_ticks(double lo, double hi, size_t max_ticks, double *ticks)
     else if (raw / mag > 1.0)
         step = 2.0 * mag;
     size_t n = 0;
-    for (double t = ceil(lo / step - 1e-9) * step; t <= hi + 1e-9 * step && n < 32; t += step) {
+    for (double t = ceil(lo / step - 1e-9) * step; t <= hi + 1e-9 * step && n < LW_PLOT_TICKS_MAX;
+         t += step) {
         ticks[n++] = fabs(t) < 1e-12 * step ? 0.0 : t;
     }
     return n;
@@ -49,9 +64,9 @@ static size_t log_ticks(double lo, double hi, double *ticks)
         return 0;
     int d0 = (int)floor(log10(lo)), d1 = (int)ceil(log10(hi));
     bool fine = d1 - d0 <= 3;
-    for (int d = d0; d <= d1 && n < 30; d++) {
+    for (int d = d0; d <= d1 && n < LW_PLOT_TICKS_MAX; d++) {
         const double m[] = {1, 2, 5};
-        for (int k = 0; k < (fine ? 3 : 1); k++) {
+        for (int k = 0; k < (fine ? 3 : 1) && n < LW_PLOT_TICKS_MAX; k++) {
             double t = m[k] * pow(10.0, d);
             if (t >= lo * (1 - 1e-9) && t <= hi * (1 + 1e-9))
                 ticks[n++] = t;
@@ -164,7 +179,7 @@ static void data_range(const lw_axis *ax, const lw_series *s, size_t ns, bool wa
     } else {
         if (b <= a)
             b = a + (a != 0 ? fabs(a) * 0.1 : 1.0);
-        double t[33];
+        double t[LW_PLOT_TICKS_MAX];
         size_t n = lw_plot_ticks(a, b, 6, t);
         double step = n >= 2 ? t[1] - t[0] : (b - a);
         a = floor(a / step + 1e-9) * step;
@@ -179,7 +194,7 @@ static void data_range(const lw_axis *ax, const lw_series *s, size_t ns, bool wa
 static void draw_axes(FILE *fp, const frame *f, const lw_panel *p, bool bottom,
                       const lw_axis *xa)
 {
-    double t[33];
+    double t[LW_PLOT_TICKS_MAX];
     char buf[64];
     fprintf(fp, "<rect x='%.1f' y='%.1f' width='%.1f' height='%.1f' fill='#ffffff' "
                 "stroke='#555' stroke-width='1'/>\n",
@@ -195,7 +210,7 @@ static void draw_axes(FILE *fp, const frame *f, const lw_panel *p, bool bottom,
     }
     if (p->y2_label && p->y2_scale > 0) {
         /* the right axis gets round numbers of its own unit */
-        double t2[33];
+        double t2[LW_PLOT_TICKS_MAX];
         size_t n2 = lw_plot_ticks(f->ylo * p->y2_scale, f->yhi * p->y2_scale, 6, t2);
         for (size_t i = 0; i < n2; i++) {
             double y = py(f, t2[i] / p->y2_scale);
@@ -348,7 +363,8 @@ static void draw_legend(FILE *fp, const frame *f, const lw_panel *p, size_t colo
 
 static lw_status lw_plot_svg_in_c_locale(FILE *fp, const lw_chart *c, lw_error *err)
 {
-    double W = c->width_px > 0 ? c->width_px : 900, H = c->height_px > 0 ? c->height_px : 560;
+    double W = c->width_px > 0 ? c->width_px : CANVAS_W_PX,
+           H = c->height_px > 0 ? c->height_px : CANVAS_H_PX;
     double left = 80, right = 80, top = c->subtitle ? 64 : 46, bottom = 60, gap = 18;
     fprintf(fp, "<?xml version='1.0' encoding='UTF-8'?>\n"
                 "<svg xmlns='http://www.w3.org/2000/svg' width='%.0f' height='%.0f' "
@@ -466,7 +482,7 @@ static lw_status lw_plot_run_in_c_locale(FILE *fp, const char *title, const lw_l
 static lw_status lw_plot_led_fit_in_c_locale(FILE *fp, const double *i_a, const double *v, size_t n,
                           const lw_led_fit *lin, const lw_led_fit *sh, lw_error *err)
 {
-    size_t nc = 200;
+    size_t nc = LED_CURVE_POINTS;
     double *b = lw_malloc((3 * n + 4 * nc) * sizeof *b);
     if (!b)
         return lw_error_set(err, LW_ENOMEM, NULL, 0, "out of memory");
@@ -485,7 +501,7 @@ static lw_status lw_plot_led_fit_in_c_locale(FILE *fp, const double *i_a, const 
                                     sh->lsq.coef[2] * i))
                    : NAN;
     }
-    bool logx = hi > 20 * lo;
+    bool logx = hi > LOG_AXIS_RATIO_LED_I * lo;
     for (size_t k = 0; k < nc; k++) {
         double u = (double)k / (double)(nc - 1);
         cx[k] = cxs[k] = logx ? lo * pow(hi / lo, u) : lo + u * (hi - lo);
@@ -579,9 +595,10 @@ static lw_status lw_plot_sweep_in_c_locale(const lw_profile *prof, const lw_swee
         p->nseries++;
     }
     c->x = (lw_axis){.label = "light output 30 s after switch-on (lm)",
-                     .log = xmax > 30 * xmin, .from_zero = !(xmax > 30 * xmin)};
-    p->y = (lw_axis){.label = "runtime to cutoff (h)", .log = ymax > 30 * ymin,
-                     .from_zero = !(ymax > 30 * ymin)};
+                     .log = xmax > LOG_AXIS_RATIO * xmin,
+                     .from_zero = !(xmax > LOG_AXIS_RATIO * xmin)};
+    p->y = (lw_axis){.label = "runtime to cutoff (h)", .log = ymax > LOG_AXIS_RATIO * ymin,
+                     .from_zero = !(ymax > LOG_AXIS_RATIO * ymin)};
     return LW_OK;
 }
 

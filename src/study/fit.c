@@ -16,6 +16,13 @@
 #include "lampwick/led.h"
 #include "lampwick/alloc.h"
 
+/* Rank tests of the least-squares QR: a column whose norm is at most
+ * COLUMN_NORM_MIN is zero (the data cannot move that parameter); a diagonal
+ * of R at most RANK_RTOL times the largest marks columns that are dependent
+ * to within about 1e-10, which the double-precision solve cannot resolve. */
+#define COLUMN_NORM_MIN 1e-12
+#define RANK_RTOL 1e-10
+
 lw_status lw_fit_lsq_solve(const double *const *x, size_t p, const double *y, size_t n,
                        lw_lsq *out, lw_error *err)
 {
@@ -47,7 +54,7 @@ lw_status lw_fit_lsq_solve(const double *const *x, size_t p, const double *y, si
         for (size_t i = k; i < n; i++)
             norm += col[i] * col[i];
         norm = sqrt(norm);
-        if (norm <= 1e-12) {
+        if (norm <= COLUMN_NORM_MIN) {
             free(a);
             return lw_error_set(err, LW_EINPUT, NULL, 0,
                                 "the data cannot separate the model's parameters (the columns "
@@ -77,7 +84,7 @@ lw_status lw_fit_lsq_solve(const double *const *x, size_t p, const double *y, si
     for (size_t k = 0; k < p; k++)
         rmax = fmax(rmax, fabs(rdiag[k]));
     for (size_t k = 0; k < p; k++)
-        if (fabs(rdiag[k]) <= 1e-10 * rmax) {
+        if (fabs(rdiag[k]) <= RANK_RTOL * rmax) {
             free(a);
             return lw_error_set(err, LW_EINPUT, NULL, 0,
                                 "the data cannot separate the model's parameters (the columns "

@@ -15,6 +15,11 @@ const size_t lw_resistor_nratings = sizeof lw_resistor_ratings_w / sizeof lw_res
 /* The search range of resistances, log10(ohm): 1 mohm to 100 Mohm. */
 #define LOG_R_MIN (-3.0)
 #define LOG_R_MAX 8.0
+/* Brent on log10(R): 1e-10 decades is a relative error of 2.3e-10 in R,
+ * far inside any resistor tolerance; 200 iterations bound the work (Brent
+ * needs at most a few dozen here). */
+#define ROOT_TOL_LOG_R 1e-10
+#define ROOT_ITER_MAX 200
 
 double lw_resistor_rating_w(double p_w)
 {
@@ -65,7 +70,7 @@ static double excess(double log_r, void *vctx)
 static lw_status root(search *c, double lo, double hi, double flo, double fhi, double *r_ohm)
 {
     double x;
-    lw_status st = lw_root_brent(excess, c, lo, hi, flo, fhi, 1e-10, 200, &x, c->err);
+    lw_status st = lw_root_brent(excess, c, lo, hi, flo, fhi, ROOT_TOL_LOG_R, ROOT_ITER_MAX, &x, c->err);
     if (st == LW_OK && c->st != LW_OK)
         st = c->st;
     if (st == LW_OK)

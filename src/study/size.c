@@ -14,6 +14,10 @@
 #include "lampwick/resistor.h"
 #include "lampwick/alloc.h"
 
+/* Golden section: each probe splits the bracket at 1/phi = (sqrt(5) - 1) / 2,
+ * so one probe is reused per step (Kiefer 1953; any numerical text). */
+#define GOLDEN_RATIO_INV 0.6180339887498949
+
 typedef struct size_job {
     const lw_profile *prof;
     const lw_size_options *opt;
@@ -87,7 +91,6 @@ static lw_status floor_runtime(const lw_light *l, const double *cand, size_t i, 
 static lw_status best_for_floor(const size_job *j, const lw_light *l, double r_safe,
                                 double max_w, double *r_out, lw_result *res, lw_error *err)
 {
-    static const double golden = 0.6180339887498949; /* (sqrt(5) - 1) / 2 */
     double r_hi;
     lw_status st = lw_resistor_for(l, LW_TARGET_FLUX, j->opt->flux_lm, false, &r_hi, err);
     *r_out = NAN;
@@ -102,8 +105,8 @@ static lw_status best_for_floor(const size_job *j, const lw_light *l, double r_s
     size_t lo = 0, hi = n ? n - 1 : 0;
     while (st == LW_OK && n > 0 && hi - lo > 2) {
         lw_result r1 = {0}, r2 = {0};
-        size_t m1 = lo + (size_t)((double)(hi - lo) * (1.0 - golden));
-        size_t m2 = lo + (size_t)((double)(hi - lo) * golden);
+        size_t m1 = lo + (size_t)((double)(hi - lo) * (1.0 - GOLDEN_RATIO_INV));
+        size_t m2 = lo + (size_t)((double)(hi - lo) * GOLDEN_RATIO_INV);
         if (m2 <= m1)
             m2 = m1 + 1; /* hi - lo > 2: both stay inside and the bracket shrinks */
         double t1, t2;

@@ -20,9 +20,10 @@ lw_status lw_sweep_run(const lw_profile *base, const lw_vary *vary, size_t nvary
     sw->nvary = nvary;
     size_t n = 1;
     for (size_t k = 0; k < nvary; k++) {
-        if (vary[k].n == 0 || n > 1000000 / vary[k].n)
+        if (vary[k].n == 0 || n > LW_SWEEP_ROWS_MAX / vary[k].n)
             return lw_error_set(err, LW_EINPUT, "--vary", 0,
-                                "the grid is empty or has more than 1000000 rows");
+                                "the grid is empty or has more than %d rows",
+                                LW_SWEEP_ROWS_MAX);
         n *= vary[k].n;
     }
     if (nvary > LW_SWEEP_VARY_MAX)

@@ -91,9 +91,9 @@ static lw_status parse_values(const char *arg, const char *vals, bool numeric, c
             if (!parse_span(colon + 1, &lo, &hi, &step) || step || !(lo > 0) || hi < lo)
                 return vary_error(arg, "a preferred-value range is E24:FROM..TO with 0 < FROM <= TO",
                                   err);
-            double buf[4096];
-            size_t k = lw_eseries_range(series, lo, hi, buf, 4096);
-            if (k == 0 || k > 4096)
+            double buf[LW_VARY_ESERIES_MAX];
+            size_t k = lw_eseries_range(series, lo, hi, buf, LW_VARY_ESERIES_MAX);
+            if (k == 0 || k > LW_VARY_ESERIES_MAX)
                 return vary_error(arg, "the range holds no values of the series (or too many)",
                                   err);
             for (size_t i = 0; i < k; i++) {
