@@ -1,6 +1,6 @@
 /*
  * test_report.c - report tables: the run columns contract, text alignment,
- * Markdown and CSV rendering, and round tick values for plots.
+ * Markdown and CSV rendering, hours and warnings as printed.
  */
 #include "testutil.h"
 #include "tmpdir.h"
@@ -79,61 +79,6 @@ static void text_md_csv_rendering(void **state)
     lw_rtable_free(t);
 }
 
-static void nice_ticks_are_round(void **state)
-{
-    (void)state;
-    double t[33];
-    size_t n = lw_plot_ticks(0, 59.88, 8, t);
-    assert_true(n >= 4 && n <= 8);
-    for (size_t i = 0; i < n; i++) {
-        double step = t[1] - t[0];
-        assert_close(step, 10, 1e-12);
-        assert_close(t[i], 10.0 * (double)i, 1e-12);
-    }
-    n = lw_plot_ticks(0.9, 1.6, 6, t);
-    assert_close(t[0], 1.0, 1e-12);
-    assert_close(t[1] - t[0], 0.2, 1e-12);
-    assert_int_equal(lw_plot_ticks(1, 1, 6, t), 0);
-}
-
-/* Whatever bytes a label holds, the SVG is well-formed XML 1.0 (W3C XML
- * 1.0, section 2.2 "Characters" and 2.4 "Character Data"): valid UTF-8, no
- * control character but tab and newline, markup characters escaped. */
-static void svg_text_is_always_well_formed(void **state)
-{
-    (void)state;
-    const char *bad = "a\x01" "b\x1b[31m\xff\xc0\xaf" "c <&> \"q\" \xe2\x82\xac";
-    double x[2] = {1, 2}, y[2] = {3, 4};
-    const char *labels[2] = {bad, "ok"};
-    lw_chart c = {0};
-    c.title = bad;
-    c.subtitle = bad;
-    c.npanels = 1;
-    c.x = (lw_axis){.label = bad};
-    c.panels[0].y = (lw_axis){.label = bad};
-    c.panels[0].series[c.panels[0].nseries++] =
-        (lw_series){.name = bad, .x = x, .y = y, .n = 2, .points = true, .labels = labels};
-    c.panels[0].refs[c.panels[0].nrefs++] = (lw_refline){3.5, bad};
-    char *text = NULL;
-    size_t len = 0;
-    FILE *fp = open_memstream(&text, &len);
-    assert_non_null(fp);
-    lw_error e;
-    lw_error_clear(&e);
-    assert_int_equal(lw_plot_svg(fp, &c, &e), LW_OK);
-    fclose(fp);
-    size_t at;
-    assert_true(lw_text_utf8_valid(text, len, &at));
-    for (size_t i = 0; i < len; i++)
-        if ((unsigned char)text[i] < 0x20 && text[i] != '\n' && text[i] != '\t')
-            fail_msg("control byte 0x%02x at %zu", (unsigned char)text[i], i);
-    assert_non_null(strstr(text, "&lt;&amp;&gt;"));
-    assert_non_null(strstr(text, "\xef\xbf\xbd")); /* U+FFFD for what is not a character */
-    assert_non_null(strstr(text, "\xe2\x82\xac")); /* a valid character kept as it is */
-    assert_null(strstr(text, "<&>"));
-    free(text);
-}
-
 static void hours_formatting(void **state)
 {
     (void)state;
@@ -154,9 +99,7 @@ int main(void)
     const struct CMUnitTest tests[] = {
         cmocka_unit_test(run_columns_contract),
         cmocka_unit_test(text_md_csv_rendering),
-        cmocka_unit_test(nice_ticks_are_round),
         cmocka_unit_test(hours_formatting),
-        cmocka_unit_test(svg_text_is_always_well_formed),
     };
     return cmocka_run_group_tests(tests, NULL, tmp_teardown);
 }

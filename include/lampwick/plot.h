@@ -75,7 +75,8 @@ LW_MUST_CHECK lw_status lw_plot_svg(FILE *fp, const lw_chart *chart, lw_error *e
 
 /* Round tick positions covering [lo, hi]: about max_ticks, steps of
  * 1, 2 or 5 x 10^k.  ticks holds LW_PLOT_TICKS_MAX values; returns the
- * count written, 0 when the range is empty or not finite. */
+ * count written (at most max_ticks + 1; at least 2 when max_ticks >= 6),
+ * 0 when the range is empty or not finite. */
 size_t lw_plot_ticks(double lo, double hi, size_t max_ticks, double *ticks);
 
 /* The chart of a run: light output (% of the 30-s output, and lm) with the

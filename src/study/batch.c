@@ -7,6 +7,11 @@
 #include <stdio.h>
 #include <string.h>
 
+/* Fewer cases than this run on the calling thread alone: a run takes some
+ * tens of microseconds, a thread start and join a similar time, so a small
+ * batch gains nothing from threads (a judgement, no measurement). */
+#define BATCH_THREADED_MIN 16
+
 struct batch {
     const lw_profile *base;
     lw_case *cases;
@@ -37,8 +42,7 @@ void lw_batch_run(const lw_profile *base, lw_case *cases, size_t n, int threads,
                   const char *origin, lw_pool_progress_fn progress, void *progress_ctx)
 {
     struct batch b = {base, cases, origin};
-    /* small batches are not worth a thread start */
-    if (n < 16)
+    if (n < BATCH_THREADED_MIN)
         threads = 1;
     lw_pool_for(n, threads, run_case, &b, progress, progress_ctx);
 }
