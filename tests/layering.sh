@@ -5,7 +5,8 @@
 # and a file compiled as layer L (-DLW_LAYER=L, as meson compiles each
 # layer's library) must fail to include a header of a higher layer and must
 # be able to include any header of its own layer or below.  A program
-# outside the library (no LW_LAYER) may include every header.
+# outside the library (no LW_LAYER) may include every header, also in plain
+# ISO C17 with no feature-test macro.
 set -u
 CC=$1
 SRC=$(cd "$2" && pwd)
@@ -40,5 +41,17 @@ for h in "$SRC"/include/lampwick/*.h; do
     done
 done
 if try none lampwick; then pass=$((pass + 1)); else fail=$((fail + 1)); echo "FAIL: lampwick.h outside the library: $(head -3 "$T/err")"; fi
+# a user's program in plain ISO C17, no feature-test macro: every public
+# header must stand on its own (no POSIX-only type such as locale_t leaks)
+for h in "$SRC"/include/lampwick/*.h; do
+    name=$(basename "$h" .h)
+    printf '#include <lampwick/%s.h>\nint lw_layering_probe;\n' "$name" > "$T/plain.c"
+    if "$CC" -std=c17 -pedantic-errors -Wall -Wextra -Werror -I"$SRC/include" -c "$T/plain.c" \
+        -o "$T/plain.o" 2> "$T/err"; then
+        pass=$((pass + 1))
+    else
+        fail=$((fail + 1)); echo "FAIL: <lampwick/$name.h> in plain C17: $(head -3 "$T/err")"
+    fi
+done
 echo "$pass passed, $fail failed"
 [ "$fail" -eq 0 ]

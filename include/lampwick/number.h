@@ -21,7 +21,6 @@
 #error "base-layer header included from a lower layer"
 #endif
 
-#include <locale.h>
 #include <stdbool.h>
 #include <stddef.h>
 
@@ -44,9 +43,14 @@ bool lw_number_parse_int(const char *s, int *out);
  * bytes. */
 void lw_number_format(char *buf, size_t size, double v);
 
-/* Switch the calling thread to the C locale; returns what to restore with
- * lw_number_locale_end (nesting is fine). */
+#ifdef LW_LAYER
+/* Inside the library only (locale_t is POSIX 2008, which a user of the
+ * public headers need not ask for): switch the calling thread to the C
+ * locale; returns what to restore with lw_number_locale_end (nesting is
+ * fine). */
+#include <locale.h>
 locale_t lw_number_locale_begin(void);
 void lw_number_locale_end(locale_t saved);
+#endif
 
 #endif
