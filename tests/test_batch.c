@@ -6,25 +6,11 @@
  * These are identities of the design (one path computes every number); no
  * outside source is needed.
  */
-#include "testutil.h"
+#include "bundled.h"
 #include <stdlib.h>
 #include <lampwick/lampwick.h>
 
-#define HEADLAMP LW_SOURCE_ROOT "/profiles/headlamp-18650.ini"
 #define NCASES 24
-
-static lw_profile load_headlamp(void)
-{
-    lw_search s;
-    memset(&s, 0, sizeof s);
-    lw_search_add(&s, LW_SOURCE_ROOT "/cells");
-    lw_profile p;
-    lw_error e;
-    lw_error_clear(&e);
-    if (lw_profile_load(HEADLAMP, &s, &p, &e) != LW_OK)
-        fail_msg("%s:%d: %s", e.file, e.line, e.msg);
-    return p;
-}
 
 /* Case i: a mode in turn (its series resistor), a linear regulator and a
  * set current of 40 + 5 i mA, except case 7, whose current is out of
@@ -66,7 +52,7 @@ static void assert_same_result(const lw_result *a, const lw_result *b, size_t i)
 static void cases_match_runs_by_hand_on_any_thread_count(void **state)
 {
     (void)state;
-    lw_profile p = load_headlamp();
+    lw_profile p = bundled_profile("headlamp-18650");
     assert_true(lw_profile_mode_count(&p) >= 2);
     lw_case *one = calloc(NCASES, sizeof *one), *two = calloc(NCASES, sizeof *two);
     assert_non_null(one);

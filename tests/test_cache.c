@@ -5,25 +5,12 @@
  * (lw_path_open_regular, lw_path_opens); a file changed on disk is read
  * again and its new content used; a failed load is not kept.
  */
-#include "testutil.h"
+#include "bundled.h"
 #include <sys/stat.h>
 #include <lampwick/lampwick.h>
 #include "tmpdir.h"
 
 #define HEADLAMP LW_SOURCE_ROOT "/profiles/headlamp-18650.ini"
-
-static lw_profile load_headlamp(void)
-{
-    lw_search s;
-    memset(&s, 0, sizeof s);
-    lw_search_add(&s, LW_SOURCE_ROOT "/cells");
-    lw_profile p;
-    lw_error e;
-    lw_error_clear(&e);
-    if (lw_profile_load(HEADLAMP, &s, &p, &e) != LW_OK)
-        fail_msg("%s:%d: %s", e.file, e.line, e.msg);
-    return p;
-}
 
 /* Every file the profile reads was opened exactly once. */
 static void assert_each_input_opened_once(const lw_profile *p, const char *what)
@@ -41,7 +28,7 @@ static void sweep_of_15_cases_reads_each_file_once(void **state)
     (void)state;
     lw_cache_clear();
     lw_path_opens_reset();
-    lw_profile p = load_headlamp();
+    lw_profile p = bundled_profile("headlamp-18650");
     lw_vary v;
     lw_error e;
     lw_error_clear(&e);
@@ -63,7 +50,7 @@ static void every_mode_reads_each_file_once(void **state)
     (void)state;
     lw_cache_clear();
     lw_path_opens_reset();
-    lw_profile p = load_headlamp();
+    lw_profile p = bundled_profile("headlamp-18650");
     size_t modes = lw_profile_mode_count(&p);
     assert_true(modes >= 3);
     for (size_t m = 0; m < modes; m++) {
@@ -91,9 +78,7 @@ static void changed_file_is_read_again(void **state)
     const char *iv = tmp_write("iv.csv", "current_ma,forward_v\n1,2.5\n100,3.0\n");
     char iv_path[512];
     lw_text_copy(iv_path, iv, sizeof iv_path);
-    lw_search s;
-    memset(&s, 0, sizeof s);
-    lw_search_add(&s, LW_SOURCE_ROOT "/cells");
+    lw_search s = bundled_cells();
     lw_profile p;
     lw_error e;
     lw_error_clear(&e);

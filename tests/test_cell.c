@@ -2,7 +2,7 @@
  * test_cell.c - the cell model: Peukert's law with its low-drain cap, and the
  * temperature factors.
  */
-#include "testutil.h"
+#include "bundled.h"
 #include <lampwick/lampwick.h>
 
 static lw_cell peukert_cell(double c_ah, double rated_a, double k, double cmax_ah)
@@ -86,9 +86,7 @@ static void temperature_factors_interpolate_and_clamp(void **state)
 static void bundled_curves_reach_their_end_point(void **state)
 {
     (void)state;
-    lw_search s;
-    memset(&s, 0, sizeof s);
-    lw_search_add(&s, LW_SOURCE_ROOT "/cells");
+    lw_search s = bundled_cells();
     lw_cellfile_list list;
     lw_error e;
     lw_error_clear(&e);

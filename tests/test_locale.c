@@ -10,20 +10,12 @@
  * the same.  The test checks that the locale really is in force (printf
  * gives "3,5") so that it cannot pass by not switching.
  */
-#include "testutil.h"
+#include "bundled.h"
 #include <locale.h>
 #include <lampwick/lampwick.h>
 #include "tmpdir.h"
 
 #define ROOT LW_SOURCE_ROOT
-
-static lw_search cells(void)
-{
-    lw_search s;
-    memset(&s, 0, sizeof s);
-    lw_search_add(&s, ROOT "/cells");
-    return s;
-}
 
 static void ok(lw_status st, const lw_error *e, const char *what)
 {
@@ -43,7 +35,7 @@ static void produce(FILE *out)
 {
     lw_error e;
     lw_error_clear(&e);
-    lw_search s = cells();
+    lw_search s = bundled_cells();
     static const char *const profiles[] = {"demo", "headlamp-18650", "lantern-drives",
                                            "coin-marker"};
     for (size_t k = 0; k < 4; k++) {
@@ -218,7 +210,7 @@ static void a_profile_reads_under_a_comma_locale(void **state)
 {
     (void)state;
     assert_true(comma_locale());
-    lw_search s = cells();
+    lw_search s = bundled_cells();
     lw_profile p;
     lw_error e;
     lw_error_clear(&e);

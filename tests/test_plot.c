@@ -5,7 +5,7 @@
  * expat, the W3C XML 1.0 rules, in tests/svgcheck.py), no non-finite number ever written, labels
  * escaped, and the data drawn inside the plot frame.
  */
-#include "testutil.h"
+#include "bundled.h"
 #include "tmpdir.h"
 #include <stdlib.h>
 #include <lampwick/lampwick.h>
@@ -169,21 +169,13 @@ static FILE *open_out(const char *name, char *path)
     return fp;
 }
 
-static lw_search cells(void)
-{
-    lw_search s;
-    memset(&s, 0, sizeof s);
-    lw_search_add(&s, ROOT "/cells");
-    return s;
-}
-
 /* Every bundled profile's run chart, the sweep chart and the LED fit chart. */
 static void every_chart_is_a_valid_svg_document(void **state)
 {
     (void)state;
     static const char *const profiles[] = {"demo", "headlamp-18650", "lantern-drives",
                                            "coin-marker"};
-    lw_search s = cells();
+    lw_search s = bundled_cells();
     lw_error e;
     char path[512];
     for (size_t k = 0; k < sizeof profiles / sizeof *profiles; k++) {

@@ -3,7 +3,7 @@
  * refusal with its file:line message, --set overrides, modes, and the whole
  * bundled cell library and profile set.
  */
-#include "testutil.h"
+#include "bundled.h"
 #include <glob.h>
 #include "tmpdir.h"
 #include <lampwick/lampwick.h>
@@ -335,9 +335,7 @@ static void bundled_profiles_load(void **state)
     glob_t g;
     assert_int_equal(glob(LW_SOURCE_ROOT "/profiles/*.ini", 0, NULL, &g), 0);
     assert_true(g.gl_pathc >= 1);
-    lw_search s;
-    memset(&s, 0, sizeof s);
-    lw_search_add(&s, LW_SOURCE_ROOT "/cells");
+    lw_search s = bundled_cells();
     for (size_t i = 0; i < g.gl_pathc; i++) {
         lw_profile p;
         lw_error e;

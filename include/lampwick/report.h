@@ -55,4 +55,21 @@ void lw_report_hours(double h, char *buf, size_t size);
 /* The one-line caution printed with every result. */
 extern const char *const lw_report_caution;
 
+/* The letter that marks warning bit `bit` in a table ('a' for bit 0). */
+char lw_report_warning_marker(int bit);
+
+/* One note per warning bit set in `used`: "(a) <the warning in words>.". */
+LW_MUST_CHECK lw_status lw_report_warning_notes(lw_rtable *t, unsigned used, lw_error *err);
+
+/* The end of every study table, given the status of building it (st).
+ * lw_report_table_write: on success the caution goes under a Markdown
+ * table and the table is written to fp; lw_report_table_keep: the caution
+ * goes under a text or Markdown table and *out takes the table.  Both free
+ * the table on any failure (and _write always), and return the first
+ * failure. */
+LW_MUST_CHECK lw_status lw_report_table_write(lw_rtable *t, lw_status st, FILE *fp,
+                                              lw_rtable_format fmt, lw_error *err);
+LW_MUST_CHECK lw_status lw_report_table_keep(lw_rtable *t, lw_status st, lw_rtable_format fmt,
+                                             lw_rtable **out, lw_error *err);
+
 #endif

@@ -163,12 +163,7 @@ static lw_status lw_report_pick_in_c_locale(FILE *fp, const lw_profile *prof, co
         if (st == LW_OK)
             st = lw_rtable_set(t, row, nh - 1, pk->within_ratings ? "yes" : "no", err);
     }
-    if (st == LW_OK && fmt == LW_FMT_MD)
-        st = lw_rtable_note(t, lw_report_caution, err);
-    if (st == LW_OK)
-        st = lw_rtable_write(t, fp, fmt, err);
-    lw_rtable_free(t);
-    return st;
+    return lw_report_table_write(t, st, fp, fmt, err);
 }
 
 lw_status lw_report_pick(FILE *fp, const lw_profile *prof, const lw_pick *picks, size_t n,

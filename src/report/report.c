@@ -15,6 +15,50 @@ const char *const lw_report_caution =
     "Caution: estimates from typical data. Follow the cell maker's limits and the applicable "
     "safety standards; have a product checked by qualified people.";
 
+char lw_report_warning_marker(int bit)
+{
+    return (char)('a' + bit);
+}
+
+lw_status lw_report_warning_notes(lw_rtable *t, unsigned used, lw_error *err)
+{
+    locale_t saved = lw_number_locale_begin();
+    lw_status st = LW_OK;
+    for (int b = 0; b < LW_WARN_COUNT_ && st == LW_OK; b++)
+        if (used & (1u << b)) {
+            char note[512];
+            snprintf(note, sizeof note, "(%c) %s.", lw_report_warning_marker(b),
+                     lw_report_warning(b));
+            st = lw_rtable_note(t, note, err);
+        }
+    lw_number_locale_end(saved);
+    return st;
+}
+
+lw_status lw_report_table_write(lw_rtable *t, lw_status st, FILE *fp, lw_rtable_format fmt,
+                                lw_error *err)
+{
+    if (st == LW_OK && fmt == LW_FMT_MD)
+        st = lw_rtable_note(t, lw_report_caution, err);
+    if (st == LW_OK)
+        st = lw_rtable_write(t, fp, fmt, err);
+    lw_rtable_free(t);
+    return st;
+}
+
+lw_status lw_report_table_keep(lw_rtable *t, lw_status st, lw_rtable_format fmt, lw_rtable **out,
+                               lw_error *err)
+{
+    if (st == LW_OK && fmt != LW_FMT_CSV)
+        st = lw_rtable_note(t, lw_report_caution, err);
+    if (st != LW_OK) {
+        lw_rtable_free(t);
+        return st;
+    }
+    *out = t;
+    return LW_OK;
+}
+
 /* ---- the run report ---- */
 
 /* The run columns, in the order of lw_report_run_columns. */
@@ -374,12 +418,7 @@ static lw_status lw_report_run_in_c_locale(FILE *fp, lw_rtable_format fmt, const
         st = lw_rtable_add_row(t, &row, err);
     if (st == LW_OK)
         st = lw_report_run_row(t, row, 0, &prof->light, res, err);
-    if (st == LW_OK && fmt == LW_FMT_MD)
-        st = lw_rtable_note(t, lw_report_caution, err);
-    if (st == LW_OK)
-        st = lw_rtable_write(t, fp, fmt, err);
-    lw_rtable_free(t);
-    return st;
+    return lw_report_table_write(t, st, fp, fmt, err);
 }
 
 /* ---- the trace ---- */

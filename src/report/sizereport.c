@@ -52,7 +52,8 @@ static lw_status lw_report_size_in_c_locale(const lw_profile *prof, const lw_siz
             for (int b = 0; b < LW_WARN_COUNT_; b++)
                 if (w->warnings & (1u << b)) {
                     size_t m = strlen(warn);
-                    snprintf(warn + m, sizeof warn - m, "%s%c", m ? "," : "", 'a' + b);
+                    snprintf(warn + m, sizeof warn - m, "%s%c", m ? "," : "",
+                             lw_report_warning_marker(b));
                     used |= 1u << b;
                 }
         }
@@ -89,22 +90,12 @@ static lw_status lw_report_size_in_c_locale(const lw_profile *prof, const lw_siz
                                                     : "a standard rating with 2x derating");
             st = lw_rtable_note(t, note, err);
         }
-        for (int b = 0; b < LW_WARN_COUNT_ && st == LW_OK; b++)
-            if (used & (1u << b)) {
-                snprintf(note, sizeof note, "(%c) %s.", 'a' + b, lw_report_warning(b));
-                st = lw_rtable_note(t, note, err);
-            }
+        if (st == LW_OK)
+            st = lw_report_warning_notes(t, used, err);
         if (st == LW_OK && !fits)
             st = lw_rtable_note(t, "Nothing fits; the row above is what came closest.", err);
-        if (st == LW_OK)
-            st = lw_rtable_note(t, lw_report_caution, err);
     }
-    if (st != LW_OK) {
-        lw_rtable_free(t);
-        return st;
-    }
-    *out = t;
-    return LW_OK;
+    return lw_report_table_keep(t, st, fmt, out, err);
 }
 
 lw_status lw_report_size(const lw_profile *prof, const lw_size_options *opt,

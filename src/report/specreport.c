@@ -172,11 +172,6 @@ static lw_status aspect(const lw_spec *s, const char *label, aspect_fn f, char *
     return st;
 }
 
-/* Marker letter of warning bit i in the table ('a' for bit 0). */
-static char marker(int bit)
-{
-    return (char)('a' + bit);
-}
 
 static lw_status spec_notes(const lw_spec *s, unsigned used, lw_rtable *t, lw_error *err)
 {
@@ -225,12 +220,8 @@ static lw_status spec_notes(const lw_spec *s, unsigned used, lw_rtable *t, lw_er
                      p->peak_cd_per_lm);
         st = lw_rtable_note(t, buf, err);
     }
-    for (int i = 0; i < LW_WARN_COUNT_ && st == LW_OK; i++) {
-        if (!(used & (1u << i)))
-            continue;
-        snprintf(buf, sizeof buf, "(%c) %s.", marker(i), lw_report_warning(i));
-        st = lw_rtable_note(t, buf, err);
-    }
+    if (st == LW_OK)
+        st = lw_report_warning_notes(t, used, err);
     if (st == LW_OK && (used & (1u << LW_WARN_COUNT_)))
         st = lw_rtable_note(t,
                             "no light: the run gave no light at all; the notes column names "
@@ -278,9 +269,9 @@ static lw_status spec_cell(const lw_spec *s, const lw_case *k, int kind, lw_rtab
             for (int i = 0; i < LW_WARN_COUNT_; i++)
                 if ((res->warnings & (1u << i)) && (1u << i) != LW_WARN_NEVER_LIT) {
                     size_t m = strlen(marks);
-                    marks[m] = m ? ',' : marker(i);
+                    marks[m] = m ? ',' : lw_report_warning_marker(i);
                     if (m)
-                        marks[++m] = marker(i);
+                        marks[++m] = lw_report_warning_marker(i);
                     marks[m + 1] = '\0';
                 }
             snprintf(buf, sizeof buf, "%s%s%s%s%s", dark ? lw_run_end_names[res->end_reason] : "",

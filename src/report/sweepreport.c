@@ -92,14 +92,7 @@ static lw_status lw_report_sweep_in_c_locale(const lw_sweep *sw, lw_rtable_forma
             st = lw_rtable_copy_cell(t, row, nk + c, full, frow, cols[c], err);
     }
     lw_rtable_free(full);
-    if (st == LW_OK && fmt != LW_FMT_CSV)
-        st = lw_rtable_note(t, lw_report_caution, err);
-    if (st != LW_OK) {
-        lw_rtable_free(t);
-        return st;
-    }
-    *out = t;
-    return LW_OK;
+    return lw_report_table_keep(t, st, fmt, out, err);
 }
 
 lw_status lw_report_sweep(const lw_sweep *sw, lw_rtable_format fmt, const char *columns, lw_rtable **out,
