@@ -10,7 +10,8 @@
 
 /* ---- building lights in code ---- */
 
-static inline void set_curve(lw_cell *c, const double *d, const double *ocv, const double *r, size_t n)
+static inline void set_curve(lw_cell *c, const double *d, const double *ocv, const double *r,
+                             size_t n)
 {
     lw_error e;
     lw_error_clear(&e);

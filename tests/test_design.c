@@ -116,14 +116,18 @@ static void size_results_pass_their_own_runs(void **state)
         lw_profile q;
         assert_int_equal(lw_profile_copy(&q, &p, &e), LW_OK);
         char buf[64];
-        assert_int_equal(lw_profile_set(&q, "pack.cell", rows[i].cell, LW_FROM_OPTION, "t", 0, &e), LW_OK);
+        assert_int_equal(lw_profile_set(&q, "pack.cell", rows[i].cell, LW_FROM_OPTION, "t", 0, &e),
+                         LW_OK);
         snprintf(buf, sizeof buf, "%d", rows[i].series);
         assert_int_equal(lw_profile_set(&q, "pack.series", buf, LW_FROM_OPTION, "t", 0, &e), LW_OK);
         snprintf(buf, sizeof buf, "%d", rows[i].parallel);
-        assert_int_equal(lw_profile_set(&q, "pack.parallel", buf, LW_FROM_OPTION, "t", 0, &e), LW_OK);
+        assert_int_equal(lw_profile_set(&q, "pack.parallel", buf, LW_FROM_OPTION, "t", 0, &e),
+                         LW_OK);
         snprintf(buf, sizeof buf, "%.10g", rows[i].resistor_ohm);
-        assert_int_equal(lw_profile_set(&q, "drive.resistor_ohm", buf, LW_FROM_OPTION, "t", 0, &e), LW_OK);
-        assert_int_equal(lw_profile_set(&q, "cutoff.flux_lm", "5", LW_FROM_OPTION, "t", 0, &e), LW_OK);
+        assert_int_equal(lw_profile_set(&q, "drive.resistor_ohm", buf, LW_FROM_OPTION, "t", 0, &e),
+                         LW_OK);
+        assert_int_equal(lw_profile_set(&q, "cutoff.flux_lm", "5", LW_FROM_OPTION, "t", 0, &e),
+                         LW_OK);
         assert_int_equal(lw_profile_resolve(&q, &e), LW_OK);
         lw_result r;
         lw_run_options o = lw_run_options_default();
@@ -274,7 +278,8 @@ static void table_consistent_with_run(void **state)
             lw_profile q;
             assert_int_equal(lw_profile_copy(&q, &p, &e), LW_OK);
             assert_int_equal(lw_profile_apply_mode(&q, mode, &e), LW_OK);
-            assert_int_equal(lw_profile_set(&q, "pack.cell", cells[c], LW_FROM_OPTION, "t", 0, &e), LW_OK);
+            assert_int_equal(lw_profile_set(&q, "pack.cell", cells[c], LW_FROM_OPTION, "t", 0, &e),
+                             LW_OK);
             assert_int_equal(lw_profile_resolve(&q, &e), LW_OK);
             lw_result res;
             lw_run_options o = lw_run_options_default();

@@ -218,7 +218,8 @@ static void converter_steep_efficiency_notch(void **state)
         double pout = p.p_led_w / (l.drive.duty_pct / 100.0);
         double iq = l.drive.quiescent_a;
         double scale = ev * ev / r;
-#define F_AT(v) ((v) * (ev - (v)) / r - (v) * iq - pout / (lw_interp_linear(l.drive.efficiency, (v)) / 100.0))
+#define F_AT(v)                                                                                    \
+    ((v) * (ev - (v)) / r - (v)*iq - pout / (lw_interp_linear(l.drive.efficiency, (v)) / 100.0))
         assert_near(F_AT(p.pack_v), 0.0, 1e-9 * scale);
         for (int k = 1; k <= 400; k++) {
             double v = p.pack_v + (ev - p.pack_v) * k / 400.0;

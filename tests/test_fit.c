@@ -241,8 +241,8 @@ static void cell_fit_round_trip(void **state)
     lw_cell truth;
     lw_error e;
     lw_error_clear(&e);
-    assert_int_equal(lw_cellfile_load(LW_SOURCE_ROOT "/docs/examples/nimh-aa-sample.ini", &truth, &e),
-                     LW_OK);
+    assert_int_equal(
+        lw_cellfile_load(LW_SOURCE_ROOT "/docs/examples/nimh-aa-sample.ini", &truth, &e), LW_OK);
     lw_cellfit_log logs[2];
     synth_log(&truth, 3.9, &logs[0]);
     synth_log(&truth, 8.2, &logs[1]);

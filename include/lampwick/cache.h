@@ -47,8 +47,8 @@ typedef lw_status (*lw_cache_cell_fn)(const char *path, const void *ctx, lw_cell
 
 /* The cell file at path: from the cache, or by load(path, ctx) and then
  * kept.  *out shares the tables (lw_cell_clear it). */
-LW_MUST_CHECK lw_status lw_cache_cell(const char *path, lw_cache_cell_fn load, const void *ctx, lw_cell *out,
-                        lw_error *err);
+LW_MUST_CHECK lw_status lw_cache_cell(const char *path, lw_cache_cell_fn load, const void *ctx,
+                                      lw_cell *out, lw_error *err);
 
 /* Drop every entry (what profiles hold stays valid: tables are counted). */
 void lw_cache_clear(void);

@@ -42,15 +42,16 @@ LW_MUST_CHECK lw_status lw_cellfile_load(const char *path, lw_cell *cell, lw_err
 /* The same for a file named by a key (ref: "[pack] cell" at its line): a
  * file that is not a cell file (its first section is not [cell]) is said
  * to be so at the key. */
-LW_MUST_CHECK lw_status lw_cellfile_load_named(const char *path, const lw_path_ref *ref, lw_cell *cell,
-                                 lw_error *err);
+LW_MUST_CHECK lw_status lw_cellfile_load_named(const char *path, const lw_path_ref *ref,
+                                               lw_cell *cell, lw_error *err);
 
 /* Resolve a cell reference: a path (contains '/' or ends in ".ini") is taken
  * relative to base_dir; a name is looked up as NAME.ini in base_dir, then in
  * each folder of `search`.  Writes the file's path on success; the error
  * lists the folders searched. */
-LW_MUST_CHECK lw_status lw_cellfile_find(const char *ref, const char *base_dir, const lw_search *search,
-                       char *path, size_t size, lw_error *err);
+LW_MUST_CHECK lw_status lw_cellfile_find(const char *ref, const char *base_dir,
+                                         const lw_search *search, char *path, size_t size,
+                                         lw_error *err);
 
 /* The cell files of the search folders: names (file names without
  * ".ini"), first folder first, each name once, sorted within a folder.  An
@@ -67,7 +68,8 @@ typedef struct lw_cellfile_list {
  * unreadable file counts as one (loading it then says why). */
 bool lw_cellfile_is_cell(const char *path);
 
-LW_MUST_CHECK lw_status lw_cellfile_list_read(const lw_search *search, lw_cellfile_list *list, lw_error *err);
+LW_MUST_CHECK lw_status lw_cellfile_list_read(const lw_search *search, lw_cellfile_list *list,
+                                              lw_error *err);
 void lw_cellfile_list_clear(lw_cellfile_list *list);
 
 /* Write a cell file at ini_path and its curve beside it as
@@ -80,7 +82,7 @@ void lw_cellfile_list_clear(lw_cellfile_list *list);
  * trailing blank, invalid UTF-8, too long) is refused.  `comment` (may hold
  * several lines) goes at the top as ';' comments, control characters shown
  * as \xNN.  The cell must not have a temperature table. */
-LW_MUST_CHECK lw_status lw_cellfile_save(const char *ini_path, const lw_cell *cell, const char *comment,
-                       lw_error *err);
+LW_MUST_CHECK lw_status lw_cellfile_save(const char *ini_path, const lw_cell *cell,
+                                         const char *comment, lw_error *err);
 
 #endif

@@ -45,8 +45,8 @@ typedef struct lw_cellfit_log {
  * Refuses, with file:line: missing columns, fewer than 10 samples, time not
  * strictly increasing, gaps (a step over 10 times the median step),
  * non-positive voltage or current. */
-LW_MUST_CHECK lw_status lw_cellfit_log_read(const char *path, double load_ohm, double load_a, lw_cellfit_log *log,
-                       lw_error *err);
+LW_MUST_CHECK lw_status lw_cellfit_log_read(const char *path, double load_ohm, double load_a,
+                                            lw_cellfit_log *log, lw_error *err);
 void lw_cellfit_log_clear(lw_cellfit_log *log);
 
 typedef struct lw_cellfit_options {
@@ -74,7 +74,8 @@ typedef struct lw_cellfit {
 } lw_cellfit;
 
 /* Fit from one or two logs (two: at different loads). */
-LW_MUST_CHECK lw_status lw_cellfit_fit(const lw_cellfit_log *logs, size_t nlogs, const lw_cellfit_options *opt,
-                      lw_cellfit *out, lw_error *err);
+LW_MUST_CHECK lw_status lw_cellfit_fit(const lw_cellfit_log *logs, size_t nlogs,
+                                       const lw_cellfit_options *opt, lw_cellfit *out,
+                                       lw_error *err);
 
 #endif

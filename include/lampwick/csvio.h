@@ -46,7 +46,8 @@ typedef struct lw_csv {
 
 /* Read a numeric CSV file; `ref` (may be NULL) is the key that named it,
  * for the message when it cannot be opened.  Free with lw_csv_clear. */
-LW_MUST_CHECK lw_status lw_csv_read(const char *path, const lw_path_ref *ref, lw_csv *csv, lw_error *err);
+LW_MUST_CHECK lw_status lw_csv_read(const char *path, const lw_path_ref *ref, lw_csv *csv,
+                                    lw_error *err);
 void lw_csv_clear(lw_csv *csv);
 
 /* Index of a column by name (case-insensitive), or -1. */

@@ -164,7 +164,7 @@ LW_MUST_CHECK lw_status lw_run_worst_case(const lw_light *light, lw_point *pt, l
 /* Hours to discharge from depth d0 to d1 (d0 < d1 within one interval of
  * the cell curve) at the light's operating points, by the run's own
  * Gauss-Kronrod rule; `fallback` selects the converter's fallback level. */
-LW_MUST_CHECK lw_status lw_run_hours_between(const lw_light *light, bool fallback, double d0, double d1,
-                               double *hours, lw_error *err);
+LW_MUST_CHECK lw_status lw_run_hours_between(const lw_light *light, bool fallback, double d0,
+                                             double d1, double *hours, lw_error *err);
 
 #endif

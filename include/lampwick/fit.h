@@ -39,8 +39,8 @@ typedef struct lw_lsq {
 /* Solve min |X c - y| for X given column-wise: x[j][i] is column j, row i.
  * Needs n > p.  Fails with LW_EINPUT when the columns are (numerically)
  * dependent, e.g. all currents equal. */
-LW_MUST_CHECK lw_status lw_fit_lsq_solve(const double *const *x, size_t p, const double *y, size_t n,
-                       lw_lsq *out, lw_error *err);
+LW_MUST_CHECK lw_status lw_fit_lsq_solve(const double *const *x, size_t p, const double *y,
+                                         size_t n, lw_lsq *out, lw_error *err);
 
 typedef struct lw_led_fit {
     lw_lsq lsq;
@@ -54,12 +54,12 @@ typedef struct lw_led_fit {
 } lw_led_fit;
 
 /* Linear model through the points. */
-LW_MUST_CHECK lw_status lw_fit_led_linear(const double *i_a, const double *v, size_t n, lw_led_fit *out,
-                            lw_error *err);
+LW_MUST_CHECK lw_status lw_fit_led_linear(const double *i_a, const double *v, size_t n,
+                                          lw_led_fit *out, lw_error *err);
 
 /* Shockley model with series resistance at junction_c. */
-LW_MUST_CHECK lw_status lw_fit_led_shockley(const double *i_a, const double *v, size_t n, double junction_c,
-                              lw_led_fit *out, lw_error *err);
+LW_MUST_CHECK lw_status lw_fit_led_shockley(const double *i_a, const double *v, size_t n,
+                                            double junction_c, lw_led_fit *out, lw_error *err);
 
 typedef struct lw_flux_fit {
     lw_lsq lsq;           /* in log space */
@@ -68,8 +68,8 @@ typedef struct lw_flux_fit {
     double exponent;
 } lw_flux_fit;
 
-LW_MUST_CHECK lw_status lw_fit_flux(const double *i_a, const double *flux, size_t n, lw_flux_fit *out,
-                      lw_error *err);
+LW_MUST_CHECK lw_status lw_fit_flux(const double *i_a, const double *flux, size_t n,
+                                    lw_flux_fit *out, lw_error *err);
 
 /* Bench measurements of one LED: current_ma, forward_v and optionally
  * flux_lm or relative_pct (docs/formats.md), in SI. */

@@ -23,13 +23,15 @@ LW_MUST_CHECK lw_status lw_report_led_fit(FILE *fp, lw_rtable_format fmt, const 
 
 /* Only the [led] section of the recommended model (lw_fit_led_best), which
  * records the junction temperature of the bench data. */
-LW_MUST_CHECK lw_status lw_report_led_section(FILE *fp, const lw_fit_data *data, const lw_led_fit *lin,
-                                const lw_led_fit *sh, const lw_flux_fit *fx, double junction_c,
-                                lw_error *err);
+LW_MUST_CHECK lw_status lw_report_led_section(FILE *fp, const lw_fit_data *data,
+                                              const lw_led_fit *lin, const lw_led_fit *sh,
+                                              const lw_flux_fit *fx, double junction_c,
+                                              lw_error *err);
 
 /* The summary of a cell fit: each log's charge, the rated capacity,
  * Peukert's exponent, the internal resistance and the curve kept. */
-LW_MUST_CHECK lw_status lw_report_cell_fit(FILE *fp, const lw_cellfit *fit, const char *const *log_names,
-                             double cutoff_v, lw_error *err);
+LW_MUST_CHECK lw_status lw_report_cell_fit(FILE *fp, const lw_cellfit *fit,
+                                           const char *const *log_names, double cutoff_v,
+                                           lw_error *err);
 
 #endif

@@ -69,9 +69,8 @@ typedef lw_status (*lw_ini_check)(const void *check_ctx, const char *section, co
 
 /* Read a whole INI file; `check` may be NULL.  On failure nothing is kept
  * (*ini is empty). */
-LW_MUST_CHECK lw_status lw_ini_read(const char *path, lw_ini *ini, lw_ini_check check, const void *check_ctx,
-                      lw_error *err);
-
+LW_MUST_CHECK lw_status lw_ini_read(const char *path, lw_ini *ini, lw_ini_check check,
+                                    const void *check_ctx, lw_error *err);
 
 void lw_ini_clear(lw_ini *ini);
 /* Line of the header of section `name`, 0 if absent. */

@@ -53,13 +53,13 @@ const char *lw_key_suggest(const lw_keydef *defs, size_t n, const char *section,
 /* Record the error for an unknown key (or section) with the closest known
  * key as a suggestion; returns LW_EINPUT.  With key NULL only the section
  * is judged: LW_OK when defs know it. */
-LW_MUST_CHECK lw_status lw_key_unknown(const lw_keydef *defs, size_t n, const char *section, const char *key,
-                         const char *file, int line, lw_error *err);
+LW_MUST_CHECK lw_status lw_key_unknown(const lw_keydef *defs, size_t n, const char *section,
+                                       const char *key, const char *file, int line, lw_error *err);
 
 /* Check `value` against `def` and store it into `target`.  Errors name
  * file:line and the key and say what was expected. */
-LW_MUST_CHECK lw_status lw_key_apply(const lw_keydef *def, void *target, const char *value, const char *file,
-                       int line, lw_error *err);
+LW_MUST_CHECK lw_status lw_key_apply(const lw_keydef *def, void *target, const char *value,
+                                     const char *file, int line, lw_error *err);
 
 /* The same check for a value given as a number (in the key's file unit,
  * drive.resistor_ohm in ohm): range, integer keys whole, no number for a
@@ -68,6 +68,7 @@ LW_MUST_CHECK lw_status lw_key_apply_number(const lw_keydef *def, void *target, 
                               const char *file, int line, lw_error *err);
 
 /* Write the default of every key that has one into target. */
-LW_MUST_CHECK lw_status lw_key_defaults(const lw_keydef *defs, size_t n, void *target, lw_error *err);
+LW_MUST_CHECK lw_status lw_key_defaults(const lw_keydef *defs, size_t n, void *target,
+                                        lw_error *err);
 
 #endif

@@ -118,8 +118,8 @@ typedef struct lw_point {
 
 /* Solve the light at depth d (0..1).  `fallback` selects the converter's
  * fallback level.  Fails only when the loop has no finite solution. */
-LW_MUST_CHECK lw_status lw_light_point(const lw_light *light, double depth, bool fallback, lw_point *pt,
-                         lw_error *err);
+LW_MUST_CHECK lw_status lw_light_point(const lw_light *light, double depth, bool fallback,
+                                       lw_point *pt, lw_error *err);
 
 /* Same, with the cell's OCV and internal resistance given directly. */
 LW_MUST_CHECK lw_status lw_light_point_at(const lw_light *light, double depth, double ocv_v,

@@ -58,14 +58,15 @@ void lw_outfile_abort(lw_outfile *out);
 /* Refuse an output path that names the same file as one of `others` (the
  * command's inputs and its other outputs; NULL entries are skipped).  The
  * message names the option (`what`, e.g. "--trace"). */
-LW_MUST_CHECK lw_status lw_outfile_check(const char *path, const char *what, const char *const *others,
-                           size_t n, lw_error *err);
+LW_MUST_CHECK lw_status lw_outfile_check(const char *path, const char *what,
+                                         const char *const *others, size_t n, lw_error *err);
 
 /* Write a whole file: open `path`, call fn with the temporary's stream,
  * commit.  A writer's LW_EIO (the stream failed) is reported with the path
  * and the system's reason ("cannot write: No space left on device"). */
 typedef lw_status (*lw_outfile_fn)(FILE *fp, const void *ctx, lw_error *err);
-LW_MUST_CHECK lw_status lw_outfile_write(const char *path, lw_outfile_fn fn, const void *ctx, lw_error *err);
+LW_MUST_CHECK lw_status lw_outfile_write(const char *path, lw_outfile_fn fn, const void *ctx,
+                                         lw_error *err);
 
 /* The same, synced to disk with its folder (files that matter: cell files
  * and their curves), and releasing `guard` (lw_outfile_guard, or -1) in

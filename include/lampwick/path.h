@@ -37,8 +37,8 @@ typedef struct lw_path_ref {
 /* Open a regular file for reading; a folder, device, pipe or socket is
  * refused.  Errors name ref->file:ref->line and ref->what when ref is given
  * ("[cell] curve: cannot open 'x.csv': ..."), else the path itself. */
-LW_MUST_CHECK lw_status lw_path_open_regular(const char *path, const char *mode, const lw_path_ref *ref,
-                               FILE **fp, lw_error *err);
+LW_MUST_CHECK lw_status lw_path_open_regular(const char *path, const char *mode,
+                                             const lw_path_ref *ref, FILE **fp, lw_error *err);
 
 /* How many times lw_path_open_regular opened `path` (as given) since the
  * last lw_path_opens_reset, for tests that check a file is read once; the

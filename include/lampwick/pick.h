@@ -53,9 +53,9 @@ LW_MUST_CHECK lw_status lw_pick_resistor(const lw_profile *prof, lw_target_kind 
 /* The same for each cell of `cells` (NULL-terminated names): out[i],
  * status[i] and errs[i] for cell i.  Fails only on bad input (a cell that
  * cannot be loaded). */
-LW_MUST_CHECK lw_status lw_pick_cells(const lw_profile *prof, const char *const *cells, lw_target_kind kind,
-                        double target, int eseries, lw_pick *out, lw_status *status,
-                        lw_error *errs, lw_error *err);
+LW_MUST_CHECK lw_status lw_pick_cells(const lw_profile *prof, const char *const *cells,
+                                      lw_target_kind kind, double target, int eseries, lw_pick *out,
+                                      lw_status *status, lw_error *errs, lw_error *err);
 
 void lw_pick_clear(lw_pick *pick);
 

@@ -81,8 +81,8 @@ size_t lw_plot_ticks(double lo, double hi, size_t max_ticks, double *ticks);
 
 /* The chart of a run: light output (% of the 30-s output, and lm) with the
  * cutoff line, and pack voltage (loaded and open circuit), against hours. */
-LW_MUST_CHECK lw_status lw_plot_run(FILE *fp, const char *title, const lw_light *light, const lw_result *res,
-                      const lw_trace *trace, lw_error *err);
+LW_MUST_CHECK lw_status lw_plot_run(FILE *fp, const char *title, const lw_light *light,
+                                    const lw_result *res, const lw_trace *trace, lw_error *err);
 
 /* The chart of an LED fit: the measured points with the fitted curves, and
  * the residuals below (lin and sh may each be NULL). */

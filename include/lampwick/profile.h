@@ -76,8 +76,8 @@ LW_MUST_CHECK lw_status lw_profile_set(lw_profile *prof, const char *dotted_key,
 /* Set "section.key" to a number in the key's file unit (drive.resistor_ohm
  * in ohm), with the same checks as a text: no formatting and parsing.
  * Messages name `option` (e.g. "--vary drive.resistor_ohm"). */
-LW_MUST_CHECK lw_status lw_profile_set_number(lw_profile *prof, const char *dotted_key, double value,
-                                const char *option, lw_error *err);
+LW_MUST_CHECK lw_status lw_profile_set_number(lw_profile *prof, const char *dotted_key,
+                                              double value, const char *option, lw_error *err);
 
 /* Parse "section.key=value" from the command line and set it; errors name
  * the option "--set section.key". */
@@ -105,14 +105,14 @@ typedef struct lw_profile_variant {
 
 /* Add an override as text or as a number (key and text are borrowed: they
  * must outlive the variant).  LW_EINPUT when the variant is full. */
-LW_MUST_CHECK lw_status lw_profile_variant_text(lw_profile_variant *v, const char *key, const char *text,
-                                  lw_error *err);
-LW_MUST_CHECK lw_status lw_profile_variant_number(lw_profile_variant *v, const char *key, double value,
-                                    lw_error *err);
+LW_MUST_CHECK lw_status lw_profile_variant_text(lw_profile_variant *v, const char *key,
+                                                const char *text, lw_error *err);
+LW_MUST_CHECK lw_status lw_profile_variant_number(lw_profile_variant *v, const char *key,
+                                                  double value, lw_error *err);
 /* Add "section.key=value" from the command line: the key is copied into
  * key[size] (which must outlive the variant), the value borrowed from arg. */
-LW_MUST_CHECK lw_status lw_profile_variant_arg(lw_profile_variant *v, const char *arg, char *key, size_t size,
-                                 lw_error *err);
+LW_MUST_CHECK lw_status lw_profile_variant_arg(lw_profile_variant *v, const char *arg, char *key,
+                                               size_t size, lw_error *err);
 
 /* The profile of a variant of base.  Messages about an override name
  * "ORIGIN KEY" (origin "--set", "--vary", ...).  Free *out with

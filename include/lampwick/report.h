@@ -25,12 +25,13 @@ extern const char *const lw_report_run_columns[];
 extern const size_t lw_report_run_ncolumns;
 
 /* Fill columns [first, first + lw_report_run_ncolumns) of `row` from a result. */
-LW_MUST_CHECK lw_status lw_report_run_row(lw_rtable *t, size_t row, size_t first, const lw_light *light,
-                            const lw_result *res, lw_error *err);
+LW_MUST_CHECK lw_status lw_report_run_row(lw_rtable *t, size_t row, size_t first,
+                                          const lw_light *light, const lw_result *res,
+                                          lw_error *err);
 
 /* The whole report of one run in the chosen format. */
-LW_MUST_CHECK lw_status lw_report_run(FILE *fp, lw_rtable_format fmt, const lw_profile *prof, const lw_result *res,
-                        lw_error *err);
+LW_MUST_CHECK lw_status lw_report_run(FILE *fp, lw_rtable_format fmt, const lw_profile *prof,
+                                      const lw_result *res, lw_error *err);
 
 /* The trace of a run as CSV (columns in docs/formats.md), full precision. */
 LW_MUST_CHECK lw_status lw_report_trace_csv(FILE *fp, const lw_trace *trace, lw_error *err);

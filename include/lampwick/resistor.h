@@ -36,22 +36,22 @@ double lw_resistor_tolerance_pct(const lw_light *light, bool tolerance_given, in
 
 /* The fresh operating point of `light` with resistor r_ohm: nominal, or the
  * worst case (lw_run_worst_case) when `worst`. */
-LW_MUST_CHECK lw_status lw_resistor_point(const lw_light *light, double r_ohm, bool worst, lw_point *pt,
-                            lw_error *err);
+LW_MUST_CHECK lw_status lw_resistor_point(const lw_light *light, double r_ohm, bool worst,
+                                          lw_point *pt, lw_error *err);
 
 typedef enum lw_target_kind { LW_TARGET_CURRENT, LW_TARGET_FLUX } lw_target_kind;
 
 /* The resistance at which the fresh current (A, per string) or light output
  * (lm) equals `target`, nominal or worst case, on 1 mohm .. 100 Mohm: 0 when
  * even 1 mohm falls short, INFINITY when even 100 Mohm exceeds it. */
-LW_MUST_CHECK lw_status lw_resistor_for(const lw_light *light, lw_target_kind kind, double target, bool worst,
-                          double *r_ohm, lw_error *err);
+LW_MUST_CHECK lw_status lw_resistor_for(const lw_light *light, lw_target_kind kind, double target,
+                                        bool worst, double *r_ohm, lw_error *err);
 
 /* Smallest value of E-series `eseries` that keeps the worst case within the
  * LED's max_current_a and the resistor's dissipation within max_w (the
  * part's rating; <= 0: within the largest standard rating with derating).
  * INFINITY when none does. */
-LW_MUST_CHECK lw_status lw_resistor_min_safe(const lw_light *light, int eseries, double max_w, double *r_ohm,
-                               lw_error *err);
+LW_MUST_CHECK lw_status lw_resistor_min_safe(const lw_light *light, int eseries, double max_w,
+                                             double *r_ohm, lw_error *err);
 
 #endif

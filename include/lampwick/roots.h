@@ -28,8 +28,9 @@ typedef double (*lw_root_fn)(double x, void *ctx);
  * xtol (absolute, > 0) or f is exactly 0; fails with LW_ENUMERIC after
  * max_iter evaluations and LW_EINPUT when the ends do not bracket a root.
  * Writes *root only on success. */
-LW_MUST_CHECK lw_status lw_root_brent(lw_root_fn f, void *ctx, double a, double b, double fa, double fb,
-                        double xtol, int max_iter, double *root, lw_error *err);
+LW_MUST_CHECK lw_status lw_root_brent(lw_root_fn f, void *ctx, double a, double b, double fa,
+                                      double fb, double xtol, int max_iter, double *root,
+                                      lw_error *err);
 
 /* Wright omega function for real x: the real w > 0 with w + ln(w) = x.
  * Accurate to a few ulps while the result is a normal double (x > -708);

@@ -45,12 +45,14 @@ LW_MUST_CHECK lw_status lw_rtable_head(lw_rtable *t, size_t col, const char *nam
 LW_MUST_CHECK lw_status lw_rtable_group(lw_rtable *t, size_t col, const char *group, lw_error *err);
 /* Append an empty row; returns its index via *row. */
 LW_MUST_CHECK lw_status lw_rtable_add_row(lw_rtable *t, size_t *row, lw_error *err);
-LW_MUST_CHECK lw_status lw_rtable_set(lw_rtable *t, size_t row, size_t col, const char *text, lw_error *err);
+LW_MUST_CHECK lw_status lw_rtable_set(lw_rtable *t, size_t row, size_t col, const char *text,
+                                      lw_error *err);
 /* Copy cell (sr, sc) of src, full precision included, into (row, col). */
-LW_MUST_CHECK lw_status lw_rtable_copy_cell(lw_rtable *t, size_t row, size_t col, const lw_rtable *src,
-                              size_t sr, size_t sc, lw_error *err);
-LW_MUST_CHECK lw_status lw_rtable_setf(lw_rtable *t, size_t row, size_t col, lw_error *err, const char *fmt,
-                         ...)
+LW_MUST_CHECK lw_status lw_rtable_copy_cell(lw_rtable *t, size_t row, size_t col,
+                                            const lw_rtable *src, size_t sr, size_t sc,
+                                            lw_error *err);
+LW_MUST_CHECK lw_status lw_rtable_setf(lw_rtable *t, size_t row, size_t col, lw_error *err,
+                                       const char *fmt, ...)
 #if defined(__GNUC__)
     __attribute__((format(printf, 5, 6)))
 #endif
@@ -62,6 +64,7 @@ LW_MUST_CHECK lw_status lw_rtable_num(lw_rtable *t, size_t row, size_t col, doub
 LW_MUST_CHECK lw_status lw_rtable_note(lw_rtable *t, const char *text, lw_error *err);
 LW_MUST_CHECK lw_status lw_rtable_set_title(lw_rtable *t, const char *text, lw_error *err);
 /* Render; returns LW_EIO if a write failed. */
-LW_MUST_CHECK lw_status lw_rtable_write(const lw_rtable *t, FILE *fp, lw_rtable_format fmt, lw_error *err);
+LW_MUST_CHECK lw_status lw_rtable_write(const lw_rtable *t, FILE *fp, lw_rtable_format fmt,
+                                        lw_error *err);
 
 #endif

@@ -57,7 +57,7 @@ typedef struct lw_size_options {
 /* Evaluate every pack.  *rows (malloc'd, n_rows) holds every pack for which
  * a part can be chosen, fitting ones first ranked by cell count, then mass,
  * then runtime; then the rest by runtime, longest first. */
-LW_MUST_CHECK lw_status lw_size_packs(const lw_profile *prof, const lw_size_options *opt, lw_size_row **rows,
-                        size_t *n_rows, lw_error *err);
+LW_MUST_CHECK lw_status lw_size_packs(const lw_profile *prof, const lw_size_options *opt,
+                                      lw_size_row **rows, size_t *n_rows, lw_error *err);
 
 #endif

@@ -38,8 +38,8 @@ typedef struct lw_spec {
 /* Run every mode with every cell (`cells` NULL-terminated names; NULL: the
  * profile's own cell).  A light that gives no light is a row, not an error;
  * bad input fails with the first case's error.  Free with lw_spec_clear. */
-LW_MUST_CHECK lw_status lw_spec_compute(const lw_profile *prof, const char *const *cells, int threads,
-                          lw_spec *spec, lw_error *err);
+LW_MUST_CHECK lw_status lw_spec_compute(const lw_profile *prof, const char *const *cells,
+                                        int threads, lw_spec *spec, lw_error *err);
 void lw_spec_clear(lw_spec *spec);
 
 /* Round for a specification table: 2 significant figures below 100, whole

@@ -33,8 +33,9 @@ typedef struct lw_sweep {
 /* Build and run the grid (the last vary changes fastest).  Fails with the
  * first case error (bad input) or LW_ENOMEM; a light that never lights is a
  * row, not an error.  Free with lw_sweep_clear. */
-LW_MUST_CHECK lw_status lw_sweep_run(const lw_profile *base, const lw_vary *vary, size_t nvary, int threads,
-                       lw_pool_progress_fn progress, void *progress_ctx, lw_sweep *sw, lw_error *err);
+LW_MUST_CHECK lw_status lw_sweep_run(const lw_profile *base, const lw_vary *vary, size_t nvary,
+                                     int threads, lw_pool_progress_fn progress, void *progress_ctx,
+                                     lw_sweep *sw, lw_error *err);
 void lw_sweep_clear(lw_sweep *sw);
 
 #endif

@@ -16,7 +16,7 @@
 /* The table of a sweep: the varied keys, then the run columns `columns`
  * (comma-separated names of lw_report_run_columns; NULL: every column for CSV and
  * Markdown, a readable subset for text).  Fails with the unknown column. */
-LW_MUST_CHECK lw_status lw_report_sweep(const lw_sweep *sw, lw_rtable_format fmt, const char *columns,
-                          lw_rtable **out, lw_error *err);
+LW_MUST_CHECK lw_status lw_report_sweep(const lw_sweep *sw, lw_rtable_format fmt,
+                                        const char *columns, lw_rtable **out, lw_error *err);
 
 #endif

@@ -46,7 +46,8 @@ extern const char *const lw_vary_forms;
  * profile's modes (a list of mode names, or all).  `prof` gives the modes
  * and the cell search path (pack.cell=all); it may be NULL when neither is
  * used.  Free with lw_vary_clear. */
-LW_MUST_CHECK lw_status lw_vary_parse(const char *arg, const lw_profile *prof, lw_vary *v, lw_error *err);
+LW_MUST_CHECK lw_status lw_vary_parse(const char *arg, const lw_profile *prof, lw_vary *v,
+                                      lw_error *err);
 void lw_vary_clear(lw_vary *v);
 
 #endif

@@ -33,7 +33,9 @@ lw_status lw_error_vset(lw_error *err, lw_status code, const char *file, int lin
     lw_text_copy(err->file, file ? file : "", sizeof err->file);
     err->line = line;
     locale_t saved = lw_number_locale_begin(); /* numbers in messages: C locale */
-    vsnprintf(err->msg, sizeof err->msg, fmt, ap); // NOLINT(clang-analyzer-valist.Uninitialized): va_start in the caller
+    /* va_start is in the caller */
+    // NOLINTNEXTLINE(clang-analyzer-valist.Uninitialized)
+    vsnprintf(err->msg, sizeof err->msg, fmt, ap);
     lw_number_locale_end(saved);
     return code;
 }

@@ -136,8 +136,10 @@ static int parse_pair(const char *s, double *a, double *b)
         return 0;
     memcpy(first, s, n);
     first[n] = '\0';
-    return lw_number_parse_double(first, a) && lw_number_parse_double(comma + 1, b) && *a > 0 && *b > 0 ? 2
-                                                                                          : 0;
+    return lw_number_parse_double(first, a) && lw_number_parse_double(comma + 1, b) && *a > 0 &&
+                   *b > 0
+               ? 2
+               : 0;
 }
 
 typedef struct cell_args {
@@ -262,8 +264,8 @@ int cli_fit_cell(int argc, char **argv)
                      "Fitted by lampwick fit cell on %s from %s%s%s, end point %g V.\n"
                      "Measured data of one sample: check it against further samples and the "
                      "maker's data.",
-                     date, argv[optind_], nlogs > 1 ? " and " : "", nlogs > 1 ? argv[optind_ + 1] : "",
-                     opt.cutoff_v);
+                     date, argv[optind_], nlogs > 1 ? " and " : "",
+                     nlogs > 1 ? argv[optind_ + 1] : "", opt.cutoff_v);
             if (st == LW_OK)
                 st = lw_cellfile_save(out_path, cl, comment, &err);
             if (st == LW_OK)

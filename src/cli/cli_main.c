@@ -357,7 +357,8 @@ static int help(int argc, char **argv)
         return help_keys();
     if (argc > 2) {
         char name[64];
-        snprintf(name, sizeof name, "%s%s%s", argv[2], argc > 3 ? " " : "", argc > 3 ? argv[3] : "");
+        snprintf(name, sizeof name, "%s%s%s", argv[2], argc > 3 ? " " : "",
+                 argc > 3 ? argv[3] : "");
         bool fit = !strcmp(argv[2], "fit") && argc == 3;
         const cli_command *c = fit ? NULL : cli_find(name);
         if (!c && !fit) {

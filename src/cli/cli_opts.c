@@ -111,7 +111,8 @@ int common_option(const char *cmd, common_opts *o, int id, const char *arg)
             return usage_error(cmd, "--format takes text, csv or md");
         return 0;
     case OPT_THREADS:
-        if (!lw_number_parse_int(arg, &o->threads) || o->threads < 1 || o->threads > LW_POOL_THREADS_MAX)
+        if (!lw_number_parse_int(arg, &o->threads) || o->threads < 1 ||
+            o->threads > LW_POOL_THREADS_MAX)
             return usage_error(cmd, "--threads takes a whole number from 1 to %d",
                                LW_POOL_THREADS_MAX);
         return 0;
@@ -147,7 +148,8 @@ int usage_error(const char *cmd, const char *fmt, ...)
     char msg[512], safe[2048];
     va_list ap;
     va_start(ap, fmt);
-    vsnprintf(msg, sizeof msg, fmt, ap); // NOLINT(clang-analyzer-valist.Uninitialized): va_start above
+    vsnprintf(msg, sizeof msg, fmt,
+              ap); // NOLINT(clang-analyzer-valist.Uninitialized): va_start above
     va_end(ap);
     lw_text_escape(safe, sizeof safe, msg);
     fprintf(stderr, "lampwick %s: %s\nTry 'lampwick help %s'.\n", cmd, safe, cmd);

@@ -187,8 +187,8 @@ static lw_status apply_cell_entries(const lw_ini *ini, cellspec *spec, bool *giv
         const lw_ini_entry *e = &ini->entries[i];
         const lw_keydef *d = lw_key_find(lw_cellfile_keys, lw_cellfile_nkeys, e->section, e->key);
         if (!d)
-            return lw_key_unknown(lw_cellfile_keys, lw_cellfile_nkeys, e->section, e->key, ini->path,
-                                  e->line, err);
+            return lw_key_unknown(lw_cellfile_keys, lw_cellfile_nkeys, e->section, e->key,
+                                  ini->path, e->line, err);
         lw_status st = lw_key_apply(d, spec, e->value, ini->path, e->line, err);
         if (st != LW_OK)
             return st;
@@ -546,8 +546,8 @@ static lw_status write_cell_text(FILE *fp, const void *ctx, lw_error *err)
     return ferror(fp) ? lw_error_set(err, LW_EIO, NULL, 0, "write error") : LW_OK;
 }
 
-static lw_status lw_cellfile_save_in_c_locale(const char *ini_path, const lw_cell *cell, const char *comment,
-                       lw_error *err)
+static lw_status lw_cellfile_save_in_c_locale(const char *ini_path, const lw_cell *cell,
+                                              const char *comment, lw_error *err)
 {
     size_t len = strlen(ini_path);
     const char *why;

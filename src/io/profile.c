@@ -779,7 +779,8 @@ bool lw_profile_given(const lw_profile *p, const char *dotted_key)
            given(p, section, key);
 }
 
-static void lw_profile_value_text_in_c_locale(const lw_profile *p, const char *dotted_key, char *buf, size_t size)
+static void lw_profile_value_text_in_c_locale(const lw_profile *p, const char *dotted_key,
+                                              char *buf, size_t size)
 {
     char section[LW_INI_NAME_MAX], key[LW_INI_NAME_MAX];
     buf[0] = '\0';

@@ -8,7 +8,8 @@
 const char *const lw_drive_type_names[LW_DRIVE_TYPE_COUNT + 1] = {"resistor", "linear-cc",
                                                                    "converter", NULL};
 
-bool lw_drive_converter_input_current(double e_v, double r_ohm, double iq_a, double p_w, double *ip_a)
+bool lw_drive_converter_input_current(double e_v, double r_ohm, double iq_a, double p_w,
+                                      double *ip_a)
 {
     double b = e_v + r_ohm * iq_a;
     double c = e_v * iq_a + p_w;

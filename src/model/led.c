@@ -54,7 +54,8 @@ double lw_led_voltage(const lw_led *led, double i_a, bool *extrapolated)
         v = led->threshold_v + led->slope_ohm * i_a;
         break;
     case LW_LED_SHOCKLEY:
-        v = led->ideality * lw_led_thermal_voltage(led->junction_c) * log1p(i_a / led->saturation_a) +
+        v = led->ideality * lw_led_thermal_voltage(led->junction_c) *
+                log1p(i_a / led->saturation_a) +
             led->series_ohm * i_a;
         break;
     case LW_LED_TABLE:

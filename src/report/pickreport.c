@@ -12,7 +12,8 @@
 
 /* The corner table of one pick: current, output, dissipation and the
  * margin to each rating at every corner. */
-static lw_status corner_table(const lw_pick *pk, lw_rtable_format fmt, lw_rtable **out, lw_error *err)
+static lw_status corner_table(const lw_pick *pk, lw_rtable_format fmt, lw_rtable **out,
+                              lw_error *err)
 {
     static const char *const head[] = {"corner",     "led_ma",         "flux_lm",
                                        "resistor_w", "led_margin_pct", "resistor_margin_pct"};
@@ -105,8 +106,9 @@ static lw_status pick_text(FILE *fp, const lw_profile *prof, const lw_pick *pk,
     return ferror(fp) ? lw_error_set(err, LW_EIO, NULL, 0, "write error") : LW_OK;
 }
 
-static lw_status lw_report_pick_in_c_locale(FILE *fp, const lw_profile *prof, const lw_pick *picks, size_t n,
-                         lw_target_kind kind, double target, lw_rtable_format fmt, lw_error *err)
+static lw_status lw_report_pick_in_c_locale(FILE *fp, const lw_profile *prof, const lw_pick *picks,
+                                            size_t n, lw_target_kind kind, double target,
+                                            lw_rtable_format fmt, lw_error *err)
 {
     lw_status st = LW_OK;
     if (fmt == LW_FMT_TEXT) {

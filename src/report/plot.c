@@ -92,7 +92,10 @@ static void xml_text(FILE *fp, const char *s)
     for (; s && *s; s++) {
         unsigned char c = (unsigned char)*s;
         if (c >= 0x80) {
-            size_t n = strlen(s), len = (c >> 5) == 6 ? 2 : (c >> 4) == 14 ? 3 : (c >> 3) == 30 ? 4 : 0;
+            size_t n = strlen(s), len = (c >> 5) == 6    ? 2
+                                        : (c >> 4) == 14 ? 3
+                                        : (c >> 3) == 30 ? 4
+                                                         : 0;
             if (len && len <= n && lw_text_utf8_valid(s, len, NULL)) {
                 fwrite(s, 1, len, fp);
                 s += len - 1;
@@ -422,8 +425,8 @@ static lw_status lw_plot_svg_in_c_locale(FILE *fp, const lw_chart *c, lw_error *
     return ferror(fp) ? lw_error_set(err, LW_EIO, NULL, 0, "write error") : LW_OK;
 }
 
-static lw_status lw_plot_run_in_c_locale(FILE *fp, const char *title, const lw_light *light, const lw_result *res,
-                      const lw_trace *trace, lw_error *err)
+static lw_status lw_plot_run_in_c_locale(FILE *fp, const char *title, const lw_light *light,
+                                         const lw_result *res, const lw_trace *trace, lw_error *err)
 {
     size_t n = trace->n;
     double *buf = lw_malloc(4 * (n ? n : 1) * sizeof *buf);
@@ -538,8 +541,8 @@ static lw_status lw_plot_led_fit_in_c_locale(FILE *fp, const double *i_a, const 
     return st;
 }
 
-static lw_status lw_plot_sweep_in_c_locale(const lw_profile *prof, const lw_sweep *sw, lw_chart *c, void **buf,
-                         lw_error *err)
+static lw_status lw_plot_sweep_in_c_locale(const lw_profile *prof, const lw_sweep *sw, lw_chart *c,
+                                           void **buf, lw_error *err)
 {
     size_t nk = sw->nvary, group_k = nk, label_k = nk ? nk - 1 : 0;
     for (size_t k = 0; k < nk; k++)

@@ -131,8 +131,9 @@ static double run_value(enum run_col c, const lw_result *r)
     }
 }
 
-static lw_status lw_report_run_row_in_c_locale(lw_rtable *t, size_t row, size_t c, const lw_light *light,
-                            const lw_result *r, lw_error *err)
+static lw_status lw_report_run_row_in_c_locale(lw_rtable *t, size_t row, size_t c,
+                                               const lw_light *light, const lw_result *r,
+                                               lw_error *err)
 {
     char warn[512];
     lw_report_warnings(r->warnings, warn, sizeof warn);
@@ -142,7 +143,8 @@ static lw_status lw_report_run_row_in_c_locale(lw_rtable *t, size_t row, size_t 
         if (i == RC_END)
             st = lw_rtable_set(t, row, c + i, lw_run_end_names[r->end_reason], err);
         else if (i == RC_REFERENCE)
-            st = lw_rtable_set(t, row, c + i, lw_light_reference_names[light->cutoff.reference], err);
+            st = lw_rtable_set(t, row, c + i, lw_light_reference_names[light->cutoff.reference],
+                               err);
         else if (i == RC_WARNINGS)
             st = lw_rtable_set(t, row, c + i, warn, err);
         else
@@ -400,8 +402,8 @@ static void text_report(FILE *fp, const lw_profile *p, const lw_result *r)
     fprintf(fp, "\n%s\n", lw_report_caution);
 }
 
-static lw_status lw_report_run_in_c_locale(FILE *fp, lw_rtable_format fmt, const lw_profile *prof, const lw_result *res,
-                        lw_error *err)
+static lw_status lw_report_run_in_c_locale(FILE *fp, lw_rtable_format fmt, const lw_profile *prof,
+                                           const lw_result *res, lw_error *err)
 {
     if (fmt == LW_FMT_TEXT) {
         text_report(fp, prof, res);
@@ -477,8 +479,8 @@ void lw_report_drive(const lw_light *l, char *buf, size_t size)
     lw_number_locale_end(saved);
 }
 
-lw_status lw_report_run(FILE *fp, lw_rtable_format fmt, const lw_profile *prof, const lw_result *res,
-                        lw_error *err)
+lw_status lw_report_run(FILE *fp, lw_rtable_format fmt, const lw_profile *prof,
+                        const lw_result *res, lw_error *err)
 {
     locale_t saved = lw_number_locale_begin();
     lw_status result = lw_report_run_in_c_locale(fp, fmt, prof, res, err);

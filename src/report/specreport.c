@@ -297,7 +297,8 @@ static lw_status spec_cell(const lw_spec *s, const lw_case *k, int kind, lw_rtab
     return lw_rtable_set(t, row, col, buf, err);
 }
 
-static lw_status lw_report_spec_in_c_locale(const lw_spec *s, lw_rtable_format fmt, lw_rtable **out, lw_error *err)
+static lw_status lw_report_spec_in_c_locale(const lw_spec *s, lw_rtable_format fmt, lw_rtable **out,
+                                            lw_error *err)
 {
     static const char *const csv_names[SC_COUNT] = {
         "flux_lm", "runtime_h", "half_h", "regulated_h", "peak_cd", "beam_m", "end_reason",
@@ -368,8 +369,9 @@ static lw_status lw_report_spec_in_c_locale(const lw_spec *s, lw_rtable_format f
     return LW_OK;
 }
 
-static lw_status lw_report_spec_table_in_c_locale(const lw_profile *prof, const char *const *cells, lw_rtable_format fmt,
-                        int threads, lw_rtable **out, lw_error *err)
+static lw_status lw_report_spec_table_in_c_locale(const lw_profile *prof, const char *const *cells,
+                                                  lw_rtable_format fmt, int threads,
+                                                  lw_rtable **out, lw_error *err)
 {
     lw_spec s;
     *out = NULL;
@@ -395,8 +397,8 @@ lw_status lw_report_spec(const lw_spec *s, lw_rtable_format fmt, lw_rtable **out
     return result;
 }
 
-lw_status lw_report_spec_table(const lw_profile *prof, const char *const *cells, lw_rtable_format fmt,
-                        int threads, lw_rtable **out, lw_error *err)
+lw_status lw_report_spec_table(const lw_profile *prof, const char *const *cells,
+                               lw_rtable_format fmt, int threads, lw_rtable **out, lw_error *err)
 {
     locale_t saved = lw_number_locale_begin();
     lw_status result = lw_report_spec_table_in_c_locale(prof, cells, fmt, threads, out, err);

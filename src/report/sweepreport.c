@@ -36,8 +36,8 @@ static lw_status sweep_columns(const char *list, lw_rtable_format fmt, size_t *c
         const char *comma = strchr(p, ',');
         size_t len = comma ? (size_t)(comma - p) : strlen(p);
         size_t i = 0;
-        while (i < lw_report_run_ncolumns &&
-               (strlen(lw_report_run_columns[i]) != len || strncmp(lw_report_run_columns[i], p, len) != 0))
+        while (i < lw_report_run_ncolumns && (strlen(lw_report_run_columns[i]) != len ||
+                                              strncmp(lw_report_run_columns[i], p, len) != 0))
             i++;
         if (i == lw_report_run_ncolumns) {
             char known[1024] = "";
@@ -58,8 +58,8 @@ static lw_status sweep_columns(const char *list, lw_rtable_format fmt, size_t *c
     return LW_OK;
 }
 
-static lw_status lw_report_sweep_in_c_locale(const lw_sweep *sw, lw_rtable_format fmt, const char *columns, lw_rtable **out,
-                         lw_error *err)
+static lw_status lw_report_sweep_in_c_locale(const lw_sweep *sw, lw_rtable_format fmt,
+                                             const char *columns, lw_rtable **out, lw_error *err)
 {
     size_t cols[SWEEP_COLUMNS_MAX];
     size_t ncols;
@@ -95,8 +95,8 @@ static lw_status lw_report_sweep_in_c_locale(const lw_sweep *sw, lw_rtable_forma
     return lw_report_table_keep(t, st, fmt, out, err);
 }
 
-lw_status lw_report_sweep(const lw_sweep *sw, lw_rtable_format fmt, const char *columns, lw_rtable **out,
-                         lw_error *err)
+lw_status lw_report_sweep(const lw_sweep *sw, lw_rtable_format fmt, const char *columns,
+                          lw_rtable **out, lw_error *err)
 {
     locale_t saved = lw_number_locale_begin();
     lw_status result = lw_report_sweep_in_c_locale(sw, fmt, columns, out, err);

@@ -70,7 +70,8 @@ static double excess(double log_r, void *vctx)
 static lw_status root(search *c, double lo, double hi, double flo, double fhi, double *r_ohm)
 {
     double x;
-    lw_status st = lw_root_brent(excess, c, lo, hi, flo, fhi, ROOT_TOL_LOG_R, ROOT_ITER_MAX, &x, c->err);
+    lw_status st =
+        lw_root_brent(excess, c, lo, hi, flo, fhi, ROOT_TOL_LOG_R, ROOT_ITER_MAX, &x, c->err);
     if (st == LW_OK && c->st != LW_OK)
         st = c->st;
     if (st == LW_OK)

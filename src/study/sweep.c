@@ -13,7 +13,8 @@
 #include "lampwick/alloc.h"
 
 lw_status lw_sweep_run(const lw_profile *base, const lw_vary *vary, size_t nvary, int threads,
-                       lw_pool_progress_fn progress, void *progress_ctx, lw_sweep *sw, lw_error *err)
+                       lw_pool_progress_fn progress, void *progress_ctx, lw_sweep *sw,
+                       lw_error *err)
 {
     memset(sw, 0, sizeof *sw);
     sw->vary = vary;

@@ -89,8 +89,8 @@ static lw_status parse_values(const char *arg, const char *vals, bool numeric, c
             double lo, hi;
             const char *step;
             if (!parse_span(colon + 1, &lo, &hi, &step) || step || !(lo > 0) || hi < lo)
-                return vary_error(arg, "a preferred-value range is E24:FROM..TO with 0 < FROM <= TO",
-                                  err);
+                return vary_error(
+                    arg, "a preferred-value range is E24:FROM..TO with 0 < FROM <= TO", err);
             double buf[LW_VARY_ESERIES_MAX];
             size_t k = lw_eseries_range(series, lo, hi, buf, LW_VARY_ESERIES_MAX);
             if (k == 0 || k > LW_VARY_ESERIES_MAX)
@@ -204,7 +204,8 @@ static lw_status parse_modes(const char *arg, const char *vals, const lw_profile
     return st;
 }
 
-static lw_status lw_vary_parse_in_c_locale(const char *arg, const lw_profile *prof, lw_vary *v, lw_error *err)
+static lw_status lw_vary_parse_in_c_locale(const char *arg, const lw_profile *prof, lw_vary *v,
+                                           lw_error *err)
 {
     memset(v, 0, sizeof *v);
     const char *eq = strchr(arg, '=');
