@@ -148,8 +148,9 @@ int usage_error(const char *cmd, const char *fmt, ...)
     char msg[512], safe[2048];
     va_list ap;
     va_start(ap, fmt);
-    vsnprintf(msg, sizeof msg, fmt,
-              ap); // NOLINT(clang-analyzer-valist.Uninitialized): va_start above
+    /* va_start is above */
+    // NOLINTNEXTLINE(clang-analyzer-valist.Uninitialized)
+    vsnprintf(msg, sizeof msg, fmt, ap);
     va_end(ap);
     lw_text_escape(safe, sizeof safe, msg);
     fprintf(stderr, "lampwick %s: %s\nTry 'lampwick help %s'.\n", cmd, safe, cmd);
