@@ -193,7 +193,7 @@ static void note_origin(lw_profile *prof, const lw_keydef *d, lw_origin origin, 
 lw_status lw_profile_set(lw_profile *prof, const char *dotted_key, const char *value,
                          lw_origin origin, const char *file, int line, lw_error *err)
 {
-    const lw_keydef *d;
+    const lw_keydef *d = NULL;
     lw_status st = find_key(dotted_key, file, line, &d, err);
     if (st == LW_OK)
         st = lw_key_apply(d, prof, value, file, line, err);
@@ -205,7 +205,7 @@ lw_status lw_profile_set(lw_profile *prof, const char *dotted_key, const char *v
 lw_status lw_profile_set_number(lw_profile *prof, const char *dotted_key, double value,
                                 const char *option, lw_error *err)
 {
-    const lw_keydef *d;
+    const lw_keydef *d = NULL;
     lw_status st = find_key(dotted_key, option, 0, &d, err);
     if (st == LW_OK)
         st = lw_key_apply_number(d, prof, value, option, 0, err);
@@ -233,7 +233,7 @@ static lw_status split_arg(const char *arg, char *key, size_t size, const char *
 lw_status lw_profile_set_arg(lw_profile *prof, const char *arg, lw_error *err)
 {
     char key[2 * LW_INI_NAME_MAX], where[2 * LW_INI_NAME_MAX + 8];
-    const char *value;
+    const char *value = NULL;
     lw_status st = split_arg(arg, key, sizeof key, &value, err);
     if (st != LW_OK)
         return st;
@@ -272,7 +272,7 @@ lw_status lw_profile_variant_number(lw_profile_variant *v, const char *key, doub
 lw_status lw_profile_variant_arg(lw_profile_variant *v, const char *arg, char *key, size_t size,
                                  lw_error *err)
 {
-    const char *value;
+    const char *value = NULL;
     lw_status st = split_arg(arg, key, size, &value, err);
     if (st == LW_OK)
         st = lw_profile_variant_text(v, key, value, err);

@@ -20,9 +20,11 @@ lw_status lw_spec_compute(const lw_profile *prof, const char *const *cells, int 
     const char *own[2] = {prof->cell_ref, NULL};
     if (!cells)
         cells = own;
-    while (cells[spec->ncells])
-        spec->ncells++;
-    if (spec->ncells == 0)
+    size_t ncells = 0;
+    while (cells[ncells])
+        ncells++;
+    spec->ncells = ncells;
+    if (ncells == 0)
         return lw_error_set(err, LW_EINPUT, prof->path, 0, "the table needs at least one cell");
     size_t nmodes = lw_profile_mode_count(prof);
     spec->has_modes = nmodes > 0;
