@@ -24,6 +24,7 @@ static void nice_ticks_are_round(void **state)
         assert_close(t[i], 10.0 * (double)i, 1e-12);
     }
     n = lw_plot_ticks(0.9, 1.6, 6, t);
+    assert_int_equal(n, 4); /* 1.0, 1.2, 1.4, 1.6 */
     assert_close(t[0], 1.0, 1e-12);
     assert_close(t[1] - t[0], 0.2, 1e-12);
     assert_int_equal(lw_plot_ticks(1, 1, 6, t), 0);
