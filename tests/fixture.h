@@ -1,8 +1,9 @@
 /*
  * fixture.h - a small light written to the scratch folder: a flat cell
  * (OCV 3.0 V, 0.5 ohm at every depth, 2 Ah at 0.4 A, no rate effect) and a
- * constant-forward-voltage LED (2.0 V) through a series resistor, simple
- * enough to work out by hand.
+ * constant-forward-voltage LED (2.0 V, no temperature coefficients, so the
+ * same at every ambient) through a series resistor, simple enough to work
+ * out by hand.
  */
 #ifndef LW_FIXTURE_H
 #define LW_FIXTURE_H
@@ -26,7 +27,8 @@ static inline const char *write_flat_light(const char *extra)
     snprintf(text, sizeof text,
              "[light]\nname = fixture\n[pack]\ncell = flat\n[led]\nmodel = constant\n"
              "forward_v = 2.0\nflux_lm = 10\nflux_current_ma = 20\nmax_current_ma = 30\n"
-             "forward_spread_pct = 5\n[drive]\nresistor_ohm = 49.5\n%s",
+             "forward_spread_pct = 5\ntc_forward_mv_k = 0\ntc_flux_pct_k = 0\n"
+             "[drive]\nresistor_ohm = 49.5\n%s",
              extra ? extra : "");
     return tmp_write("fixture.ini", text);
 }

@@ -487,10 +487,58 @@ static void time_to_half_at_jumps(void **state)
     lw_light_clear(&l);
 }
 
+/* Sign checks of LED heating at one operating point (docs/model.md, "LED
+ * temperature"; common practice, no source): a hotter junction lowers the
+ * forward voltage, so through a resistor the current rises; a regulated
+ * drive holds its current and only the output falls. */
+static void heating_raises_resistor_current_and_lowers_regulated_output(void **state)
+{
+    (void)state;
+    for (int drive = 0; drive < 3; drive++) {
+        lw_light l;
+        base_light(&l);
+        flat_cell(&l, 4.0, 0.1, 2.0, 0.4, 1.0, 2.0);
+        l.led.model = LW_LED_LINEAR;
+        l.led.threshold_v = 2.7;
+        l.led.slope_ohm = 1.5;
+        l.led.junction_c = 25;
+        l.led.tc_forward_v_k = -2e-3;
+        l.led.tc_flux_per_k = -0.3e-2;
+        l.drive.resistor_ohm = 4.7;
+        if (drive == 1) {
+            l.drive.type = LW_DRIVE_LINEAR_CC;
+            l.drive.set_a = 0.1;
+            l.drive.dropout_v = 0.2;
+        } else if (drive == 2) {
+            l.drive.type = LW_DRIVE_CONVERTER;
+            l.drive.set_a = 0.1;
+            l.drive.efficiency_pct = 85;
+            l.drive.resistor_ohm = 0;
+        }
+        lw_error e;
+        lw_error_clear(&e);
+        lw_point cold, hot;
+        l.led.t_junction_c = 25;
+        assert_int_equal(lw_light_point(&l, 0.1, false, &cold, &e), LW_OK);
+        l.led.t_junction_c = 75;
+        assert_int_equal(lw_light_point(&l, 0.1, false, &hot, &e), LW_OK);
+        assert_true(hot.led_v < cold.led_v);
+        if (drive == 0) {
+            assert_true(hot.led_a > cold.led_a);
+        } else {
+            assert_close(hot.led_a, cold.led_a, 1e-12);
+            assert_close(hot.flux_lm / cold.flux_lm, 1 - 0.3e-2 * 50, 1e-12);
+            assert_close(hot.led_v - cold.led_v, -2e-3 * 50, 1e-9);
+        }
+        lw_light_clear(&l);
+    }
+}
+
 int main(void)
 {
     const struct CMUnitTest tests[] = {
         cmocka_unit_test(linear_cc_coulomb_counting),
+        cmocka_unit_test(heating_raises_resistor_current_and_lowers_regulated_output),
         cmocka_unit_test(linear_cc_dissipation_kvl),
         cmocka_unit_test(converter_quadratic_against_gsl),
         cmocka_unit_test(converter_power_balance_and_dropout),

@@ -209,6 +209,57 @@ static void thermal_voltage(void **state)
     assert_close(lw_led_thermal_voltage(25), 0.025693, 1e-4);
 }
 
+/* LED temperature, the model of docs/model.md ("LED temperature"): at a
+ * junction dT above the data's, every model's forward voltage moves by
+ * exactly tc * dT (with a typical white-LED coefficient, -2 mV/K, and
+ * -0.3 %/K of output, ../shared/REFERENCES.md, from memory), the output by
+ * the factor 1 + tc_flux * dT, and the loop solution equals the cold one
+ * with the supply shifted by N * tc * dT (Kirchhoff's voltage law).  Signs:
+ * a hotter junction has a lower forward voltage and less light. */
+static void junction_temperature_shifts_voltage_and_output(void **state)
+{
+    (void)state;
+    lw_error e;
+    lw_error_clear(&e);
+    const double ia[] = {0.01, 0.05, 0.1, 0.2, 0.3, 0.5}, v[] = {2.62, 2.76, 2.84, 2.95, 3.03,
+                                                                   3.16};
+    for (int m = 0; m < LW_LED_MODEL_COUNT; m++) {
+        lw_led led = base_led((lw_led_model)m);
+        led.forward_v = 2.9;
+        led.threshold_v = 2.6, led.slope_ohm = 1.2;
+        led.ideality = 3, led.saturation_a = 1e-18, led.series_ohm = 0.4;
+        led.junction_c = 25;
+        if (m == LW_LED_TABLE)
+            led.iv = lw_interp_new(ia, v, 6, &e);
+        led.count = 3;
+        led.tc_forward_v_k = -2e-3;
+        led.tc_flux_per_k = -0.3e-2;
+        led.t_junction_c = 25;
+        double v_cold = lw_led_voltage(&led, 0.15, NULL), f_cold = lw_led_flux(&led, 0.15, NULL);
+        double i_cold, i_shifted;
+        assert_int_equal(lw_led_solve(&led, 9.6 + 3 * 2e-3 * 60, 4.7, &i_shifted, NULL, &e),
+                         LW_OK);
+        led.t_junction_c = 85; /* 60 K hotter */
+        double v_hot = lw_led_voltage(&led, 0.15, NULL), f_hot = lw_led_flux(&led, 0.15, NULL);
+        assert_close(v_hot - v_cold, -2e-3 * 60, 1e-9);
+        assert_close(f_hot / f_cold, 1 - 0.3e-2 * 60, 1e-13);
+        assert_true(v_hot < v_cold && f_hot < f_cold);
+        /* hot at 9.6 V = cold at 9.6 V + 3 x 0.12 V */
+        double v_at = 0;
+        assert_int_equal(lw_led_solve_v(&led, 9.6, 4.7, &i_cold, &v_at, NULL, &e), LW_OK);
+        assert_close(i_cold, i_shifted, 1e-12);
+        assert_close(9.6 - i_cold * 4.7, 3 * v_at, 1e-12); /* the loop balances */
+        /* the output factor stops at zero far above */
+        led.t_junction_c = 25 + 1000;
+        assert_true(lw_led_flux(&led, 0.15, NULL) == 0.0);
+        /* no supply, no current, whatever the shift */
+        double i0 = 1;
+        assert_int_equal(lw_led_solve(&led, 0.0, 4.7, &i0, NULL, &e), LW_OK);
+        assert_true(i0 == 0.0);
+        lw_led_clear(&led);
+    }
+}
+
 int main(void)
 {
     gsl_set_error_handler_off();
@@ -221,6 +272,7 @@ int main(void)
         cmocka_unit_test(table_model_against_gsl),
         cmocka_unit_test(flux_models),
         cmocka_unit_test(thermal_voltage),
+        cmocka_unit_test(junction_temperature_shifts_voltage_and_output),
     };
     return cmocka_run_group_tests(tests, NULL, NULL);
 }

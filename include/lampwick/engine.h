@@ -88,7 +88,8 @@ enum {
     LW_WARN_TEMPERATURE = 1u << 7,       /* ambient outside the cell's temperature table */
     LW_WARN_TOLERANCE = 1u << 8,         /* integration tolerance not met somewhere */
     LW_WARN_RESISTOR_OVER_RATING = 1u << 9, /* resistor power above its rating */
-    LW_WARN_COUNT_ = 10
+    LW_WARN_JUNCTION_HOT = 1u << 10,     /* LED junction above its max_junction_c */
+    LW_WARN_COUNT_ = 11
 };
 
 /* Short machine names of the warning flags, by bit index. */

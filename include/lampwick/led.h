@@ -23,6 +23,13 @@
  *
  * Every voltage is multiplied by v_scale (1 nominal): the worst-case check
  * sets it to 1 - forward_spread_pct/100.
+ *
+ * Junction temperature (docs/model.md, "LED temperature"): the data hold at
+ * junction_c; at the junction temperature t_junction_c the model is
+ *   V(I, Tj) = v_scale * V_data(I) + tc_forward_v_k * (Tj - junction_c),
+ *   flux(I, Tj) = flux_data(I) * max(0, 1 + tc_flux_per_k * (Tj - junction_c)),
+ * the Shockley thermal voltage staying at junction_c.  The loop current is 0
+ * when the loop's EMF is not positive, whatever the shift.
  */
 #ifndef LW_LED_H
 #define LW_LED_H
@@ -64,10 +71,24 @@ typedef struct lw_led {
     double max_current_a;   /* absolute maximum continuous current, A */
     double forward_spread_pct; /* +- spread of forward voltage between parts, % */
     double v_scale;         /* multiplier on every forward voltage, 1 nominal */
+    double tc_forward_v_k;  /* forward-voltage temperature coefficient per LED, V/K */
+    double tc_flux_per_k;   /* light-output temperature coefficient, 1/K of the data */
+    double heat_fraction;   /* share of the electrical power that becomes heat, 0..1 */
+    double max_junction_c;  /* maximum junction temperature, deg C; NAN: not given */
+    double t_junction_c;    /* junction temperature the model is evaluated at, deg C
+                               (set by the light: lw_light_update_factors) */
 } lw_led;
 
 void lw_led_clear(lw_led *led);            /* drop the tables */
 void lw_led_copy(lw_led *dst, const lw_led *src); /* tables shared by reference */
+
+/* The forward-voltage shift per LED at the junction temperature, V:
+ * tc_forward_v_k * (t_junction_c - junction_c). */
+double lw_led_thermal_shift_v(const lw_led *led);
+
+/* The light-output factor at the junction temperature:
+ * max(0, 1 + tc_flux_per_k * (t_junction_c - junction_c)). */
+double lw_led_thermal_flux_factor(const lw_led *led);
 
 /* Thermal voltage k*T/q in V at temp_c. */
 double lw_led_thermal_voltage(double temp_c);

@@ -78,7 +78,8 @@ typedef struct lw_light {
 void lw_light_clear(lw_light *light);
 /* Copy with the tables shared by reference; free both with lw_light_clear. */
 void lw_light_copy(lw_light *dst, const lw_light *src);
-/* Recompute cap_factor and res_factor from the pack's cell and ambient. */
+/* Recompute cap_factor and res_factor from the pack's cell and ambient,
+ * and put the LED junctions at ambient (no thermal network). */
 void lw_light_update_factors(lw_light *light, bool *temperature_outside);
 
 /* Regime of the drive at a point. */

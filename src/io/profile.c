@@ -60,6 +60,15 @@ const lw_keydef lw_profile_keys[] = {
        "junction temperature at which the LED data (n, saturation_a, series_ohm, or the "
        "tables) were taken, deg C; the Shockley thermal voltage goes with it; not a heating "
        "setting"),
+    PK("led", "tc_forward_mv_k", LW_K_NUM, light.led.tc_forward_v_k, 1e-3, -50, 50, 0, "-2",
+       "forward-voltage temperature coefficient per LED, mV/K (typical white LEDs -1.5 to -4)"),
+    PK("led", "tc_flux_pct_k", LW_K_NUM, light.led.tc_flux_per_k, 1e-2, -10, 10, 0, "-0.3",
+       "light-output temperature coefficient, % per K of the output at junction_c (white "
+       "about -0.3, red and amber far steeper)"),
+    PK("led", "heat_pct", LW_K_NUM, light.led.heat_fraction, 1e-2, 0, 100, 0, "65",
+       "share of the LED's electrical power that becomes heat, %"),
+    PK("led", "max_junction_c", LW_K_NUM, light.led.max_junction_c, 1, -60, 300, 0, "",
+       "maximum junction temperature, deg C (a warning above it)"),
     PT("led", "iv_file", iv_file, 0, "table model: CSV current_ma,forward_v"),
     PK("led", "flux_lm", LW_K_NUM, light.led.flux_lm, 1, 0, 1e7, OPEN, "",
        "light output of one LED at flux_current_ma, lm"),
@@ -713,6 +722,7 @@ lw_status lw_profile_load(const char *path, const lw_search *search, lw_profile 
     if (search)
         p->search = *search;
     p->cutoff_cell_v = NAN;
+    p->light.led.max_junction_c = NAN;
     p->ini = lw_calloc(1, sizeof *p->ini);
     if (!p->ini)
         return lw_error_set(err, LW_ENOMEM, NULL, 0, "out of memory");

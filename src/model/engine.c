@@ -28,7 +28,7 @@ bool lw_run_end_is_dark(lw_end_reason why)
 const char *const lw_run_warning_names[LW_WARN_COUNT_] = {
     "led-over-max", "led-over-max-worst-case", "resistor-hot", "over-discharge", "never-lit",
     "no-cutoff", "led-table-extrapolated", "temperature-outside-table", "tolerance-not-met",
-    "resistor-over-rating"};
+    "resistor-over-rating", "junction-hot"};
 
 /* Gauss-Kronrod 7/15 abscissae and weights (QUADPACK qk15). */
 static const double xgk[8] = {
@@ -1052,6 +1052,8 @@ lw_status lw_run(const lw_light *light, const lw_run_options *opt, lw_result *re
     lw_cell_temperature_factors(&light->pack.cell, light->pack.ambient_c, &cf, &rf, &outside);
     if (outside)
         res->warnings |= LW_WARN_TEMPERATURE;
+    if (light->led.t_junction_c > light->led.max_junction_c) /* false when not given (NAN) */
+        res->warnings |= LW_WARN_JUNCTION_HOT;
     set_warnings(light, res);
     return LW_OK;
 }

@@ -25,6 +25,16 @@ void lw_led_copy(lw_led *dst, const lw_led *src)
     lw_interp_ref(dst->flux);
 }
 
+double lw_led_thermal_shift_v(const lw_led *led)
+{
+    return led->tc_forward_v_k * (led->t_junction_c - led->junction_c);
+}
+
+double lw_led_thermal_flux_factor(const lw_led *led)
+{
+    return fmax(0.0, 1.0 + led->tc_flux_per_k * (led->t_junction_c - led->junction_c));
+}
+
 double lw_led_thermal_voltage(double temp_c)
 {
     return LW_BOLTZMANN_J_K * (temp_c + 273.15) / LW_ELEMENTARY_C;
@@ -63,19 +73,20 @@ double lw_led_voltage(const lw_led *led, double i_a, bool *extrapolated)
         v = table_extended(led->iv, i_a, extrapolated);
         break;
     }
-    return led->v_scale * v;
+    return led->v_scale * v + lw_led_thermal_shift_v(led);
 }
 
 double lw_led_flux(const lw_led *led, double i_a, bool *extrapolated)
 {
     if (i_a <= 0.0)
         return 0.0;
+    double k = lw_led_thermal_flux_factor(led);
     if (led->flux)
-        return table_extended(led->flux, i_a, extrapolated);
+        return k * table_extended(led->flux, i_a, extrapolated);
     double u = i_a / led->flux_current_a;
     if (led->flux_exponent == 1.0)
-        return led->flux_lm * u;
-    return led->flux_lm * exp(led->flux_exponent * log(u));
+        return k * led->flux_lm * u;
+    return k * led->flux_lm * exp(led->flux_exponent * log(u));
 }
 
 /* Closed form for the diode with series resistance (Banwell & Jayakumar):
@@ -180,6 +191,12 @@ static lw_status solve_table(const lw_led *led, double e_v, double r_ohm, double
 lw_status lw_led_solve(const lw_led *led, double e_v, double r_ohm, double *i_a,
                        bool *extrapolated, lw_error *err)
 {
+    if (!(e_v > 0.0)) {
+        *i_a = 0.0;
+        return LW_OK;
+    }
+    /* the junction's shift of every LED's voltage moves the loop's EMF */
+    e_v -= led->count * lw_led_thermal_shift_v(led);
     double n = led->count * led->v_scale;
     double i;
     switch (led->model) {

@@ -29,6 +29,8 @@ void lw_light_update_factors(lw_light *light, bool *temperature_outside)
 {
     lw_cell_temperature_factors(&light->pack.cell, light->pack.ambient_c, &light->cap_factor,
                                 &light->res_factor, temperature_outside);
+    /* without a thermal network the junctions are at ambient */
+    light->led.t_junction_c = light->pack.ambient_c;
 }
 
 /* Fill the string-side quantities common to the passive and linear drives. */

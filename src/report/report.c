@@ -204,7 +204,8 @@ const char *lw_report_warning(int bit)
         "an LED table was read beyond its last measured point",
         "ambient temperature is outside the cell's temperature table (end values used)",
         "the integration tolerance was not met everywhere",
-        "resistor power exceeds its rating"};
+        "resistor power exceeds its rating",
+        "an LED junction is above the LED's max_junction_c"};
     // NOLINTEND(bugprone-suspicious-missing-comma)
     return text[bit];
 }
