@@ -198,6 +198,11 @@ case_ 2 "fallback_ma must be below set_ma" p.ini 23 '23s/=.*/= converter\nset_ma
 case_ 2 "p.ini:3: \\[pack\\] is missing the key 'cell'" p.ini 4 '4d' $RUN
 case_ 2 "\\[optics\\] give beam_angle_deg or peak_cd_per_lm, not both" p.ini 33 '33s/.*/beam_angle_deg = 120\npeak_cd_per_lm = 2/' $RUN
 case_ 2 "cell_v = 2 is not below the fresh open-circuit voltage" p.ini 31 '31s/.*/flux_lm = 0\ncell_v = 2/' $RUN
+# [thermal]: required keys at the section's line, values and the interim refusal of capacities
+case_ 2 "p.ini:34: \\[thermal\\] is missing the key 'junction_board_k_w'" p.ini 33 '33s/$/\n[thermal]\nbody_ambient_k_w = 20/' $RUN
+case_ 2 "p.ini:37: \\[thermal\\] losses_in_body = maybe: expected yes or no" p.ini 33 '33s/$/\n[thermal]\njunction_board_k_w = 8\nbody_ambient_k_w = 20\nlosses_in_body = maybe/' $RUN
+case_ 2 "p.ini:37: \\[thermal\\] body_j_k: heat capacities need the time-domain engine" p.ini 33 '33s/$/\n[thermal]\njunction_board_k_w = 8\nbody_ambient_k_w = 20\nbody_j_k = 50/' $RUN
+case_ 2 "p.ini:35: .*body_ambient_k_w = 0: expected a number > 0" p.ini 33 '33s/$/\n[thermal]\nbody_ambient_k_w = 0\njunction_board_k_w = 8/' $RUN
 # modes
 case_ 2 "p.ini:35: unknown key 'resistr_ohm' in \\[drive\\]" p.ini 35 '35s/resistor_ohm/resistr_ohm/' $RUN
 case_ 2 "p.ini:35: .*expected section.key" p.ini 35 '35s/drive.resistor_ohm/resistor_ohm/' $RUN
@@ -211,7 +216,9 @@ for kv in pack.series=0 pack.series=x pack.ambient_c=500 led.ideality=0 led.satu
           led.flux_lm=-1 led.max_current_ma=abc drive.resistor_ohm=-5 drive.tolerance_pct=80 \
           drive.rating_w=0 drive.duty_pct=0 drive.type=boost led.model=bulb \
           cutoff.relative_pct=100 cutoff.flux_lm=x cutoff.cell_v=5 cutoff.reference=always \
-          optics.beam_angle_deg=200 pack.stored_months=1e9 drive.standby_ua=-1; do
+          optics.beam_angle_deg=200 pack.stored_months=1e9 drive.standby_ua=-1 \
+          led.tc_forward_mv_k=-90 led.heat_pct=120 thermal.junction_board_k_w=0 \
+          thermal.losses_in_body=2; do
     k=${kv%%=*}
     args 2 "^lampwick: --set $k: " $RUN --set "$kv"
 done

@@ -89,7 +89,8 @@ enum {
     LW_WARN_TOLERANCE = 1u << 8,         /* integration tolerance not met somewhere */
     LW_WARN_RESISTOR_OVER_RATING = 1u << 9, /* resistor power above its rating */
     LW_WARN_JUNCTION_HOT = 1u << 10,     /* LED junction above its max_junction_c */
-    LW_WARN_COUNT_ = 11
+    LW_WARN_BODY_HOT = 1u << 11,         /* body above [thermal] max_touch_c */
+    LW_WARN_COUNT_ = 12
 };
 
 /* Short machine names of the warning flags, by bit index. */
@@ -141,6 +142,11 @@ typedef struct lw_result {
     double peak_resistor_w; /* largest power in one series resistor, nominal */
     double worst_led_a;     /* fresh cells, worst-case tolerances, per string peak */
     double worst_resistor_w;/* same, power in one resistor */
+    double junction_30s_c;  /* LED junction temperature 30 s after switch-on */
+    double peak_junction_c; /* highest junction temperature at the points solved (the
+                               quadrature nodes and events: a lower bound of the true
+                               peak, exact where it is at switch-on or an event) */
+    double peak_body_c;     /* the same for the body */
     int solves;             /* operating-point solves */
     unsigned warnings;      /* LW_WARN_* */
     lw_piece *pieces;       /* with want_trace: accepted pieces, owned */

@@ -20,6 +20,7 @@
  *   cell.h       cells: OCV and R against depth, Peukert's law, temperature
  *   led.h        LED I-V models and light output
  *   drive.h      the drive elements (resistor, linear, converter) and their laws
+ *   thermal.h    the heat path: junctions, board, body, ambient
  *   light.h      the whole light and its operating point
  *   engine.h     the discharge run and its energy ledger
  *   trace.h      the time series of a run
@@ -74,6 +75,7 @@
 #include "cell.h"
 #include "led.h"
 #include "drive.h"
+#include "thermal.h"
 #include "light.h"
 #include "engine.h"
 #include "trace.h"

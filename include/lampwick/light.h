@@ -39,6 +39,7 @@
 #include "cell.h"
 #include "drive.h"
 #include "led.h"
+#include "thermal.h"
 
 typedef struct lw_pack {
     lw_cell cell;        /* the cell type (tables shared by reference) */
@@ -70,6 +71,7 @@ typedef struct lw_light {
     lw_led led;
     lw_drive drive;
     lw_cutoff cutoff;
+    lw_thermal thermal;   /* the heat path; thermal.enabled false: junctions at ambient */
     double cap_factor;    /* capacity factor at ambient (derived) */
     double res_factor;    /* resistance factor at ambient (derived) */
 } lw_light;
@@ -115,6 +117,7 @@ typedef struct lw_point {
                                  function for dropout; resistor: 1 */
     lw_regime regime;
     bool extrapolated;    /* an LED table was read beyond its last point */
+    lw_temps temps;       /* junction, board and body temperatures, deg C */
 } lw_point;
 
 /* Solve the light at depth d (0..1).  `fallback` selects the converter's
@@ -122,9 +125,29 @@ typedef struct lw_point {
 LW_MUST_CHECK lw_status lw_light_point(const lw_light *light, double depth, bool fallback,
                                        lw_point *pt, lw_error *err);
 
-/* Same, with the cell's OCV and internal resistance given directly. */
+/* Same, with the cell's OCV and internal resistance given directly.  With a
+ * thermal network every node is taken at its steady state for this point
+ * (the quasi-static light; lw_light_point_state gives the state). */
 LW_MUST_CHECK lw_status lw_light_point_at(const lw_light *light, double depth, double ocv_v,
-                            double r_cell_ohm, bool fallback, lw_point *pt, lw_error *err);
+                                          double r_cell_ohm, bool fallback, lw_point *pt,
+                                          lw_error *err);
+
+/* The most fixed-point steps of one thermal operating point: the junction
+ * temperature T_j = F(T_j) is solved by the secant method inside a bracket;
+ * the map's slope is a few per cent for real LEDs, so it converges in 3 to 6
+ * steps, and a slope near 1 means runaway. */
+#define LW_THERMAL_ITER_MAX 60
+/* A junction this far above ambient has no stable operating point: the
+ * light is in thermal runaway (LW_EINPUT, naming the keys). */
+#define LW_THERMAL_RUNAWAY_K 1000.0
+
+/* The operating point with the board and body temperatures of *state for
+ * the nodes that have a heat capacity (the others at their balance), the
+ * junction solved with the LEDs' own heat.  state NULL: every node at
+ * steady state. */
+LW_MUST_CHECK lw_status lw_light_point_state(const lw_light *light, double depth, double ocv_v,
+                                             double r_cell_ohm, bool fallback,
+                                             const lw_temps *state, lw_point *pt, lw_error *err);
 
 /* Hours in an average month (365.25 x 24 / 12). */
 #define LW_HOURS_PER_MONTH 730.5

@@ -116,6 +116,22 @@ const lw_keydef lw_profile_keys[] = {
        "end at this light output, lm (0: no floor)"),
     PK("cutoff", "cell_v", LW_K_NUM, cutoff_cell_v, 1, 0, 100, OPEN, "",
        "end at this loaded cell voltage, V; default the cell's cutoff_v"),
+    PK("thermal", "junction_board_k_w", LW_K_NUM, light.thermal.r_jb_k_w, 1, 0, 1e4, OPEN, "",
+       "thermal resistance from each LED's junction to the board, K/W (required in [thermal])"),
+    PK("thermal", "board_body_k_w", LW_K_NUM, light.thermal.r_bb_k_w, 1, 0, 1e4, 0, "0",
+       "board to body, K/W (0: board and body are one node)"),
+    PK("thermal", "body_ambient_k_w", LW_K_NUM, light.thermal.r_ha_k_w, 1, 0, 1e4, OPEN, "",
+       "body to ambient air, K/W (required in [thermal])"),
+    PK("thermal", "board_j_k", LW_K_NUM, light.thermal.c_b_j_k, 1, 0, 1e7, 0, "0",
+       "heat capacity of the LED board, J/K (0: quasi-static)"),
+    PK("thermal", "body_j_k", LW_K_NUM, light.thermal.c_h_j_k, 1, 0, 1e7, 0, "0",
+       "heat capacity of the body, J/K (0: quasi-static)"),
+    {"thermal", "losses_in_body", LW_K_BOOL, offsetof(lw_profile, light.thermal.losses_in_body),
+     0, 1, NAN, NAN, 0, NULL, "yes",
+     "whether the resistors', driver's and cells' losses heat the body (yes or no)"},
+    PK("thermal", "max_touch_c", LW_K_NUM, light.thermal.max_touch_c, 1, -60, 300, 0, "48",
+       "body temperature above which a warning is given, deg C (48: the lower end of touch "
+       "limits for held metal, common practice; the applicable safety standard decides)"),
     PK("optics", "beam_angle_deg", LW_K_NUM, beam_angle_deg, 1, 0, 180, OPEN | LW_KF_MAX_OPEN,
        "", "full beam angle of a uniform cone, degrees"),
     PK("optics", "peak_cd_per_lm", LW_K_NUM, peak_cd_per_lm, 1, 0, 1e6, OPEN, "",
@@ -522,6 +538,41 @@ static lw_status check_led(lw_profile *p, lw_error *err)
     return st;
 }
 
+/* [thermal]: present when any of its keys is given; then the two
+ * resistances that carry the heat away are required. */
+static lw_status check_thermal(lw_profile *p, lw_error *err)
+{
+    lw_thermal *th = &p->light.thermal;
+    th->enabled = false;
+    for (size_t k = 0; k < lw_profile_nkeys; k++)
+        if (!strcmp(lw_profile_keys[k].section, "thermal") &&
+            p->key_origin[k] != LW_FROM_DEFAULT)
+            th->enabled = true;
+    if (!th->enabled)
+        return LW_OK;
+    static const char *const needed[] = {"junction_board_k_w", "body_ambient_k_w"};
+    for (size_t k = 0; k < 2; k++)
+        if (!given(p, "thermal", needed[k])) {
+            const lw_keydef *d = lw_key_find(lw_profile_keys, lw_profile_nkeys, "thermal",
+                                             needed[k]);
+            return lw_error_set(err, LW_EINPUT, p->path, line_of(p, "thermal", NULL),
+                                "[thermal] is missing the key '%s' (%s)", needed[k],
+                                d ? d->help : "");
+        }
+    if (!lw_thermal_quasi_static(th)) {
+        const char *key = th->c_b_j_k > 0 ? "board_j_k" : "body_j_k";
+        const char *file;
+        int line;
+        where_of(p, "thermal", key, &file, &line);
+        return lw_error_set(err, LW_EINPUT, file, line,
+                            "[thermal] %s: heat capacities need the time-domain engine, which "
+                            "this version does not have yet; give 0 (steady state at every "
+                            "instant)",
+                            key);
+    }
+    return LW_OK;
+}
+
 static lw_status check_drive(lw_profile *p, lw_error *err)
 {
     lw_drive *drv = &p->light.drive;
@@ -624,6 +675,9 @@ lw_status lw_profile_resolve(lw_profile *p, lw_error *err)
                             "%g V of %s",
                             l->cutoff.cell_v, l->pack.cell.ocv->y[0], l->pack.cell.name);
     }
+    st = check_thermal(p, err);
+    if (st != LW_OK)
+        return st;
     if (given(p, "optics", "beam_angle_deg") && given(p, "optics", "peak_cd_per_lm"))
         return lw_error_set(err, LW_EINPUT, p->path, line_of(p, "optics", "peak_cd_per_lm"),
                             "[optics] give beam_angle_deg or peak_cd_per_lm, not both");

@@ -28,7 +28,7 @@ bool lw_run_end_is_dark(lw_end_reason why)
 const char *const lw_run_warning_names[LW_WARN_COUNT_] = {
     "led-over-max", "led-over-max-worst-case", "resistor-hot", "over-discharge", "never-lit",
     "no-cutoff", "led-table-extrapolated", "temperature-outside-table", "tolerance-not-met",
-    "resistor-over-rating", "junction-hot"};
+    "resistor-over-rating", "junction-hot", "body-hot"};
 
 /* Gauss-Kronrod 7/15 abscissae and weights (QUADPACK qk15). */
 static const double xgk[8] = {
@@ -91,15 +91,23 @@ static lw_status eval(engine *e, double d, lw_point *pt)
                             "without meeting its tolerance (max_solves)",
                             e->opt->max_solves, d);
     }
-    if (e->seg == SIZE_MAX)
-        return lw_light_point(e->l, d, e->fallback, pt, e->err);
-    const lw_interp *o = e->l->pack.cell.ocv, *r = e->l->pack.cell.res;
-    size_t i = e->seg;
-    double u = (d - o->x[i]) / (o->x[i + 1] - o->x[i]);
-    u = u < 0.0 ? 0.0 : (u > 1.0 ? 1.0 : u);
-    double ocv = o->y[i] + u * (o->y[i + 1] - o->y[i]);
-    double res = (r->y[i] + u * (r->y[i + 1] - r->y[i])) * e->l->res_factor;
-    return lw_light_point_at(e->l, d, ocv, res, e->fallback, pt, e->err);
+    lw_status st;
+    if (e->seg == SIZE_MAX) {
+        st = lw_light_point(e->l, d, e->fallback, pt, e->err);
+    } else {
+        const lw_interp *o = e->l->pack.cell.ocv, *r = e->l->pack.cell.res;
+        size_t i = e->seg;
+        double u = (d - o->x[i]) / (o->x[i + 1] - o->x[i]);
+        u = u < 0.0 ? 0.0 : (u > 1.0 ? 1.0 : u);
+        double ocv = o->y[i] + u * (o->y[i + 1] - o->y[i]);
+        double res = (r->y[i] + u * (r->y[i + 1] - r->y[i])) * e->l->res_factor;
+        st = lw_light_point_at(e->l, d, ocv, res, e->fallback, pt, e->err);
+    }
+    if (st == LW_OK) {
+        e->res->peak_junction_c = fmax(e->res->peak_junction_c, pt->temps.junction_c);
+        e->res->peak_body_c = fmax(e->res->peak_body_c, pt->temps.body_c);
+    }
+    return st;
 }
 
 static enum event_kind kind_of(int k)
@@ -993,6 +1001,7 @@ static lw_status start_run(engine *e, lw_point *p0)
     if (st != LW_OK)
         return st;
     res->flux_30s_lm = p30.flux_lm > 0.0 ? p30.flux_lm : p0->flux_lm;
+    res->junction_30s_c = p30.flux_lm > 0.0 ? p30.temps.junction_c : p0->temps.junction_c;
     e->flux_ref = res->flux_30s_lm;
     if (l->cutoff.reference == LW_REF_FRESH && (st = fresh_reference(e, &e->flux_ref)) != LW_OK)
         return st;
@@ -1017,6 +1026,7 @@ lw_status lw_run(const lw_light *light, const lw_run_options *opt, lw_result *re
                             "event_iter_max 10 to 10000, max_solves >= 100");
     res->time_to_half_h = NAN;
     res->flux_30s_lm = res->flux_ref_lm = NAN;
+    res->junction_30s_c = res->peak_junction_c = res->peak_body_c = NAN;
     engine e = {.l = light, .opt = opt, .res = res, .err = err, .seg = SIZE_MAX, .end_d = -1};
     e.d0 = fmin(1.0, fmax(opt->start_depth, lw_light_stored_depth(light)));
     res->start_depth = e.d0;
@@ -1052,8 +1062,11 @@ lw_status lw_run(const lw_light *light, const lw_run_options *opt, lw_result *re
     lw_cell_temperature_factors(&light->pack.cell, light->pack.ambient_c, &cf, &rf, &outside);
     if (outside)
         res->warnings |= LW_WARN_TEMPERATURE;
-    if (light->led.t_junction_c > light->led.max_junction_c) /* false when not given (NAN) */
+    /* comparisons with a limit not given (NAN) are false */
+    if (fmax(res->peak_junction_c, light->led.t_junction_c) > light->led.max_junction_c)
         res->warnings |= LW_WARN_JUNCTION_HOT;
+    if (light->thermal.enabled && res->peak_body_c > light->thermal.max_touch_c)
+        res->warnings |= LW_WARN_BODY_HOT;
     set_warnings(light, res);
     return LW_OK;
 }

@@ -103,8 +103,9 @@ static void point_converter(const lw_light *l, double e_v, double r_pack, bool f
     pt->flux_lm = duty * m * n * lw_led_flux(&l->led, i, &pt->extrapolated);
 }
 
-lw_status lw_light_point_at(const lw_light *l, double depth, double ocv_v, double r_cell_ohm,
-                            bool fallback, lw_point *pt, lw_error *err)
+/* The electrical operating point with the junctions at l->led.t_junction_c. */
+static lw_status point_electrical(const lw_light *l, double depth, double ocv_v,
+                                  double r_cell_ohm, bool fallback, lw_point *pt, lw_error *err)
 {
     const int s = l->pack.series, p = l->pack.parallel, m = l->led.strings;
     *pt = (lw_point){0};
@@ -160,6 +161,72 @@ lw_status lw_light_point_at(const lw_light *l, double depth, double ocv_v, doubl
         pt->dtdd_h = rate > 0.0 ? 1.0 / rate : INFINITY;
     }
     return LW_OK;
+}
+
+/* The node temperatures the point's heat gives, from the state *s. */
+static void point_temps(const lw_light *l, const lw_point *pt, const lw_temps *s, lw_temps *t)
+{
+    const lw_thermal *th = &l->thermal;
+    double q_led = l->led.heat_fraction * pt->p_led_w;
+    double q_per = q_led / (l->led.count * l->led.strings);
+    double q_other = th->losses_in_body ? pt->p_res_w + pt->p_int_w + pt->p_drv_w : 0.0;
+    *t = *s;
+    lw_thermal_nodes(th, l->pack.ambient_c, q_led, q_per, q_other, t);
+}
+
+lw_status lw_light_point_state(const lw_light *l, double depth, double ocv_v, double r_cell_ohm,
+                               bool fallback, const lw_temps *state, lw_point *pt, lw_error *err)
+{
+    const double ta = l->pack.ambient_c;
+    if (!l->thermal.enabled) {
+        lw_status st = point_electrical(l, depth, ocv_v, r_cell_ohm, fallback, pt, err);
+        pt->temps = (lw_temps){l->led.t_junction_c, ta, ta};
+        return st;
+    }
+    lw_temps s = state ? *state : (lw_temps){ta, ta, ta};
+    lw_light w = *l; /* shallow: tables borrowed, never freed here */
+    /* g(T) = F(T) - T, F the junction temperature the point at T gives; the
+     * heat is never negative, so g >= 0 at the coldest node: a lower bracket */
+    double lo = fmin(ta, fmin(s.board_c, s.body_c)), hi = INFINITY;
+    double x = lo, x_prev = NAN, g_prev = NAN;
+    lw_temps t;
+    for (int it = 0; it < LW_THERMAL_ITER_MAX; it++) {
+        w.led.t_junction_c = x;
+        lw_status st = point_electrical(&w, depth, ocv_v, r_cell_ohm, fallback, pt, err);
+        if (st != LW_OK)
+            return st;
+        point_temps(l, pt, &s, &t);
+        double g = t.junction_c - x;
+        if (fabs(g) <= 1e-10 * (1.0 + fabs(x))) {
+            pt->temps = t;
+            pt->temps.junction_c = x; /* the temperature the point was solved at */
+            return LW_OK;
+        }
+        if (g > 0.0)
+            lo = fmax(lo, x);
+        else
+            hi = fmin(hi, x);
+        double next = t.junction_c; /* plain fixed-point step */
+        if (isfinite(x_prev) && g != g_prev)
+            next = x - g * (x - x_prev) / (g - g_prev); /* secant */
+        if (!(next > lo && next < hi))
+            next = isfinite(hi) ? 0.5 * (lo + hi) : fmax(t.junction_c, lo + 1.0);
+        if (next > ta + LW_THERMAL_RUNAWAY_K)
+            break;
+        x_prev = x, g_prev = g, x = next;
+    }
+    return lw_error_set(err, LW_EINPUT, NULL, 0,
+                        "no stable LED temperature at depth %.4g: the LEDs' heating raises "
+                        "their power faster than the heat path sheds it (thermal runaway); "
+                        "check [thermal] junction_board_k_w, body_ambient_k_w and [led] "
+                        "tc_forward_mv_k, heat_pct",
+                        depth);
+}
+
+lw_status lw_light_point_at(const lw_light *l, double depth, double ocv_v, double r_cell_ohm,
+                            bool fallback, lw_point *pt, lw_error *err)
+{
+    return lw_light_point_state(l, depth, ocv_v, r_cell_ohm, fallback, NULL, pt, err);
 }
 
 lw_status lw_light_point(const lw_light *light, double depth, bool fallback, lw_point *pt,

@@ -65,8 +65,8 @@ lw_status lw_report_table_keep(lw_rtable *t, lw_status st, lw_rtable_format fmt,
 enum run_col {
     RC_RUNTIME, RC_END, RC_LED_MA, RC_PACK_MA, RC_FLUX0, RC_FLUX30, RC_REF_LM, RC_REFERENCE,
     RC_HALF, RC_REGULATED, RC_LMH, RC_E_DRAWN, RC_E_LED, RC_E_RES, RC_E_INT, RC_E_DRV,
-    RC_EFFICIENCY, RC_LM_PER_W, RC_PEAK_RES, RC_WORST_LED, RC_WORST_RES, RC_FINAL_V, RC_SOLVES,
-    RC_WARNINGS, RC_COUNT
+    RC_EFFICIENCY, RC_LM_PER_W, RC_PEAK_RES, RC_WORST_LED, RC_WORST_RES, RC_FINAL_V, RC_TJ30,
+    RC_TJ_PEAK, RC_TH_PEAK, RC_SOLVES, RC_WARNINGS, RC_COUNT
 };
 
 /* Columns that only mean something for a light that lit (empty otherwise). */
@@ -82,8 +82,8 @@ const char *const lw_report_run_columns[RC_COUNT + 1] = {
     "time_to_half_h",     "regulated_h",      "lumen_hours",    "energy_drawn_wh",
     "energy_led_wh",      "energy_resistor_wh", "energy_internal_wh", "energy_driver_wh",
     "efficiency_pct",     "lm_per_w",         "peak_resistor_w", "worst_led_ma",
-    "worst_resistor_w",   "final_cell_v",     "solves",         "warnings",
-    NULL};
+    "worst_resistor_w",   "final_cell_v",     "junction_30s_c", "peak_junction_c",
+    "peak_body_c",        "solves",           "warnings",       NULL};
 const size_t lw_report_run_ncolumns = RC_COUNT;
 
 void lw_report_warnings(unsigned warnings, char *buf, size_t size)
@@ -126,6 +126,9 @@ static double run_value(enum run_col c, const lw_result *r)
     case RC_WORST_LED: return r->worst_led_a * 1e3;
     case RC_WORST_RES: return r->worst_resistor_w;
     case RC_FINAL_V: return r->final.cell_v;
+    case RC_TJ30: return r->junction_30s_c;
+    case RC_TJ_PEAK: return r->peak_junction_c;
+    case RC_TH_PEAK: return r->peak_body_c;
     case RC_SOLVES: return r->solves;
     default: return NAN;
     }
@@ -205,7 +208,8 @@ const char *lw_report_warning(int bit)
         "ambient temperature is outside the cell's temperature table (end values used)",
         "the integration tolerance was not met everywhere",
         "resistor power exceeds its rating",
-        "an LED junction is above the LED's max_junction_c"};
+        "an LED junction is above the LED's max_junction_c",
+        "the body is hotter than [thermal] max_touch_c: a burn risk where it is held"};
     // NOLINTEND(bugprone-suspicious-missing-comma)
     return text[bit];
 }
@@ -319,6 +323,10 @@ static void text_switch_on(FILE *fp, const lw_light *l, const lw_result *r)
     if (i0->p_drawn_w > 0)
         fprintf(fp, "  efficiency          %.1f %% of the power drawn reaches the LEDs\n",
                 100.0 * i0->p_led_w / i0->p_drawn_w);
+    if (l->thermal.enabled)
+        fprintf(fp, "  temperatures        junction %.1f C, board %.1f C, body %.1f C (steady "
+                    "state)\n",
+                i0->temps.junction_c, i0->temps.board_c, i0->temps.body_c);
 }
 
 static void text_run(FILE *fp, const lw_light *l, const lw_result *r)
@@ -343,6 +351,9 @@ static void text_run(FILE *fp, const lw_light *l, const lw_result *r)
     fprintf(fp, ", or %.3g V per cell loaded\n", l->cutoff.cell_v);
     fprintf(fp, "  at the end          %.3f V per cell loaded, depth %.1f %%\n", r->final.cell_v,
             100.0 * r->end_depth);
+    if (l->thermal.enabled && isfinite(r->peak_junction_c))
+        fprintf(fp, "  hottest             junction %.1f C (%.1f C at 30 s), body %.1f C\n",
+                r->peak_junction_c, r->junction_30s_c, r->peak_body_c);
 }
 
 static void text_energy(FILE *fp, const lw_light *l, const lw_result *r)

@@ -1,0 +1,60 @@
+/*
+ * thermal.c - the heat path of a light (see thermal.h).  Units: K/W, J/K,
+ * deg C, W, s.  Source: the lumped-capacitance network of thermal.h
+ * (Incropera and DeWitt, ch. 3 and 5).
+ */
+#include "lampwick/thermal.h"
+
+bool lw_thermal_quasi_static(const lw_thermal *th)
+{
+    return !th->enabled || (th->c_b_j_k == 0.0 && th->c_h_j_k == 0.0);
+}
+
+void lw_thermal_nodes(const lw_thermal *th, double ambient_c, double q_led_w, double q_per_led_w,
+                      double q_other_w, lw_temps *t)
+{
+    if (!th->enabled) {
+        t->board_c = t->body_c = t->junction_c = ambient_c;
+        return;
+    }
+    const double ta = ambient_c, q = q_led_w + q_other_w;
+    if (th->r_bb_k_w == 0.0) {
+        /* one node: board and body together */
+        if (th->c_b_j_k + th->c_h_j_k == 0.0)
+            t->body_c = ta + th->r_ha_k_w * q;
+        t->board_c = t->body_c;
+    } else if (th->c_b_j_k == 0.0) {
+        /* quasi-static board: all of Q_led crosses R_bb */
+        if (th->c_h_j_k == 0.0)
+            t->body_c = ta + th->r_ha_k_w * q;
+        t->board_c = t->body_c + th->r_bb_k_w * q_led_w;
+    } else if (th->c_h_j_k == 0.0) {
+        /* board with a capacity, quasi-static body between it and ambient */
+        const double gb = 1.0 / th->r_bb_k_w, ga = 1.0 / th->r_ha_k_w;
+        t->body_c = (gb * t->board_c + q_other_w + ga * ta) / (gb + ga);
+    }
+    t->junction_c = t->board_c + th->r_jb_k_w * q_per_led_w;
+}
+
+void lw_thermal_rates(const lw_thermal *th, double ambient_c, double q_led_w, double q_other_w,
+                      const lw_temps *t, double *dboard_k_s, double *dbody_k_s)
+{
+    *dboard_k_s = *dbody_k_s = 0.0;
+    if (!th->enabled)
+        return;
+    const double to_amb = (t->body_c - ambient_c) / th->r_ha_k_w;
+    if (th->r_bb_k_w == 0.0) {
+        double c = th->c_b_j_k + th->c_h_j_k;
+        if (c > 0.0)
+            *dbody_k_s = *dboard_k_s = (q_led_w + q_other_w - to_amb) / c;
+        return;
+    }
+    const double across = (t->board_c - t->body_c) / th->r_bb_k_w;
+    if (th->c_b_j_k > 0.0)
+        *dboard_k_s = (q_led_w - across) / th->c_b_j_k;
+    if (th->c_h_j_k > 0.0) {
+        /* with a quasi-static board all of Q_led crosses to the body */
+        double in = th->c_b_j_k > 0.0 ? across : q_led_w;
+        *dbody_k_s = (in + q_other_w - to_amb) / th->c_h_j_k;
+    }
+}
