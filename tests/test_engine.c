@@ -235,6 +235,145 @@ static void runtime_against_gsl_reference(void **state)
     }
 }
 
+/* ---- the independent reference with the LEDs' heating ---- */
+
+/* A heated light's per-string current and junction temperature at depth d,
+ * written here from docs/model.md ("LED temperature", "Thermal network")
+ * without the library's solvers: the junction temperature is GSL's Brent
+ * root of g(T_j) = T_j(heat at T_j) - T_j, the current at each T_j GSL's
+ * Brent root of Kirchhoff's loop with every LED's voltage shifted by
+ * alpha (T_j - T_ref). */
+typedef struct tref {
+    const lw_light *l;
+    double d, i; /* depth; the current at the last T_j tried */
+} tref;
+
+static double tj_residual(double tj, void *p)
+{
+    tref *q = p;
+    const lw_light *l = q->l;
+    const lw_led *led = &l->led;
+    const lw_thermal *th = &l->thermal;
+    double ocv = interp(l->pack.cell.ocv, q->d), rc = interp(l->pack.cell.res, q->d);
+    double e = l->pack.series * ocv, r_pack = l->pack.series * rc / l->pack.parallel;
+    double r = l->drive.resistor_ohm + led->strings * r_pack;
+    double shift = led->tc_forward_v_k * (tj - led->junction_c);
+    struct loop lp = {e - led->count * shift, r,
+                      led->count * led->ideality * lw_led_thermal_voltage(led->junction_c),
+                      led->saturation_a, led->count * led->series_ohm};
+    double i = gsl_brent(loop_residual, &lp, 0, e / r, 0, 1e-15);
+    q->i = i;
+    double v = (e - i * r) / led->count; /* per LED, Kirchhoff */
+    double q_led_one = led->heat_fraction * v * i;
+    double q_led = led->count * led->strings * q_led_one;
+    double ip = led->strings * i;
+    double q_other = led->strings * i * i * l->drive.resistor_ohm + ip * ip * r_pack;
+    double t_body = l->pack.ambient_c + th->r_ha_k_w * (q_led + q_other);
+    double t_board = t_body + th->r_bb_k_w * q_led;
+    return t_board + th->r_jb_k_w * q_led_one - tj;
+}
+
+static double tref_solve(const lw_light *l, double d, double *i)
+{
+    tref q = {l, d, 0};
+    double tj = gsl_brent(tj_residual, &q, l->pack.ambient_c, l->pack.ambient_c + 400, 1e-12,
+                          0);
+    tj_residual(tj, &q);
+    *i = q.i;
+    return tj;
+}
+
+static double tref_flux(const lw_light *l, double d)
+{
+    double i, tj = tref_solve(l, d, &i);
+    double k = fmax(0.0, 1.0 + l->led.tc_flux_per_k * (tj - l->led.junction_c));
+    return k * ref_flux(l, i);
+}
+
+static double tref_integrand(double d, void *p)
+{
+    const ref *q = p;
+    double i;
+    double tj = tref_solve(q->l, d, &i);
+    double w = ref_dtdd(q->l, i);
+    double k = fmax(0.0, 1.0 + q->l->led.tc_flux_per_k * (tj - q->l->led.junction_c));
+    return q->what == 0 ? w : k * ref_flux(q->l, i) * w;
+}
+
+static double tref_integral(const lw_light *l, int what, double a, double b)
+{
+    ref q = {l, 0, 0, what, 0};
+    gsl_function F = {tref_integrand, &q};
+    gsl_integration_workspace *w = gsl_integration_workspace_alloc(2000);
+    const lw_interp *t = l->pack.cell.ocv;
+    double pts[64];
+    size_t np = 0;
+    pts[np++] = a;
+    for (size_t k = 0; k < t->n; k++)
+        if (t->x[k] > a && t->x[k] < b)
+            pts[np++] = t->x[k];
+    pts[np++] = b;
+    double result = 0, abserr = 0;
+    int st = gsl_integration_qagp(&F, pts, np, 0, 1e-11, 2000, w, &result, &abserr);
+    gsl_integration_workspace_free(w);
+    assert_int_equal(st, GSL_SUCCESS);
+    return result;
+}
+
+static double tref_t_minus_30s(double d, void *p)
+{
+    const ref *q = p;
+    return tref_integral(q->l, 0, 0, d) - 30.0 / 3600.0;
+}
+
+static double tref_flux_minus_target(double d, void *p)
+{
+    const ref *q = p;
+    return tref_flux(q->l, d) - q->target;
+}
+
+/* The demo light with its LEDs heating at steady state (a [thermal]
+ * network without heat capacities, on the depth quadrature): runtime,
+ * lumen-hours and time to 50 % within 1e-6 of the independent solution
+ * above (GSL's QAGP over GSL Brent roots), the 30-s output and the end
+ * depth within 1e-9, and the hottest junction - at switch-on, where a
+ * resistor light draws most - within 1e-9 K. */
+static void heated_light_against_gsl_reference(void **state)
+{
+    (void)state;
+    const double r_ha[] = {25.0, 60.0};
+    for (size_t k = 0; k < 2; k++) {
+        lw_light l;
+        shockley_demo_light(&l);
+        l.cutoff.cell_v = 0.5;
+        l.led.tc_forward_v_k = -2e-3;
+        l.led.tc_flux_per_k = -0.3e-2;
+        l.led.heat_fraction = 0.65;
+        l.thermal = (lw_thermal){.enabled = true, .r_jb_k_w = 40, .r_bb_k_w = 15,
+                                 .r_ha_k_w = r_ha[k], .losses_in_body = true,
+                                 .max_touch_c = 48};
+        lw_light_update_factors(&l, NULL);
+        lw_result r = run_ok(&l, false);
+        ref q = {&l, 0, 0, 0, 0};
+        double d30 = gsl_brent(tref_t_minus_30s, &q, 1e-12, 0.01, 1e-15, 0);
+        q.flux_ref = tref_flux(&l, d30);
+        q.target = 0.10 * q.flux_ref;
+        double d_end = gsl_brent(tref_flux_minus_target, &q, d30, 1.0, 1e-15, 0);
+        q.target = 0.5 * q.flux_ref;
+        double d_half = gsl_brent(tref_flux_minus_target, &q, d30, 1.0, 1e-15, 0);
+        assert_int_equal(r.end_reason, LW_END_RELATIVE);
+        assert_close(r.flux_ref_lm, q.flux_ref, 1e-9);
+        assert_close(r.end_depth, d_end, 1e-9);
+        assert_close(r.runtime_h, tref_integral(&l, 0, 0, d_end), 1e-6);
+        assert_close(r.lumen_hours, tref_integral(&l, 1, 0, d_end), 1e-6);
+        assert_close(r.time_to_half_h, tref_integral(&l, 0, 0, d_half), 1e-6);
+        double i0;
+        assert_near(r.peak_junction_c, tref_solve(&l, 0.0, &i0), 1e-9);
+        assert_true(r.peak_junction_c > l.pack.ambient_c + 5); /* the heating is real */
+        lw_light_clear(&l);
+    }
+}
+
 /* The 30-s reference solves t(d) = 30 s exactly (Newton on the run's own
  * quadrature), not by a trapezoid estimate: on a light whose first 30 s
  * take a large share of a short run, the depth and the output there agree
@@ -547,6 +686,7 @@ int main(void)
         cmocka_unit_test(peukert_constant_current),
         cmocka_unit_test(kirchhoff_and_energy_conservation),
         cmocka_unit_test(runtime_against_gsl_reference),
+        cmocka_unit_test(heated_light_against_gsl_reference),
         cmocka_unit_test(cell_voltage_end_against_gsl),
         cmocka_unit_test(thirty_second_point_is_exact),
         cmocka_unit_test(cutoff_located_exactly),

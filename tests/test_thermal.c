@@ -79,7 +79,8 @@ static void rates_follow_the_first_order_closed_form(void **state)
     (void)state;
     const double r = 15.0, c = 80.0, p = 2.0, ta = 20.0;
     lw_thermal th = network(5.0, 0.0, r, 0.0, c);
-    for (double t_s = 0; t_s <= 6000; t_s += 250) {
+    for (int k = 0; k <= 24; k++) {
+        double t_s = 250.0 * k;
         lw_temps t = {.body_c = ta + p * r * (1 - exp(-t_s / (r * c)))};
         t.board_c = t.body_c;
         lw_thermal_nodes(&th, ta, p, p, 0.0, &t);

@@ -137,8 +137,9 @@ LW_MUST_CHECK lw_status lw_light_point_at(const lw_light *light, double depth, d
  * the map's slope is a few per cent for real LEDs, so it converges in 3 to 6
  * steps, and a slope near 1 means runaway. */
 #define LW_THERMAL_ITER_MAX 60
-/* A junction this far above ambient has no stable operating point: the
- * light is in thermal runaway (LW_EINPUT, naming the keys). */
+/* A junction this far above ambient has no stable operating point worth
+ * the name: the light is in thermal runaway, or its heat path is hopeless
+ * for its power (LW_EINPUT, naming the keys); no LED survives it. */
 #define LW_THERMAL_RUNAWAY_K 1000.0
 
 /* The operating point with the board and body temperatures of *state for

@@ -216,11 +216,12 @@ lw_status lw_light_point_state(const lw_light *l, double depth, double ocv_v, do
         x_prev = x, g_prev = g, x = next;
     }
     return lw_error_set(err, LW_EINPUT, NULL, 0,
-                        "no stable LED temperature at depth %.4g: the LEDs' heating raises "
-                        "their power faster than the heat path sheds it (thermal runaway); "
-                        "check [thermal] junction_board_k_w, body_ambient_k_w and [led] "
+                        "no stable LED temperature within %g K of ambient at depth %.4g: the "
+                        "LEDs' heating raises their power faster than the heat path sheds it "
+                        "(thermal runaway), or the path is far too poor for the power; check "
+                        "[thermal] junction_board_k_w, body_ambient_k_w and [led] "
                         "tc_forward_mv_k, heat_pct",
-                        depth);
+                        LW_THERMAL_RUNAWAY_K, depth);
 }
 
 lw_status lw_light_point_at(const lw_light *l, double depth, double ocv_v, double r_cell_ohm,
