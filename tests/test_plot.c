@@ -196,6 +196,11 @@ static void every_chart_is_a_valid_svg_document(void **state)
         assert_int_equal(lw_plot_run(fp, p.light.name, &p.light, &r, &tr, &e), LW_OK);
         fclose(fp);
         check_svg_file(path, ini, 100);
+        size_t len;
+        char *svg = slurp(path, &len);
+        /* a light with a heat path gets its temperature panel, the others not */
+        assert_int_equal(strstr(svg, "temperature (C)") != NULL, p.light.thermal.enabled);
+        free(svg);
         lw_trace_clear(&tr);
         lw_run_result_clear(&r);
         lw_profile_clear(&p);

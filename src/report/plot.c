@@ -429,15 +429,19 @@ static lw_status lw_plot_run_in_c_locale(FILE *fp, const char *title, const lw_l
                                          const lw_result *res, const lw_trace *trace, lw_error *err)
 {
     size_t n = trace->n;
-    double *buf = lw_malloc(4 * (n ? n : 1) * sizeof *buf);
+    double *buf = lw_malloc(7 * (n ? n : 1) * sizeof *buf);
     if (!buf)
         return lw_error_set(err, LW_ENOMEM, NULL, 0, "out of memory for the plot");
     double *t = buf, *pct = buf + n, *vload = buf + 2 * n, *vocv = buf + 3 * n;
+    double *tj = buf + 4 * n, *tb = buf + 5 * n, *th = buf + 6 * n;
     for (size_t i = 0; i < n; i++) {
         t[i] = trace->rows[i].t_h;
         pct[i] = trace->rows[i].pct_of_ref;
         vload[i] = trace->rows[i].pt.pack_v;
         vocv[i] = trace->rows[i].pt.ocv_v * light->pack.series;
+        tj[i] = trace->rows[i].pt.temps.junction_c;
+        tb[i] = trace->rows[i].pt.temps.board_c;
+        th[i] = trace->rows[i].pt.temps.body_c;
     }
     char sub[256], cut[64];
     char runtime[64];
@@ -477,6 +481,23 @@ static lw_status lw_plot_run_in_c_locale(FILE *fp, const char *title, const lw_l
     snprintf(endp, sizeof endp, "end point %.3g V per cell", light->cutoff.cell_v);
     p->refs[p->nrefs++] = (lw_refline){light->cutoff.cell_v * light->pack.series, endp};
     p->height_share = 1.0;
+    char touch[64], jmax[64];
+    if (light->thermal.enabled) {
+        /* the heat path: junction, board and body, with the limits given */
+        p = &c.panels[c.npanels++];
+        p->y = (lw_axis){.label = "temperature (C)"};
+        p->series[p->nseries++] = (lw_series){.name = "LED junction", .x = t, .y = tj, .n = n};
+        p->series[p->nseries++] =
+            (lw_series){.name = "board", .x = t, .y = tb, .n = n, .dashed = true};
+        p->series[p->nseries++] = (lw_series){.name = "body", .x = t, .y = th, .n = n};
+        snprintf(touch, sizeof touch, "touch limit %g C", light->thermal.max_touch_c);
+        p->refs[p->nrefs++] = (lw_refline){light->thermal.max_touch_c, touch};
+        if (isfinite(light->led.max_junction_c)) {
+            snprintf(jmax, sizeof jmax, "junction max %g C", light->led.max_junction_c);
+            p->refs[p->nrefs++] = (lw_refline){light->led.max_junction_c, jmax};
+        }
+        p->height_share = 1.0;
+    }
     lw_status st = lw_plot_svg(fp, &c, err);
     free(buf);
     return st;

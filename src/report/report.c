@@ -441,7 +441,8 @@ static lw_status lw_report_trace_csv_in_c_locale(FILE *fp, const lw_trace *tr, l
 {
     static const char *const head[] = {"time_h",  "depth_pct", "pack_v",     "cell_v",
                                        "ocv_cell_v", "led_ma", "led_v",      "resistor_w",
-                                       "led_w",   "driver_w",  "flux_lm",    "flux_pct"};
+                                       "led_w",   "driver_w",  "flux_lm",    "flux_pct",
+                                       "t_j_c",   "t_board_c", "t_body_c"};
     lw_csvw w;
     lw_csvw_init(&w, fp);
     for (size_t k = 0; k < sizeof head / sizeof head[0]; k++)
@@ -451,7 +452,8 @@ static lw_status lw_report_trace_csv_in_c_locale(FILE *fp, const lw_trace *tr, l
         const lw_point *p = &tr->rows[i].pt;
         const double v[] = {tr->rows[i].t_h, 100.0 * p->depth, p->pack_v,   p->cell_v,
                             p->ocv_v,        p->led_a * 1e3,   p->led_v,    p->p_res_w,
-                            p->p_led_w,      p->p_drv_w,       p->flux_lm,  tr->rows[i].pct_of_ref};
+                            p->p_led_w,      p->p_drv_w,       p->flux_lm,  tr->rows[i].pct_of_ref,
+                            p->temps.junction_c, p->temps.board_c, p->temps.body_c};
         for (size_t k = 0; k < sizeof v / sizeof v[0]; k++)
             lw_csvw_num(&w, v[k]);
         lw_csvw_end_row(&w);
