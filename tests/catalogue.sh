@@ -198,10 +198,10 @@ case_ 2 "fallback_ma must be below set_ma" p.ini 23 '23s/=.*/= converter\nset_ma
 case_ 2 "p.ini:3: \\[pack\\] is missing the key 'cell'" p.ini 4 '4d' $RUN
 case_ 2 "\\[optics\\] give beam_angle_deg or peak_cd_per_lm, not both" p.ini 33 '33s/.*/beam_angle_deg = 120\npeak_cd_per_lm = 2/' $RUN
 case_ 2 "cell_v = 2 is not below the fresh open-circuit voltage" p.ini 31 '31s/.*/flux_lm = 0\ncell_v = 2/' $RUN
-# [thermal]: required keys at the section's line, values and the interim refusal of capacities
+# [thermal]: required keys at the section's line, and values
 case_ 2 "p.ini:34: \\[thermal\\] is missing the key 'junction_board_k_w'" p.ini 33 '33s/$/\n[thermal]\nbody_ambient_k_w = 20/' $RUN
 case_ 2 "p.ini:37: \\[thermal\\] losses_in_body = maybe: expected yes or no" p.ini 33 '33s/$/\n[thermal]\njunction_board_k_w = 8\nbody_ambient_k_w = 20\nlosses_in_body = maybe/' $RUN
-case_ 2 "p.ini:37: \\[thermal\\] body_j_k: heat capacities need the time-domain engine" p.ini 33 '33s/$/\n[thermal]\njunction_board_k_w = 8\nbody_ambient_k_w = 20\nbody_j_k = 50/' $RUN
+case_ 2 "p.ini:37: \\[thermal\\] body_j_k = -5: expected a number >= 0" p.ini 33 '33s/$/\n[thermal]\njunction_board_k_w = 8\nbody_ambient_k_w = 20\nbody_j_k = -5/' $RUN
 case_ 2 "p.ini:35: .*body_ambient_k_w = 0: expected a number > 0" p.ini 33 '33s/$/\n[thermal]\nbody_ambient_k_w = 0\njunction_board_k_w = 8/' $RUN
 # modes
 case_ 2 "p.ini:35: unknown key 'resistr_ohm' in \\[drive\\]" p.ini 35 '35s/resistor_ohm/resistr_ohm/' $RUN

@@ -161,8 +161,8 @@ static void thermal_runaway_is_refused(void **state)
     lw_light_clear(&l);
 }
 
-/* [thermal] in a profile: its required keys named at the section's line;
- * heat capacities refused for now, naming the key's line. */
+/* [thermal] in a profile: its required keys named at the section's line; a
+ * negative heat capacity refused at its line; a valid section runs. */
 static void thermal_section_in_profiles(void **state)
 {
     (void)state;
@@ -182,11 +182,11 @@ static void thermal_section_in_profiles(void **state)
     assert_int_equal(lw_profile_load(path, &s, &p, &e), LW_EINPUT);
     assert_error_at(e, "t1.ini", 11, "junction_board_k_w");
     snprintf(text, sizeof text, "%s[thermal]\njunction_board_k_w = 12\nbody_ambient_k_w = 30\n"
-                                "body_j_k = 40\n", base);
+                                "body_j_k = -40\n", base);
     path = tmp_write("t2.ini", text);
     lw_error_clear(&e);
     assert_int_equal(lw_profile_load(path, &s, &p, &e), LW_EINPUT);
-    assert_error_at(e, "t2.ini", 14, "body_j_k");
+    assert_error_at(e, "t2.ini", 14, "body_j_k = -40");
     snprintf(text, sizeof text, "%s[thermal]\njunction_board_k_w = 12\nbody_ambient_k_w = 30\n",
              base);
     path = tmp_write("t3.ini", text);

@@ -109,10 +109,21 @@ typedef struct lw_run_options {
     double start_depth;   /* depth at switch-on, 0..1, default 0; the light's own
                              storage (pack.stored_months) is applied when deeper */
     bool want_trace;      /* record the pieces for lw_trace_build */
+    bool time_domain;     /* integrate in time (transient.h) even when the depth
+                             quadrature applies; lights with heat capacities always
+                             are */
 } lw_run_options;
 
 /* Defaults as documented above. */
 lw_run_options lw_run_options_default(void);
+
+/* One state of a run integrated in time, kept for the trace. */
+typedef struct lw_state {
+    double t_h;           /* time since switch-on */
+    double depth;
+    double board_c, body_c; /* the heat path's state (ambient for quasi-static nodes) */
+    bool fallback;
+} lw_state;
 
 /* One accepted integration piece, kept for the trace. */
 typedef struct lw_piece {
@@ -150,6 +161,8 @@ typedef struct lw_result {
     int solves;             /* operating-point solves */
     unsigned warnings;      /* LW_WARN_* */
     lw_piece *pieces;       /* with want_trace: accepted pieces, owned */
+    lw_state *states;       /* with want_trace, a run in time: its states, owned */
+    size_t n_states;
     size_t n_pieces;
 } lw_result;
 

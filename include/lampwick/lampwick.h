@@ -23,6 +23,7 @@
  *   thermal.h    the heat path: junctions, board, body, ambient
  *   light.h      the whole light and its operating point
  *   engine.h     the discharge run and its energy ledger
+ *   transient.h  runs in time (heat capacities): Radau IIA, events
  *   trace.h      the time series of a run
  *   photometry.h beam photometry (ANSI/PLATO FL 1 definitions)
  * 3 io - reading and writing files
@@ -78,6 +79,7 @@
 #include "thermal.h"
 #include "light.h"
 #include "engine.h"
+#include "transient.h"
 #include "trace.h"
 #include "photometry.h"
 /* 3 io */

@@ -559,17 +559,6 @@ static lw_status check_thermal(lw_profile *p, lw_error *err)
                                 "[thermal] is missing the key '%s' (%s)", needed[k],
                                 d ? d->help : "");
         }
-    if (!lw_thermal_quasi_static(th)) {
-        const char *key = th->c_b_j_k > 0 ? "board_j_k" : "body_j_k";
-        const char *file;
-        int line;
-        where_of(p, "thermal", key, &file, &line);
-        return lw_error_set(err, LW_EINPUT, file, line,
-                            "[thermal] %s: heat capacities need the time-domain engine, which "
-                            "this version does not have yet; give 0 (steady state at every "
-                            "instant)",
-                            key);
-    }
     return LW_OK;
 }
 

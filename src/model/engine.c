@@ -15,6 +15,7 @@
 #include <string.h>
 #include "lampwick/roots.h"
 #include "lampwick/alloc.h"
+#include "lampwick/transient.h"
 
 const char *const lw_run_end_names[LW_END_COUNT + 1] = {
     "relative-brightness", "flux-floor", "cell-voltage", "capacity", "never-lit",
@@ -766,6 +767,9 @@ void lw_run_result_clear(lw_result *res)
     free(res->pieces);
     res->pieces = NULL;
     res->n_pieces = 0;
+    free(res->states);
+    res->states = NULL;
+    res->n_states = 0;
 }
 
 lw_status lw_run_worst_case(const lw_light *light, lw_point *pt, lw_error *err)
@@ -1037,24 +1041,29 @@ lw_status lw_run(const lw_light *light, const lw_run_options *opt, lw_result *re
         return st;
     res->worst_led_a = res->initial.led_a;
     res->worst_resistor_w = res->initial.p_res_peak_w;
-    lw_point p0;
-    st = start_run(&e, &p0);
-    if (st == LW_OK && !e.done) {
-        res->flux_ref_lm = e.flux_ref;
-        init_events(&e, &p0);
-        st = run_body(&e, p0);
+    if (opt->time_domain || !lw_thermal_quasi_static(&light->thermal)) {
+        /* state that lives in time: the run in time (transient.h) */
+        st = lw_transient_run(light, opt, res, err);
+    } else {
+        lw_point p0;
+        st = start_run(&e, &p0);
+        if (st == LW_OK && !e.done) {
+            res->flux_ref_lm = e.flux_ref;
+            init_events(&e, &p0);
+            st = run_body(&e, p0);
+        }
+        res->runtime_h = e.tot[Q_T];
+        res->lumen_hours = e.tot[Q_LMH];
+        res->energy_led_wh = e.tot[Q_LED];
+        res->energy_resistor_wh = e.tot[Q_RES];
+        res->energy_internal_wh = e.tot[Q_INT];
+        res->energy_driver_wh = e.tot[Q_DRV];
+        res->energy_drawn_wh = e.tot[Q_DRAWN];
     }
     if (st != LW_OK) {
         lw_run_result_clear(res);
         return st;
     }
-    res->runtime_h = e.tot[Q_T];
-    res->lumen_hours = e.tot[Q_LMH];
-    res->energy_led_wh = e.tot[Q_LED];
-    res->energy_resistor_wh = e.tot[Q_RES];
-    res->energy_internal_wh = e.tot[Q_INT];
-    res->energy_driver_wh = e.tot[Q_DRV];
-    res->energy_drawn_wh = e.tot[Q_DRAWN];
     if (light->drive.type == LW_DRIVE_RESISTOR)
         res->regulated_h = NAN;
     bool outside = false;

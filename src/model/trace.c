@@ -17,11 +17,70 @@ void lw_trace_clear(lw_trace *trace)
     trace->n = 0;
 }
 
+/* The point at a state of a run in time. */
+static lw_status state_point(const lw_light *l, const lw_state *s, lw_point *pt, lw_error *err)
+{
+    const lw_cell *c = &l->pack.cell;
+    double ocv = lw_interp_linear(c->ocv, s->depth);
+    double r = lw_interp_linear(c->res, s->depth) * l->res_factor;
+    lw_temps t = {NAN, s->board_c, s->body_c};
+    return lw_light_point_state(l, s->depth, ocv, r, s->fallback, &t, pt, err);
+}
+
+/* The trace of a run in time: a row at every accepted step (the steps are
+ * at most 1/LW_TRANSIENT_STEPS_MIN of the run), more rows between steps
+ * by linear interpolation of the state when min_rows asks for them. */
+static lw_status trace_of_states(const lw_light *light, const lw_result *res, size_t min_rows,
+                                 lw_trace *trace, lw_error *err)
+{
+    size_t ns = res->n_states;
+    size_t sub = ns > 1 && ns - 1 < min_rows ? (min_rows + ns - 2) / (ns - 1) : 1;
+    size_t total = ns > 1 ? (ns - 1) * sub + 1 : ns;
+    lw_trace_row *rows = lw_malloc((total ? total : 1) * sizeof *rows);
+    if (!rows)
+        return lw_error_set(err, LW_ENOMEM, NULL, 0, "out of memory for the trace");
+    lw_status st = LW_OK;
+    size_t n = 0;
+    for (size_t i = 0; i < ns && st == LW_OK; i++) {
+        size_t parts = i + 1 < ns ? sub : 1;
+        for (size_t j = 0; j < parts && st == LW_OK; j++) {
+            lw_state s = res->states[i];
+            if (j > 0) {
+                const lw_state *b = &res->states[i + 1];
+                double u = (double)j / (double)parts;
+                s.t_h += u * (b->t_h - s.t_h);
+                s.depth += u * (b->depth - s.depth);
+                s.board_c += u * (b->board_c - s.board_c);
+                s.body_c += u * (b->body_c - s.body_c);
+            }
+            rows[n].t_h = s.t_h;
+            st = state_point(light, &s, &rows[n].pt, err);
+            n++;
+        }
+    }
+    if (st != LW_OK) {
+        free(rows);
+        return st;
+    }
+    if (n > 1) {
+        rows[n - 1].t_h = res->runtime_h;
+        rows[n - 1].pt = res->final;
+    }
+    for (size_t i = 0; i < n; i++)
+        rows[i].pct_of_ref =
+            res->flux_ref_lm > 0 ? 100.0 * rows[i].pt.flux_lm / res->flux_ref_lm : 0.0;
+    trace->rows = rows;
+    trace->n = n;
+    return LW_OK;
+}
+
 lw_status lw_trace_build(const lw_light *light, const lw_result *res, size_t min_rows,
                          lw_trace *trace, lw_error *err)
 {
     trace->rows = NULL;
     trace->n = 0;
+    if (res->n_states > 0)
+        return trace_of_states(light, res, min_rows, trace, err);
     size_t per_piece = res->n_pieces ? (min_rows + res->n_pieces - 1) / res->n_pieces : 1;
     if (per_piece < 1)
         per_piece = 1;

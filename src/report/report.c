@@ -324,9 +324,9 @@ static void text_switch_on(FILE *fp, const lw_light *l, const lw_result *r)
         fprintf(fp, "  efficiency          %.1f %% of the power drawn reaches the LEDs\n",
                 100.0 * i0->p_led_w / i0->p_drawn_w);
     if (l->thermal.enabled)
-        fprintf(fp, "  temperatures        junction %.1f C, board %.1f C, body %.1f C (steady "
-                    "state)\n",
-                i0->temps.junction_c, i0->temps.board_c, i0->temps.body_c);
+        fprintf(fp, "  temperatures        junction %.1f C, board %.1f C, body %.1f C%s\n",
+                i0->temps.junction_c, i0->temps.board_c, i0->temps.body_c,
+                lw_thermal_quasi_static(&l->thermal) ? " (steady state)" : "");
 }
 
 static void text_run(FILE *fp, const lw_light *l, const lw_result *r)

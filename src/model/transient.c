@@ -1,0 +1,638 @@
+/*
+ * transient.c - a light's run integrated in time (see transient.h).
+ *
+ * Units: time in s inside (h in the result), depth as a fraction,
+ * temperatures in deg C, energies in J inside (Wh in the result).
+ * Method: 3-stage Radau IIA (Hairer and Wanner, Solving ODEs II, IV.5) with
+ * simplified Newton on a forward-difference Jacobian, step doubling for the
+ * error (Hairer, Norsett and Wanner, Solving ODEs I, II.4), events by the
+ * Illinois variant of regula falsi on the step size (M. Dowell and
+ * P. Jarratt, BIT 11, 1971).
+ *
+ * Invariant: (t, x, q) is an accepted state - the integrals q from switch-on
+ * to t - and no active event has fired before t.
+ */
+#include "lampwick/transient.h"
+
+#include <math.h>
+#include <stdlib.h>
+#include <string.h>
+#include "lampwick/alloc.h"
+
+#define NX 3 /* depth, board, body */
+#define NQ 6 /* lm s; J into LEDs, resistors, cells' R, driver; J drawn */
+#define NS 3 /* Radau stages */
+#define NZ (NX * NS)
+
+/* The error of two half steps is (small - big) / (2^5 - 1) for a method of
+ * order 5 (Richardson). */
+#define DOUBLING_DIVISOR 31.0
+/* Newton has converged when its last correction is below this share of the
+ * tolerance (so it adds nothing to the step's error). */
+#define NEWTON_TOL 1e-3
+/* Event times are located to this share of the time since switch-on. */
+#define EVENT_RTOL 1e-12
+#define EVENT_ITER_MAX 200
+
+/* Events: the ends of the run, 50 %, the regulator's state, and the knots of
+ * the cell's curves, where the rates have a kink (the step restarts there,
+ * so that no step straddles one and loses its order). */
+enum { EV_REL, EV_FLOOR, EV_CELL_V, EV_CAPACITY, EV_HALF, EV_REGIME, EV_KNOT, EV_COUNT };
+
+typedef struct tr {
+    const lw_light *l;
+    const lw_run_options *opt;
+    lw_result *res;
+    lw_error *err;
+    bool fallback;
+    double a[NS][NS], c[NS]; /* the Radau IIA tableau */
+} tr;
+
+/* The Radau IIA tableau of order 5 (Hairer and Wanner, Table IV.5.6). */
+static void radau_tableau(double a[NS][NS], double c[NS])
+{
+    const double s6 = sqrt(6.0);
+    c[0] = (4.0 - s6) / 10.0, c[1] = (4.0 + s6) / 10.0, c[2] = 1.0;
+    a[0][0] = (88.0 - 7.0 * s6) / 360.0;
+    a[0][1] = (296.0 - 169.0 * s6) / 1800.0;
+    a[0][2] = (-2.0 + 3.0 * s6) / 225.0;
+    a[1][0] = (296.0 + 169.0 * s6) / 1800.0;
+    a[1][1] = (88.0 + 7.0 * s6) / 360.0;
+    a[1][2] = (-2.0 - 3.0 * s6) / 225.0;
+    a[2][0] = (16.0 - s6) / 36.0;
+    a[2][1] = (16.0 + s6) / 36.0;
+    a[2][2] = 1.0 / 9.0;
+}
+
+void lw_transient_tableau(double a[3][3], double c[3])
+{
+    radau_tableau(a, c);
+}
+
+/* The operating point at state x and its rates: dx/dt in f, integrands in g. */
+static lw_status eval(tr *e, const double x[NX], lw_point *pt, double f[NX], double g[NQ])
+{
+    if (++e->res->solves > e->opt->max_solves)
+        return lw_error_set(e->err, LW_ENUMERIC, NULL, 0,
+                            "the run in time stopped after %d operating-point solves near "
+                            "depth %.6g (max_solves)",
+                            e->opt->max_solves, x[0]);
+    const lw_light *l = e->l;
+    const lw_cell *c = &l->pack.cell;
+    double d = x[0] < 0.0 ? 0.0 : (x[0] > 1.0 ? 1.0 : x[0]);
+    double ocv = lw_interp_linear(c->ocv, d);
+    double r = lw_interp_linear(c->res, d) * l->res_factor;
+    lw_temps s = {NAN, x[1], x[2]};
+    lw_status st = lw_light_point_state(l, d, ocv, r, e->fallback, &s, pt, e->err);
+    if (st != LW_OK)
+        return st;
+    f[0] = isfinite(pt->dtdd_h) && pt->dtdd_h > 0.0 ? 1.0 / (3600.0 * pt->dtdd_h) : 0.0;
+    double q_led = l->led.heat_fraction * pt->p_led_w;
+    double q_other = l->thermal.losses_in_body ? pt->p_res_w + pt->p_int_w + pt->p_drv_w : 0.0;
+    lw_thermal_rates(&l->thermal, l->pack.ambient_c, q_led, q_other, &pt->temps, &f[1], &f[2]);
+    if (g) {
+        g[0] = pt->flux_lm, g[1] = pt->p_led_w, g[2] = pt->p_res_w;
+        g[3] = pt->p_int_w, g[4] = pt->p_drv_w, g[5] = pt->p_drawn_w;
+    }
+    return LW_OK;
+}
+
+/* Scale of each state component for the error norm. */
+static double scale(int k, double v)
+{
+    return k == 0 ? fabs(v) + 1e-3 : fabs(v) + 273.15;
+}
+
+/* Solve m z = r in place (Gaussian elimination, partial pivoting); false
+ * when singular. */
+static bool lu_solve(double m[NZ][NZ], double r[NZ])
+{
+    for (int k = 0; k < NZ; k++) {
+        int p = k;
+        for (int i = k + 1; i < NZ; i++)
+            if (fabs(m[i][k]) > fabs(m[p][k]))
+                p = i;
+        if (!(fabs(m[p][k]) > 0.0))
+            return false;
+        if (p != k) {
+            for (int j = 0; j < NZ; j++) {
+                double t = m[k][j];
+                m[k][j] = m[p][j];
+                m[p][j] = t;
+            }
+            double t = r[k];
+            r[k] = r[p];
+            r[p] = t;
+        }
+        for (int i = k + 1; i < NZ; i++) {
+            double f = m[i][k] / m[k][k];
+            for (int j = k; j < NZ; j++)
+                m[i][j] -= f * m[k][j];
+            r[i] -= f * r[k];
+        }
+    }
+    for (int k = NZ - 1; k >= 0; k--) {
+        double s = r[k];
+        for (int j = k + 1; j < NZ; j++)
+            s -= m[k][j] * r[j];
+        r[k] = s / m[k][k];
+    }
+    return true;
+}
+
+/* The Jacobian df/dx at x0 by forward differences (f0 = f(x0)). */
+static lw_status jacobian(tr *e, const double x0[NX], const double f0[NX], double jac[NX][NX])
+{
+    for (int b = 0; b < NX; b++) {
+        double x[NX] = {x0[0], x0[1], x0[2]};
+        double dx = 1.5e-8 * scale(b, x0[b]);
+        x[b] += dx;
+        lw_point pt;
+        double f[NX] = {0};
+        lw_status st = eval(e, x, &pt, f, NULL);
+        if (st != LW_OK)
+            return st;
+        for (int a = 0; a < NX; a++)
+            jac[a][b] = (f[a] - f0[a]) / dx;
+    }
+    return LW_OK;
+}
+
+/* One Radau IIA step of size h from x0 (jac at x0): x1, the integrals'
+ * increments dq and the point at x1.  *ok false when Newton does not
+ * converge (the caller shrinks the step). */
+static lw_status radau_step(tr *e, const double x0[NX], double jac[NX][NX], double h,
+                            double x1[NX], double dq[NQ], lw_point *p1, bool *ok)
+{
+    double m[NZ][NZ];
+    for (int i = 0; i < NS; i++)
+        for (int a = 0; a < NX; a++)
+            for (int j = 0; j < NS; j++)
+                for (int b = 0; b < NX; b++)
+                    m[i * NX + a][j * NX + b] =
+                        (i == j && a == b ? 1.0 : 0.0) - h * e->a[i][j] * jac[a][b];
+    double z[NZ] = {0}, f[NS][NX], g[NS][NQ];
+    lw_point pts[NS];
+    double prev = INFINITY;
+    *ok = false;
+    for (int it = 0; it < LW_TRANSIENT_NEWTON_MAX; it++) {
+        for (int i = 0; i < NS; i++) {
+            double y[NX];
+            for (int a = 0; a < NX; a++)
+                y[a] = x0[a] + z[i * NX + a];
+            lw_status st = eval(e, y, &pts[i], f[i], g[i]);
+            if (st != LW_OK)
+                return st;
+        }
+        if (it > 0 && prev <= NEWTON_TOL) {
+            *ok = true;
+            break;
+        }
+        double r[NZ], mm[NZ][NZ];
+        for (int i = 0; i < NS; i++)
+            for (int a = 0; a < NX; a++) {
+                double s = 0.0;
+                for (int j = 0; j < NS; j++)
+                    s += e->a[i][j] * f[j][a];
+                r[i * NX + a] = -z[i * NX + a] + h * s;
+            }
+        memcpy(mm, m, sizeof mm);
+        if (!lu_solve(mm, r))
+            return LW_OK;
+        double norm = 0.0;
+        for (int i = 0; i < NS; i++)
+            for (int a = 0; a < NX; a++) {
+                z[i * NX + a] += r[i * NX + a];
+                norm = fmax(norm, fabs(r[i * NX + a]) / (e->opt->rtol * scale(a, x0[a])));
+            }
+        if (!isfinite(norm) || (it >= 2 && norm > prev))
+            return LW_OK; /* diverging */
+        prev = norm;
+    }
+    if (!*ok)
+        return LW_OK;
+    for (int a = 0; a < NX; a++)
+        x1[a] = x0[a] + z[(NS - 1) * NX + a];
+    for (int k = 0; k < NQ; k++) {
+        double s = 0.0;
+        for (int j = 0; j < NS; j++)
+            s += e->a[NS - 1][j] * g[j][k]; /* b = the last row (stiffly accurate) */
+        dq[k] = h * s;
+    }
+    *p1 = pts[NS - 1]; /* c3 = 1: the last stage is the step's end */
+    return LW_OK;
+}
+
+/* A step of size h from (x0, q0) as two half steps, with the error norm
+ * of the pair against one whole step (1 or less: within tolerance). */
+typedef struct step {
+    double x[NX], dq[NQ];
+    lw_point p;
+    double err;
+    bool ok;
+} step;
+
+static lw_status doubled(tr *e, const double x0[NX], const double q0[NQ], double h, step *out)
+{
+    lw_point p0;
+    double f0[NX] = {0}, jac[NX][NX] = {{0}};
+    lw_status st = eval(e, x0, &p0, f0, NULL);
+    if (st == LW_OK)
+        st = jacobian(e, x0, f0, jac);
+    double xb[NX], qb[NQ], xm[NX], qm[NQ], q2[NQ];
+    lw_point pb, pm;
+    bool ok1 = false, ok2 = false, ok3 = false;
+    if (st == LW_OK)
+        st = radau_step(e, x0, jac, h, xb, qb, &pb, &ok1);
+    if (st == LW_OK && ok1)
+        st = radau_step(e, x0, jac, 0.5 * h, xm, qm, &pm, &ok2);
+    double fm[NX], jm[NX][NX];
+    if (st == LW_OK && ok1 && ok2) {
+        st = eval(e, xm, &pm, fm, NULL);
+        if (st == LW_OK)
+            st = jacobian(e, xm, fm, jm);
+        if (st == LW_OK)
+            st = radau_step(e, xm, jm, 0.5 * h, out->x, q2, &out->p, &ok3);
+    }
+    out->ok = ok1 && ok2 && ok3;
+    if (st != LW_OK || !out->ok)
+        return st;
+    /* the error of the two half steps, and the step taken as their
+     * Richardson extrapolation (local extrapolation: order 6) */
+    double err = 0.0;
+    for (int a = 0; a < NX; a++) {
+        double w = e->opt->rtol * fmax(scale(a, x0[a]), scale(a, out->x[a]));
+        double est = (out->x[a] - xb[a]) / DOUBLING_DIVISOR;
+        err = fmax(err, fabs(est) / w);
+        out->x[a] += est;
+    }
+    for (int k = 0; k < NQ; k++) {
+        double small = qm[k] + q2[k], est = (small - qb[k]) / DOUBLING_DIVISOR;
+        out->dq[k] = small + est;
+        double w = e->opt->rtol * fabs(q0[k] + out->dq[k]) + 1e-300;
+        err = fmax(err, fabs(est) / w);
+    }
+    out->err = isfinite(err) ? err : INFINITY;
+    /* the point at the extrapolated state */
+    double f[NX] = {0};
+    return eval(e, out->x, &out->p, f, NULL);
+}
+
+/* ---- events ---- */
+
+typedef struct run {
+    tr e;
+    double t, x[NX], q[NQ];
+    lw_point p;             /* the point at (t, x) */
+    double ref, floor_lm, frac;
+    bool ref_known, half_armed, regime_pos, done;
+    double regulated_s;
+    double knot_next;       /* the first knot of the cell's curves above the depth */
+    size_t cap_states;
+} run;
+
+/* The first knot of the cell's OCV and resistance curves above depth d
+ * (2 when there is none). */
+static double knot_above(const lw_cell *c, double d)
+{
+    double k = 2.0;
+    const lw_interp *t[2] = {c->ocv, c->res};
+    for (int j = 0; j < 2; j++)
+        for (size_t i = 0; i < t[j]->n; i++)
+            if (t[j]->x[i] > d) {
+                k = fmin(k, t[j]->x[i]);
+                break;
+            }
+    return k;
+}
+
+static double event_g(const run *r, int k, const lw_point *p, double depth)
+{
+    switch (k) {
+    case EV_REL: return p->flux_lm - r->frac * r->ref;
+    case EV_FLOOR: return p->flux_lm - r->floor_lm;
+    case EV_CELL_V: return p->cell_v - r->e.l->cutoff.cell_v;
+    case EV_CAPACITY: return 1.0 - depth;
+    case EV_HALF: return p->flux_lm - 0.5 * r->ref;
+    case EV_KNOT: return r->knot_next - depth;
+    case EV_REGIME:
+    default: return r->regime_pos ? p->regulation_margin : -p->regulation_margin;
+    }
+}
+
+static bool active(const run *r, int k)
+{
+    if (k == EV_REL)
+        return r->ref_known;
+    if (k == EV_HALF)
+        return r->ref_known && r->half_armed;
+    if (k == EV_REGIME)
+        return r->e.l->drive.type != LW_DRIVE_RESISTOR;
+    return true;
+}
+
+/* Fired over the step to point p (depth d): the event function was
+ * positive at the step's start and is not at its end. */
+static bool fired(const run *r, int k, const lw_point *p, double d)
+{
+    return active(r, k) && event_g(r, k, &r->p, r->x[0]) > 0.0 && !(event_g(r, k, p, d) > 0.0);
+}
+
+/* The earliest time tau in (0, h] at which event k fires: Illinois regula
+ * falsi on the step size, every trial a doubled step from the accepted
+ * state.  *before is the step just short of it (the event's function still
+ * positive), *after the step at or past it. */
+static lw_status locate(run *r, int k, double h, step *before, step *after)
+{
+    double a = 0.0, b = h, ga = event_g(r, k, &r->p, r->x[0]);
+    double gb = event_g(r, k, &after->p, after->x[0]);
+    before->ok = false;
+    int side = 0;
+    for (int it = 0; it < EVENT_ITER_MAX && b - a > EVENT_RTOL * (r->t + b); it++) {
+        double tau = (ga * b - gb * a) / (ga - gb);
+        if (!(tau > a && tau < b))
+            tau = 0.5 * (a + b);
+        step s;
+        lw_status st = doubled(&r->e, r->x, r->q, tau, &s);
+        if (st != LW_OK)
+            return st;
+        if (!s.ok)
+            return lw_error_set(r->e.err, LW_ENUMERIC, NULL, 0,
+                                "the run in time could not step to an event near %.6g h",
+                                (r->t + tau) / 3600.0);
+        double g = event_g(r, k, &s.p, s.x[0]);
+        if (g > 0.0) {
+            a = tau, ga = g, *before = s;
+            if (side == -1)
+                gb *= 0.5; /* Illinois: the stale end's value halved */
+            side = -1;
+        } else {
+            b = tau, gb = g, *after = s;
+            if (side == 1)
+                ga *= 0.5;
+            side = 1;
+        }
+    }
+    after->err = b; /* the located step size travels in err */
+    before->err = a;
+    return LW_OK;
+}
+
+/* Keep (t, x) for the trace. */
+static lw_status keep_state(run *r)
+{
+    lw_result *res = r->e.res;
+    if (!r->e.opt->want_trace)
+        return LW_OK;
+    if (res->n_states == r->cap_states) {
+        size_t cap = r->cap_states ? 2 * r->cap_states : 256;
+        lw_state *s = lw_realloc(res->states, cap * sizeof *s);
+        if (!s)
+            return lw_error_set(r->e.err, LW_ENOMEM, NULL, 0, "out of memory for the trace");
+        res->states = s;
+        r->cap_states = cap;
+    }
+    res->states[res->n_states++] =
+        (lw_state){r->t / 3600.0, r->x[0], r->x[1], r->x[2], r->e.fallback};
+    return LW_OK;
+}
+
+/* Move to the end of step s of size h. */
+static lw_status accept(run *r, const step *s, double h)
+{
+    lw_result *res = r->e.res;
+    if (r->p.regime == LW_REGIME_REGULATED)
+        r->regulated_s += h;
+    r->t += h;
+    memcpy(r->x, s->x, sizeof r->x);
+    for (int k = 0; k < NQ; k++)
+        r->q[k] += s->dq[k];
+    r->p = s->p;
+    res->peak_junction_c = fmax(res->peak_junction_c, r->p.temps.junction_c);
+    res->peak_body_c = fmax(res->peak_body_c, r->p.temps.body_c);
+    res->peak_resistor_w = fmax(res->peak_resistor_w, r->p.p_res_peak_w);
+    return keep_state(r);
+}
+
+static void finish(run *r, lw_end_reason why, const lw_point *p)
+{
+    r->e.res->end_reason = why;
+    r->e.res->final = *p;
+    r->done = true;
+}
+
+/* The 30-s point reached: the reference, and a light already at a cutoff. */
+static void at_30s(run *r, const lw_point *p0)
+{
+    lw_result *res = r->e.res;
+    const lw_light *l = r->e.l;
+    res->flux_30s_lm = r->p.flux_lm > 0.0 ? r->p.flux_lm : p0->flux_lm;
+    res->junction_30s_c = r->p.temps.junction_c;
+    res->depth_30s = r->x[0];
+    r->ref = l->cutoff.reference == LW_REF_FRESH ? r->ref : res->flux_30s_lm;
+    r->ref_known = true;
+    r->half_armed = true;
+    res->flux_ref_lm = r->ref;
+    if (p0->flux_lm <= r->floor_lm || p0->flux_lm <= r->frac * r->ref) {
+        finish(r, LW_END_DIM_AT_START, p0);
+        r->t = 0.0;
+        memcpy(r->x, (double[NX]){res->start_depth, l->pack.ambient_c, l->pack.ambient_c},
+               sizeof r->x);
+        memset(r->q, 0, sizeof r->q);
+        r->regulated_s = 0.0;
+    }
+}
+
+/* Act on the event k that fired at the current state. */
+static lw_status act(run *r, int k, const step *before)
+{
+    static const lw_end_reason why[] = {LW_END_RELATIVE, LW_END_FLUX_FLOOR,
+                                        LW_END_CELL_VOLTAGE, LW_END_CAPACITY};
+    if (k == EV_KNOT) {
+        /* at (or within 1e-12 past) the knot: the next one */
+        r->knot_next = knot_above(&r->e.l->pack.cell, r->x[0] + 1e-12);
+        return LW_OK;
+    }
+    if (k == EV_HALF) {
+        r->e.res->time_to_half_h = r->t / 3600.0;
+        r->half_armed = false;
+        return LW_OK;
+    }
+    if (k != EV_REGIME) {
+        finish(r, why[k], &r->p);
+        return LW_OK;
+    }
+    /* the regulator's state changed: a kink, or a converter's dropout */
+    if (r->p.regime != LW_REGIME_DROPOUT) {
+        r->regime_pos = r->p.regulation_margin > 0.0;
+        return LW_OK;
+    }
+    if (!r->e.fallback && r->e.l->drive.fallback_a > 0.0) {
+        r->e.fallback = true;
+        double f[NX];
+        lw_status st = eval(&r->e, r->x, &r->p, f, NULL);
+        if (st != LW_OK)
+            return st;
+        r->regime_pos = r->p.regulation_margin > 0.0;
+        if (r->p.regime != LW_REGIME_DROPOUT)
+            return LW_OK;
+    }
+    finish(r, LW_END_DRIVER_DROPOUT, before->ok ? &before->p : &r->p);
+    return LW_OK;
+}
+
+/* Integrate from the current state to the end (or to 30 s with
+ * stop_at_30s). */
+static lw_status integrate(run *r, bool stop_at_30s)
+{
+    const lw_point p0 = r->p;
+    double t_est = (1.0 - r->x[0]) * 3600.0 * p0.dtdd_h;
+    double h_max = isfinite(t_est) && t_est > 0.0 ? t_est / LW_TRANSIENT_STEPS_MIN : 3600.0;
+    double h = fmin(h_max, 1.0);
+    while (!r->done) {
+        bool to_30 = !r->ref_known && r->t + h >= 30.0;
+        if (to_30)
+            h = 30.0 - r->t;
+        step s;
+        lw_status st = doubled(&r->e, r->x, r->q, h, &s);
+        if (st != LW_OK)
+            return st;
+        if (!s.ok || s.err > 1.0) {
+            double f = s.ok ? fmax(0.2, 0.9 * pow(s.err, -1.0 / 6.0)) : 0.25;
+            h *= f;
+            if (h < 1e-9 * (r->t + 1.0))
+                return lw_error_set(r->e.err, LW_ENUMERIC, NULL, 0,
+                                    "the run in time could not keep its tolerance near "
+                                    "%.6g h (the step shrank to nothing)",
+                                    r->t / 3600.0);
+            continue;
+        }
+        /* the earliest event over the step, if any */
+        int first = -1;
+        double h_event = h;
+        step at = s, before = {0};
+        for (int k = 0; k < EV_COUNT; k++) {
+            if (!fired(r, k, &s.p, s.x[0]))
+                continue;
+            step b = {0}, a = s;
+            st = locate(r, k, h, &b, &a);
+            if (st != LW_OK)
+                return st;
+            if (first < 0 || a.err < h_event) {
+                first = k, h_event = a.err, at = a, before = b;
+            }
+        }
+        double grow = fmin(4.0, fmax(0.2, 0.9 * pow(fmax(s.err, 1e-30), -1.0 / 6.0)));
+        if (first >= 0) {
+            st = accept(r, &at, h_event);
+            /* 50 % comes first when it falls at the same instant as another event */
+            if (st == LW_OK && first != EV_HALF && active(r, EV_HALF) &&
+                !(event_g(r, EV_HALF, &r->p, r->x[0]) > 0.0))
+                st = act(r, EV_HALF, &before);
+            if (st == LW_OK)
+                st = act(r, first, &before);
+            /* an end already reached at this instant ends the run now */
+            for (int k = EV_REL; k <= EV_CAPACITY && st == LW_OK && !r->done; k++)
+                if (active(r, k) && !(event_g(r, k, &r->p, r->x[0]) > 0.0))
+                    st = act(r, k, &before);
+        } else {
+            st = accept(r, &s, h);
+            if (st == LW_OK && to_30) {
+                if (stop_at_30s)
+                    return LW_OK;
+                at_30s(r, &p0);
+            }
+        }
+        if (st != LW_OK)
+            return st;
+        h = fmin(h_max, (first >= 0 ? h_event : h) * grow);
+        if (!(h > 0.0))
+            h = fmin(h_max, 1.0);
+    }
+    return LW_OK;
+}
+
+/* Start a run at depth d0 with the heat path at ambient. */
+static lw_status start(run *r, double d0)
+{
+    const lw_light *l = r->e.l;
+    r->t = 0.0;
+    r->x[0] = d0, r->x[1] = r->x[2] = l->pack.ambient_c;
+    memset(r->q, 0, sizeof r->q);
+    double f[NX];
+    lw_status st = eval(&r->e, r->x, &r->p, f, NULL);
+    if (st == LW_OK && r->p.regime == LW_REGIME_DROPOUT && l->drive.fallback_a > 0.0) {
+        r->e.fallback = true;
+        st = eval(&r->e, r->x, &r->p, f, NULL);
+    }
+    r->regime_pos = r->p.regulation_margin > 0.0;
+    r->knot_next = knot_above(&l->pack.cell, d0);
+    return st;
+}
+
+static void init_run(run *r, const lw_light *l, const lw_run_options *opt, lw_result *res,
+                     lw_error *err)
+{
+    memset(r, 0, sizeof *r);
+    r->e = (tr){.l = l, .opt = opt, .res = res, .err = err};
+    radau_tableau(r->e.a, r->e.c);
+    r->floor_lm = fmax(l->cutoff.flux_lm, opt->visible_lm);
+    r->frac = l->cutoff.relative_pct / 100.0;
+}
+
+/* The 30-s output of the same light with fresh cells at 20 C. */
+static lw_status fresh_reference(const run *from, double *flux_lm)
+{
+    lw_light w = *from->e.l; /* shallow: tables borrowed, never freed here */
+    w.pack.stored_months = 0.0;
+    w.pack.ambient_c = LW_FRESH_REFERENCE_C;
+    lw_light_update_factors(&w, NULL);
+    lw_run_options o = *from->e.opt;
+    o.want_trace = false;
+    lw_result scratch;
+    memset(&scratch, 0, sizeof scratch);
+    run r;
+    init_run(&r, &w, &o, &scratch, from->e.err);
+    lw_status st = start(&r, 0.0);
+    if (st == LW_OK && r.p.flux_lm > 0.0)
+        st = integrate(&r, true);
+    from->e.res->solves += scratch.solves;
+    *flux_lm = r.p.flux_lm;
+    return st;
+}
+
+lw_status lw_transient_run(const lw_light *light, const lw_run_options *opt, lw_result *res,
+                           lw_error *err)
+{
+    run r;
+    init_run(&r, light, opt, res, err);
+    lw_status st = start(&r, res->start_depth);
+    if (st != LW_OK)
+        return st;
+    res->initial = r.p;
+    res->peak_resistor_w = r.p.p_res_peak_w;
+    res->peak_junction_c = r.p.temps.junction_c;
+    res->peak_body_c = r.p.temps.body_c;
+    if (light->cutoff.reference == LW_REF_FRESH && (st = fresh_reference(&r, &r.ref)) != LW_OK)
+        return st;
+    if (res->start_depth >= 1.0 || r.p.cell_v <= light->cutoff.cell_v)
+        finish(&r, LW_END_EMPTY_AT_START, &r.p);
+    else if (!(r.p.flux_lm >= opt->visible_lm) || !isfinite(r.p.dtdd_h))
+        finish(&r, LW_END_NEVER_LIT, &r.p);
+    if (!r.done)
+        st = keep_state(&r);
+    if (st == LW_OK && !r.done)
+        st = integrate(&r, false);
+    if (st != LW_OK)
+        return st;
+    res->runtime_h = r.t / 3600.0;
+    res->end_depth = res->final.depth;
+    res->lumen_hours = r.q[0] / 3600.0;
+    res->energy_led_wh = r.q[1] / 3600.0;
+    res->energy_resistor_wh = r.q[2] / 3600.0;
+    res->energy_internal_wh = r.q[3] / 3600.0;
+    res->energy_driver_wh = r.q[4] / 3600.0;
+    res->energy_drawn_wh = r.q[5] / 3600.0;
+    res->regulated_h = r.regulated_s / 3600.0;
+    return LW_OK;
+}

@@ -1,0 +1,311 @@
+/*
+ * test_transient.c - runs integrated in time (transient.h): the Radau IIA
+ * tableau's order conditions, agreement with the depth quadrature on every
+ * bundled profile and mode when the time domain is forced on a light
+ * without heat capacity, and a light with both heat capacities against an
+ * independent solution: GSL's gsl_odeiv2 (rk8pd at 1e-12) of the model of
+ * docs/model.md written here, with its events found by bisection.
+ */
+#include "testutil.h"
+#include <glob.h>
+#include <gsl/gsl_errno.h>
+#include <gsl/gsl_odeiv2.h>
+#include "bundled.h"
+#include "gslref.h"
+#include "lights.h"
+
+/* The simplifying assumptions B(5) and C(3) of the 3-stage Radau IIA method
+ * (Hairer and Wanner, Solving ODEs II, section IV.5): sum_i b_i c_i^(k-1) =
+ * 1/k for k = 1..5, sum_j a_ij c_j^(k-1) = c_i^k / k for k = 1..3; b is the
+ * last row of A and c_3 = 1 (stiffly accurate). */
+static void radau_tableau_has_order_5(void **state)
+{
+    (void)state;
+    double a[3][3], c[3];
+    lw_transient_tableau(a, c);
+    assert_close(c[2], 1.0, 0);
+    for (int k = 1; k <= 5; k++) {
+        double s = 0;
+        for (int i = 0; i < 3; i++)
+            s += a[2][i] * pow(c[i], k - 1);
+        assert_close(s, 1.0 / k, 1e-14);
+    }
+    for (int i = 0; i < 3; i++)
+        for (int k = 1; k <= 3; k++) {
+            double s = 0;
+            for (int j = 0; j < 3; j++)
+                s += a[i][j] * pow(c[j], k - 1);
+            assert_close(s, pow(c[i], k) / k, 1e-13);
+        }
+}
+
+/* Every bundled profile and mode: the run in time, forced on lights whose
+ * heat path has no capacity (so the depth quadrature also applies), agrees
+ * with the depth quadrature to 1e-9. */
+static void time_domain_agrees_with_the_depth_quadrature(void **state)
+{
+    (void)state;
+    glob_t g;
+    assert_int_equal(glob(LW_SOURCE_ROOT "/profiles/*.ini", 0, NULL, &g), 0);
+    lw_search s = bundled_cells();
+    int runs = 0;
+    for (size_t f = 0; f < g.gl_pathc; f++) {
+        lw_profile p;
+        lw_error e;
+        lw_error_clear(&e);
+        assert_int_equal(lw_profile_load(g.gl_pathv[f], &s, &p, &e), LW_OK);
+        size_t modes = lw_profile_mode_count(&p);
+        for (size_t m = 0; m <= modes; m++) {
+            lw_profile_variant v = {.mode = m < modes ? lw_profile_mode_name(&p, m) : NULL};
+            lw_profile q;
+            assert_int_equal(lw_profile_derive(&p, &v, "--mode", &q, &e), LW_OK);
+            lw_run_options o = lw_run_options_default();
+            lw_result a, b;
+            assert_int_equal(lw_run(&q.light, &o, &a, &e), LW_OK);
+            o.time_domain = true;
+            if (lw_run(&q.light, &o, &b, &e) != LW_OK)
+                fail_msg("%s %s: %s", g.gl_pathv[f], v.mode ? v.mode : "", e.msg);
+            assert_int_equal(a.end_reason, b.end_reason);
+            assert_close(b.runtime_h, a.runtime_h, 1e-9);
+            assert_close(b.lumen_hours, a.lumen_hours, 1e-9);
+            assert_close(b.flux_30s_lm, a.flux_30s_lm, 1e-9);
+            assert_close(b.energy_drawn_wh, a.energy_drawn_wh, 1e-9);
+            assert_close(b.energy_led_wh, a.energy_led_wh, 1e-9);
+            if (isfinite(a.time_to_half_h))
+                assert_close(b.time_to_half_h, a.time_to_half_h, 1e-9);
+            if (isfinite(a.regulated_h) && a.regulated_h > 0)
+                assert_close(b.regulated_h, a.regulated_h, 1e-9);
+            runs++;
+            lw_run_result_clear(&a);
+            lw_run_result_clear(&b);
+            lw_profile_clear(&q);
+        }
+        lw_profile_clear(&p);
+    }
+    globfree(&g);
+    assert_true(runs >= 10);
+}
+
+/* ---- the independent reference: the model in time, written here ---- */
+
+typedef struct ref {
+    lw_light *l;
+    double i;    /* last current solved */
+    double tb;   /* board temperature for the junction's fixed point */
+    double d;
+} ref;
+
+static double interp(const lw_interp *t, double x)
+{
+    if (x <= t->x[0])
+        return t->y[0];
+    for (size_t i = 0; i + 1 < t->n; i++)
+        if (x <= t->x[i + 1])
+            return t->y[i] + (x - t->x[i]) / (t->x[i + 1] - t->x[i]) * (t->y[i + 1] - t->y[i]);
+    return t->y[t->n - 1];
+}
+
+struct loop {
+    double e, r, a, is, rs;
+};
+
+static double loop_residual(double i, void *p)
+{
+    const struct loop *q = p;
+    return q->e - i * q->r - q->a * log1p(i / q->is) - q->rs * i;
+}
+
+/* The per-string current at depth d and junction temperature tj
+ * (Kirchhoff's loop with each LED's voltage shifted by alpha (tj - tref),
+ * GSL Brent); *v the LED voltage, *r_pack the pack's resistance. */
+static double current_at(const lw_light *l, double d, double tj, double *v, double *r_pack)
+{
+    const lw_led *led = &l->led;
+    double ocv = interp(l->pack.cell.ocv, d), rc = interp(l->pack.cell.res, d);
+    double e = l->pack.series * ocv;
+    *r_pack = l->pack.series * rc / l->pack.parallel;
+    double r = l->drive.resistor_ohm + led->strings * *r_pack;
+    struct loop q = {e - led->count * led->tc_forward_v_k * (tj - led->junction_c), r,
+                     led->count * led->ideality * lw_led_thermal_voltage(led->junction_c),
+                     led->saturation_a, led->count * led->series_ohm};
+    double i = gsl_brent(loop_residual, &q, 0, e / r, 0, 1e-15);
+    *v = (e - i * r) / led->count;
+    return i;
+}
+
+/* g(tj) = T_b + R_jb q(tj) - tj, the board a state (it has a capacity). */
+static double tj_residual(double tj, void *p)
+{
+    ref *q = p;
+    double v, rp;
+    double i = current_at(q->l, q->d, tj, &v, &rp);
+    q->i = i;
+    return q->tb + q->l->thermal.r_jb_k_w * q->l->led.heat_fraction * v * i - tj;
+}
+
+/* The model's rates at state y = (d, T_b, T_h, lm s, J into LEDs, J drawn). */
+static int rates(double t, const double y[], double dy[], void *params)
+{
+    (void)t;
+    lw_light *l = params;
+    const lw_led *led = &l->led;
+    const lw_thermal *th = &l->thermal;
+    ref q = {l, 0, y[1], y[0]};
+    double tj = gsl_brent(tj_residual, &q, y[1], y[1] + 300, 1e-13, 0);
+    double v, rp;
+    double i = current_at(l, y[0], tj, &v, &rp);
+    double m = led->strings, n = led->count;
+    double ip = m * i, ic = ip / l->pack.parallel;
+    const lw_cell *c = &l->pack.cell;
+    double cap = fmin(c->max_capacity_ah, c->capacity_ah * pow(c->rated_a / ic, c->peukert - 1));
+    double p_led = m * n * v * i, p_res = m * i * i * l->drive.resistor_ohm, p_int = ip * ip * rp;
+    double q_led = led->heat_fraction * p_led, q_other = p_res + p_int;
+    double flux = m * n * led->flux_lm * pow(i / led->flux_current_a, led->flux_exponent) *
+                  fmax(0.0, 1.0 + led->tc_flux_per_k * (tj - led->junction_c));
+    dy[0] = ic / cap / 3600.0;
+    dy[1] = (q_led - (y[1] - y[2]) / th->r_bb_k_w) / th->c_b_j_k;
+    dy[2] = ((y[1] - y[2]) / th->r_bb_k_w + q_other - (y[2] - l->pack.ambient_c) / th->r_ha_k_w) /
+            th->c_h_j_k;
+    dy[3] = flux;
+    dy[4] = p_led;
+    dy[5] = l->pack.series * interp(c->ocv, y[0]) * ip;
+    return GSL_SUCCESS;
+}
+
+static double flux_of(lw_light *l, const double y[])
+{
+    double dy[6];
+    rates(0, y, dy, l);
+    return dy[3];
+}
+
+/* Integrate y from t0 to t1 (rk8pd, 1e-12 relative). */
+static void advance(lw_light *l, double t0, double t1, double y[6])
+{
+    gsl_odeiv2_system sys = {rates, NULL, 6, l};
+    gsl_odeiv2_driver *d =
+        gsl_odeiv2_driver_alloc_y_new(&sys, gsl_odeiv2_step_rk8pd, 1.0, 1e-14, 1e-12);
+    double t = t0;
+    assert_int_equal(gsl_odeiv2_driver_apply(d, &t, t1, y), GSL_SUCCESS);
+    gsl_odeiv2_driver_free(d);
+}
+
+/* The first time after t0 at which flux falls to target: march in steps of
+ * dt, then bisect from the last state above it to 1e-9 s. */
+static double time_of_flux(lw_light *l, double t0, double y0[6], double target, double dt,
+                           double y_at[6])
+{
+    double t = t0, y[6];
+    memcpy(y, y0, sizeof y);
+    for (;;) {
+        double y1[6];
+        memcpy(y1, y, sizeof y1);
+        advance(l, t, t + dt, y1);
+        if (flux_of(l, y1) <= target)
+            break;
+        t += dt;
+        memcpy(y, y1, sizeof y);
+    }
+    double a = 0, b = dt;
+    while (b - a > 1e-9) {
+        double mid = 0.5 * (a + b), ym[6];
+        memcpy(ym, y, sizeof ym);
+        advance(l, t, t + mid, ym);
+        if (flux_of(l, ym) > target)
+            a = mid;
+        else
+            b = mid;
+    }
+    memcpy(y_at, y, 6 * sizeof *y_at);
+    advance(l, t, t + b, y_at);
+    return t + b;
+}
+
+/* The demo light (Shockley LEDs, resistor, three alkaline-like cells) with
+ * a heat path holding both heat capacities: runtime to the relative
+ * cutoff, lumen-hours, time to 50 %, the 30-s output and the energies
+ * within 1e-6 of the GSL solution. */
+static void heated_light_in_time_against_gsl(void **state)
+{
+    (void)state;
+    gsl_set_error_handler_off();
+    lw_light l;
+    base_light(&l);
+    sloping_cell(&l);
+    l.pack.series = 3;
+    l.led.strings = 2;
+    l.led.model = LW_LED_SHOCKLEY;
+    l.led.ideality = 3.0, l.led.saturation_a = 4.6e-18, l.led.series_ohm = 1.5;
+    l.led.junction_c = 25, l.led.flux_lm = 22, l.led.flux_current_a = 0.06;
+    l.led.flux_exponent = 0.9;
+    l.led.tc_forward_v_k = -2e-3, l.led.tc_flux_per_k = -0.3e-2, l.led.heat_fraction = 0.65;
+    l.drive.resistor_ohm = 22;
+    l.cutoff.cell_v = 0.5; /* the relative cutoff ends the run */
+    l.thermal = (lw_thermal){.enabled = true, .r_jb_k_w = 40, .r_bb_k_w = 15, .r_ha_k_w = 60,
+                             .c_b_j_k = 3, .c_h_j_k = 40, .losses_in_body = true,
+                             .max_touch_c = 48};
+    lw_light_update_factors(&l, NULL);
+    lw_result r = run_ok(&l, false);
+    /* the reference */
+    double y[6] = {0, 20, 20, 0, 0, 0};
+    advance(&l, 0, 30, y);
+    double flux_ref = flux_of(&l, y);
+    double y_half[6], y_end[6];
+    double t_half = time_of_flux(&l, 30, y, 0.5 * flux_ref, 1800, y_half);
+    double t_end = time_of_flux(&l, t_half, y_half, 0.10 * flux_ref, 1800, y_end);
+    assert_int_equal(r.end_reason, LW_END_RELATIVE);
+    assert_close(r.flux_30s_lm, flux_ref, 1e-6);
+    assert_close(r.time_to_half_h, t_half / 3600, 1e-6);
+    assert_close(r.runtime_h, t_end / 3600, 1e-6);
+    assert_close(r.end_depth, y_end[0], 1e-6);
+    assert_close(r.lumen_hours, y_end[3] / 3600, 1e-6);
+    assert_close(r.energy_led_wh, y_end[4] / 3600, 1e-6);
+    assert_close(r.energy_drawn_wh, y_end[5] / 3600, 1e-6);
+    /* it heated and cooled: the body's peak is inside the run */
+    assert_true(r.peak_body_c > l.pack.ambient_c + 3);
+    assert_true(r.final.temps.body_c < r.peak_body_c);
+    /* energy conservation of the ledger */
+    assert_close(r.energy_drawn_wh,
+                 r.energy_led_wh + r.energy_resistor_wh + r.energy_internal_wh, 1e-9);
+    lw_light_clear(&l);
+}
+
+/* The trace of a run in time: rows from switch-on to the end, times
+ * increasing, the heat path's temperatures moving. */
+static void trace_of_a_run_in_time(void **state)
+{
+    (void)state;
+    lw_profile p = bundled_profile("headlamp-18650");
+    lw_error e;
+    lw_error_clear(&e);
+    p.light.thermal.c_b_j_k = 4;
+    p.light.thermal.c_h_j_k = 60;
+    lw_run_options o = lw_run_options_default();
+    o.want_trace = true;
+    lw_result r;
+    assert_int_equal(lw_run(&p.light, &o, &r, &e), LW_OK);
+    assert_true(r.n_states >= LW_TRANSIENT_STEPS_MIN / 2);
+    lw_trace tr;
+    assert_int_equal(lw_trace_build(&p.light, &r, LW_TRACE_ROWS_MIN, &tr, &e), LW_OK);
+    assert_true(tr.n >= LW_TRACE_ROWS_MIN);
+    assert_near(tr.rows[0].t_h, 0, 0);
+    assert_close(tr.rows[tr.n - 1].t_h, r.runtime_h, 0);
+    for (size_t i = 1; i < tr.n; i++)
+        assert_true(tr.rows[i].t_h >= tr.rows[i - 1].t_h);
+    assert_near(tr.rows[0].pt.temps.body_c, p.light.pack.ambient_c, 1e-12);
+    assert_true(r.peak_body_c > p.light.pack.ambient_c + 5);
+    lw_trace_clear(&tr);
+    lw_run_result_clear(&r);
+    lw_profile_clear(&p);
+}
+
+int main(void)
+{
+    const struct CMUnitTest tests[] = {
+        cmocka_unit_test(radau_tableau_has_order_5),
+        cmocka_unit_test(time_domain_agrees_with_the_depth_quadrature),
+        cmocka_unit_test(heated_light_in_time_against_gsl),
+        cmocka_unit_test(trace_of_a_run_in_time),
+    };
+    return cmocka_run_group_tests(tests, NULL, NULL);
+}
