@@ -165,6 +165,13 @@ static void describe(const lw_light *l, int i)
             l->drive.dropout_v, l->drive.efficiency_pct, l->drive.quiescent_a,
             l->drive.min_input_v, l->drive.fallback_a, l->drive.duty_pct, l->cutoff.relative_pct,
             l->cutoff.flux_lm);
+    if (l->thermal.enabled || l->led.tc_forward_v_k != 0.0)
+        fprintf(stderr, "  heat: ambient %g C, tc %g mV/K %g %%/K, heat %g %%; R %g %g %g K/W, C %g "
+                        "%g J/K%s\n",
+                l->pack.ambient_c, 1e3 * l->led.tc_forward_v_k, 1e2 * l->led.tc_flux_per_k,
+                1e2 * l->led.heat_fraction, l->thermal.r_jb_k_w, l->thermal.r_bb_k_w,
+                l->thermal.r_ha_k_w, l->thermal.c_b_j_k, l->thermal.c_h_j_k,
+                l->thermal.enabled ? "" : " (no network)");
 }
 
 static void check_result(const lw_light *l, const lw_result *r, int i)
@@ -236,6 +243,41 @@ static void random_lights_end_with_an_answer(void **state)
     /* runaway needs a stiff loop and a poor heat path: rare among these */
     fprintf(stderr, "%d of 20000 random lights in thermal runaway, %d dark\n", runaway, dark);
     assert_true(runaway < 1000);
+}
+
+/* Random lights whose heat path has heat capacities, run in time: each
+ * ends with an answer (or is refused as thermal runaway), its figures are
+ * finite and its energy ledger balances to 1e-9 (conservation of energy). */
+static void random_lights_in_time_end_with_an_answer(void **state)
+{
+    (void)state;
+    int failed = 0, runaway = 0;
+    for (int i = 0; i < 300; i++) {
+        lw_light l;
+        random_light(&l);
+        l.thermal = (lw_thermal){.enabled = true, .r_jb_k_w = log_between(0.5, 80.0),
+                                 .r_bb_k_w = uni() < 0.2 ? 0.0 : log_between(0.1, 30.0),
+                                 .r_ha_k_w = log_between(1.0, 150.0),
+                                 .c_b_j_k = uni() < 0.3 ? 0.0 : log_between(0.1, 50.0),
+                                 .c_h_j_k = log_between(1.0, 2000.0),
+                                 .losses_in_body = uni() < 0.7, .max_touch_c = 48};
+        lw_result r;
+        lw_error e;
+        lw_status st = run_light(&l, &r, &e);
+        if (st == LW_EINPUT && strstr(e.msg, "thermal runaway")) {
+            runaway++;
+        } else if (st != LW_OK) {
+            failed++;
+            describe(&l, i);
+            fprintf(stderr, "  -> %s\n", e.msg);
+        } else {
+            check_result(&l, &r, i);
+        }
+        lw_run_result_clear(&r);
+        lw_light_clear(&l);
+    }
+    assert_int_equal(failed, 0);
+    assert_true(runaway < 60);
 }
 
 /* Ended at the cells' end point or their full depth (not by brightness). */
@@ -332,6 +374,7 @@ int main(void)
     const struct CMUnitTest tests[] = {
         cmocka_unit_test(random_lights_end_with_an_answer),
         cmocka_unit_test(results_move_the_way_physics_says),
+        cmocka_unit_test(random_lights_in_time_end_with_an_answer),
     };
     return cmocka_run_group_tests(tests, NULL, NULL);
 }

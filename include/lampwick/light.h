@@ -137,6 +137,10 @@ LW_MUST_CHECK lw_status lw_light_point_at(const lw_light *light, double depth, d
  * the map's slope is a few per cent for real LEDs, so it converges in 3 to 6
  * steps, and a slope near 1 means runaway. */
 #define LW_THERMAL_ITER_MAX 60
+/* The junction temperature is solved to this share of its absolute value
+ * (a few hundred ulps), so that the depth quadrature's integrands carry no
+ * noise from it. */
+#define LW_THERMAL_TOL 1e-14
 /* A junction this far above ambient has no stable operating point worth
  * the name: the light is in thermal runaway, or its heat path is hopeless
  * for its power (LW_EINPUT, naming the keys); no LED survives it. */

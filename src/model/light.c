@@ -185,10 +185,14 @@ lw_status lw_light_point_state(const lw_light *l, double depth, double ocv_v, do
     }
     lw_temps s = state ? *state : (lw_temps){ta, ta, ta};
     lw_light w = *l; /* shallow: tables borrowed, never freed here */
-    /* g(T) = F(T) - T, F the junction temperature the point at T gives; the
-     * heat is never negative, so g >= 0 at the coldest node: a lower bracket */
-    double lo = fmin(ta, fmin(s.board_c, s.body_c)), hi = INFINITY;
-    double x = lo, x_prev = NAN, g_prev = NAN;
+    /* g(T) = F(T) - T, F the junction temperature the point at T gives.  The
+     * heat is never negative, so g >= 0 at the coldest node: the lower end
+     * of a bracket.  Upwards by fixed-point and secant steps (doubling when
+     * they stall) until g < 0 closes the bracket, then the Illinois variant
+     * of regula falsi inside it (Dowell and Jarratt, BIT 11, 1971). */
+    double a = fmin(ta, fmin(s.board_c, s.body_c)), ga = NAN, b = NAN, gb = NAN;
+    double x = a;
+    int side = 0;
     lw_temps t;
     for (int it = 0; it < LW_THERMAL_ITER_MAX; it++) {
         w.led.t_junction_c = x;
@@ -197,23 +201,55 @@ lw_status lw_light_point_state(const lw_light *l, double depth, double ocv_v, do
             return st;
         point_temps(l, pt, &s, &t);
         double g = t.junction_c - x;
-        if (fabs(g) <= 1e-10 * (1.0 + fabs(x))) {
+        /* converged: the map returns x to a few hundred ulps of the absolute
+         * temperature, or the bracket pins it that closely (a kink of the
+         * drive where the map jumps) - so the quadrature sees no noise */
+        double tol = LW_THERMAL_TOL * (273.15 + fabs(x));
+        if (fabs(g) <= tol || (isfinite(b) && b - a <= tol)) {
             pt->temps = t;
             pt->temps.junction_c = x; /* the temperature the point was solved at */
             return LW_OK;
         }
-        if (g > 0.0)
-            lo = fmax(lo, x);
-        else
-            hi = fmin(hi, x);
-        double next = t.junction_c; /* plain fixed-point step */
-        if (isfinite(x_prev) && g != g_prev)
-            next = x - g * (x - x_prev) / (g - g_prev); /* secant */
-        if (!(next > lo && next < hi))
-            next = isfinite(hi) ? 0.5 * (lo + hi) : fmax(t.junction_c, lo + 1.0);
+        double next;
+        if (isnan(ga) || (g > 0.0 && isnan(b))) {
+            /* still below the root: climb */
+            double xa = a, gx = ga;
+            a = x, ga = g;
+            next = x + g; /* the fixed-point step */
+            if (!isnan(gx) && x > xa) {
+                /* towards the root by the secant when g falls, never further
+                 * than a stride of twice the last step; striding out when g
+                 * does not fall (the map's slope is 1 or more there) */
+                double stride = x + fmax(g, 2.0 * (x - xa));
+                double secant = gx > g ? x - g * (x - xa) / (g - gx) : stride;
+                next = fmax(next, fmin(secant, stride));
+            }
+        } else {
+            if (g > 0.0) {
+                a = x, ga = g;
+                if (side == -1)
+                    gb *= 0.5;
+                side = -1;
+            } else {
+                if (isnan(b))
+                    side = 0;
+                else if (side == 1)
+                    ga *= 0.5;
+                b = x, gb = g;
+                if (side != 0 || true)
+                    side = 1;
+            }
+            next = (ga * b - gb * a) / (ga - gb);
+            if (!(next > a && next < b))
+                next = 0.5 * (a + b);
+        }
         if (next > ta + LW_THERMAL_RUNAWAY_K)
             break;
-        x_prev = x, g_prev = g, x = next;
+        x = next;
+        if (it == LW_THERMAL_ITER_MAX - 1)
+            return lw_error_set(err, LW_ENUMERIC, NULL, 0,
+                                "the LED temperature did not converge in %d steps at depth %.4g",
+                                LW_THERMAL_ITER_MAX, depth);
     }
     return lw_error_set(err, LW_EINPUT, NULL, 0,
                         "no stable LED temperature within %g K of ambient at depth %.4g: the "

@@ -267,9 +267,16 @@ static lw_status doubled(tr *e, const double x0[NX], const double q0[NQ], double
         out->x[a] += est;
     }
     for (int k = 0; k < NQ; k++) {
-        double small = qm[k] + q2[k], est = (small - qb[k]) / DOUBLING_DIVISOR;
-        out->dq[k] = small + est;
-        double w = e->opt->rtol * fabs(q0[k] + out->dq[k]) + 1e-300;
+        double small = qm[k] + q2[k];
+        out->dq[k] = small + (small - qb[k]) / DOUBLING_DIVISOR;
+    }
+    /* the integrals against their totals: light against light, every energy
+     * against the energy drawn (of which each is a share, so that a share
+     * near zero - a driver's rounding-level loss - asks no more than that) */
+    for (int k = 0; k < NQ; k++) {
+        double est = (qm[k] + q2[k] - qb[k]) / DOUBLING_DIVISOR;
+        int ref_k = k == 0 ? 0 : NQ - 1;
+        double w = e->opt->rtol * fabs(q0[ref_k] + out->dq[ref_k]) + 1e-300;
         err = fmax(err, fabs(est) / w);
     }
     out->err = isfinite(err) ? err : INFINITY;
@@ -338,42 +345,75 @@ static bool fired(const run *r, int k, const lw_point *p, double d)
     return active(r, k) && event_g(r, k, &r->p, r->x[0]) > 0.0 && !(event_g(r, k, p, d) > 0.0);
 }
 
+/* An explicit Euler step of dt from step `from` (NULL: the accepted state):
+ * only ever taken over the last 1e-12 of a located event, where its error
+ * is far below the tolerance. */
+static lw_status euler(run *r, const step *from, double dt, step *out)
+{
+    double x[NX], dq[NQ] = {0}, f[NX] = {0}, g[NQ] = {0};
+    lw_point p;
+    memcpy(x, from ? from->x : r->x, sizeof x);
+    if (from)
+        memcpy(dq, from->dq, sizeof dq);
+    lw_status st = eval(&r->e, x, &p, f, g);
+    if (st != LW_OK)
+        return st;
+    for (int a = 0; a < NX; a++)
+        out->x[a] = x[a] + dt * f[a];
+    for (int k = 0; k < NQ; k++)
+        out->dq[k] = dq[k] + dt * g[k];
+    out->ok = true;
+    out->err = 0.0;
+    return eval(&r->e, out->x, &out->p, f, NULL);
+}
+
 /* The earliest time tau in (0, h] at which event k fires: Illinois regula
  * falsi on the step size, every trial a doubled step from the accepted
- * state.  *before is the step just short of it (the event's function still
- * positive), *after the step at or past it. */
+ * state; a trial whose Newton iteration fails is taken to lie past the
+ * event (it straddles the switch that the event marks).  *after (given:
+ * a step to h whose point has fired) becomes the step at the located time,
+ * *before the step just short of it (before->ok false: none, the event is
+ * at the accepted state).  The located step sizes travel in ->err. */
 static lw_status locate(run *r, int k, double h, step *before, step *after)
 {
     double a = 0.0, b = h, ga = event_g(r, k, &r->p, r->x[0]);
     double gb = event_g(r, k, &after->p, after->x[0]);
     before->ok = false;
+    bool after_valid = after->ok;
     int side = 0;
     for (int it = 0; it < EVENT_ITER_MAX && b - a > EVENT_RTOL * (r->t + b); it++) {
         double tau = (ga * b - gb * a) / (ga - gb);
-        if (!(tau > a && tau < b))
+        if (!(tau > a && tau < b) || !isfinite(tau))
             tau = 0.5 * (a + b);
         step s;
         lw_status st = doubled(&r->e, r->x, r->q, tau, &s);
         if (st != LW_OK)
             return st;
-        if (!s.ok)
-            return lw_error_set(r->e.err, LW_ENUMERIC, NULL, 0,
-                                "the run in time could not step to an event near %.6g h",
-                                (r->t + tau) / 3600.0);
-        double g = event_g(r, k, &s.p, s.x[0]);
+        double g = s.ok ? event_g(r, k, &s.p, s.x[0]) : -INFINITY;
         if (g > 0.0) {
             a = tau, ga = g, *before = s;
             if (side == -1)
                 gb *= 0.5; /* Illinois: the stale end's value halved */
             side = -1;
         } else {
-            b = tau, gb = g, *after = s;
+            b = tau;
+            if (s.ok)
+                gb = g, *after = s;
+            else
+                gb *= 0.5;
+            after_valid = s.ok;
             if (side == 1)
                 ga *= 0.5;
             side = 1;
         }
     }
-    after->err = b; /* the located step size travels in err */
+    if (!after_valid) {
+        /* the far side of the switch, from the near side */
+        lw_status st = euler(r, before->ok ? before : NULL, b - a, after);
+        if (st != LW_OK)
+            return st;
+    }
+    after->err = b;
     before->err = a;
     return LW_OK;
 }
@@ -462,8 +502,11 @@ static lw_status act(run *r, int k, const step *before)
         finish(r, why[k], &r->p);
         return LW_OK;
     }
-    /* the regulator's state changed: a kink, or a converter's dropout */
-    if (r->p.regime != LW_REGIME_DROPOUT) {
+    /* the regulator's state changed: a kink, or a converter's dropout (its
+     * margin reaching zero is the dropout: it cannot go on) */
+    bool dropout = r->p.regime == LW_REGIME_DROPOUT ||
+                   (r->e.l->drive.type == LW_DRIVE_CONVERTER && !(r->p.regulation_margin > 0.0));
+    if (!dropout) {
         r->regime_pos = r->p.regulation_margin > 0.0;
         return LW_OK;
     }
@@ -474,7 +517,7 @@ static lw_status act(run *r, int k, const step *before)
         if (st != LW_OK)
             return st;
         r->regime_pos = r->p.regulation_margin > 0.0;
-        if (r->p.regime != LW_REGIME_DROPOUT)
+        if (r->p.regime != LW_REGIME_DROPOUT && r->p.regulation_margin > 0.0)
             return LW_OK;
     }
     finish(r, LW_END_DRIVER_DROPOUT, before->ok ? &before->p : &r->p);
@@ -497,6 +540,32 @@ static lw_status integrate(run *r, bool stop_at_30s)
         lw_status st = doubled(&r->e, r->x, r->q, h, &s);
         if (st != LW_OK)
             return st;
+        /* a step across a switch of the regulator (regulation to saturation,
+         * a converter's dropout) fails its error test however short it is:
+         * find the switch and step to it */
+        bool regime_jump = s.ok && s.err > 1.0 && fired(r, EV_REGIME, &s.p, s.x[0]);
+        step probe = s;
+        if (!s.ok && active(r, EV_REGIME)) {
+            /* Newton failed: does the regulator switch within the step? */
+            st = euler(r, NULL, h, &probe);
+            if (st != LW_OK)
+                return st;
+            regime_jump = fired(r, EV_REGIME, &probe.p, probe.x[0]);
+        }
+        if (regime_jump) {
+            step b = {0}, a = probe;
+            st = locate(r, EV_REGIME, h, &b, &a);
+            if (st != LW_OK)
+                return st;
+            double h_event = a.err;
+            st = accept(r, &a, h_event);
+            if (st == LW_OK)
+                st = act(r, EV_REGIME, &b);
+            if (st != LW_OK)
+                return st;
+            h = fmin(h_max, fmax(h_event, 1e-6 * (r->t + 1.0)));
+            continue;
+        }
         if (!s.ok || s.err > 1.0) {
             double f = s.ok ? fmax(0.2, 0.9 * pow(s.err, -1.0 / 6.0)) : 0.25;
             h *= f;
@@ -625,6 +694,11 @@ lw_status lw_transient_run(const lw_light *light, const lw_run_options *opt, lw_
         st = integrate(&r, false);
     if (st != LW_OK)
         return st;
+    if (!r.ref_known && !lw_run_end_is_dark(res->end_reason)) {
+        /* ended before 30 s: the output at switch-on stands for the reference */
+        res->flux_30s_lm = res->flux_ref_lm = res->initial.flux_lm;
+        res->junction_30s_c = res->initial.temps.junction_c;
+    }
     res->runtime_h = r.t / 3600.0;
     res->end_depth = res->final.depth;
     res->lumen_hours = r.q[0] / 3600.0;
