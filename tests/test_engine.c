@@ -12,6 +12,7 @@
 #include <gsl/gsl_errno.h>
 #include <gsl/gsl_integration.h>
 #include "gslref.h"
+#include "refmodel.h"
 #include <lampwick/lampwick.h>
 
 #include "lights.h"
@@ -112,37 +113,17 @@ typedef struct ref {
     double d0;       /* for the 30-s search */
 } ref;
 
-static double interp(const lw_interp *t, double x)
-{
-    if (x <= t->x[0])
-        return t->y[0];
-    for (size_t i = 0; i + 1 < t->n; i++)
-        if (x <= t->x[i + 1])
-            return t->y[i] + (x - t->x[i]) / (t->x[i + 1] - t->x[i]) * (t->y[i + 1] - t->y[i]);
-    return t->y[t->n - 1];
-}
-
-struct loop {
-    double e, r, a, is, rs;
-};
-
-static double loop_residual(double i, void *p)
-{
-    const struct loop *q = p;
-    return q->e - i * q->r - q->a * log1p(i / q->is) - q->rs * i;
-}
-
 /* Per-string current from Kirchhoff's law with GSL's Brent solver. */
 static double ref_current(const lw_light *l, double d)
 {
     const lw_led *led = &l->led;
-    double ocv = interp(l->pack.cell.ocv, d), rc = interp(l->pack.cell.res, d);
+    double ocv = ref_interp(l->pack.cell.ocv, d), rc = ref_interp(l->pack.cell.res, d);
     double e = l->pack.series * ocv;
     double r = l->drive.resistor_ohm +
                l->pack.series * led->strings * rc / l->pack.parallel;
-    struct loop q = {e, r, led->count * led->ideality * lw_led_thermal_voltage(led->junction_c),
+    ref_loop q = {e, r, led->count * led->ideality * lw_led_thermal_voltage(led->junction_c),
                      led->saturation_a, led->count * led->series_ohm};
-    return gsl_brent(loop_residual, &q, 0, e / r, 0, 1e-15);
+    return gsl_brent(ref_loop_residual, &q, 0, e / r, 0, 1e-15);
 }
 
 static double ref_flux(const lw_light *l, double i)
@@ -254,14 +235,14 @@ static double tj_residual(double tj, void *p)
     const lw_light *l = q->l;
     const lw_led *led = &l->led;
     const lw_thermal *th = &l->thermal;
-    double ocv = interp(l->pack.cell.ocv, q->d), rc = interp(l->pack.cell.res, q->d);
+    double ocv = ref_interp(l->pack.cell.ocv, q->d), rc = ref_interp(l->pack.cell.res, q->d);
     double e = l->pack.series * ocv, r_pack = l->pack.series * rc / l->pack.parallel;
     double r = l->drive.resistor_ohm + led->strings * r_pack;
     double shift = led->tc_forward_v_k * (tj - led->junction_c);
-    struct loop lp = {e - led->count * shift, r,
+    ref_loop lp = {e - led->count * shift, r,
                       led->count * led->ideality * lw_led_thermal_voltage(led->junction_c),
                       led->saturation_a, led->count * led->series_ohm};
-    double i = gsl_brent(loop_residual, &lp, 0, e / r, 0, 1e-15);
+    double i = gsl_brent(ref_loop_residual, &lp, 0, e / r, 0, 1e-15);
     q->i = i;
     double v = (e - i * r) / led->count; /* per LED, Kirchhoff */
     double q_led_one = led->heat_fraction * v * i;
@@ -408,7 +389,7 @@ static double cellv_minus_cutoff(double d, void *p)
     const lw_light *l = q->l;
     double i = ref_current(l, d);
     double ic = l->led.strings * i / l->pack.parallel;
-    return interp(l->pack.cell.ocv, d) - ic * interp(l->pack.cell.res, d) - q->target;
+    return ref_interp(l->pack.cell.ocv, d) - ic * ref_interp(l->pack.cell.res, d) - q->target;
 }
 
 static void cell_voltage_end_against_gsl(void **state)

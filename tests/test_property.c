@@ -100,6 +100,19 @@ static void random_led(lw_led *l, double pack_v)
     l->forward_spread_pct = between(0, 10);
 }
 
+/* A random heat path, with heat capacities or at steady state. */
+static void random_network(lw_thermal *th, bool capacities)
+{
+    *th = (lw_thermal){.enabled = true, .r_jb_k_w = log_between(0.5, 80.0),
+                       .r_bb_k_w = uni() < 0.2 ? 0.0 : log_between(0.1, 30.0),
+                       .r_ha_k_w = log_between(1.0, 150.0), .max_touch_c = 48};
+    if (capacities) {
+        th->c_b_j_k = uni() < 0.3 ? 0.0 : log_between(0.1, 50.0);
+        th->c_h_j_k = log_between(1.0, 2000.0);
+    }
+    th->losses_in_body = uni() < 0.7;
+}
+
 static void random_light(lw_light *l)
 {
     memset(l, 0, sizeof *l);
@@ -140,10 +153,7 @@ static void random_light(lw_light *l)
         l->led.heat_fraction = between(0.4, 0.9);
     }
     if (uni() < 0.3)
-        l->thermal = (lw_thermal){.enabled = true, .r_jb_k_w = log_between(0.5, 80.0),
-                                  .r_bb_k_w = uni() < 0.2 ? 0.0 : log_between(0.1, 30.0),
-                                  .r_ha_k_w = log_between(1.0, 150.0),
-                                  .losses_in_body = uni() < 0.7, .max_touch_c = 48};
+        random_network(&l->thermal, false);
     lw_light_update_factors(l, NULL);
 }
 
@@ -214,6 +224,27 @@ static lw_status run_to_end_point(const lw_light *l, lw_result *r, lw_error *e)
     return lw_run(l, &o, r, e);
 }
 
+/* Run a random light and count its outcome: an answer (checked), a
+ * thermal runaway refused (a true answer: no stable operating point), or a
+ * failure (described). */
+static void run_and_check(const lw_light *l, int i, int *failed, int *runaway, int *dark)
+{
+    lw_result r;
+    lw_error e;
+    lw_status st = run_light(l, &r, &e);
+    if (st == LW_EINPUT && l->thermal.enabled && strstr(e.msg, "thermal runaway")) {
+        (*runaway)++;
+    } else if (st != LW_OK) {
+        (*failed)++;
+        describe(l, i);
+        fprintf(stderr, "  -> %s\n", e.msg);
+    } else {
+        check_result(l, &r, i);
+        *dark += lw_run_end_is_dark(r.end_reason);
+    }
+    lw_run_result_clear(&r);
+}
+
 /* Thousands of random lights: every one ends with an answer. */
 static void random_lights_end_with_an_answer(void **state)
 {
@@ -222,20 +253,7 @@ static void random_lights_end_with_an_answer(void **state)
     for (int i = 0; i < 20000; i++) {
         lw_light l;
         random_light(&l);
-        lw_result r;
-        lw_error e;
-        lw_status st = run_light(&l, &r, &e);
-        if (st == LW_EINPUT && l.thermal.enabled && strstr(e.msg, "thermal runaway")) {
-            runaway++; /* a true answer: no stable operating point */
-        } else if (st != LW_OK) {
-            failed++;
-            describe(&l, i);
-            fprintf(stderr, "  -> %s\n", e.msg);
-        } else {
-            check_result(&l, &r, i);
-            dark += lw_run_end_is_dark(r.end_reason);
-        }
-        lw_run_result_clear(&r);
+        run_and_check(&l, i, &failed, &runaway, &dark);
         lw_light_clear(&l);
     }
     assert_int_equal(failed, 0);
@@ -255,25 +273,9 @@ static void random_lights_in_time_end_with_an_answer(void **state)
     for (int i = 0; i < 300; i++) {
         lw_light l;
         random_light(&l);
-        l.thermal = (lw_thermal){.enabled = true, .r_jb_k_w = log_between(0.5, 80.0),
-                                 .r_bb_k_w = uni() < 0.2 ? 0.0 : log_between(0.1, 30.0),
-                                 .r_ha_k_w = log_between(1.0, 150.0),
-                                 .c_b_j_k = uni() < 0.3 ? 0.0 : log_between(0.1, 50.0),
-                                 .c_h_j_k = log_between(1.0, 2000.0),
-                                 .losses_in_body = uni() < 0.7, .max_touch_c = 48};
-        lw_result r;
-        lw_error e;
-        lw_status st = run_light(&l, &r, &e);
-        if (st == LW_EINPUT && strstr(e.msg, "thermal runaway")) {
-            runaway++;
-        } else if (st != LW_OK) {
-            failed++;
-            describe(&l, i);
-            fprintf(stderr, "  -> %s\n", e.msg);
-        } else {
-            check_result(&l, &r, i);
-        }
-        lw_run_result_clear(&r);
+        random_network(&l.thermal, true);
+        int dark = 0;
+        run_and_check(&l, i, &failed, &runaway, &dark);
         lw_light_clear(&l);
     }
     assert_int_equal(failed, 0);

@@ -12,6 +12,7 @@
 #include <gsl/gsl_odeiv2.h>
 #include "bundled.h"
 #include "gslref.h"
+#include "refmodel.h"
 #include "lights.h"
 
 /* The simplifying assumptions B(5) and C(3) of the 3-stage Radau IIA method
@@ -95,40 +96,20 @@ typedef struct ref {
     double d;
 } ref;
 
-static double interp(const lw_interp *t, double x)
-{
-    if (x <= t->x[0])
-        return t->y[0];
-    for (size_t i = 0; i + 1 < t->n; i++)
-        if (x <= t->x[i + 1])
-            return t->y[i] + (x - t->x[i]) / (t->x[i + 1] - t->x[i]) * (t->y[i + 1] - t->y[i]);
-    return t->y[t->n - 1];
-}
-
-struct loop {
-    double e, r, a, is, rs;
-};
-
-static double loop_residual(double i, void *p)
-{
-    const struct loop *q = p;
-    return q->e - i * q->r - q->a * log1p(i / q->is) - q->rs * i;
-}
-
 /* The per-string current at depth d and junction temperature tj
  * (Kirchhoff's loop with each LED's voltage shifted by alpha (tj - tref),
  * GSL Brent); *v the LED voltage, *r_pack the pack's resistance. */
 static double current_at(const lw_light *l, double d, double tj, double *v, double *r_pack)
 {
     const lw_led *led = &l->led;
-    double ocv = interp(l->pack.cell.ocv, d), rc = interp(l->pack.cell.res, d);
+    double ocv = ref_interp(l->pack.cell.ocv, d), rc = ref_interp(l->pack.cell.res, d);
     double e = l->pack.series * ocv;
     *r_pack = l->pack.series * rc / l->pack.parallel;
     double r = l->drive.resistor_ohm + led->strings * *r_pack;
-    struct loop q = {e - led->count * led->tc_forward_v_k * (tj - led->junction_c), r,
+    ref_loop q = {e - led->count * led->tc_forward_v_k * (tj - led->junction_c), r,
                      led->count * led->ideality * lw_led_thermal_voltage(led->junction_c),
                      led->saturation_a, led->count * led->series_ohm};
-    double i = gsl_brent(loop_residual, &q, 0, e / r, 0, 1e-15);
+    double i = gsl_brent(ref_loop_residual, &q, 0, e / r, 0, 1e-15);
     *v = (e - i * r) / led->count;
     return i;
 }
@@ -168,7 +149,7 @@ static int rates(double t, const double y[], double dy[], void *params)
             th->c_h_j_k;
     dy[3] = flux;
     dy[4] = p_led;
-    dy[5] = l->pack.series * interp(c->ocv, y[0]) * ip;
+    dy[5] = l->pack.series * ref_interp(c->ocv, y[0]) * ip;
     return GSL_SUCCESS;
 }
 

@@ -17,6 +17,28 @@ void lw_trace_clear(lw_trace *trace)
     trace->n = 0;
 }
 
+/* Hand the rows to the trace (or free them when st failed): the last row
+ * is the end of the run itself, and every row gets its share of the
+ * reference output. */
+static lw_status finish_rows(const lw_result *res, lw_trace_row *rows, size_t n, lw_status st,
+                             lw_trace *trace)
+{
+    if (st != LW_OK) {
+        free(rows);
+        return st;
+    }
+    if (n > 1) {
+        rows[n - 1].t_h = res->runtime_h;
+        rows[n - 1].pt = res->final;
+    }
+    for (size_t i = 0; i < n; i++)
+        rows[i].pct_of_ref =
+            res->flux_ref_lm > 0 ? 100.0 * rows[i].pt.flux_lm / res->flux_ref_lm : 0.0;
+    trace->rows = rows;
+    trace->n = n;
+    return LW_OK;
+}
+
 /* The point at a state of a run in time. */
 static lw_status state_point(const lw_light *l, const lw_state *s, lw_point *pt, lw_error *err)
 {
@@ -58,20 +80,7 @@ static lw_status trace_of_states(const lw_light *light, const lw_result *res, si
             n++;
         }
     }
-    if (st != LW_OK) {
-        free(rows);
-        return st;
-    }
-    if (n > 1) {
-        rows[n - 1].t_h = res->runtime_h;
-        rows[n - 1].pt = res->final;
-    }
-    for (size_t i = 0; i < n; i++)
-        rows[i].pct_of_ref =
-            res->flux_ref_lm > 0 ? 100.0 * rows[i].pt.flux_lm / res->flux_ref_lm : 0.0;
-    trace->rows = rows;
-    trace->n = n;
-    return LW_OK;
+    return finish_rows(res, rows, n, st, trace);
 }
 
 lw_status lw_trace_build(const lw_light *light, const lw_result *res, size_t min_rows,
@@ -133,19 +142,5 @@ lw_status lw_trace_build(const lw_light *light, const lw_result *res, size_t min
         }
     }
     free(k);
-    if (st != LW_OK) {
-        free(rows);
-        return st;
-    }
-    /* the last row is the end of the run itself */
-    if (n > 1) {
-        rows[n - 1].t_h = res->runtime_h;
-        rows[n - 1].pt = res->final;
-    }
-    for (size_t i = 0; i < n; i++)
-        rows[i].pct_of_ref =
-            res->flux_ref_lm > 0 ? 100.0 * rows[i].pt.flux_lm / res->flux_ref_lm : 0.0;
-    trace->rows = rows;
-    trace->n = n;
-    return LW_OK;
+    return finish_rows(res, rows, n, st, trace);
 }
