@@ -149,10 +149,11 @@ static double ref_integrand(double d, void *p)
     return q->what == 0 ? w : ref_flux(q->l, i) * w;
 }
 
-static double ref_integral(const lw_light *l, int what, double a, double b)
+/* The integral of an integrand over depth [a, b] by GSL's QAGP, with the
+ * cell curve's knots as break points (relative 1e-12, or 1e-11 when the
+ * integrand holds a nested root). */
+static double integral_over(gsl_function F, const lw_light *l, double a, double b, double rel)
 {
-    ref q = {l, 0, 0, what, 0};
-    gsl_function F = {ref_integrand, &q};
     const lw_interp *t = l->pack.cell.ocv;
     double pts[64];
     size_t np = 0;
@@ -163,10 +164,17 @@ static double ref_integral(const lw_light *l, int what, double a, double b)
     pts[np++] = b;
     gsl_integration_workspace *w = gsl_integration_workspace_alloc(2000);
     double result = 0, abserr = 0;
-    int st = gsl_integration_qagp(&F, pts, np, 0, 1e-12, 2000, w, &result, &abserr);
+    int st = gsl_integration_qagp(&F, pts, np, 0, rel, 2000, w, &result, &abserr);
     gsl_integration_workspace_free(w);
     assert_int_equal(st, GSL_SUCCESS);
     return result;
+}
+
+static double ref_integral(const lw_light *l, int what, double a, double b)
+{
+    ref q = {l, 0, 0, what, 0};
+    gsl_function F = {ref_integrand, &q};
+    return integral_over(F, l, a, b, 1e-12);
 }
 
 static double t_minus_30s(double d, void *p)
@@ -285,20 +293,7 @@ static double tref_integral(const lw_light *l, int what, double a, double b)
 {
     ref q = {l, 0, 0, what, 0};
     gsl_function F = {tref_integrand, &q};
-    gsl_integration_workspace *w = gsl_integration_workspace_alloc(2000);
-    const lw_interp *t = l->pack.cell.ocv;
-    double pts[64];
-    size_t np = 0;
-    pts[np++] = a;
-    for (size_t k = 0; k < t->n; k++)
-        if (t->x[k] > a && t->x[k] < b)
-            pts[np++] = t->x[k];
-    pts[np++] = b;
-    double result = 0, abserr = 0;
-    int st = gsl_integration_qagp(&F, pts, np, 0, 1e-11, 2000, w, &result, &abserr);
-    gsl_integration_workspace_free(w);
-    assert_int_equal(st, GSL_SUCCESS);
-    return result;
+    return integral_over(F, l, a, b, 1e-11);
 }
 
 static double tref_t_minus_30s(double d, void *p)
