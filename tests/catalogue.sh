@@ -203,6 +203,9 @@ case_ 2 "p.ini:34: \\[thermal\\] is missing the key 'junction_board_k_w'" p.ini 
 case_ 2 "p.ini:37: \\[thermal\\] losses_in_body = maybe: expected yes or no" p.ini 33 '33s/$/\n[thermal]\njunction_board_k_w = 8\nbody_ambient_k_w = 20\nlosses_in_body = maybe/' $RUN
 case_ 2 "p.ini:37: \\[thermal\\] body_j_k = -5: expected a number >= 0" p.ini 33 '33s/$/\n[thermal]\njunction_board_k_w = 8\nbody_ambient_k_w = 20\nbody_j_k = -5/' $RUN
 case_ 2 "p.ini:35: .*body_ambient_k_w = 0: expected a number > 0" p.ini 33 '33s/$/\n[thermal]\nbody_ambient_k_w = 0\njunction_board_k_w = 8/' $RUN
+case_ 2 "p.ini:38: \\[thermal\\] foldback needs .* 'foldback_to_c' is missing" p.ini 33 '33s/$/\n[thermal]\njunction_board_k_w = 8\nbody_ambient_k_w = 20\nbody_j_k = 50\nfoldback_from_c = 40\nfoldback_min_pct = 50/' $RUN
+case_ 2 "p.ini:39: \\[thermal\\] foldback_to_c = 30 must be above foldback_from_c = 40" p.ini 33 '33s/$/\n[thermal]\njunction_board_k_w = 8\nbody_ambient_k_w = 20\nbody_j_k = 50\nfoldback_from_c = 40\nfoldback_to_c = 30\nfoldback_min_pct = 50/' $RUN
+case_ 2 "p.ini:37: \\[thermal\\] foldback acts on the body's temperature" p.ini 33 '33s/$/\n[thermal]\njunction_board_k_w = 8\nbody_ambient_k_w = 20\nfoldback_from_c = 40\nfoldback_to_c = 50\nfoldback_min_pct = 50/' $RUN
 # modes
 case_ 2 "p.ini:35: unknown key 'resistr_ohm' in \\[drive\\]" p.ini 35 '35s/resistor_ohm/resistr_ohm/' $RUN
 case_ 2 "p.ini:35: .*expected section.key" p.ini 35 '35s/drive.resistor_ohm/resistor_ohm/' $RUN

@@ -90,6 +90,28 @@ static void rates_follow_the_first_order_closed_form(void **state)
     }
 }
 
+/* The foldback factor as docs/model.md defines it: 1 up to the first
+ * corner, the floor from the second on, linear between (the definition;
+ * no source needed). */
+static void foldback_factor_is_piecewise_linear(void **state)
+{
+    (void)state;
+    lw_thermal th = network(5, 2, 10, 1, 50);
+    assert_false(lw_thermal_has_foldback(&th)); /* zeroed: none */
+    assert_true(lw_thermal_foldback(&th, 500) == 1.0);
+    th.foldback_from_c = NAN, th.foldback_to_c = NAN;
+    assert_true(lw_thermal_foldback(&th, 500) == 1.0); /* none given in a profile */
+    th.foldback_from_c = 50, th.foldback_to_c = 60, th.foldback_min = 0.3;
+    assert_true(lw_thermal_foldback(&th, 20) == 1.0);
+    assert_true(lw_thermal_foldback(&th, 50) == 1.0);
+    assert_close(lw_thermal_foldback(&th, 52.5), 1.0 - 0.7 * 0.25, 1e-15);
+    assert_close(lw_thermal_foldback(&th, 55), 0.65, 1e-15);
+    assert_true(lw_thermal_foldback(&th, 60) == 0.3);
+    assert_true(lw_thermal_foldback(&th, 90) == 0.3);
+    th.enabled = false;
+    assert_true(lw_thermal_foldback(&th, 90) == 1.0);
+}
+
 /* A heated light's point: the junction temperature it reports is the one
  * its own heat gives (the fixed point, to 1e-9 K), and the point equals the
  * electrical point solved at that junction temperature. */
@@ -208,6 +230,7 @@ int main(void)
         cmocka_unit_test(steady_state_is_thermal_ohms_law),
         cmocka_unit_test(every_node_balances_its_heat),
         cmocka_unit_test(rates_follow_the_first_order_closed_form),
+        cmocka_unit_test(foldback_factor_is_piecewise_linear),
         cmocka_unit_test(junction_temperature_is_self_consistent),
         cmocka_unit_test(thermal_runaway_is_refused),
         cmocka_unit_test(thermal_section_in_profiles),

@@ -94,7 +94,20 @@ typedef struct ref {
     double i;    /* last current solved */
     double tb;   /* board temperature for the junction's fixed point */
     double d;
+    double duty; /* the foldback's factor on the duty */
 } ref;
+
+/* The foldback factor as docs/model.md defines it: 1 up to from, min from
+ * to on, linear between (written here, not the library's). */
+static double ref_foldback(const lw_thermal *th, double body_c)
+{
+    if (!isfinite(th->foldback_from_c) || body_c <= th->foldback_from_c)
+        return 1.0;
+    if (body_c >= th->foldback_to_c)
+        return th->foldback_min;
+    return 1.0 - (1.0 - th->foldback_min) * (body_c - th->foldback_from_c) /
+                     (th->foldback_to_c - th->foldback_from_c);
+}
 
 /* The per-string current at depth d and junction temperature tj
  * (Kirchhoff's loop with each LED's voltage shifted by alpha (tj - tref),
@@ -121,7 +134,7 @@ static double tj_residual(double tj, void *p)
     double v, rp;
     double i = current_at(q->l, q->d, tj, &v, &rp);
     q->i = i;
-    return q->tb + q->l->thermal.r_jb_k_w * q->l->led.heat_fraction * v * i - tj;
+    return q->tb + q->l->thermal.r_jb_k_w * q->l->led.heat_fraction * q->duty * v * i - tj;
 }
 
 /* The model's rates at state y = (d, T_b, T_h, lm s, J into LEDs, J drawn). */
@@ -131,17 +144,21 @@ static int rates(double t, const double y[], double dy[], void *params)
     lw_light *l = params;
     const lw_led *led = &l->led;
     const lw_thermal *th = &l->thermal;
-    ref q = {l, 0, y[1], y[0]};
+    /* on a resistor drive the foldback scales the duty: every average
+     * (current, powers, output) by D, the on-state point unchanged */
+    double duty = ref_foldback(th, y[2]);
+    ref q = {l, 0, y[1], y[0], duty};
     double tj = gsl_brent(tj_residual, &q, y[1], y[1] + 300, 1e-13, 0);
     double v, rp;
     double i = current_at(l, y[0], tj, &v, &rp);
     double m = led->strings, n = led->count;
-    double ip = m * i, ic = ip / l->pack.parallel;
+    double ip = m * i, ic = duty * ip / l->pack.parallel;
     const lw_cell *c = &l->pack.cell;
     double cap = fmin(c->max_capacity_ah, c->capacity_ah * pow(c->rated_a / ic, c->peukert - 1));
-    double p_led = m * n * v * i, p_res = m * i * i * l->drive.resistor_ohm, p_int = ip * ip * rp;
+    double p_led = duty * m * n * v * i, p_res = duty * m * i * i * l->drive.resistor_ohm;
+    double p_int = duty * ip * ip * rp;
     double q_led = led->heat_fraction * p_led, q_other = p_res + p_int;
-    double flux = m * n * led->flux_lm * pow(i / led->flux_current_a, led->flux_exponent) *
+    double flux = duty * m * n * led->flux_lm * pow(i / led->flux_current_a, led->flux_exponent) *
                   fmax(0.0, 1.0 + led->tc_flux_per_k * (tj - led->junction_c));
     dy[0] = ic / cap / 3600.0;
     dy[1] = (q_led - (y[1] - y[2]) / th->r_bb_k_w) / th->c_b_j_k;
@@ -149,7 +166,7 @@ static int rates(double t, const double y[], double dy[], void *params)
             th->c_h_j_k;
     dy[3] = flux;
     dy[4] = p_led;
-    dy[5] = l->pack.series * ref_interp(c->ocv, y[0]) * ip;
+    dy[5] = duty * l->pack.series * ref_interp(c->ocv, y[0]) * ip;
     return GSL_SUCCESS;
 }
 
@@ -205,50 +222,67 @@ static double time_of_flux(lw_light *l, double t0, double y0[6], double target, 
 /* The demo light (Shockley LEDs, resistor, three alkaline-like cells) with
  * a heat path holding both heat capacities: runtime to the relative
  * cutoff, lumen-hours, time to 50 %, the 30-s output and the energies
- * within 1e-6 of the GSL solution. */
+ * within 1e-6 of the GSL solution; and again with a thermal foldback on
+ * the body scaling the resistor drive's duty. */
 static void heated_light_in_time_against_gsl(void **state)
 {
     (void)state;
     gsl_set_error_handler_off();
-    lw_light l;
-    base_light(&l);
-    sloping_cell(&l);
-    l.pack.series = 3;
-    l.led.strings = 2;
-    l.led.model = LW_LED_SHOCKLEY;
-    l.led.ideality = 3.0, l.led.saturation_a = 4.6e-18, l.led.series_ohm = 1.5;
-    l.led.junction_c = 25, l.led.flux_lm = 22, l.led.flux_current_a = 0.06;
-    l.led.flux_exponent = 0.9;
-    l.led.tc_forward_v_k = -2e-3, l.led.tc_flux_per_k = -0.3e-2, l.led.heat_fraction = 0.65;
-    l.drive.resistor_ohm = 22;
-    l.cutoff.cell_v = 0.5; /* the relative cutoff ends the run */
-    l.thermal = (lw_thermal){.enabled = true, .r_jb_k_w = 40, .r_bb_k_w = 15, .r_ha_k_w = 60,
-                             .c_b_j_k = 3, .c_h_j_k = 40, .losses_in_body = true,
-                             .max_touch_c = 48};
-    lw_light_update_factors(&l, NULL);
-    lw_result r = run_ok(&l, false);
-    /* the reference */
-    double y[6] = {0, 20, 20, 0, 0, 0};
-    advance(&l, 0, 30, y);
-    double flux_ref = flux_of(&l, y);
-    double y_half[6], y_end[6];
-    double t_half = time_of_flux(&l, 30, y, 0.5 * flux_ref, 1800, y_half);
-    double t_end = time_of_flux(&l, t_half, y_half, 0.10 * flux_ref, 1800, y_end);
-    assert_int_equal(r.end_reason, LW_END_RELATIVE);
-    assert_close(r.flux_30s_lm, flux_ref, 1e-6);
-    assert_close(r.time_to_half_h, t_half / 3600, 1e-6);
-    assert_close(r.runtime_h, t_end / 3600, 1e-6);
-    assert_close(r.end_depth, y_end[0], 1e-6);
-    assert_close(r.lumen_hours, y_end[3] / 3600, 1e-6);
-    assert_close(r.energy_led_wh, y_end[4] / 3600, 1e-6);
-    assert_close(r.energy_drawn_wh, y_end[5] / 3600, 1e-6);
-    /* it heated and cooled: the body's peak is inside the run */
-    assert_true(r.peak_body_c > l.pack.ambient_c + 3);
-    assert_true(r.final.temps.body_c < r.peak_body_c);
-    /* energy conservation of the ledger */
-    assert_close(r.energy_drawn_wh,
-                 r.energy_led_wh + r.energy_resistor_wh + r.energy_internal_wh, 1e-9);
-    lw_light_clear(&l);
+    for (int with_foldback = 0; with_foldback < 2; with_foldback++) {
+        lw_light l;
+        base_light(&l);
+        sloping_cell(&l);
+        l.pack.series = 3;
+        l.led.strings = 2;
+        l.led.model = LW_LED_SHOCKLEY;
+        l.led.ideality = 3.0, l.led.saturation_a = 4.6e-18, l.led.series_ohm = 1.5;
+        l.led.junction_c = 25, l.led.flux_lm = 22, l.led.flux_current_a = 0.06;
+        l.led.flux_exponent = 0.9;
+        l.led.tc_forward_v_k = -2e-3, l.led.tc_flux_per_k = -0.3e-2, l.led.heat_fraction = 0.65;
+        l.drive.resistor_ohm = 22;
+        l.cutoff.cell_v = 0.5; /* the relative cutoff ends the run */
+        l.thermal = (lw_thermal){.enabled = true,
+                                 .r_jb_k_w = 40,
+                                 .r_bb_k_w = 15,
+                                 .r_ha_k_w = 60,
+                                 .c_b_j_k = 3,
+                                 .c_h_j_k = 40,
+                                 .losses_in_body = true,
+                                 .max_touch_c = 48,
+                                 .foldback_from_c = NAN,
+                                 .foldback_min = 1};
+        if (with_foldback) {
+            /* from 22 to 25 C down to 40 % of the duty */
+            l.thermal.foldback_from_c = 22, l.thermal.foldback_to_c = 25;
+            l.thermal.foldback_min = 0.4;
+        }
+        lw_light_update_factors(&l, NULL);
+        lw_result r = run_ok(&l, false);
+        /* the reference */
+        double y[6] = {0, 20, 20, 0, 0, 0};
+        advance(&l, 0, 30, y);
+        double flux_ref = flux_of(&l, y);
+        double y_half[6], y_end[6];
+        double t_half = time_of_flux(&l, 30, y, 0.5 * flux_ref, 1800, y_half);
+        double t_end = time_of_flux(&l, t_half, y_half, 0.10 * flux_ref, 1800, y_end);
+        assert_int_equal(r.end_reason, LW_END_RELATIVE);
+        assert_close(r.flux_30s_lm, flux_ref, 1e-6);
+        assert_close(r.time_to_half_h, t_half / 3600, 1e-6);
+        assert_close(r.runtime_h, t_end / 3600, 1e-6);
+        assert_close(r.end_depth, y_end[0], 1e-6);
+        assert_close(r.lumen_hours, y_end[3] / 3600, 1e-6);
+        assert_close(r.energy_led_wh, y_end[4] / 3600, 1e-6);
+        assert_close(r.energy_drawn_wh, y_end[5] / 3600, 1e-6);
+        /* it heated and cooled: the body's peak is inside the run */
+        assert_true(r.peak_body_c > l.pack.ambient_c + 3);
+        assert_true(r.final.temps.body_c < r.peak_body_c);
+        /* energy conservation of the ledger */
+        assert_close(r.energy_drawn_wh,
+                     r.energy_led_wh + r.energy_resistor_wh + r.energy_internal_wh, 1e-9);
+        if (with_foldback) /* it folded back: the body crossed the first corner */
+            assert_true(r.peak_body_c > l.thermal.foldback_from_c);
+        lw_light_clear(&l);
+    }
 }
 
 /* The trace of a run in time: rows from switch-on to the end, times

@@ -46,6 +46,10 @@ typedef struct lw_thermal {
     double c_h_j_k;        /* body heat capacity, J/K; 0: quasi-static */
     bool losses_in_body;   /* resistor, driver and cell losses heat the body */
     double max_touch_c;    /* body temperature for the touch warning, deg C */
+    /* thermal foldback on the body temperature: factor 1 at or below from,
+     * min at or above to, linear between; none unless to > from (so a
+     * zeroed struct has none) */
+    double foldback_from_c, foldback_to_c, foldback_min;
 } lw_thermal;
 
 /* The temperatures of a light's heat path at one instant. */
@@ -64,6 +68,15 @@ bool lw_thermal_quasi_static(const lw_thermal *th);
  * *t. */
 void lw_thermal_nodes(const lw_thermal *th, double ambient_c, double q_led_w, double q_per_led_w,
                       double q_other_w, lw_temps *t);
+
+/* Whether the network folds the drive back (foldback_to_c > foldback_from_c). */
+bool lw_thermal_has_foldback(const lw_thermal *th);
+
+/* The foldback factor at body temperature body_c (1 without foldback):
+ * 1 at or below foldback_from_c, foldback_min at or above foldback_to_c,
+ * linear between.  It scales a regulated drive's set current and a
+ * resistor drive's duty. */
+double lw_thermal_foldback(const lw_thermal *th, double body_c);
 
 /* Time derivatives of the board and body temperatures, K/s, at the node
  * temperatures *t (from lw_thermal_nodes) and the same heat; 0 for a node

@@ -132,6 +132,12 @@ const lw_keydef lw_profile_keys[] = {
     PK("thermal", "max_touch_c", LW_K_NUM, light.thermal.max_touch_c, 1, -60, 300, 0, "48",
        "body temperature above which a warning is given, deg C (48: the lower end of touch "
        "limits for held metal, common practice; the applicable safety standard decides)"),
+    PK("thermal", "foldback_from_c", LW_K_NUM, light.thermal.foldback_from_c, 1, -60, 300, 0, "",
+       "body temperature at which the driver starts to reduce its output, deg C"),
+    PK("thermal", "foldback_to_c", LW_K_NUM, light.thermal.foldback_to_c, 1, -60, 300, 0, "",
+       "body temperature at which the reduction reaches its floor, deg C"),
+    PK("thermal", "foldback_min_pct", LW_K_NUM, light.thermal.foldback_min, 1e-2, 0, 100,
+       OPEN, "", "the floor of the foldback, % of the set current (or of the duty)"),
     PK("optics", "beam_angle_deg", LW_K_NUM, beam_angle_deg, 1, 0, 180, OPEN | LW_KF_MAX_OPEN,
        "", "full beam angle of a uniform cone, degrees"),
     PK("optics", "peak_cd_per_lm", LW_K_NUM, peak_cd_per_lm, 1, 0, 1e6, OPEN, "",
@@ -559,6 +565,39 @@ static lw_status check_thermal(lw_profile *p, lw_error *err)
                                 "[thermal] is missing the key '%s' (%s)", needed[k],
                                 d ? d->help : "");
         }
+    /* foldback: all three keys, from below to, on a body with a heat capacity */
+    static const char *const fold[] = {"foldback_from_c", "foldback_to_c", "foldback_min_pct"};
+    int nfold = 0;
+    for (size_t k = 0; k < 3; k++)
+        nfold += given(p, "thermal", fold[k]);
+    if (nfold == 0)
+        return LW_OK;
+    const char *file;
+    int line;
+    size_t first = 0;
+    while (!given(p, "thermal", fold[first]))
+        first++;
+    for (size_t k = 0; k < 3; k++)
+        if (!given(p, "thermal", fold[k])) {
+            where_of(p, "thermal", fold[first], &file, &line);
+            return lw_error_set(err, LW_EINPUT, file, line,
+                                "[thermal] foldback needs foldback_from_c, foldback_to_c and "
+                                "foldback_min_pct together; '%s' is missing",
+                                fold[k]);
+        }
+    if (!(th->foldback_to_c > th->foldback_from_c)) {
+        where_of(p, "thermal", "foldback_to_c", &file, &line);
+        return lw_error_set(err, LW_EINPUT, file, line,
+                            "[thermal] foldback_to_c = %g must be above foldback_from_c = %g",
+                            th->foldback_to_c, th->foldback_from_c);
+    }
+    if (th->r_bb_k_w > 0.0 ? th->c_h_j_k == 0.0 : th->c_b_j_k + th->c_h_j_k == 0.0) {
+        where_of(p, "thermal", "foldback_from_c", &file, &line);
+        return lw_error_set(err, LW_EINPUT, file, line,
+                            "[thermal] foldback acts on the body's temperature as it rises, "
+                            "which needs the body's heat capacity (body_j_k > 0); a body at "
+                            "steady state cannot fold back in this version");
+    }
     return LW_OK;
 }
 
@@ -766,6 +805,8 @@ lw_status lw_profile_load(const char *path, const lw_search *search, lw_profile 
         p->search = *search;
     p->cutoff_cell_v = NAN;
     p->light.led.max_junction_c = NAN;
+    p->light.thermal.foldback_from_c = p->light.thermal.foldback_to_c = NAN;
+    p->light.thermal.foldback_min = 1.0;
     p->ini = lw_calloc(1, sizeof *p->ini);
     if (!p->ini)
         return lw_error_set(err, LW_ENOMEM, NULL, 0, "out of memory");

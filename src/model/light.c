@@ -185,6 +185,15 @@ lw_status lw_light_point_state(const lw_light *l, double depth, double ocv_v, do
     }
     lw_temps s = state ? *state : (lw_temps){ta, ta, ta};
     lw_light w = *l; /* shallow: tables borrowed, never freed here */
+    /* foldback on the body's state (a body with a heat capacity; profile.c
+     * refuses it on a body at steady state) */
+    double fold = lw_thermal_foldback(&l->thermal, s.body_c);
+    if (fold < 1.0) {
+        if (l->drive.type == LW_DRIVE_RESISTOR)
+            w.drive.duty_pct *= fold;
+        else
+            w.drive.set_a *= fold;
+    }
     /* g(T) = F(T) - T, F the junction temperature the point at T gives.  The
      * heat is never negative, so g >= 0 at the coldest node: the lower end
      * of a bracket.  Upwards by fixed-point and secant steps (doubling when

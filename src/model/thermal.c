@@ -5,6 +5,8 @@
  */
 #include "lampwick/thermal.h"
 
+#include <math.h>
+
 bool lw_thermal_quasi_static(const lw_thermal *th)
 {
     return !th->enabled || (th->c_b_j_k == 0.0 && th->c_h_j_k == 0.0);
@@ -34,6 +36,21 @@ void lw_thermal_nodes(const lw_thermal *th, double ambient_c, double q_led_w, do
         t->body_c = (gb * t->board_c + q_other_w + ga * ta) / (gb + ga);
     }
     t->junction_c = t->board_c + th->r_jb_k_w * q_per_led_w;
+}
+
+bool lw_thermal_has_foldback(const lw_thermal *th)
+{
+    return th->enabled && th->foldback_to_c > th->foldback_from_c;
+}
+
+double lw_thermal_foldback(const lw_thermal *th, double body_c)
+{
+    if (!lw_thermal_has_foldback(th) || body_c <= th->foldback_from_c)
+        return 1.0;
+    if (body_c >= th->foldback_to_c)
+        return th->foldback_min;
+    double u = (body_c - th->foldback_from_c) / (th->foldback_to_c - th->foldback_from_c);
+    return 1.0 + u * (th->foldback_min - 1.0);
 }
 
 void lw_thermal_rates(const lw_thermal *th, double ambient_c, double q_led_w, double q_other_w,

@@ -37,7 +37,11 @@
 /* Events: the ends of the run, 50 %, the regulator's state, and the knots of
  * the cell's curves, where the rates have a kink (the step restarts there,
  * so that no step straddles one and loses its order). */
-enum { EV_REL, EV_FLOOR, EV_CELL_V, EV_CAPACITY, EV_HALF, EV_REGIME, EV_KNOT, EV_COUNT };
+enum {
+    EV_REL, EV_FLOOR, EV_CELL_V, EV_CAPACITY, EV_HALF, EV_REGIME, EV_KNOT,
+    EV_FOLD_FROM, EV_FOLD_TO, /* the body crossing the foldback's corners (kinks) */
+    EV_COUNT
+};
 
 typedef struct tr {
     const lw_light *l;
@@ -293,6 +297,7 @@ typedef struct run {
     lw_point p;             /* the point at (t, x) */
     double ref, floor_lm, frac;
     bool ref_known, half_armed, regime_pos, done;
+    bool fold_above[2];     /* the body above foldback_from_c, foldback_to_c */
     double regulated_s;
     double knot_next;       /* the first knot of the cell's curves above the depth */
     size_t cap_states;
@@ -322,6 +327,13 @@ static double event_g(const run *r, int k, const lw_point *p, double depth)
     case EV_CAPACITY: return 1.0 - depth;
     case EV_HALF: return p->flux_lm - 0.5 * r->ref;
     case EV_KNOT: return r->knot_next - depth;
+    case EV_FOLD_FROM:
+    case EV_FOLD_TO: {
+        const lw_thermal *th = &r->e.l->thermal;
+        double corner = k == EV_FOLD_FROM ? th->foldback_from_c : th->foldback_to_c;
+        double g = p->temps.body_c - corner;
+        return r->fold_above[k - EV_FOLD_FROM] ? g : -g;
+    }
     case EV_REGIME:
     default: return r->regime_pos ? p->regulation_margin : -p->regulation_margin;
     }
@@ -335,6 +347,8 @@ static bool active(const run *r, int k)
         return r->ref_known && r->half_armed;
     if (k == EV_REGIME)
         return r->e.l->drive.type != LW_DRIVE_RESISTOR;
+    if (k == EV_FOLD_FROM || k == EV_FOLD_TO)
+        return lw_thermal_has_foldback(&r->e.l->thermal);
     return true;
 }
 
@@ -488,6 +502,11 @@ static lw_status act(run *r, int k, const step *before)
 {
     static const lw_end_reason why[] = {LW_END_RELATIVE, LW_END_FLUX_FLOOR,
                                         LW_END_CELL_VOLTAGE, LW_END_CAPACITY};
+    if (k == EV_FOLD_FROM || k == EV_FOLD_TO) {
+        /* a corner of the foldback crossed, either way: a kink */
+        r->fold_above[k - EV_FOLD_FROM] = !r->fold_above[k - EV_FOLD_FROM];
+        return LW_OK;
+    }
     if (k == EV_KNOT) {
         /* at (or within 1e-12 past) the knot: the next one */
         r->knot_next = knot_above(&r->e.l->pack.cell, r->x[0] + 1e-12);
@@ -636,6 +655,8 @@ static lw_status start(run *r, double d0)
     }
     r->regime_pos = r->p.regulation_margin > 0.0;
     r->knot_next = knot_above(&l->pack.cell, d0);
+    r->fold_above[0] = r->p.temps.body_c > l->thermal.foldback_from_c;
+    r->fold_above[1] = r->p.temps.body_c > l->thermal.foldback_to_c;
     return st;
 }
 
