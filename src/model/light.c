@@ -240,13 +240,10 @@ lw_status lw_light_point_state(const lw_light *l, double depth, double ocv_v, do
                     gb *= 0.5;
                 side = -1;
             } else {
-                if (isnan(b))
-                    side = 0;
-                else if (side == 1)
+                if (!isnan(b) && side == 1)
                     ga *= 0.5;
                 b = x, gb = g;
-                if (side != 0 || true)
-                    side = 1;
+                side = 1;
             }
             next = (ga * b - gb * a) / (ga - gb);
             if (!(next > a && next < b))

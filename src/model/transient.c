@@ -387,8 +387,8 @@ static lw_status euler(run *r, const step *from, double dt, step *out)
  * event (it straddles the switch that the event marks).  *after (given:
  * a step to h whose point has fired) becomes the step at the located time,
  * *before the step just short of it (before->ok false: none, the event is
- * at the accepted state).  The located step sizes travel in ->err. */
-static lw_status locate(run *r, int k, double h, step *before, step *after)
+ * at the accepted state); *h_at the located step size. */
+static lw_status locate(run *r, int k, double h, step *before, step *after, double *h_at)
 {
     double a = 0.0, b = h, ga = event_g(r, k, &r->p, r->x[0]);
     double gb = event_g(r, k, &after->p, after->x[0]);
@@ -427,8 +427,7 @@ static lw_status locate(run *r, int k, double h, step *before, step *after)
         if (st != LW_OK)
             return st;
     }
-    after->err = b;
-    before->err = a;
+    *h_at = b;
     return LW_OK;
 }
 
@@ -573,10 +572,10 @@ static lw_status integrate(run *r, bool stop_at_30s)
         }
         if (regime_jump) {
             step b = {0}, a = probe;
-            st = locate(r, EV_REGIME, h, &b, &a);
+            double h_event = h;
+            st = locate(r, EV_REGIME, h, &b, &a, &h_event);
             if (st != LW_OK)
                 return st;
-            double h_event = a.err;
             st = accept(r, &a, h_event);
             if (st == LW_OK)
                 st = act(r, EV_REGIME, &b);
@@ -603,11 +602,12 @@ static lw_status integrate(run *r, bool stop_at_30s)
             if (!fired(r, k, &s.p, s.x[0]))
                 continue;
             step b = {0}, a = s;
-            st = locate(r, k, h, &b, &a);
+            double h_k = h;
+            st = locate(r, k, h, &b, &a, &h_k);
             if (st != LW_OK)
                 return st;
-            if (first < 0 || a.err < h_event) {
-                first = k, h_event = a.err, at = a, before = b;
+            if (first < 0 || h_k < h_event) {
+                first = k, h_event = h_k, at = a, before = b;
             }
         }
         double grow = fmin(4.0, fmax(0.2, 0.9 * pow(fmax(s.err, 1e-30), -1.0 / 6.0)));
