@@ -40,6 +40,7 @@ typedef enum lw_end_reason {
     LW_END_DRIVER_DROPOUT,
     LW_END_EMPTY_AT_START, /* no light: the cells are empty or at their end point at switch-on */
     LW_END_DIM_AT_START,   /* no light: the output at switch-on is already at a cutoff */
+    LW_END_SWITCHED_OFF,   /* a step-down chain's `next = off` */
     LW_END_COUNT
 } lw_end_reason;
 
@@ -123,6 +124,7 @@ typedef struct lw_state {
     double depth;
     double board_c, body_c; /* the heat path's state (ambient for quasi-static nodes) */
     bool fallback;
+    int mode;             /* the mode of a step-down chain (0 without one) */
 } lw_state;
 
 /* One accepted integration piece, kept for the trace. */
@@ -158,7 +160,10 @@ typedef struct lw_result {
                                quadrature nodes and events: a lower bound of the true
                                peak, exact where it is at switch-on or an event) */
     double peak_body_c;     /* the same for the body */
+    double peak_body_h;     /* when, in a run in time (NAN in the depth quadrature) */
     int solves;             /* operating-point solves */
+    lw_switch switches[LW_CHAIN_MAX]; /* a step-down chain's switches, in order */
+    size_t n_switches;
     unsigned warnings;      /* LW_WARN_* */
     lw_piece *pieces;       /* with want_trace: accepted pieces, owned */
     lw_state *states;       /* with want_trace, a run in time: its states, owned */

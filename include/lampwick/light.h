@@ -37,6 +37,7 @@
 
 #include <stdbool.h>
 #include "cell.h"
+#include "chain.h"
 #include "drive.h"
 #include "led.h"
 #include "thermal.h"
@@ -72,6 +73,8 @@ typedef struct lw_light {
     lw_drive drive;
     lw_cutoff cutoff;
     lw_thermal thermal;   /* the heat path; thermal.enabled false: junctions at ambient */
+    lw_chain *chain;      /* step-down chain starting at its mode 0 (this light);
+                             NULL: none.  Shared by copies (reference counted) */
     double cap_factor;    /* capacity factor at ambient (derived) */
     double res_factor;    /* resistance factor at ambient (derived) */
 } lw_light;
@@ -153,6 +156,10 @@ LW_MUST_CHECK lw_status lw_light_point_at(const lw_light *light, double depth, d
 LW_MUST_CHECK lw_status lw_light_point_state(const lw_light *light, double depth, double ocv_v,
                                              double r_cell_ohm, bool fallback,
                                              const lw_temps *state, lw_point *pt, lw_error *err);
+
+/* The light in mode `mode` of its step-down chain (the light itself
+ * without a chain). */
+const lw_light *lw_light_mode(const lw_light *light, int mode);
 
 /* Hours in an average month (365.25 x 24 / 12). */
 #define LW_HOURS_PER_MONTH 730.5

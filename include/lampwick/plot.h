@@ -4,7 +4,8 @@
  * Owns: lw_chart, a chart of one to three stacked panels sharing an x axis;
  * each panel has a left y axis, an optional right axis that is a linear
  * rescaling of the left one (e.g. lm beside %), series drawn as lines or as
- * labelled points, and horizontal reference lines (e.g. a cutoff).  Axes are
+ * labelled points, and horizontal reference lines (e.g. a cutoff); vertical
+ * marks cross every panel (e.g. a mode switch).  Axes are
  * linear or logarithmic, with ticks at round numbers (1, 2, 5 x 10^k).
  * lw_plot_run draws the standard chart of a run from its trace.
  */
@@ -24,6 +25,7 @@
 #define LW_PLOT_SERIES_MAX 16
 #define LW_PLOT_PANELS_MAX 3
 #define LW_PLOT_REFS_MAX 4
+#define LW_PLOT_MARKS_MAX LW_CHAIN_MAX
 
 typedef struct lw_axis {
     const char *label;
@@ -58,10 +60,19 @@ typedef struct lw_panel {
     double height_share;  /* relative height, default 1 */
 } lw_panel;
 
+/* A vertical mark across every panel at x (e.g. a mode switch), labelled
+ * at the top of the first panel. */
+typedef struct lw_xmark {
+    double x;
+    const char *label;
+} lw_xmark;
+
 typedef struct lw_chart {
     const char *title;
     const char *subtitle;
     lw_axis x;
+    lw_xmark marks[LW_PLOT_MARKS_MAX];
+    size_t nmarks;
     lw_panel panels[LW_PLOT_PANELS_MAX];
     size_t npanels;
     double width_px, height_px; /* default 900 x 560 */

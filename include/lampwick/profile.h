@@ -9,8 +9,11 @@
  * (the cell file by name or path, LED and driver tables) and checks the
  * model-specific needs; every refusal names file:line and the key.
  *
- * Sections: [light] [pack] [led] [drive] [cutoff] [optics] and any number of
- * [mode NAME] whose keys are "section.key = value" overrides.
+ * Sections: [light] [pack] [led] [drive] [cutoff] [optics] [thermal] and any
+ * number of [mode NAME] whose keys are "section.key = value" overrides and
+ * the keys of a step-down chain (next, next_after_s, next_below_cell_v,
+ * next_above_c; io/profchain.c).  A run of a mode that starts a chain gets
+ * the chain in its light (lw_profile_derive).
  */
 #ifndef LW_PROFILE_H
 #define LW_PROFILE_H
@@ -99,6 +102,7 @@ typedef struct lw_profile_override {
 
 typedef struct lw_profile_variant {
     const char *mode;     /* borrowed; NULL: the profile as written */
+    bool single_mode;     /* the mode alone, without the step-down chain it starts */
     lw_profile_override set[LW_PROFILE_OVERRIDES_MAX];
     size_t nset;
 } lw_profile_variant;
@@ -122,6 +126,9 @@ LW_MUST_CHECK lw_status lw_profile_derive(const lw_profile *base, const lw_profi
 
 /* Apply the overrides of [mode NAME]; unknown names list the known modes. */
 LW_MUST_CHECK lw_status lw_profile_apply_mode(lw_profile *prof, const char *name, lw_error *err);
+
+/* The mode a section name "mode NAME" names, NULL for other sections. */
+const char *lw_profile_section_mode(const char *section);
 
 /* Number and names of the profile's modes, in file order. */
 size_t lw_profile_mode_count(const lw_profile *prof);

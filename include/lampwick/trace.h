@@ -29,11 +29,14 @@ typedef struct lw_trace_row {
     double t_h;
     lw_point pt;
     double pct_of_ref;     /* light output in % of the 30-s output */
+    int mode;              /* the mode of a step-down chain (0 without one) */
 } lw_trace_row;
 
 typedef struct lw_trace {
     lw_trace_row *rows;
     size_t n;
+    char modes[LW_CHAIN_MAX][LW_NAME_MAX]; /* names of the chain's modes by row.mode
+                                               ("" without a chain) */
 } lw_trace;
 
 /* Build a trace from a result run with want_trace: points dense where the

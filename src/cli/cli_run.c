@@ -118,6 +118,8 @@ int cli_run(int argc, char **argv)
     }
     if (st == LW_OK && want_trace)
         st = lw_trace_build(&prof.light, &res, LW_TRACE_ROWS_MIN, &tr, &err);
+    if (st == LW_OK && want_trace && !prof.light.chain) /* one mode: name it */
+        lw_text_copy(tr.modes[0], prof.mode, sizeof tr.modes[0]);
     if (st == LW_OK && a.trace_path)
         st = write_trace(a.trace_path, &tr, &err);
     if (st == LW_OK && a.plot_path)

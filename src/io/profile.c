@@ -6,6 +6,7 @@
  * but returns the error, and callers stop there.
  */
 #include "lampwick/profile.h"
+#include "profchain.h"
 #include "lampwick/number.h"
 #include "lampwick/path.h"
 #include "lampwick/cache.h"
@@ -325,6 +326,8 @@ lw_status lw_profile_derive(const lw_profile *base, const lw_profile_variant *v,
     }
     if (st == LW_OK)
         st = lw_profile_resolve(out, err);
+    if (st == LW_OK)
+        st = lw_profchain_build(base, v, origin, out, err);
     return st;
 }
 
@@ -337,6 +340,12 @@ static bool is_mode_section(const char *section, const char **name)
         n++;
     *name = n;
     return true;
+}
+
+const char *lw_profile_section_mode(const char *section)
+{
+    const char *name;
+    return is_mode_section(section, &name) ? name : NULL;
 }
 
 size_t lw_profile_mode_count(const lw_profile *prof)
@@ -375,7 +384,8 @@ lw_status lw_profile_apply_mode(lw_profile *prof, const char *name, lw_error *er
     }
     for (size_t i = 0; i < prof->ini->n; i++) {
         const lw_ini_entry *e = &prof->ini->entries[i];
-        if (!is_mode_section(e->section, &mname) || strcmp(mname, name) != 0)
+        if (!is_mode_section(e->section, &mname) || strcmp(mname, name) != 0 ||
+            lw_profchain_is_key(e->key))
             continue;
         lw_status st = lw_profile_set(prof, e->key, e->value, LW_FROM_MODE, prof->path, e->line,
                                       err);
@@ -778,6 +788,8 @@ static lw_status profile_check(const void *ctx, const char *section, const char 
                             "profile's [pack] cell");
     if (!key)
         return lw_key_unknown(lw_profile_keys, lw_profile_nkeys, section, NULL, file, line, err);
+    if (is_mode_section(section, &mname) && lw_profchain_is_key(key))
+        return LW_OK; /* checked with the whole chain, lw_profchain_check */
     if (is_mode_section(section, &mname)) {
         if (!split_dotted(key, sec, sizeof sec, k, sizeof k))
             return lw_error_set(err, LW_EINPUT, file, line,
@@ -823,6 +835,8 @@ lw_status lw_profile_load(const char *path, const lw_search *search, lw_profile 
         st = lw_profile_resolve(p, err);
     if (st == LW_OK)
         st = check_modes(p, err);
+    if (st == LW_OK)
+        st = lw_profchain_check(p, err);
     if (st != LW_OK)
         lw_profile_clear(p);
     return st;

@@ -19,7 +19,7 @@
 
 const char *const lw_run_end_names[LW_END_COUNT + 1] = {
     "relative-brightness", "flux-floor", "cell-voltage", "capacity", "never-lit",
-    "driver-dropout", "empty-at-start", "dim-at-start", NULL};
+    "driver-dropout", "empty-at-start", "dim-at-start", "switched-off", NULL};
 
 bool lw_run_end_is_dark(lw_end_reason why)
 {
@@ -1030,7 +1030,7 @@ lw_status lw_run(const lw_light *light, const lw_run_options *opt, lw_result *re
                             "event_iter_max 10 to 10000, max_solves >= 100");
     res->time_to_half_h = NAN;
     res->flux_30s_lm = res->flux_ref_lm = NAN;
-    res->junction_30s_c = res->peak_junction_c = res->peak_body_c = NAN;
+    res->junction_30s_c = res->peak_junction_c = res->peak_body_c = res->peak_body_h = NAN;
     engine e = {.l = light, .opt = opt, .res = res, .err = err, .seg = SIZE_MAX, .end_d = -1};
     e.d0 = fmin(1.0, fmax(opt->start_depth, lw_light_stored_depth(light)));
     res->start_depth = e.d0;
@@ -1041,7 +1041,7 @@ lw_status lw_run(const lw_light *light, const lw_run_options *opt, lw_result *re
         return st;
     res->worst_led_a = res->initial.led_a;
     res->worst_resistor_w = res->initial.p_res_peak_w;
-    if (opt->time_domain || !lw_thermal_quasi_static(&light->thermal)) {
+    if (opt->time_domain || !lw_thermal_quasi_static(&light->thermal) || light->chain) {
         /* state that lives in time: the run in time (transient.h) */
         st = lw_transient_run(light, opt, res, err);
     } else {

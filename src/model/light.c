@@ -15,6 +15,8 @@ void lw_light_clear(lw_light *light)
     lw_led_clear(&light->led);
     lw_interp_free(light->drive.efficiency);
     light->drive.efficiency = NULL;
+    lw_chain_unref(light->chain);
+    light->chain = NULL;
 }
 
 void lw_light_copy(lw_light *dst, const lw_light *src)
@@ -23,6 +25,13 @@ void lw_light_copy(lw_light *dst, const lw_light *src)
     lw_cell_copy(&dst->pack.cell, &src->pack.cell);
     lw_led_copy(&dst->led, &src->led);
     lw_interp_ref(dst->drive.efficiency);
+    lw_chain_ref(dst->chain);
+}
+
+const lw_light *lw_light_mode(const lw_light *light, int mode)
+{
+    const lw_chain *c = light->chain;
+    return c && mode >= 0 && (size_t)mode < c->n ? c->modes[mode].light : light;
 }
 
 void lw_light_update_factors(lw_light *light, bool *temperature_outside)

@@ -6,7 +6,9 @@
 
 #include <math.h>
 #include <stdlib.h>
+#include <string.h>
 #include "lampwick/alloc.h"
+#include "lampwick/text.h"
 
 void lw_trace_clear(lw_trace *trace)
 {
@@ -40,8 +42,10 @@ static lw_status finish_rows(const lw_result *res, lw_trace_row *rows, size_t n,
 }
 
 /* The point at a state of a run in time. */
-static lw_status state_point(const lw_light *l, const lw_state *s, lw_point *pt, lw_error *err)
+static lw_status state_point(const lw_light *light, const lw_state *s, lw_point *pt,
+                             lw_error *err)
 {
+    const lw_light *l = lw_light_mode(light, s->mode);
     const lw_cell *c = &l->pack.cell;
     double ocv = lw_interp_linear(c->ocv, s->depth);
     double r = lw_interp_linear(c->res, s->depth) * l->res_factor;
@@ -64,7 +68,8 @@ static lw_status trace_of_states(const lw_light *light, const lw_result *res, si
     lw_status st = LW_OK;
     size_t n = 0;
     for (size_t i = 0; i < ns && st == LW_OK; i++) {
-        size_t parts = i + 1 < ns ? sub : 1;
+        /* one row at each side of a switch (two states at one instant) */
+        size_t parts = i + 1 < ns && res->states[i + 1].t_h > res->states[i].t_h ? sub : 1;
         for (size_t j = 0; j < parts && st == LW_OK; j++) {
             lw_state s = res->states[i];
             if (j > 0) {
@@ -76,6 +81,7 @@ static lw_status trace_of_states(const lw_light *light, const lw_result *res, si
                 s.body_c += u * (b->body_c - s.body_c);
             }
             rows[n].t_h = s.t_h;
+            rows[n].mode = s.mode;
             st = state_point(light, &s, &rows[n].pt, err);
             n++;
         }
@@ -88,6 +94,9 @@ lw_status lw_trace_build(const lw_light *light, const lw_result *res, size_t min
 {
     trace->rows = NULL;
     trace->n = 0;
+    memset(trace->modes, 0, sizeof trace->modes);
+    for (size_t i = 0; light->chain && i < light->chain->n; i++)
+        lw_text_copy(trace->modes[i], light->chain->modes[i].name, sizeof trace->modes[i]);
     if (res->n_states > 0)
         return trace_of_states(light, res, min_rows, trace, err);
     size_t per_piece = res->n_pieces ? (min_rows + res->n_pieces - 1) / res->n_pieces : 1;
@@ -123,7 +132,7 @@ lw_status lw_trace_build(const lw_light *light, const lw_result *res, size_t min
                            : lw_error_set(err, LW_ENOMEM, NULL, 0, "out of memory for the trace");
     }
     size_t n = 0;
-    rows[n++] = (lw_trace_row){0.0, res->initial, 0.0};
+    rows[n++] = (lw_trace_row){0.0, res->initial, 0.0, 0};
     for (size_t i = 0; i < res->n_pieces && st == LW_OK; i++) {
         const lw_piece *pc = &res->pieces[i];
         double t = pc->t0_h, dprev = pc->d0;

@@ -40,11 +40,16 @@
 enum {
     EV_REL, EV_FLOOR, EV_CELL_V, EV_CAPACITY, EV_HALF, EV_REGIME, EV_KNOT,
     EV_FOLD_FROM, EV_FOLD_TO, /* the body crossing the foldback's corners (kinks) */
+    EV_NEXT_V, EV_NEXT_HOT,   /* a chain's triggers on cell voltage and body (the timer
+                                 is hit exactly by the step, as 30 s is) */
     EV_COUNT
 };
 
 typedef struct tr {
-    const lw_light *l;
+    const lw_light *l;      /* the light in its current mode */
+    const lw_light *l0;     /* the light as started: its cutoff is the run's */
+    int mode;               /* the current mode of a step-down chain (0 without) */
+    double mode_t0;         /* when it began, s */
     const lw_run_options *opt;
     lw_result *res;
     lw_error *err;
@@ -318,12 +323,29 @@ static double knot_above(const lw_cell *c, double d)
     return k;
 }
 
+/* The current mode of the chain, NULL without one. */
+static const lw_chain_mode *chain_mode(const run *r)
+{
+    const lw_chain *c = r->e.l0->chain;
+    return c ? &c->modes[r->e.mode] : NULL;
+}
+
+/* The time the current mode's timer fires, s (infinite without one). */
+static double timer_at(const run *r)
+{
+    const lw_chain_mode *m = chain_mode(r);
+    return m && m->next != LW_CHAIN_NONE && isfinite(m->after_s) ? r->e.mode_t0 + m->after_s
+                                                                  : INFINITY;
+}
+
 static double event_g(const run *r, int k, const lw_point *p, double depth)
 {
     switch (k) {
     case EV_REL: return p->flux_lm - r->frac * r->ref;
     case EV_FLOOR: return p->flux_lm - r->floor_lm;
-    case EV_CELL_V: return p->cell_v - r->e.l->cutoff.cell_v;
+    case EV_CELL_V: return p->cell_v - r->e.l0->cutoff.cell_v;
+    case EV_NEXT_V: return p->cell_v - chain_mode(r)->below_cell_v;
+    case EV_NEXT_HOT: return chain_mode(r)->above_c - p->temps.body_c;
     case EV_CAPACITY: return 1.0 - depth;
     case EV_HALF: return p->flux_lm - 0.5 * r->ref;
     case EV_KNOT: return r->knot_next - depth;
@@ -349,6 +371,11 @@ static bool active(const run *r, int k)
         return r->e.l->drive.type != LW_DRIVE_RESISTOR;
     if (k == EV_FOLD_FROM || k == EV_FOLD_TO)
         return lw_thermal_has_foldback(&r->e.l->thermal);
+    if (k == EV_NEXT_V || k == EV_NEXT_HOT) {
+        const lw_chain_mode *m = chain_mode(r);
+        return m && m->next != LW_CHAIN_NONE &&
+               isfinite(k == EV_NEXT_V ? m->below_cell_v : m->above_c);
+    }
     return true;
 }
 
@@ -446,14 +473,25 @@ static lw_status keep_state(run *r)
         r->cap_states = cap;
     }
     res->states[res->n_states++] =
-        (lw_state){r->t / 3600.0, r->x[0], r->x[1], r->x[2], r->e.fallback};
+        (lw_state){r->t / 3600.0, r->x[0], r->x[1], r->x[2], r->e.fallback, r->e.mode};
     return LW_OK;
+}
+
+/* The peaks with the current point. */
+static void peaks(run *r)
+{
+    lw_result *res = r->e.res;
+    res->peak_junction_c = fmax(res->peak_junction_c, r->p.temps.junction_c);
+    if (!(res->peak_body_c >= r->p.temps.body_c)) {
+        res->peak_body_c = r->p.temps.body_c;
+        res->peak_body_h = r->t / 3600.0;
+    }
+    res->peak_resistor_w = fmax(res->peak_resistor_w, r->p.p_res_peak_w);
 }
 
 /* Move to the end of step s of size h. */
 static lw_status accept(run *r, const step *s, double h)
 {
-    lw_result *res = r->e.res;
     if (r->p.regime == LW_REGIME_REGULATED)
         r->regulated_s += h;
     r->t += h;
@@ -461,9 +499,7 @@ static lw_status accept(run *r, const step *s, double h)
     for (int k = 0; k < NQ; k++)
         r->q[k] += s->dq[k];
     r->p = s->p;
-    res->peak_junction_c = fmax(res->peak_junction_c, r->p.temps.junction_c);
-    res->peak_body_c = fmax(res->peak_body_c, r->p.temps.body_c);
-    res->peak_resistor_w = fmax(res->peak_resistor_w, r->p.p_res_peak_w);
+    peaks(r);
     return keep_state(r);
 }
 
@@ -478,7 +514,7 @@ static void finish(run *r, lw_end_reason why, const lw_point *p)
 static void at_30s(run *r, const lw_point *p0)
 {
     lw_result *res = r->e.res;
-    const lw_light *l = r->e.l;
+    const lw_light *l = r->e.l0;
     res->flux_30s_lm = r->p.flux_lm > 0.0 ? r->p.flux_lm : p0->flux_lm;
     res->junction_30s_c = r->p.temps.junction_c;
     res->depth_30s = r->x[0];
@@ -496,6 +532,125 @@ static void at_30s(run *r, const lw_point *p0)
     }
 }
 
+/* The drive at the current point cannot go on: a converter's dropout (its
+ * margin reaching zero is the dropout). */
+static bool dark(const run *r)
+{
+    return r->p.regime == LW_REGIME_DROPOUT ||
+           (r->e.l->drive.type == LW_DRIVE_CONVERTER && !(r->p.regulation_margin > 0.0));
+}
+
+/* The point at the current state in the current mode, from its set level
+ * (its fallback when the set level cannot start), and the event states
+ * that depend on the mode. */
+static lw_status mode_point(run *r)
+{
+    const lw_light *l = r->e.l;
+    double f[NX];
+    r->e.fallback = false;
+    lw_status st = eval(&r->e, r->x, &r->p, f, NULL);
+    if (st == LW_OK && r->p.regime == LW_REGIME_DROPOUT && l->drive.fallback_a > 0.0) {
+        r->e.fallback = true;
+        st = eval(&r->e, r->x, &r->p, f, NULL);
+    }
+    r->regime_pos = r->p.regulation_margin > 0.0;
+    r->fold_above[0] = r->p.temps.body_c > l->thermal.foldback_from_c;
+    r->fold_above[1] = r->p.temps.body_c > l->thermal.foldback_to_c;
+    return st;
+}
+
+/* The trigger of the current mode that fires at the current state (the
+ * timer, then the cell voltage, then the body), -1 for none. */
+static int trigger_now(const run *r)
+{
+    const lw_chain_mode *m = chain_mode(r);
+    if (!m || m->next == LW_CHAIN_NONE)
+        return -1;
+    if (r->t >= timer_at(r))
+        return LW_SWITCH_TIMER;
+    if (isfinite(m->below_cell_v) && !(r->p.cell_v > m->below_cell_v))
+        return LW_SWITCH_CELL_V;
+    if (isfinite(m->above_c) && !(r->p.temps.body_c < m->above_c))
+        return LW_SWITCH_HOT;
+    return -1;
+}
+
+/* Switch to the current mode's next (or off), keeping depth and
+ * temperatures; the new mode's 50 % applies at once, a dropout that
+ * darkens the light ends it without counting as 50 %. */
+static lw_status switch_mode(run *r, lw_switch_cause cause)
+{
+    const lw_chain_mode *m = chain_mode(r);
+    lw_result *res = r->e.res;
+    if (res->n_switches >= LW_CHAIN_MAX) /* only a cyclic chain could get here */
+        return lw_error_set(r->e.err, LW_ENUMERIC, NULL, 0,
+                            "more than %d mode switches in one run", LW_CHAIN_MAX);
+    lw_switch *sw = &res->switches[res->n_switches++];
+    *sw = (lw_switch){r->t / 3600.0, r->e.mode, m->next, cause, r->p.flux_lm, 0.0};
+    if (m->next == LW_CHAIN_OFF) {
+        finish(r, LW_END_SWITCHED_OFF, &r->p);
+        return LW_OK;
+    }
+    const lw_point before = r->p;
+    r->e.mode = m->next;
+    r->e.l = r->e.l0->chain->modes[m->next].light;
+    r->e.mode_t0 = r->t;
+    lw_status st = mode_point(r);
+    if (st != LW_OK)
+        return st;
+    sw->flux_after_lm = r->p.flux_lm;
+    if (dark(r)) {
+        finish(r, LW_END_DRIVER_DROPOUT, &before);
+        return LW_OK;
+    }
+    peaks(r);
+    if (active(r, EV_HALF) && !(event_g(r, EV_HALF, &r->p, r->x[0]) > 0.0)) {
+        res->time_to_half_h = r->t / 3600.0;
+        r->half_armed = false;
+    }
+    return keep_state(r);
+}
+
+static lw_status act(run *r, int k, const step *before);
+
+/* The chain's triggers at the current instant, cascading. */
+static lw_status cascade(run *r)
+{
+    lw_status st = LW_OK;
+    for (int n = 0; st == LW_OK && !r->done && n <= LW_CHAIN_MAX; n++) {
+        int cause = trigger_now(r);
+        if (cause < 0)
+            break;
+        st = switch_mode(r, (lw_switch_cause)cause);
+    }
+    return st;
+}
+
+/* Everything that happens at the current instant once event `first` (-1:
+ * none) has fired: 50 % first, then the event itself unless it is an end,
+ * then the chain's triggers (cascading), then the ends (a light steps down
+ * rather than ends). */
+static lw_status at_instant(run *r, int first, const step *before)
+{
+    lw_status st = LW_OK;
+    if (first >= 0 && first != EV_HALF && active(r, EV_HALF) &&
+        !(event_g(r, EV_HALF, &r->p, r->x[0]) > 0.0))
+        st = act(r, EV_HALF, before);
+    bool end = first >= EV_REL && first <= EV_CAPACITY;
+    size_t switches = r->e.res->n_switches;
+    if (st == LW_OK && first >= 0 && !end)
+        st = act(r, first, before);
+    if (st == LW_OK)
+        st = cascade(r);
+    if (st == LW_OK && end && !r->done && r->e.res->n_switches == switches)
+        st = act(r, first, before); /* no switch: the end located stands */
+    /* an end already reached at this instant ends the run now */
+    for (int k = EV_REL; k <= EV_CAPACITY && st == LW_OK && !r->done; k++)
+        if (active(r, k) && !(event_g(r, k, &r->p, r->x[0]) > 0.0))
+            st = act(r, k, before);
+    return st;
+}
+
 /* Act on the event k that fired at the current state. */
 static lw_status act(run *r, int k, const step *before)
 {
@@ -506,6 +661,8 @@ static lw_status act(run *r, int k, const step *before)
         r->fold_above[k - EV_FOLD_FROM] = !r->fold_above[k - EV_FOLD_FROM];
         return LW_OK;
     }
+    if (k == EV_NEXT_V || k == EV_NEXT_HOT)
+        return LW_OK; /* the chain switches in at_instant */
     if (k == EV_KNOT) {
         /* at (or within 1e-12 past) the knot: the next one */
         r->knot_next = knot_above(&r->e.l->pack.cell, r->x[0] + 1e-12);
@@ -520,11 +677,8 @@ static lw_status act(run *r, int k, const step *before)
         finish(r, why[k], &r->p);
         return LW_OK;
     }
-    /* the regulator's state changed: a kink, or a converter's dropout (its
-     * margin reaching zero is the dropout: it cannot go on) */
-    bool dropout = r->p.regime == LW_REGIME_DROPOUT ||
-                   (r->e.l->drive.type == LW_DRIVE_CONVERTER && !(r->p.regulation_margin > 0.0));
-    if (!dropout) {
+    /* the regulator's state changed: a kink, or a converter's dropout */
+    if (!dark(r)) {
         r->regime_pos = r->p.regulation_margin > 0.0;
         return LW_OK;
     }
@@ -551,9 +705,11 @@ static lw_status integrate(run *r, bool stop_at_30s)
     double h_max = isfinite(t_est) && t_est > 0.0 ? t_est / LW_TRANSIENT_STEPS_MIN : 3600.0;
     double h = fmin(h_max, 1.0);
     while (!r->done) {
-        bool to_30 = !r->ref_known && r->t + h >= 30.0;
-        if (to_30)
-            h = 30.0 - r->t;
+        /* 30 s and a chain's timer are hit exactly by the step */
+        double target = fmin(r->ref_known ? INFINITY : 30.0, timer_at(r));
+        bool to_target = r->t + h >= target;
+        if (to_target)
+            h = target - r->t;
         step s;
         lw_status st = doubled(&r->e, r->x, r->q, h, &s);
         if (st != LW_OK)
@@ -611,29 +767,28 @@ static lw_status integrate(run *r, bool stop_at_30s)
             }
         }
         double grow = fmin(4.0, fmax(0.2, 0.9 * pow(fmax(s.err, 1e-30), -1.0 / 6.0)));
+        size_t switches = r->e.res->n_switches;
         if (first >= 0) {
             st = accept(r, &at, h_event);
-            /* 50 % comes first when it falls at the same instant as another event */
-            if (st == LW_OK && first != EV_HALF && active(r, EV_HALF) &&
-                !(event_g(r, EV_HALF, &r->p, r->x[0]) > 0.0))
-                st = act(r, EV_HALF, &before);
             if (st == LW_OK)
-                st = act(r, first, &before);
-            /* an end already reached at this instant ends the run now */
-            for (int k = EV_REL; k <= EV_CAPACITY && st == LW_OK && !r->done; k++)
-                if (active(r, k) && !(event_g(r, k, &r->p, r->x[0]) > 0.0))
-                    st = act(r, k, &before);
+                st = at_instant(r, first, &before);
         } else {
             st = accept(r, &s, h);
-            if (st == LW_OK && to_30) {
+            if (to_target)
+                r->t = target; /* exactly, not by the rounding of the sum */
+            if (st == LW_OK && !r->ref_known && r->t >= 30.0) {
                 if (stop_at_30s)
                     return LW_OK;
                 at_30s(r, &p0);
             }
+            if (st == LW_OK && !r->done)
+                st = at_instant(r, -1, &before);
         }
         if (st != LW_OK)
             return st;
         h = fmin(h_max, (first >= 0 ? h_event : h) * grow);
+        if (r->e.res->n_switches != switches)
+            h = fmin(h_max, 1.0); /* the rates jumped: start small again */
         if (!(h > 0.0))
             h = fmin(h_max, 1.0);
     }
@@ -647,36 +802,50 @@ static lw_status start(run *r, double d0)
     r->t = 0.0;
     r->x[0] = d0, r->x[1] = r->x[2] = l->pack.ambient_c;
     memset(r->q, 0, sizeof r->q);
-    double f[NX];
-    lw_status st = eval(&r->e, r->x, &r->p, f, NULL);
-    if (st == LW_OK && r->p.regime == LW_REGIME_DROPOUT && l->drive.fallback_a > 0.0) {
-        r->e.fallback = true;
-        st = eval(&r->e, r->x, &r->p, f, NULL);
-    }
-    r->regime_pos = r->p.regulation_margin > 0.0;
     r->knot_next = knot_above(&l->pack.cell, d0);
-    r->fold_above[0] = r->p.temps.body_c > l->thermal.foldback_from_c;
-    r->fold_above[1] = r->p.temps.body_c > l->thermal.foldback_to_c;
-    return st;
+    return mode_point(r);
 }
 
 static void init_run(run *r, const lw_light *l, const lw_run_options *opt, lw_result *res,
                      lw_error *err)
 {
     memset(r, 0, sizeof *r);
-    r->e = (tr){.l = l, .opt = opt, .res = res, .err = err};
+    r->e = (tr){.l = l, .l0 = l, .opt = opt, .res = res, .err = err};
+    if (l->chain)
+        r->e.l = l->chain->modes[0].light;
     radau_tableau(r->e.a, r->e.c);
     r->floor_lm = fmax(l->cutoff.flux_lm, opt->visible_lm);
     r->frac = l->cutoff.relative_pct / 100.0;
 }
 
-/* The 30-s output of the same light with fresh cells at 20 C. */
+/* The light with fresh cells at 20 C (shallow: tables borrowed). */
+static void freshen(lw_light *w)
+{
+    w->pack.stored_months = 0.0;
+    w->pack.ambient_c = LW_FRESH_REFERENCE_C;
+    lw_light_update_factors(w, NULL);
+}
+
+/* The 30-s output of the same light with fresh cells at 20 C (a chain's
+ * every mode so). */
 static lw_status fresh_reference(const run *from, double *flux_lm)
 {
-    lw_light w = *from->e.l; /* shallow: tables borrowed, never freed here */
-    w.pack.stored_months = 0.0;
-    w.pack.ambient_c = LW_FRESH_REFERENCE_C;
-    lw_light_update_factors(&w, NULL);
+    lw_light w = *from->e.l0; /* shallow: tables borrowed, never freed here */
+    freshen(&w);
+    lw_chain *ch = NULL;
+    if (w.chain) {
+        ch = lw_malloc(sizeof *ch + w.chain->n * sizeof(lw_light));
+        if (!ch)
+            return lw_error_set(from->e.err, LW_ENOMEM, NULL, 0, "out of memory");
+        memcpy(ch, w.chain, sizeof *ch);
+        lw_light *modes = (lw_light *)(void *)(ch + 1);
+        for (size_t i = 0; i < ch->n; i++) {
+            modes[i] = *ch->modes[i].light;
+            freshen(&modes[i]);
+            ch->modes[i].light = &modes[i];
+        }
+        w.chain = ch;
+    }
     lw_run_options o = *from->e.opt;
     o.want_trace = false;
     lw_result scratch;
@@ -684,10 +853,13 @@ static lw_status fresh_reference(const run *from, double *flux_lm)
     run r;
     init_run(&r, &w, &o, &scratch, from->e.err);
     lw_status st = start(&r, 0.0);
-    if (st == LW_OK && r.p.flux_lm > 0.0)
+    if (st == LW_OK)
+        st = cascade(&r);
+    if (st == LW_OK && !r.done && r.p.flux_lm > 0.0)
         st = integrate(&r, true);
     from->e.res->solves += scratch.solves;
     *flux_lm = r.p.flux_lm;
+    free(ch);
     return st;
 }
 
@@ -703,6 +875,7 @@ lw_status lw_transient_run(const lw_light *light, const lw_run_options *opt, lw_
     res->peak_resistor_w = r.p.p_res_peak_w;
     res->peak_junction_c = r.p.temps.junction_c;
     res->peak_body_c = r.p.temps.body_c;
+    res->peak_body_h = 0.0;
     if (light->cutoff.reference == LW_REF_FRESH && (st = fresh_reference(&r, &r.ref)) != LW_OK)
         return st;
     if (res->start_depth >= 1.0 || r.p.cell_v <= light->cutoff.cell_v)
@@ -711,6 +884,8 @@ lw_status lw_transient_run(const lw_light *light, const lw_run_options *opt, lw_
         finish(&r, LW_END_NEVER_LIT, &r.p);
     if (!r.done)
         st = keep_state(&r);
+    if (st == LW_OK && !r.done)
+        st = cascade(&r); /* a chain's triggers apply from switch-on */
     if (st == LW_OK && !r.done)
         st = integrate(&r, false);
     if (st != LW_OK)

@@ -416,6 +416,19 @@ static lw_status lw_plot_svg_in_c_locale(FILE *fp, const lw_chart *c, lw_error *
                     f.x0, py(&f, p->refs[k].y), f.x1, py(&f, p->refs[k].y));
         for (size_t k = 0; k < p->nseries; k++)
             draw_series(fp, &f, &p->series[k], series_colour(&p->series[k], colour0 + k));
+        for (size_t k = 0; k < c->nmarks; k++) {
+            double x = px(&f, c->marks[k].x);
+            fprintf(fp, "<line x1='%.1f' y1='%.1f' x2='%.1f' y2='%.1f' stroke='#555555' "
+                        "stroke-width='1' stroke-dasharray='2 3'/>\n",
+                    x, f.y0, x, f.y1);
+            if (i == 0 && c->marks[k].label) {
+                /* labels staggered down the panel so neighbours do not overlap */
+                fprintf(fp, "<text x='%.1f' y='%.1f' class='pt'>", x + 4,
+                        f.y0 + 14.0 * (double)(k % 3 + 1));
+                xml_text(fp, c->marks[k].label);
+                fputs("</text>\n", fp);
+            }
+        }
         fputs("</g></svg>\n", fp);
         draw_legend(fp, &f, p, colour0);
         colour0 += p->nseries;
@@ -497,6 +510,17 @@ static lw_status lw_plot_run_in_c_locale(FILE *fp, const char *title, const lw_l
             p->refs[p->nrefs++] = (lw_refline){light->led.max_junction_c, jmax};
         }
         p->height_share = 1.0;
+    }
+    /* a step-down chain's switches */
+    char marks[LW_PLOT_MARKS_MAX][2 * LW_NAME_MAX + 8];
+    for (size_t i = 0; light->chain && i < res->n_switches && c.nmarks < LW_PLOT_MARKS_MAX;
+         i++) {
+        const lw_switch *sw = &res->switches[i];
+        snprintf(marks[c.nmarks], sizeof marks[0], "%s to %s",
+                 light->chain->modes[sw->from].name,
+                 sw->to >= 0 ? light->chain->modes[sw->to].name : "off");
+        c.marks[c.nmarks] = (lw_xmark){sw->t_h, marks[c.nmarks]};
+        c.nmarks++;
     }
     lw_status st = lw_plot_svg(fp, &c, err);
     free(buf);

@@ -66,14 +66,15 @@ enum run_col {
     RC_RUNTIME, RC_END, RC_LED_MA, RC_PACK_MA, RC_FLUX0, RC_FLUX30, RC_REF_LM, RC_REFERENCE,
     RC_HALF, RC_REGULATED, RC_LMH, RC_E_DRAWN, RC_E_LED, RC_E_RES, RC_E_INT, RC_E_DRV,
     RC_EFFICIENCY, RC_LM_PER_W, RC_PEAK_RES, RC_WORST_LED, RC_WORST_RES, RC_FINAL_V, RC_TJ30,
-    RC_TJ_PEAK, RC_TH_PEAK, RC_SOLVES, RC_WARNINGS, RC_COUNT
+    RC_TJ_PEAK, RC_TH_PEAK, RC_SWITCHES, RC_SOLVES, RC_WARNINGS, RC_COUNT
 };
 
 /* Columns that only mean something for a light that lit (empty otherwise). */
 static bool lit_only(enum run_col c)
 {
     return !(c == RC_RUNTIME || c == RC_END || c == RC_REFERENCE || c == RC_WORST_LED ||
-             c == RC_WORST_RES || c == RC_FINAL_V || c == RC_SOLVES || c == RC_WARNINGS);
+             c == RC_WORST_RES || c == RC_FINAL_V || c == RC_SOLVES || c == RC_WARNINGS ||
+             c == RC_SWITCHES);
 }
 
 const char *const lw_report_run_columns[RC_COUNT + 1] = {
@@ -83,7 +84,7 @@ const char *const lw_report_run_columns[RC_COUNT + 1] = {
     "energy_led_wh",      "energy_resistor_wh", "energy_internal_wh", "energy_driver_wh",
     "efficiency_pct",     "lm_per_w",         "peak_resistor_w", "worst_led_ma",
     "worst_resistor_w",   "final_cell_v",     "junction_30s_c", "peak_junction_c",
-    "peak_body_c",        "solves",           "warnings",       NULL};
+    "peak_body_c",        "switches",         "solves",         "warnings",       NULL};
 const size_t lw_report_run_ncolumns = RC_COUNT;
 
 void lw_report_warnings(unsigned warnings, char *buf, size_t size)
@@ -129,6 +130,7 @@ static double run_value(enum run_col c, const lw_result *r)
     case RC_TJ30: return r->junction_30s_c;
     case RC_TJ_PEAK: return r->peak_junction_c;
     case RC_TH_PEAK: return r->peak_body_c;
+    case RC_SWITCHES: return (double)r->n_switches;
     case RC_SOLVES: return r->solves;
     default: return NAN;
     }
@@ -185,6 +187,8 @@ static const char *end_text(lw_end_reason why)
         return "the cells are empty or at their end point at switch-on";
     case LW_END_DIM_AT_START:
         return "the output at switch-on is already at a cutoff";
+    case LW_END_SWITCHED_OFF:
+        return "the mode chain switched the light off";
     case LW_END_DRIVER_DROPOUT:
     default:
         return "the converter can no longer hold its output";
@@ -351,9 +355,46 @@ static void text_run(FILE *fp, const lw_light *l, const lw_result *r)
     fprintf(fp, ", or %.3g V per cell loaded\n", l->cutoff.cell_v);
     fprintf(fp, "  at the end          %.3f V per cell loaded, depth %.1f %%\n", r->final.cell_v,
             100.0 * r->end_depth);
-    if (l->thermal.enabled && isfinite(r->peak_junction_c))
-        fprintf(fp, "  hottest             junction %.1f C (%.1f C at 30 s), body %.1f C\n",
+    if (l->thermal.enabled && isfinite(r->peak_junction_c)) {
+        fprintf(fp, "  hottest             junction %.1f C (%.1f C at 30 s), body %.1f C",
                 r->peak_junction_c, r->junction_30s_c, r->peak_body_c);
+        if (isfinite(r->peak_body_h)) {
+            lw_report_hours(r->peak_body_h, buf, sizeof buf);
+            fprintf(fp, " at %s", buf);
+        }
+        fputc('\n', fp);
+    }
+}
+
+/* The switches of a step-down chain, one line each. */
+static void text_switches(FILE *fp, const lw_light *l, const lw_result *r)
+{
+    if (!l->chain)
+        return;
+    fputs("\nMode switches\n", fp);
+    if (r->n_switches == 0)
+        fputs("  none: the run ended in its first mode\n", fp);
+    for (size_t i = 0; i < r->n_switches; i++) {
+        const lw_switch *sw = &r->switches[i];
+        const lw_chain_mode *m = &l->chain->modes[sw->from];
+        char when[96], why[96];
+        lw_report_hours(sw->t_h, when, sizeof when);
+        switch (sw->cause) {
+        case LW_SWITCH_TIMER:
+            snprintf(why, sizeof why, "after %g s", m->after_s);
+            break;
+        case LW_SWITCH_CELL_V:
+            snprintf(why, sizeof why, "cell down to %g V", m->below_cell_v);
+            break;
+        case LW_SWITCH_HOT:
+        default:
+            snprintf(why, sizeof why, "body up to %g C", m->above_c);
+            break;
+        }
+        const char *to = sw->to >= 0 ? l->chain->modes[sw->to].name : "off";
+        fprintf(fp, "  %-12s %s -> %s (%s), %.4g lm -> %.4g lm\n", when, m->name, to, why,
+                sw->flux_before_lm, sw->flux_after_lm);
+    }
 }
 
 static void text_energy(FILE *fp, const lw_light *l, const lw_result *r)
@@ -406,6 +447,7 @@ static void text_report(FILE *fp, const lw_profile *p, const lw_result *r)
         text_switch_on(fp, l, r);
         fputs("\nRun\n", fp);
         text_run(fp, l, r);
+        text_switches(fp, l, r);
         fputs("\nEnergy\n", fp);
         text_energy(fp, l, r);
     }
@@ -442,7 +484,7 @@ static lw_status lw_report_trace_csv_in_c_locale(FILE *fp, const lw_trace *tr, l
     static const char *const head[] = {"time_h",  "depth_pct", "pack_v",     "cell_v",
                                        "ocv_cell_v", "led_ma", "led_v",      "resistor_w",
                                        "led_w",   "driver_w",  "flux_lm",    "flux_pct",
-                                       "t_j_c",   "t_board_c", "t_body_c"};
+                                       "t_j_c",   "t_board_c", "t_body_c",   "mode"};
     lw_csvw w;
     lw_csvw_init(&w, fp);
     for (size_t k = 0; k < sizeof head / sizeof head[0]; k++)
@@ -456,6 +498,8 @@ static lw_status lw_report_trace_csv_in_c_locale(FILE *fp, const lw_trace *tr, l
                             p->temps.junction_c, p->temps.board_c, p->temps.body_c};
         for (size_t k = 0; k < sizeof v / sizeof v[0]; k++)
             lw_csvw_num(&w, v[k]);
+        int m = tr->rows[i].mode;
+        lw_csvw_text(&w, m >= 0 && m < LW_CHAIN_MAX ? tr->modes[m] : "");
         lw_csvw_end_row(&w);
     }
     if (w.failed || ferror(fp))
