@@ -206,6 +206,17 @@ case_ 2 "p.ini:35: .*body_ambient_k_w = 0: expected a number > 0" p.ini 33 '33s/
 case_ 2 "p.ini:38: \\[thermal\\] foldback needs .* 'foldback_to_c' is missing" p.ini 33 '33s/$/\n[thermal]\njunction_board_k_w = 8\nbody_ambient_k_w = 20\nbody_j_k = 50\nfoldback_from_c = 40\nfoldback_min_pct = 50/' $RUN
 case_ 2 "p.ini:39: \\[thermal\\] foldback_to_c = 30 must be above foldback_from_c = 40" p.ini 33 '33s/$/\n[thermal]\njunction_board_k_w = 8\nbody_ambient_k_w = 20\nbody_j_k = 50\nfoldback_from_c = 40\nfoldback_to_c = 30\nfoldback_min_pct = 50/' $RUN
 case_ 2 "p.ini:37: \\[thermal\\] foldback acts on the body's temperature" p.ini 33 '33s/$/\n[thermal]\njunction_board_k_w = 8\nbody_ambient_k_w = 20\nfoldback_from_c = 40\nfoldback_to_c = 50\nfoldback_min_pct = 50/' $RUN
+# step-down chains: the keys of a [mode NAME] (p.ini ends with [mode low] on 34-35)
+case_ 2 "p.ini:36: \\[mode low\\] next = off needs a trigger" p.ini 35 '35s/$/\nnext = off/' $RUN
+case_ 2 "p.ini:36: \\[mode low\\] next_after_s needs next" p.ini 35 '35s/$/\nnext_after_s = 60/' $RUN
+case_ 2 "p.ini:36: \\[mode low\\] next = high: no such mode" p.ini 35 '35s/$/\nnext = high\nnext_after_s = 60/' $RUN
+case_ 2 "p.ini:36: \\[mode low\\] next = low: .*a cycle" p.ini 35 '35s/$/\nnext = low\nnext_after_s = 60/' $RUN
+case_ 2 "p.ini:40: \\[mode mid\\] next = low: the chain from \\[mode low\\] .*a cycle" p.ini 35 '35s/$/\nnext = mid\nnext_after_s = 60\n[mode mid]\ndrive.resistor_ohm = 68\nnext = low\nnext_below_cell_v = 1.1/' $RUN
+case_ 2 "p.ini:37: \\[mode low\\] next_after_s = '-5': expected a number above 0" p.ini 35 '35s/$/\nnext = off\nnext_after_s = -5/' $RUN
+case_ 2 "p.ini:37: \\[mode low\\] next_below_cell_v = '20': expected a number above 0 to 10" p.ini 35 '35s/$/\nnext = off\nnext_below_cell_v = 20/' $RUN
+case_ 2 "p.ini:37: \\[mode low\\] next_above_c needs a \\[thermal\\] section" p.ini 35 '35s/$/\nnext = off\nnext_above_c = 45/' $RUN
+case_ 2 "p.ini:38: \\[mode mid\\] changes the pack of a chain" p.ini 35 '35s/$/\nnext = mid\nnext_after_s = 60\n[mode mid]\npack.series = 2/' run p.ini --mode low
+case_ 2 "p.ini:36: \\[mode low\\] next: name a mode or off" p.ini 35 '35s/$/\nnext =/' $RUN
 # modes
 case_ 2 "p.ini:35: unknown key 'resistr_ohm' in \\[drive\\]" p.ini 35 '35s/resistor_ohm/resistr_ohm/' $RUN
 case_ 2 "p.ini:35: .*expected section.key" p.ini 35 '35s/drive.resistor_ohm/resistor_ohm/' $RUN

@@ -79,6 +79,24 @@ expect 2 'expected a number' "$LW" run profiles/demo.ini --set drive.resistor_oh
 if [ ! -e "$TMP/none.csv" ] && [ ! -e "$TMP/none.svg" ]; then ok; else bad "failed run left a file"; fi
 if ls "$TMP" | grep -q tmp; then bad "temporary file left behind"; else ok; fi
 
+# a step-down chain: switches reported, traced, marked, tabulated and drawn
+expect 0 'turbo -> high \(after 180 s\)' "$LW" run profiles/torch-18650.ini --mode turbo --trace "$TMP/chain.csv" --plot "$TMP/chain.svg"
+expect 0 'high -> low \(cell down to 3.2 V\)' "$LW" run profiles/torch-18650.ini --mode turbo
+tr -d '\r' < "$TMP/chain.csv" > "$TMP/chain.txt" # RFC 4180 rows end in CRLF
+if head -1 "$TMP/chain.txt" | grep -q ',t_j_c,t_board_c,t_body_c,mode$'; then ok; else bad "chain trace header"; fi
+# the modes in order, and two rows at the instant of each switch
+modes=$(tail -n +2 "$TMP/chain.txt" | awk -F, '$NF != last { printf "%s ", $NF; last = $NF }')
+if [ "$modes" = "turbo high low " ]; then ok; else bad "chain trace modes: $modes"; fi
+same=$(tail -n +2 "$TMP/chain.txt" | awk -F, 'NR > 1 && $1 == t && $NF != m { n++ } { t = $1; m = $NF } END { print n + 0 }')
+if [ "$same" -eq 2 ]; then ok; else bad "rows at the switches: $same"; fi
+if grep -q 'turbo to high' "$TMP/chain.svg" && grep -q 'high to low' "$TMP/chain.svg"; then ok; else bad "switch marks"; fi
+expect 0 '^[0-9.]+,cell-voltage,.*,2,[0-9]+,body-hot' "$LW" run profiles/torch-18650.ini --mode turbo --format csv
+expect 0 'after 3 min [0-9]+ lm, at 3.2 V [0-9]+ lm' "$LW" table profiles/torch-18650.ini --plot "$TMP/modes.svg"
+if grep -q '</svg>' "$TMP/modes.svg" && grep -q '>turbo<' "$TMP/modes.svg" && grep -q '>low<' "$TMP/modes.svg"; then ok; else bad "chart of modes"; fi
+for f in "$TMP/modes.svg" "$TMP/chain.svg"; do
+    if python3 "$(dirname "$0")/svgcheck.py" "$f" >/dev/null 2>&1; then ok; else bad "svgcheck $f"; fi
+done
+
 # a light that never lights: exit 1, end_reason never-lit
 expect 1 'never-lit' "$LW" run "$TMP/p/light.ini" --set pack.series=2 --format csv
 

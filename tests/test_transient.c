@@ -137,6 +137,10 @@ static double tj_residual(double tj, void *p)
     return q->tb + q->l->thermal.r_jb_k_w * q->l->led.heat_fraction * q->duty * v * i - tj;
 }
 
+/* The on-state loaded cell voltage at the last rates() call (the tests run
+ * on one thread). */
+static double last_cell_v;
+
 /* The model's rates at state y = (d, T_b, T_h, lm s, J into LEDs, J drawn). */
 static int rates(double t, const double y[], double dy[], void *params)
 {
@@ -160,6 +164,7 @@ static int rates(double t, const double y[], double dy[], void *params)
     double q_led = led->heat_fraction * p_led, q_other = p_res + p_int;
     double flux = duty * m * n * led->flux_lm * pow(i / led->flux_current_a, led->flux_exponent) *
                   fmax(0.0, 1.0 + led->tc_flux_per_k * (tj - led->junction_c));
+    last_cell_v = ref_interp(c->ocv, y[0]) - ip / l->pack.parallel * rp / l->pack.series;
     dy[0] = ic / cap / 3600.0;
     dy[1] = (q_led - (y[1] - y[2]) / th->r_bb_k_w) / th->c_b_j_k;
     dy[2] = ((y[1] - y[2]) / th->r_bb_k_w + q_other - (y[2] - l->pack.ambient_c) / th->r_ha_k_w) /
@@ -177,6 +182,13 @@ static double flux_of(lw_light *l, const double y[])
     return dy[3];
 }
 
+static double cell_v_of(lw_light *l, const double y[])
+{
+    double dy[6];
+    rates(0, y, dy, l);
+    return last_cell_v;
+}
+
 /* Integrate y from t0 to t1 (rk8pd, 1e-12 relative). */
 static void advance(lw_light *l, double t0, double t1, double y[6])
 {
@@ -188,10 +200,10 @@ static void advance(lw_light *l, double t0, double t1, double y[6])
     gsl_odeiv2_driver_free(d);
 }
 
-/* The first time after t0 at which flux falls to target: march in steps of
- * dt, then bisect from the last state above it to 1e-9 s. */
-static double time_of_flux(lw_light *l, double t0, double y0[6], double target, double dt,
-                           double y_at[6])
+/* The first time after t0 at which g(state) falls to target: march in
+ * steps of dt, then bisect from the last state above it to 1e-9 s. */
+static double time_of(double (*g)(lw_light *, const double *), lw_light *l, double t0,
+                      const double y0[6], double target, double dt, double y_at[6])
 {
     double t = t0, y[6];
     memcpy(y, y0, sizeof y);
@@ -199,7 +211,7 @@ static double time_of_flux(lw_light *l, double t0, double y0[6], double target, 
         double y1[6];
         memcpy(y1, y, sizeof y1);
         advance(l, t, t + dt, y1);
-        if (flux_of(l, y1) <= target)
+        if (g(l, y1) <= target)
             break;
         t += dt;
         memcpy(y, y1, sizeof y);
@@ -209,7 +221,7 @@ static double time_of_flux(lw_light *l, double t0, double y0[6], double target, 
         double mid = 0.5 * (a + b), ym[6];
         memcpy(ym, y, sizeof ym);
         advance(l, t, t + mid, ym);
-        if (flux_of(l, ym) > target)
+        if (g(l, ym) > target)
             a = mid;
         else
             b = mid;
@@ -219,44 +231,56 @@ static double time_of_flux(lw_light *l, double t0, double y0[6], double target, 
     return t + b;
 }
 
+static double time_of_flux(lw_light *l, double t0, const double y0[6], double target,
+                           double dt, double y_at[6])
+{
+    return time_of(flux_of, l, t0, y0, target, dt, y_at);
+}
+
 /* The demo light (Shockley LEDs, resistor, three alkaline-like cells) with
- * a heat path holding both heat capacities: runtime to the relative
- * cutoff, lumen-hours, time to 50 %, the 30-s output and the energies
- * within 1e-6 of the GSL solution; and again with a thermal foldback on
- * the body scaling the resistor drive's duty. */
+ * a heat path holding both heat capacities. */
+static void heated_demo_light(lw_light *l)
+{
+    base_light(l);
+    sloping_cell(l);
+    l->pack.series = 3;
+    l->led.strings = 2;
+    l->led.model = LW_LED_SHOCKLEY;
+    l->led.ideality = 3.0, l->led.saturation_a = 4.6e-18, l->led.series_ohm = 1.5;
+    l->led.junction_c = 25, l->led.flux_lm = 22, l->led.flux_current_a = 0.06;
+    l->led.flux_exponent = 0.9;
+    l->led.tc_forward_v_k = -2e-3, l->led.tc_flux_per_k = -0.3e-2, l->led.heat_fraction = 0.65;
+    l->drive.resistor_ohm = 22;
+    l->cutoff.cell_v = 0.5; /* the relative cutoff ends the run */
+    l->thermal = (lw_thermal){.enabled = true,
+                              .r_jb_k_w = 40,
+                              .r_bb_k_w = 15,
+                              .r_ha_k_w = 60,
+                              .c_b_j_k = 3,
+                              .c_h_j_k = 40,
+                              .losses_in_body = true,
+                              .max_touch_c = 48,
+                              .foldback_from_c = NAN,
+                              .foldback_min = 1};
+    lw_light_update_factors(l, NULL);
+}
+
+/* The heated demo light: runtime to the relative cutoff, lumen-hours, time
+ * to 50 %, the 30-s output and the energies within 1e-6 of the GSL
+ * solution; and again with a thermal foldback on the body scaling the
+ * resistor drive's duty. */
 static void heated_light_in_time_against_gsl(void **state)
 {
     (void)state;
     gsl_set_error_handler_off();
     for (int with_foldback = 0; with_foldback < 2; with_foldback++) {
         lw_light l;
-        base_light(&l);
-        sloping_cell(&l);
-        l.pack.series = 3;
-        l.led.strings = 2;
-        l.led.model = LW_LED_SHOCKLEY;
-        l.led.ideality = 3.0, l.led.saturation_a = 4.6e-18, l.led.series_ohm = 1.5;
-        l.led.junction_c = 25, l.led.flux_lm = 22, l.led.flux_current_a = 0.06;
-        l.led.flux_exponent = 0.9;
-        l.led.tc_forward_v_k = -2e-3, l.led.tc_flux_per_k = -0.3e-2, l.led.heat_fraction = 0.65;
-        l.drive.resistor_ohm = 22;
-        l.cutoff.cell_v = 0.5; /* the relative cutoff ends the run */
-        l.thermal = (lw_thermal){.enabled = true,
-                                 .r_jb_k_w = 40,
-                                 .r_bb_k_w = 15,
-                                 .r_ha_k_w = 60,
-                                 .c_b_j_k = 3,
-                                 .c_h_j_k = 40,
-                                 .losses_in_body = true,
-                                 .max_touch_c = 48,
-                                 .foldback_from_c = NAN,
-                                 .foldback_min = 1};
+        heated_demo_light(&l);
         if (with_foldback) {
             /* from 22 to 25 C down to 40 % of the duty */
             l.thermal.foldback_from_c = 22, l.thermal.foldback_to_c = 25;
             l.thermal.foldback_min = 0.4;
         }
-        lw_light_update_factors(&l, NULL);
         lw_result r = run_ok(&l, false);
         /* the reference */
         double y[6] = {0, 20, 20, 0, 0, 0};
@@ -284,6 +308,76 @@ static void heated_light_in_time_against_gsl(void **state)
         lw_light_clear(&l);
     }
 }
+
+/* A chain of three modes on the heated demo light with its foldback,
+ * differing in the series resistor: 10 ohm for 20 minutes, 22 ohm until
+ * the loaded cell is down to 1.2 V, 47 ohm to the relative cutoff.  The
+ * reference runs each mode with GSL as above, the timer at its time and the
+ * cell-voltage trigger found by bisection; the 30-s output, the switch
+ * times, time to 50 %, runtime, lumen-hours and energies within 1e-6. */
+static void chain_in_time_against_gsl(void **state)
+{
+    (void)state;
+    gsl_set_error_handler_off();
+    const double ohm[3] = {10, 22, 47};
+    lw_light modes[3];
+    lw_chain *c = lw_chain_new();
+    assert_non_null(c);
+    for (int k = 0; k < 3; k++) {
+        heated_demo_light(&modes[k]);
+        modes[k].thermal.foldback_from_c = 27, modes[k].thermal.foldback_to_c = 32;
+        modes[k].thermal.foldback_min = 0.7;
+        modes[k].drive.resistor_ohm = ohm[k];
+        c->modes[k].light = calloc(1, sizeof(lw_light));
+        assert_non_null(c->modes[k].light);
+        lw_light_copy(c->modes[k].light, &modes[k]);
+        snprintf(c->modes[k].name, sizeof c->modes[k].name, "m%d", k);
+        c->modes[k].after_s = c->modes[k].below_cell_v = c->modes[k].above_c = NAN;
+        c->modes[k].next = k < 2 ? k + 1 : LW_CHAIN_NONE;
+    }
+    c->n = 3;
+    c->modes[0].after_s = 1200;
+    c->modes[1].below_cell_v = 1.2;
+    lw_light l;
+    lw_light_copy(&l, &modes[0]);
+    l.chain = c;
+    lw_result r = run_ok(&l, false);
+    /* the reference, mode by mode */
+    double y[6] = {0, 20, 20, 0, 0, 0};
+    advance(&modes[0], 0, 30, y);
+    double flux_ref = flux_of(&modes[0], y);
+    advance(&modes[0], 30, 1200, y);
+    assert_true(flux_of(&modes[0], y) > 0.5 * flux_ref); /* 50 % comes later */
+    double y_sw[6], y_end[6], y_half[6];
+    double t_sw = time_of(cell_v_of, &modes[1], 1200, y, 1.2, 600, y_sw);
+    double t_half = time_of_flux(&modes[1], 1200, y, 0.5 * flux_ref, 600, y_half);
+    if (t_half >= t_sw) /* not in mode 1: at the switch, or later in mode 2 */
+        t_half = flux_of(&modes[2], y_sw) <= 0.5 * flux_ref
+                     ? t_sw
+                     : time_of_flux(&modes[2], t_sw, y_sw, 0.5 * flux_ref, 600, y_half);
+    assert_true(flux_of(&modes[2], y_sw) > 0.10 * flux_ref); /* it goes on in mode 2 */
+    double t_end = time_of_flux(&modes[2], t_sw, y_sw, 0.10 * flux_ref, 1800, y_end);
+    assert_int_equal(r.end_reason, LW_END_RELATIVE);
+    assert_int_equal(r.n_switches, 2);
+    assert_int_equal(r.switches[0].cause, LW_SWITCH_TIMER);
+    assert_int_equal(r.switches[1].cause, LW_SWITCH_CELL_V);
+    assert_int_equal(r.switches[1].from, 1);
+    assert_int_equal(r.switches[1].to, 2);
+    assert_close(r.switches[0].t_h, 1200.0 / 3600, 1e-12);
+    assert_close(r.switches[1].t_h, t_sw / 3600, 1e-6);
+    assert_close(r.flux_30s_lm, flux_ref, 1e-6);
+    assert_close(r.time_to_half_h, t_half / 3600, 1e-6);
+    assert_close(r.runtime_h, t_end / 3600, 1e-6);
+    assert_close(r.lumen_hours, y_end[3] / 3600, 1e-6);
+    assert_close(r.energy_led_wh, y_end[4] / 3600, 1e-6);
+    assert_close(r.energy_drawn_wh, y_end[5] / 3600, 1e-6);
+    assert_close(r.switches[1].flux_after_lm, flux_of(&modes[2], y_sw), 1e-6);
+    assert_true(r.peak_body_c > modes[0].thermal.foldback_from_c); /* it folded back */
+    lw_light_clear(&l);
+    for (int k = 0; k < 3; k++)
+        lw_light_clear(&modes[k]);
+}
+
 
 /* The trace of a run in time: rows from switch-on to the end, times
  * increasing, the heat path's temperatures moving. */
@@ -320,6 +414,7 @@ int main(void)
         cmocka_unit_test(radau_tableau_has_order_5),
         cmocka_unit_test(time_domain_agrees_with_the_depth_quadrature),
         cmocka_unit_test(heated_light_in_time_against_gsl),
+        cmocka_unit_test(chain_in_time_against_gsl),
         cmocka_unit_test(trace_of_a_run_in_time),
     };
     return cmocka_run_group_tests(tests, NULL, NULL);

@@ -21,6 +21,7 @@
 #include "trace.h"
 #include "fit.h"
 #include "sweep.h"
+#include "spec.h"
 
 #define LW_PLOT_SERIES_MAX 16
 #define LW_PLOT_PANELS_MAX 3
@@ -94,6 +95,12 @@ size_t lw_plot_ticks(double lo, double hi, size_t max_ticks, double *ticks);
  * cutoff line, and pack voltage (loaded and open circuit), against hours. */
 LW_MUST_CHECK lw_status lw_plot_run(FILE *fp, const char *title, const lw_light *light,
                                     const lw_result *res, const lw_trace *trace, lw_error *err);
+
+/* The chart a specification carries: every mode's light output (lm)
+ * against hours since switch-on, with cell column c of the table's runs
+ * (each mode run again with its trace, lw_spec_trace).  At most
+ * LW_PLOT_SERIES_MAX modes. */
+LW_MUST_CHECK lw_status lw_plot_modes(FILE *fp, const lw_spec *spec, size_t c, lw_error *err);
 
 /* The chart of an LED fit: the measured points with the fitted curves, and
  * the residuals below (lin and sh may each be NULL). */

@@ -11,7 +11,8 @@
  * has none), one column group per cell: light output 30 s after switch-on,
  * runtime to the cutoff, time to 50 %, hours at full output when a mode
  * regulates, peak intensity and beam distance with an [optics] section
- * (ANSI/PLATO FL 1 definitions), and the markers of that run's warnings.
+ * (ANSI/PLATO FL 1 definitions), the steps of a mode that steps down, and
+ * the markers of that run's warnings.
  * The notes under the table state the conditions actually computed --
  * storage, ambient, the cutoff rule and its reference, the drive -- once when
  * every run shares them, per mode or cell where they differ.
@@ -25,6 +26,7 @@
 #endif
 
 #include "batch.h"
+#include "trace.h"
 
 typedef struct lw_spec {
     const lw_profile *prof;  /* borrowed */
@@ -41,6 +43,13 @@ typedef struct lw_spec {
 LW_MUST_CHECK lw_status lw_spec_compute(const lw_profile *prof, const char *const *cells,
                                         int threads, lw_spec *spec, lw_error *err);
 void lw_spec_clear(lw_spec *spec);
+
+/* The trace of the run of mode row r with cell c (run again with its
+ * trace kept, the same run as the table's): *res and *trace filled; free
+ * with lw_run_result_clear and lw_trace_clear.  A case that failed or gave
+ * no light has no trace: LW_EINPUT saying so. */
+LW_MUST_CHECK lw_status lw_spec_trace(const lw_spec *spec, size_t r, size_t c, lw_result *res,
+                                      lw_trace *trace, lw_error *err);
 
 /* Round for a specification table: 2 significant figures below 100, whole
  * numbers from 100 up. */

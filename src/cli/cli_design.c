@@ -367,19 +367,31 @@ const cli_option cli_table_options[] = {
     CLI_OPT_SET,
     CLI_OPT_FORMAT,
     CLI_OPT_THREADS,
+    {"plot", "FILE.svg", OPT_PLOT,
+     "write a chart of every mode's output against time\n(the first cell's)"},
     CLI_OPT_HELP,
     CLI_OPT_END};
 
 typedef struct table_args {
     common_opts o;
     const char *cells;
+    const char *plot_path;
 } table_args;
+
+static lw_status modes_chart_fn(FILE *fp, const void *ctx, lw_error *err)
+{
+    return lw_plot_modes(fp, ctx, 0, err);
+}
 
 static int table_option(void *ctx, int id, const char *arg)
 {
     table_args *a = ctx;
     if (id == OPT_CELLS) {
         a->cells = arg;
+        return 0;
+    }
+    if (id == OPT_PLOT) {
+        a->plot_path = arg;
         return 0;
     }
     return common_option("table", &a->o, id, arg);
@@ -399,14 +411,23 @@ int cli_table(int argc, char **argv)
     lw_vary cellv = {0};
     const char **cells = NULL;
     lw_rtable *t = NULL;
+    lw_spec spec = {0};
     lw_status st = load_profile(argv[first], &a.o, &prof, &err);
+    const char *outs[] = {a.plot_path}, *names[] = {"--plot"};
+    if (st == LW_OK)
+        st = check_outputs(&prof, NULL, 0, outs, names, 1, &err);
     if (st == LW_OK && a.cells)
         st = parse_cells(a.cells, &prof, &cellv, &cells, &err);
     if (st == LW_OK)
-        st = lw_report_spec_table(&prof, cells, a.o.fmt, a.o.threads, &t, &err);
+        st = lw_spec_compute(&prof, cells, a.o.threads, &spec, &err);
+    if (st == LW_OK)
+        st = lw_report_spec(&spec, a.o.fmt, &t, &err);
+    if (st == LW_OK && a.plot_path)
+        st = lw_outfile_write(a.plot_path, modes_chart_fn, &spec, &err);
     if (st == LW_OK)
         st = lw_rtable_write(t, stdout, a.o.fmt, &err);
     int code = st == LW_OK ? 0 : report_error(&err);
+    lw_spec_clear(&spec);
     lw_rtable_free(t);
     free(cells);
     lw_vary_clear(&cellv);

@@ -197,14 +197,16 @@ lw_status lw_profchain_build(const lw_profile *base, const lw_profile_variant *v
             w.mode = name;
             w.single_mode = true;
             lw_profile q;
-            st = lw_profile_derive(base, &w, origin, &q, err);
+            st = read_keys(out, name, &m, err);
+            if (st == LW_OK)
+                st = lw_profile_derive(base, &w, origin, &q, err);
+            else
+                memset(&q, 0, sizeof q);
             if (st == LW_OK)
                 st = same_pack(out, &q, name, m.section_line, err);
             if (st == LW_OK)
                 lw_light_copy(cm->light, &q.light);
             lw_profile_clear(&q);
-            if (st == LW_OK)
-                st = read_keys(out, name, &m, err);
         }
         if (st != LW_OK)
             break;

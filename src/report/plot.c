@@ -658,6 +658,73 @@ lw_status lw_plot_svg(FILE *fp, const lw_chart *c, lw_error *err)
     return result;
 }
 
+static lw_status lw_plot_modes_in_c_locale(FILE *fp, const lw_spec *spec, size_t c,
+                                           lw_error *err)
+{
+    size_t n = spec->nrows;
+    if (n > LW_PLOT_SERIES_MAX)
+        return lw_error_set(err, LW_EINPUT, spec->prof->path, 0,
+                            "the chart of modes draws at most %d modes; the profile has %zu",
+                            LW_PLOT_SERIES_MAX, n);
+    lw_result res[LW_PLOT_SERIES_MAX];
+    lw_trace tr[LW_PLOT_SERIES_MAX];
+    double *xy[LW_PLOT_SERIES_MAX] = {NULL};
+    memset(res, 0, sizeof res);
+    memset(tr, 0, sizeof tr);
+    lw_chart ch = {0};
+    char title[160], sub[256];
+    snprintf(title, sizeof title, "%s: output of every mode", spec->prof->light.name);
+    const lw_light *l0 = &spec->cases[c].light;
+    snprintf(sub, sizeof sub, "%d x %s at %g C, fresh cells; each line to its cutoff",
+             l0->pack.series * l0->pack.parallel, l0->pack.cell.name, l0->pack.ambient_c);
+    ch.title = title;
+    ch.subtitle = sub;
+    ch.npanels = 1;
+    lw_panel *p = &ch.panels[0];
+    p->y = (lw_axis){.label = "light output (lm)", .from_zero = true};
+    double t_end = 0.0;
+    lw_status st = LW_OK;
+    for (size_t r = 0; r < n && st == LW_OK; r++) {
+        st = lw_spec_trace(spec, r, c, &res[r], &tr[r], err);
+        if (st != LW_OK)
+            break;
+        xy[r] = lw_malloc(2 * (tr[r].n ? tr[r].n : 1) * sizeof *xy[r]);
+        if (!xy[r]) {
+            st = lw_error_set(err, LW_ENOMEM, NULL, 0, "out of memory for the plot");
+            break;
+        }
+        for (size_t i = 0; i < tr[r].n; i++) {
+            xy[r][i] = tr[r].rows[i].t_h;
+            xy[r][tr[r].n + i] = tr[r].rows[i].pt.flux_lm;
+        }
+        const lw_case *k = &spec->cases[r * spec->ncells + c];
+        p->series[p->nseries++] = (lw_series){.name = k->variant.mode ? k->variant.mode
+                                                                      : "(as written)",
+                                              .x = xy[r],
+                                              .y = xy[r] + tr[r].n,
+                                              .n = tr[r].n};
+        t_end = fmax(t_end, res[r].runtime_h);
+    }
+    ch.x = (lw_axis){.label = "time since switch-on (h)", .lo = 0,
+                     .hi = t_end > 0 ? t_end * 1.02 : 1.0};
+    if (st == LW_OK)
+        st = lw_plot_svg(fp, &ch, err);
+    for (size_t r = 0; r < n; r++) {
+        free(xy[r]);
+        lw_trace_clear(&tr[r]);
+        lw_run_result_clear(&res[r]);
+    }
+    return st;
+}
+
+lw_status lw_plot_modes(FILE *fp, const lw_spec *spec, size_t c, lw_error *err)
+{
+    locale_t saved = lw_number_locale_begin();
+    lw_status result = lw_plot_modes_in_c_locale(fp, spec, c, err);
+    lw_number_locale_end(saved);
+    return result;
+}
+
 lw_status lw_plot_run(FILE *fp, const char *title, const lw_light *light, const lw_result *res,
                       const lw_trace *trace, lw_error *err)
 {

@@ -186,6 +186,15 @@ static lw_status spec_notes(const lw_spec *s, unsigned used, lw_rtable *t, lw_er
         st = aspect(s, "Drive", drive_of, common, sizeof common, t, err);
     if (st == LW_OK && s->regulated)
         strncat(common, "; 'at full': hours in regulation", sizeof common - strlen(common) - 1);
+    bool chains = false;
+    for (size_t i = 0; i < s->nrows * s->ncells; i++)
+        chains = chains || s->cases[i].light.chain;
+    if (st == LW_OK && chains)
+        strncat(common,
+                "; a mode that steps down is run through its steps (runtime to the cutoff of "
+                "its first mode), 'steps' gives the 30-s output and each step's output and "
+                "trigger",
+                sizeof common - strlen(common) - 1);
     strncat(common, ".", sizeof common - strlen(common) - 1);
     /* the common sentence goes first */
     if (st == LW_OK)
@@ -240,7 +249,53 @@ static lw_status spec_notes(const lw_spec *s, unsigned used, lw_rtable *t, lw_er
 
 /* ---- the table ---- */
 
-enum { SC_FLUX, SC_RUNTIME, SC_HALF, SC_REGULATED, SC_CD, SC_BEAM, SC_END, SC_NOTES, SC_COUNT };
+enum {
+    SC_FLUX, SC_RUNTIME, SC_HALF, SC_REGULATED, SC_CD, SC_BEAM, SC_STEPS, SC_END, SC_NOTES,
+    SC_COUNT
+};
+
+/* A time in a mode in words: "90 s", "3 min", "1.5 h". */
+static void duration_words(double s, char *buf, size_t size)
+{
+    if (s < 120.0)
+        snprintf(buf, size, "%g s", s);
+    else if (s < 7200.0)
+        snprintf(buf, size, "%g min", s / 60.0);
+    else
+        snprintf(buf, size, "%g h", s / 3600.0);
+}
+
+/* The steps of a run of a chain in words: "670 lm, after 3 min 330 lm, at
+ * 3.2 V 100 lm" (outputs rounded as the lm column); "" without a chain. */
+static void steps_words(const lw_case *k, char *buf, size_t size)
+{
+    const lw_light *l = &k->light;
+    const lw_result *r = &k->res;
+    if (!l->chain) {
+        snprintf(buf, size, "steady");
+        return;
+    }
+    int n = snprintf(buf, size, "%.10g lm", lw_spec_round(r->flux_30s_lm));
+    for (size_t i = 0; i < r->n_switches && n > 0 && (size_t)n < size; i++) {
+        const lw_switch *sw = &r->switches[i];
+        const lw_chain_mode *m = &l->chain->modes[sw->from];
+        char when[64], what[64];
+        if (sw->cause == LW_SWITCH_TIMER) {
+            char d[32];
+            duration_words(m->after_s, d, sizeof d);
+            snprintf(when, sizeof when, "after %s", d);
+        } else if (sw->cause == LW_SWITCH_CELL_V) {
+            snprintf(when, sizeof when, "at %g V", m->below_cell_v);
+        } else {
+            snprintf(when, sizeof when, "at %g C body", m->above_c);
+        }
+        if (sw->to == LW_CHAIN_OFF)
+            snprintf(what, sizeof what, "off");
+        else
+            snprintf(what, sizeof what, "%.10g lm", lw_spec_round(sw->flux_after_lm));
+        n += snprintf(buf + n, size - (size_t)n, ", %s %s", when, what);
+    }
+}
 
 static double peak_cd(const lw_profile *p, double flux_lm)
 {
@@ -260,6 +315,10 @@ static lw_status spec_cell(const lw_spec *s, const lw_case *k, int kind, lw_rtab
     char buf[512];
     if (kind == SC_END)
         return lw_rtable_set(t, row, col, lw_run_end_names[res->end_reason], err);
+    if (kind == SC_STEPS) {
+        steps_words(k, buf, sizeof buf);
+        return lw_rtable_set(t, row, col, dark ? "-" : buf, err);
+    }
     if (kind == SC_NOTES) {
         if (fmt == LW_FMT_CSV) {
             lw_report_warnings(res->warnings, buf, sizeof buf);
@@ -301,10 +360,10 @@ static lw_status lw_report_spec_in_c_locale(const lw_spec *s, lw_rtable_format f
                                             lw_error *err)
 {
     static const char *const csv_names[SC_COUNT] = {
-        "flux_lm", "runtime_h", "half_h", "regulated_h", "peak_cd", "beam_m", "end_reason",
-        "warnings"};
+        "flux_lm", "runtime_h", "half_h", "regulated_h", "peak_cd", "beam_m", "steps",
+        "end_reason", "warnings"};
     static const char *const txt_names[SC_COUNT] = {"lm", "runtime", "to 50 %", "at full",
-                                                    "cd", "beam m", "", "notes"};
+                                                    "cd", "beam m", "steps", "", "notes"};
     *out = NULL;
     /* which warnings appear (bit LW_WARN_COUNT_: some run gave no light) */
     unsigned used = 0;
@@ -313,6 +372,9 @@ static lw_status lw_report_spec_in_c_locale(const lw_spec *s, lw_rtable_format f
         if (lw_run_end_is_dark(s->cases[i].res.end_reason))
             used |= 1u << LW_WARN_COUNT_;
     }
+    bool chains = false; /* some mode steps down: the steps column */
+    for (size_t i = 0; i < s->nrows * s->ncells; i++)
+        chains = chains || s->cases[i].light.chain;
     int kinds[SC_COUNT];
     size_t per = 0;
     kinds[per++] = SC_FLUX;
@@ -324,6 +386,8 @@ static lw_status lw_report_spec_in_c_locale(const lw_spec *s, lw_rtable_format f
         kinds[per++] = SC_CD;
         kinds[per++] = SC_BEAM;
     }
+    if (chains)
+        kinds[per++] = SC_STEPS;
     if (fmt == LW_FMT_CSV)
         kinds[per++] = SC_END;
     if (fmt == LW_FMT_CSV || used)

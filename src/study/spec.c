@@ -79,3 +79,21 @@ double lw_spec_round(double v)
     double mag = pow(10.0, floor(log10(fabs(v))) - 1.0);
     return round(v / mag) * mag;
 }
+
+lw_status lw_spec_trace(const lw_spec *spec, size_t r, size_t c, lw_result *res,
+                        lw_trace *trace, lw_error *err)
+{
+    memset(res, 0, sizeof *res);
+    memset(trace, 0, sizeof *trace);
+    const lw_case *k = &spec->cases[r * spec->ncells + c];
+    if (k->status != LW_OK || !k->has_light || lw_run_end_is_dark(k->res.end_reason))
+        return lw_error_set(err, LW_EINPUT, spec->prof->path, 0,
+                            "mode %s gave no light: no trace to draw",
+                            k->variant.mode ? k->variant.mode : "(as written)");
+    lw_run_options opt = lw_run_options_default();
+    opt.want_trace = true;
+    lw_status st = lw_run(&k->light, &opt, res, err);
+    if (st == LW_OK)
+        st = lw_trace_build(&k->light, res, LW_TRACE_ROWS_MIN, trace, err);
+    return st;
+}
