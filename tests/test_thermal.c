@@ -8,6 +8,7 @@
 #include "testutil.h"
 #include "tmpdir.h"
 #include "lights.h"
+#include "bundled.h"
 
 static lw_thermal network(double r_jb, double r_bb, double r_ha, double c_b, double c_h)
 {
@@ -183,6 +184,52 @@ static void thermal_runaway_is_refused(void **state)
     lw_light_clear(&l);
 }
 
+/* The resistor derating: full rating to 70 C, none at 155 C, linear
+ * between (common practice, no source).  A run keeps the rating its
+ * resistor needs at the body's temperature: the peak power itself while
+ * the body stays below 70 C, more when it is hotter, and warns when the
+ * profile's rating is below that. */
+static void resistor_rating_follows_the_body(void **state)
+{
+    (void)state;
+    assert_near(lw_thermal_resistor_derating(20), 1, 0);
+    assert_near(lw_thermal_resistor_derating(70), 1, 0);
+    assert_near(lw_thermal_resistor_derating(112.5), 0.5, 1e-15);
+    assert_near(lw_thermal_resistor_derating(155), 0, 0);
+    assert_near(lw_thermal_resistor_derating(200), 0, 0);
+    lw_profile p = bundled_profile("headlamp-18650");
+    lw_error e;
+    lw_error_clear(&e);
+    lw_result r;
+    assert_int_equal(lw_run(&p.light, NULL, &r, &e), LW_OK);
+    assert_true(r.peak_body_c < LW_RESISTOR_FULL_C);
+    assert_close(r.peak_resistor_derated_w, r.peak_resistor_w, 1e-15);
+    assert_false(r.warnings & LW_WARN_RESISTOR_DERATED);
+    lw_run_result_clear(&r);
+    /* a hot ambient: the body above 70 C, the rating set between the peak
+     * power and what the body's temperature asks */
+    p.light.pack.ambient_c = 75;
+    lw_light_update_factors(&p.light, NULL);
+    assert_int_equal(lw_run(&p.light, NULL, &r, &e), LW_OK);
+    assert_true(r.peak_body_c > LW_RESISTOR_FULL_C);
+    /* above the peak power (the body hot at some point), at most the peak
+     * power at the hottest body */
+    assert_true(r.peak_resistor_derated_w > r.peak_resistor_w * 1.001);
+    assert_true(r.peak_resistor_derated_w <=
+                r.peak_resistor_w / lw_thermal_resistor_derating(r.peak_body_c) * (1 + 1e-12));
+    double need = r.peak_resistor_derated_w;
+    lw_run_result_clear(&r);
+    p.light.drive.rating_w = 0.99 * need;
+    assert_int_equal(lw_run(&p.light, NULL, &r, &e), LW_OK);
+    assert_true(r.warnings & LW_WARN_RESISTOR_DERATED);
+    lw_run_result_clear(&r);
+    p.light.drive.rating_w = 1.01 * need;
+    assert_int_equal(lw_run(&p.light, NULL, &r, &e), LW_OK);
+    assert_false(r.warnings & LW_WARN_RESISTOR_DERATED);
+    lw_run_result_clear(&r);
+    lw_profile_clear(&p);
+}
+
 /* [thermal] in a profile: its required keys named at the section's line; a
  * negative heat capacity refused at its line; a valid section runs. */
 static void thermal_section_in_profiles(void **state)
@@ -234,6 +281,7 @@ int main(void)
         cmocka_unit_test(junction_temperature_is_self_consistent),
         cmocka_unit_test(thermal_runaway_is_refused),
         cmocka_unit_test(thermal_section_in_profiles),
+        cmocka_unit_test(resistor_rating_follows_the_body),
     };
     int rc = cmocka_run_group_tests(tests, NULL, NULL);
     tmp_cleanup();

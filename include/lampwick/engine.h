@@ -91,7 +91,9 @@ enum {
     LW_WARN_RESISTOR_OVER_RATING = 1u << 9, /* resistor power above its rating */
     LW_WARN_JUNCTION_HOT = 1u << 10,     /* LED junction above its max_junction_c */
     LW_WARN_BODY_HOT = 1u << 11,         /* body above [thermal] max_touch_c */
-    LW_WARN_COUNT_ = 12
+    LW_WARN_RESISTOR_DERATED = 1u << 12, /* resistor power above its rating derated to
+                                            the body temperature */
+    LW_WARN_COUNT_ = 13
 };
 
 /* Short machine names of the warning flags, by bit index. */
@@ -161,6 +163,9 @@ typedef struct lw_result {
                                peak, exact where it is at switch-on or an event) */
     double peak_body_c;     /* the same for the body */
     double peak_body_h;     /* when, in a run in time (NAN in the depth quadrature) */
+    double peak_resistor_derated_w; /* the largest p_res_peak_w / derating(T_body): the
+                                       rating one resistor needs at the body's temperature
+                                       (thermal.h; 0 without [thermal] or resistor) */
     int solves;             /* operating-point solves */
     lw_switch switches[LW_CHAIN_MAX]; /* a step-down chain's switches, in order */
     size_t n_switches;
@@ -180,6 +185,10 @@ LW_MUST_CHECK lw_status lw_run(const lw_light *light, const lw_run_options *opt,
                  lw_error *err);
 
 void lw_run_result_clear(lw_result *res);
+
+/* Take point pt into res->peak_resistor_derated_w (both run paths call it
+ * at every point they solve). */
+void lw_run_note_resistor(const lw_light *light, const lw_point *pt, lw_result *res);
 
 /* Worst case at fresh cells: highest OCV (the curve's first point), lowest
  * internal resistance (the curve's minimum), resistor at minus its tolerance,

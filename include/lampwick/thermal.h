@@ -78,6 +78,18 @@ bool lw_thermal_has_foldback(const lw_thermal *th);
  * resistor drive's duty. */
 double lw_thermal_foldback(const lw_thermal *th, double body_c);
 
+/* A resistor's power rating holds up to this temperature of its
+ * surroundings and falls linearly to zero at LW_RESISTOR_ZERO_C: the usual
+ * derating curve of film and chip resistors (common practice, no source;
+ * the part's own data decide). */
+#define LW_RESISTOR_FULL_C 70.0
+#define LW_RESISTOR_ZERO_C 155.0
+
+/* The share of a resistor's rating it may carry at body temperature
+ * body_c: 1 up to LW_RESISTOR_FULL_C, 0 from LW_RESISTOR_ZERO_C, linear
+ * between. */
+double lw_thermal_resistor_derating(double body_c);
+
 /* Time derivatives of the board and body temperatures, K/s, at the node
  * temperatures *t (from lw_thermal_nodes) and the same heat; 0 for a node
  * without heat capacity (and for the board when it is one node with the

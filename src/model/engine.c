@@ -29,7 +29,7 @@ bool lw_run_end_is_dark(lw_end_reason why)
 const char *const lw_run_warning_names[LW_WARN_COUNT_] = {
     "led-over-max", "led-over-max-worst-case", "resistor-hot", "over-discharge", "never-lit",
     "no-cutoff", "led-table-extrapolated", "temperature-outside-table", "tolerance-not-met",
-    "resistor-over-rating", "junction-hot", "body-hot"};
+    "resistor-over-rating", "junction-hot", "body-hot", "resistor-derated"};
 
 /* Gauss-Kronrod 7/15 abscissae and weights (QUADPACK qk15). */
 static const double xgk[8] = {
@@ -107,6 +107,7 @@ static lw_status eval(engine *e, double d, lw_point *pt)
     if (st == LW_OK) {
         e->res->peak_junction_c = fmax(e->res->peak_junction_c, pt->temps.junction_c);
         e->res->peak_body_c = fmax(e->res->peak_body_c, pt->temps.body_c);
+        lw_run_note_resistor(e->l, pt, e->res);
     }
     return st;
 }
@@ -784,6 +785,15 @@ lw_status lw_run_worst_case(const lw_light *light, lw_point *pt, lw_error *err)
     return lw_light_point_at(&w, 0.0, c->ocv->y[0], r_min * light->res_factor, false, pt, err);
 }
 
+void lw_run_note_resistor(const lw_light *l, const lw_point *pt, lw_result *res)
+{
+    if (!l->thermal.enabled || !(pt->p_res_peak_w > 0.0))
+        return;
+    double k = lw_thermal_resistor_derating(pt->temps.body_c);
+    double need = k > 0.0 ? pt->p_res_peak_w / k : INFINITY;
+    res->peak_resistor_derated_w = fmax(res->peak_resistor_derated_w, need);
+}
+
 static void set_warnings(const lw_light *l, lw_result *r)
 {
     double max_a = l->led.max_current_a;
@@ -796,6 +806,8 @@ static void set_warnings(const lw_light *l, lw_result *r)
         r->warnings |= LW_WARN_RESISTOR_HOT;
     if (l->drive.rating_w > 0.0 && p_res > l->drive.rating_w)
         r->warnings |= LW_WARN_RESISTOR_OVER_RATING;
+    if (l->drive.rating_w > 0.0 && r->peak_resistor_derated_w > l->drive.rating_w)
+        r->warnings |= LW_WARN_RESISTOR_DERATED;
     if (lw_cell_chemistry_needs_endpoint(l->pack.cell.chemistry) &&
         l->cutoff.cell_v < l->pack.cell.cutoff_v)
         r->warnings |= LW_WARN_OVER_DISCHARGE;
@@ -986,6 +998,7 @@ static lw_status start_run(engine *e, lw_point *p0)
         return st;
     res->initial = *p0;
     res->peak_resistor_w = p0->p_res_peak_w;
+    lw_run_note_resistor(e->l, p0, res);
     e->d_now = e->d0;
     e->floor_lm = fmax(l->cutoff.flux_lm, e->opt->visible_lm);
     if (e->d0 >= 1.0) {

@@ -43,6 +43,15 @@ bool lw_thermal_has_foldback(const lw_thermal *th)
     return th->enabled && th->foldback_to_c > th->foldback_from_c;
 }
 
+double lw_thermal_resistor_derating(double body_c)
+{
+    if (!(body_c > LW_RESISTOR_FULL_C))
+        return 1.0;
+    if (body_c >= LW_RESISTOR_ZERO_C)
+        return 0.0;
+    return (LW_RESISTOR_ZERO_C - body_c) / (LW_RESISTOR_ZERO_C - LW_RESISTOR_FULL_C);
+}
+
 double lw_thermal_foldback(const lw_thermal *th, double body_c)
 {
     if (!lw_thermal_has_foldback(th) || body_c <= th->foldback_from_c)

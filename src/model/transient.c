@@ -487,6 +487,7 @@ static void peaks(run *r)
         res->peak_body_h = r->t / 3600.0;
     }
     res->peak_resistor_w = fmax(res->peak_resistor_w, r->p.p_res_peak_w);
+    lw_run_note_resistor(r->e.l, &r->p, res);
 }
 
 /* Move to the end of step s of size h. */
@@ -873,6 +874,7 @@ lw_status lw_transient_run(const lw_light *light, const lw_run_options *opt, lw_
         return st;
     res->initial = r.p;
     res->peak_resistor_w = r.p.p_res_peak_w;
+    lw_run_note_resistor(light, &r.p, res);
     res->peak_junction_c = r.p.temps.junction_c;
     res->peak_body_c = r.p.temps.body_c;
     res->peak_body_h = 0.0;

@@ -213,7 +213,9 @@ const char *lw_report_warning(int bit)
         "the integration tolerance was not met everywhere",
         "resistor power exceeds its rating",
         "an LED junction is above the LED's max_junction_c",
-        "the body is hotter than [thermal] max_touch_c: a burn risk where it is held"};
+        "the body is hotter than [thermal] max_touch_c: a burn risk where it is held",
+        "resistor power exceeds its rating derated to the body temperature (full to 70 C, "
+        "zero at 155 C: common practice; the part's data decide)"};
     // NOLINTEND(bugprone-suspicious-missing-comma)
     return text[bit];
 }
@@ -431,6 +433,9 @@ static void text_warnings(FILE *fp, const lw_light *l, const lw_result *r)
     if (w & (LW_WARN_RESISTOR_HOT | LW_WARN_RESISTOR_OVER_RATING))
         fprintf(fp, "    peak %.3g W nominal, %.3g W worst case, rating %.3g W\n",
                 r->peak_resistor_w, r->worst_resistor_w, l->drive.rating_w);
+    if (w & LW_WARN_RESISTOR_DERATED)
+        fprintf(fp, "    a %.3g W rating is needed at the body's temperature (rating %.3g W)\n",
+                r->peak_resistor_derated_w, l->drive.rating_w);
 }
 
 static void text_report(FILE *fp, const lw_profile *p, const lw_result *r)
