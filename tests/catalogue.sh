@@ -205,7 +205,6 @@ case_ 2 "p.ini:37: \\[thermal\\] body_j_k = -5: expected a number >= 0" p.ini 33
 case_ 2 "p.ini:35: .*body_ambient_k_w = 0: expected a number > 0" p.ini 33 '33s/$/\n[thermal]\nbody_ambient_k_w = 0\njunction_board_k_w = 8/' $RUN
 case_ 2 "p.ini:38: \\[thermal\\] foldback needs .* 'foldback_to_c' is missing" p.ini 33 '33s/$/\n[thermal]\njunction_board_k_w = 8\nbody_ambient_k_w = 20\nbody_j_k = 50\nfoldback_from_c = 40\nfoldback_min_pct = 50/' $RUN
 case_ 2 "p.ini:39: \\[thermal\\] foldback_to_c = 30 must be above foldback_from_c = 40" p.ini 33 '33s/$/\n[thermal]\njunction_board_k_w = 8\nbody_ambient_k_w = 20\nbody_j_k = 50\nfoldback_from_c = 40\nfoldback_to_c = 30\nfoldback_min_pct = 50/' $RUN
-case_ 2 "p.ini:37: \\[thermal\\] foldback acts on the body's temperature" p.ini 33 '33s/$/\n[thermal]\njunction_board_k_w = 8\nbody_ambient_k_w = 20\nfoldback_from_c = 40\nfoldback_to_c = 50\nfoldback_min_pct = 50/' $RUN
 # step-down chains: the keys of a [mode NAME] (p.ini ends with [mode low] on 34-35)
 case_ 2 "p.ini:36: \\[mode low\\] next = off needs a trigger" p.ini 35 '35s/$/\nnext = off/' $RUN
 case_ 2 "p.ini:36: \\[mode low\\] next_after_s needs next" p.ini 35 '35s/$/\nnext_after_s = 60/' $RUN

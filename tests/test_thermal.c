@@ -184,6 +184,47 @@ static void thermal_runaway_is_refused(void **state)
     lw_light_clear(&l);
 }
 
+/* A foldback on a body at steady state (no heat capacity): the point's
+ * body temperature is T_a + R_ha (Q_led + Q_other) of the powers it reports
+ * (thermal Ohm's law, common practice), and those powers are the drive at
+ * the factor that body temperature gives (the definition in docs/model.md):
+ * a regulated drive's current is factor x set_ma.  Between the corners the
+ * factor is strictly inside (min, 1). */
+static void foldback_on_a_body_at_steady_state(void **state)
+{
+    (void)state;
+    lw_profile p = bundled_profile("torch-18650");
+    lw_error e;
+    lw_error_clear(&e);
+    lw_thermal *th = &p.light.thermal;
+    th->c_b_j_k = th->c_h_j_k = 0.0; /* at steady state throughout */
+    const double set[] = {0.3, 1.5, 3.5, 5.0}; /* A: below, between, between, at the floor */
+    int inside = 0;
+    for (size_t k = 0; k < sizeof set / sizeof set[0]; k++) {
+        p.light.drive.set_a = set[k];
+        lw_point pt;
+        assert_int_equal(lw_light_point(&p.light, 0.1, false, &pt, &e), LW_OK);
+        double q = p.light.led.heat_fraction * pt.p_led_w + pt.p_res_w + pt.p_int_w + pt.p_drv_w;
+        assert_close(pt.temps.body_c, p.light.pack.ambient_c + th->r_ha_k_w * q, 1e-12);
+        double f = lw_thermal_foldback(th, pt.temps.body_c);
+        assert_close(pt.led_a, f * set[k], 1e-12);
+        inside += f > th->foldback_min && f < 1.0;
+    }
+    assert_true(inside >= 2);
+    /* a run: in depth and in time alike */
+    p.light.drive.set_a = 1.5;
+    lw_result a, b;
+    lw_run_options o = lw_run_options_default();
+    assert_int_equal(lw_run(&p.light, &o, &a, &e), LW_OK);
+    o.time_domain = true;
+    assert_int_equal(lw_run(&p.light, &o, &b, &e), LW_OK);
+    assert_close(a.runtime_h, b.runtime_h, 1e-8);
+    assert_close(a.lumen_hours, b.lumen_hours, 1e-8);
+    lw_run_result_clear(&a);
+    lw_run_result_clear(&b);
+    lw_profile_clear(&p);
+}
+
 /* The resistor derating: full rating to 70 C, none at 155 C, linear
  * between (common practice, no source).  A run keeps the rating its
  * resistor needs at the body's temperature: the peak power itself while
@@ -282,6 +323,7 @@ int main(void)
         cmocka_unit_test(thermal_runaway_is_refused),
         cmocka_unit_test(thermal_section_in_profiles),
         cmocka_unit_test(resistor_rating_follows_the_body),
+        cmocka_unit_test(foldback_on_a_body_at_steady_state),
     };
     int rc = cmocka_run_group_tests(tests, NULL, NULL);
     tmp_cleanup();

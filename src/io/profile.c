@@ -601,13 +601,6 @@ static lw_status check_thermal(lw_profile *p, lw_error *err)
                             "[thermal] foldback_to_c = %g must be above foldback_from_c = %g",
                             th->foldback_to_c, th->foldback_from_c);
     }
-    if (th->r_bb_k_w > 0.0 ? th->c_h_j_k == 0.0 : th->c_b_j_k + th->c_h_j_k == 0.0) {
-        where_of(p, "thermal", "foldback_from_c", &file, &line);
-        return lw_error_set(err, LW_EINPUT, file, line,
-                            "[thermal] foldback acts on the body's temperature as it rises, "
-                            "which needs the body's heat capacity (body_j_k > 0); a body at "
-                            "steady state cannot fold back in this version");
-    }
     return LW_OK;
 }
 

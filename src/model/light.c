@@ -183,20 +183,14 @@ static void point_temps(const lw_light *l, const lw_point *pt, const lw_temps *s
     lw_thermal_nodes(th, l->pack.ambient_c, q_led, q_per, q_other, t);
 }
 
-lw_status lw_light_point_state(const lw_light *l, double depth, double ocv_v, double r_cell_ohm,
-                               bool fallback, const lw_temps *state, lw_point *pt, lw_error *err)
+/* The point at the board and body state *s with the driver's foldback
+ * factor `fold`, the junction solved with the LEDs' own heat. */
+static lw_status point_folded(const lw_light *l, double depth, double ocv_v, double r_cell_ohm,
+                              bool fallback, lw_temps s, double fold, lw_point *pt,
+                              lw_error *err)
 {
     const double ta = l->pack.ambient_c;
-    if (!l->thermal.enabled) {
-        lw_status st = point_electrical(l, depth, ocv_v, r_cell_ohm, fallback, pt, err);
-        pt->temps = (lw_temps){l->led.t_junction_c, ta, ta};
-        return st;
-    }
-    lw_temps s = state ? *state : (lw_temps){ta, ta, ta};
     lw_light w = *l; /* shallow: tables borrowed, never freed here */
-    /* foldback on the body's state (a body with a heat capacity; profile.c
-     * refuses it on a body at steady state) */
-    double fold = lw_thermal_foldback(&l->thermal, s.body_c);
     if (fold < 1.0) {
         if (l->drive.type == LW_DRIVE_RESISTOR)
             w.drive.duty_pct *= fold;
@@ -273,6 +267,83 @@ lw_status lw_light_point_state(const lw_light *l, double depth, double ocv_v, do
                         "[thermal] junction_board_k_w, body_ambient_k_w and [led] "
                         "tc_forward_mv_k, heat_pct",
                         LW_THERMAL_RUNAWAY_K, depth);
+}
+
+/* The body without heat capacity: it follows its balance at every instant. */
+static bool body_static(const lw_thermal *th)
+{
+    return th->r_bb_k_w > 0.0 ? th->c_h_j_k == 0.0 : th->c_b_j_k + th->c_h_j_k == 0.0;
+}
+
+/* A foldback on a body at its balance: the body temperature T is a fixed
+ * point of B(fold(T)), B(f) the body's balance with the driver at factor f.
+ * B rises with f and fold falls with T, so G(T) = B(fold(T)) - T falls: one
+ * root, between B(f_min) (G >= 0) and B(1) (G <= 0), found by the Illinois
+ * variant of regula falsi (Dowell and Jarratt, BIT 11, 1971). */
+static lw_status point_static_foldback(const lw_light *l, double depth, double ocv_v,
+                                       double r_cell_ohm, bool fallback, lw_temps s,
+                                       lw_point *pt, lw_error *err)
+{
+    const lw_thermal *th = &l->thermal;
+    lw_status st = point_folded(l, depth, ocv_v, r_cell_ohm, fallback, s, 1.0, pt, err);
+    double b = pt->temps.body_c, gb = lw_thermal_foldback(th, b) < 1.0 ? NAN : 0.0;
+    if (st != LW_OK || gb == 0.0)
+        return st; /* below the first corner at full output: no foldback */
+    st = point_folded(l, depth, ocv_v, r_cell_ohm, fallback, s, th->foldback_min, pt, err);
+    double a = pt->temps.body_c, ga = 0.0;
+    if (st != LW_OK || lw_thermal_foldback(th, a) <= th->foldback_min)
+        return st; /* above the last corner even at the floor: the floor */
+    /* G at the two ends from their points */
+    ga = NAN;
+    int side = 0;
+    for (int it = 0; it < LW_THERMAL_ITER_MAX; it++) {
+        double x = isnan(ga) ? a : (isnan(gb) ? b : (ga * b - gb * a) / (ga - gb));
+        if (!isnan(ga) && !isnan(gb) && !(x > a && x < b))
+            x = 0.5 * (a + b);
+        st = point_folded(l, depth, ocv_v, r_cell_ohm, fallback, s, lw_thermal_foldback(th, x),
+                          pt, err);
+        if (st != LW_OK)
+            return st;
+        double g = pt->temps.body_c - x;
+        double tol = LW_THERMAL_TOL * (273.15 + fabs(x));
+        if (fabs(g) <= tol || (!isnan(ga) && !isnan(gb) && b - a <= tol))
+            return LW_OK;
+        if (isnan(ga)) {
+            ga = g;
+        } else if (isnan(gb)) {
+            gb = g;
+        } else if (g > 0.0) {
+            a = x, ga = g;
+            if (side == -1)
+                gb *= 0.5;
+            side = -1;
+        } else {
+            b = x, gb = g;
+            if (side == 1)
+                ga *= 0.5;
+            side = 1;
+        }
+    }
+    return lw_error_set(err, LW_ENUMERIC, NULL, 0,
+                        "the body temperature under thermal foldback did not converge in %d "
+                        "steps at depth %.4g",
+                        LW_THERMAL_ITER_MAX, depth);
+}
+
+lw_status lw_light_point_state(const lw_light *l, double depth, double ocv_v, double r_cell_ohm,
+                               bool fallback, const lw_temps *state, lw_point *pt, lw_error *err)
+{
+    const double ta = l->pack.ambient_c;
+    if (!l->thermal.enabled) {
+        lw_status st = point_electrical(l, depth, ocv_v, r_cell_ohm, fallback, pt, err);
+        pt->temps = (lw_temps){l->led.t_junction_c, ta, ta};
+        return st;
+    }
+    lw_temps s = state ? *state : (lw_temps){ta, ta, ta};
+    if (lw_thermal_has_foldback(&l->thermal) && body_static(&l->thermal))
+        return point_static_foldback(l, depth, ocv_v, r_cell_ohm, fallback, s, pt, err);
+    return point_folded(l, depth, ocv_v, r_cell_ohm, fallback, s,
+                        lw_thermal_foldback(&l->thermal, s.body_c), pt, err);
 }
 
 lw_status lw_light_point_at(const lw_light *l, double depth, double ocv_v, double r_cell_ohm,
