@@ -78,6 +78,21 @@ void lw_transient_tableau(double a[3][3], double c[3])
     radau_tableau(a, c);
 }
 
+/* The rates of the operating point pt: dx/dt in f, integrands in g (may be
+ * NULL).  No solve. */
+static void rates_of(const tr *e, const lw_point *pt, double f[NX], double g[NQ])
+{
+    const lw_light *l = e->l;
+    f[0] = isfinite(pt->dtdd_h) && pt->dtdd_h > 0.0 ? 1.0 / (3600.0 * pt->dtdd_h) : 0.0;
+    double q_led = l->led.heat_fraction * pt->p_led_w;
+    double q_other = l->thermal.losses_in_body ? pt->p_res_w + pt->p_int_w + pt->p_drv_w : 0.0;
+    lw_thermal_rates(&l->thermal, l->pack.ambient_c, q_led, q_other, &pt->temps, &f[1], &f[2]);
+    if (g) {
+        g[0] = pt->flux_lm, g[1] = pt->p_led_w, g[2] = pt->p_res_w;
+        g[3] = pt->p_int_w, g[4] = pt->p_drv_w, g[5] = pt->p_drawn_w;
+    }
+}
+
 /* The operating point at state x and its rates: dx/dt in f, integrands in g. */
 static lw_status eval(tr *e, const double x[NX], lw_point *pt, double f[NX], double g[NQ])
 {
@@ -93,17 +108,9 @@ static lw_status eval(tr *e, const double x[NX], lw_point *pt, double f[NX], dou
     double r = lw_interp_linear(c->res, d) * l->res_factor;
     lw_temps s = {NAN, x[1], x[2]};
     lw_status st = lw_light_point_state(l, d, ocv, r, e->fallback, &s, pt, e->err);
-    if (st != LW_OK)
-        return st;
-    f[0] = isfinite(pt->dtdd_h) && pt->dtdd_h > 0.0 ? 1.0 / (3600.0 * pt->dtdd_h) : 0.0;
-    double q_led = l->led.heat_fraction * pt->p_led_w;
-    double q_other = l->thermal.losses_in_body ? pt->p_res_w + pt->p_int_w + pt->p_drv_w : 0.0;
-    lw_thermal_rates(&l->thermal, l->pack.ambient_c, q_led, q_other, &pt->temps, &f[1], &f[2]);
-    if (g) {
-        g[0] = pt->flux_lm, g[1] = pt->p_led_w, g[2] = pt->p_res_w;
-        g[3] = pt->p_int_w, g[4] = pt->p_drv_w, g[5] = pt->p_drawn_w;
-    }
-    return LW_OK;
+    if (st == LW_OK)
+        rates_of(e, pt, f, g);
+    return st;
 }
 
 /* Scale of each state component for the error norm. */
@@ -170,8 +177,9 @@ static lw_status jacobian(tr *e, const double x0[NX], const double f0[NX], doubl
 /* One Radau IIA step of size h from x0 (jac at x0): x1, the integrals'
  * increments dq and the point at x1.  *ok false when Newton does not
  * converge (the caller shrinks the step). */
-static lw_status radau_step(tr *e, const double x0[NX], double jac[NX][NX], double h,
-                            double x1[NX], double dq[NQ], lw_point *p1, bool *ok)
+static lw_status radau_step(tr *e, const double x0[NX], const lw_point *p0,
+                            double jac[NX][NX], double h, double x1[NX], double dq[NQ],
+                            lw_point *p1, bool *ok)
 {
     double m[NZ][NZ];
     for (int i = 0; i < NS; i++)
@@ -186,6 +194,11 @@ static lw_status radau_step(tr *e, const double x0[NX], double jac[NX][NX], doub
     *ok = false;
     for (int it = 0; it < LW_TRANSIENT_NEWTON_MAX; it++) {
         for (int i = 0; i < NS; i++) {
+            if (it == 0) { /* z = 0: every stage at x0, whose point is known */
+                pts[i] = *p0;
+                rates_of(e, p0, f[i], g[i]);
+                continue;
+            }
             double y[NX];
             for (int a = 0; a < NX; a++)
                 y[a] = x0[a] + z[i * NX + a];
@@ -241,27 +254,25 @@ typedef struct step {
     bool ok;
 } step;
 
-static lw_status doubled(tr *e, const double x0[NX], const double q0[NQ], double h, step *out)
+static lw_status doubled(tr *e, const double x0[NX], const lw_point *p0, const double q0[NQ],
+                         double h, step *out)
 {
-    lw_point p0;
     double f0[NX] = {0}, jac[NX][NX] = {{0}};
-    lw_status st = eval(e, x0, &p0, f0, NULL);
-    if (st == LW_OK)
-        st = jacobian(e, x0, f0, jac);
+    rates_of(e, p0, f0, NULL);
+    lw_status st = jacobian(e, x0, f0, jac);
     double xb[NX], qb[NQ], xm[NX], qm[NQ], q2[NQ];
     lw_point pb, pm;
     bool ok1 = false, ok2 = false, ok3 = false;
     if (st == LW_OK)
-        st = radau_step(e, x0, jac, h, xb, qb, &pb, &ok1);
+        st = radau_step(e, x0, p0, jac, h, xb, qb, &pb, &ok1);
     if (st == LW_OK && ok1)
-        st = radau_step(e, x0, jac, 0.5 * h, xm, qm, &pm, &ok2);
+        st = radau_step(e, x0, p0, jac, 0.5 * h, xm, qm, &pm, &ok2);
     double fm[NX], jm[NX][NX];
     if (st == LW_OK && ok1 && ok2) {
-        st = eval(e, xm, &pm, fm, NULL);
+        rates_of(e, &pm, fm, NULL); /* pm: the point at xm, its last stage */
+        st = jacobian(e, xm, fm, jm);
         if (st == LW_OK)
-            st = jacobian(e, xm, fm, jm);
-        if (st == LW_OK)
-            st = radau_step(e, xm, jm, 0.5 * h, out->x, q2, &out->p, &ok3);
+            st = radau_step(e, xm, &pm, jm, 0.5 * h, out->x, q2, &out->p, &ok3);
     }
     out->ok = ok1 && ok2 && ok3;
     if (st != LW_OK || !out->ok)
@@ -427,7 +438,7 @@ static lw_status locate(run *r, int k, double h, step *before, step *after, doub
         if (!(tau > a && tau < b) || !isfinite(tau))
             tau = 0.5 * (a + b);
         step s;
-        lw_status st = doubled(&r->e, r->x, r->q, tau, &s);
+        lw_status st = doubled(&r->e, r->x, &r->p, r->q, tau, &s);
         if (st != LW_OK)
             return st;
         double g = s.ok ? event_g(r, k, &s.p, s.x[0]) : -INFINITY;
@@ -712,7 +723,7 @@ static lw_status integrate(run *r, bool stop_at_30s)
         if (to_target)
             h = target - r->t;
         step s;
-        lw_status st = doubled(&r->e, r->x, r->q, h, &s);
+        lw_status st = doubled(&r->e, r->x, &r->p, r->q, h, &s);
         if (st != LW_OK)
             return st;
         /* a step across a switch of the regulator (regulation to saturation,
