@@ -146,6 +146,7 @@ lw_status lw_trace_build(const lw_light *light, const lw_result *res, size_t min
             if (st == LW_OK)
                 st = lw_light_point(light, d, pc->fallback, &rows[n].pt, err);
             rows[n].t_h = t;
+            rows[n].mode = 0;
             n++;
             dprev = d;
         }
