@@ -284,7 +284,8 @@ const cli_command cli_commands[] = {
      "peak beam intensity and beam distance to 0.25 lx, as published flashlight\n"
      "performance standards define them.  Each run's warnings are marked, and the\n"
      "rounding rule and the conditions actually computed are printed under the\n"
-     "table.\n",
+     "table.  A mode that steps down by itself (next = ... in its [mode]) is run\n"
+     "through its steps, and a steps column says them in words.\n",
      cli_table_options, NULL, cli_table},
     {"fit led", "MEASUREMENTS.csv [OPTIONS]",
      "Least-squares fits of an LED's measured current and voltage (columns\n"
