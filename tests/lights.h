@@ -71,6 +71,26 @@ static inline void sloping_cell(lw_light *l)
     l->cutoff.cell_v = 0.9;
 }
 
+/* The demo light's electrical model: three sloping cells in series, two
+ * strings of one Shockley LED (the demo profile's invented figures), a
+ * 33-ohm resistor each. */
+static inline void shockley_demo_light(lw_light *l)
+{
+    base_light(l);
+    sloping_cell(l);
+    l->pack.series = 3;
+    l->led.strings = 2;
+    l->led.model = LW_LED_SHOCKLEY;
+    l->led.ideality = 3.0;
+    l->led.saturation_a = 4.6e-18;
+    l->led.series_ohm = 1.5;
+    l->led.junction_c = 25;
+    l->led.flux_lm = 22;
+    l->led.flux_current_a = 0.06;
+    l->led.flux_exponent = 0.9;
+    l->drive.resistor_ohm = 33;
+}
+
 static inline lw_result run_ok(const lw_light *l, bool trace)
 {
     lw_run_options o = lw_run_options_default();

@@ -61,23 +61,6 @@ static void peukert_constant_current(void **state)
 
 /* ---- identities at every point ---- */
 
-static void shockley_demo_light(lw_light *l)
-{
-    base_light(l);
-    sloping_cell(l);
-    l->pack.series = 3;
-    l->led.strings = 2;
-    l->led.model = LW_LED_SHOCKLEY;
-    l->led.ideality = 3.0;
-    l->led.saturation_a = 4.6e-18;
-    l->led.series_ohm = 1.5;
-    l->led.junction_c = 25;
-    l->led.flux_lm = 22;
-    l->led.flux_current_a = 0.06;
-    l->led.flux_exponent = 0.9;
-    l->drive.resistor_ohm = 33;
-}
-
 /* Kirchhoff's voltage law around each string at the operating point, and
  * energy conservation over the run: drawn = LED + resistors + internal. */
 static void kirchhoff_and_energy_conservation(void **state)

@@ -241,14 +241,7 @@ static double time_of_flux(lw_light *l, double t0, const double y0[6], double ta
  * a heat path holding both heat capacities. */
 static void heated_demo_light(lw_light *l)
 {
-    base_light(l);
-    sloping_cell(l);
-    l->pack.series = 3;
-    l->led.strings = 2;
-    l->led.model = LW_LED_SHOCKLEY;
-    l->led.ideality = 3.0, l->led.saturation_a = 4.6e-18, l->led.series_ohm = 1.5;
-    l->led.junction_c = 25, l->led.flux_lm = 22, l->led.flux_current_a = 0.06;
-    l->led.flux_exponent = 0.9;
+    shockley_demo_light(l);
     l->led.tc_forward_v_k = -2e-3, l->led.tc_flux_per_k = -0.3e-2, l->led.heat_fraction = 0.65;
     l->drive.resistor_ohm = 22;
     l->cutoff.cell_v = 0.5; /* the relative cutoff ends the run */

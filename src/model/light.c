@@ -286,15 +286,15 @@ static lw_status point_static_foldback(const lw_light *l, double depth, double o
 {
     const lw_thermal *th = &l->thermal;
     lw_status st = point_folded(l, depth, ocv_v, r_cell_ohm, fallback, s, 1.0, pt, err);
-    double b = pt->temps.body_c, gb = lw_thermal_foldback(th, b) < 1.0 ? NAN : 0.0;
-    if (st != LW_OK || gb == 0.0)
+    double b = pt->temps.body_c;
+    if (st != LW_OK || !(lw_thermal_foldback(th, b) < 1.0))
         return st; /* below the first corner at full output: no foldback */
     st = point_folded(l, depth, ocv_v, r_cell_ohm, fallback, s, th->foldback_min, pt, err);
-    double a = pt->temps.body_c, ga = 0.0;
+    double a = pt->temps.body_c;
     if (st != LW_OK || lw_thermal_foldback(th, a) <= th->foldback_min)
         return st; /* above the last corner even at the floor: the floor */
-    /* G at the two ends from their points */
-    ga = NAN;
+    /* G at the two ends (the first two trials), then regula falsi */
+    double ga = NAN, gb = NAN;
     int side = 0;
     for (int it = 0; it < LW_THERMAL_ITER_MAX; it++) {
         double x = isnan(ga) ? a : (isnan(gb) ? b : (ga * b - gb * a) / (ga - gb));

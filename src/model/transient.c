@@ -587,6 +587,8 @@ static int trigger_now(const run *r)
     return -1;
 }
 
+static lw_status act(run *r, int k, const step *before);
+
 /* Switch to the current mode's next (or off), keeping depth and
  * temperatures; the new mode's 50 % applies at once, a dropout that
  * darkens the light ends it without counting as 50 %. */
@@ -616,14 +618,10 @@ static lw_status switch_mode(run *r, lw_switch_cause cause)
         return LW_OK;
     }
     peaks(r);
-    if (active(r, EV_HALF) && !(event_g(r, EV_HALF, &r->p, r->x[0]) > 0.0)) {
-        res->time_to_half_h = r->t / 3600.0;
-        r->half_armed = false;
-    }
-    return keep_state(r);
+    if (active(r, EV_HALF) && !(event_g(r, EV_HALF, &r->p, r->x[0]) > 0.0))
+        st = act(r, EV_HALF, NULL);
+    return st == LW_OK ? keep_state(r) : st;
 }
-
-static lw_status act(run *r, int k, const step *before);
 
 /* The chain's triggers at the current instant, cascading. */
 static lw_status cascade(run *r)
