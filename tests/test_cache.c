@@ -6,7 +6,9 @@
  * again and its new content used; a failed load is not kept.
  */
 #include "bundled.h"
+#include <fcntl.h>
 #include <sys/stat.h>
+#include <time.h>
 #include <lampwick/lampwick.h>
 #include "tmpdir.h"
 
@@ -67,6 +69,44 @@ static void every_mode_reads_each_file_once(void **state)
 
 /* A table rewritten on disk is read again, and the new values are the
  * ones used; one that fails to load is not kept. */
+/* Date a file's modification a minute back: the cache keeps only files
+ * that have aged past its racy window (a file just written may change again
+ * within the same clock tick and keep its identity). */
+static void age(const char *path)
+{
+    struct timespec now, t[2];
+    clock_gettime(CLOCK_REALTIME, &now);
+    t[0] = t[1] = (struct timespec){now.tv_sec - 60, 0};
+    assert_int_equal(utimensat(AT_FDCWD, path, t, 0), 0);
+}
+
+/* A file written this instant is read afresh every time, not cached: the
+ * same path rewritten within one tick of the file system's clock, with a
+ * reused inode number and the same size, would otherwise be served stale
+ * (found by the writers fuzz target). */
+static void fresh_file_is_not_cached(void **state)
+{
+    (void)state;
+    const char *iv = tmp_write("young.csv", "current_ma,forward_v\n1,2.5\n100,3.0\n");
+    char iv_path[512];
+    lw_text_copy(iv_path, iv, sizeof iv_path);
+    const char *profile = tmp_write(
+        "y.ini", "[pack]\ncell = LR6-alkaline\n[led]\nmodel = table\niv_file = young.csv\n"
+                 "flux_lm = 20\nflux_current_ma = 50\n[drive]\nresistor_ohm = 10\n");
+    char prof_path[512];
+    lw_text_copy(prof_path, profile, sizeof prof_path);
+    lw_search s = bundled_cells();
+    lw_profile p;
+    lw_error e;
+    lw_error_clear(&e);
+    lw_path_opens_reset();
+    for (int k = 0; k < 2; k++) {
+        assert_int_equal(lw_profile_load(prof_path, &s, &p, &e), LW_OK);
+        lw_profile_clear(&p);
+    }
+    assert_int_equal(lw_path_opens(iv_path), 2);
+}
+
 static void changed_file_is_read_again(void **state)
 {
     (void)state;
@@ -78,6 +118,8 @@ static void changed_file_is_read_again(void **state)
     const char *iv = tmp_write("iv.csv", "current_ma,forward_v\n1,2.5\n100,3.0\n");
     char iv_path[512];
     lw_text_copy(iv_path, iv, sizeof iv_path);
+    age(prof_path);
+    age(iv_path);
     lw_search s = bundled_cells();
     lw_profile p;
     lw_error e;
@@ -115,6 +157,7 @@ static void changed_file_is_read_again(void **state)
 int main(void)
 {
     const struct CMUnitTest tests[] = {
+        cmocka_unit_test(fresh_file_is_not_cached),
         cmocka_unit_test(sweep_of_15_cases_reads_each_file_once),
         cmocka_unit_test(every_mode_reads_each_file_once),
         cmocka_unit_test(changed_file_is_read_again),

@@ -8,6 +8,7 @@
 #include <stdlib.h>
 #include <string.h>
 #include <sys/stat.h>
+#include <time.h>
 #include "lampwick/alloc.h"
 #include "lampwick/text.h"
 
@@ -67,6 +68,20 @@ static ident ident_of(const char *path)
     return id;
 }
 
+/* A file changed within this long of now may change again within the same
+ * tick of the file system's clock (a few ms) and keep its identity (an
+ * inode number reused by a rename, the same size and mtime): it is not
+ * cached until it has aged (the "racily clean" problem of content caches). */
+#define CACHE_RACY_S 2
+
+static bool racy(const ident *id)
+{
+    struct timespec now;
+    if (clock_gettime(CLOCK_REALTIME, &now) != 0)
+        return true;
+    return id->mtime.tv_sec >= now.tv_sec - CACHE_RACY_S;
+}
+
 static bool same_ident(ident a, ident b)
 {
     return a.dev == b.dev && a.ino == b.ino && a.size == b.size &&
@@ -104,7 +119,8 @@ static size_t find_locked(const char *path, const char *kind, const ident *id)
  * cache starts afresh when full. */
 static entry *add_locked(const char *path, const char *kind, const ident *id)
 {
-    if (strlen(path) >= sizeof entries[0].path || strlen(kind) >= sizeof entries[0].kind)
+    if (strlen(path) >= sizeof entries[0].path || strlen(kind) >= sizeof entries[0].kind ||
+        racy(id))
         return NULL;
     if (n_entries == LW_CACHE_ENTRIES_MAX)
         clear_locked();
@@ -168,11 +184,12 @@ lw_status lw_cache_cell(const char *path, lw_cache_cell_fn load, const void *ctx
     lw_cell cell;
     lw_status st = load(path, ctx, &cell, err);
     if (st == LW_OK && known) {
-        entry *e = add_locked(path, "", &id);
+        ident curve = ident_of(cell.curve_path), temp = ident_of(cell.temperature_path);
+        entry *e = racy(&curve) || racy(&temp) ? NULL : add_locked(path, "", &id);
         if (e) {
             lw_cell_copy(&e->cell, &cell);
-            e->curve_id = ident_of(cell.curve_path);
-            e->temp_id = ident_of(cell.temperature_path);
+            e->curve_id = curve;
+            e->temp_id = temp;
             n_entries++;
         }
     }
