@@ -189,6 +189,14 @@ static double cell_v_of(lw_light *l, const double y[])
     return last_cell_v;
 }
 
+/* The body's rate of warming, K/s: zero at its peak. */
+static double body_rate_of(lw_light *l, const double y[])
+{
+    double dy[6];
+    rates(0, y, dy, l);
+    return dy[2];
+}
+
 /* Integrate y from t0 to t1 (rk8pd, 1e-12 relative). */
 static void advance(lw_light *l, double t0, double t1, double y[6])
 {
@@ -290,9 +298,17 @@ static void heated_light_in_time_against_gsl(void **state)
         assert_close(r.lumen_hours, y_end[3] / 3600, 1e-6);
         assert_close(r.energy_led_wh, y_end[4] / 3600, 1e-6);
         assert_close(r.energy_drawn_wh, y_end[5] / 3600, 1e-6);
-        /* it heated and cooled: the body's peak is inside the run */
+        /* it heated and cooled: the body's peak is inside the run, where its
+         * rate of warming falls to zero (found on the GSL solution as the
+         * other times are).  The peak's value within 1e-6; its time within
+         * 1e-3, since a maximum's time is ill-conditioned (an error e in the
+         * value moves it by about sqrt(e)) */
         assert_true(r.peak_body_c > l.pack.ambient_c + 3);
         assert_true(r.final.temps.body_c < r.peak_body_c);
+        double y_peak[6];
+        double t_peak = time_of(body_rate_of, &l, 30, y, 0.0, 600, y_peak);
+        assert_close(r.peak_body_c, y_peak[2], 1e-6);
+        assert_close(r.peak_body_h, t_peak / 3600, 1e-3);
         /* energy conservation of the ledger */
         assert_close(r.energy_drawn_wh,
                      r.energy_led_wh + r.energy_resistor_wh + r.energy_internal_wh, 1e-9);
@@ -373,7 +389,10 @@ static void chain_in_time_against_gsl(void **state)
 
 
 /* The trace of a run in time: rows from switch-on to the end, times
- * increasing, the heat path's temperatures moving. */
+ * increasing, no gap between the run's states longer than 1/400 of the
+ * runtime (states inside long steps come from their collocation
+ * polynomial), the heat path's temperatures moving; and the run's figures
+ * are the same with and without the trace. */
 static void trace_of_a_run_in_time(void **state)
 {
     (void)state;
@@ -386,7 +405,15 @@ static void trace_of_a_run_in_time(void **state)
     o.want_trace = true;
     lw_result r;
     assert_int_equal(lw_run(&p.light, &o, &r, &e), LW_OK);
-    assert_true(r.n_states >= LW_TRANSIENT_STEPS_MIN / 2);
+    assert_true(r.n_states >= LW_TRANSIENT_TRACE_GAPS);
+    for (size_t i = 1; i < r.n_states; i++)
+        assert_true(r.states[i].t_h - r.states[i - 1].t_h <= 1.05 * r.runtime_h / LW_TRANSIENT_TRACE_GAPS);
+    lw_run_options plain = lw_run_options_default();
+    lw_result q;
+    assert_int_equal(lw_run(&p.light, &plain, &q, &e), LW_OK);
+    assert_true(q.runtime_h == r.runtime_h && q.lumen_hours == r.lumen_hours);
+    assert_true(q.peak_junction_c == r.peak_junction_c && q.solves == r.solves);
+    lw_run_result_clear(&q);
     lw_trace tr;
     assert_int_equal(lw_trace_build(&p.light, &r, LW_TRACE_ROWS_MIN, &tr, &e), LW_OK);
     assert_true(tr.n >= LW_TRACE_ROWS_MIN);

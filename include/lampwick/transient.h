@@ -11,14 +11,16 @@
  * network's dT/dt (thermal.h).  Integrated by the 3-stage Radau IIA method
  * (order 5, L-stable, stiffly accurate; E. Hairer and G. Wanner, Solving
  * Ordinary Differential Equations II, 2nd ed., Springer 1996, section IV.5)
- * with simplified Newton iterations on a finite-difference Jacobian, and
- * error control by step doubling (Richardson extrapolation, the same book,
- * section II.4).  The output, energies and lumen-hours are quadratures over
- * the same stages (order 5).  Events - the ends of the run, 50 % of the
- * reference, the regulator's kinks and dropout - are located by Brent's
- * method on the step size, every trial a full doubled step from the last
- * accepted state, to 1e-12 relative in time; t = 30 s is hit exactly by the
- * step.  docs/model.md, "Runs in time".
+ * with simplified Newton iterations on finite-difference Jacobians kept
+ * across steps, and the embedded error estimate of order 3 (the same book,
+ * section IV.8, as in the authors' code RADAU5).  The output, energies and
+ * lumen-hours are quadratures over the same stages (order 5).  Events - the
+ * ends of the run, 50 % of the reference, the regulator's kinks and dropout,
+ * the cell curves' knots, the foldback's corners, a chain's triggers - are
+ * located on the step's collocation polynomial, then polished on real steps
+ * from the last accepted state, to 1e-12 relative in time; t = 30 s and a
+ * chain's timer are hit exactly by the step.  Peaks inside two steps are
+ * found on the collocation polynomial too.  docs/model.md, "Runs in time".
  */
 #ifndef LW_TRANSIENT_H
 #define LW_TRANSIENT_H
@@ -30,10 +32,15 @@
 
 #include "engine.h"
 
-/* Steps per estimated run at the most: the step is at most the runtime the
- * switch-on point predicts divided by this, so a trace has rows to show
- * and no step jumps over a whole feature of the output. */
-#define LW_TRANSIENT_STEPS_MIN 400
+/* Steps per estimated run at the least: the step is at most the runtime
+ * the switch-on point predicts divided by this, so that no step jumps over
+ * a whole feature of the output (an event whose function turns back within
+ * one step would go unseen). */
+#define LW_TRANSIENT_STEPS_MIN 40
+/* With a trace, its states are at most the estimated runtime divided by
+ * this apart: states inside a longer step come from the step's collocation
+ * polynomial. */
+#define LW_TRANSIENT_TRACE_GAPS 400
 /* Newton iterations per Radau step before the step is halved. */
 #define LW_TRANSIENT_NEWTON_MAX 10
 

@@ -4,16 +4,18 @@
  * Units: time in s inside (h in the result), depth as a fraction,
  * temperatures in deg C, energies in J inside (Wh in the result).
  * Method: 3-stage Radau IIA (Hairer and Wanner, Solving ODEs II, IV.5) with
- * simplified Newton on a forward-difference Jacobian, step doubling for the
- * error (Hairer, Norsett and Wanner, Solving ODEs I, II.4), events by the
- * Illinois variant of regula falsi on the step size (M. Dowell and
- * P. Jarratt, BIT 11, 1971).
+ * simplified Newton on forward-difference Jacobians kept while Newton
+ * contracts fast, the embedded error estimate of order 3 (IV.8, RADAU5's),
+ * events by the Illinois variant of regula falsi (M. Dowell and P. Jarratt,
+ * BIT 11, 1971) on the collocation polynomial, then a safeguarded secant on
+ * real steps; peaks by golden-section search (J. Kiefer, 1953).
  *
  * Invariant: (t, x, q) is an accepted state - the integrals q from switch-on
  * to t - and no active event has fired before t.
  */
 #include "lampwick/transient.h"
 
+#include <float.h>
 #include <math.h>
 #include <stdlib.h>
 #include <string.h>
@@ -24,15 +26,14 @@
 #define NS 3 /* Radau stages */
 #define NZ (NX * NS)
 
-/* The error of two half steps is (small - big) / (2^5 - 1) for a method of
- * order 5 (Richardson). */
-#define DOUBLING_DIVISOR 31.0
-/* Newton has converged when its last correction is below this share of the
- * tolerance (so it adds nothing to the step's error). */
-#define NEWTON_TOL 1e-3
 /* Event times are located to this share of the time since switch-on. */
 #define EVENT_RTOL 1e-12
 #define EVENT_ITER_MAX 200
+/* Quantities whose peaks are reported, and golden-section iterations for a
+ * peak inside two steps (0.618^24: 1e-5 of the window in time, so 1e-10 of
+ * its curvature in value). */
+#define NPEAK 4
+#define PEAK_ITER 24
 
 /* Events: the ends of the run, 50 %, the regulator's state, and the knots of
  * the cell's curves, where the rates have a kink (the step restarts there,
@@ -119,190 +120,323 @@ static double scale(int k, double v)
     return k == 0 ? fabs(v) + 1e-3 : fabs(v) + 273.15;
 }
 
-/* Solve m z = r in place (Gaussian elimination, partial pivoting); false
+/* LU factors of m in place (partial pivoting, row swaps in piv); false
  * when singular. */
-static bool lu_solve(double m[NZ][NZ], double r[NZ])
+static bool lu_factor(double m[NZ][NZ], int piv[NZ])
 {
     for (int k = 0; k < NZ; k++) {
         int p = k;
         for (int i = k + 1; i < NZ; i++)
             if (fabs(m[i][k]) > fabs(m[p][k]))
                 p = i;
+        piv[k] = p;
         if (!(fabs(m[p][k]) > 0.0))
             return false;
-        if (p != k) {
+        if (p != k)
             for (int j = 0; j < NZ; j++) {
                 double t = m[k][j];
                 m[k][j] = m[p][j];
                 m[p][j] = t;
             }
-            double t = r[k];
-            r[k] = r[p];
-            r[p] = t;
-        }
         for (int i = k + 1; i < NZ; i++) {
-            double f = m[i][k] / m[k][k];
-            for (int j = k; j < NZ; j++)
-                m[i][j] -= f * m[k][j];
-            r[i] -= f * r[k];
+            m[i][k] /= m[k][k];
+            for (int j = k + 1; j < NZ; j++)
+                m[i][j] -= m[i][k] * m[k][j];
         }
     }
+    return true;
+}
+
+/* Solve with the factors of lu_factor: r becomes m^-1 r. */
+static void lu_apply(double m[NZ][NZ], const int piv[NZ], double r[NZ])
+{
+    /* the row swaps first: the factors' rows were swapped whole */
+    for (int k = 0; k < NZ; k++)
+        if (piv[k] != k) {
+            double t = r[k];
+            r[k] = r[piv[k]];
+            r[piv[k]] = t;
+        }
+    for (int k = 0; k < NZ; k++)
+        for (int i = k + 1; i < NZ; i++)
+            r[i] -= m[i][k] * r[k];
     for (int k = NZ - 1; k >= 0; k--) {
         double s = r[k];
         for (int j = k + 1; j < NZ; j++)
             s -= m[k][j] * r[j];
         r[k] = s / m[k][k];
     }
+}
+
+/* Solve the 3 x 3 system m v = r in place (Cramer's rule); false when
+ * singular. */
+static bool solve3(double m[NX][NX], double r[NX])
+{
+    double det = m[0][0] * (m[1][1] * m[2][2] - m[1][2] * m[2][1]) -
+                 m[0][1] * (m[1][0] * m[2][2] - m[1][2] * m[2][0]) +
+                 m[0][2] * (m[1][0] * m[2][1] - m[1][1] * m[2][0]);
+    if (!(fabs(det) > 0.0) || !isfinite(det))
+        return false;
+    double v[NX];
+    for (int c = 0; c < NX; c++) {
+        double t[NX][NX];
+        memcpy(t, m, sizeof t);
+        for (int a = 0; a < NX; a++)
+            t[a][c] = r[a];
+        v[c] = (t[0][0] * (t[1][1] * t[2][2] - t[1][2] * t[2][1]) -
+                t[0][1] * (t[1][0] * t[2][2] - t[1][2] * t[2][0]) +
+                t[0][2] * (t[1][0] * t[2][1] - t[1][1] * t[2][0])) /
+               det;
+    }
+    memcpy(r, v, sizeof v);
     return true;
 }
 
-/* The Jacobian df/dx at x0 by forward differences (f0 = f(x0)). */
-static lw_status jacobian(tr *e, const double x0[NX], const double f0[NX], double jac[NX][NX])
+/* The Jacobians of the rates at an accepted state, by forward
+ * differences: df/dx and dg/dx (the integrands'). */
+typedef struct jac {
+    double fx[NX][NX], gx[NQ][NX];
+    bool valid;
+} jac;
+
+static lw_status jacobian(tr *e, const double x0[NX], const lw_point *p0, jac *j)
 {
+    double f0[NX], g0[NQ];
+    rates_of(e, p0, f0, g0);
     for (int b = 0; b < NX; b++) {
         double x[NX] = {x0[0], x0[1], x0[2]};
         double dx = 1.5e-8 * scale(b, x0[b]);
         x[b] += dx;
+        dx = x[b] - x0[b]; /* exactly representable */
         lw_point pt;
-        double f[NX] = {0};
-        lw_status st = eval(e, x, &pt, f, NULL);
+        double f[NX] = {0}, g[NQ] = {0};
+        lw_status st = eval(e, x, &pt, f, g);
         if (st != LW_OK)
             return st;
         for (int a = 0; a < NX; a++)
-            jac[a][b] = (f[a] - f0[a]) / dx;
+            j->fx[a][b] = (f[a] - f0[a]) / dx;
+        for (int k = 0; k < NQ; k++)
+            j->gx[k][b] = (g[k] - g0[k]) / dx;
     }
+    j->valid = true;
     return LW_OK;
 }
 
-/* One Radau IIA step of size h from x0 (jac at x0): x1, the integrals'
- * increments dq and the point at x1.  *ok false when Newton does not
- * converge (the caller shrinks the step). */
-static lw_status radau_step(tr *e, const double x0[NX], const lw_point *p0,
-                            double jac[NX][NX], double h, double x1[NX], double dq[NQ],
-                            lw_point *p1, bool *ok)
+/* A step of size h from an accepted state: the new state and the
+ * integrals' increments, the stage increments z and zq (the collocation
+ * polynomial, for dense output), the point at the end, the error norm of
+ * the embedded estimate (1 or less: within tolerance) and the Newton
+ * iteration's contraction. ok false when Newton does not converge. */
+typedef struct step {
+    double h;
+    double x[NX], dq[NQ];
+    double z[NS][NX], zq[NS][NQ];
+    lw_point p;
+    double err, theta;
+    bool ok;
+} step;
+
+/* The error estimate of the embedded method of order 3 (Hairer and Wanner,
+ * Solving ODEs II, IV.8, (8.19)-(8.20), as in their code RADAU5): its
+ * weights on the stage increments, and gamma_0 = 1 / U1 of the real
+ * eigenvalue of A^-1. */
+#define EST_DD1 (-(13.0 + 7.0 * 2.449489742783178098) / 3.0)
+#define EST_DD2 ((-13.0 + 7.0 * 2.449489742783178098) / 3.0)
+#define EST_DD3 (-1.0 / 3.0)
+
+static double radau_u1(void)
+{
+    return 30.0 / (6.0 + cbrt(81.0) - cbrt(9.0));
+}
+
+/* Newton is stopped when its estimated remaining error is below this share
+ * of the tolerance: min(0.03, sqrt(rtol)) (RADAU5's default, Hairer and
+ * Wanner IV.8). */
+static double newton_kappa(double rtol)
+{
+    return fmin(0.03, sqrt(rtol));
+}
+
+/* The embedded error estimate of step s from (x0, p0): the error norm of
+ * the state against rtol, and of the integrals against their totals (light
+ * against light, every energy against the energy drawn, of which each is a
+ * share). improve: the stiffly filtered second estimate (one solve), for
+ * the first step and after a rejection (RADAU5). */
+static lw_status estimate(tr *e, const double x0[NX], const lw_point *p0, const jac *j,
+                          const double q0[NQ], bool improve, step *s)
+{
+    const double h = s->h, u = radau_u1() / h;
+    const double dd[NS] = {EST_DD1, EST_DD2, EST_DD3};
+    double f0[NX], g0[NQ], ex[NX], eq[NQ], m[NX][NX];
+    rates_of(e, p0, f0, g0);
+    for (int a = 0; a < NX; a++) {
+        double f2 = 0.0;
+        for (int i = 0; i < NS; i++)
+            f2 += dd[i] * s->z[i][a];
+        ex[a] = f0[a] + f2 / h;
+        for (int b = 0; b < NX; b++)
+            m[a][b] = (a == b ? u : 0.0) - j->fx[a][b];
+    }
+    double rx[NX];
+    memcpy(rx, ex, sizeof rx);
+    if (!solve3(m, ex)) {
+        s->err = INFINITY;
+        return LW_OK;
+    }
+    if (improve) {
+        double y[NX], f[NX];
+        lw_point pt;
+        for (int a = 0; a < NX; a++)
+            y[a] = x0[a] + ex[a];
+        lw_status st = eval(e, y, &pt, f, NULL);
+        if (st != LW_OK)
+            return st;
+        for (int a = 0; a < NX; a++)
+            ex[a] = f[a] + (rx[a] - f0[a]);
+        if (!solve3(m, ex)) {
+            s->err = INFINITY;
+            return LW_OK;
+        }
+    }
+    double err = 0.0;
+    for (int a = 0; a < NX; a++)
+        err = fmax(err, fabs(ex[a]) / (e->opt->rtol * fmax(scale(a, x0[a]), scale(a, s->x[a]))));
+    for (int k = 0; k < NQ; k++) {
+        /* the integrals do not feed back: their block of the estimate is
+         * (h / U1) (g0 + dd.zq / h + dg/dx ex) */
+        double f2 = 0.0, gx = 0.0;
+        for (int i = 0; i < NS; i++)
+            f2 += dd[i] * s->zq[i][k];
+        for (int b = 0; b < NX; b++)
+            gx += j->gx[k][b] * ex[b];
+        eq[k] = (g0[k] + f2 / h + gx) / u;
+        int ref_k = k == 0 ? 0 : NQ - 1;
+        double w = e->opt->rtol * fabs(q0[ref_k] + s->dq[ref_k]) + 1e-300;
+        err = fmax(err, fabs(eq[k]) / w);
+    }
+    s->err = isfinite(err) ? err : INFINITY;
+    return LW_OK;
+}
+
+/* One Radau IIA step of size h from the accepted state (x0, p0, integrals
+ * q0) by simplified Newton on the Jacobians j; s->ok false when Newton does
+ * not converge (the caller shrinks the step or renews the Jacobian). The
+ * integrals' stage values are corrected to first order by dg/dx for
+ * Newton's last correction, so they are as accurate as the state. */
+static lw_status radau_step(tr *e, const double x0[NX], const lw_point *p0, const jac *j,
+                            const double q0[NQ], double h, bool improve, step *s)
 {
     double m[NZ][NZ];
+    int piv[NZ];
     for (int i = 0; i < NS; i++)
         for (int a = 0; a < NX; a++)
-            for (int j = 0; j < NS; j++)
+            for (int k = 0; k < NS; k++)
                 for (int b = 0; b < NX; b++)
-                    m[i * NX + a][j * NX + b] =
-                        (i == j && a == b ? 1.0 : 0.0) - h * e->a[i][j] * jac[a][b];
-    double z[NZ] = {0}, f[NS][NX], g[NS][NQ];
-    lw_point pts[NS];
+                    m[i * NX + a][k * NX + b] =
+                        (i == k && a == b ? 1.0 : 0.0) - h * e->a[i][k] * j->fx[a][b];
+    s->h = h;
+    s->ok = false;
+    s->err = INFINITY;
+    s->theta = 0.0;
+    if (!lu_factor(m, piv))
+        return LW_OK;
+    const double kappa = newton_kappa(e->opt->rtol);
+    double z[NZ] = {0}, dz[NZ] = {0}, f[NS][NX], g[NS][NQ];
     double prev = INFINITY;
-    *ok = false;
-    for (int it = 0; it < LW_TRANSIENT_NEWTON_MAX; it++) {
+    bool converged = false;
+    for (int it = 0; it < LW_TRANSIENT_NEWTON_MAX && !converged; it++) {
         for (int i = 0; i < NS; i++) {
             if (it == 0) { /* z = 0: every stage at x0, whose point is known */
-                pts[i] = *p0;
                 rates_of(e, p0, f[i], g[i]);
                 continue;
             }
             double y[NX];
+            lw_point pt;
             for (int a = 0; a < NX; a++)
                 y[a] = x0[a] + z[i * NX + a];
-            lw_status st = eval(e, y, &pts[i], f[i], g[i]);
+            lw_status st = eval(e, y, &pt, f[i], g[i]);
             if (st != LW_OK)
                 return st;
         }
-        if (it > 0 && prev <= NEWTON_TOL) {
-            *ok = true;
-            break;
-        }
-        double r[NZ], mm[NZ][NZ];
         for (int i = 0; i < NS; i++)
             for (int a = 0; a < NX; a++) {
-                double s = 0.0;
-                for (int j = 0; j < NS; j++)
-                    s += e->a[i][j] * f[j][a];
-                r[i * NX + a] = -z[i * NX + a] + h * s;
+                double sum = 0.0;
+                for (int k = 0; k < NS; k++)
+                    sum += e->a[i][k] * f[k][a];
+                dz[i * NX + a] = -z[i * NX + a] + h * sum;
             }
-        memcpy(mm, m, sizeof mm);
-        if (!lu_solve(mm, r))
-            return LW_OK;
+        lu_apply(m, piv, dz);
         double norm = 0.0;
         for (int i = 0; i < NS; i++)
             for (int a = 0; a < NX; a++) {
-                z[i * NX + a] += r[i * NX + a];
-                norm = fmax(norm, fabs(r[i * NX + a]) / (e->opt->rtol * scale(a, x0[a])));
+                z[i * NX + a] += dz[i * NX + a];
+                norm = fmax(norm, fabs(dz[i * NX + a]) / (e->opt->rtol * scale(a, x0[a])));
             }
-        if (!isfinite(norm) || (it >= 2 && norm > prev))
-            return LW_OK; /* diverging */
+        if (!isfinite(norm))
+            return LW_OK;
+        if (it == 0) {
+            converged = norm <= kappa; /* the state does not move */
+        } else {
+            double theta = norm / prev;
+            s->theta = fmax(s->theta, theta);
+            if (theta >= 0.99)
+                return LW_OK; /* diverging */
+            converged = theta / (1.0 - theta) * norm <= kappa;
+        }
         prev = norm;
     }
-    if (!*ok)
+    if (!converged)
         return LW_OK;
-    for (int a = 0; a < NX; a++)
-        x1[a] = x0[a] + z[(NS - 1) * NX + a];
-    for (int k = 0; k < NQ; k++) {
-        double s = 0.0;
-        for (int j = 0; j < NS; j++)
-            s += e->a[NS - 1][j] * g[j][k]; /* b = the last row (stiffly accurate) */
-        dq[k] = h * s;
+    /* the integrands at the final stages, to first order from the last
+     * evaluated ones */
+    for (int i = 0; i < NS; i++)
+        for (int k = 0; k < NQ; k++)
+            for (int b = 0; b < NX; b++)
+                g[i][k] += j->gx[k][b] * dz[i * NX + b];
+    for (int i = 0; i < NS; i++) {
+        for (int a = 0; a < NX; a++)
+            s->z[i][a] = z[i * NX + a];
+        for (int k = 0; k < NQ; k++) {
+            double sum = 0.0;
+            for (int c = 0; c < NS; c++)
+                sum += e->a[i][c] * g[c][k];
+            s->zq[i][k] = h * sum;
+        }
     }
-    *p1 = pts[NS - 1]; /* c3 = 1: the last stage is the step's end */
-    return LW_OK;
+    for (int a = 0; a < NX; a++)
+        s->x[a] = x0[a] + s->z[NS - 1][a];
+    memcpy(s->dq, s->zq[NS - 1], sizeof s->dq); /* b = A's last row (stiffly accurate) */
+    double fe[NX];
+    lw_status st = eval(e, s->x, &s->p, fe, NULL);
+    if (st != LW_OK)
+        return st;
+    s->ok = true;
+    return estimate(e, x0, p0, j, q0, improve, s);
 }
 
-/* A step of size h from (x0, q0) as two half steps, with the error norm
- * of the pair against one whole step (1 or less: within tolerance). */
-typedef struct step {
-    double x[NX], dq[NQ];
-    lw_point p;
-    double err;
-    bool ok;
-} step;
-
-static lw_status doubled(tr *e, const double x0[NX], const lw_point *p0, const double q0[NQ],
-                         double h, step *out)
+/* The collocation polynomial of step s at the fraction u of the step: the
+ * state (x0 + sum z_i L_i(u), L_i the Lagrange basis on 0, c1, c2, c3 that
+ * vanishes at 0) and, when dq is not NULL, the integrals' increments. */
+static void dense(const tr *e, const double x0[NX], const step *s, double u, double x[NX],
+                  double dq[NQ])
 {
-    double f0[NX] = {0}, jac[NX][NX] = {{0}};
-    rates_of(e, p0, f0, NULL);
-    lw_status st = jacobian(e, x0, f0, jac);
-    double xb[NX], qb[NQ], xm[NX], qm[NQ], q2[NQ];
-    lw_point pb, pm;
-    bool ok1 = false, ok2 = false, ok3 = false;
-    if (st == LW_OK)
-        st = radau_step(e, x0, p0, jac, h, xb, qb, &pb, &ok1);
-    if (st == LW_OK && ok1)
-        st = radau_step(e, x0, p0, jac, 0.5 * h, xm, qm, &pm, &ok2);
-    double fm[NX], jm[NX][NX];
-    if (st == LW_OK && ok1 && ok2) {
-        rates_of(e, &pm, fm, NULL); /* pm: the point at xm, its last stage */
-        st = jacobian(e, xm, fm, jm);
-        if (st == LW_OK)
-            st = radau_step(e, xm, &pm, jm, 0.5 * h, out->x, q2, &out->p, &ok3);
+    double w[NS];
+    for (int i = 0; i < NS; i++) {
+        w[i] = u / e->c[i];
+        for (int k = 0; k < NS; k++)
+            if (k != i)
+                w[i] *= (u - e->c[k]) / (e->c[i] - e->c[k]);
     }
-    out->ok = ok1 && ok2 && ok3;
-    if (st != LW_OK || !out->ok)
-        return st;
-    /* the error of the two half steps, and the step taken as their
-     * Richardson extrapolation (local extrapolation: order 6) */
-    double err = 0.0;
     for (int a = 0; a < NX; a++) {
-        double w = e->opt->rtol * fmax(scale(a, x0[a]), scale(a, out->x[a]));
-        double est = (out->x[a] - xb[a]) / DOUBLING_DIVISOR;
-        err = fmax(err, fabs(est) / w);
-        out->x[a] += est;
+        x[a] = x0[a];
+        for (int i = 0; i < NS; i++)
+            x[a] += w[i] * s->z[i][a];
     }
-    for (int k = 0; k < NQ; k++) {
-        double small = qm[k] + q2[k];
-        out->dq[k] = small + (small - qb[k]) / DOUBLING_DIVISOR;
+    for (int k = 0; dq && k < NQ; k++) {
+        dq[k] = 0.0;
+        for (int i = 0; i < NS; i++)
+            dq[k] += w[i] * s->zq[i][k];
     }
-    /* the integrals against their totals: light against light, every energy
-     * against the energy drawn (of which each is a share, so that a share
-     * near zero - a driver's rounding-level loss - asks no more than that) */
-    for (int k = 0; k < NQ; k++) {
-        double est = (qm[k] + q2[k] - qb[k]) / DOUBLING_DIVISOR;
-        int ref_k = k == 0 ? 0 : NQ - 1;
-        double w = e->opt->rtol * fabs(q0[ref_k] + out->dq[ref_k]) + 1e-300;
-        err = fmax(err, fabs(est) / w);
-    }
-    out->err = isfinite(err) ? err : INFINITY;
-    /* the point at the extrapolated state */
-    double f[NX] = {0};
-    return eval(e, out->x, &out->p, f, NULL);
 }
 
 /* ---- events ---- */
@@ -317,6 +451,15 @@ typedef struct run {
     double regulated_s;
     double knot_next;       /* the first knot of the cell's curves above the depth */
     size_t cap_states;
+    double trace_dt;        /* with a trace, the longest gap between its states, s */
+    jac j;                  /* the Jacobians, from the accepted state or an earlier one */
+    bool j_fresh;           /* j is from the accepted state */
+    /* the peak window: the last accepted step (from win_x at win_t), the
+     * peak quantities at its start and end, and the step being accepted */
+    step win;
+    double win_x[NX], win_t, win_v[2][NPEAK];
+    int win_steps;          /* 0: empty (at the start and after each event) */
+    const step *win_next;
 } run;
 
 /* The first knot of the cell's OCV and resistance curves above depth d
@@ -368,7 +511,13 @@ static double event_g(const run *r, int k, const lw_point *p, double depth)
         return r->fold_above[k - EV_FOLD_FROM] ? g : -g;
     }
     case EV_REGIME:
-    default: return r->regime_pos ? p->regulation_margin : -p->regulation_margin;
+    default: {
+        /* a margin of exactly zero is still on the old side (a linear
+         * regulator regulates at zero margin), so the located point is
+         * past the switch */
+        double g = r->regime_pos ? p->regulation_margin : -p->regulation_margin;
+        return g == 0.0 ? DBL_MIN : g;
+    }
     }
 }
 
@@ -399,7 +548,7 @@ static bool fired(const run *r, int k, const lw_point *p, double d)
 
 /* An explicit Euler step of dt from step `from` (NULL: the accepted state):
  * only ever taken over the last 1e-12 of a located event, where its error
- * is far below the tolerance. */
+ * is far below the tolerance.  Its dense output is the straight line. */
 static lw_status euler(run *r, const step *from, double dt, step *out)
 {
     double x[NX], dq[NQ] = {0}, f[NX] = {0}, g[NQ] = {0};
@@ -414,31 +563,114 @@ static lw_status euler(run *r, const step *from, double dt, step *out)
         out->x[a] = x[a] + dt * f[a];
     for (int k = 0; k < NQ; k++)
         out->dq[k] = dq[k] + dt * g[k];
+    out->h = (from ? from->h : 0.0) + dt;
+    for (int i = 0; i < NS; i++) {
+        for (int a = 0; a < NX; a++)
+            out->z[i][a] = r->e.c[i] * (out->x[a] - r->x[a]);
+        for (int k = 0; k < NQ; k++)
+            out->zq[i][k] = r->e.c[i] * out->dq[k];
+    }
     out->ok = true;
-    out->err = 0.0;
+    out->err = from ? from->err : 0.0;
+    out->theta = 0.0;
     return eval(&r->e, out->x, &out->p, f, NULL);
 }
 
-/* The earliest time tau in (0, h] at which event k fires: Illinois regula
- * falsi on the step size, every trial a doubled step from the accepted
- * state; a trial whose Newton iteration fails is taken to lie past the
- * event (it straddles the switch that the event marks).  *after (given:
- * a step to h whose point has fired) becomes the step at the located time,
- * *before the step just short of it (before->ok false: none, the event is
- * at the accepted state); *h_at the located step size. */
-static lw_status locate(run *r, int k, double h, step *before, step *after, double *h_at)
+/* Event k's function at the fraction u of the accepted step s on its
+ * collocation polynomial (a solve, unless the event is on the depth
+ * alone). */
+static lw_status dense_g(run *r, int k, const step *s, double u, double *g)
+{
+    double x[NX];
+    dense(&r->e, r->x, s, u, x, NULL);
+    if (k == EV_KNOT || k == EV_CAPACITY) {
+        *g = event_g(r, k, &r->p, x[0]);
+        return LW_OK;
+    }
+    lw_point p;
+    double f[NX];
+    lw_status st = eval(&r->e, x, &p, f, NULL);
+    *g = st == LW_OK ? event_g(r, k, &p, x[0]) : NAN;
+    return st;
+}
+
+/* The root of event k on the collocation polynomial of the accepted step
+ * s (Illinois), as a time in the step, and the event function's slope
+ * there (per s). */
+static lw_status dense_root(run *r, int k, const step *s, double ga, double gb, double *tau,
+                            double *slope)
+{
+    double ua = 0.0, ub = 1.0, fa = ga, fb = gb, ra = ga, rb = gb;
+    int side = 0;
+    const double tol_u = EVENT_RTOL * (r->t + s->h) / s->h;
+    for (int it = 0; it < EVENT_ITER_MAX && ub - ua > tol_u; it++) {
+        double u = (fa * ub - fb * ua) / (fa - fb);
+        if (!(u > ua && u < ub) || !isfinite(u))
+            u = 0.5 * (ua + ub);
+        double g;
+        lw_status st = dense_g(r, k, s, u, &g);
+        if (st != LW_OK)
+            return st;
+        if (g > 0.0) {
+            ua = u, fa = ra = g;
+            if (side == -1)
+                fb *= 0.5;
+            side = -1;
+        } else {
+            ub = u, fb = rb = g;
+            if (side == 1)
+                fa *= 0.5;
+            side = 1;
+        }
+    }
+    double u = ra != rb ? (ra * ub - rb * ua) / (ra - rb) : 0.5 * (ua + ub);
+    *tau = s->h * (u > ua && u < ub ? u : 0.5 * (ua + ub));
+    *slope = (rb - ra) / ((ub - ua) * s->h);
+    return LW_OK;
+}
+
+/* The earliest time tau in (0, h] at which event k fires.  With the
+ * accepted step `big` whose end has fired, the root on its collocation
+ * polynomial is the first guess; then a safeguarded secant on real steps
+ * from the accepted state (each trial a Radau step of size tau, nudged a
+ * little past the root so that the bracket closes), Illinois regula falsi
+ * whenever the secant leaves the bracket.  A trial whose Newton iteration
+ * fails is taken to lie past the event (it straddles the switch that the
+ * event marks).  *after (given: a step to h whose point has fired) becomes
+ * the step at the located time, *before the step just short of it
+ * (before->ok false: none, the event is at the accepted state); *h_at the
+ * located step size. */
+static lw_status locate(run *r, int k, double h, const step *big, step *before, step *after,
+                        double *h_at)
 {
     double a = 0.0, b = h, ga = event_g(r, k, &r->p, r->x[0]);
     double gb = event_g(r, k, &after->p, after->x[0]);
     before->ok = false;
     bool after_valid = after->ok;
+    double pred = NAN, slope = NAN, last_t = NAN, last_g = NAN;
+    if (big) {
+        lw_status st = dense_root(r, k, big, ga, gb, &pred, &slope);
+        if (st != LW_OK)
+            return st;
+    }
     int side = 0;
-    for (int it = 0; it < EVENT_ITER_MAX && b - a > EVENT_RTOL * (r->t + b); it++) {
-        double tau = (ga * b - gb * a) / (ga - gb);
-        if (!(tau > a && tau < b) || !isfinite(tau))
-            tau = 0.5 * (a + b);
+    double width_before = INFINITY, width_now = INFINITY;
+    for (int it = 0; it < EVENT_ITER_MAX; it++) {
+        const double tol_t = EVENT_RTOL * (r->t + b);
+        if (!(b - a > tol_t))
+            break;
+        /* the secant has not halved the bracket in two trials: Illinois */
+        if (b - a > 0.5 * width_before)
+            pred = NAN;
+        width_before = width_now, width_now = b - a;
+        double tau = pred;
+        if (!(tau > a && tau < b) || !isfinite(tau)) {
+            tau = (ga * b - gb * a) / (ga - gb); /* Illinois */
+            if (!(tau > a && tau < b) || !isfinite(tau))
+                tau = 0.5 * (a + b);
+        }
         step s;
-        lw_status st = doubled(&r->e, r->x, &r->p, r->q, tau, &s);
+        lw_status st = radau_step(&r->e, r->x, &r->p, &r->j, r->q, tau, false, &s);
         if (st != LW_OK)
             return st;
         double g = s.ok ? event_g(r, k, &s.p, s.x[0]) : -INFINITY;
@@ -458,6 +690,15 @@ static lw_status locate(run *r, int k, double h, step *before, step *after, doub
                 ga *= 0.5;
             side = 1;
         }
+        /* the secant's next guess, nudged past the root by a quarter of the
+         * tolerance so that the bracket closes around it */
+        if (s.ok && isfinite(last_g) && last_g != g && tau != last_t)
+            slope = (g - last_g) / (tau - last_t);
+        pred = s.ok && isfinite(slope) && slope != 0.0
+                   ? tau - g / slope + (g > 0.0 ? 0.25 : -0.25) * tol_t
+                   : NAN;
+        if (s.ok)
+            last_t = tau, last_g = g;
     }
     if (!after_valid) {
         /* the far side of the switch, from the near side */
@@ -469,8 +710,8 @@ static lw_status locate(run *r, int k, double h, step *before, step *after, doub
     return LW_OK;
 }
 
-/* Keep (t, x) for the trace. */
-static lw_status keep_state(run *r)
+/* Keep state (t_s, x) for the trace. */
+static lw_status keep(run *r, double t_s, const double x[NX])
 {
     lw_result *res = r->e.res;
     if (!r->e.opt->want_trace)
@@ -484,26 +725,153 @@ static lw_status keep_state(run *r)
         r->cap_states = cap;
     }
     res->states[res->n_states++] =
-        (lw_state){r->t / 3600.0, r->x[0], r->x[1], r->x[2], r->e.fallback, r->e.mode};
+        (lw_state){t_s / 3600.0, x[0], x[1], x[2], r->e.fallback, r->e.mode};
     return LW_OK;
+}
+
+static lw_status keep_state(run *r)
+{
+    return keep(r, r->t, r->x);
+}
+
+/* With a trace, the states inside the step s of size h from the accepted
+ * state, on its collocation polynomial, so that no gap between the
+ * trace's states is longer than trace_dt. */
+static lw_status keep_inside(run *r, const step *s, double h)
+{
+    if (!r->e.opt->want_trace || !(h > r->trace_dt))
+        return LW_OK;
+    double parts = ceil(h / r->trace_dt);
+    lw_status st = LW_OK;
+    for (double j = 1.0; j < parts && st == LW_OK; j += 1.0) {
+        double x[NX], u = j / parts;
+        dense(&r->e, r->x, s, u * h / s->h, x, NULL);
+        st = keep(r, r->t + u * h, x);
+    }
+    return st;
+}
+
+/* The peaks with point p at time t_s. */
+static void peaks_at(run *r, const lw_point *p, double t_s)
+{
+    lw_result *res = r->e.res;
+    res->peak_junction_c = fmax(res->peak_junction_c, p->temps.junction_c);
+    if (!(res->peak_body_c >= p->temps.body_c)) {
+        res->peak_body_c = p->temps.body_c;
+        res->peak_body_h = t_s / 3600.0;
+    }
+    res->peak_resistor_w = fmax(res->peak_resistor_w, p->p_res_peak_w);
+    lw_run_note_resistor(r->e.l, p, res);
 }
 
 /* The peaks with the current point. */
 static void peaks(run *r)
 {
-    lw_result *res = r->e.res;
-    res->peak_junction_c = fmax(res->peak_junction_c, r->p.temps.junction_c);
-    if (!(res->peak_body_c >= r->p.temps.body_c)) {
-        res->peak_body_c = r->p.temps.body_c;
-        res->peak_body_h = r->t / 3600.0;
+    peaks_at(r, &r->p, r->t);
+}
+
+/* The quantities whose peaks a run reports, at point p: junction, body,
+ * resistor power, and the resistor's rating needed at the body's
+ * temperature. */
+static void peak_values(const run *r, const lw_point *p, double v[NPEAK])
+{
+    double k = lw_thermal_resistor_derating(p->temps.body_c);
+    v[0] = p->temps.junction_c;
+    v[1] = p->temps.body_c;
+    v[2] = p->p_res_peak_w;
+    v[3] = r->e.l->thermal.enabled && p->p_res_peak_w > 0.0 && k > 0.0 ? p->p_res_peak_w / k : 0.0;
+}
+
+/* The point at time t inside the two steps of the peak window (the earlier
+ * one from x_a at t_a, the later one from the accepted state). */
+static lw_status window_point(run *r, double t, lw_point *p)
+{
+    double x[NX], f[NX];
+    if (t < r->t)
+        dense(&r->e, r->win_x, &r->win, (t - r->win_t) / r->win.h, x, NULL);
+    else
+        dense(&r->e, r->x, r->win_next, (t - r->t) / r->win_next->h, x, NULL);
+    return eval(&r->e, x, p, f, NULL);
+}
+
+/* Quantity i peaks inside the window (it rose over the earlier step and
+ * fell over the later one): its maximum by golden-section search on the
+ * steps' collocation polynomials (J. Kiefer, Proc. AMS 4, 1953), folded
+ * into the peaks. */
+static lw_status peak_inside(run *r, int i, double t_end)
+{
+    const double gr = 0.5 * (sqrt(5.0) - 1.0);
+    double a = r->win_t, b = t_end;
+    double c = b - gr * (b - a), d = a + gr * (b - a);
+    lw_point pc = {0}, pd = {0}; /* zeroed for the analyzer: read only when solved */
+    double vc[NPEAK], vd[NPEAK];
+    lw_status st = window_point(r, c, &pc);
+    if (st == LW_OK)
+        st = window_point(r, d, &pd);
+    if (st != LW_OK)
+        return st;
+    peak_values(r, &pc, vc);
+    peak_values(r, &pd, vd);
+    for (int it = 0; it < PEAK_ITER && st == LW_OK; it++) {
+        if (vc[i] >= vd[i]) {
+            b = d, d = c, pd = pc, vd[i] = vc[i];
+            c = b - gr * (b - a);
+            if ((st = window_point(r, c, &pc)) == LW_OK)
+                peak_values(r, &pc, vc);
+        } else {
+            a = c, c = d, pc = pd, vc[i] = vd[i];
+            d = a + gr * (b - a);
+            if ((st = window_point(r, d, &pd)) == LW_OK)
+                peak_values(r, &pd, vd);
+        }
     }
-    res->peak_resistor_w = fmax(res->peak_resistor_w, r->p.p_res_peak_w);
-    lw_run_note_resistor(r->e.l, &r->p, res);
+    if (st == LW_OK) {
+        bool at_c = vc[i] >= vd[i];
+        peaks_at(r, at_c ? &pc : &pd, at_c ? c : d);
+    }
+    return st;
+}
+
+/* The peak window after step s of size h from the accepted state: a
+ * quantity that rose over the window's earlier step and falls over this
+ * one peaks inside the two (the steps are within one smooth stretch: the
+ * window is emptied at every event). */
+static lw_status peak_window(run *r, const step *s, double h)
+{
+    double v[NPEAK];
+    peak_values(r, &s->p, v);
+    lw_status st = LW_OK;
+    if (r->win_steps == 0) {
+        peak_values(r, &r->p, r->win_v[0]);
+    } else {
+        r->win_next = s;
+        for (int i = 0; i < NPEAK && st == LW_OK; i++) {
+            double top = r->win_v[1][i], tol = r->e.opt->rtol * fabs(top);
+            if (top > r->win_v[0][i] && top >= v[i] &&
+                fmax(top - r->win_v[0][i], top - v[i]) > tol)
+                st = peak_inside(r, i, r->t + h);
+        }
+        r->win_next = NULL;
+        memcpy(r->win_v[0], r->win_v[1], sizeof r->win_v[0]);
+    }
+    memcpy(r->win_v[1], v, sizeof v);
+    r->win = *s;
+    r->win.h = h;
+    memcpy(r->win_x, r->x, sizeof r->win_x);
+    r->win_t = r->t;
+    r->win_steps = 1;
+    return st;
 }
 
 /* Move to the end of step s of size h. */
 static lw_status accept(run *r, const step *s, double h)
 {
+    lw_status st = keep_inside(r, s, h);
+    if (st == LW_OK)
+        st = peak_window(r, s, h);
+    if (st != LW_OK)
+        return st;
+    r->j_fresh = false;
     if (r->p.regime == LW_REGIME_REGULATED)
         r->regulated_s += h;
     r->t += h;
@@ -706,53 +1074,82 @@ static lw_status act(run *r, int k, const step *before)
     return LW_OK;
 }
 
+/* Whether the Jacobians are renewed after a step whose Newton iteration
+ * contracted by theta: kept while Newton converges fast (RADAU5 renews
+ * them unless theta is below 0.001; here a renewal costs as much as an
+ * iteration, so they are kept longer). */
+#define JAC_KEEP_THETA 0.05
+
 /* Integrate from the current state to the end (or to 30 s with
  * stop_at_30s). */
 static lw_status integrate(run *r, bool stop_at_30s)
 {
     const lw_point p0 = r->p;
     double t_est = (1.0 - r->x[0]) * 3600.0 * p0.dtdd_h;
-    double h_max = isfinite(t_est) && t_est > 0.0 ? t_est / LW_TRANSIENT_STEPS_MIN : 3600.0;
+    bool known = isfinite(t_est) && t_est > 0.0;
+    double h_max = known ? t_est / LW_TRANSIENT_STEPS_MIN : 3600.0;
+    r->trace_dt = known ? t_est / LW_TRANSIENT_TRACE_GAPS : 60.0;
     double h = fmin(h_max, 1.0);
+    bool improve = true; /* the first step, or one after a rejection */
     while (!r->done) {
         /* 30 s and a chain's timer are hit exactly by the step */
         double target = fmin(r->ref_known ? INFINITY : 30.0, timer_at(r));
         bool to_target = r->t + h >= target;
         if (to_target)
             h = target - r->t;
+        lw_status st = LW_OK;
+        if (!r->j.valid) {
+            st = jacobian(&r->e, r->x, &r->p, &r->j);
+            r->j_fresh = true;
+        }
         step s;
-        lw_status st = doubled(&r->e, r->x, &r->p, r->q, h, &s);
+        if (st == LW_OK)
+            st = radau_step(&r->e, r->x, &r->p, &r->j, r->q, h, improve, &s);
         if (st != LW_OK)
             return st;
-        /* a step across a switch of the regulator (regulation to saturation,
-         * a converter's dropout) fails its error test however short it is:
-         * find the switch and step to it */
-        bool regime_jump = s.ok && s.err > 1.0 && fired(r, EV_REGIME, &s.p, s.x[0]);
-        step probe = s;
-        if (!s.ok && active(r, EV_REGIME)) {
-            /* Newton failed: does the regulator switch within the step? */
-            st = euler(r, NULL, h, &probe);
-            if (st != LW_OK)
-                return st;
-            regime_jump = fired(r, EV_REGIME, &probe.p, probe.x[0]);
-        }
-        if (regime_jump) {
-            step b = {0}, a = probe;
-            double h_event = h;
-            st = locate(r, EV_REGIME, h, &b, &a, &h_event);
-            if (st != LW_OK)
-                return st;
-            st = accept(r, &a, h_event);
-            if (st == LW_OK)
-                st = act(r, EV_REGIME, &b);
-            if (st != LW_OK)
-                return st;
-            h = fmin(h_max, fmax(h_event, 1e-6 * (r->t + 1.0)));
+        if (!s.ok && !r->j_fresh) {
+            r->j.valid = false; /* Newton failed on old Jacobians: renew them first */
             continue;
         }
+        /* a step across a kink of the rates (the regulator's switch, a knot
+         * of the cell's curves, a corner of the foldback) loses its order
+         * and fails its error test, or its Newton iteration: find the
+         * earliest kink and let the step to it stand in for this one (if it
+         * keeps the tolerance, its other events are found as any step's) */
+        int kink = -1;
+        step kink_before = {0};
         if (!s.ok || s.err > 1.0) {
-            double f = s.ok ? fmax(0.2, 0.9 * pow(s.err, -1.0 / 6.0)) : 0.25;
+            step probe = s;
+            if (!s.ok) {
+                st = euler(r, NULL, h, &probe);
+                if (st != LW_OK)
+                    return st;
+            }
+            double h_kink = h;
+            step kink_at = probe;
+            static const int kinks[] = {EV_REGIME, EV_KNOT, EV_FOLD_FROM, EV_FOLD_TO};
+            for (size_t n = 0; n < sizeof kinks / sizeof kinks[0]; n++) {
+                int k = kinks[n];
+                if (!fired(r, k, &probe.p, probe.x[0]))
+                    continue;
+                step bk = {0}, ak = probe;
+                double h_k = h;
+                st = locate(r, k, h, NULL, &bk, &ak, &h_k);
+                if (st != LW_OK)
+                    return st;
+                if (kink < 0 || h_k < h_kink)
+                    kink = k, h_kink = h_k, kink_at = ak, kink_before = bk;
+            }
+            if (kink >= 0) {
+                s = kink_at;
+                h = h_kink;
+                to_target = false;
+            }
+        }
+        if (!s.ok || s.err > 1.0) {
+            double f = s.ok ? fmax(0.2, 0.9 * pow(s.err, -0.25)) : 0.25;
             h *= f;
+            improve = true;
             if (h < 1e-9 * (r->t + 1.0))
                 return lw_error_set(r->e.err, LW_ENUMERIC, NULL, 0,
                                     "the run in time could not keep its tolerance near "
@@ -760,6 +1157,7 @@ static lw_status integrate(run *r, bool stop_at_30s)
                                     r->t / 3600.0);
             continue;
         }
+        improve = false;
         /* the earliest event over the step, if any */
         int first = -1;
         double h_event = h;
@@ -767,21 +1165,23 @@ static lw_status integrate(run *r, bool stop_at_30s)
         for (int k = 0; k < EV_COUNT; k++) {
             if (!fired(r, k, &s.p, s.x[0]))
                 continue;
-            step b = {0}, a = s;
+            step b = kink_before, a = s;
             double h_k = h;
-            st = locate(r, k, h, &b, &a, &h_k);
+            st = k == kink ? LW_OK : locate(r, k, h, &s, &b, &a, &h_k);
             if (st != LW_OK)
                 return st;
             if (first < 0 || h_k < h_event) {
                 first = k, h_event = h_k, at = a, before = b;
             }
         }
-        double grow = fmin(4.0, fmax(0.2, 0.9 * pow(fmax(s.err, 1e-30), -1.0 / 6.0)));
+        double grow = fmin(4.0, fmax(0.2, 0.9 * pow(fmax(s.err, 1e-30), -0.25)));
+        bool renew = s.theta > JAC_KEEP_THETA;
         size_t switches = r->e.res->n_switches;
         if (first >= 0) {
             st = accept(r, &at, h_event);
             if (st == LW_OK)
                 st = at_instant(r, first, &before);
+            renew = true; /* the rates may have a kink here */
         } else {
             st = accept(r, &s, h);
             if (to_target)
@@ -796,9 +1196,16 @@ static lw_status integrate(run *r, bool stop_at_30s)
         }
         if (st != LW_OK)
             return st;
+        if (renew)
+            r->j.valid = false;
+        if (first >= 0 || r->e.res->n_switches != switches)
+            r->win_steps = 0; /* a new smooth stretch */
         h = fmin(h_max, (first >= 0 ? h_event : h) * grow);
-        if (r->e.res->n_switches != switches)
+        if (r->e.res->n_switches != switches) {
             h = fmin(h_max, 1.0); /* the rates jumped: start small again */
+            r->j.valid = false;
+            improve = true;
+        }
         if (!(h > 0.0))
             h = fmin(h_max, 1.0);
     }
