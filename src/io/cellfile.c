@@ -526,10 +526,12 @@ static lw_status write_cell_text(FILE *fp, const void *ctx, lw_error *err)
     for (const char *p = t->comment; p && *p;) {
         const char *nl = strchr(p, '\n');
         size_t n = nl ? (size_t)(nl - p) : strlen(p);
-        char line[LW_INI_LINE_MAX], safe[4 * LW_INI_LINE_MAX];
+        /* escaped to at most 180 bytes, cut only between whole characters
+         * and escapes (a cut inside a UTF-8 sequence would not read back) */
+        char line[LW_INI_LINE_MAX], safe[181];
         snprintf(line, sizeof line, "%.*s", (int)(n < 150 ? n : 150), p);
         lw_text_escape(safe, sizeof safe, line);
-        fprintf(fp, "; %.180s\n", safe);
+        fprintf(fp, "; %s\n", safe);
         p += n + (nl ? 1 : 0);
     }
     fprintf(fp, "[cell]\nname = %s\nchemistry = %s\nnominal_v = %.17g\ncapacity_mah = %.17g\n"
