@@ -90,7 +90,7 @@ if [ "$modes" = "turbo high low " ]; then ok; else bad "chain trace modes: $mode
 same=$(tail -n +2 "$TMP/chain.txt" | awk -F, 'NR > 1 && $1 == t && $NF != m { n++ } { t = $1; m = $NF } END { print n + 0 }')
 if [ "$same" -eq 2 ]; then ok; else bad "rows at the switches: $same"; fi
 if grep -q 'turbo to high' "$TMP/chain.svg" && grep -q 'high to low' "$TMP/chain.svg"; then ok; else bad "switch marks"; fi
-expect 0 '^[0-9.]+,cell-voltage,.*,2,[0-9]+,body-hot' "$LW" run profiles/torch-18650.ini --mode turbo --format csv
+expect 0 '^[0-9.]+,cell-voltage,.*,2,[0-9.]+,0,[0-9]+,body-hot' "$LW" run profiles/torch-18650.ini --mode turbo --format csv
 expect 0 'after 3 min [0-9]+ lm, at 3.2 V [0-9]+ lm' "$LW" table profiles/torch-18650.ini --plot "$TMP/modes.svg"
 if grep -q '</svg>' "$TMP/modes.svg" && grep -q '>turbo<' "$TMP/modes.svg" && grep -q '>low<' "$TMP/modes.svg"; then ok; else bad "chart of modes"; fi
 for f in "$TMP/modes.svg" "$TMP/chain.svg"; do

@@ -93,7 +93,9 @@ enum {
     LW_WARN_BODY_HOT = 1u << 11,         /* body above [thermal] max_touch_c */
     LW_WARN_RESISTOR_DERATED = 1u << 12, /* resistor power above its rating derated to
                                             the body temperature */
-    LW_WARN_COUNT_ = 13
+    LW_WARN_CELL_REVERSAL = 1u << 13,    /* the weakest cell's loaded voltage below 0 V
+                                            while the light runs */
+    LW_WARN_COUNT_ = 14
 };
 
 /* Short machine names of the warning flags, by bit index. */
@@ -163,6 +165,7 @@ typedef struct lw_result {
                                peak, exact where it is at switch-on or an event) */
     double peak_body_c;     /* the same for the body */
     double peak_body_h;     /* when, in a run in time (NAN in the depth quadrature) */
+    double min_weak_cell_v; /* the weakest cell's lowest loaded voltage while lit, V */
     double peak_resistor_derated_w; /* the largest p_res_peak_w / derating(T_body): the
                                        rating one resistor needs at the body's temperature
                                        (thermal.h; 0 without [thermal] or resistor) */

@@ -48,6 +48,9 @@ typedef struct lw_pack {
     int parallel;        /* P >= 1 */
     double ambient_c;    /* deg C */
     double stored_months; /* months on the shelf before switch-on, >= 0 */
+    double capacity_spread; /* the weakest of the S cells in series holds this share
+                               less charge, 0 <= x < 1 (the others nominal) */
+    double resistance_spread; /* and has this share more internal resistance, >= 0 */
 } lw_pack;
 
 typedef enum lw_reference { LW_REF_OWN, LW_REF_FRESH, LW_REF_COUNT } lw_reference;
@@ -103,7 +106,9 @@ typedef struct lw_point {
     double led_a;         /* per string, peak (on-state) */
     double led_v;         /* per LED at led_a */
     double cell_a;        /* per cell, peak (on-state) */
-    double cell_v;        /* per cell loaded V at peak current */
+    double cell_v;        /* per cell loaded V at peak current (the pack's mean) */
+    double weak_cell_v;   /* the weakest cell's loaded V at peak current (cell_v
+                             without a spread) */
     double pack_v;        /* loaded pack terminal V at peak current */
     double pack_a;        /* pack current, peak (on-state) */
     double pack_avg_a;    /* pack current averaged over the PWM period */
@@ -156,6 +161,40 @@ LW_MUST_CHECK lw_status lw_light_point_at(const lw_light *light, double depth, d
 LW_MUST_CHECK lw_status lw_light_point_state(const lw_light *light, double depth, double ocv_v,
                                              double r_cell_ohm, bool fallback,
                                              const lw_temps *state, lw_point *pt, lw_error *err);
+
+/* The weakest cell of a series pack (docs/model.md, "The weakest cell"):
+ * it holds (1 - capacity_spread) of the nominal charge, so at the nominal
+ * cells' depth d its own depth is d / (1 - capacity_spread) (the same
+ * charge drawn from every cell in series), and its resistance is
+ * (1 + resistance_spread) times the nominal at that depth.  The pack's
+ * EMF and resistance are the sums over its cells; per cell, the means. */
+typedef struct lw_cells {
+    double ocv_v, r_ohm;           /* per-cell means over the S cells in series */
+    double weak_ocv_v, weak_r_ohm; /* the weakest cell */
+    double weak_depth;             /* its depth, fraction */
+} lw_cells;
+
+/* Does the pack have a weakest cell that differs (S > 1 and a spread)? */
+bool lw_light_has_spread(const lw_light *light);
+
+/* The nominal cells' depth at which the weakest cell is empty (1 without
+ * a spread): the run's capacity end. */
+double lw_light_depth_end(const lw_light *light);
+
+/* The cells at the nominal cells' depth d. */
+void lw_light_cells(const lw_light *light, double depth, lw_cells *cells);
+
+/* The first knot of the pack's curves above depth d - the interior points
+ * of the cell's curves for the nominal cells and, with a spread, the same
+ * points for the weakest cell - or lw_light_depth_end when there is none:
+ * the rates have kinks there. */
+double lw_light_knot_above(const lw_light *light, double depth);
+
+/* lw_light_point_state at the nominal cells' depth d, the cells' values
+ * taken from their curves (with the weakest cell's). */
+LW_MUST_CHECK lw_status lw_light_point_depth(const lw_light *light, double depth, bool fallback,
+                                             const lw_temps *state, lw_point *pt,
+                                             lw_error *err);
 
 /* The light in mode `mode` of its step-down chain (the light itself
  * without a chain). */

@@ -50,6 +50,11 @@ const char *lw_report_warning(int bit);
  * 30-s output of fresh cells at 20 C"). */
 void lw_report_reference(const lw_light *light, char *buf, size_t size);
 
+/* The weakest cell the pack assumes, in words ("the weakest cell in series:
+ * 3 % less charge, 0 % more resistance"); false (and "") without a
+ * spread. */
+bool lw_report_spread(const lw_light *light, char *buf, size_t size);
+
 /* Human duration: "41.3 h", "52 min", "3.2 d" style. */
 void lw_report_hours(double h, char *buf, size_t size);
 

@@ -40,6 +40,12 @@ const lw_keydef lw_profile_keys[] = {
        "ambient temperature, deg C"),
     PK("pack", "stored_months", LW_K_NUM, light.pack.stored_months, 1, 0, 600, 0, "0",
        "months on the shelf before switch-on (self-discharge and standby drain)"),
+    PK("pack", "capacity_spread_pct", LW_K_NUM, light.pack.capacity_spread, 1e-2, 0, 100,
+       LW_KF_MAX_OPEN, "0",
+       "the weakest of the cells in series holds this % less charge than the others "
+       "(mixed, aged or unmatched cells), %"),
+    PK("pack", "resistance_spread_pct", LW_K_NUM, light.pack.resistance_spread, 1e-2, 0, 1000,
+       0, "0", "the weakest cell's internal resistance is this % above the others', %"),
     {"led", "model", LW_K_CHOICE, offsetof(lw_profile, light.led.model), 0, 1, NAN, NAN,
      LW_KF_REQUIRED, lw_led_model_names, "", "I-V model: constant, linear, shockley or table"},
     PK("led", "count", LW_K_INT, light.led.count, 1, 1, 1000, 0, "1", "LEDs in series per string"),

@@ -29,7 +29,7 @@ bool lw_run_end_is_dark(lw_end_reason why)
 const char *const lw_run_warning_names[LW_WARN_COUNT_] = {
     "led-over-max", "led-over-max-worst-case", "resistor-hot", "over-discharge", "never-lit",
     "no-cutoff", "led-table-extrapolated", "temperature-outside-table", "tolerance-not-met",
-    "resistor-over-rating", "junction-hot", "body-hot", "resistor-derated"};
+    "resistor-over-rating", "junction-hot", "body-hot", "resistor-derated", "cell-reversal"};
 
 /* Gauss-Kronrod 7/15 abscissae and weights (QUADPACK qk15). */
 static const double xgk[8] = {
@@ -93,7 +93,7 @@ static lw_status eval(engine *e, double d, lw_point *pt)
                             e->opt->max_solves, d);
     }
     lw_status st;
-    if (e->seg == SIZE_MAX) {
+    if (e->seg == SIZE_MAX || lw_light_has_spread(e->l)) {
         st = lw_light_point(e->l, d, e->fallback, pt, e->err);
     } else {
         const lw_interp *o = e->l->pack.cell.ocv, *r = e->l->pack.cell.res;
@@ -105,6 +105,8 @@ static lw_status eval(engine *e, double d, lw_point *pt)
         st = lw_light_point_at(e->l, d, ocv, res, e->fallback, pt, e->err);
     }
     if (st == LW_OK) {
+        if (pt->regime != LW_REGIME_DROPOUT)
+            e->res->min_weak_cell_v = fmin(e->res->min_weak_cell_v, pt->weak_cell_v);
         e->res->peak_junction_c = fmax(e->res->peak_junction_c, pt->temps.junction_c);
         e->res->peak_body_c = fmax(e->res->peak_body_c, pt->temps.body_c);
         lw_run_note_resistor(e->l, pt, e->res);
@@ -132,7 +134,7 @@ static double event_g(const engine *e, int k, const lw_point *pt)
     case EV_FLOOR:
         return pt->flux_lm - e->floor_lm;
     case EV_CELL_V:
-        return pt->cell_v - l->cutoff.cell_v;
+        return pt->weak_cell_v - l->cutoff.cell_v;
     case EV_HALF:
         return pt->flux_lm - 0.5 * e->flux_ref;
     case EV_PEUKERT:
@@ -815,20 +817,22 @@ static void set_warnings(const lw_light *l, lw_result *r)
         r->warnings |= LW_WARN_NEVER_LIT;
     if (r->end_reason == LW_END_CAPACITY)
         r->warnings |= LW_WARN_NO_CUTOFF;
+    if (!lw_run_end_is_dark(r->end_reason) && r->min_weak_cell_v < 0.0)
+        r->warnings |= LW_WARN_CELL_REVERSAL;
 }
 
 /* Time (h) from depth a to b >= a, split at the cell curve's points, each
  * part to the run's tolerance (the search-mode solve finds the interval). */
 static lw_status time_between(engine *e, double a, double b, double *t_h)
 {
-    const lw_interp *o = e->l->pack.cell.ocv;
     size_t saved = e->seg;
     e->seg = SIZE_MAX;
     *t_h = 0.0;
     lw_status st = LW_OK;
     for (double x = a; st == LW_OK && x < b;) {
-        size_t i = lw_interp_find(o, x);
-        double end = i + 2 < o->n ? fmin(b, o->x[i + 1]) : b;
+        double end = fmin(b, lw_light_knot_above(e->l, x));
+        if (!(end > x))
+            end = b; /* past the last knot */
         st = time_integral(e, x, end, 0, t_h);
         x = end;
     }
@@ -898,7 +902,7 @@ static lw_status point_at_30s(engine *e, const lw_point *p0, lw_point *p30, doub
             *d30 = d;
             return LW_OK;
         }
-        if (d >= 1.0 && f < 0.0)
+        if (d >= lw_light_depth_end(e->l) && f < 0.0)
             return LW_OK; /* empty before 30 s */
         double next = d - f / pt.dtdd_h;
         d = next > lo && next < hi ? next : 0.5 * (lo + hi);
@@ -927,18 +931,21 @@ static void init_events(engine *e, const lw_point *p0)
         e->positive[k] = event_g(e, k, p0) > 0.0;
 }
 
+/* The intervals between the knots of the pack's curves (the cell's curve
+ * points, and the weakest cell's with a spread), in turn. */
 static lw_status run_body(engine *e, lw_point p0)
 {
     const lw_interp *curve = e->l->pack.cell.ocv;
+    const double end = lw_light_depth_end(e->l);
     double a = e->d0;
     lw_point pa = p0;
-    for (size_t i = 0; i + 1 < curve->n && !e->done; i++) {
-        double b = curve->x[i + 1];
-        if (b <= a)
-            continue;
-        if (i + 2 == curve->n)
-            b = fmax(b, 1.0);
-        e->seg = i;
+    while (a < end && !e->done) {
+        double b = lw_light_knot_above(e->l, a);
+        /* without a spread the interval is one of the curve's, whose
+         * values come straight from it; the last reaches the end */
+        e->seg = lw_interp_find(curve, a);
+        if (e->seg + 2 >= curve->n && !lw_light_has_spread(e->l))
+            b = end;
         lw_status st = run_interval(e, a, b, pa, 0);
         if (st != LW_OK)
             return st;
@@ -1001,7 +1008,7 @@ static lw_status start_run(engine *e, lw_point *p0)
     lw_run_note_resistor(e->l, p0, res);
     e->d_now = e->d0;
     e->floor_lm = fmax(l->cutoff.flux_lm, e->opt->visible_lm);
-    if (e->d0 >= 1.0) {
+    if (e->d0 >= lw_light_depth_end(l)) {
         finish(e, LW_END_EMPTY_AT_START, p0);
         return LW_OK;
     }
@@ -1009,7 +1016,7 @@ static lw_status start_run(engine *e, lw_point *p0)
         finish(e, LW_END_NEVER_LIT, p0);
         return LW_OK;
     }
-    if (p0->cell_v <= l->cutoff.cell_v) {
+    if (p0->weak_cell_v <= l->cutoff.cell_v) {
         finish(e, LW_END_EMPTY_AT_START, p0);
         return LW_OK;
     }
@@ -1044,6 +1051,7 @@ lw_status lw_run(const lw_light *light, const lw_run_options *opt, lw_result *re
     res->time_to_half_h = NAN;
     res->flux_30s_lm = res->flux_ref_lm = NAN;
     res->junction_30s_c = res->peak_junction_c = res->peak_body_c = res->peak_body_h = NAN;
+    res->min_weak_cell_v = INFINITY;
     engine e = {.l = light, .opt = opt, .res = res, .err = err, .seg = SIZE_MAX, .end_d = -1};
     e.d0 = fmin(1.0, fmax(opt->start_depth, lw_light_stored_depth(light)));
     res->start_depth = e.d0;

@@ -330,8 +330,8 @@ static lw_status point_static_foldback(const lw_light *l, double depth, double o
                         LW_THERMAL_ITER_MAX, depth);
 }
 
-lw_status lw_light_point_state(const lw_light *l, double depth, double ocv_v, double r_cell_ohm,
-                               bool fallback, const lw_temps *state, lw_point *pt, lw_error *err)
+static lw_status point_state(const lw_light *l, double depth, double ocv_v, double r_cell_ohm,
+                             bool fallback, const lw_temps *state, lw_point *pt, lw_error *err)
 {
     const double ta = l->pack.ambient_c;
     if (!l->thermal.enabled) {
@@ -346,19 +346,79 @@ lw_status lw_light_point_state(const lw_light *l, double depth, double ocv_v, do
                         lw_thermal_foldback(&l->thermal, s.body_c), pt, err);
 }
 
+lw_status lw_light_point_state(const lw_light *l, double depth, double ocv_v, double r_cell_ohm,
+                               bool fallback, const lw_temps *state, lw_point *pt, lw_error *err)
+{
+    lw_status st = point_state(l, depth, ocv_v, r_cell_ohm, fallback, state, pt, err);
+    pt->weak_cell_v = pt->cell_v; /* every cell alike; lw_light_point_depth knows better */
+    return st;
+}
+
 lw_status lw_light_point_at(const lw_light *l, double depth, double ocv_v, double r_cell_ohm,
                             bool fallback, lw_point *pt, lw_error *err)
 {
     return lw_light_point_state(l, depth, ocv_v, r_cell_ohm, fallback, NULL, pt, err);
 }
 
+bool lw_light_has_spread(const lw_light *l)
+{
+    return l->pack.series > 1 && (l->pack.capacity_spread > 0.0 || l->pack.resistance_spread > 0.0);
+}
+
+double lw_light_depth_end(const lw_light *l)
+{
+    return lw_light_has_spread(l) ? 1.0 - l->pack.capacity_spread : 1.0;
+}
+
+void lw_light_cells(const lw_light *l, double depth, lw_cells *out)
+{
+    const lw_cell *c = &l->pack.cell;
+    double ocv = lw_interp_linear(c->ocv, depth);
+    double r = lw_interp_linear(c->res, depth) * l->res_factor;
+    if (!lw_light_has_spread(l)) {
+        *out = (lw_cells){ocv, r, ocv, r, depth};
+        return;
+    }
+    const double s = l->pack.series;
+    double dw = fmin(1.0, depth / (1.0 - l->pack.capacity_spread));
+    double ow = lw_interp_linear(c->ocv, dw);
+    double rw = lw_interp_linear(c->res, dw) * l->res_factor * (1.0 + l->pack.resistance_spread);
+    *out = (lw_cells){((s - 1.0) * ocv + ow) / s, ((s - 1.0) * r + rw) / s, ow, rw, dw};
+}
+
+double lw_light_knot_above(const lw_light *l, double d)
+{
+    const double end = lw_light_depth_end(l);
+    const double scale[2] = {1.0, end};
+    double k = end;
+    const lw_interp *t[2] = {l->pack.cell.ocv, l->pack.cell.res};
+    for (int w = 0; w < (end < 1.0 ? 2 : 1); w++)
+        for (int j = 0; j < 2; j++)
+            for (size_t i = 1; i + 1 < t[j]->n; i++) {
+                double x = scale[w] * t[j]->x[i];
+                if (x > d) {
+                    k = fmin(k, x);
+                    break;
+                }
+            }
+    return k;
+}
+
+lw_status lw_light_point_depth(const lw_light *light, double depth, bool fallback,
+                               const lw_temps *state, lw_point *pt, lw_error *err)
+{
+    lw_cells c;
+    lw_light_cells(light, depth, &c);
+    lw_status st = lw_light_point_state(light, depth, c.ocv_v, c.r_ohm, fallback, state, pt, err);
+    if (st == LW_OK && lw_light_has_spread(light))
+        pt->weak_cell_v = c.weak_ocv_v - pt->cell_a * c.weak_r_ohm;
+    return st;
+}
+
 lw_status lw_light_point(const lw_light *light, double depth, bool fallback, lw_point *pt,
                          lw_error *err)
 {
-    const lw_cell *c = &light->pack.cell;
-    double ocv = lw_interp_linear(c->ocv, depth);
-    double r = lw_interp_linear(c->res, depth) * light->res_factor;
-    return lw_light_point_at(light, depth, ocv, r, fallback, pt, err);
+    return lw_light_point_depth(light, depth, fallback, NULL, pt, err);
 }
 
 double lw_light_stored_depth(const lw_light *l)

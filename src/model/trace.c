@@ -46,11 +46,8 @@ static lw_status state_point(const lw_light *light, const lw_state *s, lw_point 
                              lw_error *err)
 {
     const lw_light *l = lw_light_mode(light, s->mode);
-    const lw_cell *c = &l->pack.cell;
-    double ocv = lw_interp_linear(c->ocv, s->depth);
-    double r = lw_interp_linear(c->res, s->depth) * l->res_factor;
     lw_temps t = {NAN, s->board_c, s->body_c};
-    return lw_light_point_state(l, s->depth, ocv, r, s->fallback, &t, pt, err);
+    return lw_light_point_depth(l, s->depth, s->fallback, &t, pt, err);
 }
 
 /* The trace of a run in time: a row at every accepted step (the steps are

@@ -102,13 +102,9 @@ static lw_status eval(tr *e, const double x[NX], lw_point *pt, double f[NX], dou
                             "the run in time stopped after %d operating-point solves near "
                             "depth %.6g (max_solves)",
                             e->opt->max_solves, x[0]);
-    const lw_light *l = e->l;
-    const lw_cell *c = &l->pack.cell;
     double d = x[0] < 0.0 ? 0.0 : (x[0] > 1.0 ? 1.0 : x[0]);
-    double ocv = lw_interp_linear(c->ocv, d);
-    double r = lw_interp_linear(c->res, d) * l->res_factor;
     lw_temps s = {NAN, x[1], x[2]};
-    lw_status st = lw_light_point_state(l, d, ocv, r, e->fallback, &s, pt, e->err);
+    lw_status st = lw_light_point_depth(e->l, d, e->fallback, &s, pt, e->err);
     if (st == LW_OK)
         rates_of(e, pt, f, g);
     return st;
@@ -462,19 +458,12 @@ typedef struct run {
     const step *win_next;
 } run;
 
-/* The first knot of the cell's OCV and resistance curves above depth d
- * (2 when there is none). */
-static double knot_above(const lw_cell *c, double d)
+/* The first kink of the pack's curves above depth d (2: none before the
+ * capacity end, which is an event of its own). */
+static double knot_after(const lw_light *l, double d)
 {
-    double k = 2.0;
-    const lw_interp *t[2] = {c->ocv, c->res};
-    for (int j = 0; j < 2; j++)
-        for (size_t i = 0; i < t[j]->n; i++)
-            if (t[j]->x[i] > d) {
-                k = fmin(k, t[j]->x[i]);
-                break;
-            }
-    return k;
+    double k = lw_light_knot_above(l, d);
+    return k < lw_light_depth_end(l) ? k : 2.0;
 }
 
 /* The current mode of the chain, NULL without one. */
@@ -497,10 +486,10 @@ static double event_g(const run *r, int k, const lw_point *p, double depth)
     switch (k) {
     case EV_REL: return p->flux_lm - r->frac * r->ref;
     case EV_FLOOR: return p->flux_lm - r->floor_lm;
-    case EV_CELL_V: return p->cell_v - r->e.l0->cutoff.cell_v;
+    case EV_CELL_V: return p->weak_cell_v - r->e.l0->cutoff.cell_v;
     case EV_NEXT_V: return p->cell_v - chain_mode(r)->below_cell_v;
     case EV_NEXT_HOT: return chain_mode(r)->above_c - p->temps.body_c;
-    case EV_CAPACITY: return 1.0 - depth;
+    case EV_CAPACITY: return lw_light_depth_end(r->e.l) - depth;
     case EV_HALF: return p->flux_lm - 0.5 * r->ref;
     case EV_KNOT: return r->knot_next - depth;
     case EV_FOLD_FROM:
@@ -761,6 +750,8 @@ static void peaks_at(run *r, const lw_point *p, double t_s)
         res->peak_body_h = t_s / 3600.0;
     }
     res->peak_resistor_w = fmax(res->peak_resistor_w, p->p_res_peak_w);
+    if (p->regime != LW_REGIME_DROPOUT)
+        res->min_weak_cell_v = fmin(res->min_weak_cell_v, p->weak_cell_v);
     lw_run_note_resistor(r->e.l, p, res);
 }
 
@@ -1043,7 +1034,7 @@ static lw_status act(run *r, int k, const step *before)
         return LW_OK; /* the chain switches in at_instant */
     if (k == EV_KNOT) {
         /* at (or within 1e-12 past) the knot: the next one */
-        r->knot_next = knot_above(&r->e.l->pack.cell, r->x[0] + 1e-12);
+        r->knot_next = knot_after(r->e.l, r->x[0] + 1e-12);
         return LW_OK;
     }
     if (k == EV_HALF) {
@@ -1219,7 +1210,7 @@ static lw_status start(run *r, double d0)
     r->t = 0.0;
     r->x[0] = d0, r->x[1] = r->x[2] = l->pack.ambient_c;
     memset(r->q, 0, sizeof r->q);
-    r->knot_next = knot_above(&l->pack.cell, d0);
+    r->knot_next = knot_after(l, d0);
     return mode_point(r);
 }
 
@@ -1296,7 +1287,7 @@ lw_status lw_transient_run(const lw_light *light, const lw_run_options *opt, lw_
     res->peak_body_h = 0.0;
     if (light->cutoff.reference == LW_REF_FRESH && (st = fresh_reference(&r, &r.ref)) != LW_OK)
         return st;
-    if (res->start_depth >= 1.0 || r.p.cell_v <= light->cutoff.cell_v)
+    if (res->start_depth >= lw_light_depth_end(light) || r.p.weak_cell_v <= light->cutoff.cell_v)
         finish(&r, LW_END_EMPTY_AT_START, &r.p);
     else if (!(r.p.flux_lm >= opt->visible_lm) || !isfinite(r.p.dtdd_h))
         finish(&r, LW_END_NEVER_LIT, &r.p);

@@ -66,7 +66,8 @@ enum run_col {
     RC_RUNTIME, RC_END, RC_LED_MA, RC_PACK_MA, RC_FLUX0, RC_FLUX30, RC_REF_LM, RC_REFERENCE,
     RC_HALF, RC_REGULATED, RC_LMH, RC_E_DRAWN, RC_E_LED, RC_E_RES, RC_E_INT, RC_E_DRV,
     RC_EFFICIENCY, RC_LM_PER_W, RC_PEAK_RES, RC_WORST_LED, RC_WORST_RES, RC_FINAL_V, RC_TJ30,
-    RC_TJ_PEAK, RC_TH_PEAK, RC_SWITCHES, RC_SOLVES, RC_WARNINGS, RC_COUNT
+    RC_TJ_PEAK, RC_TH_PEAK, RC_SWITCHES, RC_WEAK_V_END, RC_REVERSAL, RC_SOLVES, RC_WARNINGS,
+    RC_COUNT
 };
 
 /* Columns that only mean something for a light that lit (empty otherwise). */
@@ -74,7 +75,7 @@ static bool lit_only(enum run_col c)
 {
     return !(c == RC_RUNTIME || c == RC_END || c == RC_REFERENCE || c == RC_WORST_LED ||
              c == RC_WORST_RES || c == RC_FINAL_V || c == RC_SOLVES || c == RC_WARNINGS ||
-             c == RC_SWITCHES);
+             c == RC_SWITCHES || c == RC_WEAK_V_END || c == RC_REVERSAL);
 }
 
 const char *const lw_report_run_columns[RC_COUNT + 1] = {
@@ -84,7 +85,8 @@ const char *const lw_report_run_columns[RC_COUNT + 1] = {
     "energy_led_wh",      "energy_resistor_wh", "energy_internal_wh", "energy_driver_wh",
     "efficiency_pct",     "lm_per_w",         "peak_resistor_w", "worst_led_ma",
     "worst_resistor_w",   "final_cell_v",     "junction_30s_c", "peak_junction_c",
-    "peak_body_c",        "switches",         "solves",         "warnings",       NULL};
+    "peak_body_c",        "switches",         "weakest_cell_v_end", "reversal",
+    "solves",             "warnings",         NULL};
 const size_t lw_report_run_ncolumns = RC_COUNT;
 
 void lw_report_warnings(unsigned warnings, char *buf, size_t size)
@@ -131,6 +133,8 @@ static double run_value(enum run_col c, const lw_result *r)
     case RC_TJ_PEAK: return r->peak_junction_c;
     case RC_TH_PEAK: return r->peak_body_c;
     case RC_SWITCHES: return (double)r->n_switches;
+    case RC_WEAK_V_END: return r->final.weak_cell_v;
+    case RC_REVERSAL: return (r->warnings & LW_WARN_CELL_REVERSAL) ? 1.0 : 0.0;
     case RC_SOLVES: return r->solves;
     default: return NAN;
     }
@@ -215,7 +219,10 @@ const char *lw_report_warning(int bit)
         "an LED junction is above the LED's max_junction_c",
         "the body is hotter than [thermal] max_touch_c: a burn risk where it is held",
         "resistor power exceeds its rating derated to the body temperature (full to 70 C, "
-        "zero at 155 C: common practice; the part's data decide)"};
+        "zero at 155 C: common practice; the part's data decide)",
+        "the weakest cell is driven below 0 V while the light runs (cell reversal): it can "
+        "vent or leak; never mix cells of different age, make or charge in series, and never "
+        "series-mix or over-discharge lithium cells"};
     // NOLINTEND(bugprone-suspicious-missing-comma)
     return text[bit];
 }
@@ -268,11 +275,24 @@ static void text_header(FILE *fp, const lw_profile *p)
     fprintf(fp, "  pack    %d x %s (%d in series, %d in parallel) at %g C\n",
             l->pack.series * l->pack.parallel, l->pack.cell.name, l->pack.series,
             l->pack.parallel, l->pack.ambient_c);
+    char spread[160];
+    if (lw_report_spread(l, spread, sizeof spread))
+        fprintf(fp, "          %s\n", spread);
     fprintf(fp, "  LEDs    %d string%s of %d, %s model\n", l->led.strings,
             l->led.strings == 1 ? "" : "s", l->led.count, lw_led_model_names[l->led.model]);
     char drive[160];
     lw_report_drive(l, drive, sizeof drive);
     fprintf(fp, "  drive   %s\n", drive);
+}
+
+bool lw_report_spread(const lw_light *l, char *buf, size_t size)
+{
+    buf[0] = '\0';
+    if (!lw_light_has_spread(l))
+        return false;
+    snprintf(buf, size, "the weakest cell in series: %g %% less charge, %g %% more resistance",
+             100.0 * l->pack.capacity_spread, 100.0 * l->pack.resistance_spread);
+    return true;
 }
 
 /* Why a light gave no light, with the figures that show it. */
@@ -340,7 +360,9 @@ static void text_run(FILE *fp, const lw_light *l, const lw_result *r)
     char buf[96];
     lw_report_hours(r->runtime_h, buf, sizeof buf);
     fprintf(fp, "  runtime to cutoff   %s  [%s: %s]\n", buf, lw_run_end_names[r->end_reason],
-            end_text(r->end_reason));
+            r->end_reason == LW_END_CELL_VOLTAGE && lw_light_has_spread(l)
+                ? "the weakest cell's loaded voltage reached the end point"
+                : end_text(r->end_reason));
     lw_report_hours(r->time_to_half_h, buf, sizeof buf);
     fprintf(fp, "  time to 50 %%        %s\n", buf);
     if (isfinite(r->regulated_h)) {
@@ -357,6 +379,14 @@ static void text_run(FILE *fp, const lw_light *l, const lw_result *r)
     fprintf(fp, ", or %.3g V per cell loaded\n", l->cutoff.cell_v);
     fprintf(fp, "  at the end          %.3f V per cell loaded, depth %.1f %%\n", r->final.cell_v,
             100.0 * r->end_depth);
+    if (lw_light_has_spread(l)) {
+        fprintf(fp, "  weakest cell        %.3f V loaded at the end, depth %.1f %%",
+                r->final.weak_cell_v,
+                100.0 * fmin(1.0, r->end_depth / (1.0 - l->pack.capacity_spread)));
+        if (r->warnings & LW_WARN_CELL_REVERSAL)
+            fprintf(fp, "; driven below 0 V (reversed, lowest %.3f V)", r->min_weak_cell_v);
+        fputc('\n', fp);
+    }
     if (l->thermal.enabled && isfinite(r->peak_junction_c)) {
         fprintf(fp, "  hottest             junction %.1f C (%.1f C at 30 s), body %.1f C",
                 r->peak_junction_c, r->junction_30s_c, r->peak_body_c);
@@ -487,7 +517,8 @@ static lw_status lw_report_run_in_c_locale(FILE *fp, lw_rtable_format fmt, const
 static lw_status lw_report_trace_csv_in_c_locale(FILE *fp, const lw_trace *tr, lw_error *err)
 {
     static const char *const head[] = {"time_h",  "depth_pct", "pack_v",     "cell_v",
-                                       "ocv_cell_v", "led_ma", "led_v",      "resistor_w",
+                                       "weakest_cell_v", "ocv_cell_v", "led_ma", "led_v",
+                                       "resistor_w",
                                        "led_w",   "driver_w",  "flux_lm",    "flux_pct",
                                        "t_j_c",   "t_board_c", "t_body_c",   "mode"};
     lw_csvw w;
@@ -498,7 +529,8 @@ static lw_status lw_report_trace_csv_in_c_locale(FILE *fp, const lw_trace *tr, l
     for (size_t i = 0; i < tr->n; i++) {
         const lw_point *p = &tr->rows[i].pt;
         const double v[] = {tr->rows[i].t_h, 100.0 * p->depth, p->pack_v,   p->cell_v,
-                            p->ocv_v,        p->led_a * 1e3,   p->led_v,    p->p_res_w,
+                            p->weak_cell_v,  p->ocv_v,         p->led_a * 1e3, p->led_v,
+                            p->p_res_w,
                             p->p_led_w,      p->p_drv_w,       p->flux_lm,  tr->rows[i].pct_of_ref,
                             p->temps.junction_c, p->temps.board_c, p->temps.body_c};
         for (size_t k = 0; k < sizeof v / sizeof v[0]; k++)

@@ -76,6 +76,19 @@ static lw_status lw_report_size_in_c_locale(const lw_profile *prof, const lw_siz
                      "cell count, then mass.",
                      opt->runtime_h);
         st = lw_rtable_note(t, note, err);
+        char spread[160];
+        if (st == LW_OK && prof->light.pack.capacity_spread + prof->light.pack.resistance_spread > 0) {
+            /* a pack of one cell in series has no weakest cell: the spread
+             * applies from two in series */
+            lw_light two = prof->light;
+            two.pack.series = 2;
+            lw_report_spread(&two, spread, sizeof spread);
+            snprintf(note, sizeof note,
+                     "Cells: in every pack of two or more in series, %s; the end point is "
+                     "the weakest cell's.",
+                     spread);
+            st = lw_rtable_note(t, note, err);
+        }
         if (st == LW_OK && regulated)
             st = lw_rtable_note(t, "The drive regulates: no resistor to choose; each pack runs "
                                    "with the drive as it is, its dropout included.",

@@ -50,6 +50,14 @@ static void storage_of(const lw_case *k, char *buf, size_t size)
         snprintf(buf, size, "fresh cells");
 }
 
+static void spread_of(const lw_case *k, char *buf, size_t size)
+{
+    if (!lw_report_spread(&k->light, buf, size))
+        snprintf(buf, size, "matched cells");
+    else
+        strncat(buf, " (the end point is the weakest cell's)", size - strlen(buf) - 1);
+}
+
 static void ambient_of(const lw_case *k, char *buf, size_t size)
 {
     snprintf(buf, size, "%g C ambient", k->light.pack.ambient_c);
@@ -178,6 +186,11 @@ static lw_status spec_notes(const lw_spec *s, unsigned used, lw_rtable *t, lw_er
     const lw_profile *p = s->prof;
     char common[1024] = "Test conditions: light output 30 s after switch-on";
     lw_status st = aspect(s, "Storage", storage_of, common, sizeof common, t, err);
+    bool spread = false;
+    for (size_t i = 0; i < s->nrows * s->ncells; i++)
+        spread = spread || lw_light_has_spread(&s->cases[i].light);
+    if (st == LW_OK && spread)
+        st = aspect(s, "Cells", spread_of, common, sizeof common, t, err);
     if (st == LW_OK)
         st = aspect(s, "Ambient", ambient_of, common, sizeof common, t, err);
     if (st == LW_OK)
