@@ -264,6 +264,24 @@ case_ 2 "cellA.ini:13: \\[cell\\] curve: cannot open .*not a regular file" cellA
 case_ 2 "cellA.ini:2: unknown key 'nam' in \\[cell\\]" cellA.ini 2 '2s/name/nam/' $RUN
 case_ 2 "p.ini:4: \\[pack\\] cell: .*cellA.ini' is not a cell file \\(it has no \\[cell\\] section\\)" cellA.ini 1 '1s/cell/cel/' $RUN
 case_ 2 "cellA.ini:3: \\[cell\\] name is given twice" cellA.ini 2 '2s/$/\nname = again/' $RUN
+# the kinetic model: its keys, and the model without them
+case_ 2 "cellA.ini:15: rate_model = kinetic needs 'available_pct'" cellA.ini 14 '14s/$/\nrate_model = kinetic/' $RUN
+case_ 2 "cellA.ini:15: rate_model = kinetic needs 'recovery_per_h'" cellA.ini 14 '14s/$/\nrate_model = kinetic\navailable_pct = 60/' $RUN
+case_ 2 "cellA.ini:15: .*rate_model = two-well: expected one of" cellA.ini 14 '14s/$/\nrate_model = two-well/' $RUN
+for v in 0 100 -5 abc; do
+    case_ 2 "cellA.ini:15: .*available_pct" cellA.ini 14 "14s/\$/\\navailable_pct = $v/" $RUN
+done
+for v in 0 -1 1e9; do
+    case_ 2 "cellA.ini:15: .*recovery_per_h" cellA.ini 14 "14s/\$/\\nrecovery_per_h = $v/" $RUN
+done
+args 2 "--set pack.rate_model: \\[pack\\] rate_model = kinetic: the cell cellA has no kinetic parameters" $RUN --set pack.rate_model=kinetic
+# the weakest cell's keys
+for v in 100 -1 abc; do
+    args 2 "capacity_spread_pct" $RUN --set pack.capacity_spread_pct=$v
+done
+for v in -1 2000; do
+    args 2 "resistance_spread_pct" $RUN --set pack.resistance_spread_pct=$v
+done
 
 # ---- CSV tables: the curve, the temperature table, LED and driver tables ----
 C=cellA.curve.csv

@@ -17,6 +17,8 @@
  *   C_eff(Ic) = kc * min(Cmax, C * (I_rated / Ic)^(k - 1)): Peukert's law
  *     (W. Peukert, Elektrotechnische Zeitschrift 18, 1897) referred to the
  *     rated current, capped at the low-drain capacity Cmax.
+ *   Kinetic cells (rate_model = kinetic): no Peukert's law; C = kc * Cmax in
+ *     two wells (lw_cell_kinetic_capacity_ah; the run in time holds them).
  *   dd/dt = Ic / C_eff(Ic) + lambda * (1 - d): the current, plus self-discharge
  *     of the charge left at lambda = -ln(1 - s/100) / 730.5 h for s % a month
  *     (so that a month on the shelf keeps 1 - s/100 of the charge).
@@ -42,6 +44,16 @@ typedef enum lw_chemistry {
 /* Names as written in cell files ("alkaline", "nimh", ..., "other"). */
 extern const char *const lw_cell_chemistry_names[LW_CHEM_COUNT + 1];
 
+/* How the capacity depends on the current and on rest: Peukert's law, or
+ * the kinetic battery model (J. F. Manwell and J. G. McGowan, Solar Energy
+ * 50(5):399-405, 1993): two wells of charge, the available one feeding the
+ * load and refilled from the bound one at a rate set by the difference of
+ * their heights.  docs/model.md, "The kinetic battery model". */
+typedef enum lw_rate_model { LW_RATE_PEUKERT, LW_RATE_KINETIC, LW_RATE_COUNT } lw_rate_model;
+
+/* Names as written in cell files ("peukert", "kinetic"). */
+extern const char *const lw_cell_rate_model_names[LW_RATE_COUNT + 1];
+
 typedef struct lw_cell {
     char name[LW_NAME_MAX];        /* e.g. "LR6-alkaline" */
     char path[LW_PATH_MAX];        /* cell file it came from, for messages */
@@ -57,6 +69,11 @@ typedef struct lw_cell {
     bool rechargeable;
     double mass_g;                 /* g, 0 when not given */
     double self_discharge_pct_month; /* % of capacity lost per month at 20 C */
+    lw_rate_model rate_model;      /* Peukert's law (default) or the kinetic model */
+    double kinetic_c;              /* kinetic: the available well's share c, 0 < c < 1
+                                      (NAN when not given) */
+    double kinetic_k_per_h;        /* kinetic: k' = k / (c (1 - c)), 1/h, > 0 (NAN when
+                                      not given) */
     lw_interp *ocv;                 /* depth fraction -> open-circuit V, non-increasing */
     lw_interp *res;                 /* depth fraction -> internal ohm, > 0 */
     lw_interp *temp_capacity;       /* deg C -> capacity factor, or NULL */
@@ -79,6 +96,15 @@ void lw_cell_temperature_factors(const lw_cell *cell, double ambient_c, double *
  * against the rated point, capped at the low-drain capacity, times cap_factor.
  * At ic_a == 0 it is the cap. */
 double lw_cell_capacity_ah(const lw_cell *cell, double ic_a, double cap_factor);
+
+/* Does the cell follow the kinetic model? */
+bool lw_cell_is_kinetic(const lw_cell *cell);
+
+/* The kinetic model's charge delivered at a constant per-cell current i_a
+ * from full until the available well is empty, Ah, for total capacity
+ * c_ah (the closed form of Manwell and McGowan: the time T at which
+ * c C - c I T - (I / k') (1 - c) (1 - exp(-k' T)) = 0, times I). */
+double lw_cell_kinetic_capacity_ah(double c_ah, double c, double k_per_h, double i_a);
 
 /* Self-discharge rate lambda in 1/h from self_discharge_pct_month s:
  * -ln(1 - s/100) / 730.5 h (730.5 h = an average month); 0 for s = 0. */

@@ -73,6 +73,18 @@ typedef struct lw_cellfit {
     size_t dense_points;
 } lw_cellfit;
 
+/* The kinetic model's parameters from two constant-current capacities:
+ * the available share c and the rate constant k' (1/h) with which a cell
+ * of total charge total_ah delivers q1_ah at i1_a and q2_ah at i2_a to
+ * empty (lw_cell_kinetic_capacity_ah).  For a trial k' each capacity gives
+ * c = A / (C - Q + A), A = (I / k')(1 - e^(-k' Q / I)) (the closed form
+ * solved for c); k' is the root of c1(k') - c2(k') on a log scan from 1e-6
+ * to 1e6 /h, then Brent.  LW_EINPUT when the capacities do not fall with
+ * the current below the total, LW_ENUMERIC when no k' fits. */
+LW_MUST_CHECK lw_status lw_cellfit_kinetic(double total_ah, double i1_a, double q1_ah,
+                                           double i2_a, double q2_ah, double *c,
+                                           double *k_per_h, lw_error *err);
+
 /* Fit from one or two logs (two: at different loads). */
 LW_MUST_CHECK lw_status lw_cellfit_fit(const lw_cellfit_log *logs, size_t nlogs,
                                        const lw_cellfit_options *opt, lw_cellfit *out,

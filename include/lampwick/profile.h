@@ -28,7 +28,7 @@
 #include "inifile.h"
 #include "keys.h"
 
-#define LW_PROFILE_KEYS_MAX 64
+#define LW_PROFILE_KEYS_MAX 96
 /* At most this many [mode NAME] sections in a profile (a real light has a
  * handful; each is checked at load). */
 #define LW_PROFILE_MODES_MAX 256
@@ -43,6 +43,9 @@ typedef struct lw_profile {
     char cell_path[LW_PATH_MAX];      /* cell file loaded into light.pack.cell */
     char iv_file[LW_PATH_MAX], flux_file[LW_PATH_MAX], efficiency_file[LW_PATH_MAX];
     double cutoff_cell_v;             /* V; NAN: the cell's end point */
+    int rate_model;                   /* [pack] rate_model: 0 the cell file's, else
+                                         1 + lw_rate_model */
+    int cell_rate_model;              /* the cell file's own lw_rate_model */
     double beam_angle_deg;            /* [optics]: full beam angle, 0 if not given */
     double peak_cd_per_lm;            /* [optics]: peak intensity per lumen, 0 if not given */
     int key_line[LW_PROFILE_KEYS_MAX];

@@ -62,6 +62,15 @@ const lw_keydef lw_cellfile_keys[] = {
     CK("mass_g", LW_K_NUM, cell.mass_g, 1, 0, 1e6, 0, "0", "mass of one cell, g"),
     CK("self_discharge_pct_month", LW_K_NUM, cell.self_discharge_pct_month, 1, 0, 50, 0, "0",
        "charge lost per month in storage at 20 C, %"),
+    {"cell", "rate_model", LW_K_CHOICE, offsetof(cellspec, cell.rate_model), 0, 1, NAN, NAN, 0,
+     lw_cell_rate_model_names, "peukert",
+     "how capacity depends on current and rest: peukert (Peukert's law, capped at "
+     "max_capacity_mah) or kinetic (two wells that recover at rest; needs available_pct and "
+     "recovery_per_h)"},
+    CK("available_pct", LW_K_NUM, cell.kinetic_c, 1e-2, 0, 100, LW_KF_MIN_OPEN | LW_KF_MAX_OPEN,
+       "", "kinetic model: the share of the charge in the available well, %"),
+    CK("recovery_per_h", LW_K_NUM, cell.kinetic_k_per_h, 1, 0, 1e6, LW_KF_MIN_OPEN, "",
+       "kinetic model: the rate constant k' of the exchange between the wells, 1/h"),
 };
 const size_t lw_cellfile_nkeys = sizeof lw_cellfile_keys / sizeof lw_cellfile_keys[0];
 
@@ -215,6 +224,18 @@ static lw_status check_cell(const lw_ini *ini, cellspec *spec, const bool *given
                             "capacity cannot be smaller than the rated one",
                             c->max_capacity_ah * 1e3, c->capacity_ah * 1e3);
     }
+    if (c->rate_model == LW_RATE_KINETIC) {
+        const char *missing = isnan(c->kinetic_c) ? "available_pct"
+                              : isnan(c->kinetic_k_per_h) ? "recovery_per_h"
+                                                          : NULL;
+        if (missing)
+            return lw_error_set(err, LW_EINPUT, ini->path,
+                                lw_ini_key_line(ini, "cell", "rate_model"),
+                                "rate_model = kinetic needs '%s' (the kinetic model's %s)",
+                                missing,
+                                missing[0] == 'a' ? "available well's share, %"
+                                                  : "rate constant k', 1/h");
+    }
     return LW_OK;
 }
 
@@ -255,6 +276,7 @@ lw_status lw_cellfile_load_named(const char *path, const lw_path_ref *ref, lw_ce
     cellspec spec;
     memset(&spec, 0, sizeof spec);
     spec.max_capacity_ah = NAN;
+    spec.cell.kinetic_c = spec.cell.kinetic_k_per_h = NAN;
     bool given[sizeof lw_cellfile_keys / sizeof lw_cellfile_keys[0]] = {false};
     st = lw_key_defaults(lw_cellfile_keys, lw_cellfile_nkeys, &spec, err);
     if (st == LW_OK)
@@ -544,6 +566,12 @@ static lw_status write_cell_text(FILE *fp, const void *ctx, lw_error *err)
         fprintf(fp, "mass_g = %.17g\n", cell->mass_g);
     if (cell->self_discharge_pct_month > 0)
         fprintf(fp, "self_discharge_pct_month = %.17g\n", cell->self_discharge_pct_month);
+    if (cell->rate_model != LW_RATE_PEUKERT)
+        fprintf(fp, "rate_model = %s\n", lw_cell_rate_model_names[cell->rate_model]);
+    if (!isnan(cell->kinetic_c) && cell->kinetic_c > 0)
+        fprintf(fp, "available_pct = %.17g\n", 100.0 * cell->kinetic_c);
+    if (!isnan(cell->kinetic_k_per_h) && cell->kinetic_k_per_h > 0)
+        fprintf(fp, "recovery_per_h = %.17g\n", cell->kinetic_k_per_h);
     fprintf(fp, "curve = %s\n", t->curve_name);
     return ferror(fp) ? lw_error_set(err, LW_EIO, NULL, 0, "write error") : LW_OK;
 }

@@ -155,7 +155,7 @@ static lw_status same_pack(const lw_profile *a, const lw_profile *b, const char 
     if (strcmp(a->cell_path, b->cell_path) != 0 || x->series != y->series ||
         x->parallel != y->parallel || x->ambient_c != y->ambient_c ||
         x->stored_months != y->stored_months || x->capacity_spread != y->capacity_spread ||
-        x->resistance_spread != y->resistance_spread)
+        x->resistance_spread != y->resistance_spread || x->cell.rate_model != y->cell.rate_model)
         return lw_error_set(err, LW_EINPUT, b->path, line,
                             "[mode %s] changes the pack of a chain that starts at [mode %s]: "
                             "the modes of a chain share their cells",

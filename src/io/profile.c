@@ -30,6 +30,8 @@
 #define OPEN LW_KF_MIN_OPEN
 #define INF INFINITY
 
+static const char *const pack_rate_names[] = {"cell", "peukert", "kinetic", NULL};
+
 const lw_keydef lw_profile_keys[] = {
     PT("light", "name", light.name, 0, "name of the light, free text"),
     PT("pack", "cell", cell_ref, LW_KF_REQUIRED, "cell name from the cell library, or a path"),
@@ -40,6 +42,10 @@ const lw_keydef lw_profile_keys[] = {
        "ambient temperature, deg C"),
     PK("pack", "stored_months", LW_K_NUM, light.pack.stored_months, 1, 0, 600, 0, "0",
        "months on the shelf before switch-on (self-discharge and standby drain)"),
+    {"pack", "rate_model", LW_K_CHOICE, offsetof(lw_profile, rate_model), 0, 1, NAN, NAN, 0,
+     pack_rate_names, "cell",
+     "rate model of the cells: cell (the cell file's), peukert, or kinetic (the cell file "
+     "must give available_pct and recovery_per_h)"},
     PK("pack", "capacity_spread_pct", LW_K_NUM, light.pack.capacity_spread, 1e-2, 0, 100,
        LW_KF_MAX_OPEN, "0",
        "the weakest of the cells in series holds this % less charge than the others "
@@ -680,7 +686,27 @@ static lw_status load_cell(lw_profile *p, lw_error *err)
         return st;
     lw_cell_clear(&p->light.pack.cell);
     p->light.pack.cell = cell;
+    p->cell_rate_model = (int)cell.rate_model;
     lw_text_copy(p->cell_path, path, sizeof p->cell_path);
+    return LW_OK;
+}
+
+/* [pack] rate_model over the cell file's own. */
+static lw_status apply_rate_model(lw_profile *p, lw_error *err)
+{
+    lw_cell *c = &p->light.pack.cell;
+    c->rate_model = p->rate_model ? (lw_rate_model)(p->rate_model - 1)
+                                  : (lw_rate_model)p->cell_rate_model;
+    if (c->rate_model == LW_RATE_KINETIC &&
+        !(c->kinetic_c > 0.0 && c->kinetic_k_per_h > 0.0)) {
+        const char *file;
+        int line;
+        where_of(p, "pack", "rate_model", &file, &line);
+        return lw_error_set(err, LW_EINPUT, file, line,
+                            "[pack] rate_model = kinetic: the cell %s has no kinetic "
+                            "parameters (available_pct and recovery_per_h in its cell file)",
+                            c->name);
+    }
     return LW_OK;
 }
 
@@ -693,6 +719,8 @@ lw_status lw_profile_resolve(lw_profile *p, lw_error *err)
                                 "[%s] is missing the key '%s' (%s)", lw_profile_keys[k].section,
                                 lw_profile_keys[k].name, lw_profile_keys[k].help);
     lw_status st = load_cell(p, err);
+    if (st == LW_OK)
+        st = apply_rate_model(p, err);
     if (st == LW_OK)
         st = check_led(p, err);
     if (st == LW_OK)

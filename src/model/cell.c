@@ -4,11 +4,49 @@
 #include "lampwick/cell.h"
 
 #include <math.h>
+#include <stddef.h>
 #include <string.h>
+#include "lampwick/roots.h"
 
 const char *const lw_cell_chemistry_names[LW_CHEM_COUNT + 1] = {
     "alkaline", "nimh", "nicd", "li-fes2", "li-mno2", "li-ion", "lifepo4", "lead-acid", "other",
     NULL};
+
+const char *const lw_cell_rate_model_names[LW_RATE_COUNT + 1] = {"peukert", "kinetic", NULL};
+
+bool lw_cell_is_kinetic(const lw_cell *cell)
+{
+    return cell->rate_model == LW_RATE_KINETIC;
+}
+
+typedef struct kinetic_q {
+    double c_ah, c, k_per_h, i_a;
+} kinetic_q;
+
+/* The available well's charge at time t_h of a constant current from full
+ * (Manwell and McGowan, as restated by M. R. Jongerden and B. R.
+ * Haverkort, IET Software 3(6), 2009): c C - c I t - (I / k')(1 - c)(1 - e^-k't). */
+static double kinetic_available(double t_h, void *ctx)
+{
+    const kinetic_q *q = ctx;
+    return q->c * q->c_ah - q->c * q->i_a * t_h -
+           q->i_a / q->k_per_h * (1.0 - q->c) * -expm1(-q->k_per_h * t_h);
+}
+
+double lw_cell_kinetic_capacity_ah(double c_ah, double c, double k_per_h, double i_a)
+{
+    if (!(i_a > 0.0))
+        return c_ah;
+    kinetic_q q = {c_ah, c, k_per_h, i_a};
+    /* the well falls (its slope is -c I - (1 - c) I e^-k't < 0) from c C at
+     * 0 to below 0 at C / I, when all the charge would be gone */
+    double b = c_ah / i_a, fb = kinetic_available(b, &q), t = b;
+    lw_error e;
+    if (fb < 0.0 && lw_root_brent(kinetic_available, &q, 0.0, b, c * c_ah, fb, 1e-15 * b, 200,
+                                  &t, &e) != LW_OK)
+        t = NAN;
+    return i_a * t;
+}
 
 void lw_cell_clear(lw_cell *cell)
 {
@@ -51,6 +89,10 @@ void lw_cell_temperature_factors(const lw_cell *cell, double ambient_c, double *
 
 double lw_cell_capacity_ah(const lw_cell *cell, double ic_a, double cap_factor)
 {
+    /* the kinetic model's wells hold the low-drain capacity; the rate effect
+     * is theirs */
+    if (lw_cell_is_kinetic(cell))
+        return cap_factor * cell->max_capacity_ah;
     /* k = 1: the rated capacity at every current (no rate effect). */
     if (cell->peukert == 1.0)
         return cap_factor * cell->capacity_ah;

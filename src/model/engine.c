@@ -1062,7 +1062,8 @@ lw_status lw_run(const lw_light *light, const lw_run_options *opt, lw_result *re
         return st;
     res->worst_led_a = res->initial.led_a;
     res->worst_resistor_w = res->initial.p_res_peak_w;
-    if (opt->time_domain || !lw_thermal_quasi_static(&light->thermal) || light->chain) {
+    if (opt->time_domain || !lw_thermal_quasi_static(&light->thermal) || light->chain ||
+        lw_cell_is_kinetic(&light->pack.cell)) {
         /* state that lives in time: the run in time (transient.h) */
         st = lw_transient_run(light, opt, res, err);
     } else {

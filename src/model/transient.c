@@ -21,7 +21,7 @@
 #include <string.h>
 #include "lampwick/alloc.h"
 
-#define NX 3 /* depth, board, body */
+#define NX 4 /* depth, board, body, and the kinetic wells' height difference */
 #define NQ 6 /* lm s; J into LEDs, resistors, cells' R, driver; J drawn */
 #define NS 3 /* Radau stages */
 #define NZ (NX * NS)
@@ -79,12 +79,38 @@ void lw_transient_tableau(double a[3][3], double c[3])
     radau_tableau(a, c);
 }
 
-/* The rates of the operating point pt: dx/dt in f, integrands in g (may be
- * NULL).  No solve. */
-static void rates_of(const tr *e, const lw_point *pt, double f[NX], double g[NQ])
+/* The depth at which the cell's curves are read at state x: the depth d
+ * itself, or for a kinetic cell the available well's, d + (1 - c) u
+ * (docs/model.md, "The kinetic battery model"). */
+static double curve_depth(const tr *e, const double x[NX])
+{
+    const lw_cell *c = &e->l->pack.cell;
+    double d = lw_cell_is_kinetic(c) ? x[0] + (1.0 - c->kinetic_c) * x[3] : x[0];
+    return d < 0.0 ? 0.0 : (d > 1.0 ? 1.0 : d);
+}
+
+/* The rates at state x with operating point pt: dx/dt in f, integrands in
+ * g (may be NULL).  No solve. */
+static void rates_of(const tr *e, const double x[NX], const lw_point *pt, double f[NX],
+                     double g[NQ])
 {
     const lw_light *l = e->l;
-    f[0] = isfinite(pt->dtdd_h) && pt->dtdd_h > 0.0 ? 1.0 / (3600.0 * pt->dtdd_h) : 0.0;
+    const lw_cell *c = &l->pack.cell;
+    if (lw_cell_is_kinetic(c)) {
+        /* the charge drawn, d, and the wells' height difference, u, both
+         * per unit of the total capacity C; self-discharge takes the same
+         * share of both wells */
+        double cap = lw_cell_capacity_ah(c, 0.0, l->cap_factor);
+        double ic = pt->pack_avg_a / l->pack.parallel;
+        double lambda = lw_cell_self_discharge_per_h(c);
+        bool lit = isfinite(pt->dtdd_h);
+        f[0] = ((lit ? ic / cap : 0.0) + lambda * (1.0 - x[0])) / 3600.0;
+        f[3] = ((lit ? ic / (c->kinetic_c * cap) : 0.0) - (c->kinetic_k_per_h + lambda) * x[3]) /
+               3600.0;
+    } else {
+        f[0] = isfinite(pt->dtdd_h) && pt->dtdd_h > 0.0 ? 1.0 / (3600.0 * pt->dtdd_h) : 0.0;
+        f[3] = 0.0;
+    }
     double q_led = l->led.heat_fraction * pt->p_led_w;
     double q_other = l->thermal.losses_in_body ? pt->p_res_w + pt->p_int_w + pt->p_drv_w : 0.0;
     lw_thermal_rates(&l->thermal, l->pack.ambient_c, q_led, q_other, &pt->temps, &f[1], &f[2]);
@@ -102,18 +128,17 @@ static lw_status eval(tr *e, const double x[NX], lw_point *pt, double f[NX], dou
                             "the run in time stopped after %d operating-point solves near "
                             "depth %.6g (max_solves)",
                             e->opt->max_solves, x[0]);
-    double d = x[0] < 0.0 ? 0.0 : (x[0] > 1.0 ? 1.0 : x[0]);
     lw_temps s = {NAN, x[1], x[2]};
-    lw_status st = lw_light_point_depth(e->l, d, e->fallback, &s, pt, e->err);
+    lw_status st = lw_light_point_depth(e->l, curve_depth(e, x), e->fallback, &s, pt, e->err);
     if (st == LW_OK)
-        rates_of(e, pt, f, g);
+        rates_of(e, x, pt, f, g);
     return st;
 }
 
 /* Scale of each state component for the error norm. */
 static double scale(int k, double v)
 {
-    return k == 0 ? fabs(v) + 1e-3 : fabs(v) + 273.15;
+    return k == 0 || k == 3 ? fabs(v) + 1e-3 : fabs(v) + 273.15;
 }
 
 /* LU factors of m in place (partial pivoting, row swaps in piv); false
@@ -164,27 +189,38 @@ static void lu_apply(double m[NZ][NZ], const int piv[NZ], double r[NZ])
     }
 }
 
-/* Solve the 3 x 3 system m v = r in place (Cramer's rule); false when
- * singular. */
-static bool solve3(double m[NX][NX], double r[NX])
+/* Solve the NX x NX system m v = r in place (Gaussian elimination with
+ * partial pivoting; m is overwritten); false when singular. */
+static bool solve_nx(double m[NX][NX], double r[NX])
 {
-    double det = m[0][0] * (m[1][1] * m[2][2] - m[1][2] * m[2][1]) -
-                 m[0][1] * (m[1][0] * m[2][2] - m[1][2] * m[2][0]) +
-                 m[0][2] * (m[1][0] * m[2][1] - m[1][1] * m[2][0]);
-    if (!(fabs(det) > 0.0) || !isfinite(det))
-        return false;
-    double v[NX];
-    for (int c = 0; c < NX; c++) {
-        double t[NX][NX];
-        memcpy(t, m, sizeof t);
-        for (int a = 0; a < NX; a++)
-            t[a][c] = r[a];
-        v[c] = (t[0][0] * (t[1][1] * t[2][2] - t[1][2] * t[2][1]) -
-                t[0][1] * (t[1][0] * t[2][2] - t[1][2] * t[2][0]) +
-                t[0][2] * (t[1][0] * t[2][1] - t[1][1] * t[2][0])) /
-               det;
+    for (int k = 0; k < NX; k++) {
+        int p = k;
+        for (int i = k + 1; i < NX; i++)
+            if (fabs(m[i][k]) > fabs(m[p][k]))
+                p = i;
+        if (!(fabs(m[p][k]) > 0.0) || !isfinite(m[p][k]))
+            return false;
+        for (int j = 0; j < NX; j++) {
+            double t = m[k][j];
+            m[k][j] = m[p][j];
+            m[p][j] = t;
+        }
+        double t = r[k];
+        r[k] = r[p];
+        r[p] = t;
+        for (int i = k + 1; i < NX; i++) {
+            double f = m[i][k] / m[k][k];
+            for (int j = k; j < NX; j++)
+                m[i][j] -= f * m[k][j];
+            r[i] -= f * r[k];
+        }
     }
-    memcpy(r, v, sizeof v);
+    for (int k = NX - 1; k >= 0; k--) {
+        double sum = r[k];
+        for (int j = k + 1; j < NX; j++)
+            sum -= m[k][j] * r[j];
+        r[k] = sum / m[k][k];
+    }
     return true;
 }
 
@@ -198,9 +234,18 @@ typedef struct jac {
 static lw_status jacobian(tr *e, const double x0[NX], const lw_point *p0, jac *j)
 {
     double f0[NX], g0[NQ];
-    rates_of(e, p0, f0, g0);
+    rates_of(e, x0, p0, f0, g0);
     for (int b = 0; b < NX; b++) {
-        double x[NX] = {x0[0], x0[1], x0[2]};
+        if (b == 3 && !lw_cell_is_kinetic(&e->l->pack.cell)) {
+            /* the wells do not exist: nothing depends on u (no solve spent) */
+            for (int a = 0; a < NX; a++)
+                j->fx[a][b] = 0.0;
+            for (int k = 0; k < NQ; k++)
+                j->gx[k][b] = 0.0;
+            continue;
+        }
+        double x[NX];
+        memcpy(x, x0, sizeof x);
         double dx = 1.5e-8 * scale(b, x0[b]);
         x[b] += dx;
         dx = x[b] - x0[b]; /* exactly representable */
@@ -264,7 +309,7 @@ static lw_status estimate(tr *e, const double x0[NX], const lw_point *p0, const 
     const double h = s->h, u = radau_u1() / h;
     const double dd[NS] = {EST_DD1, EST_DD2, EST_DD3};
     double f0[NX], g0[NQ], ex[NX], eq[NQ], m[NX][NX];
-    rates_of(e, p0, f0, g0);
+    rates_of(e, x0, p0, f0, g0);
     for (int a = 0; a < NX; a++) {
         double f2 = 0.0;
         for (int i = 0; i < NS; i++)
@@ -273,9 +318,10 @@ static lw_status estimate(tr *e, const double x0[NX], const lw_point *p0, const 
         for (int b = 0; b < NX; b++)
             m[a][b] = (a == b ? u : 0.0) - j->fx[a][b];
     }
-    double rx[NX];
+    double rx[NX], mm[NX][NX];
     memcpy(rx, ex, sizeof rx);
-    if (!solve3(m, ex)) {
+    memcpy(mm, m, sizeof mm);
+    if (!solve_nx(mm, ex)) {
         s->err = INFINITY;
         return LW_OK;
     }
@@ -289,7 +335,8 @@ static lw_status estimate(tr *e, const double x0[NX], const lw_point *p0, const 
             return st;
         for (int a = 0; a < NX; a++)
             ex[a] = f[a] + (rx[a] - f0[a]);
-        if (!solve3(m, ex)) {
+        memcpy(mm, m, sizeof mm);
+        if (!solve_nx(mm, ex)) {
             s->err = INFINITY;
             return LW_OK;
         }
@@ -343,7 +390,7 @@ static lw_status radau_step(tr *e, const double x0[NX], const lw_point *p0, cons
     for (int it = 0; it < LW_TRANSIENT_NEWTON_MAX && !converged; it++) {
         for (int i = 0; i < NS; i++) {
             if (it == 0) { /* z = 0: every stage at x0, whose point is known */
-                rates_of(e, p0, f[i], g[i]);
+                rates_of(e, x0, p0, f[i], g[i]);
                 continue;
             }
             double y[NX];
@@ -532,7 +579,7 @@ static bool active(const run *r, int k)
  * positive at the step's start and is not at its end. */
 static bool fired(const run *r, int k, const lw_point *p, double d)
 {
-    return active(r, k) && event_g(r, k, &r->p, r->x[0]) > 0.0 && !(event_g(r, k, p, d) > 0.0);
+    return active(r, k) && event_g(r, k, &r->p, curve_depth(&r->e, r->x)) > 0.0 && !(event_g(r, k, p, d) > 0.0);
 }
 
 /* An explicit Euler step of dt from step `from` (NULL: the accepted state):
@@ -573,13 +620,13 @@ static lw_status dense_g(run *r, int k, const step *s, double u, double *g)
     double x[NX];
     dense(&r->e, r->x, s, u, x, NULL);
     if (k == EV_KNOT || k == EV_CAPACITY) {
-        *g = event_g(r, k, &r->p, x[0]);
+        *g = event_g(r, k, &r->p, curve_depth(&r->e, x));
         return LW_OK;
     }
     lw_point p;
     double f[NX];
     lw_status st = eval(&r->e, x, &p, f, NULL);
-    *g = st == LW_OK ? event_g(r, k, &p, x[0]) : NAN;
+    *g = st == LW_OK ? event_g(r, k, &p, curve_depth(&r->e, x)) : NAN;
     return st;
 }
 
@@ -632,8 +679,8 @@ static lw_status dense_root(run *r, int k, const step *s, double ga, double gb, 
 static lw_status locate(run *r, int k, double h, const step *big, step *before, step *after,
                         double *h_at)
 {
-    double a = 0.0, b = h, ga = event_g(r, k, &r->p, r->x[0]);
-    double gb = event_g(r, k, &after->p, after->x[0]);
+    double a = 0.0, b = h, ga = event_g(r, k, &r->p, curve_depth(&r->e, r->x));
+    double gb = event_g(r, k, &after->p, curve_depth(&r->e, after->x));
     before->ok = false;
     bool after_valid = after->ok;
     double pred = NAN, slope = NAN, last_t = NAN, last_g = NAN;
@@ -662,7 +709,7 @@ static lw_status locate(run *r, int k, double h, const step *big, step *before, 
         lw_status st = radau_step(&r->e, r->x, &r->p, &r->j, r->q, tau, false, &s);
         if (st != LW_OK)
             return st;
-        double g = s.ok ? event_g(r, k, &s.p, s.x[0]) : -INFINITY;
+        double g = s.ok ? event_g(r, k, &s.p, curve_depth(&r->e, s.x)) : -INFINITY;
         if (g > 0.0) {
             a = tau, ga = g, *before = s;
             if (side == -1)
@@ -714,7 +761,7 @@ static lw_status keep(run *r, double t_s, const double x[NX])
         r->cap_states = cap;
     }
     res->states[res->n_states++] =
-        (lw_state){t_s / 3600.0, x[0], x[1], x[2], r->e.fallback, r->e.mode};
+        (lw_state){t_s / 3600.0, curve_depth(&r->e, x), x[1], x[2], r->e.fallback, r->e.mode};
     return LW_OK;
 }
 
@@ -888,7 +935,7 @@ static void at_30s(run *r, const lw_point *p0)
     const lw_light *l = r->e.l0;
     res->flux_30s_lm = r->p.flux_lm > 0.0 ? r->p.flux_lm : p0->flux_lm;
     res->junction_30s_c = r->p.temps.junction_c;
-    res->depth_30s = r->x[0];
+    res->depth_30s = curve_depth(&r->e, r->x);
     r->ref = l->cutoff.reference == LW_REF_FRESH ? r->ref : res->flux_30s_lm;
     r->ref_known = true;
     r->half_armed = true;
@@ -896,7 +943,7 @@ static void at_30s(run *r, const lw_point *p0)
     if (p0->flux_lm <= r->floor_lm || p0->flux_lm <= r->frac * r->ref) {
         finish(r, LW_END_DIM_AT_START, p0);
         r->t = 0.0;
-        memcpy(r->x, (double[NX]){res->start_depth, l->pack.ambient_c, l->pack.ambient_c},
+        memcpy(r->x, (double[NX]){res->start_depth, l->pack.ambient_c, l->pack.ambient_c, 0.0},
                sizeof r->x);
         memset(r->q, 0, sizeof r->q);
         r->regulated_s = 0.0;
@@ -977,7 +1024,7 @@ static lw_status switch_mode(run *r, lw_switch_cause cause)
         return LW_OK;
     }
     peaks(r);
-    if (active(r, EV_HALF) && !(event_g(r, EV_HALF, &r->p, r->x[0]) > 0.0))
+    if (active(r, EV_HALF) && !(event_g(r, EV_HALF, &r->p, curve_depth(&r->e, r->x)) > 0.0))
         st = act(r, EV_HALF, NULL);
     return st == LW_OK ? keep_state(r) : st;
 }
@@ -1003,7 +1050,7 @@ static lw_status at_instant(run *r, int first, const step *before)
 {
     lw_status st = LW_OK;
     if (first >= 0 && first != EV_HALF && active(r, EV_HALF) &&
-        !(event_g(r, EV_HALF, &r->p, r->x[0]) > 0.0))
+        !(event_g(r, EV_HALF, &r->p, curve_depth(&r->e, r->x)) > 0.0))
         st = act(r, EV_HALF, before);
     bool end = first >= EV_REL && first <= EV_CAPACITY;
     size_t switches = r->e.res->n_switches;
@@ -1015,7 +1062,7 @@ static lw_status at_instant(run *r, int first, const step *before)
         st = act(r, first, before); /* no switch: the end located stands */
     /* an end already reached at this instant ends the run now */
     for (int k = EV_REL; k <= EV_CAPACITY && st == LW_OK && !r->done; k++)
-        if (active(r, k) && !(event_g(r, k, &r->p, r->x[0]) > 0.0))
+        if (active(r, k) && !(event_g(r, k, &r->p, curve_depth(&r->e, r->x)) > 0.0))
             st = act(r, k, before);
     return st;
 }
@@ -1034,7 +1081,7 @@ static lw_status act(run *r, int k, const step *before)
         return LW_OK; /* the chain switches in at_instant */
     if (k == EV_KNOT) {
         /* at (or within 1e-12 past) the knot: the next one */
-        r->knot_next = knot_after(r->e.l, r->x[0] + 1e-12);
+        r->knot_next = knot_after(r->e.l, curve_depth(&r->e, r->x) + 1e-12);
         return LW_OK;
     }
     if (k == EV_HALF) {
@@ -1076,7 +1123,7 @@ static lw_status act(run *r, int k, const step *before)
 static lw_status integrate(run *r, bool stop_at_30s)
 {
     const lw_point p0 = r->p;
-    double t_est = (1.0 - r->x[0]) * 3600.0 * p0.dtdd_h;
+    double t_est = (1.0 - curve_depth(&r->e, r->x)) * 3600.0 * p0.dtdd_h;
     bool known = isfinite(t_est) && t_est > 0.0;
     double h_max = known ? t_est / LW_TRANSIENT_STEPS_MIN : 3600.0;
     r->trace_dt = known ? t_est / LW_TRANSIENT_TRACE_GAPS : 60.0;
@@ -1121,7 +1168,7 @@ static lw_status integrate(run *r, bool stop_at_30s)
             static const int kinks[] = {EV_REGIME, EV_KNOT, EV_FOLD_FROM, EV_FOLD_TO};
             for (size_t n = 0; n < sizeof kinks / sizeof kinks[0]; n++) {
                 int k = kinks[n];
-                if (!fired(r, k, &probe.p, probe.x[0]))
+                if (!fired(r, k, &probe.p, curve_depth(&r->e, probe.x)))
                     continue;
                 step bk = {0}, ak = probe;
                 double h_k = h;
@@ -1154,7 +1201,7 @@ static lw_status integrate(run *r, bool stop_at_30s)
         double h_event = h;
         step at = s, before = {0};
         for (int k = 0; k < EV_COUNT; k++) {
-            if (!fired(r, k, &s.p, s.x[0]))
+            if (!fired(r, k, &s.p, curve_depth(&r->e, s.x)))
                 continue;
             step b = kink_before, a = s;
             double h_k = h;
@@ -1208,7 +1255,7 @@ static lw_status start(run *r, double d0)
 {
     const lw_light *l = r->e.l;
     r->t = 0.0;
-    r->x[0] = d0, r->x[1] = r->x[2] = l->pack.ambient_c;
+    r->x[0] = d0, r->x[1] = r->x[2] = l->pack.ambient_c, r->x[3] = 0.0;
     memset(r->q, 0, sizeof r->q);
     r->knot_next = knot_after(l, d0);
     return mode_point(r);

@@ -2,6 +2,7 @@
  * cellfit.c - cell models from discharge logs (see cellfit.h).
  */
 #include "lampwick/cellfit.h"
+#include "lampwick/roots.h"
 #include "lampwick/text.h"
 
 #include <math.h>
@@ -431,4 +432,62 @@ lw_status lw_cellfit_fit(const lw_cellfit_log *logs, size_t nlogs, const lw_cell
     if (st != LW_OK)
         lw_cell_clear(&out->cell);
     return st;
+}
+
+/* ---- the kinetic model from two capacities ---- */
+
+typedef struct kin_fit {
+    double total_ah, i_a[2], q_ah[2];
+} kin_fit;
+
+/* c from capacity j at rate constant k (the closed form solved for c). */
+static double kin_c(const kin_fit *f, int j, double k)
+{
+    double a = f->i_a[j] / k * -expm1(-k * f->q_ah[j] / f->i_a[j]);
+    return a / (f->total_ah - f->q_ah[j] + a);
+}
+
+/* c1 - c2 at k = e^x. */
+static double kin_gap(double x, void *ctx)
+{
+    const kin_fit *f = ctx;
+    double k = exp(x);
+    return kin_c(f, 0, k) - kin_c(f, 1, k);
+}
+
+lw_status lw_cellfit_kinetic(double total_ah, double i1_a, double q1_ah, double i2_a,
+                             double q2_ah, double *c, double *k_per_h, lw_error *err)
+{
+    kin_fit f = {total_ah, {i1_a, i2_a}, {q1_ah, q2_ah}};
+    if (i1_a > i2_a)
+        f = (kin_fit){total_ah, {i2_a, i1_a}, {q2_ah, q1_ah}};
+    if (!(f.i_a[0] > 0.0 && f.i_a[1] > f.i_a[0] && f.q_ah[1] > 0.0 && f.q_ah[1] < f.q_ah[0] &&
+          f.q_ah[0] < total_ah))
+        return lw_error_set(err, LW_EINPUT, NULL, 0,
+                            "the kinetic model needs two capacities that fall as the current "
+                            "rises, both below the total charge (%g and %g Ah at %g and %g A, "
+                            "total %g Ah)",
+                            q1_ah, q2_ah, i1_a, i2_a, total_ah);
+    const double lo = log(1e-6), hi = log(1e6);
+    const int steps = 240;
+    double xa = lo, ga = kin_gap(xa, &f);
+    for (int s = 1; s <= steps; s++) {
+        double xb = lo + (hi - lo) * s / steps, gb = kin_gap(xb, &f);
+        if (isfinite(ga) && isfinite(gb) && (ga == 0.0 || ga * gb < 0.0)) {
+            double x = xa;
+            lw_status st = ga == 0.0 ? LW_OK
+                                     : lw_root_brent(kin_gap, &f, xa, xb, ga, gb, 1e-14, 200,
+                                                     &x, err);
+            if (st != LW_OK)
+                return st;
+            *k_per_h = exp(x);
+            *c = kin_c(&f, 0, *k_per_h);
+            return LW_OK;
+        }
+        xa = xb, ga = gb;
+    }
+    return lw_error_set(err, LW_ENUMERIC, NULL, 0,
+                        "no rate constant from 1e-6 to 1e6 per hour gives the kinetic model "
+                        "both capacities (%g Ah at %g A, %g Ah at %g A, total %g Ah)",
+                        f.q_ah[0], f.i_a[0], f.q_ah[1], f.i_a[1], total_ah);
 }
