@@ -41,6 +41,7 @@ typedef enum lw_end_reason {
     LW_END_EMPTY_AT_START, /* no light: the cells are empty or at their end point at switch-on */
     LW_END_DIM_AT_START,   /* no light: the output at switch-on is already at a cutoff */
     LW_END_SWITCHED_OFF,   /* a step-down chain's `next = off` */
+    LW_END_SCHEDULE_DONE,  /* the last session of a use schedule's list ended first */
     LW_END_COUNT
 } lw_end_reason;
 
@@ -129,6 +130,7 @@ typedef struct lw_state {
     double board_c, body_c; /* the heat path's state (ambient for quasi-static nodes) */
     bool fallback;
     int mode;             /* the mode of a step-down chain (0 without one) */
+    int session;          /* the session of a use schedule (0 without one) */
 } lw_state;
 
 /* One accepted integration piece, kept for the trace. */
@@ -170,8 +172,14 @@ typedef struct lw_result {
                                        rating one resistor needs at the body's temperature
                                        (thermal.h; 0 without [thermal] or resistor) */
     int solves;             /* operating-point solves */
-    lw_switch switches[LW_CHAIN_MAX]; /* a step-down chain's switches, in order */
-    size_t n_switches;
+    lw_switch switches[LW_CHAIN_MAX]; /* a step-down chain's switches, in order (the
+                                         first LW_CHAIN_MAX) */
+    size_t n_switches;      /* kept in switches[] */
+    size_t switches_total;  /* all of them (a chain starts over at every session) */
+    lw_session *sessions;   /* a run with a use schedule: its sessions, owned */
+    size_t n_sessions;
+    double calendar_h;      /* with a schedule: calendar hours from the first
+                               switch-on to the end (runtime_h is the use) */
     unsigned warnings;      /* LW_WARN_* */
     lw_piece *pieces;       /* with want_trace: accepted pieces, owned */
     lw_state *states;       /* with want_trace, a run in time: its states, owned */

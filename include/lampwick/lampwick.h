@@ -77,6 +77,8 @@
 #include "led.h"
 #include "drive.h"
 #include "thermal.h"
+#include "chain.h"
+#include "schedule.h"
 #include "light.h"
 #include "engine.h"
 #include "transient.h"

@@ -38,6 +38,7 @@
 #include <stdbool.h>
 #include "cell.h"
 #include "chain.h"
+#include "schedule.h"
 #include "drive.h"
 #include "led.h"
 #include "thermal.h"
@@ -78,6 +79,8 @@ typedef struct lw_light {
     lw_thermal thermal;   /* the heat path; thermal.enabled false: junctions at ambient */
     lw_chain *chain;      /* step-down chain starting at its mode 0 (this light);
                              NULL: none.  Shared by copies (reference counted) */
+    lw_schedule *use;     /* how the light is used (schedule.h); NULL: on from
+                             switch-on to the end.  Shared by copies */
     double cap_factor;    /* capacity factor at ambient (derived) */
     double res_factor;    /* resistance factor at ambient (derived) */
 } lw_light;

@@ -94,6 +94,14 @@ double lw_thermal_resistor_derating(double body_c);
  * temperatures *t (from lw_thermal_nodes) and the same heat; 0 for a node
  * without heat capacity (and for the board when it is one node with the
  * body, whose rate then holds the pair). */
+/* The heat path left to cool for dt_s with no heat in it (the light off):
+ * the closed-form solution of the network's linear equations (for two
+ * nodes with heat capacity, e^(A t) of its 2 x 2 system by its two real
+ * eigenvalues; one node, the exponential), applied to the nodes with a heat
+ * capacity in *board_c and *body_c (the others follow at switch-on). */
+void lw_thermal_relax(const lw_thermal *th, double ambient_c, double dt_s, double *board_c,
+                      double *body_c);
+
 void lw_thermal_rates(const lw_thermal *th, double ambient_c, double q_led_w, double q_other_w,
                       const lw_temps *t, double *dboard_k_s, double *dbody_k_s);
 

@@ -19,7 +19,7 @@
 
 const char *const lw_run_end_names[LW_END_COUNT + 1] = {
     "relative-brightness", "flux-floor", "cell-voltage", "capacity", "never-lit",
-    "driver-dropout", "empty-at-start", "dim-at-start", "switched-off", NULL};
+    "driver-dropout", "empty-at-start", "dim-at-start", "switched-off", "sessions-done", NULL};
 
 bool lw_run_end_is_dark(lw_end_reason why)
 {
@@ -773,6 +773,9 @@ void lw_run_result_clear(lw_result *res)
     free(res->states);
     res->states = NULL;
     res->n_states = 0;
+    free(res->sessions);
+    res->sessions = NULL;
+    res->n_sessions = 0;
 }
 
 lw_status lw_run_worst_case(const lw_light *light, lw_point *pt, lw_error *err)
@@ -1063,7 +1066,7 @@ lw_status lw_run(const lw_light *light, const lw_run_options *opt, lw_result *re
     res->worst_led_a = res->initial.led_a;
     res->worst_resistor_w = res->initial.p_res_peak_w;
     if (opt->time_domain || !lw_thermal_quasi_static(&light->thermal) || light->chain ||
-        lw_cell_is_kinetic(&light->pack.cell)) {
+        lw_cell_is_kinetic(&light->pack.cell) || light->use) {
         /* state that lives in time: the run in time (transient.h) */
         st = lw_transient_run(light, opt, res, err);
     } else {

@@ -17,6 +17,8 @@ void lw_light_clear(lw_light *light)
     light->drive.efficiency = NULL;
     lw_chain_unref(light->chain);
     light->chain = NULL;
+    lw_schedule_unref(light->use);
+    light->use = NULL;
 }
 
 void lw_light_copy(lw_light *dst, const lw_light *src)
@@ -26,6 +28,7 @@ void lw_light_copy(lw_light *dst, const lw_light *src)
     lw_led_copy(&dst->led, &src->led);
     lw_interp_ref(dst->drive.efficiency);
     lw_chain_ref(dst->chain);
+    lw_schedule_ref(dst->use);
 }
 
 const lw_light *lw_light_mode(const lw_light *light, int mode)

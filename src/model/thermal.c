@@ -84,3 +84,41 @@ void lw_thermal_rates(const lw_thermal *th, double ambient_c, double q_led_w, do
         *dbody_k_s = (in + q_other_w - to_amb) / th->c_h_j_k;
     }
 }
+
+void lw_thermal_relax(const lw_thermal *th, double ambient_c, double dt_s, double *board_c,
+                      double *body_c)
+{
+    if (!th->enabled || !(dt_s > 0.0))
+        return;
+    double yb = *board_c - ambient_c, yh = *body_c - ambient_c;
+    if (th->r_bb_k_w == 0.0) {
+        /* one node of capacity C_b + C_h */
+        double c = th->c_b_j_k + th->c_h_j_k;
+        if (c > 0.0)
+            yb = yh = yh * exp(-dt_s / (th->r_ha_k_w * c));
+    } else if (th->c_b_j_k > 0.0 && th->c_h_j_k > 0.0) {
+        /* y' = A y, A = [[-a, a], [b, -(b + g)]]; its eigenvalues are real
+         * and negative ((a + b + g)^2 - 4 a g > 0), and
+         * e^(A t) = (e^(l1 t) (A - l2 I) - e^(l2 t) (A - l1 I)) / (l1 - l2) */
+        double a = 1.0 / (th->c_b_j_k * th->r_bb_k_w), b = 1.0 / (th->c_h_j_k * th->r_bb_k_w);
+        double g = 1.0 / (th->c_h_j_k * th->r_ha_k_w);
+        double tr = -(a + b + g), disc = sqrt((a + b + g) * (a + b + g) - 4.0 * a * g);
+        double l1 = 0.5 * (tr + disc), l2 = 0.5 * (tr - disc);
+        double e1 = exp(l1 * dt_s), e2 = exp(l2 * dt_s), d = l1 - l2;
+        double m11 = -a, m12 = a, m21 = b, m22 = -(b + g);
+        double p11 = (e1 * (m11 - l2) - e2 * (m11 - l1)) / d, p12 = (e1 - e2) * m12 / d;
+        double p21 = (e1 - e2) * m21 / d, p22 = (e1 * (m22 - l2) - e2 * (m22 - l1)) / d;
+        double nb = p11 * yb + p12 * yh, nh = p21 * yb + p22 * yh;
+        yb = nb, yh = nh;
+    } else if (th->c_b_j_k > 0.0) {
+        /* the body at its balance with no heat: the board cools through
+         * R_bb + R_ha */
+        yb *= exp(-dt_s / (th->c_b_j_k * (th->r_bb_k_w + th->r_ha_k_w)));
+    } else if (th->c_h_j_k > 0.0) {
+        /* the board at its balance with no heat: at the body's temperature */
+        yh *= exp(-dt_s / (th->c_h_j_k * th->r_ha_k_w));
+        yb = yh;
+    }
+    *board_c = ambient_c + yb;
+    *body_c = ambient_c + yh;
+}

@@ -503,6 +503,14 @@ typedef struct run {
     double win_x[NX], win_t, win_v[2][NPEAK];
     int win_steps;          /* 0: empty (at the start and after each event) */
     const step *win_next;
+    /* a use schedule (NULL: on to the end) */
+    const lw_schedule *use;
+    const lw_light *first;  /* the light of the first session: its cutoff is the run's */
+    size_t session;         /* the current session */
+    double session_end;     /* the time of use at which it ends, s (infinite: none) */
+    double cal_offset;      /* calendar time less time of use, s */
+    bool session_over;      /* integrate() stopped at the session's end */
+    size_t cap_sessions;
 } run;
 
 /* The first kink of the pack's curves above depth d (2: none before the
@@ -533,7 +541,7 @@ static double event_g(const run *r, int k, const lw_point *p, double depth)
     switch (k) {
     case EV_REL: return p->flux_lm - r->frac * r->ref;
     case EV_FLOOR: return p->flux_lm - r->floor_lm;
-    case EV_CELL_V: return p->weak_cell_v - r->e.l0->cutoff.cell_v;
+    case EV_CELL_V: return p->weak_cell_v - r->first->cutoff.cell_v;
     case EV_NEXT_V: return p->cell_v - chain_mode(r)->below_cell_v;
     case EV_NEXT_HOT: return chain_mode(r)->above_c - p->temps.body_c;
     case EV_CAPACITY: return lw_light_depth_end(r->e.l) - depth;
@@ -761,7 +769,8 @@ static lw_status keep(run *r, double t_s, const double x[NX])
         r->cap_states = cap;
     }
     res->states[res->n_states++] =
-        (lw_state){t_s / 3600.0, curve_depth(&r->e, x), x[1], x[2], r->e.fallback, r->e.mode};
+        (lw_state){t_s / 3600.0,    curve_depth(&r->e, x), x[1], x[2], r->e.fallback,
+                   r->e.mode,       (int)r->session};
     return LW_OK;
 }
 
@@ -1002,10 +1011,11 @@ static lw_status switch_mode(run *r, lw_switch_cause cause)
 {
     const lw_chain_mode *m = chain_mode(r);
     lw_result *res = r->e.res;
-    if (res->n_switches >= LW_CHAIN_MAX) /* only a cyclic chain could get here */
-        return lw_error_set(r->e.err, LW_ENUMERIC, NULL, 0,
-                            "more than %d mode switches in one run", LW_CHAIN_MAX);
-    lw_switch *sw = &res->switches[res->n_switches++];
+    /* every switch counts; the first LW_CHAIN_MAX are kept (a chain that
+     * starts over at every session of a schedule switches many times) */
+    lw_switch spare, *sw = res->n_switches < LW_CHAIN_MAX ? &res->switches[res->n_switches++]
+                                                          : &spare;
+    res->switches_total++;
     *sw = (lw_switch){r->t / 3600.0, r->e.mode, m->next, cause, r->p.flux_lm, 0.0};
     if (m->next == LW_CHAIN_OFF) {
         finish(r, LW_END_SWITCHED_OFF, &r->p);
@@ -1053,12 +1063,12 @@ static lw_status at_instant(run *r, int first, const step *before)
         !(event_g(r, EV_HALF, &r->p, curve_depth(&r->e, r->x)) > 0.0))
         st = act(r, EV_HALF, before);
     bool end = first >= EV_REL && first <= EV_CAPACITY;
-    size_t switches = r->e.res->n_switches;
+    size_t switches = r->e.res->switches_total;
     if (st == LW_OK && first >= 0 && !end)
         st = act(r, first, before);
     if (st == LW_OK)
         st = cascade(r);
-    if (st == LW_OK && end && !r->done && r->e.res->n_switches == switches)
+    if (st == LW_OK && end && !r->done && r->e.res->switches_total == switches)
         st = act(r, first, before); /* no switch: the end located stands */
     /* an end already reached at this instant ends the run now */
     for (int k = EV_REL; k <= EV_CAPACITY && st == LW_OK && !r->done; k++)
@@ -1130,8 +1140,9 @@ static lw_status integrate(run *r, bool stop_at_30s)
     double h = fmin(h_max, 1.0);
     bool improve = true; /* the first step, or one after a rejection */
     while (!r->done) {
-        /* 30 s and a chain's timer are hit exactly by the step */
-        double target = fmin(r->ref_known ? INFINITY : 30.0, timer_at(r));
+        /* 30 s, a chain's timer and a session's end are hit exactly by the
+         * step */
+        double target = fmin(fmin(r->ref_known ? INFINITY : 30.0, timer_at(r)), r->session_end);
         bool to_target = r->t + h >= target;
         if (to_target)
             h = target - r->t;
@@ -1214,7 +1225,7 @@ static lw_status integrate(run *r, bool stop_at_30s)
         }
         double grow = fmin(4.0, fmax(0.2, 0.9 * pow(fmax(s.err, 1e-30), -0.25)));
         bool renew = s.theta > JAC_KEEP_THETA;
-        size_t switches = r->e.res->n_switches;
+        size_t switches = r->e.res->switches_total;
         if (first >= 0) {
             st = accept(r, &at, h_event);
             if (st == LW_OK)
@@ -1231,15 +1242,19 @@ static lw_status integrate(run *r, bool stop_at_30s)
             }
             if (st == LW_OK && !r->done)
                 st = at_instant(r, -1, &before);
+            if (st == LW_OK && !r->done && r->t >= r->session_end) {
+                r->session_over = true; /* switched off until the next session */
+                return LW_OK;
+            }
         }
         if (st != LW_OK)
             return st;
         if (renew)
             r->j.valid = false;
-        if (first >= 0 || r->e.res->n_switches != switches)
+        if (first >= 0 || r->e.res->switches_total != switches)
             r->win_steps = 0; /* a new smooth stretch */
         h = fmin(h_max, (first >= 0 ? h_event : h) * grow);
-        if (r->e.res->n_switches != switches) {
+        if (r->e.res->switches_total != switches) {
             h = fmin(h_max, 1.0); /* the rates jumped: start small again */
             r->j.valid = false;
             improve = true;
@@ -1266,6 +1281,8 @@ static void init_run(run *r, const lw_light *l, const lw_run_options *opt, lw_re
 {
     memset(r, 0, sizeof *r);
     r->e = (tr){.l = l, .l0 = l, .opt = opt, .res = res, .err = err};
+    r->first = l;
+    r->session_end = INFINITY;
     if (l->chain)
         r->e.l = l->chain->modes[0].light;
     radau_tableau(r->e.a, r->e.c);
@@ -1318,14 +1335,148 @@ static lw_status fresh_reference(const run *from, double *flux_lm)
     return st;
 }
 
+/* ---- use schedules ---- */
+
+/* The light off for dt_s: the cells self-discharge and feed the standby
+ * drain, kinetic cells' wells level, the heat path cools - each by its
+ * closed form (the equations are linear with the light off: docs/model.md,
+ * "Use schedules").  The standby drain's energy, drawn at the pack's EMF,
+ * goes to the driver (composite 4-point Gauss-Legendre over the rest). */
+static void rest(run *r, double dt_s)
+{
+    if (!(dt_s > 0.0))
+        return;
+    const lw_light *l = r->e.l;
+    const lw_cell *c = &l->pack.cell;
+    const double ic = l->drive.standby_a / l->pack.parallel;
+    const double lam = lw_cell_self_discharge_per_h(c) / 3600.0;
+    const double cap = lw_cell_capacity_ah(c, ic, l->cap_factor) * 3600.0; /* A s */
+    const double alpha = cap > 0.0 ? ic / cap : 0.0;
+    const bool kin = lw_cell_is_kinetic(c);
+    const double kk = kin ? c->kinetic_k_per_h / 3600.0 + lam : 0.0;
+    const double u_inf = kin && kk > 0.0 ? alpha / c->kinetic_c / kk : 0.0;
+    const double x0[NX] = {r->x[0], r->x[1], r->x[2], r->x[3]};
+    /* the state after t seconds of rest */
+#define REST_AT(t, y)                                                                            \
+    do {                                                                                         \
+        double w0_ = 1.0 - x0[0];                                                                \
+        double w_ = lam > 0.0 ? (w0_ + alpha / lam) * exp(-lam * (t)) - alpha / lam             \
+                              : w0_ - alpha * (t);                                              \
+        (y)[0] = fmin(1.0, 1.0 - w_);                                                            \
+        (y)[3] = kin ? u_inf + (x0[3] - u_inf) * exp(-kk * (t)) : 0.0;                            \
+    } while (0)
+    /* the standby energy, J */
+    double e_j = 0.0;
+    if (l->drive.standby_a > 0.0) {
+        static const double gx[4] = {-0.861136311594052575, -0.339981043584856265,
+                                     0.339981043584856265, 0.861136311594052575};
+        static const double gw[4] = {0.347854845137453857, 0.652145154862546143,
+                                     0.652145154862546143, 0.347854845137453857};
+        const int parts = 64;
+        const double hp = dt_s / parts;
+        for (int k = 0; k < parts; k++)
+            for (int i = 0; i < 4; i++) {
+                double t = hp * (k + 0.5 * (1.0 + gx[i])), y[NX] = {0};
+                REST_AT(t, y);
+                lw_cells cells;
+                lw_light_cells(l, curve_depth(&r->e, y), &cells);
+                e_j += 0.5 * hp * gw[i] * l->pack.series * cells.ocv_v * l->drive.standby_a;
+            }
+    }
+    REST_AT(dt_s, r->x);
+#undef REST_AT
+    lw_thermal_relax(&l->thermal, l->pack.ambient_c, dt_s, &r->x[1], &r->x[2]);
+    r->q[4] += e_j;
+    r->q[5] += e_j;
+    r->cal_offset += dt_s;
+}
+
+/* Keep the session that has just begun (its switch-on point is r->p). */
+static lw_status note_session(run *r)
+{
+    lw_result *res = r->e.res;
+    if (res->n_sessions == r->cap_sessions) {
+        size_t cap = r->cap_sessions ? 2 * r->cap_sessions : 16;
+        lw_session *s = lw_realloc(res->sessions, cap * sizeof *s);
+        if (!s)
+            return lw_error_set(r->e.err, LW_ENOMEM, NULL, 0, "out of memory for the sessions");
+        res->sessions = s;
+        r->cap_sessions = cap;
+    }
+    res->sessions[res->n_sessions++] =
+        (lw_session){(r->t + r->cal_offset) / 3600.0, r->t / 3600.0, r->p.flux_lm,
+                     r->p.weak_cell_v, r->p.depth, 0.0};
+    return LW_OK;
+}
+
+/* The light of session plan p. */
+static const lw_light *session_light(const run *r, const lw_session_plan *p, const lw_light *own)
+{
+    return p->light >= 0 ? r->use->lights[p->light] : own;
+}
+
+/* Begin the next session after the rest before it: the light in its
+ * starting mode (a chain starts over), its switch-on point, the session
+ * kept, and whatever holds at that instant (a chain's triggers, the ends:
+ * a light whose output is already at a cutoff ends the run here). */
+static lw_status next_session(run *r, const lw_light *own)
+{
+    lw_session_plan p;
+    if (!lw_schedule_session(r->use, ++r->session, &p)) {
+        finish(r, LW_END_SCHEDULE_DONE, &r->p);
+        return LW_OK;
+    }
+    rest(r, p.start_h * 3600.0 - (r->t + r->cal_offset));
+    const lw_light *l = session_light(r, &p, own);
+    r->e.l0 = l;
+    r->e.l = l->chain ? l->chain->modes[0].light : l;
+    r->e.mode = 0;
+    r->e.mode_t0 = r->t;
+    r->session_end = r->t + p.duration_h * 3600.0;
+    r->session_over = false;
+    r->j.valid = false;
+    r->win_steps = 0;
+    r->knot_next = knot_after(r->e.l, curve_depth(&r->e, r->x));
+    lw_status st = mode_point(r);
+    if (st == LW_OK)
+        st = note_session(r);
+    if (st != LW_OK)
+        return st;
+    if (dark(r)) {
+        finish(r, LW_END_DRIVER_DROPOUT, &r->p);
+        return LW_OK;
+    }
+    peaks(r);
+    st = keep_state(r);
+    if (st == LW_OK)
+        st = cascade(r);
+    if (st == LW_OK && !r->done)
+        st = at_instant(r, -1, &(step){0});
+    return st;
+}
+
 lw_status lw_transient_run(const lw_light *light, const lw_run_options *opt, lw_result *res,
                            lw_error *err)
 {
     run r;
-    init_run(&r, light, opt, res, err);
+    lw_session_plan p0 = {0.0, INFINITY, -1};
+    if (light->use && !lw_schedule_session(light->use, 0, &p0))
+        return lw_error_set(err, LW_EINPUT, NULL, 0, "the use schedule has no sessions");
+    const lw_light *l = light->use && p0.light >= 0 ? light->use->lights[p0.light] : light;
+    init_run(&r, l, opt, res, err);
+    r.use = light->use;
+    r.session_end = p0.duration_h * 3600.0;
     lw_status st = start(&r, res->start_depth);
+    if (st == LW_OK && p0.start_h > 0.0) {
+        /* the cells rest from the schedule's origin to the first session */
+        rest(&r, p0.start_h * 3600.0);
+        r.knot_next = knot_after(r.e.l, curve_depth(&r.e, r.x));
+        st = mode_point(&r);
+    }
     if (st != LW_OK)
         return st;
+    const lw_light *own = light;
+    light = l;
     res->initial = r.p;
     res->peak_resistor_w = r.p.p_res_peak_w;
     lw_run_note_resistor(light, &r.p, res);
@@ -1340,12 +1491,24 @@ lw_status lw_transient_run(const lw_light *light, const lw_run_options *opt, lw_
         finish(&r, LW_END_NEVER_LIT, &r.p);
     if (!r.done)
         st = keep_state(&r);
+    if (st == LW_OK && r.use)
+        st = note_session(&r);
     if (st == LW_OK && !r.done)
         st = cascade(&r); /* a chain's triggers apply from switch-on */
     if (st == LW_OK && !r.done)
         st = integrate(&r, false);
+    while (st == LW_OK && !r.done && r.session_over) {
+        res->sessions[res->n_sessions - 1].on_h = r.t / 3600.0 - res->sessions[res->n_sessions - 1].on_before_h;
+        st = next_session(&r, own);
+        if (st == LW_OK && !r.done)
+            st = integrate(&r, false);
+    }
     if (st != LW_OK)
         return st;
+    if (res->n_sessions > 0)
+        res->sessions[res->n_sessions - 1].on_h =
+            r.t / 3600.0 - res->sessions[res->n_sessions - 1].on_before_h;
+    res->calendar_h = (r.t + r.cal_offset) / 3600.0;
     if (!r.ref_known && !lw_run_end_is_dark(res->end_reason)) {
         /* ended before 30 s: the output at switch-on stands for the reference */
         res->flux_30s_lm = res->flux_ref_lm = res->initial.flux_lm;

@@ -132,7 +132,7 @@ static double run_value(enum run_col c, const lw_result *r)
     case RC_TJ30: return r->junction_30s_c;
     case RC_TJ_PEAK: return r->peak_junction_c;
     case RC_TH_PEAK: return r->peak_body_c;
-    case RC_SWITCHES: return (double)r->n_switches;
+    case RC_SWITCHES: return (double)r->switches_total;
     case RC_WEAK_V_END: return r->final.weak_cell_v;
     case RC_REVERSAL: return (r->warnings & LW_WARN_CELL_REVERSAL) ? 1.0 : 0.0;
     case RC_SOLVES: return r->solves;
@@ -193,6 +193,8 @@ static const char *end_text(lw_end_reason why)
         return "the output at switch-on is already at a cutoff";
     case LW_END_SWITCHED_OFF:
         return "the mode chain switched the light off";
+    case LW_END_SCHEDULE_DONE:
+        return "the last session of the use schedule ended before any cutoff";
     case LW_END_DRIVER_DROPOUT:
     default:
         return "the converter can no longer hold its output";
