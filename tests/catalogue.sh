@@ -78,6 +78,7 @@ EOF
     printf 'temp_c,capacity_factor,resistance_factor\n-20,0.3,4\n20,1,1\n50,1.05,0.9\n' > "$T/w/cellA.temp.csv"
     printf 'current_ma,forward_v\n1,2.5\n10,2.7\n50,2.9\n100,3.1\n' > "$T/w/iv.csv"
     printf 'current_ma,flux_lm\n10,5\n50,20\n100,35\n' > "$T/w/flux.csv"
+    printf 'start_h,duration_h,mode\n0,2,\n24,1.5,low\n48,2,\n' > "$T/w/s.csv"
     printf 'input_v,efficiency_pct\n2,70\n3,85\n5,90\n' > "$T/w/eta.csv"
     printf 'time_s,voltage_v\n' > "$T/w/log.csv"
     i=0
@@ -275,6 +276,23 @@ for v in 0 -1 1e9; do
     case_ 2 "cellA.ini:15: .*recovery_per_h" cellA.ini 14 "14s/\$/\\nrecovery_per_h = $v/" $RUN
 done
 args 2 "--set pack.rate_model: \\[pack\\] rate_model = kinetic: the cell cellA has no kinetic parameters" $RUN --set pack.rate_model=kinetic
+# use schedules: [use], --use and sessions files (s.csv: a header and three rows)
+args 2 "--set use.off_h: \\[use\\] off_h needs on_h" $RUN --set use.off_h=5
+args 2 "\\[use\\] give either sessions_file or on_h" $RUN --set use.on_h=1 --set use.sessions_file=s.csv
+for v in 0 -1 abc 1e9; do
+    args 2 "use.on_h" $RUN --set use.on_h=$v
+done
+args 2 "use.off_h" $RUN --set use.on_h=1 --set use.off_h=-2
+args 2 "--use takes ON_H,OFF_H" $RUN --use 1,x
+args 2 "--use takes ON_H,OFF_H" $RUN --use 0,5
+args 2 "\\[use\\] sessions_file: cannot open '.*nothere.csv'" $RUN --use nothere.csv
+case_ 2 "s.csv:3: column 'mode': the profile has no \\[mode high\\]" s.csv 3 '3s/low/high/' $RUN --use s.csv
+case_ 2 "s.csv:3: column 'start_h': the session starts at 1 h, before the one above it ends at 2 h" s.csv 3 '3s/^24/1/' $RUN --use s.csv
+case_ 2 "s.csv:4: column 'duration_h': 0 is not above 0" s.csv 4 '4s/,2,$/,0,/' $RUN --use s.csv
+case_ 2 "s.csv:2: column 'start_h': -3 is outside" s.csv 2 '2s/^0/-3/' $RUN --use s.csv
+case_ 2 "s.csv:2: column 'start_h': 'x' is not a number" s.csv 2 '2s/^0/x/' $RUN --use s.csv
+case_ 2 "s.csv:1: .*duration_h" s.csv 1 '1s/duration_h/length_h/' $RUN --use s.csv
+case_ 2 "s.csv:3: column 'mode': the field holds a control character" s.csv 3 "3s/low/lo\x01w/" $RUN --use s.csv
 # the weakest cell's keys
 for v in 100 -1 abc; do
     args 2 "capacity_spread_pct" $RUN --set pack.capacity_spread_pct=$v

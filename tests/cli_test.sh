@@ -83,15 +83,25 @@ if ls "$TMP" | grep -q tmp; then bad "temporary file left behind"; else ok; fi
 expect 0 'turbo -> high \(after 180 s\)' "$LW" run profiles/torch-18650.ini --mode turbo --trace "$TMP/chain.csv" --plot "$TMP/chain.svg"
 expect 0 'high -> low \(cell down to 3.2 V\)' "$LW" run profiles/torch-18650.ini --mode turbo
 tr -d '\r' < "$TMP/chain.csv" > "$TMP/chain.txt" # RFC 4180 rows end in CRLF
-if head -1 "$TMP/chain.txt" | grep -q ',t_j_c,t_board_c,t_body_c,mode$'; then ok; else bad "chain trace header"; fi
+if head -1 "$TMP/chain.txt" | grep -q ',t_j_c,t_board_c,t_body_c,session,mode$'; then ok; else bad "chain trace header"; fi
 # the modes in order, and two rows at the instant of each switch
 modes=$(tail -n +2 "$TMP/chain.txt" | awk -F, '$NF != last { printf "%s ", $NF; last = $NF }')
 if [ "$modes" = "turbo high low " ]; then ok; else bad "chain trace modes: $modes"; fi
 same=$(tail -n +2 "$TMP/chain.txt" | awk -F, 'NR > 1 && $1 == t && $NF != m { n++ } { t = $1; m = $NF } END { print n + 0 }')
 if [ "$same" -eq 2 ]; then ok; else bad "rows at the switches: $same"; fi
 if grep -q 'turbo to high' "$TMP/chain.svg" && grep -q 'high to low' "$TMP/chain.svg"; then ok; else bad "switch marks"; fi
-expect 0 '^[0-9.]+,cell-voltage,.*,2,[0-9.]+,0,[0-9]+,body-hot' "$LW" run profiles/torch-18650.ini --mode turbo --format csv
+expect 0 '^[0-9.]+,cell-voltage,.*,2,[0-9.]+,0,,,,[0-9]+,body-hot' "$LW" run profiles/torch-18650.ini --mode turbo --format csv
 expect 0 'after 3 min [0-9]+ lm, at 3.2 V [0-9]+ lm' "$LW" table profiles/torch-18650.ini --plot "$TMP/modes.svg"
+# use schedules: a periodic pattern, a sessions file with a mode column,
+# the csv columns, the trace's sessions
+expect 0 'sessions +[0-9]+, the run ending in the last' "$LW" run profiles/tail-light-coin.ini --mode evening
+printf 'start_h,duration_h,mode\n0,2,\n24,3,commute\n48,1,\n' > "$TMP/sessions.csv"
+expect 0 'Use \(3 planned sessions\)' "$LW" run profiles/tail-light-coin.ini --mode continuous --use "$TMP/sessions.csv"
+expect 0 'sessions-done' "$LW" run profiles/tail-light-coin.ini --mode continuous --use "$TMP/sessions.csv" --format csv
+expect 0 ',on_time_h,sessions,calendar_days,' "$LW" run profiles/tail-light-coin.ini --mode evening --format csv
+"$LW" run profiles/tail-light-coin.ini --mode evening --trace "$TMP/use.csv" >/dev/null 2>&1
+last=$(tr -d '\r' < "$TMP/use.csv" | tail -1 | awk -F, '{print $(NF-1)}')
+if [ "$last" -ge 40 ] 2>/dev/null; then ok; else bad "trace sessions: $last"; fi
 if grep -q '</svg>' "$TMP/modes.svg" && grep -q '>turbo<' "$TMP/modes.svg" && grep -q '>low<' "$TMP/modes.svg"; then ok; else bad "chart of modes"; fi
 for f in "$TMP/modes.svg" "$TMP/chain.svg"; do
     if python3 "$(dirname "$0")/svgcheck.py" "$f" >/dev/null 2>&1; then ok; else bad "svgcheck $f"; fi

@@ -40,14 +40,23 @@ typedef struct lw_csv {
     char names[LW_CSV_COLS_MAX][LW_CSV_NAME_MAX]; /* as written, trimmed */
     int header_line;
     size_t nrow;
-    double *v;      /* nrow * ncol, row-major */
+    double *v;      /* nrow * ncol, row-major (NAN in the text column) */
     int *line;      /* line of each row */
+    int text_col;   /* the one column read as text (lw_csv_read_text), or -1 */
+    char (*text)[LW_CSV_NAME_MAX]; /* its field in each row, trimmed */
 } lw_csv;
 
 /* Read a numeric CSV file; `ref` (may be NULL) is the key that named it,
  * for the message when it cannot be opened.  Free with lw_csv_clear. */
 LW_MUST_CHECK lw_status lw_csv_read(const char *path, const lw_path_ref *ref, lw_csv *csv,
                                     lw_error *err);
+/* The same, with the column named text_column (case-insensitive; it may
+ * be absent) read as text: valid UTF-8 without control characters, at most
+ * LW_CSV_NAME_MAX - 1 bytes, empty allowed. */
+LW_MUST_CHECK lw_status lw_csv_read_text(const char *path, const lw_path_ref *ref,
+                                         const char *text_column, lw_csv *csv, lw_error *err);
+/* The text column's field in row i ("" without a text column). */
+const char *lw_csv_text(const lw_csv *csv, size_t i);
 void lw_csv_clear(lw_csv *csv);
 
 /* Index of a column by name (case-insensitive), or -1. */

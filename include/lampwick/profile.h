@@ -46,6 +46,9 @@ typedef struct lw_profile {
     int rate_model;                   /* [pack] rate_model: 0 the cell file's, else
                                          1 + lw_rate_model */
     int cell_rate_model;              /* the cell file's own lw_rate_model */
+    double use_on_h, use_off_h;       /* [use]: hours on and off per session; NAN:
+                                         not given */
+    char use_file[LW_PATH_MAX];       /* [use] sessions_file as written */
     double beam_angle_deg;            /* [optics]: full beam angle, 0 if not given */
     double peak_cd_per_lm;            /* [optics]: peak intensity per lumen, 0 if not given */
     int key_line[LW_PROFILE_KEYS_MAX];
@@ -106,6 +109,7 @@ typedef struct lw_profile_override {
 typedef struct lw_profile_variant {
     const char *mode;     /* borrowed; NULL: the profile as written */
     bool single_mode;     /* the mode alone, without the step-down chain it starts */
+    bool without_use;     /* without the profile's use schedule ([use]) */
     lw_profile_override set[LW_PROFILE_OVERRIDES_MAX];
     size_t nset;
 } lw_profile_variant;
@@ -147,6 +151,11 @@ size_t lw_profile_inputs(const lw_profile *prof, char (*paths)[LW_PATH_MAX], siz
 
 /* True when "section.key" was set by the file, a mode or an option. */
 bool lw_profile_given(const lw_profile *prof, const char *dotted_key);
+
+/* Where a message about [section] name should point: the file and line
+ * that gave it (or its section's, or the option's name and line 0). */
+void lw_profile_key_where(const lw_profile *prof, const char *section, const char *name,
+                          const char **file, int *line);
 
 /* Current value of a key as text (for sweeps and summaries). */
 void lw_profile_value_text(const lw_profile *prof, const char *dotted_key, char *buf,

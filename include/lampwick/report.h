@@ -55,6 +55,10 @@ void lw_report_reference(const lw_light *light, char *buf, size_t size);
  * spread. */
 bool lw_report_spread(const lw_light *light, char *buf, size_t size);
 
+/* How the light is used, in words ("1 h on, 23 h off", "12 planned
+ * sessions", "on from switch-on to the end"). */
+void lw_report_schedule(const lw_light *light, char *buf, size_t size);
+
 /* Human duration: "41.3 h", "52 min", "3.2 d" style. */
 void lw_report_hours(double h, char *buf, size_t size);
 

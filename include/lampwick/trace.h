@@ -30,6 +30,7 @@ typedef struct lw_trace_row {
     lw_point pt;
     double pct_of_ref;     /* light output in % of the 30-s output */
     int mode;              /* the mode of a step-down chain (0 without one) */
+    int session;           /* the session of a use schedule, from 0 (0 without one) */
 } lw_trace_row;
 
 typedef struct lw_trace {

@@ -37,7 +37,7 @@ enum {
     OPT_TARGET_MA, OPT_TARGET_LM, OPT_ESERIES, OPT_RUNTIME, OPT_FLUX, OPT_CELLS, OPT_MAXS,
     OPT_MAXP, OPT_TOP, OPT_STORED, OPT_COLUMNS, OPT_MODEL, OPT_JUNCTION, OPT_SECTION,
     OPT_LOAD_OHM, OPT_LOAD_MA, OPT_CUTOFF, OPT_RES, OPT_NAME, OPT_OUT, OPT_CHEM, OPT_RECH,
-    OPT_TOL
+    OPT_TOL, OPT_USE
 };
 
 typedef struct cli_option {
@@ -53,6 +53,10 @@ typedef struct cli_option {
 #define CLI_OPT_FORMAT {"format", "text|csv|md", OPT_FORMAT, "output format (default text)"}
 #define CLI_OPT_THREADS                                                                         \
     {"threads", "N", OPT_THREADS, "worker threads (default: the cores this process may use)"}
+#define CLI_OPT_USE                                                                             \
+    {"use", "ON_H,OFF_H|FILE.csv", OPT_USE,                                                    \
+     "use the light in sessions: ON_H hours every ON_H + OFF_H,\nor the sessions of a CSV "     \
+     "(start_h,duration_h[,mode]);\nas [use] on_h/off_h or sessions_file"}
 #define CLI_OPT_HELP {"help", NULL, OPT_HELP, "show this help"}
 #define CLI_OPT_END {NULL, NULL, 0, NULL}
 
@@ -91,9 +95,10 @@ typedef struct common_opts {
     const char *mode;
     lw_rtable_format fmt;
     int threads;
+    char use_sets[2][LW_PATH_MAX + 32]; /* --use as --set values */
 } common_opts;
 
-/* Handle --set, --mode, --format, --threads; returns 1 when the option is
+/* Handle --set, --mode, --format, --threads, --use; returns 1 when the option is
  * not one of them, 0 when handled, or an exit code. */
 int common_option(const char *cmd, common_opts *o, int id, const char *arg);
 

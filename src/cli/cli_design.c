@@ -50,6 +50,7 @@ const cli_option cli_sweep_options[] = {
     {"plot", "FILE.svg", OPT_PLOT, "runtime against light output, one series per cell"},
     {"columns", "LIST", OPT_COLUMNS, "which columns of 'run --format csv' to show"},
     CLI_OPT_THREADS,
+    CLI_OPT_USE,
     CLI_OPT_HELP,
     CLI_OPT_END};
 
@@ -265,6 +266,7 @@ const cli_option cli_size_options[] = {
     CLI_OPT_SET,
     CLI_OPT_MODE,
     CLI_OPT_FORMAT,
+    CLI_OPT_USE,
     CLI_OPT_HELP,
     CLI_OPT_END};
 
@@ -369,6 +371,7 @@ const cli_option cli_table_options[] = {
     CLI_OPT_THREADS,
     {"plot", "FILE.svg", OPT_PLOT,
      "write a chart of every mode's output against time\n(the first cell's)"},
+    CLI_OPT_USE,
     CLI_OPT_HELP,
     CLI_OPT_END};
 

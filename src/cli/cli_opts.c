@@ -110,6 +110,42 @@ int common_option(const char *cmd, common_opts *o, int id, const char *arg)
         if (!lw_rtable_format_parse(arg, &o->fmt))
             return usage_error(cmd, "--format takes text, csv or md");
         return 0;
+    case OPT_USE: {
+        /* ON_H,OFF_H: the periodic pattern; anything else a sessions file
+         * (made absolute here: the profile's keys are relative to its folder) */
+        const char *comma = strchr(arg, ',');
+        char on[64];
+        double a, b;
+        if (comma && (size_t)(comma - arg) < sizeof on) {
+            memcpy(on, arg, (size_t)(comma - arg));
+            on[comma - arg] = '\0';
+            if (!lw_number_parse_double(on, &a) || !lw_number_parse_double(comma + 1, &b) ||
+                !(a > 0) || !(b >= 0))
+                return usage_error(cmd, "--use takes ON_H,OFF_H (hours, ON_H above 0) or a "
+                                        "sessions file");
+            snprintf(o->use_sets[0], sizeof o->use_sets[0], "use.on_h=%s", on);
+            snprintf(o->use_sets[1], sizeof o->use_sets[1], "use.off_h=%s", comma + 1);
+        } else {
+            char cwd[LW_PATH_MAX], abs[LW_PATH_MAX];
+            if (arg[0] == '/')
+                lw_text_copy(abs, arg, sizeof abs);
+            else if (!getcwd(cwd, sizeof cwd) || !lw_path_join(abs, sizeof abs, cwd, arg))
+                return usage_error(cmd, "--use: the path is too long");
+            int n = snprintf(o->use_sets[0], sizeof o->use_sets[0], "use.sessions_file=%s", abs);
+            if (n < 0 || (size_t)n >= sizeof o->use_sets[0])
+                return usage_error(cmd, "--use: the path is too long");
+            o->use_sets[1][0] = '\0';
+        }
+        for (int k = 0; k < 2; k++) {
+            if (!o->use_sets[k][0])
+                continue;
+            if (o->nsets == sizeof o->sets / sizeof o->sets[0])
+                return usage_error(cmd, "too many --set options (at most %zu)",
+                                   sizeof o->sets / sizeof o->sets[0]);
+            o->sets[o->nsets++] = o->use_sets[k];
+        }
+        return 0;
+    }
     case OPT_THREADS:
         if (!lw_number_parse_int(arg, &o->threads) || o->threads < 1 ||
             o->threads > LW_POOL_THREADS_MAX)

@@ -16,6 +16,7 @@ const cli_option cli_run_options[] = {
     {"stored-months", "M", OPT_STORED,
      "start after M months on the shelf: the cells'\nself-discharge and the drive's standby "
      "drain"},
+    CLI_OPT_USE,
     CLI_OPT_HELP,
     CLI_OPT_END};
 

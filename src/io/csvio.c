@@ -29,6 +29,8 @@ struct rd {
     bool have_header;
     size_t cap;
     double rowbuf[LW_CSV_COLS_MAX];
+    const char *text_name; /* the text column's name, or NULL */
+    char textbuf[LW_CSV_NAME_MAX];
     bool failed;
 };
 
@@ -83,6 +85,24 @@ static void on_field(void *s, size_t len, void *data)
     }
     if (idx >= c->ncol)
         return; /* reported as ragged at the end of the record */
+    if ((int)idx == c->text_col) {
+        size_t at = 0;
+        const char *bad = NULL;
+        if (!trim_copy(r->textbuf, sizeof r->textbuf, s ? s : "", s ? len : 0))
+            bad = "is longer than 63 bytes";
+        else if (!lw_text_utf8_valid(r->textbuf, strlen(r->textbuf), &at))
+            bad = "is not valid UTF-8";
+        for (const unsigned char *q = (const unsigned char *)r->textbuf; !bad && *q; q++)
+            if (*q < 0x20 || *q == 0x7F)
+                bad = "holds a control character";
+        if (bad) {
+            r->failed = true;
+            lw_error_set(r->err, LW_EINPUT, c->path, r->rec_line, "column '%s': the field %s",
+                         c->names[idx], bad);
+        }
+        r->rowbuf[idx] = NAN;
+        return;
+    }
     char buf[LW_CSV_FIELD_MAX];
     if (!trim_copy(buf, sizeof buf, s ? s : "", s ? len : 0)) {
         r->failed = true;
@@ -112,6 +132,9 @@ static void on_record(int ch, void *data)
         c->header_line = r->rec_line;
         r->have_header = true;
         r->field = 0;
+        for (size_t i = 0; r->text_name && i < c->ncol; i++)
+            if (!strcasecmp(c->names[i], r->text_name))
+                c->text_col = (int)i;
         if (c->ncol == 1 && strchr(c->names[0], ';')) {
             r->failed = true;
             lw_error_set(r->err, LW_EINPUT, c->path, r->rec_line,
@@ -141,7 +164,13 @@ static void on_record(int ch, void *data)
         int *ln = v ? lw_realloc(c->line, cap * sizeof *ln) : NULL;
         if (ln)
             c->line = ln;
-        if (!v || !ln) {
+        char(*tx)[LW_CSV_NAME_MAX] = NULL;
+        if (ln && c->text_col >= 0) {
+            tx = lw_realloc(c->text, cap * sizeof *tx);
+            if (tx)
+                c->text = tx;
+        }
+        if (!v || !ln || (c->text_col >= 0 && !tx)) {
             r->failed = true;
             lw_error_set(r->err, LW_ENOMEM, c->path, r->rec_line, "out of memory");
             return;
@@ -149,12 +178,26 @@ static void on_record(int ch, void *data)
         r->cap = cap;
     }
     memcpy(c->v + c->nrow * c->ncol, r->rowbuf, c->ncol * sizeof *c->v);
+    if (c->text_col >= 0)
+        memcpy(c->text[c->nrow], r->textbuf, sizeof r->textbuf);
     c->line[c->nrow++] = r->rec_line;
 }
 
 lw_status lw_csv_read(const char *path, const lw_path_ref *ref, lw_csv *csv, lw_error *err)
 {
+    return lw_csv_read_text(path, ref, NULL, csv, err);
+}
+
+const char *lw_csv_text(const lw_csv *csv, size_t i)
+{
+    return csv->text_col >= 0 && csv->text && i < csv->nrow ? csv->text[i] : "";
+}
+
+lw_status lw_csv_read_text(const char *path, const lw_path_ref *ref, const char *text_column,
+                           lw_csv *csv, lw_error *err)
+{
     memset(csv, 0, sizeof *csv);
+    csv->text_col = -1;
     lw_text_copy(csv->path, path, sizeof csv->path);
     if (strlen(path) >= sizeof csv->path)
         return lw_error_set(err, LW_EINPUT, NULL, 0, "the path '%.60s...' is too long", path);
@@ -169,7 +212,7 @@ lw_status lw_csv_read(const char *path, const lw_path_ref *ref, lw_csv *csv, lw_
     }
     csv_set_realloc_func(&p, lw_realloc);
     csv_set_free_func(&p, free);
-    struct rd r = {.csv = csv, .err = err};
+    struct rd r = {.csv = csv, .err = err, .text_name = text_column};
     char *linebuf = NULL;
     size_t linecap = 0;
     ssize_t got;
@@ -236,8 +279,10 @@ void lw_csv_clear(lw_csv *csv)
         return;
     free(csv->v);
     free(csv->line);
+    free(csv->text);
     csv->v = NULL;
     csv->line = NULL;
+    csv->text = NULL;
     csv->nrow = csv->ncol = 0;
 }
 

@@ -148,8 +148,8 @@ lw_status lw_profchain_check(const lw_profile *p, lw_error *err)
 }
 
 /* The modes of a chain share the pack: the depth of discharge carries over. */
-static lw_status same_pack(const lw_profile *a, const lw_profile *b, const char *mode, int line,
-                           lw_error *err)
+lw_status lw_profchain_same_pack(const lw_profile *a, const lw_profile *b, const char *mode,
+                                 int line, lw_error *err)
 {
     const lw_pack *x = &a->light.pack, *y = &b->light.pack;
     if (strcmp(a->cell_path, b->cell_path) != 0 || x->series != y->series ||
@@ -204,7 +204,7 @@ lw_status lw_profchain_build(const lw_profile *base, const lw_profile_variant *v
             else
                 memset(&q, 0, sizeof q);
             if (st == LW_OK)
-                st = same_pack(out, &q, name, m.section_line, err);
+                st = lw_profchain_same_pack(out, &q, name, m.section_line, err);
             if (st == LW_OK)
                 lw_light_copy(cm->light, &q.light);
             lw_profile_clear(&q);

@@ -21,4 +21,10 @@ LW_MUST_CHECK lw_status lw_profchain_check(const lw_profile *p, lw_error *err);
 LW_MUST_CHECK lw_status lw_profchain_build(const lw_profile *base, const lw_profile_variant *v,
                                            const char *origin, lw_profile *out, lw_error *err);
 
+/* The same pack in a (the profile of a run) and b (another mode's): the
+ * state of the cells carries over between them; the error names mode at
+ * line. */
+LW_MUST_CHECK lw_status lw_profchain_same_pack(const lw_profile *a, const lw_profile *b,
+                                               const char *mode, int line, lw_error *err);
+
 #endif

@@ -7,6 +7,7 @@
  */
 #include "lampwick/profile.h"
 #include "profchain.h"
+#include "profschedule.h"
 #include "lampwick/number.h"
 #include "lampwick/path.h"
 #include "lampwick/cache.h"
@@ -155,6 +156,12 @@ const lw_keydef lw_profile_keys[] = {
        "", "full beam angle of a uniform cone, degrees"),
     PK("optics", "peak_cd_per_lm", LW_K_NUM, peak_cd_per_lm, 1, 0, 1e6, OPEN, "",
        "peak beam intensity per lumen of output, cd/lm"),
+    PK("use", "on_h", LW_K_NUM, use_on_h, 1, 0, 1e6, OPEN, "",
+       "hours of use per session (a session of on_h every on_h + off_h)"),
+    PK("use", "off_h", LW_K_NUM, use_off_h, 1, 0, 1e6, 0, "",
+       "hours off between sessions (default 0: back to back)"),
+    PT("use", "sessions_file", use_file, 0,
+       "CSV start_h,duration_h[,mode]: planned or measured sessions (instead of on_h)"),
 };
 const size_t lw_profile_nkeys = sizeof lw_profile_keys / sizeof lw_profile_keys[0];
 
@@ -340,6 +347,8 @@ lw_status lw_profile_derive(const lw_profile *base, const lw_profile_variant *v,
         st = lw_profile_resolve(out, err);
     if (st == LW_OK)
         st = lw_profchain_build(base, v, origin, out, err);
+    if (st == LW_OK)
+        st = lw_profschedule_build(base, v, origin, out, err);
     return st;
 }
 
@@ -843,6 +852,7 @@ lw_status lw_profile_load(const char *path, const lw_search *search, lw_profile 
     if (search)
         p->search = *search;
     p->cutoff_cell_v = NAN;
+    p->use_on_h = p->use_off_h = NAN;
     p->light.led.max_junction_c = NAN;
     p->light.thermal.foldback_from_c = p->light.thermal.foldback_to_c = NAN;
     p->light.thermal.foldback_min = 1.0;
@@ -905,6 +915,12 @@ size_t lw_profile_inputs(const lw_profile *p, char (*paths)[LW_PATH_MAX], size_t
         if (rel[i][0] && lw_path_join(paths[n], LW_PATH_MAX, p->dir, rel[i]))
             n++;
     return n;
+}
+
+void lw_profile_key_where(const lw_profile *p, const char *section, const char *name,
+                          const char **file, int *line)
+{
+    where_of(p, section, name, file, line);
 }
 
 bool lw_profile_given(const lw_profile *p, const char *dotted_key)

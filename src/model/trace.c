@@ -45,7 +45,12 @@ static lw_status finish_rows(const lw_result *res, lw_trace_row *rows, size_t n,
 static lw_status state_point(const lw_light *light, const lw_state *s, lw_point *pt,
                              lw_error *err)
 {
-    const lw_light *l = lw_light_mode(light, s->mode);
+    const lw_light *base = light;
+    lw_session_plan plan;
+    if (light->use && s->session >= 0 && lw_schedule_session(light->use, (size_t)s->session, &plan) &&
+        plan.light >= 0)
+        base = light->use->lights[plan.light]; /* a session in another starting mode */
+    const lw_light *l = lw_light_mode(base, s->mode);
     lw_temps t = {NAN, s->board_c, s->body_c};
     return lw_light_point_depth(l, s->depth, s->fallback, &t, pt, err);
 }
@@ -79,6 +84,7 @@ static lw_status trace_of_states(const lw_light *light, const lw_result *res, si
             }
             rows[n].t_h = s.t_h;
             rows[n].mode = s.mode;
+            rows[n].session = s.session;
             st = state_point(light, &s, &rows[n].pt, err);
             n++;
         }
@@ -129,7 +135,7 @@ lw_status lw_trace_build(const lw_light *light, const lw_result *res, size_t min
                            : lw_error_set(err, LW_ENOMEM, NULL, 0, "out of memory for the trace");
     }
     size_t n = 0;
-    rows[n++] = (lw_trace_row){0.0, res->initial, 0.0, 0};
+    rows[n++] = (lw_trace_row){0.0, res->initial, 0.0, 0, 0};
     for (size_t i = 0; i < res->n_pieces && st == LW_OK; i++) {
         const lw_piece *pc = &res->pieces[i];
         double t = pc->t0_h, dprev = pc->d0;
@@ -144,6 +150,7 @@ lw_status lw_trace_build(const lw_light *light, const lw_result *res, size_t min
                 st = lw_light_point(light, d, pc->fallback, &rows[n].pt, err);
             rows[n].t_h = t;
             rows[n].mode = 0;
+            rows[n].session = 0;
             n++;
             dprev = d;
         }

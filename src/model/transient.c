@@ -1013,8 +1013,8 @@ static lw_status switch_mode(run *r, lw_switch_cause cause)
     lw_result *res = r->e.res;
     /* every switch counts; the first LW_CHAIN_MAX are kept (a chain that
      * starts over at every session of a schedule switches many times) */
-    lw_switch spare, *sw = res->n_switches < LW_CHAIN_MAX ? &res->switches[res->n_switches++]
-                                                          : &spare;
+    lw_switch spare = {0};
+    lw_switch *sw = res->n_switches < LW_CHAIN_MAX ? &res->switches[res->n_switches++] : &spare;
     res->switches_total++;
     *sw = (lw_switch){r->t / 3600.0, r->e.mode, m->next, cause, r->p.flux_lm, 0.0};
     if (m->next == LW_CHAIN_OFF) {

@@ -66,8 +66,8 @@ enum run_col {
     RC_RUNTIME, RC_END, RC_LED_MA, RC_PACK_MA, RC_FLUX0, RC_FLUX30, RC_REF_LM, RC_REFERENCE,
     RC_HALF, RC_REGULATED, RC_LMH, RC_E_DRAWN, RC_E_LED, RC_E_RES, RC_E_INT, RC_E_DRV,
     RC_EFFICIENCY, RC_LM_PER_W, RC_PEAK_RES, RC_WORST_LED, RC_WORST_RES, RC_FINAL_V, RC_TJ30,
-    RC_TJ_PEAK, RC_TH_PEAK, RC_SWITCHES, RC_WEAK_V_END, RC_REVERSAL, RC_SOLVES, RC_WARNINGS,
-    RC_COUNT
+    RC_TJ_PEAK, RC_TH_PEAK, RC_SWITCHES, RC_WEAK_V_END, RC_REVERSAL, RC_ON_TIME, RC_SESSIONS,
+    RC_CAL_DAYS, RC_SOLVES, RC_WARNINGS, RC_COUNT
 };
 
 /* Columns that only mean something for a light that lit (empty otherwise). */
@@ -86,7 +86,8 @@ const char *const lw_report_run_columns[RC_COUNT + 1] = {
     "efficiency_pct",     "lm_per_w",         "peak_resistor_w", "worst_led_ma",
     "worst_resistor_w",   "final_cell_v",     "junction_30s_c", "peak_junction_c",
     "peak_body_c",        "switches",         "weakest_cell_v_end", "reversal",
-    "solves",             "warnings",         NULL};
+    "on_time_h",          "sessions",         "calendar_days",  "solves",
+    "warnings",           NULL};
 const size_t lw_report_run_ncolumns = RC_COUNT;
 
 void lw_report_warnings(unsigned warnings, char *buf, size_t size)
@@ -135,6 +136,10 @@ static double run_value(enum run_col c, const lw_result *r)
     case RC_SWITCHES: return (double)r->switches_total;
     case RC_WEAK_V_END: return r->final.weak_cell_v;
     case RC_REVERSAL: return (r->warnings & LW_WARN_CELL_REVERSAL) ? 1.0 : 0.0;
+    /* a use schedule's figures (empty without one) */
+    case RC_ON_TIME: return r->n_sessions ? r->runtime_h : NAN;
+    case RC_SESSIONS: return r->n_sessions ? (double)r->n_sessions : NAN;
+    case RC_CAL_DAYS: return r->n_sessions ? r->calendar_h / 24.0 : NAN;
     case RC_SOLVES: return r->solves;
     default: return NAN;
     }
@@ -425,9 +430,53 @@ static void text_switches(FILE *fp, const lw_light *l, const lw_result *r)
             snprintf(why, sizeof why, "body up to %g C", m->above_c);
             break;
         }
-        const char *to = sw->to >= 0 ? l->chain->modes[sw->to].name : "off";
+        const char *to = sw->to >= 0 && (size_t)sw->to < l->chain->n
+                             ? l->chain->modes[sw->to].name
+                             : "off";
         fprintf(fp, "  %-12s %s -> %s (%s), %.4g lm -> %.4g lm\n", when, m->name, to, why,
                 sw->flux_before_lm, sw->flux_after_lm);
+    }
+    if (r->switches_total > r->n_switches)
+        fprintf(fp, "  ... and %zu more (the chain starts over at every session)\n",
+                r->switches_total - r->n_switches);
+}
+
+void lw_report_schedule(const lw_light *l, char *buf, size_t size)
+{
+    const lw_schedule *u = l->use;
+    if (!u)
+        snprintf(buf, size, "on from switch-on to the end");
+    else if (u->n > 0)
+        snprintf(buf, size, "%zu planned session%s", u->n, u->n == 1 ? "" : "s");
+    else
+        snprintf(buf, size, "%g h on, %g h off", u->on_h, u->off_h);
+}
+
+/* The sessions of a run with a use schedule: how many, the use and the
+ * calendar time, and the output at each switch-on (the first 24 and the
+ * last 6 of a long run). */
+static void text_use(FILE *fp, const lw_light *l, const lw_result *r)
+{
+    if (!l->use || r->n_sessions == 0)
+        return;
+    char buf[96], cal[96];
+    lw_report_schedule(l, buf, sizeof buf);
+    fprintf(fp, "\nUse (%s)\n", buf);
+    lw_report_hours(r->runtime_h, buf, sizeof buf);
+    lw_report_hours(r->calendar_h, cal, sizeof cal);
+    fprintf(fp, "  sessions            %zu, the run ending in the last\n", r->n_sessions);
+    fprintf(fp, "  time of use         %s\n", buf);
+    fprintf(fp, "  calendar time       %s\n", cal);
+    fputs("  output at each switch-on\n", fp);
+    fputs("    session      day     lm  cell V  hours of use\n", fp);
+    for (size_t i = 0; i < r->n_sessions; i++) {
+        if (r->n_sessions > 30 && i == 24)
+            fprintf(fp, "    ... %zu sessions ...\n", r->n_sessions - 30);
+        if (r->n_sessions > 30 && i >= 24 && i < r->n_sessions - 6)
+            continue;
+        const lw_session *s = &r->sessions[i];
+        fprintf(fp, "    %7zu %8.2f %6.3g %7.3f  %.4g\n", i + 1, s->start_h / 24.0,
+                s->flux_start_lm, s->cell_v_start, s->on_h);
     }
 }
 
@@ -485,6 +534,7 @@ static void text_report(FILE *fp, const lw_profile *p, const lw_result *r)
         fputs("\nRun\n", fp);
         text_run(fp, l, r);
         text_switches(fp, l, r);
+        text_use(fp, l, r);
         fputs("\nEnergy\n", fp);
         text_energy(fp, l, r);
     }
@@ -522,7 +572,8 @@ static lw_status lw_report_trace_csv_in_c_locale(FILE *fp, const lw_trace *tr, l
                                        "weakest_cell_v", "ocv_cell_v", "led_ma", "led_v",
                                        "resistor_w",
                                        "led_w",   "driver_w",  "flux_lm",    "flux_pct",
-                                       "t_j_c",   "t_board_c", "t_body_c",   "mode"};
+                                       "t_j_c",   "t_board_c", "t_body_c",   "session",
+                                       "mode"};
     lw_csvw w;
     lw_csvw_init(&w, fp);
     for (size_t k = 0; k < sizeof head / sizeof head[0]; k++)
@@ -534,7 +585,8 @@ static lw_status lw_report_trace_csv_in_c_locale(FILE *fp, const lw_trace *tr, l
                             p->weak_cell_v,  p->ocv_v,         p->led_a * 1e3, p->led_v,
                             p->p_res_w,
                             p->p_led_w,      p->p_drv_w,       p->flux_lm,  tr->rows[i].pct_of_ref,
-                            p->temps.junction_c, p->temps.board_c, p->temps.body_c};
+                            p->temps.junction_c, p->temps.board_c, p->temps.body_c,
+                            tr->rows[i].session + 1.0};
         for (size_t k = 0; k < sizeof v / sizeof v[0]; k++)
             lw_csvw_num(&w, v[k]);
         int m = tr->rows[i].mode;

@@ -50,6 +50,17 @@ static void storage_of(const lw_case *k, char *buf, size_t size)
         snprintf(buf, size, "fresh cells");
 }
 
+static void use_of(const lw_case *k, char *buf, size_t size)
+{
+    char u[96];
+    lw_report_schedule(&k->light, u, sizeof u);
+    if (k->light.use)
+        snprintf(buf, size, "used in sessions, %s (runtime: hours of use; days: calendar days "
+                 "to the cutoff)", u);
+    else
+        snprintf(buf, size, "%s", u);
+}
+
 static void spread_of(const lw_case *k, char *buf, size_t size)
 {
     if (!lw_report_spread(&k->light, buf, size))
@@ -186,9 +197,13 @@ static lw_status spec_notes(const lw_spec *s, unsigned used, lw_rtable *t, lw_er
     const lw_profile *p = s->prof;
     char common[1024] = "Test conditions: light output 30 s after switch-on";
     lw_status st = aspect(s, "Storage", storage_of, common, sizeof common, t, err);
-    bool spread = false;
-    for (size_t i = 0; i < s->nrows * s->ncells; i++)
+    bool spread = false, use = false;
+    for (size_t i = 0; i < s->nrows * s->ncells; i++) {
         spread = spread || lw_light_has_spread(&s->cases[i].light);
+        use = use || s->cases[i].light.use;
+    }
+    if (st == LW_OK && use)
+        st = aspect(s, "Use", use_of, common, sizeof common, t, err);
     if (st == LW_OK && spread)
         st = aspect(s, "Cells", spread_of, common, sizeof common, t, err);
     if (st == LW_OK)
@@ -263,7 +278,7 @@ static lw_status spec_notes(const lw_spec *s, unsigned used, lw_rtable *t, lw_er
 /* ---- the table ---- */
 
 enum {
-    SC_FLUX, SC_RUNTIME, SC_HALF, SC_REGULATED, SC_CD, SC_BEAM, SC_STEPS, SC_END, SC_NOTES,
+    SC_FLUX, SC_RUNTIME, SC_HALF, SC_REGULATED, SC_CD, SC_BEAM, SC_DAYS, SC_STEPS, SC_END, SC_NOTES,
     SC_COUNT
 };
 
@@ -354,7 +369,7 @@ static lw_status spec_cell(const lw_spec *s, const lw_case *k, int kind, lw_rtab
     }
     double flux = res->flux_30s_lm, cd = peak_cd(s->prof, flux);
     const double vals[] = {flux, res->runtime_h, res->time_to_half_h, res->regulated_h, cd,
-                           lw_photometry_beam_m(cd)};
+                           lw_photometry_beam_m(cd), res->calendar_h / 24.0};
     double v = dark ? NAN : vals[kind];
     if (fmt == LW_FMT_CSV)
         return lw_rtable_num(t, row, col, v, 6, err);
@@ -362,6 +377,8 @@ static lw_status spec_cell(const lw_spec *s, const lw_case *k, int kind, lw_rtab
         return lw_rtable_set(t, row, col, kind == SC_FLUX ? "no light" : "-", err);
     if (kind == SC_RUNTIME || kind == SC_HALF || kind == SC_REGULATED)
         lw_report_spec_hours(v, buf, sizeof buf);
+    else if (kind == SC_DAYS)
+        snprintf(buf, sizeof buf, "%.1f", v);
     else if (kind == SC_BEAM)
         snprintf(buf, sizeof buf, "%.0f", v);
     else
@@ -373,10 +390,11 @@ static lw_status lw_report_spec_in_c_locale(const lw_spec *s, lw_rtable_format f
                                             lw_error *err)
 {
     static const char *const csv_names[SC_COUNT] = {
-        "flux_lm", "runtime_h", "half_h", "regulated_h", "peak_cd", "beam_m", "steps",
-        "end_reason", "warnings"};
-    static const char *const txt_names[SC_COUNT] = {"lm", "runtime", "to 50 %", "at full",
-                                                    "cd", "beam m", "steps", "", "notes"};
+        "flux_lm", "runtime_h", "half_h", "regulated_h", "peak_cd", "beam_m", "calendar_days",
+        "steps", "end_reason", "warnings"};
+    static const char *const txt_names[SC_COUNT] = {"lm",      "runtime", "to 50 %", "at full",
+                                                    "cd",      "beam m",  "days",    "steps",
+                                                    "",        "notes"};
     *out = NULL;
     /* which warnings appear (bit LW_WARN_COUNT_: some run gave no light) */
     unsigned used = 0;
@@ -385,9 +403,11 @@ static lw_status lw_report_spec_in_c_locale(const lw_spec *s, lw_rtable_format f
         if (lw_run_end_is_dark(s->cases[i].res.end_reason))
             used |= 1u << LW_WARN_COUNT_;
     }
-    bool chains = false; /* some mode steps down: the steps column */
-    for (size_t i = 0; i < s->nrows * s->ncells; i++)
+    bool chains = false, used_in_sessions = false; /* the steps and days columns */
+    for (size_t i = 0; i < s->nrows * s->ncells; i++) {
         chains = chains || s->cases[i].light.chain;
+        used_in_sessions = used_in_sessions || s->cases[i].light.use;
+    }
     int kinds[SC_COUNT];
     size_t per = 0;
     kinds[per++] = SC_FLUX;
@@ -399,6 +419,8 @@ static lw_status lw_report_spec_in_c_locale(const lw_spec *s, lw_rtable_format f
         kinds[per++] = SC_CD;
         kinds[per++] = SC_BEAM;
     }
+    if (used_in_sessions)
+        kinds[per++] = SC_DAYS;
     if (chains)
         kinds[per++] = SC_STEPS;
     if (fmt == LW_FMT_CSV)
