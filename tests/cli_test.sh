@@ -102,6 +102,8 @@ expect 0 ',on_time_h,sessions,calendar_days,' "$LW" run profiles/tail-light-coin
 "$LW" run profiles/tail-light-coin.ini --mode evening --trace "$TMP/use.csv" >/dev/null 2>&1
 last=$(tr -d '\r' < "$TMP/use.csv" | tail -1 | awk -F, '{print $(NF-1)}')
 if [ "$last" -ge 40 ] 2>/dev/null; then ok; else bad "trace sessions: $last"; fi
+"$LW" run profiles/tail-light-coin.ini --mode evening --plot "$TMP/nights.svg" >/dev/null 2>&1
+if grep -q 'output at switch-on' "$TMP/nights.svg" && [ "$(grep -c '<circle' "$TMP/nights.svg")" -ge 80 ]; then ok; else bad "night-by-night chart"; fi
 if grep -q '</svg>' "$TMP/modes.svg" && grep -q '>turbo<' "$TMP/modes.svg" && grep -q '>low<' "$TMP/modes.svg"; then ok; else bad "chart of modes"; fi
 for f in "$TMP/modes.svg" "$TMP/chain.svg"; do
     if python3 "$(dirname "$0")/svgcheck.py" "$f" >/dev/null 2>&1; then ok; else bad "svgcheck $f"; fi

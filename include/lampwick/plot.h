@@ -96,6 +96,12 @@ size_t lw_plot_ticks(double lo, double hi, size_t max_ticks, double *ticks);
 LW_MUST_CHECK lw_status lw_plot_run(FILE *fp, const char *title, const lw_light *light,
                                     const lw_result *res, const lw_trace *trace, lw_error *err);
 
+/* A run with a use schedule, night by night: the light output and the
+ * weakest cell's loaded voltage at each switch-on against the calendar
+ * day, with the cutoff and the end point. */
+LW_MUST_CHECK lw_status lw_plot_sessions(FILE *fp, const char *title, const lw_light *light,
+                                         const lw_result *res, lw_error *err);
+
 /* The chart a specification carries: every mode's light output (lm)
  * against hours since switch-on, with cell column c of the table's runs
  * (each mode run again with its trace, lw_spec_trace).  At most

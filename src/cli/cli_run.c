@@ -12,7 +12,9 @@ const cli_option cli_run_options[] = {
     CLI_OPT_MODE,
     CLI_OPT_FORMAT,
     {"trace", "FILE.csv", OPT_TRACE, "write the discharge as a CSV time series"},
-    {"plot", "FILE.svg", OPT_PLOT, "write a chart of output and pack voltage"},
+    {"plot", "FILE.svg", OPT_PLOT,
+     "write a chart of output and pack voltage (with --use or\n[use]: the output at each "
+     "switch-on, night by night)"},
     {"stored-months", "M", OPT_STORED,
      "start after M months on the shelf: the cells'\nself-discharge and the drive's standby "
      "drain"},
@@ -65,6 +67,8 @@ static lw_status plot_fn(FILE *fp, const void *ctx, lw_error *err)
     char title[160];
     snprintf(title, sizeof title, "%s%s%s", c->prof->light.name, c->prof->mode[0] ? ", mode " : "",
              c->prof->mode);
+    if (c->res->n_sessions > 0) /* in sessions: night by night */
+        return lw_plot_sessions(fp, title, &c->prof->light, c->res, err);
     return lw_plot_run(fp, title, &c->prof->light, c->res, c->tr, err);
 }
 

@@ -521,6 +521,8 @@ static lw_status lw_plot_run_in_c_locale(FILE *fp, const char *title, const lw_l
     for (size_t i = 0; light->chain && i < res->n_switches && c.nmarks < LW_PLOT_MARKS_MAX;
          i++) {
         const lw_switch *sw = &res->switches[i];
+        if ((size_t)sw->from >= light->chain->n || (sw->to >= 0 && (size_t)sw->to >= light->chain->n))
+            continue; /* a session in another starting mode: its own chain */
         snprintf(marks[c.nmarks], sizeof marks[0], "%s to %s",
                  light->chain->modes[sw->from].name,
                  sw->to >= 0 ? light->chain->modes[sw->to].name : "off");
@@ -530,6 +532,64 @@ static lw_status lw_plot_run_in_c_locale(FILE *fp, const char *title, const lw_l
     lw_status st = lw_plot_svg(fp, &c, err);
     free(buf);
     return st;
+}
+
+/* A run in sessions, night by night: the output and the weakest cell's
+ * loaded voltage at each switch-on against the calendar day. */
+static lw_status lw_plot_sessions_in_c_locale(FILE *fp, const char *title, const lw_light *light,
+                                              const lw_result *res, lw_error *err)
+{
+    size_t n = res->n_sessions;
+    double *buf = lw_malloc(3 * (n ? n : 1) * sizeof *buf);
+    if (!buf)
+        return lw_error_set(err, LW_ENOMEM, NULL, 0, "out of memory for the plot");
+    double *day = buf, *lm = buf + n, *v = buf + 2 * n, top = 0.0;
+    for (size_t i = 0; i < n; i++) {
+        day[i] = res->sessions[i].start_h / 24.0;
+        lm[i] = res->sessions[i].flux_start_lm;
+        v[i] = res->sessions[i].cell_v_start;
+        top = fmax(top, lm[i]);
+    }
+    char sub[512], use[96], runtime[64], cut[64], endp[64];
+    lw_report_schedule(light, use, sizeof use);
+    lw_report_hours(res->runtime_h, runtime, sizeof runtime);
+    snprintf(sub, sizeof sub, "%d x %s, %s; %zu sessions, %s of use to the cutoff (%s)",
+             light->pack.series * light->pack.parallel, light->pack.cell.name, use, n, runtime,
+             lw_run_end_names[res->end_reason]);
+    lw_chart c = {0};
+    c.title = title;
+    c.subtitle = sub;
+    double last = n ? day[n - 1] : 1.0;
+    c.x = (lw_axis){.label = "day of use (calendar days since the first switch-on)", .lo = 0,
+                    .hi = last > 0 ? last * 1.04 + 0.5 : 1.0};
+    c.npanels = 2;
+    lw_panel *p = &c.panels[0];
+    p->y = (lw_axis){.label = "light output at switch-on (lm)", .lo = 0,
+                     .hi = top > 0 ? 1.15 * top : 1.0};
+    p->series[p->nseries++] =
+        (lw_series){.name = "output at switch-on", .x = day, .y = lm, .n = n, .points = true};
+    snprintf(cut, sizeof cut, "cutoff %g %% of the first 30-s output", light->cutoff.relative_pct);
+    p->refs[p->nrefs++] = (lw_refline){light->cutoff.relative_pct / 100.0 * res->flux_ref_lm, cut};
+    p->height_share = 1.4;
+    p = &c.panels[1];
+    p->y = (lw_axis){.label = "cell voltage at switch-on (V, loaded)"};
+    p->series[p->nseries++] =
+        (lw_series){.name = "weakest cell", .x = day, .y = v, .n = n, .points = true};
+    snprintf(endp, sizeof endp, "end point %.3g V", light->cutoff.cell_v);
+    p->refs[p->nrefs++] = (lw_refline){light->cutoff.cell_v, endp};
+    p->height_share = 1.0;
+    lw_status st = lw_plot_svg(fp, &c, err);
+    free(buf);
+    return st;
+}
+
+lw_status lw_plot_sessions(FILE *fp, const char *title, const lw_light *light, const lw_result *res,
+                           lw_error *err)
+{
+    locale_t saved = lw_number_locale_begin();
+    lw_status result = lw_plot_sessions_in_c_locale(fp, title, light, res, err);
+    lw_number_locale_end(saved);
+    return result;
 }
 
 static lw_status lw_plot_led_fit_in_c_locale(FILE *fp, const double *i_a, const double *v, size_t n,
