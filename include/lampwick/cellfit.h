@@ -38,6 +38,7 @@ typedef struct lw_cellfit_log {
     double *v;       /* terminal voltage, V */
     double *i_a;     /* current, A */
     int *line;       /* CSV line of each sample */
+    double load_ohm, load_a; /* the load as given (NAN: not that kind) */
 } lw_cellfit_log;
 
 /* Read a log: columns time_s, voltage_v and optionally current_ma.  Without
@@ -57,6 +58,8 @@ typedef struct lw_cellfit_options {
     lw_chemistry chemistry;
     bool rechargeable;
     double nominal_v;         /* NAN: the curve's voltage at 50 % depth */
+    double total_ah;          /* two logs: the total charge (at a very low drain) for the
+                                 kinetic model's fit; NAN: Peukert's law only */
 } lw_cellfit_options;
 
 typedef struct lw_cellfit {
@@ -68,6 +71,9 @@ typedef struct lw_cellfit {
     bool peukert_estimated;
     bool peukert_clamped;     /* the estimate fell outside 1..2 */
     double max_dev_v;         /* thinned curve against the dense one */
+    bool kinetic_fitted;      /* two logs and total_ah: the kinetic model's c and k' */
+    double model_hours[2][2]; /* each log's load run through the fitted cell: [0] under
+                                 Peukert's law, [1] under the kinetic model (NAN: not run) */
     double reliable_depth;    /* two logs: R and OCV from both up to this depth,
                                  extended beyond it by the stated rule */
     size_t dense_points;

@@ -31,6 +31,9 @@ const cli_option cli_fit_cell_options[] = {
     {"chemistry", "CHEM", OPT_CHEM, "alkaline, nimh, li-ion, ... (default other)"},
     {"rechargeable", "yes|no", OPT_RECH, "(default no)"},
     {"tolerance-mv", "T", OPT_TOL, "curve thinning tolerance (default 5 mV)"},
+    {"total-mah", "C", OPT_TOTAL,
+     "two logs: the charge at a very low drain, to fit the\nkinetic model (available_pct, "
+     "recovery_per_h) too"},
     CLI_OPT_HELP,
     CLI_OPT_END};
 
@@ -199,6 +202,13 @@ static int cell_option(void *ctx, int id, const char *arg)
             return usage_error("fit cell", "--rechargeable takes yes or no");
         a->opt.rechargeable = !strcmp(arg, "yes");
         return 0;
+    case OPT_TOTAL: {
+        double mah;
+        if (!lw_number_parse_double(arg, &mah) || !(mah > 0) || mah > 1e7)
+            return usage_error("fit cell", "--total-mah takes a charge above 0 mAh");
+        a->opt.total_ah = mah * 1e-3;
+        return 0;
+    }
     case OPT_TOL: {
         double mv;
         if (!lw_number_parse_double(arg, &mv) || !(mv > 0) || mv > 500)
@@ -214,7 +224,7 @@ static int cell_option(void *ctx, int id, const char *arg)
 int cli_fit_cell(int argc, char **argv)
 {
     cell_args a = {.opt = {.cutoff_v = NAN, .resistance_ohm = NAN, .tolerance_v = 0.005,
-                           .chemistry = LW_CHEM_OTHER, .nominal_v = NAN},
+                           .chemistry = LW_CHEM_OTHER, .nominal_v = NAN, .total_ah = NAN},
                    .load_ohm = {NAN, NAN}, .load_a = {NAN, NAN}};
     int optind_ = 0, rc = cli_parse(cli_find("fit cell"), argc, argv, cell_option, &a, &optind_);
     if (rc)

@@ -177,6 +177,22 @@ lw_status lw_report_cell_fit(FILE *fp, const lw_cellfit *fit, const char *const 
             nlogs == 1 ? " (as given by --resistance-ohm)" : " (from the two loads)");
     fprintf(fp, "  curve: %zu points kept of %zu, within %.2g mV of the logs' curve\n",
             cl->ocv->n, fit->dense_points, fit->max_dev_v * 1e3);
+    if (fit->kinetic_fitted)
+        fprintf(fp, "  kinetic model: available_pct %.4g, recovery_per_h %.4g (total %.5g mAh); "
+                    "rate_model = kinetic to use it\n",
+                100.0 * cl->kinetic_c, cl->kinetic_k_per_h, cl->max_capacity_ah * 1e3);
+    else if (nlogs == 2)
+        fprintf(fp, "  kinetic model: not fitted (give --total-mah, the charge at a very low "
+                    "drain)\n");
+    fputs("  each log's load through the fitted cell, hours to the end point:\n", fp);
+    for (size_t k = 0; k < nlogs; k++) {
+        fprintf(fp, "    %s: measured %.4g, Peukert %.4g (%+.2f %%)", log_names[k], fit->hours[k],
+                fit->model_hours[0][k], 100.0 * (fit->model_hours[0][k] / fit->hours[k] - 1.0));
+        if (fit->kinetic_fitted)
+            fprintf(fp, ", kinetic %.4g (%+.2f %%)", fit->model_hours[1][k],
+                    100.0 * (fit->model_hours[1][k] / fit->hours[k] - 1.0));
+        fputc('\n', fp);
+    }
     lw_number_locale_end(saved);
     return ferror(fp) ? lw_error_set(err, LW_EIO, NULL, 0, "write error") : LW_OK;
 }

@@ -2,6 +2,7 @@
  * cellfit.c - cell models from discharge logs (see cellfit.h).
  */
 #include "lampwick/cellfit.h"
+#include "lampwick/engine.h"
 #include "lampwick/roots.h"
 #include "lampwick/text.h"
 
@@ -34,6 +35,8 @@ lw_status lw_cellfit_log_read(const char *path, double load_ohm, double load_a, 
                        lw_error *err)
 {
     memset(log, 0, sizeof *log);
+    log->load_ohm = load_ohm > 0.0 ? load_ohm : NAN;
+    log->load_a = !(load_ohm > 0.0) && load_a > 0.0 ? load_a : NAN;
     lw_text_copy(log->path, path, sizeof log->path);
     lw_csv csv;
     lw_status st = lw_csv_read(path, NULL, &csv, err);
@@ -290,6 +293,45 @@ static void extend_near_end(const reduced *lo, const double *d, size_t lim, doub
     }
 }
 
+/* The runtime of a log's load (its resistance, or its current held by an
+ * ideal regulator) to the end point through the fitted cell, under
+ * Peukert's law or the kinetic model: the load is a light whose "LED" is
+ * 0 V, so the run is the cell's alone. */
+static lw_status replay_log(const lw_cell *cell, const lw_cellfit_log *log, double cutoff_v,
+                            bool kinetic, double *hours, lw_error *err)
+{
+    lw_light l;
+    memset(&l, 0, sizeof l);
+    lw_cell_copy(&l.pack.cell, cell);
+    l.pack.cell.rate_model = kinetic ? LW_RATE_KINETIC : LW_RATE_PEUKERT;
+    l.pack.series = l.pack.parallel = 1;
+    l.pack.ambient_c = 20.0;
+    l.led = (lw_led){.model = LW_LED_CONSTANT, .count = 1, .strings = 1, .v_scale = 1.0,
+                     .forward_v = 0.0, .flux_lm = 1.0, .flux_current_a = 1.0,
+                     .flux_exponent = 1.0, .max_current_a = 1e6};
+    if (log->load_ohm > 0.0) {
+        l.drive = (lw_drive){.type = LW_DRIVE_RESISTOR, .resistor_ohm = log->load_ohm,
+                             .duty_pct = 100.0};
+    } else {
+        double mean = 0.0;
+        for (size_t i = 0; i < log->n; i++)
+            mean += log->i_a[i];
+        l.drive = (lw_drive){.type = LW_DRIVE_LINEAR_CC, .set_a = mean / (double)log->n,
+                             .dropout_v = 0.0, .duty_pct = 100.0};
+    }
+    l.cutoff = (lw_cutoff){.relative_pct = 1e-6, .reference = LW_REF_OWN, .cell_v = cutoff_v};
+    lw_light_update_factors(&l, NULL);
+    lw_run_options o = lw_run_options_default();
+    o.visible_lm = 0.0;
+    o.rtol = 1e-8;
+    lw_result r;
+    lw_status st = lw_run(&l, &o, &r, err);
+    *hours = st == LW_OK ? r.runtime_h : NAN;
+    lw_run_result_clear(&r);
+    lw_light_clear(&l);
+    return st;
+}
+
 lw_status lw_cellfit_fit(const lw_cellfit_log *logs, size_t nlogs, const lw_cellfit_options *opt,
                       lw_cellfit *out, lw_error *err)
 {
@@ -429,6 +471,22 @@ lw_status lw_cellfit_fit(const lw_cellfit_log *logs, size_t nlogs, const lw_cell
     }
     for (size_t k = 0; k < nlogs; k++)
         free(r[k].q);
+    if (st == LW_OK && nlogs == 2 && opt->total_ah > 0.0) {
+        lw_cell *c = &out->cell;
+        st = lw_cellfit_kinetic(opt->total_ah, out->mean_a[0], out->capacity_ah[0],
+                                out->mean_a[1], out->capacity_ah[1], &c->kinetic_c,
+                                &c->kinetic_k_per_h, err);
+        out->kinetic_fitted = st == LW_OK;
+        if (st == LW_OK)
+            c->max_capacity_ah = fmax(c->capacity_ah, opt->total_ah);
+    }
+    for (int m = 0; m < 2; m++)
+        for (int k = 0; k < 2; k++)
+            out->model_hours[m][k] = NAN;
+    for (size_t k = 0; k < nlogs && st == LW_OK; k++)
+        for (int m = 0; m < (out->kinetic_fitted ? 2 : 1) && st == LW_OK; m++)
+            st = replay_log(&out->cell, &logs[k], opt->cutoff_v, m == 1,
+                            &out->model_hours[m][k], err);
     if (st != LW_OK)
         lw_cell_clear(&out->cell);
     return st;
