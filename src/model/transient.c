@@ -141,27 +141,27 @@ static double scale(int k, double v)
     return k == 0 || k == 3 ? fabs(v) + 1e-3 : fabs(v) + 273.15;
 }
 
-/* LU factors of m in place (partial pivoting, row swaps in piv); false
- * when singular. */
-static bool lu_factor(double m[NZ][NZ], int piv[NZ])
+/* LU factors of the leading nz x nz block of m in place (partial pivoting,
+ * row swaps in piv); false when singular. */
+static bool lu_factor(double m[NZ][NZ], int piv[NZ], int nz)
 {
-    for (int k = 0; k < NZ; k++) {
+    for (int k = 0; k < nz; k++) {
         int p = k;
-        for (int i = k + 1; i < NZ; i++)
+        for (int i = k + 1; i < nz; i++)
             if (fabs(m[i][k]) > fabs(m[p][k]))
                 p = i;
         piv[k] = p;
         if (!(fabs(m[p][k]) > 0.0))
             return false;
         if (p != k)
-            for (int j = 0; j < NZ; j++) {
+            for (int j = 0; j < nz; j++) {
                 double t = m[k][j];
                 m[k][j] = m[p][j];
                 m[p][j] = t;
             }
-        for (int i = k + 1; i < NZ; i++) {
+        for (int i = k + 1; i < nz; i++) {
             m[i][k] /= m[k][k];
-            for (int j = k + 1; j < NZ; j++)
+            for (int j = k + 1; j < nz; j++)
                 m[i][j] -= m[i][k] * m[k][j];
         }
     }
@@ -169,21 +169,21 @@ static bool lu_factor(double m[NZ][NZ], int piv[NZ])
 }
 
 /* Solve with the factors of lu_factor: r becomes m^-1 r. */
-static void lu_apply(double m[NZ][NZ], const int piv[NZ], double r[NZ])
+static void lu_apply(double m[NZ][NZ], const int piv[NZ], double r[NZ], int nz)
 {
     /* the row swaps first: the factors' rows were swapped whole */
-    for (int k = 0; k < NZ; k++)
+    for (int k = 0; k < nz; k++)
         if (piv[k] != k) {
             double t = r[k];
             r[k] = r[piv[k]];
             r[piv[k]] = t;
         }
-    for (int k = 0; k < NZ; k++)
-        for (int i = k + 1; i < NZ; i++)
+    for (int k = 0; k < nz; k++)
+        for (int i = k + 1; i < nz; i++)
             r[i] -= m[i][k] * r[k];
-    for (int k = NZ - 1; k >= 0; k--) {
+    for (int k = nz - 1; k >= 0; k--) {
         double s = r[k];
-        for (int j = k + 1; j < NZ; j++)
+        for (int j = k + 1; j < nz; j++)
             s -= m[k][j] * r[j];
         r[k] = s / m[k][k];
     }
@@ -369,19 +369,22 @@ static lw_status estimate(tr *e, const double x0[NX], const lw_point *p0, const 
 static lw_status radau_step(tr *e, const double x0[NX], const lw_point *p0, const jac *j,
                             const double q0[NQ], double h, bool improve, step *s)
 {
+    /* the state's components in the Newton system: the wells' height
+     * difference only for a kinetic cell (it stays 0 otherwise) */
+    const int n = lw_cell_is_kinetic(&e->l->pack.cell) ? NX : NX - 1, nz = n * NS;
     double m[NZ][NZ];
     int piv[NZ];
     for (int i = 0; i < NS; i++)
-        for (int a = 0; a < NX; a++)
+        for (int a = 0; a < n; a++)
             for (int k = 0; k < NS; k++)
-                for (int b = 0; b < NX; b++)
-                    m[i * NX + a][k * NX + b] =
+                for (int b = 0; b < n; b++)
+                    m[i * n + a][k * n + b] =
                         (i == k && a == b ? 1.0 : 0.0) - h * e->a[i][k] * j->fx[a][b];
     s->h = h;
     s->ok = false;
     s->err = INFINITY;
     s->theta = 0.0;
-    if (!lu_factor(m, piv))
+    if (!lu_factor(m, piv, nz))
         return LW_OK;
     const double kappa = newton_kappa(e->opt->rtol);
     double z[NZ] = {0}, dz[NZ] = {0}, f[NS][NX], g[NS][NQ];
@@ -393,27 +396,27 @@ static lw_status radau_step(tr *e, const double x0[NX], const lw_point *p0, cons
                 rates_of(e, x0, p0, f[i], g[i]);
                 continue;
             }
-            double y[NX];
+            double y[NX] = {x0[0], x0[1], x0[2], x0[3]};
             lw_point pt;
-            for (int a = 0; a < NX; a++)
-                y[a] = x0[a] + z[i * NX + a];
+            for (int a = 0; a < n; a++)
+                y[a] = x0[a] + z[i * n + a];
             lw_status st = eval(e, y, &pt, f[i], g[i]);
             if (st != LW_OK)
                 return st;
         }
         for (int i = 0; i < NS; i++)
-            for (int a = 0; a < NX; a++) {
+            for (int a = 0; a < n; a++) {
                 double sum = 0.0;
                 for (int k = 0; k < NS; k++)
                     sum += e->a[i][k] * f[k][a];
-                dz[i * NX + a] = -z[i * NX + a] + h * sum;
+                dz[i * n + a] = -z[i * n + a] + h * sum;
             }
-        lu_apply(m, piv, dz);
+        lu_apply(m, piv, dz, nz);
         double norm = 0.0;
         for (int i = 0; i < NS; i++)
-            for (int a = 0; a < NX; a++) {
-                z[i * NX + a] += dz[i * NX + a];
-                norm = fmax(norm, fabs(dz[i * NX + a]) / (e->opt->rtol * scale(a, x0[a])));
+            for (int a = 0; a < n; a++) {
+                z[i * n + a] += dz[i * n + a];
+                norm = fmax(norm, fabs(dz[i * n + a]) / (e->opt->rtol * scale(a, x0[a])));
             }
         if (!isfinite(norm))
             return LW_OK;
@@ -434,11 +437,11 @@ static lw_status radau_step(tr *e, const double x0[NX], const lw_point *p0, cons
      * evaluated ones */
     for (int i = 0; i < NS; i++)
         for (int k = 0; k < NQ; k++)
-            for (int b = 0; b < NX; b++)
-                g[i][k] += j->gx[k][b] * dz[i * NX + b];
+            for (int b = 0; b < n; b++)
+                g[i][k] += j->gx[k][b] * dz[i * n + b];
     for (int i = 0; i < NS; i++) {
         for (int a = 0; a < NX; a++)
-            s->z[i][a] = z[i * NX + a];
+            s->z[i][a] = a < n ? z[i * n + a] : 0.0;
         for (int k = 0; k < NQ; k++) {
             double sum = 0.0;
             for (int c = 0; c < NS; c++)
