@@ -99,6 +99,8 @@ printf 'start_h,duration_h,mode\n0,2,\n24,3,commute\n48,1,\n' > "$TMP/sessions.c
 expect 0 'Use \(3 planned sessions\)' "$LW" run profiles/tail-light-coin.ini --mode continuous --use "$TMP/sessions.csv"
 expect 0 'sessions-done' "$LW" run profiles/tail-light-coin.ini --mode continuous --use "$TMP/sessions.csv" --format csv
 expect 0 ',on_time_h,sessions,calendar_days,' "$LW" run profiles/tail-light-coin.ini --mode evening --format csv
+expect 0 'Use: in sessions, 1 h on, 23 h off' "$LW" size profiles/tail-light-coin.ini --runtime-h 40 --use 1,23 --cells CR2032-lithium
+expect 0 '^ +23 +5[0-9.]+ +5[0-9]' "$LW" sweep profiles/tail-light-coin.ini --use 1,0 --vary use.off_h=0,23 --columns runtime_h,sessions
 "$LW" run profiles/tail-light-coin.ini --mode evening --trace "$TMP/use.csv" >/dev/null 2>&1
 last=$(tr -d '\r' < "$TMP/use.csv" | tail -1 | awk -F, '{print $(NF-1)}')
 if [ "$last" -ge 40 ] 2>/dev/null; then ok; else bad "trace sessions: $last"; fi

@@ -76,6 +76,13 @@ static lw_status lw_report_size_in_c_locale(const lw_profile *prof, const lw_siz
                      "cell count, then mass.",
                      opt->runtime_h);
         st = lw_rtable_note(t, note, err);
+        if (st == LW_OK && prof->light.use) {
+            char use[96];
+            lw_report_schedule(&prof->light, use, sizeof use);
+            snprintf(note, sizeof note,
+                     "Use: in sessions, %s; runtime_h is hours of use to the cutoff.", use);
+            st = lw_rtable_note(t, note, err);
+        }
         char spread[160];
         if (st == LW_OK && prof->light.pack.capacity_spread + prof->light.pack.resistance_spread > 0) {
             /* a pack of one cell in series has no weakest cell: the spread
