@@ -84,6 +84,60 @@ static void linear_cc_dissipation_kvl(void **state)
     lw_light_clear(&l);
 }
 
+/* A linear regulator's dissipation against its rating: the peak per string
+ * is the one at switch-on (the most headroom: fresh cells), by Kirchhoff's
+ * voltage law (E - I (R_s + R_share) - V_f) I; above regulator_rating_w the
+ * run warns, below it not; with [thermal] the rating is derated to the
+ * body's temperature (full to 70 C, zero at 155 C: common practice, no
+ * source), so a hot body warns at a power the bare rating allows. */
+static void linear_regulator_rating(void **state)
+{
+    (void)state;
+    lw_light l;
+    base_light(&l);
+    sloping_cell(&l);
+    l.pack.series = 3;
+    constant_led(&l, 2.9);
+    l.led.strings = 2;
+    l.drive.type = LW_DRIVE_LINEAR_CC;
+    l.drive.set_a = 0.050;
+    l.drive.dropout_v = 0.25;
+    l.drive.resistor_ohm = 2.0;
+    lw_light_update_factors(&l, NULL);
+    lw_result r = run_ok(&l, false);
+    const lw_point *p = &r.initial;
+    double e_v = 3 * p->ocv_v, r_share = 3 * 2 * p->r_cell_ohm;
+    double want = (e_v - 0.05 * (2.0 + r_share) - 2.9) * 0.05;
+    assert_close(r.peak_regulator_w, want, 1e-9);
+    assert_close(r.peak_regulator_derated_w, want, 1e-12);
+    assert_int_equal(r.warnings & LW_WARN_REGULATOR_HOT, 0); /* no rating given */
+    lw_run_result_clear(&r);
+    l.drive.regulator_rating_w = 0.9 * want;
+    r = run_ok(&l, false);
+    assert_true(r.warnings & LW_WARN_REGULATOR_HOT);
+    lw_run_result_clear(&r);
+    l.drive.regulator_rating_w = 1.1 * want;
+    r = run_ok(&l, false);
+    assert_int_equal(r.warnings & LW_WARN_REGULATOR_HOT, 0);
+    lw_run_result_clear(&r);
+    /* a body at steady state above 70 C: the same rating is not enough */
+    l.pack.ambient_c = 60;
+    l.thermal = (lw_thermal){.enabled = true, .r_jb_k_w = 10, .r_ha_k_w = 120,
+                             .losses_in_body = true, .max_touch_c = 200,
+                             .foldback_from_c = NAN, .foldback_min = 1};
+    l.led.heat_fraction = 0.65;
+    lw_light_update_factors(&l, NULL);
+    r = run_ok(&l, false);
+    assert_true(r.peak_body_c > 70.0);
+    assert_true(r.peak_regulator_derated_w > r.peak_regulator_w * 1.001);
+    l.drive.regulator_rating_w = 1.05 * r.peak_regulator_w;
+    lw_run_result_clear(&r);
+    r = run_ok(&l, false);
+    assert_true(r.warnings & LW_WARN_REGULATOR_HOT);
+    lw_run_result_clear(&r);
+    lw_light_clear(&l);
+}
+
 /* The converter's pack current against GSL's gsl_poly_solve_quadratic on
  * R Ip^2 - (E + R Iq) Ip + (E Iq + P) = 0 (smaller root), and no real root
  * beyond the discriminant condition (E + R Iq)^2 = 4 R (E Iq + P). */
@@ -540,6 +594,7 @@ int main(void)
         cmocka_unit_test(linear_cc_coulomb_counting),
         cmocka_unit_test(heating_raises_resistor_current_and_lowers_regulated_output),
         cmocka_unit_test(linear_cc_dissipation_kvl),
+        cmocka_unit_test(linear_regulator_rating),
         cmocka_unit_test(converter_quadratic_against_gsl),
         cmocka_unit_test(converter_power_balance_and_dropout),
         cmocka_unit_test(converter_efficiency_table),

@@ -36,6 +36,8 @@ typedef struct lw_drive {
     double resistor_ohm;     /* series resistor per string, >= 0 */
     double tolerance_pct;    /* resistor tolerance, +- % */
     double rating_w;         /* resistor power rating, W (0: not given) */
+    double regulator_rating_w; /* linear-cc: one string's regulator's power rating, W
+                                  (0: not given) */
     double set_a;            /* regulated current per string, A */
     double dropout_v;        /* linear-cc: minimum headroom, V */
     double efficiency_pct;   /* converter: efficiency, % (when no table) */

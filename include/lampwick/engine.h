@@ -96,7 +96,9 @@ enum {
                                             the body temperature */
     LW_WARN_CELL_REVERSAL = 1u << 13,    /* the weakest cell's loaded voltage below 0 V
                                             while the light runs */
-    LW_WARN_COUNT_ = 14
+    LW_WARN_REGULATOR_HOT = 1u << 14,    /* a linear regulator's power above its rating
+                                            (derated to the body temperature) */
+    LW_WARN_COUNT_ = 15
 };
 
 /* Short machine names of the warning flags, by bit index. */
@@ -168,6 +170,10 @@ typedef struct lw_result {
     double peak_body_c;     /* the same for the body */
     double peak_body_h;     /* when, in a run in time (NAN in the depth quadrature) */
     double min_weak_cell_v; /* the weakest cell's lowest loaded voltage while lit, V */
+    double peak_regulator_w; /* linear-cc: the largest power in one string's regulator */
+    double peak_regulator_derated_w; /* the rating it needs: the largest of that power
+                                        over the derating at the body's temperature
+                                        (the power itself without [thermal]) */
     double peak_resistor_derated_w; /* the largest p_res_peak_w / derating(T_body): the
                                        rating one resistor needs at the body's temperature
                                        (thermal.h; 0 without [thermal] or resistor) */

@@ -105,6 +105,9 @@ const lw_keydef lw_profile_keys[] = {
        "resistor power rating, W"),
     PK("drive", "set_ma", LW_K_NUM, light.drive.set_a, 1e-3, 0, 1e7, OPEN, "",
        "regulated current per string, mA"),
+    PK("drive", "regulator_rating_w", LW_K_NUM, light.drive.regulator_rating_w, 1, 0, 1e4, OPEN,
+       "", "linear-cc: power rating of one string's regulator, W (a warning above it, derated "
+       "to the body's temperature with [thermal])"),
     PK("drive", "dropout_v", LW_K_NUM, light.drive.dropout_v, 1, 0, 100, 0, "",
        "linear-cc: minimum headroom, V"),
     PK("drive", "efficiency_pct", LW_K_NUM, light.drive.efficiency_pct, 1, 0, 100, OPEN, "",

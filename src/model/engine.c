@@ -29,7 +29,8 @@ bool lw_run_end_is_dark(lw_end_reason why)
 const char *const lw_run_warning_names[LW_WARN_COUNT_] = {
     "led-over-max", "led-over-max-worst-case", "resistor-hot", "over-discharge", "never-lit",
     "no-cutoff", "led-table-extrapolated", "temperature-outside-table", "tolerance-not-met",
-    "resistor-over-rating", "junction-hot", "body-hot", "resistor-derated", "cell-reversal"};
+    "resistor-over-rating", "junction-hot", "body-hot", "resistor-derated", "cell-reversal",
+    "regulator-hot"};
 
 /* Gauss-Kronrod 7/15 abscissae and weights (QUADPACK qk15). */
 static const double xgk[8] = {
@@ -792,6 +793,15 @@ lw_status lw_run_worst_case(const lw_light *light, lw_point *pt, lw_error *err)
 
 void lw_run_note_resistor(const lw_light *l, const lw_point *pt, lw_result *res)
 {
+    if (l->drive.type == LW_DRIVE_LINEAR_CC && pt->regime != LW_REGIME_DROPOUT) {
+        /* the regulator's dissipation, averaged over the PWM period (what
+         * heats it), per string */
+        double p = pt->p_drv_w / l->led.strings;
+        double k = l->thermal.enabled ? lw_thermal_resistor_derating(pt->temps.body_c) : 1.0;
+        res->peak_regulator_w = fmax(res->peak_regulator_w, p);
+        res->peak_regulator_derated_w =
+            fmax(res->peak_regulator_derated_w, k > 0.0 ? p / k : INFINITY);
+    }
     if (!l->thermal.enabled || !(pt->p_res_peak_w > 0.0))
         return;
     double k = lw_thermal_resistor_derating(pt->temps.body_c);
@@ -822,6 +832,9 @@ static void set_warnings(const lw_light *l, lw_result *r)
         r->warnings |= LW_WARN_NO_CUTOFF;
     if (!lw_run_end_is_dark(r->end_reason) && r->min_weak_cell_v < 0.0)
         r->warnings |= LW_WARN_CELL_REVERSAL;
+    if (l->drive.type == LW_DRIVE_LINEAR_CC && l->drive.regulator_rating_w > 0.0 &&
+        r->peak_regulator_derated_w > l->drive.regulator_rating_w)
+        r->warnings |= LW_WARN_REGULATOR_HOT;
 }
 
 /* Time (h) from depth a to b >= a, split at the cell curve's points, each

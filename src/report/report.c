@@ -229,7 +229,10 @@ const char *lw_report_warning(int bit)
         "zero at 155 C: common practice; the part's data decide)",
         "the weakest cell is driven below 0 V while the light runs (cell reversal): it can "
         "vent or leak; never mix cells of different age, make or charge in series, and never "
-        "series-mix or over-discharge lithium cells"};
+        "series-mix or over-discharge lithium cells",
+        "a linear regulator's power is above its regulator_rating_w (derated to the body "
+        "temperature like a resistor with [thermal]: common practice; the part's data "
+        "decide)"};
     // NOLINTEND(bugprone-suspicious-missing-comma)
     return text[bit];
 }
@@ -517,6 +520,12 @@ static void text_warnings(FILE *fp, const lw_light *l, const lw_result *r)
     if (w & LW_WARN_RESISTOR_DERATED)
         fprintf(fp, "    a %.3g W rating is needed at the body's temperature (rating %.3g W)\n",
                 r->peak_resistor_derated_w, l->drive.rating_w);
+    if (w & LW_WARN_REGULATOR_HOT)
+        fprintf(fp, "    regulator peak %.3g W per string; a %.3g W rating is needed%s (rating "
+                    "%.3g W)\n",
+                r->peak_regulator_w, r->peak_regulator_derated_w,
+                l->thermal.enabled ? " at the body's temperature" : "",
+                l->drive.regulator_rating_w);
 }
 
 static void text_report(FILE *fp, const lw_profile *p, const lw_result *r)
