@@ -98,6 +98,7 @@ expect 0 'sessions +[0-9]+, the run ending in the last' "$LW" run profiles/tail-
 printf 'start_h,duration_h,mode\n0,2,\n24,3,commute\n48,1,\n' > "$TMP/sessions.csv"
 expect 0 'Use \(3 planned sessions\)' "$LW" run profiles/tail-light-coin.ini --mode continuous --use "$TMP/sessions.csv"
 expect 0 'sessions-done' "$LW" run profiles/tail-light-coin.ini --mode continuous --use "$TMP/sessions.csv" --format csv
+expect 2 'refusing to write over it' "$LW" run profiles/tail-light-coin.ini --mode continuous --use "$TMP/sessions.csv" --trace "$TMP/sessions.csv"
 expect 0 ',on_time_h,sessions,calendar_days,' "$LW" run profiles/tail-light-coin.ini --mode evening --format csv
 expect 0 'Use: in sessions, 1 h on, 23 h off' "$LW" size profiles/tail-light-coin.ini --runtime-h 40 --use 1,23 --cells CR2032-lithium
 expect 0 '^ +23 +5[0-9.]+ +5[0-9]' "$LW" sweep profiles/tail-light-coin.ini --use 1,0 --vary use.off_h=0,23 --columns runtime_h,sessions

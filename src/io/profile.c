@@ -909,7 +909,7 @@ size_t lw_profile_inputs(const lw_profile *p, char (*paths)[LW_PATH_MAX], size_t
 {
     const char *direct[] = {p->path, p->cell_path, p->light.pack.cell.curve_path,
                             p->light.pack.cell.temperature_path};
-    const char *rel[] = {p->iv_file, p->flux_file, p->efficiency_file};
+    const char *rel[] = {p->iv_file, p->flux_file, p->efficiency_file, p->use_file};
     size_t n = 0;
     for (size_t i = 0; i < sizeof direct / sizeof direct[0] && n < max; i++)
         if (direct[i][0])
