@@ -238,7 +238,11 @@ const cli_command cli_commands[] = {
      "30 s after switch-on (or of fresh cells at 20 C with cutoff.reference = fresh),\n"
      "output at cutoff.flux_lm, loaded cell voltage at cutoff.cell_v, or the cells\n"
      "fully discharged.  A light that gives no light at switch-on (never lit, cells\n"
-     "already empty, output already at a cutoff) is reported as such, exit status 1.\n",
+     "already empty, output already at a cutoff) is reported as such, exit status 1.\n"
+     "With pack.capacity_spread_pct the end point is the weakest cell's.  Used in\n"
+     "sessions (--use or [use]) the run ends the first time, while on, that an end\n"
+     "holds, or after a sessions file's last one; the runtime is then the hours of\n"
+     "use, and the report lists the output at every switch-on.\n",
      cli_run},
     {"sweep", "PROFILE --vary KEY=VALUES [--vary ...] [OPTIONS]",
      "Run the full discharge for every combination of the varied values and\n"
