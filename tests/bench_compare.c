@@ -22,21 +22,12 @@
  * are run by lampwick only (their switching and rests have no counterpart
  * here).
  */
-#include <glob.h>
 #include <math.h>
 #include <stdio.h>
 #include <string.h>
-#include <time.h>
 #include <gsl/gsl_errno.h>
 #include <gsl/gsl_odeiv2.h>
-#include <lampwick/lampwick.h>
-
-static double now_s(void)
-{
-    struct timespec ts;
-    clock_gettime(CLOCK_MONOTONIC, &ts);
-    return (double)ts.tv_sec + 1e-9 * (double)ts.tv_nsec;
-}
+#include "bench_each.h"
 
 typedef struct model {
     const lw_light *l;
@@ -233,17 +224,17 @@ static double time_method(method k, const lw_light *l)
 {
     double samples[5];
     long n = 1;
-    double t0 = now_s();
+    double t0 = bench_now_s();
     run_method(k, l);
-    double one = now_s() - t0;
+    double one = bench_now_s() - t0;
     n = one > 0 ? (long)(0.04 / one) : 1000;
     if (n < 1)
         n = 1;
     for (int s = 0; s < 5; s++) {
-        t0 = now_s();
+        t0 = bench_now_s();
         for (long i = 0; i < n; i++)
             run_method(k, l);
-        samples[s] = 1e6 * (now_s() - t0) / (double)n;
+        samples[s] = 1e6 * (bench_now_s() - t0) / (double)n;
     }
     for (int i = 1; i < 5; i++)
         for (int j = i; j > 0 && samples[j] < samples[j - 1]; j--) {
@@ -302,43 +293,16 @@ static void compare(const lw_light *l, const char *label)
     }
 }
 
+static void each(const lw_profile *p, const char *label, const char *mode, void *ctx)
+{
+    (void)mode, (void)ctx;
+    compare(&p->light, label);
+}
+
 int main(void)
 {
     gsl_set_error_handler_off();
-    glob_t g;
-    if (glob(LW_SOURCE_ROOT "/profiles/*.ini", 0, NULL, &g) != 0)
-        return 1;
-    lw_search s;
-    memset(&s, 0, sizeof s);
-    lw_search_add(&s, LW_SOURCE_ROOT "/cells");
     printf("lampwick against other methods on the same model (release build, one core; "
            "medians of 5)\n");
-    for (size_t i = 0; i < g.gl_pathc; i++) {
-        lw_profile p;
-        lw_error e;
-        lw_error_clear(&e);
-        if (lw_profile_load(g.gl_pathv[i], &s, &p, &e) != LW_OK) {
-            fprintf(stderr, "%s:%d: %s\n", e.file, e.line, e.msg);
-            return 1;
-        }
-        const char *base = strrchr(g.gl_pathv[i], '/');
-        base = base ? base + 1 : g.gl_pathv[i];
-        size_t modes = lw_profile_mode_count(&p);
-        for (size_t m = 0; m <= modes; m++) {
-            lw_profile_variant v = {.mode = m < modes ? lw_profile_mode_name(&p, m) : NULL};
-            lw_profile q;
-            if (lw_profile_derive(&p, &v, "--mode", &q, &e) != LW_OK) {
-                fprintf(stderr, "%s: %s\n", base, e.msg);
-                continue;
-            }
-            char label[160];
-            snprintf(label, sizeof label, "%s%s%s", base, v.mode ? " --mode " : "",
-                     v.mode ? v.mode : "");
-            compare(&q.light, label);
-            lw_profile_clear(&q);
-        }
-        lw_profile_clear(&p);
-    }
-    globfree(&g);
-    return 0;
+    return bench_each(each, NULL);
 }

@@ -91,10 +91,13 @@ static inline void shockley_demo_light(lw_light *l)
     l->drive.resistor_ohm = 33;
 }
 
-static inline lw_result run_ok(const lw_light *l, bool trace)
+/* Run l at the default options, with a trace and/or forced into the run
+ * in time; a failure fails the test with the message. */
+static inline lw_result run_with(const lw_light *l, bool trace, bool in_time)
 {
     lw_run_options o = lw_run_options_default();
     o.want_trace = trace;
+    o.time_domain = in_time;
     lw_result r;
     lw_error e;
     lw_error_clear(&e);
@@ -102,6 +105,11 @@ static inline lw_result run_ok(const lw_light *l, bool trace)
     if (st != LW_OK)
         fail_msg("lw_run: %s", e.msg);
     return r;
+}
+
+static inline lw_result run_ok(const lw_light *l, bool trace)
+{
+    return run_with(l, trace, false);
 }
 
 #endif

@@ -44,21 +44,29 @@ static void linear_cc_coulomb_counting(void **state)
     lw_light_clear(&l);
 }
 
+/* Three sloping cells, two strings of a 2.9-V constant LED, each held at
+ * 50 mA by a linear regulator with 0.25 V of dropout and 2 ohm in series
+ * (invented test data). */
+static void linear_cc_light(lw_light *l)
+{
+    base_light(l);
+    sloping_cell(l);
+    l->pack.series = 3;
+    constant_led(l, 2.9);
+    l->led.strings = 2;
+    l->drive.type = LW_DRIVE_LINEAR_CC;
+    l->drive.set_a = 0.050;
+    l->drive.dropout_v = 0.25;
+    l->drive.resistor_ohm = 2.0;
+}
+
 /* Regulator dissipation by Kirchhoff's voltage law: per string the
  * regulator drops E - I (Rs + M r) - N Vf, and dissipates that times I. */
 static void linear_cc_dissipation_kvl(void **state)
 {
     (void)state;
     lw_light l;
-    base_light(&l);
-    sloping_cell(&l);
-    l.pack.series = 3;
-    constant_led(&l, 2.9);
-    l.led.strings = 2;
-    l.drive.type = LW_DRIVE_LINEAR_CC;
-    l.drive.set_a = 0.050;
-    l.drive.dropout_v = 0.25;
-    l.drive.resistor_ohm = 2.0;
+    linear_cc_light(&l);
     lw_error e;
     lw_error_clear(&e);
     bool saw_sat = false, saw_reg = false;
@@ -94,15 +102,7 @@ static void linear_regulator_rating(void **state)
 {
     (void)state;
     lw_light l;
-    base_light(&l);
-    sloping_cell(&l);
-    l.pack.series = 3;
-    constant_led(&l, 2.9);
-    l.led.strings = 2;
-    l.drive.type = LW_DRIVE_LINEAR_CC;
-    l.drive.set_a = 0.050;
-    l.drive.dropout_v = 0.25;
-    l.drive.resistor_ohm = 2.0;
+    linear_cc_light(&l);
     lw_light_update_factors(&l, NULL);
     lw_result r = run_ok(&l, false);
     const lw_point *p = &r.initial;
@@ -120,7 +120,8 @@ static void linear_regulator_rating(void **state)
     r = run_ok(&l, false);
     assert_int_equal(r.warnings & LW_WARN_REGULATOR_HOT, 0);
     lw_run_result_clear(&r);
-    /* a body at steady state above 70 C: the same rating is not enough */
+    /* a body at steady state above 70 C (an invented poor heat path in a
+     * 60 C ambient): the same rating is not enough */
     l.pack.ambient_c = 60;
     l.thermal = (lw_thermal){.enabled = true, .r_jb_k_w = 10, .r_ha_k_w = 120,
                              .losses_in_body = true, .max_touch_c = 200,

@@ -50,17 +50,6 @@ static void kinetic_cc_light(lw_light *l, double c, double k_per_h)
     lw_light_update_factors(l, NULL);
 }
 
-static lw_result run_light(const lw_light *l)
-{
-    lw_run_options o = lw_run_options_default();
-    lw_result r;
-    lw_error e;
-    lw_error_clear(&e);
-    if (lw_run(l, &o, &r, &e) != LW_OK)
-        fail_msg("%s", e.msg);
-    return r;
-}
-
 /* Constant current until the available well is empty: the time where the
  * closed form's y1 reaches 0 (GSL Brent), both through the run and through
  * lw_cell_kinetic_capacity_ah; 1e-8. */
@@ -74,7 +63,7 @@ static void constant_current_capacity_is_the_closed_form(void **state)
         well w = {l.pack.cell.max_capacity_ah, cases[k][0], cases[k][1], 0.2};
         double t = gsl_brent(y1_closed_form, &w, 0.0, w.cap_ah / w.i_a, 0.0, 1e-15);
         assert_close(lw_cell_kinetic_capacity_ah(w.cap_ah, w.c, w.k, w.i_a), w.i_a * t, 1e-12);
-        lw_result r = run_light(&l);
+        lw_result r = run_ok(&l, false);
         assert_int_equal(r.end_reason, LW_END_CAPACITY);
         assert_close(r.runtime_h, t, 1e-8);
         /* less than the whole charge at this current: the bound well keeps some */
@@ -96,7 +85,7 @@ static void fast_exchange_is_coulomb_counting(void **state)
     p.pack.cell.rate_model = LW_RATE_PEUKERT;
     p.pack.cell.peukert = 1.0;
     p.pack.cell.capacity_ah = p.pack.cell.max_capacity_ah;
-    lw_result a = run_light(&k), b = run_light(&p);
+    lw_result a = run_ok(&k, false), b = run_ok(&p, false);
     assert_int_equal(a.end_reason, b.end_reason);
     assert_close(a.runtime_h, b.runtime_h, 1e-6);
     assert_close(a.runtime_h, p.pack.cell.max_capacity_ah / 0.2, 1e-6);
@@ -148,6 +137,24 @@ static void ref_advance(lw_light *l, double t0, double t1, double y[3])
     gsl_odeiv2_driver_free(d);
 }
 
+/* Two sloping kinetic cells (c = 0.5, k' = 0.8 /h; invented test data)
+ * and a 2-V constant LED through 3.3 ohm: above the pack's EMF near empty,
+ * so the light dims out. */
+static void kinetic_resistor_light(lw_light *l)
+{
+    base_light(l);
+    sloping_cell(l);
+    l->pack.series = 2;
+    l->pack.cell.rate_model = LW_RATE_KINETIC;
+    l->pack.cell.kinetic_c = 0.5;
+    l->pack.cell.kinetic_k_per_h = 0.8;
+    l->led.model = LW_LED_CONSTANT;
+    l->led.forward_v = 2.0;
+    l->drive.resistor_ohm = 3.3;
+    l->cutoff.cell_v = 0.05;
+    lw_light_update_factors(l, NULL);
+}
+
 /* The runtime to 10 % of the 30-s output of a resistor light on kinetic
  * cells, and its lumen-hours and time to half, within 1e-6 of the GSL
  * solution (events by bisection to 1e-10 h). */
@@ -156,18 +163,8 @@ static void resistor_light_against_gsl(void **state)
     (void)state;
     gsl_set_error_handler_off();
     lw_light l;
-    base_light(&l);
-    sloping_cell(&l);
-    l.pack.series = 2;
-    l.pack.cell.rate_model = LW_RATE_KINETIC;
-    l.pack.cell.kinetic_c = 0.5;
-    l.pack.cell.kinetic_k_per_h = 0.8;
-    l.led.model = LW_LED_CONSTANT;
-    l.led.forward_v = 2.0; /* above the pack's EMF near empty: the light dims out */
-    l.drive.resistor_ohm = 3.3;
-    l.cutoff.cell_v = 0.05;
-    lw_light_update_factors(&l, NULL);
-    lw_result r = run_light(&l);
+    kinetic_resistor_light(&l);
+    lw_result r = run_ok(&l, false);
     double y[3] = {0, 0, 0};
     ref_advance(&l, 0, 30.0 / 3600.0, y);
     double ref = l.led.flux_lm * ref_current(&l, y) / l.led.flux_current_a;
@@ -216,21 +213,11 @@ static void sessions_against_gsl(void **state)
     (void)state;
     gsl_set_error_handler_off();
     lw_light l;
-    base_light(&l);
-    sloping_cell(&l);
-    l.pack.series = 2;
-    l.pack.cell.rate_model = LW_RATE_KINETIC;
-    l.pack.cell.kinetic_c = 0.5;
-    l.pack.cell.kinetic_k_per_h = 0.8;
-    l.led.model = LW_LED_CONSTANT;
-    l.led.forward_v = 2.0;
-    l.drive.resistor_ohm = 3.3;
-    l.cutoff.cell_v = 0.05;
-    lw_light_update_factors(&l, NULL);
+    kinetic_resistor_light(&l);
     l.use = lw_schedule_new();
     assert_non_null(l.use);
     l.use->on_h = 3.0, l.use->off_h = 5.0;
-    lw_result r = run_light(&l);
+    lw_result r = run_ok(&l, false);
     double y[3] = {0, 0, 0};
     ref_off = false;
     ref_advance(&l, 0, 30.0 / 3600.0, y);

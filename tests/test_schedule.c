@@ -21,18 +21,6 @@ static lw_schedule *periodic(double on_h, double off_h)
     return s;
 }
 
-static lw_result run_light(const lw_light *l, bool in_time)
-{
-    lw_run_options o = lw_run_options_default();
-    o.time_domain = in_time;
-    lw_result r;
-    lw_error e;
-    lw_error_clear(&e);
-    if (lw_run(l, &o, &r, &e) != LW_OK)
-        fail_msg("%s", e.msg);
-    return r;
-}
-
 /* Sessions with no rest between them are the continuous run (the demo
  * light, 7 h sessions: eight of them), to 1e-9. */
 static void back_to_back_sessions_are_the_continuous_run(void **state)
@@ -40,9 +28,9 @@ static void back_to_back_sessions_are_the_continuous_run(void **state)
     (void)state;
     lw_light l;
     shockley_demo_light(&l);
-    lw_result a = run_light(&l, false);
+    lw_result a = run_with(&l, false, false);
     l.use = periodic(7.0, 0.0);
-    lw_result b = run_light(&l, false);
+    lw_result b = run_with(&l, false, false);
     assert_int_equal(a.end_reason, b.end_reason);
     assert_close(b.runtime_h, a.runtime_h, 1e-9);
     assert_close(b.calendar_h, a.runtime_h, 1e-9);
@@ -55,8 +43,9 @@ static void back_to_back_sessions_are_the_continuous_run(void **state)
     lw_light_clear(&l);
 }
 
-/* One flat kinetic cell at a constant 0.1 A (a linear regulator), sessions
- * of 2 h with 10 h of rest, a standby drain of 1 mA. */
+/* Two kinetic cells on a three-point curve at a constant 0.1 A (a linear
+ * regulator), sessions of 2 h with 10 h of rest, an optional standby drain
+ * (invented test data). */
 static void kinetic_cc_light(lw_light *l, double standby_a)
 {
     base_light(l);
@@ -97,7 +86,7 @@ static void wells_level_at_rest_by_the_closed_form(void **state)
         const double i_sb = drain ? 1e-3 : 0.0;
         lw_light l;
         kinetic_cc_light(&l, i_sb);
-        lw_result r = run_light(&l, false);
+        lw_result r = run_with(&l, false, false);
         double d = 0.0, u = 0.0;
         assert_true(r.n_sessions >= 3);
         for (size_t n = 1; n < r.n_sessions; n++) {
@@ -115,7 +104,7 @@ static void wells_level_at_rest_by_the_closed_form(void **state)
              * last longer in total than the continuous run */
             lw_schedule_unref(l.use);
             l.use = NULL;
-            lw_result cont = run_light(&l, false);
+            lw_result cont = run_with(&l, false, false);
             assert_true(r.runtime_h > 1.01 * cont.runtime_h);
             lw_run_result_clear(&cont);
         }
@@ -132,14 +121,14 @@ static void energy_balances_across_sessions(void **state)
     (void)state;
     lw_light l;
     kinetic_cc_light(&l, 1e-3);
-    lw_result r = run_light(&l, false);
+    lw_result r = run_with(&l, false, false);
     assert_close(r.calendar_h - r.runtime_h, 10.0 * (double)(r.n_sessions - 1), 1e-12);
     double sum = r.energy_led_wh + r.energy_resistor_wh + r.energy_internal_wh +
                  r.energy_driver_wh;
     assert_close(sum, r.energy_drawn_wh, 1e-9);
     lw_light_clear(&l);
     kinetic_cc_light(&l, 0.0);
-    lw_result q = run_light(&l, false);
+    lw_result q = run_with(&l, false, false);
     assert_true(r.runtime_h < q.runtime_h);
     assert_true(r.energy_driver_wh > q.energy_driver_wh);
     lw_run_result_clear(&q);
@@ -161,7 +150,7 @@ static void a_list_runs_out(void **state)
     s->plan[0] = (lw_session_plan){0.0, 3.0, -1};
     s->plan[1] = (lw_session_plan){24.0, 4.0, -1};
     l.use = s;
-    lw_result r = run_light(&l, false);
+    lw_result r = run_with(&l, false, false);
     assert_int_equal(r.end_reason, LW_END_SCHEDULE_DONE);
     assert_close(r.runtime_h, 7.0, 1e-12);
     assert_close(r.calendar_h, 28.0, 1e-12);
@@ -192,6 +181,7 @@ static void heat_path_cools_by_its_closed_form(void **state)
 {
     (void)state;
     gsl_set_error_handler_off();
+    /* the headlamp profile's network (invented figures) */
     lw_thermal th = {.enabled = true, .r_jb_k_w = 10, .r_bb_k_w = 5, .r_ha_k_w = 12,
                      .c_b_j_k = 4, .c_h_j_k = 60};
     net n = {4, 60, 5, 12, 20};

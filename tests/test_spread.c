@@ -15,7 +15,8 @@
 /* Three sloping cells in series, one constant-voltage LED held at 50 mA by
  * a linear regulator with 0.1 V of dropout: the current is the set current
  * to the end (the headroom stays above 0.5 V), and Peukert's exponent is 1,
- * so the charge drawn is I t (Coulomb counting, common practice). */
+ * so the charge drawn is I t (Coulomb counting, common practice).  The cell
+ * is the invented test cell of lights.h. */
 static void cc_light(lw_light *l, double capacity_spread, double resistance_spread)
 {
     base_light(l);
@@ -33,18 +34,6 @@ static void cc_light(lw_light *l, double capacity_spread, double resistance_spre
     lw_light_update_factors(l, NULL);
 }
 
-static lw_result run_light(const lw_light *l, bool in_time)
-{
-    lw_run_options o = lw_run_options_default();
-    o.time_domain = in_time;
-    lw_result r;
-    lw_error e;
-    lw_error_clear(&e);
-    if (lw_run(l, &o, &r, &e) != LW_OK)
-        fail_msg("%s", e.msg);
-    return r;
-}
-
 /* No spread, or a spread on a single cell, changes nothing: the same
  * figures bit for bit (the demo light, both paths). */
 static void no_spread_is_todays_result(void **state)
@@ -53,17 +42,17 @@ static void no_spread_is_todays_result(void **state)
     for (int in_time = 0; in_time < 2; in_time++) {
         lw_light l;
         shockley_demo_light(&l);
-        lw_result a = run_light(&l, in_time);
+        lw_result a = run_with(&l, false, in_time);
         l.pack.series = 1;
-        lw_result one = run_light(&l, in_time);
+        lw_result one = run_with(&l, false, in_time);
         l.pack.capacity_spread = 0.1, l.pack.resistance_spread = 0.5;
-        lw_result one_spread = run_light(&l, in_time);
+        lw_result one_spread = run_with(&l, false, in_time);
         assert_true(one.runtime_h == one_spread.runtime_h);
         assert_true(one.lumen_hours == one_spread.lumen_hours);
         assert_true(one.energy_drawn_wh == one_spread.energy_drawn_wh);
         l.pack.series = 3;
         l.pack.capacity_spread = 0, l.pack.resistance_spread = 0;
-        lw_result b = run_light(&l, in_time);
+        lw_result b = run_with(&l, false, in_time);
         assert_true(a.runtime_h == b.runtime_h && a.lumen_hours == b.lumen_hours);
         assert_true(a.final.weak_cell_v == a.final.cell_v);
         assert_int_equal(a.solves, b.solves);
@@ -84,7 +73,7 @@ static void weakest_cell_empties_first(void **state)
         lw_light l;
         cc_light(&l, 0.1, 0.0);
         l.cutoff.cell_v = 0.05;
-        lw_result r = run_light(&l, in_time);
+        lw_result r = run_with(&l, false, in_time);
         assert_int_equal(r.end_reason, LW_END_CAPACITY);
         assert_close(r.runtime_h, 0.9 * 2.3 / 0.05, 1e-9);
         assert_close(r.end_depth, 0.9, 1e-9);
@@ -126,7 +115,7 @@ static void the_end_point_is_the_weakest_cells(void **state)
             weak_ref w = {&l, 0.05};
             double dw = gsl_brent(weak_residual, &w, 0.0, 1.0, 0.0, 1e-15);
             double d = (1.0 - spreads[k][0]) * dw;
-            lw_result r = run_light(&l, in_time);
+            lw_result r = run_with(&l, false, in_time);
             assert_int_equal(r.end_reason, LW_END_CELL_VOLTAGE);
             assert_close(r.end_depth, d, 1e-9);
             assert_close(r.runtime_h, d * 2.3 / 0.05, 1e-9);
@@ -150,7 +139,7 @@ static void spread_costs_runtime(void **state)
         shockley_demo_light(&l);
         l.pack.capacity_spread = 0.05 * k;
         lw_light_update_factors(&l, NULL);
-        lw_result a = run_light(&l, false), b = run_light(&l, true);
+        lw_result a = run_with(&l, false, false), b = run_with(&l, false, true);
         assert_true(a.runtime_h < last);
         last = a.runtime_h;
         assert_int_equal(a.end_reason, b.end_reason);
@@ -173,12 +162,12 @@ static void reversal_is_flagged(void **state)
     cc_light(&l, 0.0, 30.0);
     l.pack.series = 6; /* five cells to push 50 mA through the sixth */
     l.cutoff.cell_v = -10.0;
-    lw_result r = run_light(&l, false);
+    lw_result r = run_with(&l, false, false);
     assert_true(r.min_weak_cell_v < 0.0);
     assert_true(r.warnings & LW_WARN_CELL_REVERSAL);
     lw_run_result_clear(&r);
     l.pack.resistance_spread = 0.0;
-    r = run_light(&l, false);
+    r = run_with(&l, false, false);
     assert_true(r.min_weak_cell_v > 0.0);
     assert_int_equal(r.warnings & LW_WARN_CELL_REVERSAL, 0);
     lw_run_result_clear(&r);

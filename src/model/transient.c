@@ -1345,6 +1345,24 @@ static lw_status fresh_reference(const run *from, double *flux_lm)
  * closed form (the equations are linear with the light off: docs/model.md,
  * "Use schedules").  The standby drain's energy, drawn at the pack's EMF,
  * goes to the driver (composite 4-point Gauss-Legendre over the rest). */
+/* The charge state of a rest: the closed-form solutions for d and u from
+ * (d0, u0) under a constant standby current (per unit of C, alpha /s),
+ * self-discharge lam /s and, for a kinetic cell, the wells' rate kk /s
+ * towards u_inf. */
+typedef struct rest_law {
+    double d0, u0, alpha, lam, kk, u_inf;
+    bool kinetic;
+} rest_law;
+
+static void rest_at(const rest_law *w, double t, double y[NX])
+{
+    double w0 = 1.0 - w->d0;
+    double left = w->lam > 0.0 ? (w0 + w->alpha / w->lam) * exp(-w->lam * t) - w->alpha / w->lam
+                               : w0 - w->alpha * t;
+    y[0] = fmin(1.0, 1.0 - left);
+    y[3] = w->kinetic ? w->u_inf + (w->u0 - w->u_inf) * exp(-w->kk * t) : 0.0;
+}
+
 static void rest(run *r, double dt_s)
 {
     if (!(dt_s > 0.0))
@@ -1352,22 +1370,12 @@ static void rest(run *r, double dt_s)
     const lw_light *l = r->e.l;
     const lw_cell *c = &l->pack.cell;
     const double ic = l->drive.standby_a / l->pack.parallel;
-    const double lam = lw_cell_self_discharge_per_h(c) / 3600.0;
     const double cap = lw_cell_capacity_ah(c, ic, l->cap_factor) * 3600.0; /* A s */
-    const double alpha = cap > 0.0 ? ic / cap : 0.0;
-    const bool kin = lw_cell_is_kinetic(c);
-    const double kk = kin ? c->kinetic_k_per_h / 3600.0 + lam : 0.0;
-    const double u_inf = kin && kk > 0.0 ? alpha / c->kinetic_c / kk : 0.0;
-    const double x0[NX] = {r->x[0], r->x[1], r->x[2], r->x[3]};
-    /* the state after t seconds of rest */
-#define REST_AT(t, y)                                                                            \
-    do {                                                                                         \
-        double w0_ = 1.0 - x0[0];                                                                \
-        double w_ = lam > 0.0 ? (w0_ + alpha / lam) * exp(-lam * (t)) - alpha / lam             \
-                              : w0_ - alpha * (t);                                              \
-        (y)[0] = fmin(1.0, 1.0 - w_);                                                            \
-        (y)[3] = kin ? u_inf + (x0[3] - u_inf) * exp(-kk * (t)) : 0.0;                            \
-    } while (0)
+    rest_law w = {.d0 = r->x[0], .u0 = r->x[3], .alpha = cap > 0.0 ? ic / cap : 0.0,
+                  .lam = lw_cell_self_discharge_per_h(c) / 3600.0,
+                  .kinetic = lw_cell_is_kinetic(c)};
+    w.kk = w.kinetic ? c->kinetic_k_per_h / 3600.0 + w.lam : 0.0;
+    w.u_inf = w.kinetic && w.kk > 0.0 ? w.alpha / c->kinetic_c / w.kk : 0.0;
     /* the standby energy, J */
     double e_j = 0.0;
     if (l->drive.standby_a > 0.0) {
@@ -1379,15 +1387,14 @@ static void rest(run *r, double dt_s)
         const double hp = dt_s / parts;
         for (int k = 0; k < parts; k++)
             for (int i = 0; i < 4; i++) {
-                double t = hp * (k + 0.5 * (1.0 + gx[i])), y[NX] = {0};
-                REST_AT(t, y);
+                double y[NX] = {0};
+                rest_at(&w, hp * (k + 0.5 * (1.0 + gx[i])), y);
                 lw_cells cells;
                 lw_light_cells(l, curve_depth(&r->e, y), &cells);
                 e_j += 0.5 * hp * gw[i] * l->pack.series * cells.ocv_v * l->drive.standby_a;
             }
     }
-    REST_AT(dt_s, r->x);
-#undef REST_AT
+    rest_at(&w, dt_s, r->x);
     lw_thermal_relax(&l->thermal, l->pack.ambient_c, dt_s, &r->x[1], &r->x[2]);
     r->q[4] += e_j;
     r->q[5] += e_j;
