@@ -287,11 +287,15 @@ static void heated_light_in_time_against_gsl(void **state)
         double y[6] = {0, 20, 20, 0, 0, 0};
         advance(&l, 0, 30, y);
         double flux_ref = flux_of(&l, y);
+        /* the junction at 30 s: its fixed point at that board temperature */
+        ref q30 = {&l, 0, y[1], y[0], ref_foldback(&l.thermal, y[2])};
+        double tj30 = gsl_brent(tj_residual, &q30, y[1], y[1] + 300, 1e-13, 0);
         double y_half[6], y_end[6];
         double t_half = time_of_flux(&l, 30, y, 0.5 * flux_ref, 1800, y_half);
         double t_end = time_of_flux(&l, t_half, y_half, 0.10 * flux_ref, 1800, y_end);
         assert_int_equal(r.end_reason, LW_END_RELATIVE);
         assert_close(r.flux_30s_lm, flux_ref, 1e-6);
+        assert_close(r.junction_30s_c, tj30, 1e-6);
         assert_close(r.time_to_half_h, t_half / 3600, 1e-6);
         assert_close(r.runtime_h, t_end / 3600, 1e-6);
         assert_close(r.end_depth, y_end[0], 1e-6);
