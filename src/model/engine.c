@@ -3,7 +3,20 @@
  *
  * Invariant: the totals in `tot` are the integrals from the start depth to
  * `d_now` of the accepted pieces, and no active event has triggered before
- * d_now.  Every operating-point solve goes through eval(), which counts it.
+ * d_now.  Every operating-point solve goes through eval(), which counts it;
+ * every point inside the run (not the points solved past its end while an
+ * event is sought) goes through note_point(), which keeps the peaks.
+ *
+ * A piece [a, b] lies inside one interval of the cell curve (the integrands
+ * are analytic there but for the model's kinks, which are events).  It is
+ * sampled at the nodes of a Gauss-Lobatto rule, ends included, so that
+ * neighbouring pieces share their end points; the rule's size is chosen
+ * from the smoothness the previous pieces showed, and its error is
+ * estimated from the decay of the Legendre coefficients of the polynomial
+ * through the nodes (quadrature.h).  A piece that misses the tolerance is
+ * tried again with a larger rule or halved, whichever costs fewer solves.
+ * Events are watched at every node; one that changes sign is located on
+ * that polynomial and polished by Newton steps on solved points.
  */
 #include "lampwick/engine.h"
 
@@ -15,6 +28,7 @@
 #include <string.h>
 #include "lampwick/roots.h"
 #include "lampwick/alloc.h"
+#include "lampwick/quadrature.h"
 #include "lampwick/transient.h"
 
 const char *const lw_run_end_names[LW_END_COUNT + 1] = {
@@ -32,30 +46,61 @@ const char *const lw_run_warning_names[LW_WARN_COUNT_] = {
     "resistor-over-rating", "junction-hot", "body-hot", "resistor-derated", "cell-reversal",
     "regulator-hot"};
 
-/* Gauss-Kronrod 7/15 abscissae and weights (QUADPACK qk15). */
-static const double xgk[8] = {
-    0.991455371120812639206854697526329, 0.949107912342758524526189684047851,
-    0.864864423359769072789712788640926, 0.741531185599394439863864773280788,
-    0.586087235467691130294144845693013, 0.405845151377397166906606412076961,
-    0.207784955007898467600689403773245, 0.000000000000000000000000000000000};
-static const double wgk[8] = {
-    0.022935322010529224963732008058970, 0.063092092629978553290700663189204,
-    0.104790010322250183839876322541518, 0.140653259715525918745189590510238,
-    0.169004726639267902826583426598550, 0.190350578064785409913256402421014,
-    0.204432940075298892414161999234649, 0.209482141084727828012999174891714};
-static const double wg[4] = {0.129484966168869693270611432679082,
-                             0.279705391489276667901467771423780,
-                             0.381830050505118944950369775488975,
-                             0.417959183673469387755102040816327};
+/* The largest Lobatto rule a piece gets: beyond it, halving the piece is
+ * cheaper than widening the rule (the coefficients of a function that
+ * needs more than 12 nodes fall slowly, and halving speeds their fall). */
+#define NODES_MAX 12
+/* The smallest: 4 nodes (degree 5) is the least rule whose error the
+ * coefficients can estimate by their decay. */
+#define NODES_MIN 4
+/* The rule of the run's first piece, before any piece has shown how
+ * smooth the integrands are: degree 7, enough for most curve intervals at
+ * the default tolerance (measured on the bundled cells). */
+#define NODES_FIRST 5
+/* A piece's rule is sized for this share of the tolerance, so that the
+ * estimate usually passes at the first try. */
+#define NODES_AIM 0.25
+/* The rounding of an integrand value, in units of its size: a solve's
+ * result is exact to a few ulps, and its Legendre coefficients sum n of
+ * them. */
+#define VALUE_NOISE (64.0 * DBL_EPSILON)
+/* The rounding of the integration variable at the nodes, in ulps of the
+ * depth, that the value noise above gets on top through the integrand's
+ * slope: below it, no halving can reduce the error. */
+#define DEPTH_NOISE (256.0 * DBL_EPSILON)
+/* A total's fall per degree is learnt from a piece only where its tail
+ * stands this far above the rounding (closer, the last coefficients are
+ * part noise and fall too slowly or too fast). */
+#define LEARN_ABOVE_NOISE 100.0
+/* The fall per degree taken for a total exact to rounding on a piece: the
+ * least rule for the next piece unless it is a million times wider. */
+#define LEARN_RATE_EXACT 1e-6
+/* A piece narrower than this share of the one learnt from is not learnt
+ * from: its few coefficients above the rounding give a fall that, scaled
+ * up to a wide piece, overstates the nodes it needs many times over. */
+#define LEARN_WIDTH_MIN 0.25
+/* The most Newton steps that polish an event's depth from the root of the
+ * polynomial through the nodes (two suffice: the polynomial's root is off
+ * by its interpolation error, about the estimate's tail, and each step
+ * squares the relative error); a bracketing method takes over after. */
+#define POLISH_STEPS 4
 
-#define NODES 15
 enum { Q_T, Q_LMH, Q_LED, Q_RES, Q_INT, Q_DRV, Q_DRAWN, NQ };
 
 enum event_kind { EV_STOP, EV_RECORD, EV_KINK };
 enum {
     EV_RELATIVE, EV_FLOOR, EV_CELL_V, EV_DROPOUT, EV_HALF, EV_PEUKERT, EV_REGULATION, EV_KNOT,
-    NEV
+    EV_EFFICIENCY, EV_FOLDBACK, NEV
 };
+
+/* The events that are bands: a quantity of the point (the LED current, a
+ * converter's input voltage, the body temperature) between two adjacent
+ * knots of a table the model interpolates piecewise (or two corners); the
+ * integrands have a kink where it leaves the band. */
+typedef struct band {
+    double lo, hi; /* the band holding the quantity: lo <= x <= hi */
+    int dir;       /* +1: it left through hi, -1: through lo (set when located) */
+} band;
 
 typedef struct engine {
     const lw_light *l;
@@ -67,18 +112,20 @@ typedef struct engine {
     double kink_a;            /* per-cell average current of the Peukert cap switch */
     bool active[NEV];
     bool positive[NEV];       /* for kinks: sign of g at the current depth */
+    band bands[NEV];          /* for EV_KNOT, EV_EFFICIENCY and EV_FOLDBACK */
     double tot[NQ];
     double d_now;
     double density[NQ];       /* totals per unit depth over the current interval */
+    /* what the last piece showed of each integrand's smoothness (learn()):
+     * its Legendre coefficients on a piece of width learn_w fell by
+     * learn_rate per degree from an amplitude learn_amp (relative to the
+     * total's size); learn_w 0: nothing learnt yet */
+    double learn_w, learn_rate[NQ], learn_amp[NQ];
     size_t cap_pieces;
     size_t seg;               /* curve interval being integrated; SIZE_MAX: search */
     double d0;                /* depth at switch-on */
-    double knot_lo, knot_hi;  /* LED-table knots around the current (EV_KNOT) */
-    int knot_dir;             /* +1: the current left through knot_hi, -1: through knot_lo */
     double floor_lm;          /* absolute floor: cutoff.flux_lm or the visibility floor */
     double fire_from;         /* depth of the not-fired side of the event last located */
-    double end_d;             /* depth of end_pt: the last interval end solved */
-    lw_point end_pt;
     bool done;
 } engine;
 
@@ -93,37 +140,118 @@ static lw_status eval(engine *e, double d, lw_point *pt)
                             "without meeting its tolerance (max_solves)",
                             e->opt->max_solves, d);
     }
-    lw_status st;
-    if (e->seg == SIZE_MAX || lw_light_has_spread(e->l)) {
-        st = lw_light_point(e->l, d, e->fallback, pt, e->err);
-    } else {
-        const lw_interp *o = e->l->pack.cell.ocv, *r = e->l->pack.cell.res;
-        size_t i = e->seg;
-        double u = (d - o->x[i]) / (o->x[i + 1] - o->x[i]);
-        u = u < 0.0 ? 0.0 : (u > 1.0 ? 1.0 : u);
-        double ocv = o->y[i] + u * (o->y[i + 1] - o->y[i]);
-        double res = (r->y[i] + u * (r->y[i + 1] - r->y[i])) * e->l->res_factor;
-        st = lw_light_point_at(e->l, d, ocv, res, e->fallback, pt, e->err);
-    }
-    if (st == LW_OK) {
-        if (pt->regime != LW_REGIME_DROPOUT)
-            e->res->min_weak_cell_v = fmin(e->res->min_weak_cell_v, pt->weak_cell_v);
-        e->res->peak_junction_c = fmax(e->res->peak_junction_c, pt->temps.junction_c);
-        e->res->peak_body_c = fmax(e->res->peak_body_c, pt->temps.body_c);
-        lw_run_note_resistor(e->l, pt, e->res);
-    }
-    return st;
+    if (e->seg == SIZE_MAX || lw_light_has_spread(e->l))
+        return lw_light_point(e->l, d, e->fallback, pt, e->err);
+    const lw_interp *o = e->l->pack.cell.ocv, *r = e->l->pack.cell.res;
+    size_t i = e->seg;
+    double u = (d - o->x[i]) / (o->x[i + 1] - o->x[i]);
+    u = u < 0.0 ? 0.0 : (u > 1.0 ? 1.0 : u);
+    double ocv = o->y[i] + u * (o->y[i + 1] - o->y[i]);
+    double res = (r->y[i] + u * (r->y[i + 1] - r->y[i])) * e->l->res_factor;
+    return lw_light_point_at(e->l, d, ocv, res, e->fallback, pt, e->err);
+}
+
+/* Take a point inside the run into the run's extremes. */
+static void note_point(engine *e, const lw_point *pt)
+{
+    lw_result *r = e->res;
+    if (pt->regime != LW_REGIME_DROPOUT && pt->weak_cell_v < r->min_weak_cell_v)
+        r->min_weak_cell_v = pt->weak_cell_v;
+    if (pt->temps.junction_c > r->peak_junction_c || isnan(r->peak_junction_c))
+        r->peak_junction_c = pt->temps.junction_c;
+    if (pt->temps.body_c > r->peak_body_c || isnan(r->peak_body_c))
+        r->peak_body_c = pt->temps.body_c;
+    if (pt->p_res_peak_w > r->peak_resistor_w)
+        r->peak_resistor_w = pt->p_res_peak_w;
+    if (pt->extrapolated)
+        r->warnings |= LW_WARN_EXTRAPOLATED;
+    lw_run_note_resistor(e->l, pt, r);
 }
 
 static enum event_kind kind_of(int k)
 {
     if (k == EV_HALF)
         return EV_RECORD;
-    if (k == EV_PEUKERT || k == EV_REGULATION || k == EV_KNOT)
+    if (k == EV_PEUKERT || k == EV_REGULATION || k == EV_KNOT || k == EV_EFFICIENCY ||
+        k == EV_FOLDBACK)
         return EV_KINK;
     if (k == EV_DROPOUT)
         return EV_KINK; /* a stop or a switch to fallback: decided when it fires */
     return EV_STOP;
+}
+
+static bool is_band(int k)
+{
+    return k == EV_KNOT || k == EV_EFFICIENCY || k == EV_FOLDBACK;
+}
+
+/* The quantity a band event watches. */
+static double band_value(int k, const lw_point *pt)
+{
+    return k == EV_KNOT ? pt->led_a : (k == EV_EFFICIENCY ? pt->pack_v : pt->temps.body_c);
+}
+
+/* Smallest knot above x (dir > 0) or largest at or below... strictly below
+ * (dir < 0) in the sorted array xs[n]; +-INFINITY past the ends. */
+static double knot_next(const double *xs, size_t n, double x, int dir)
+{
+    size_t lo = 0, hi = n; /* first index with xs[i] > x (dir > 0), >= x (dir < 0) */
+    while (lo < hi) {
+        size_t mid = lo + (hi - lo) / 2;
+        if (dir > 0 ? xs[mid] > x : xs[mid] >= x)
+            hi = mid;
+        else
+            lo = mid + 1;
+    }
+    if (dir > 0)
+        return lo < n ? xs[lo] : INFINITY;
+    return lo > 0 ? xs[lo - 1] : -INFINITY;
+}
+
+/* The next knot of band event k's tables beyond x in direction dir. */
+static double band_next(const engine *e, int k, double x, int dir)
+{
+    const lw_light *l = e->l;
+    double best = dir > 0 ? INFINITY : -INFINITY;
+    const lw_interp *t[2] = {NULL, NULL};
+    if (k == EV_KNOT) {
+        t[0] = l->led.model == LW_LED_TABLE ? l->led.iv : NULL;
+        t[1] = l->led.flux;
+    } else if (k == EV_EFFICIENCY) {
+        t[0] = l->drive.efficiency;
+    } else {
+        const double corners[2] = {l->thermal.foldback_from_c, l->thermal.foldback_to_c};
+        return knot_next(corners, 2, x, dir);
+    }
+    for (int i = 0; i < 2; i++) {
+        if (!t[i])
+            continue;
+        double v = knot_next(t[i]->x, t[i]->n, x, dir);
+        best = dir > 0 ? fmin(best, v) : fmax(best, v);
+    }
+    return best;
+}
+
+/* The band around x: the largest knot <= x and the smallest > x. */
+static void band_set(engine *e, int k, double x)
+{
+    e->bands[k].lo = band_next(e, k, nextafter(x, INFINITY), -1);
+    e->bands[k].hi = band_next(e, k, x, +1);
+    e->bands[k].dir = 0;
+}
+
+/* After the quantity crossed a knot at the located depth: the band on the
+ * far side of that knot. */
+static void band_cross(engine *e, int k)
+{
+    band *b = &e->bands[k];
+    if (b->dir > 0) {
+        b->lo = b->hi;
+        b->hi = band_next(e, k, b->lo, +1);
+    } else {
+        b->hi = b->lo;
+        b->lo = band_next(e, k, b->hi, -1);
+    }
 }
 
 static double event_g(const engine *e, int k, const lw_point *pt)
@@ -141,8 +269,13 @@ static double event_g(const engine *e, int k, const lw_point *pt)
     case EV_PEUKERT:
         return pt->pack_avg_a / l->pack.parallel - e->kink_a;
     case EV_KNOT:
-        /* after a crossing, only the knot the current moves towards */
-        return e->knot_dir > 0 ? e->knot_hi - pt->led_a : pt->led_a - e->knot_lo;
+    case EV_EFFICIENCY:
+    case EV_FOLDBACK: {
+        /* after a crossing, only the knot the quantity moves towards */
+        const band *b = &e->bands[k];
+        double x = band_value(k, pt);
+        return b->dir > 0 ? b->hi - x : x - b->lo;
+    }
     case EV_DROPOUT:
     case EV_REGULATION:
     default:
@@ -151,70 +284,33 @@ static double event_g(const engine *e, int k, const lw_point *pt)
 }
 
 /* Has event k fired at pt (given the state at the start of the piece)?
- * EV_KNOT fires when the current leaves the closed interval of table knots
- * around it (a current held exactly at a knot stays inside). */
+ * A band event fires when its quantity leaves the closed band (held
+ * exactly at a knot, it stays inside). */
 static bool fired(const engine *e, int k, const lw_point *pt)
 {
     if (!e->active[k])
         return false;
     if (pt->regime == LW_REGIME_DROPOUT && k != EV_DROPOUT)
         return false; /* a dark point has no output, current or kink to speak of */
-    if (k == EV_KNOT)
-        return pt->led_a < e->knot_lo || pt->led_a > e->knot_hi;
+    if (is_band(k)) {
+        double x = band_value(k, pt);
+        return x < e->bands[k].lo || x > e->bands[k].hi;
+    }
     double g = event_g(e, k, pt);
     if (kind_of(k) == EV_KINK)
         return (g > 0.0) != e->positive[k];
     return g <= 0.0;
 }
 
-/* Smallest knot of the LED's tables above x (dir > 0) or largest below
- * (dir < 0); +-INFINITY past the ends. */
-static double next_knot(const engine *e, double x, int dir)
+/* The sign that makes "not fired" positive for event k, with the band's
+ * direction set from the fired point pb. */
+static double event_sign(engine *e, int k, const lw_point *pb)
 {
-    const lw_led *led = &e->l->led;
-    const lw_interp *t[2] = {led->model == LW_LED_TABLE ? led->iv : NULL, led->flux};
-    double best = dir > 0 ? INFINITY : -INFINITY;
-    for (int k = 0; k < 2; k++) {
-        if (!t[k])
-            continue;
-        const double *xs = t[k]->x;
-        size_t n = t[k]->n, lo = 0, hi = n; /* first index with xs[i] > x (dir > 0) */
-        while (lo < hi) {
-            size_t mid = lo + (hi - lo) / 2;
-            if (dir > 0 ? xs[mid] > x : xs[mid] >= x)
-                hi = mid;
-            else
-                lo = mid + 1;
-        }
-        if (dir > 0 && lo < n)
-            best = fmin(best, xs[lo]);
-        else if (dir < 0 && lo > 0)
-            best = fmax(best, xs[lo - 1]);
-    }
-    return best;
-}
-
-/* The knots of the LED's I-V and flux tables that bracket current i: the
- * interpolants are cubic between knots and only C1 across them, so the
- * integration breaks where the current crosses one. */
-static void knot_interval(engine *e, double i)
-{
-    e->knot_lo = next_knot(e, nextafter(i, INFINITY), -1); /* largest knot <= i */
-    e->knot_hi = next_knot(e, i, +1);                      /* smallest knot > i */
-    e->knot_dir = 0;
-}
-
-/* After the current crossed a knot at the located depth, the interval on
- * the far side of that knot. */
-static void knot_cross(engine *e)
-{
-    if (e->knot_dir > 0) {
-        e->knot_lo = e->knot_hi;
-        e->knot_hi = next_knot(e, e->knot_lo, +1);
-    } else {
-        e->knot_hi = e->knot_lo;
-        e->knot_lo = next_knot(e, e->knot_hi, -1);
-    }
+    if (is_band(k))
+        e->bands[k].dir = band_value(k, pb) > e->bands[k].hi ? +1 : -1;
+    if (kind_of(k) == EV_KINK && !is_band(k) && !e->positive[k])
+        return -1.0;
+    return 1.0;
 }
 
 struct locate_ctx {
@@ -232,21 +328,17 @@ static double locate_fn(double d, void *vctx)
         c->failed = true;
         return NAN;
     }
-    double g = event_g(c->e, c->k, &pt);
-    return c->sign * g;
+    return c->sign * event_g(c->e, c->k, &pt);
 }
 
-/* Depth in [a, b] where event k fires; g(a) not fired, g(b) fired.  When
- * the start point already sits on the event (g(a) at zero, by a jump or by
- * rounding after the previous event) the event is at a. */
+/* Depth in [a, b] where event k fires, by Brent's method; g(a) not fired,
+ * g(b) fired.  When the start point already sits on the event (g(a) at
+ * zero, by a jump or by rounding after the previous event) the event is
+ * at a. */
 static lw_status locate(engine *e, int k, double a, double b, const lw_point *pa,
                         const lw_point *pb, double *d)
 {
-    struct locate_ctx c = {e, k, 1.0, false};
-    if (k == EV_KNOT)
-        e->knot_dir = pb->led_a > e->knot_hi ? +1 : -1;
-    if (kind_of(k) == EV_KINK && k != EV_KNOT && !e->positive[k])
-        c.sign = -1.0;
+    struct locate_ctx c = {e, k, event_sign(e, k, pb), false};
     double ga = c.sign * event_g(e, k, pa), gb = c.sign * event_g(e, k, pb);
     e->fire_from = a;
     if (!(ga > 0.0)) {
@@ -258,10 +350,29 @@ static lw_status locate(engine *e, int k, double a, double b, const lw_point *pa
     double tol = e->opt->event_tol * (fabs(b) + 1e-3);
     lw_status st =
         lw_root_brent(locate_fn, &c, a, b, ga, gb, tol, e->opt->event_iter_max, d, e->err);
-    if (st == LW_OK && c.failed)
+    if (c.failed) /* a solve failed inside: its error, not the root finder's */
         st = e->err->code ? e->err->code : LW_ENUMERIC;
     return st;
 }
+
+/* ---- pieces ------------------------------------------------------------- */
+
+/* A piece [a, b] sampled at the nodes of an n-point Lobatto rule: pt[0] at
+ * a, pt[n - 1] at b. */
+typedef struct piece {
+    double a, b;
+    const lw_quad_rule *rule;
+    int n;
+    lw_point pt[NODES_MAX];
+    double f[NODES_MAX][NQ];  /* integrands at the nodes */
+    double coef[NQ][NODES_MAX]; /* their Legendre coefficients on [a, b] */
+    double k[NQ], err[NQ];    /* totals and their estimated errors */
+    double tail[NQ];          /* the size of what the polynomials leave out */
+    double beyond[NQ];        /* their error between the nodes, about */
+    double rate;              /* the slowest fall of the coefficients per degree */
+    double q_rate[NQ], q_amp[NQ]; /* each total's fall, and its amplitude a_k / r^k
+                                 relative to the total's size (q_rate 0: not read) */
+} piece;
 
 static void integrand(const lw_point *pt, double f[NQ])
 {
@@ -275,70 +386,85 @@ static void integrand(const lw_point *pt, double f[NQ])
     f[Q_DRAWN] = pt->p_drawn_w * w;
 }
 
-static double node_depth(double a, double b, int j)
+static double node_depth(const piece *p, int j)
 {
-    /* j = 0..14 ascending: -xgk[0] .. 0 .. +xgk[0] */
-    double c = 0.5 * (a + b), h = 0.5 * (b - a);
-    return j < 7 ? c - h * xgk[j] : (j == 7 ? c : c + h * xgk[14 - j]);
+    if (j == 0)
+        return p->a;
+    if (j == p->n - 1)
+        return p->b;
+    return 0.5 * (p->a + p->b) + 0.5 * (p->b - p->a) * p->rule->x[j];
 }
 
-static lw_status eval_nodes(engine *e, double a, double b, lw_point pts[NODES])
+/* Solve the nodes of p that are not yet solved: all but the ends, and the
+ * end b unless have_b. */
+static lw_status piece_solve(engine *e, piece *p, bool have_b)
 {
-    for (int j = 0; j < NODES; j++) {
-        lw_status st = eval(e, node_depth(a, b, j), &pts[j]);
+    for (int j = 1; j < p->n; j++) {
+        if (j == p->n - 1 && have_b)
+            break;
+        lw_status st = eval(e, node_depth(p, j), &p->pt[j]);
         if (st != LW_OK)
             return st;
     }
+    for (int j = 0; j < p->n; j++)
+        integrand(&p->pt[j], p->f[j]);
     return LW_OK;
 }
 
-/* Kronrod sums with half-width h of integrand values f at the 15 nodes in
- * ascending order, and the error estimate of each: the difference from the
- * embedded 7-point Gauss rule (conservative: the 15-point result is usually
- * far better).  dx_round is the rounding of the integration variable at the
- * nodes (a few ulps); the integrand's change across the piece times that is
- * the rounding noise of the sums, which no halving reduces, so an estimate
- * within ROUNDING_GUARD times it counts as converged. */
-#define ROUNDING_GUARD 256.0
-
-static void gk_rule(double h, double dx_round, double f[NODES][NQ], double k[NQ],
-                    double err[NQ])
+/* Set up p on [a, b] with n nodes and its end points. */
+static void piece_init(piece *p, double a, double b, int n, const lw_point *pa,
+                       const lw_point *pb)
 {
+    p->a = a, p->b = b;
+    p->rule = lw_quad_lobatto(n);
+    p->n = p->rule->n;
+    p->pt[0] = *pa;
+    if (pb)
+        p->pt[p->n - 1] = *pb;
+}
+
+/* The totals of p, their Legendre coefficients and error estimates. */
+static void piece_sums(piece *p)
+{
+    const double h = 0.5 * (p->b - p->a);
+    const double dround = DEPTH_NOISE * fmax(fabs(p->a), fabs(p->b));
     for (int q = 0; q < NQ; q++) {
-        double sk = wgk[7] * f[7][q], sg = wg[3] * f[7][q];
-        double lo = f[0][q], hi = f[0][q];
-        for (int j = 0; j < 7; j++) {
-            double pair = f[j][q] + f[14 - j][q];
-            sk += wgk[j] * pair;
-            if (j % 2 == 1)
-                sg += wg[j / 2] * pair;
-        }
-        for (int j = 1; j < NODES; j++) {
-            lo = fmin(lo, f[j][q]);
-            hi = fmax(hi, f[j][q]);
-        }
-        k[q] = h * sk;
-        double noise = ROUNDING_GUARD * (hi - lo) * dx_round;
-        err[q] = fmax(0.0, fabs(h * (sk - sg)) - noise);
+        p->k[q] = h * lw_quad_sum(p->rule, &p->f[0][q], NQ);
+        lw_quad_legendre(p->rule, &p->f[0][q], NQ, p->coef[q]);
     }
-}
-
-/* Kronrod sums on [a, b] from node points in ascending order. */
-static void gk_sums(double a, double b, const lw_point pts[NODES], double k[NQ], double err[NQ])
-{
-    double f[NODES][NQ];
-    for (int j = 0; j < NODES; j++)
-        integrand(&pts[j], f[j]);
-    gk_rule(0.5 * (b - a), DBL_EPSILON * fmax(fabs(a), fabs(b)), f, k, err);
-}
-
-/* May [a, b] be halved again?  Not past max_halvings, and not below
- * LW_PIECE_MIN_REL of its depth: there the nodes sit a few thousand ulps
- * apart, rounding noise in the integrand outweighs any rule's error, and
- * halving could only go on forever. */
-static bool may_halve(const engine *e, double a, double b, int depth)
-{
-    return depth < e->opt->max_halvings && b - a > LW_PIECE_MIN_REL * fmax(fabs(a), fabs(b));
+    p->rate = 0.0;
+    for (int q = 0; q < NQ; q++) {
+        double lo = p->f[0][q], hi = lo, big = 0.0;
+        for (int j = 0; j < p->n; j++) {
+            double v = p->f[j][q];
+            lo = v < lo ? v : lo;
+            hi = v > hi ? v : hi;
+            big = fabs(v) > big ? fabs(v) : big;
+        }
+        /* rounding of the values and, through the slope, of the depths */
+        double noise = VALUE_NOISE * big + (hi - lo) * dround / (p->b - p->a);
+        lw_quad_estimate est = lw_quad_estimate_error(p->rule, p->coef[q], noise);
+        p->err[q] = h * est.error;
+        p->tail[q] = h * est.tail;
+        p->beyond[q] = h * est.beyond;
+        if (est.tail > 0.0 && est.rate > p->rate)
+            p->rate = est.rate;
+        /* the fall is read from coefficients well above the rounding only;
+         * a total whose polynomial is exact to rounding falls as fast as
+         * any (it asks for the least rule) */
+        p->q_rate[q] = p->q_amp[q] = 0.0;
+        int ref = q < Q_LED ? q : Q_DRAWN;
+        double size = fabs(p->coef[ref][0]);
+        if (!(size > 0.0) || !isfinite(est.tail))
+            continue;
+        if (est.tail <= LEARN_ABOVE_NOISE * noise) {
+            p->q_rate[q] = LEARN_RATE_EXACT;
+            p->q_amp[q] = 1.0;
+        } else if (est.rate > 0.0 && est.rate < 1.0) {
+            p->q_rate[q] = est.rate;
+            p->q_amp[q] = est.tail / size / pow(est.rate, p->n - 2);
+        }
+    }
 }
 
 /* Does every total meet the tolerance on the piece of width w (in depth)?
@@ -362,14 +488,53 @@ static bool accurate(const engine *e, double w, const double k[NQ], const double
     return true;
 }
 
-/* The density of each total over [a, b], per unit depth, from the nodes of
- * the interval's first pass (0 where not finite). */
-static void set_density(engine *e, double a, double b, const lw_point pts[NODES])
+/* May [a, b] be halved again?  Not past max_halvings, and not below
+ * LW_PIECE_MIN_REL of its depth: there the nodes sit a few thousand ulps
+ * apart, rounding noise in the integrand outweighs any rule's error, and
+ * halving could only go on forever. */
+static bool may_halve(const engine *e, double a, double b, int depth)
 {
-    double k[NQ], g[NQ];
-    gk_sums(a, b, pts, k, g);
+    return depth < e->opt->max_halvings && b - a > LW_PIECE_MIN_REL * fmax(fabs(a), fabs(b));
+}
+
+/* The rule for a piece of width w: the fewest nodes whose error is within
+ * NODES_AIM of the tolerance for every total, at the fall per degree and
+ * amplitude the last piece showed, the fall scaled to w (a function
+ * analytic near the piece has coefficients a_k ~ A (w / rho)^k, rho set by
+ * its nearest singularity; an n-node Lobatto rule misses a_{2n-2}). */
+static int nodes_for(const engine *e, double w)
+{
+    if (!(e->learn_w > 0.0))
+        return NODES_FIRST;
+    int n = NODES_MIN;
+    for (int q = 0; q < NQ; q++) {
+        if (!(e->learn_rate[q] > 0.0))
+            continue;
+        double r = e->learn_rate[q] * w / e->learn_w;
+        if (r >= LW_QUAD_RATE_MAX)
+            return NODES_MAX;
+        double need = NODES_AIM * e->opt->rtol / (LW_QUAD_SAFETY * e->learn_amp[q]);
+        if (need >= 1.0)
+            continue;
+        double nq = ceil(1.0 + log(need) / (2.0 * log(r)));
+        n = nq > n ? (nq > NODES_MAX ? NODES_MAX : (int)nq) : n;
+    }
+    return n;
+}
+
+/* Learn the integrands' smoothness from piece p (when it read any). */
+static void learn(engine *e, const piece *p)
+{
+    if (p->b - p->a < LEARN_WIDTH_MIN * e->learn_w)
+        return; /* a sliver between two knots: its fall, scaled up, says little */
+    bool any = false;
     for (int q = 0; q < NQ; q++)
-        e->density[q] = isfinite(k[q]) && b > a ? fabs(k[q]) / (b - a) : 0.0;
+        any = any || p->q_rate[q] > 0.0;
+    if (!any)
+        return;
+    e->learn_w = p->b - p->a;
+    memcpy(e->learn_rate, p->q_rate, sizeof e->learn_rate);
+    memcpy(e->learn_amp, p->q_amp, sizeof e->learn_amp);
 }
 
 static lw_status add_piece(engine *e, double a, double b)
@@ -389,20 +554,14 @@ static lw_status add_piece(engine *e, double a, double b)
     return LW_OK;
 }
 
-static void note_point(engine *e, const lw_point *pt)
-{
-    if (pt->p_res_peak_w > e->res->peak_resistor_w)
-        e->res->peak_resistor_w = pt->p_res_peak_w;
-    if (pt->extrapolated)
-        e->res->warnings |= LW_WARN_EXTRAPOLATED;
-}
-
-/* Add an accepted piece [a, b] with its totals k, their error estimates g
- * and node points.  A piece that missed the tolerance on its own (it could
- * not be halved further) is flagged only when its error also shows against
- * the run's totals so far. */
-static lw_status accept_piece(engine *e, double a, double b, const lw_point pts[NODES],
-                              const double k[NQ], const double g[NQ], bool ok)
+/* Add the totals k over [a, b], with their error estimates g, to the run;
+ * pts[0 .. npts-1] are the points solved inside [a, b], `regime` the
+ * drive's regime over it (pieces end where it changes).  A piece that missed
+ * the tolerance on its own (it could not be halved further) is flagged only
+ * when its error also shows against the run's totals so far. */
+static lw_status accept_totals(engine *e, double a, double b, const double k[NQ],
+                               const double g[NQ], bool ok, const lw_point *pts, int npts,
+                               lw_regime regime)
 {
     for (int q = 0; q < NQ; q++)
         if (!isfinite(k[q]))
@@ -420,9 +579,9 @@ static lw_status accept_piece(engine *e, double a, double b, const lw_point pts[
     lw_status st = add_piece(e, a, b);
     if (st != LW_OK)
         return st;
-    for (int j = 0; j < NODES; j++)
+    for (int j = 0; j < npts; j++)
         note_point(e, &pts[j]);
-    if (pts[7].regime == LW_REGIME_REGULATED)
+    if (regime == LW_REGIME_REGULATED)
         e->res->regulated_h += k[Q_T];
     for (int q = 0; q < NQ; q++)
         e->tot[q] += k[q];
@@ -430,74 +589,167 @@ static lw_status accept_piece(engine *e, double a, double b, const lw_point pts[
     return LW_OK;
 }
 
-/* Accept or halve [a, b] with node values already computed; no events. */
-static lw_status integrate_nodes(engine *e, double a, double b, const lw_point pts[NODES],
-                                 int depth)
+/* ---- spans: pieces without events --------------------------------------- */
+
+/* What a span integration does with its pieces: add them to the run, or
+ * only sum them (a part of a piece that an event needs, the hours between
+ * two depths). */
+typedef struct span_sum {
+    bool accumulate;
+    double k[NQ];
+} span_sum;
+
+/* The most pieces pending at once in a span: one per halving. */
+#define SPAN_STACK 64
+
+/* Integrate [a, b] (inside one curve interval, no event inside) from the
+ * points at both ends, piece by piece: a piece that misses the tolerance
+ * is tried with a larger rule or halved. */
+static lw_status span(engine *e, double a, const lw_point *pa, double b, const lw_point *pb,
+                      span_sum *sum)
 {
-    double k[NQ], g[NQ];
-    gk_sums(a, b, pts, k, g);
-    bool ok = accurate(e, b - a, k, g);
-    if (!isfinite(k[Q_T]))
-        return accept_piece(e, a, b, pts, k, g, ok); /* refuses it: no halving helps */
-    if (!ok && may_halve(e, a, b, depth)) {
-        double m = 0.5 * (a + b);
-        lw_point half[NODES];
-        lw_status st = eval_nodes(e, a, m, half);
-        if (st == LW_OK)
-            st = integrate_nodes(e, a, m, half, depth + 1);
-        if (st == LW_OK)
-            st = eval_nodes(e, m, b, half);
-        if (st == LW_OK)
-            st = integrate_nodes(e, m, b, half, depth + 1);
-        return st;
+    struct {
+        double d;
+        lw_point pt;
+        int depth;
+    } stack[SPAN_STACK];
+    int top = 0, depth = 0, n = nodes_for(e, b - a);
+    lw_point cur = *pa, end = *pb;
+    piece p;
+    while (a < b) {
+        piece_init(&p, a, b, n, &cur, &end);
+        lw_status st = piece_solve(e, &p, true);
+        if (st != LW_OK)
+            return st;
+        piece_sums(&p);
+        bool ok = accurate(e, b - a, p.k, p.err);
+        if (!ok && isfinite(p.k[Q_T])) {
+            int more = 0;
+            if (p.rate < LW_QUAD_RATE_MAX && p.rate > 0.0) {
+                /* each node more adds two degrees: the error falls by r^2 */
+                double worst = 0.0;
+                for (int q = 0; q < NQ; q++) {
+                    int ref = q < Q_LED ? q : Q_DRAWN;
+                    double scale = fmax(fabs(p.k[ref]), e->density[ref] * (b - a));
+                    worst = fmax(worst, p.err[q] / (NODES_AIM * e->opt->rtol * scale + 1e-300));
+                }
+                more = (int)ceil(log(worst) / (-2.0 * log(p.rate)));
+            }
+            learn(e, &p);
+            if (more > 0 && p.n + more <= NODES_MAX && p.n + more - 1 <= 2 * (nodes_for(e, 0.5 * (b - a)) - 1) + 1) {
+                n = p.n + more; /* a larger rule on the same piece */
+                continue;
+            }
+            if (may_halve(e, a, b, depth) && top < SPAN_STACK) {
+                double m = 0.5 * (a + b);
+                stack[top].d = b;
+                stack[top].pt = end;
+                stack[top].depth = ++depth;
+                top++;
+                b = m;
+                if ((st = eval(e, m, &end)) != LW_OK)
+                    return st;
+                n = nodes_for(e, b - a);
+                continue;
+            }
+        }
+        learn(e, &p);
+        if (sum->accumulate) {
+            st = accept_totals(e, a, b, p.k, p.err, ok, p.pt + 1, p.n - 1, p.pt[1].regime);
+            if (st != LW_OK)
+                return st;
+        } else {
+            for (int q = 0; q < NQ; q++)
+                sum->k[q] += p.k[q];
+        }
+        a = b;
+        cur = end;
+        if (top > 0) {
+            top--;
+            b = stack[top].d;
+            end = stack[top].pt;
+            depth = stack[top].depth;
+        }
+        n = nodes_for(e, b - a);
     }
-    return accept_piece(e, a, b, pts, k, g, ok);
+    return LW_OK;
 }
 
-static lw_status integrate_plain(engine *e, double a, double b)
-{
-    lw_point pts[NODES];
-    lw_status st = eval_nodes(e, a, b, pts);
-    if (st == LW_OK)
-        set_density(e, a, b, pts);
-    return st == LW_OK ? integrate_nodes(e, a, b, pts, 0) : st;
-}
+/* ---- the end of a converter --------------------------------------------- */
 
 /* [a, b] ending where a converter goes dark.  At its power limit the pack
  * current goes as the square root of the distance to the limit, which no
  * polynomial rule integrates well; with d = b - (b - a) s^2 the integrand
- * times the Jacobian 2 (b - a) s is smooth in s (and a smooth integrand
- * stays smooth), so the same rule runs on s in [s0, s1], halving in s. */
-static lw_status integrate_to_limit(engine *e, double a, double b, double s0, double s1,
-                                    int depth)
+ * times the Jacobian 2 (b - a) s is smooth in s, so Gauss rules (which
+ * never touch s = 0, the dark end) run on s in [0, 1], halving in s from
+ * the lit end. */
+#define LIMIT_NODES 8
+static lw_status integrate_to_limit(engine *e, double a, double b)
 {
-    lw_point pts[NODES];
-    double f[NODES][NQ];
-    for (int j = 0; j < NODES; j++) {
-        double sj = node_depth(s0, s1, NODES - 1 - j); /* descending s: ascending depth */
-        lw_status st = eval(e, b - (b - a) * sj * sj, &pts[j]);
+    typedef struct s_piece {
+        double s0, s1;
+        int depth;
+    } s_piece;
+    s_piece stack[SPAN_STACK];
+    int top = 0;
+    stack[top++] = (s_piece){0.0, 1.0, 0};
+    const lw_quad_rule *rule = lw_quad_gauss(LIMIT_NODES);
+    bool first = true;
+    while (top > 0 && !e->done) {
+        top--;
+        double s0 = stack[top].s0, s1 = stack[top].s1;
+        int depth = stack[top].depth;
+        lw_point pts[LIMIT_NODES];
+        double f[LIMIT_NODES][NQ];
+        double hs = 0.5 * (s1 - s0);
+        for (int j = 0; j < LIMIT_NODES; j++) {
+            /* descending s: ascending depth */
+            double sj = 0.5 * (s0 + s1) - hs * rule->x[j];
+            lw_status st = eval(e, b - (b - a) * sj * sj, &pts[j]);
+            if (st != LW_OK)
+                return st;
+            integrand(&pts[j], f[j]);
+            for (int q = 0; q < NQ; q++)
+                f[j][q] *= 2.0 * (b - a) * sj;
+        }
+        double k[NQ], g[NQ];
+        /* depth rounds by ulps of b; in s that is ds = dd / (2 (b - a) s) */
+        double s_mid = fmax(0.5 * (s0 + s1), 1e-300);
+        double dround = DEPTH_NOISE * fabs(b) / (2.0 * (b - a) * s_mid);
+        for (int q = 0; q < NQ; q++) {
+            double coef[LIMIT_NODES], lo = f[0][q], hi = lo, big = 0.0;
+            for (int j = 0; j < LIMIT_NODES; j++) {
+                lo = fmin(lo, f[j][q]);
+                hi = fmax(hi, f[j][q]);
+                big = fmax(big, fabs(f[j][q]));
+            }
+            k[q] = hs * lw_quad_sum(rule, &f[0][q], NQ);
+            lw_quad_legendre(rule, &f[0][q], NQ, coef);
+            double noise = VALUE_NOISE * big + (hi - lo) * dround / (s1 - s0);
+            g[q] = hs * lw_quad_estimate_error(rule, coef, noise).error;
+        }
+        if (first) { /* the whole piece: its totals per unit depth */
+            for (int q = 0; q < NQ; q++)
+                e->density[q] = isfinite(k[q]) ? fabs(k[q]) / (b - a) : 0.0;
+            first = false;
+        }
+        bool ok = accurate(e, (b - a) * (s1 * s1 - s0 * s0), k, g);
+        if (!ok && may_halve(e, s0, s1, depth) && top + 2 <= SPAN_STACK) {
+            double m = 0.5 * (s0 + s1);
+            stack[top++] = (s_piece){s0, m, depth + 1};
+            stack[top++] = (s_piece){m, s1, depth + 1};
+            continue;
+        }
+        lw_status st = accept_totals(e, b - (b - a) * s1 * s1,
+                                     s0 > 0 ? b - (b - a) * s0 * s0 : b, k, g, ok, pts,
+                                     LIMIT_NODES, pts[0].regime);
         if (st != LW_OK)
             return st;
-        integrand(&pts[j], f[j]);
-        for (int q = 0; q < NQ; q++)
-            f[j][q] *= 2.0 * (b - a) * sj;
     }
-    double k[NQ], g[NQ];
-    /* depth rounds by ulps of b; in s that is ds = dd / (2 (b - a) s) */
-    double s_mid = fmax(0.5 * (s0 + s1), 1e-300);
-    gk_rule(0.5 * (s1 - s0), DBL_EPSILON * fabs(b) / (2.0 * (b - a) * s_mid), f, k, g);
-    if (depth == 0) /* the whole piece: its totals per unit depth */
-        for (int q = 0; q < NQ; q++)
-            e->density[q] = isfinite(k[q]) ? fabs(k[q]) / (b - a) : 0.0;
-    bool ok = accurate(e, (b - a) * (s1 * s1 - s0 * s0), k, g);
-    if (!ok && may_halve(e, s0, s1, depth)) {
-        double m = 0.5 * (s0 + s1);
-        lw_status st = integrate_to_limit(e, a, b, m, s1, depth + 1);
-        return st == LW_OK ? integrate_to_limit(e, a, b, s0, m, depth + 1) : st;
-    }
-    return accept_piece(e, b - (b - a) * s1 * s1, s0 > 0 ? b - (b - a) * s0 * s0 : b, pts, k, g,
-                        ok);
+    return LW_OK;
 }
+
+/* ---- events at the run's depth ------------------------------------------ */
 
 static void finish(engine *e, lw_end_reason why, const lw_point *pt)
 {
@@ -505,16 +757,17 @@ static void finish(engine *e, lw_end_reason why, const lw_point *pt)
     e->res->end_depth = pt->depth;
     e->res->final = *pt;
     e->done = true;
+    note_point(e, pt);
 }
 
-/* The last operating point the driver held before it went dark at d: walk
- * back from d in growing steps, at most to the not-fired side of the
- * located event. */
 static bool lit(const lw_point *pt)
 {
     return pt->regime != LW_REGIME_DROPOUT && isfinite(pt->dtdd_h);
 }
 
+/* The last operating point the driver held before it went dark at d: walk
+ * back from d in growing steps, at most to the not-fired side of the
+ * located event. */
 static lw_status held_point(engine *e, double d, lw_point *pt)
 {
     lw_status st = eval(e, d, pt);
@@ -530,6 +783,73 @@ static lw_status held_point(engine *e, double d, lw_point *pt)
     return st;
 }
 
+/* Event k fires between nodes j - 1 (not fired) and j (fired) of piece p:
+ * its depth *d and the point there *pt.  The root of the polynomial through
+ * the event function's values at the nodes, then Newton steps on solved
+ * points (the slope from that polynomial, then secants) until a step is
+ * within event_tol; Brent's method on what is left of the bracket when a
+ * step leaves it.  Needs every node lit. */
+static lw_status locate_smooth(engine *e, int k, const piece *p, int j, double *d,
+                               lw_point *pt)
+{
+    double sign = event_sign(e, k, &p->pt[j]), gv[NODES_MAX], coef[NODES_MAX];
+    for (int i = 0; i < p->n; i++)
+        gv[i] = sign * event_g(e, k, &p->pt[i]);
+    double lo = node_depth(p, j - 1), hi = node_depth(p, j), glo = gv[j - 1], ghi = gv[j];
+    e->fire_from = lo;
+    if (!(glo > 0.0)) { /* on the event already (a jump, or rounding after the last) */
+        *d = lo;
+        *pt = p->pt[j - 1];
+        return LW_OK;
+    }
+    lw_quad_legendre(p->rule, gv, 1, coef);
+    const double h = 0.5 * (p->b - p->a), c = 0.5 * (p->a + p->b);
+    const double tol = e->opt->event_tol * (fabs(hi) + 1e-3);
+    double x, slope;
+    if (!lw_legendre_root(coef, p->n, 0.0, (lo - c) / h, (hi - c) / h, &x))
+        x = (lo - c) / h - glo * ((hi - lo) / h) / (ghi - glo);
+    lw_legendre_eval(coef, p->n, x, &slope);
+    slope /= h;
+    double at = fmin(fmax(c + h * x, lo), hi), g_prev = NAN, d_prev = NAN;
+    for (int it = 0; it < POLISH_STEPS; it++) {
+        lw_status st = eval(e, at, pt);
+        if (st != LW_OK)
+            return st;
+        double g = lit(pt) ? sign * event_g(e, k, pt) : NAN;
+        if (!isfinite(g))
+            break;
+        if (g > 0.0)
+            lo = at, glo = g;
+        else
+            hi = at, ghi = g;
+        if (g == 0.0) {
+            *d = at;
+            return LW_OK;
+        }
+        if (isfinite(g_prev) && at != d_prev)
+            slope = (g - g_prev) / (at - d_prev);
+        double step = -g / slope;
+        if (!isfinite(step))
+            break;
+        if (fabs(step) <= tol) {
+            *d = at;
+            return LW_OK;
+        }
+        double next = at + step;
+        if (!(next > lo && next < hi))
+            break;
+        g_prev = g, d_prev = at, at = next;
+    }
+    /* what is left of the bracket, by Brent's method */
+    struct locate_ctx ctx = {e, k, sign, false};
+    lw_status st =
+        lw_root_brent(locate_fn, &ctx, lo, hi, glo, ghi > 0.0 ? 0.0 : ghi,
+                      e->opt->event_tol * (fabs(hi) + 1e-3), e->opt->event_iter_max, d, e->err);
+    if (ctx.failed) /* a solve failed inside: its error, not the root finder's */
+        st = e->err->code ? e->err->code : LW_ENUMERIC;
+    return st == LW_OK ? eval(e, *d, pt) : st;
+}
+
 /* Act on event k located at depth d (the totals already reach d); *pt is
  * the point at d. */
 static lw_status fire(engine *e, int k, double d, lw_point *pt)
@@ -538,15 +858,17 @@ static lw_status fire(engine *e, int k, double d, lw_point *pt)
                                         LW_END_CELL_VOLTAGE, LW_END_DRIVER_DROPOUT};
     lw_status st = LW_OK;
     if (k == EV_DROPOUT) {
-        lw_point held = *pt; /* run_interval ends the lit part where the driver held */
+        lw_point held = *pt; /* the lit part ends where the driver held */
         if (!e->fallback && e->l->drive.fallback_a > 0.0) {
             e->fallback = true;
             st = eval(e, d, pt);
             if (st != LW_OK)
                 return st;
             e->positive[EV_DROPOUT] = pt->regulation_margin > 0.0;
-            if (e->positive[EV_DROPOUT])
+            if (e->positive[EV_DROPOUT]) {
+                note_point(e, &held);
                 return LW_OK;
+            }
         }
         finish(e, LW_END_DRIVER_DROPOUT, &held);
         return LW_OK;
@@ -561,38 +883,13 @@ static lw_status fire(engine *e, int k, double d, lw_point *pt)
         break;
     case EV_KINK:
     default:
-        if (k == EV_KNOT)
-            knot_cross(e);
+        if (is_band(k))
+            band_cross(e, k);
         else
             e->positive[k] = !e->positive[k];
         break;
     }
     return LW_OK;
-}
-
-/* Time (h) from a to b, to the run's tolerance, without touching the totals:
- * for an event that needs its time but does not break the integration. */
-static lw_status time_integral(engine *e, double a, double b, int depth, double *t_h)
-{
-    if (!(b > a))
-        return LW_OK;
-    lw_point pts[NODES];
-    lw_status st = eval_nodes(e, a, b, pts);
-    if (st != LW_OK)
-        return st;
-    double k[NQ], err[NQ];
-    gk_sums(a, b, pts, k, err);
-    if (!isfinite(k[Q_T])) { /* dark somewhere in [a, b]: no time reaches b */
-        *t_h = INFINITY;
-        return LW_OK;
-    }
-    if (err[Q_T] <= e->opt->rtol * fabs(k[Q_T]) || !may_halve(e, a, b, depth)) {
-        *t_h += k[Q_T];
-        return LW_OK;
-    }
-    double m = 0.5 * (a + b);
-    st = time_integral(e, a, m, depth + 1, t_h);
-    return st == LW_OK ? time_integral(e, m, b, depth + 1, t_h) : st;
 }
 
 /* After the converter falls back to its low level the output has jumped:
@@ -602,14 +899,15 @@ static lw_status time_integral(engine *e, double a, double b, int depth, double 
  * same jump ends the run. */
 static lw_status settle(engine *e, double d, lw_point *pt)
 {
-    static const int order[NEV] = {EV_HALF,    EV_RELATIVE, EV_FLOOR,      EV_CELL_V,
-                                   EV_DROPOUT, EV_PEUKERT,  EV_REGULATION, EV_KNOT};
+    static const int order[NEV] = {EV_HALF,       EV_RELATIVE, EV_FLOOR,      EV_CELL_V,
+                                   EV_DROPOUT,    EV_PEUKERT,  EV_REGULATION, EV_KNOT,
+                                   EV_EFFICIENCY, EV_FOLDBACK};
     for (int i = 0; i < NEV && !e->done; i++) {
         int k = order[i];
         if (!e->active[k])
             continue;
-        if (k == EV_KNOT) {
-            knot_interval(e, pt->led_a);
+        if (is_band(k)) {
+            band_set(e, k, band_value(k, pt));
             continue;
         }
         if (kind_of(k) == EV_KINK) {
@@ -625,133 +923,270 @@ static lw_status settle(engine *e, double d, lw_point *pt)
     return LW_OK;
 }
 
-/* The point at d where a finished piece ended: reused when the piece just
- * solved it, solved otherwise. */
-static lw_status point_after(engine *e, double d, lw_point *pt)
+/* The first event among the nodes of p: its kind (-1 none), depth and the
+ * point there.  Events are judged node by node; among those that fire
+ * between the same two nodes the earliest located wins.  At a dark node
+ * the other events are judged at the last point the driver held before it
+ * went dark: a cutoff crossed on the way there comes first. */
+static lw_status first_event(engine *e, const piece *p, int *first_k, double *d_star,
+                             lw_point *at)
 {
-    if (e->end_d == d) {
-        *pt = e->end_pt;
-        return LW_OK;
-    }
-    return eval(e, d, pt);
-}
-
-/* Integrate [a, b] (inside one interval of the cell curve), stopping at the
- * first stop event.  pa is the point at a. */
-static lw_status run_interval(engine *e, double a, double b, lw_point pa, int depth)
-{
-    /* each pass ends at an event or at b; a model has a handful of events,
-     * so the cap only guards against an event that keeps re-firing */
-    for (int pass = 0; !e->done && a < b; pass++) {
-        if (pass == LW_EVENTS_PER_INTERVAL_MAX)
-            return lw_error_set(e->err, LW_ENUMERIC, NULL, 0,
-                                "too many events between depths %.6g and %.6g", a, b);
-        lw_point pts[NODES + 1];
-        lw_status st = eval_nodes(e, a, b, pts);
-        if (st == LW_OK)
-            st = eval(e, b, &pts[NODES]);
-        if (st != LW_OK)
-            return st;
-        /* earliest sample interval in which any active event fires; a
-         * record event (50 %) is timed without breaking the integration,
-         * and the scan repeats on the same nodes without it */
-        int first_k;
-        double d_star;
-    rescan:
-        first_k = -1;
-        d_star = b;
-        const lw_point *prev = &pa;
-        double d_prev = a;
-        for (int j = 0; j <= NODES && first_k < 0; j++) {
-            double dj = j < NODES ? node_depth(a, b, j) : b;
-            /* at a dark node the other events are judged at the last point
-             * the driver held before it went dark: a cutoff crossed on the
-             * way there comes first */
-            const lw_point *node = &pts[j];
-            double dn = dj;
-            lw_point held;
-            if (fired(e, EV_DROPOUT, node)) {
-                double dk;
-                st = locate(e, EV_DROPOUT, d_prev, dj, prev, node, &dk);
-                if (st == LW_OK)
-                    st = held_point(e, dk, &held);
-                if (st != LW_OK)
-                    return st;
-                first_k = EV_DROPOUT;
-                d_star = dk;
-                node = &held;
-                dn = held.depth;
-            }
-            for (int k = 0; k < NEV; k++) {
-                if (k == EV_DROPOUT || !fired(e, k, node) || !(dn > d_prev))
-                    continue;
-                double dk;
+    *first_k = -1;
+    bool all_lit = true;
+    for (int j = 0; j < p->n; j++)
+        all_lit = all_lit && lit(&p->pt[j]) && isfinite(p->f[j][Q_LMH]);
+    for (int j = 1; j < p->n && *first_k < 0; j++) {
+        const lw_point *prev = &p->pt[j - 1], *node = &p->pt[j];
+        double d_prev = node_depth(p, j - 1), dn = node_depth(p, j);
+        lw_point held;
+        lw_status st;
+        if (fired(e, EV_DROPOUT, node)) {
+            double dk;
+            st = locate(e, EV_DROPOUT, d_prev, dn, prev, node, &dk);
+            if (st == LW_OK)
+                st = held_point(e, dk, &held);
+            if (st != LW_OK)
+                return st;
+            *first_k = EV_DROPOUT;
+            *d_star = held.depth;
+            *at = held;
+            node = &held;
+            dn = held.depth;
+        }
+        for (int k = 0; k < NEV; k++) {
+            if (k == EV_DROPOUT || !fired(e, k, node) || !(dn > d_prev))
+                continue;
+            double dk;
+            lw_point pk;
+            if (all_lit && *first_k < 0) {
+                st = locate_smooth(e, k, p, j, &dk, &pk);
+            } else {
                 st = locate(e, k, d_prev, dn, prev, node, &dk);
-                if (st != LW_OK)
-                    return st;
-                if (first_k < 0 || dk < d_star) {
-                    first_k = k;
-                    d_star = dk;
-                }
+                if (st == LW_OK)
+                    st = held_point(e, dk, &pk);
+                if (st == LW_OK)
+                    dk = pk.depth;
             }
-            prev = &pts[j];
-            d_prev = dj;
-        }
-        if (first_k >= 0 && kind_of(first_k) == EV_RECORD) {
-            double t_part = 0.0;
-            st = time_integral(e, a, d_star, 0, &t_part);
             if (st != LW_OK)
                 return st;
-            e->res->time_to_half_h = e->tot[Q_T] + t_part;
-            e->active[first_k] = false;
-            goto rescan;
-        }
-        if (first_k < 0) {
-            if (!may_halve(e, a, b, depth))
-                return integrate_nodes(e, a, b, pts, e->opt->max_halvings);
-            /* accept if the error estimate allows; otherwise halve with events */
-            double kk[NQ], gg[NQ];
-            if (depth == 0)
-                set_density(e, a, b, pts);
-            gk_sums(a, b, pts, kk, gg);
-            if (accurate(e, b - a, kk, gg)) {
-                e->end_d = b; /* the next interval starts from this point */
-                e->end_pt = pts[NODES];
-                return integrate_nodes(e, a, b, pts, 0);
+            if (*first_k < 0 || dk < *d_star) {
+                *first_k = k;
+                *d_star = dk;
+                *at = pk;
             }
-            double m = 0.5 * (a + b);
-            lw_point pm;
-            st = run_interval(e, a, m, pa, depth + 1);
-            if (st == LW_OK && !e->done)
-                st = point_after(e, m, &pm);
-            if (st != LW_OK || e->done)
-                return st;
-            return run_interval(e, m, b, pm, depth + 1);
         }
-        /* end the lit part where the light is still lit: the driver still
-         * held its level, or the current had not yet reached zero */
-        lw_point at;
-        st = held_point(e, d_star, &at);
-        if (st != LW_OK)
-            return st;
-        d_star = at.depth;
-        if (d_star > a) {
-            st = first_k == EV_DROPOUT ? integrate_to_limit(e, a, d_star, 0.0, 1.0, 0)
-                                       : integrate_plain(e, a, d_star);
-            if (st != LW_OK)
-                return st;
-        }
-        pa = at;
-        st = fire(e, first_k, d_star, &pa);
-        if (st == LW_OK && !e->done && first_k == EV_DROPOUT)
-            st = settle(e, d_star, &pa);
-        if (st != LW_OK)
-            return st;
-        a = d_star;
     }
     return LW_OK;
 }
 
+/* The totals of p over [a, d] (d inside the piece) from the polynomials
+ * through its nodes, when they are accurate enough for it: the piece met
+ * the tolerance as a whole (so its integrands are smooth to its end) and
+ * what the polynomials leave out, integrated over [a, d], is within the
+ * tolerance too.  False otherwise. */
+static bool piece_part(const engine *e, const piece *p, double d, double k[NQ], double g[NQ])
+{
+    if (!accurate(e, p->b - p->a, p->k, p->err))
+        return false;
+    const double h = 0.5 * (p->b - p->a), x = (2.0 * d - p->a - p->b) / (p->b - p->a);
+    for (int q = 0; q < NQ; q++) {
+        k[q] = h * lw_legendre_integral(p->coef[q], p->n, x);
+        g[q] = LW_QUAD_SAFETY * p->beyond[q];
+    }
+    return accurate(e, d - p->a, k, g);
+}
+
+/* The part [a, d] of piece p added to the run: from its polynomials when
+ * they are accurate enough, else integrated afresh from the points at both
+ * ends (pd at d). */
+static lw_status accept_part(engine *e, const piece *p, double d, const lw_point *pd,
+                             bool smooth_past_d)
+{
+    double k[NQ], g[NQ];
+    if (!(d > p->a))
+        return LW_OK;
+    if (smooth_past_d && piece_part(e, p, d, k, g)) {
+        int inside = 0;
+        while (inside + 1 < p->n && node_depth(p, inside + 1) <= d)
+            inside++;
+        /* a stop leaves the regime as it was: the point at d has it */
+        return accept_totals(e, p->a, d, k, g, true, p->pt + 1, inside, pd->regime);
+    }
+    span_sum sum = {true, {0}};
+    return span(e, p->a, &p->pt[0], d, pd, &sum);
+}
+
+/* The time from p's start to d: from its polynomial when accurate enough,
+ * else integrated afresh. */
+static lw_status time_part(engine *e, const piece *p, double d, const lw_point *pd, double *t_h)
+{
+    double k[NQ], g[NQ];
+    if (piece_part(e, p, d, k, g)) {
+        *t_h = k[Q_T];
+        return LW_OK;
+    }
+    span_sum sum = {false, {0}};
+    lw_status st = d > p->a ? span(e, p->a, &p->pt[0], d, pd, &sum) : LW_OK;
+    *t_h = sum.k[Q_T];
+    return st;
+}
+
+/* Is p's only infinite integrand at its end b, where the drive is still
+ * lit (the cells' rate of discharge vanishes there)? */
+static bool singular_end(const piece *p)
+{
+    for (int j = 0; j + 1 < p->n; j++)
+        if (!isfinite(p->f[j][Q_T]))
+            return false;
+    return p->pt[p->n - 1].regime != LW_REGIME_DROPOUT;
+}
+
+/* Integrate [A, B] (inside one interval of the cell curve), stopping at the
+ * first stop event.  *pa is the point at A; on return, the point where the
+ * integration stopped (at B unless the run ended). */
+static lw_status run_interval(engine *e, double A, double B, lw_point *pa_io)
+{
+    struct {
+        double d;
+        lw_point pt;
+        int depth;
+    } stack[SPAN_STACK];
+    int top = 0, depth = 0;
+    double a = A, b = B;
+    lw_point pa = *pa_io, pb;
+    bool have_b = false, density_set = false;
+    int n = nodes_for(e, b - a);
+    piece p;
+    /* each pass ends at an event, a refinement or an accepted piece; a model
+     * has a handful of events, so the cap only guards against one that keeps
+     * re-firing */
+    for (int pass = 0; !e->done && a < B; pass++) {
+        if (pass == LW_EVENTS_PER_INTERVAL_MAX)
+            return lw_error_set(e->err, LW_ENUMERIC, NULL, 0,
+                                "too many events between depths %.6g and %.6g", A, B);
+        piece_init(&p, a, b, n, &pa, have_b ? &pb : NULL);
+        lw_status st = piece_solve(e, &p, have_b);
+        if (st != LW_OK)
+            return st;
+        pb = p.pt[p.n - 1];
+        have_b = true;
+        piece_sums(&p);
+        if (!density_set) {
+            for (int q = 0; q < NQ; q++)
+                e->density[q] = isfinite(p.k[q]) ? fabs(p.k[q]) / (b - a) : 0.0;
+            density_set = true;
+        }
+        int k;
+        double d_star = b;
+        lw_point at = pb;
+        for (;;) { /* a record event (50 %) is timed, and the nodes scanned again */
+            st = first_event(e, &p, &k, &d_star, &at);
+            if (st != LW_OK)
+                return st;
+            if (k < 0 || kind_of(k) != EV_RECORD)
+                break;
+            learn(e, &p); /* smooth across the 50 % mark */
+            double t_part = 0.0;
+            if ((st = time_part(e, &p, d_star, &at, &t_part)) != LW_OK)
+                return st;
+            e->res->time_to_half_h = e->tot[Q_T] + t_part;
+            e->active[k] = false;
+        }
+        if (k < 0 && !isfinite(p.k[Q_T]) && singular_end(&p)) {
+            /* the rate vanishes at the capacity end itself (cells that only
+             * self-discharge): the open rule of a converter's end never
+             * touches it */
+            if ((st = integrate_to_limit(e, a, b)) != LW_OK)
+                return st;
+            a = b;
+            pa = pb;
+            if (top > 0) {
+                top--;
+                b = stack[top].d;
+                pb = stack[top].pt;
+                depth = stack[top].depth;
+            } else {
+                b = B;
+            }
+            n = nodes_for(e, b - a);
+            continue;
+        }
+        if (k < 0) {
+            bool ok = accurate(e, b - a, p.k, p.err);
+            learn(e, &p);
+            if (!ok && isfinite(p.k[Q_T])) {
+                int more = 0;
+                if (p.rate < LW_QUAD_RATE_MAX && p.rate > 0.0) {
+                    double worst = 0.0;
+                    for (int q = 0; q < NQ; q++) {
+                        int ref = q < Q_LED ? q : Q_DRAWN;
+                        double scale = fmax(fabs(p.k[ref]), e->density[ref] * (b - a));
+                        worst = fmax(worst,
+                                     p.err[q] / (NODES_AIM * e->opt->rtol * scale + 1e-300));
+                    }
+                    more = (int)ceil(log(worst) / (-2.0 * log(p.rate)));
+                }
+                if (more > 0 && p.n + more <= NODES_MAX &&
+                    p.n + more - 1 <= 2 * (nodes_for(e, 0.5 * (b - a)) - 1) + 1) {
+                    n = p.n + more; /* a larger rule on the same piece */
+                    continue;
+                }
+                if (may_halve(e, a, b, depth) && top < SPAN_STACK) {
+                    stack[top].d = b;
+                    stack[top].pt = pb;
+                    stack[top].depth = ++depth;
+                    top++;
+                    b = 0.5 * (a + b);
+                    have_b = false;
+                    n = nodes_for(e, b - a);
+                    continue;
+                }
+            }
+            st = accept_totals(e, a, b, p.k, p.err, ok, p.pt + 1, p.n - 1, p.pt[1].regime);
+            if (st != LW_OK)
+                return st;
+            a = b;
+            pa = pb;
+            if (top > 0) {
+                top--;
+                b = stack[top].d;
+                pb = stack[top].pt;
+                depth = stack[top].depth;
+            } else {
+                b = B;
+                have_b = a >= B;
+            }
+            n = nodes_for(e, b - a);
+            continue;
+        }
+        /* an event at d_star: the lit part of [a, d_star] first (a stop
+         * leaves the integrands smooth across it: the piece is learnt from) */
+        if (kind_of(k) == EV_STOP && k != EV_DROPOUT)
+            learn(e, &p);
+        if (d_star > a) {
+            if (k == EV_DROPOUT)
+                st = integrate_to_limit(e, a, d_star);
+            else
+                st = accept_part(e, &p, d_star, &at, kind_of(k) == EV_STOP);
+            if (st != LW_OK)
+                return st;
+        }
+        bool fell_back = k == EV_DROPOUT && !e->fallback;
+        st = fire(e, k, d_star, &at);
+        if (st == LW_OK && !e->done && k == EV_DROPOUT)
+            st = settle(e, d_star, &at);
+        if (st != LW_OK)
+            return st;
+        a = d_star;
+        pa = at;
+        e->d_now = a;
+        if (fell_back) /* the drive changed: the points ahead are solved again */
+            have_b = false;
+        n = nodes_for(e, b - a);
+    }
+    *pa_io = pa;
+    return LW_OK;
+}
 lw_run_options lw_run_options_default(void)
 {
     return (lw_run_options){.rtol = 1e-10,
@@ -837,67 +1272,125 @@ static void set_warnings(const lw_light *l, lw_result *r)
         r->warnings |= LW_WARN_REGULATOR_HOT;
 }
 
-/* Time (h) from depth a to b >= a, split at the cell curve's points, each
- * part to the run's tolerance (the search-mode solve finds the interval). */
-static lw_status time_between(engine *e, double a, double b, double *t_h)
+
+/* ---- time between depths, the 30-s point -------------------------------- */
+
+/* Hours from depth a to b >= a, split at the pack's curve knots, each
+ * part integrated to the run's tolerance from its end points (*pb, the
+ * point at b, given; the search-mode solve finds the curve interval). */
+static lw_status hours_between(engine *e, double a, double b, const lw_point *pa,
+                               const lw_point *pb, double *t_h)
 {
     size_t saved = e->seg;
     e->seg = SIZE_MAX;
     *t_h = 0.0;
     lw_status st = LW_OK;
+    lw_point cur = *pa;
     for (double x = a; st == LW_OK && x < b;) {
         double end = fmin(b, lw_light_knot_above(e->l, x));
         if (!(end > x))
             end = b; /* past the last knot */
-        st = time_integral(e, x, end, 0, t_h);
+        lw_point pe;
+        if (end == b)
+            pe = *pb;
+        else if ((st = eval(e, end, &pe)) != LW_OK)
+            break;
+        if (!lit(&cur) || !lit(&pe)) {
+            *t_h = INFINITY; /* dark on the way: no time reaches b */
+            break;
+        }
+        span_sum sum = {false, {0}};
+        st = span(e, x, &cur, end, &pe, &sum);
+        *t_h += sum.k[Q_T];
         x = end;
+        cur = pe;
     }
     e->seg = saved;
     return st;
 }
 
-/* Three-point Gauss-Legendre time over a short interval: exact for
- * quintics, so for the Newton corrections below (far shorter than any
- * curve interval) its error is below rounding. */
-static lw_status time_short(engine *e, double a, double b, double *t_h)
+/* The 30 s after switch-on on one smooth stretch: a 4-node Lobatto rule
+ * on [d0, d1], d1 a little past the constant-rate guess, gives dt/dd as a
+ * cubic; the depth where its integral reaches 30 s is the 30-s point, when
+ * the rule's estimate and the cubic's own error are within the tolerance
+ * there.  Four solves where it applies (d1's three nodes and the point
+ * itself); false when it does not (a curve knot or an event in the way, a
+ * rate that changes fast). */
+#define T30_MARGIN 1.1 /* d1 past the guess: the rate falls by less than 10 % in 30 s */
+static lw_status t30_smooth(engine *e, const lw_point *p0, lw_point *p30, double *d30,
+                            bool *done)
 {
-    static const double x3 = 0.774596669241483377035853079956480, w0 = 8.0 / 9.0,
-                        w1 = 5.0 / 9.0;
-    double c = 0.5 * (a + b), h = 0.5 * (b - a), sum = 0.0;
-    const double xs[3] = {c - h * x3, c, c + h * x3}, ws[3] = {w1, w0, w1};
-    for (int j = 0; j < 3; j++) {
-        lw_point pt;
-        lw_status st = eval(e, xs[j], &pt);
-        if (st != LW_OK)
-            return st;
-        sum += ws[j] * pt.dtdd_h;
+    const double t30_h = 30.0 / 3600.0, d0 = e->d0;
+    *done = false;
+    double d1 = d0 + T30_MARGIN * t30_h / p0->dtdd_h;
+    if (!(d1 < lw_light_knot_above(e->l, d0)) || !(d1 < lw_light_depth_end(e->l)))
+        return LW_OK;
+    piece p;
+    piece_init(&p, d0, d1, NODES_MIN, p0, NULL);
+    lw_status st = piece_solve(e, &p, false);
+    if (st != LW_OK)
+        return st;
+    for (int j = 0; j < p.n; j++)
+        if (!lit(&p.pt[j]) || !isfinite(p.f[j][Q_T]))
+            return LW_OK;
+    piece_sums(&p);
+    const double h = 0.5 * (d1 - d0);
+    /* the cubic's time error moves the 30-s depth by slack / (dt/dd); what
+     * that does to the output there is what must stay within the tolerance */
+    double slack = LW_QUAD_SAFETY * p.beyond[Q_T] + p.err[Q_T];
+    double dlnf = fabs(p.pt[p.n - 1].flux_lm - p0->flux_lm) / (d1 - d0) / p0->flux_lm;
+    double dd = slack / fmin(p.f[0][Q_T], p.f[p.n - 1][Q_T]);
+    if (!(dd * dlnf <= e->opt->rtol && dd <= 1e-6 * (d1 - d0)) || p.k[Q_T] < t30_h)
+        return LW_OK;
+    /* the integral of the cubic from -1 rises through t30 / h once */
+    double lo = -1.0, hi = 1.0, x = 2.0 / T30_MARGIN - 1.0;
+    for (int it = 0; it < LW_T30_ITER_MAX; it++) {
+        double f = h * lw_legendre_integral(p.coef[Q_T], p.n, x) - t30_h;
+        double slope = h * lw_legendre_eval(p.coef[Q_T], p.n, x, NULL);
+        if (f < 0.0)
+            lo = x;
+        else
+            hi = x;
+        double next = slope > 0.0 ? x - f / slope : 0.5 * (lo + hi);
+        if (!(next > lo && next < hi))
+            next = 0.5 * (lo + hi);
+        bool stop = fabs(next - x) <= 4.0 * DBL_EPSILON || hi - lo <= 4.0 * DBL_EPSILON;
+        x = next;
+        if (stop)
+            break;
     }
-    *t_h = h * sum;
+    *d30 = d0 + h * (x + 1.0);
+    if ((st = eval(e, *d30, p30)) != LW_OK)
+        return st;
+    *done = lit(p30);
     return LW_OK;
 }
 
-/* The point 30 s after switch-on (the FL 1 reference): the depth solving
- * t(d) = 30 s, by Newton's method on the run's own quadrature (dt/dd is
- * the integrand, so each step is exact to second order), safeguarded by
- * bisection.  A light that goes dark or empty before 30 s has no 30-s
- * point: *p30 is then the switch-on point. */
+/* The point 30 s after switch-on (the FL 1 reference): t30_smooth where it
+ * applies; otherwise the depth solving t(d) = 30 s by Newton's method on
+ * the run's own quadrature (dt/dd is the integrand, so each step is exact
+ * to second order), safeguarded by bisection.  A light that goes dark or
+ * empty before 30 s has no 30-s point: *p30 is then the switch-on point. */
 static lw_status point_at_30s(engine *e, const lw_point *p0, lw_point *p30, double *d30)
 {
     const double t30_h = 30.0 / 3600.0;
+    bool done;
+    lw_status st = t30_smooth(e, p0, p30, d30, &done);
+    if (st != LW_OK || done)
+        return st;
     double lo = e->d0, hi = 1.0, d = fmin(1.0, e->d0 + t30_h / p0->dtdd_h);
     double t_prev = 0.0, d_prev = e->d0;
+    lw_point p_prev = *p0;
     *p30 = *p0;
     *d30 = e->d0;
     for (int it = 0; it < LW_T30_ITER_MAX; it++) {
         lw_point pt;
-        lw_status st = eval(e, d, &pt);
-        if (st != LW_OK)
+        if ((st = eval(e, d, &pt)) != LW_OK)
             return st;
         double dt = 0.0;
         if (isfinite(pt.dtdd_h))
-            st = fabs(d - d_prev) <= 1e-3 * (d_prev - e->d0)
-                     ? time_short(e, fmin(d, d_prev), fmax(d, d_prev), &dt)
-                     : time_between(e, fmin(d, d_prev), fmax(d, d_prev), &dt);
+            st = d >= d_prev ? hours_between(e, d_prev, d, &p_prev, &pt, &dt)
+                             : hours_between(e, d, d_prev, &pt, &p_prev, &dt);
         if (st != LW_OK)
             return st;
         double t = d >= d_prev ? t_prev + dt : t_prev - dt;
@@ -908,6 +1401,7 @@ static lw_status point_at_30s(engine *e, const lw_point *p0, lw_point *p30, doub
         }
         t_prev = t;
         d_prev = d;
+        p_prev = pt;
         double f = t - t30_h;
         if (f < 0.0)
             lo = d;
@@ -938,7 +1432,12 @@ static void init_events(engine *e, const lw_point *p0)
     e->active[EV_DROPOUT] = l->drive.type == LW_DRIVE_CONVERTER;
     e->active[EV_REGULATION] = l->drive.type == LW_DRIVE_LINEAR_CC;
     e->active[EV_KNOT] = l->led.model == LW_LED_TABLE || l->led.flux;
-    knot_interval(e, p0->led_a);
+    e->active[EV_EFFICIENCY] = l->drive.type == LW_DRIVE_CONVERTER && l->drive.efficiency;
+    /* a body at its balance under foldback: the factor's corners are kinks */
+    e->active[EV_FOLDBACK] = lw_thermal_has_foldback(&l->thermal);
+    for (int k = 0; k < NEV; k++)
+        if (is_band(k) && e->active[k])
+            band_set(e, k, band_value(k, p0));
     if (c->peukert > 1.0) {
         e->kink_a = c->rated_a * pow(c->capacity_ah / c->max_capacity_ah, 1.0 / (c->peukert - 1.0));
         e->active[EV_PEUKERT] = true;
@@ -962,14 +1461,10 @@ static lw_status run_body(engine *e, lw_point p0)
         e->seg = lw_interp_find(curve, a);
         if (e->seg + 2 >= curve->n && !lw_light_has_spread(e->l))
             b = end;
-        lw_status st = run_interval(e, a, b, pa, 0);
+        lw_status st = run_interval(e, a, b, &pa);
         if (st != LW_OK)
             return st;
-        if (!e->done) {
-            a = b;
-            if ((st = point_after(e, a, &pa)) != LW_OK)
-                return st;
-        }
+        a = b;
     }
     if (!e->done)
         finish(e, LW_END_CAPACITY, &pa);
@@ -997,7 +1492,7 @@ static lw_status fresh_reference(const engine *e, double *flux_lm)
     w.pack.ambient_c = LW_FRESH_REFERENCE_C;
     lw_light_update_factors(&w, NULL);
     engine f = {.l = &w, .opt = e->opt, .res = e->res, .err = e->err, .seg = SIZE_MAX,
-                .end_d = -1, .d0 = 0.0};
+                .d0 = 0.0};
     lw_point p0, p30;
     double d30;
     lw_status st = start_point(&f, &p0);
@@ -1020,8 +1515,7 @@ static lw_status start_run(engine *e, lw_point *p0)
     if (st != LW_OK)
         return st;
     res->initial = *p0;
-    res->peak_resistor_w = p0->p_res_peak_w;
-    lw_run_note_resistor(e->l, p0, res);
+    note_point(e, p0);
     e->d_now = e->d0;
     e->floor_lm = fmax(l->cutoff.flux_lm, e->opt->visible_lm);
     if (e->d0 >= lw_light_depth_end(l)) {
@@ -1040,6 +1534,8 @@ static lw_status start_run(engine *e, lw_point *p0)
     st = point_at_30s(e, p0, &p30, &res->depth_30s);
     if (st != LW_OK)
         return st;
+    if (lit(&p30))
+        note_point(e, &p30);
     res->flux_30s_lm = p30.flux_lm > 0.0 ? p30.flux_lm : p0->flux_lm;
     res->junction_30s_c = p30.flux_lm > 0.0 ? p30.temps.junction_c : p0->temps.junction_c;
     e->flux_ref = res->flux_30s_lm;
@@ -1059,16 +1555,16 @@ lw_status lw_run(const lw_light *light, const lw_run_options *opt, lw_result *re
     if (!(opt->rtol >= 1e-14 && opt->rtol <= 1e-3) || opt->max_halvings < 0 ||
         opt->max_halvings > 60 || !(opt->start_depth >= 0.0 && opt->start_depth <= 1.0) ||
         !(opt->visible_lm >= 0.0) || !(opt->event_tol >= 1e-16 && opt->event_tol <= 1e-6) ||
-        opt->event_iter_max < 10 || opt->event_iter_max > 10000 || opt->max_solves < 100)
+        opt->event_iter_max < 10 || opt->event_iter_max > 10000 || opt->max_solves < 10)
         return lw_error_set(err, LW_EINPUT, NULL, 0,
                             "run options: rtol must be 1e-14 to 1e-3, max_halvings 0 to 60, "
                             "start_depth 0 to 1, visible_lm >= 0, event_tol 1e-16 to 1e-6, "
-                            "event_iter_max 10 to 10000, max_solves >= 100");
+                            "event_iter_max 10 to 10000, max_solves >= 10");
     res->time_to_half_h = NAN;
     res->flux_30s_lm = res->flux_ref_lm = NAN;
     res->junction_30s_c = res->peak_junction_c = res->peak_body_c = res->peak_body_h = NAN;
     res->min_weak_cell_v = INFINITY;
-    engine e = {.l = light, .opt = opt, .res = res, .err = err, .seg = SIZE_MAX, .end_d = -1};
+    engine e = {.l = light, .opt = opt, .res = res, .err = err, .seg = SIZE_MAX};
     e.d0 = fmin(1.0, fmax(opt->start_depth, lw_light_stored_depth(light)));
     res->start_depth = e.d0;
     res->depth_30s = e.d0;
@@ -1120,17 +1616,6 @@ lw_status lw_run(const lw_light *light, const lw_run_options *opt, lw_result *re
 
 /* ---- time between two depths ------------------------------------------- */
 
-static double time_over(engine *e, double a, double b, lw_status *st)
-{
-    lw_point pts[NODES];
-    *st = eval_nodes(e, a, b, pts);
-    if (*st != LW_OK)
-        return 0.0;
-    double k[NQ], g[NQ];
-    gk_sums(a, b, pts, k, g);
-    return k[Q_T];
-}
-
 lw_status lw_run_hours_between(const lw_light *light, bool fallback, double d0, double d1,
                                double *hours, lw_error *err)
 {
@@ -1138,9 +1623,14 @@ lw_status lw_run_hours_between(const lw_light *light, bool fallback, double d0, 
     lw_result scratch = {0};
     engine e = {.l = light, .opt = &opt, .res = &scratch, .err = err, .seg = SIZE_MAX,
                 .fallback = fallback};
-    lw_status st;
-    double h = time_over(&e, d0, d1, &st);
+    lw_point p0, p1;
+    lw_status st = eval(&e, d0, &p0);
     if (st == LW_OK)
-        *hours = h;
+        st = eval(&e, d1, &p1);
+    span_sum sum = {false, {0}};
+    if (st == LW_OK && d1 > d0)
+        st = span(&e, d0, &p0, d1, &p1, &sum);
+    if (st == LW_OK)
+        *hours = sum.k[Q_T];
     return st;
 }
