@@ -30,6 +30,14 @@ typedef struct lw_case {
     bool has_light;
 } lw_case;
 
+/* Fewer cases than this run on the calling thread alone: a run takes some
+ * tens of microseconds, a thread start and join a similar time, so a small
+ * batch gains nothing from threads (a judgement, no measurement). */
+#define LW_BATCH_THREADED_MIN 16
+
+/* Run one case as lw_batch_run runs each (on the calling thread). */
+void lw_batch_run_case(const lw_profile *base, lw_case *c, const char *origin);
+
 /* Run every case: its profile by lw_profile_derive (messages about an
  * override name "ORIGIN KEY"), then lw_run.  threads <= 0: all cores.  Each
  * case's status says whether it ran. */

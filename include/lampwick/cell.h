@@ -33,6 +33,7 @@
 
 #include <stdbool.h>
 #include "interp.h"
+#include "number.h"
 
 #define LW_NAME_MAX 64
 
@@ -78,6 +79,9 @@ typedef struct lw_cell {
     lw_interp *res;                 /* depth fraction -> internal ohm, > 0 */
     lw_interp *temp_capacity;       /* deg C -> capacity factor, or NULL */
     lw_interp *temp_resistance;     /* deg C -> resistance factor, or NULL */
+    lw_number_memo memo_rated;      /* ln rated_a (made by lw_cell_prepare) */
+    double memo_sd_pct, memo_sd_per_h; /* self-discharge: the rate per hour made
+                                      for the monthly figure memo_sd_pct */
 } lw_cell;
 
 /* Drop the tables a cell holds (it does not free the struct itself). */
@@ -85,6 +89,10 @@ void lw_cell_clear(lw_cell *cell);
 
 /* Deep-enough copy: the tables are shared by reference. */
 void lw_cell_copy(lw_cell *dst, const lw_cell *src);
+
+/* Keep the derived constants every solve needs (a stale one, after a field
+ * changed, costs time only). */
+void lw_cell_prepare(lw_cell *cell);
 
 /* Capacity and resistance factors at ambient_c (1 without a table; clamped
  * to the table's end values outside its range). *outside is set true when
@@ -96,6 +104,9 @@ void lw_cell_temperature_factors(const lw_cell *cell, double ambient_c, double *
  * against the rated point, capped at the low-drain capacity, times cap_factor.
  * At ic_a == 0 it is the cap. */
 double lw_cell_capacity_ah(const lw_cell *cell, double ic_a, double cap_factor);
+
+/* The same with ln(ic_a) given (NAN: not known), for the power law. */
+double lw_cell_capacity_ah_at(const lw_cell *cell, double ic_a, double log_ic, double cap_factor);
 
 /* Does the cell follow the kinetic model? */
 bool lw_cell_is_kinetic(const lw_cell *cell);

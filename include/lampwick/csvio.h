@@ -76,12 +76,16 @@ static inline double lw_csv_at(const lw_csv *csv, size_t row, int col)
 /* ---- writing ---- */
 
 typedef struct lw_csvw {
-    FILE *fp;
+    FILE *fp;     /* the file written, or NULL: the memory below */
+    char *buf;    /* lw_csvw_init_mem: what was written, NUL-terminated (free()) */
+    size_t len, cap;
     int fields;   /* fields written on the current row */
-    bool failed;  /* a write failed */
+    bool failed;  /* a write failed (or memory ran out) */
 } lw_csvw;
 
 void lw_csvw_init(lw_csvw *w, FILE *fp);
+/* Write into memory (w->buf, w->len) instead of a file. */
+void lw_csvw_init_mem(lw_csvw *w);
 void lw_csvw_text(lw_csvw *w, const char *s);
 /* A number in full precision (the shortest text that reads back exactly);
  * NaN and infinities are written as an empty field. */

@@ -41,6 +41,7 @@
 
 #include <stdbool.h>
 #include "interp.h"
+#include "number.h"
 
 typedef enum lw_led_model {
     LW_LED_CONSTANT, LW_LED_LINEAR, LW_LED_SHOCKLEY, LW_LED_TABLE, LW_LED_MODEL_COUNT
@@ -77,10 +78,15 @@ typedef struct lw_led {
     double max_junction_c;  /* maximum junction temperature, deg C; NAN: not given */
     double t_junction_c;    /* junction temperature the model is evaluated at, deg C
                                (set by the light: lw_light_update_factors) */
+    lw_number_memo memo_is, memo_flux_i; /* ln saturation_a, ln flux_current_a
+                               (made by lw_led_prepare; a stale one costs time only) */
 } lw_led;
 
 void lw_led_clear(lw_led *led);            /* drop the tables */
 void lw_led_copy(lw_led *dst, const lw_led *src); /* tables shared by reference */
+
+/* Keep the logarithms of the LED's constants that every solve needs. */
+void lw_led_prepare(lw_led *led);
 
 /* The forward-voltage shift per LED at the junction temperature, V:
  * tc_forward_v_k * (t_junction_c - junction_c). */
@@ -100,6 +106,9 @@ double lw_led_voltage(const lw_led *led, double i_a, bool *extrapolated);
 /* Light output of one LED at i_a >= 0, lm. */
 double lw_led_flux(const lw_led *led, double i_a, bool *extrapolated);
 
+/* The same with ln(i_a) given (NAN: not known), for the power law. */
+double lw_led_flux_at(const lw_led *led, double i_a, double log_i, bool *extrapolated);
+
 /* Current per string I >= 0 solving e_v - I*r_ohm = count*V(I), with r_ohm
  * the total series resistance of the string's loop (>= 0).  Returns 0 when
  * e_v cannot exceed the string's voltage at zero current.  Fails (LW_ENUMERIC
@@ -112,5 +121,12 @@ LW_MUST_CHECK lw_status lw_led_solve(const lw_led *led, double e_v, double r_ohm
  * Kirchhoff's law when current flows, so that the loop balances exactly). */
 LW_MUST_CHECK lw_status lw_led_solve_v(const lw_led *led, double e_v, double r_ohm, double *i_a,
                          double *v_led, bool *extrapolated, lw_error *err);
+
+/* Same, also giving ln(I) in *log_i where the model has it without a
+ * logarithm of its own (the Shockley closed form), NAN otherwise: the
+ * power laws of light output and capacity share it. */
+LW_MUST_CHECK lw_status lw_led_solve_vl(const lw_led *led, double e_v, double r_ohm,
+                                        double *i_a, double *v_led, double *log_i,
+                                        bool *extrapolated, lw_error *err);
 
 #endif

@@ -83,6 +83,8 @@ typedef struct lw_light {
                              switch-on to the end.  Shared by copies */
     double cap_factor;    /* capacity factor at ambient (derived) */
     double res_factor;    /* resistance factor at ambient (derived) */
+    lw_number_memo memo_share; /* ln of a cell's share of an LED string's current
+                             averaged over PWM, duty * strings / parallel (derived) */
 } lw_light;
 
 /* Drop every table the light holds. */
@@ -90,7 +92,9 @@ void lw_light_clear(lw_light *light);
 /* Copy with the tables shared by reference; free both with lw_light_clear. */
 void lw_light_copy(lw_light *dst, const lw_light *src);
 /* Recompute cap_factor and res_factor from the pack's cell and ambient,
- * and put the LED junctions at ambient (no thermal network). */
+ * put the LED junctions at ambient (no thermal network), and keep the
+ * logarithms of the constants every solve needs (lw_led_prepare,
+ * lw_cell_prepare, memo_share). */
 void lw_light_update_factors(lw_light *light, bool *temperature_outside);
 
 /* Regime of the drive at a point. */

@@ -3,7 +3,8 @@
  * --vary, and the shortest text that reads back exactly.
  *
  * Owns: lw_number_parse (plain decimals and resistor codes), the strict
- * double and integer parsers under it, and lw_number_format.  The resistor
+ * double and integer parsers under it, lw_number_format, and
+ * lw_number_memo (a logarithm kept beside its argument).  The resistor
  * codes follow IEC 60062.
  *
  * Locale: every number lampwick parses or prints is in the C locale ("3.5",
@@ -21,6 +22,7 @@
 #error "base-layer header included from a lower layer"
 #endif
 
+#include <math.h>
 #include <stdbool.h>
 #include <stddef.h>
 
@@ -52,5 +54,24 @@ void lw_number_format(char *buf, size_t size, double v);
 locale_t lw_number_locale_begin(void);
 void lw_number_locale_end(locale_t saved);
 #endif
+
+/* A logarithm kept beside its argument: lw_number_memo_log(m, x) is ln x,
+ * read from the memo when x is the value it was made for and computed
+ * otherwise, so a memo that went stale (its owner's value changed after
+ * it was made) costs time, never accuracy.  For the constants of a light
+ * that every solve needs (lw_light_update_factors makes them). */
+typedef struct lw_number_memo {
+    double x, log_x;
+} lw_number_memo;
+
+static inline lw_number_memo lw_number_memo_of(double x)
+{
+    return (lw_number_memo){x, x > 0.0 ? log(x) : NAN};
+}
+
+static inline double lw_number_memo_log(const lw_number_memo *m, double x)
+{
+    return x == m->x && x > 0.0 ? m->log_x : log(x);
+}
 
 #endif

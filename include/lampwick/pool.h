@@ -24,6 +24,9 @@
 #define LW_POOL_THREADS_MAX 64
 
 typedef void (*lw_pool_task_fn)(size_t i, void *ctx);
+/* The same with the worker running it, 0 .. lw_pool_threads() - 1 (for
+ * scratch space of its own). */
+typedef void (*lw_pool_worker_fn)(size_t i, int worker, void *ctx);
 typedef void (*lw_pool_progress_fn)(size_t done, size_t total, void *ctx);
 
 /* Number of processors this process may run on (its CPU affinity, as
@@ -34,5 +37,13 @@ int lw_pool_cpus(void);
  * the calling thread alone if threads cannot be started. */
 void lw_pool_for(size_t n, int threads, lw_pool_task_fn fn, void *ctx, lw_pool_progress_fn progress,
                      void *progress_ctx);
+
+/* The number of workers lw_pool_for_workers(n, threads, ...) starts at most
+ * (threads <= 0: lw_pool_cpus(); never more than n or LW_POOL_THREADS_MAX). */
+int lw_pool_threads(size_t n, int threads);
+
+/* lw_pool_for, telling fn which worker runs each index. */
+void lw_pool_for_workers(size_t n, int threads, lw_pool_worker_fn fn, void *ctx,
+                         lw_pool_progress_fn progress, void *progress_ctx);
 
 #endif

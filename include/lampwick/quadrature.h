@@ -64,6 +64,13 @@ double lw_quad_sum(const lw_quad_rule *rule, const double *f, int stride);
  * values f[j * stride] at the rule's nodes. */
 void lw_quad_legendre(const lw_quad_rule *rule, const double *f, int stride, double *a);
 
+/* The same for m functions at once: f[j * m + i] is function i at node j;
+ * a[k * m + i] gets its coefficient k, and sum[i] its rule sum
+ * sum_j w_j f(x_j).  (One pass over the values, the inner loop over the
+ * functions, so that it vectorizes.) */
+void lw_quad_legendre_many(const lw_quad_rule *rule, const double *f, int m, double *a,
+                           double *sum);
+
 /* The estimate of a rule's error on [-1, 1], from the Legendre coefficients
  * of the polynomial through its nodes. */
 typedef struct lw_quad_estimate {
@@ -84,16 +91,26 @@ typedef struct lw_quad_estimate {
  * themselves, so that one that is small by accident (or zero by symmetry:
  * a function even about the middle has no odd ones) does not pass for
  * convergence.  The tail T = E_{n-2}; the fall per degree r is the slower
- * of the least-squares line through log E_k over the last four degrees up
- * to n - 2 and the fall over the last two (a decay that slows is believed
- * at its slowest).  The rule misses first the degree D + 1 (D its degree
+ * of the falls over the last two degrees to n - 2 and to n - 3 (a decay
+ * that slows is believed at its slowest).  The rule misses first the degree D + 1 (D its degree
  * of exactness), whose coefficient is about T r^(D + 1 - (n - 2)); the
  * estimate is LW_QUAD_SAFETY times that.  Coefficients within `noise` (the
  * rounding of the values, in the units of a[]) of zero count as zero, and
- * an estimate below it is 0.  A rule of 3 nodes, or coefficients that do
- * not fall, get no extrapolation: the estimate is the tail itself. */
+ * an estimate below it is 0.  A rule of 3 nodes reads its fall from its
+ * one step, |a_2| / E_1 (a weak reading: callers that know the function's
+ * fall from elsewhere should take the slower of the two, through
+ * lw_quad_estimate_at); coefficients that do not fall get no
+ * extrapolation: the estimate is the tail itself. */
 lw_quad_estimate lw_quad_estimate_error(const lw_quad_rule *rule, const double *a,
                                         double noise);
+
+/* The same estimate with the fall per degree given (0 <= rate <= 1): for
+ * several functions of one variable, which share its singularities and so
+ * their fall, the fall read off whichever shows it best serves them all
+ * (one whose early coefficients are small by accident reads as not
+ * falling).  tail is E_{n-2} as above. */
+lw_quad_estimate lw_quad_estimate_at(const lw_quad_rule *rule, const double *a, double noise,
+                                     double tail, double rate);
 
 /* The factor on the extrapolated coefficient: the rule's error on a
  * single Legendre polynomial of the first degree it misses is at most about

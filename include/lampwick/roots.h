@@ -37,4 +37,14 @@ LW_MUST_CHECK lw_status lw_root_brent(lw_root_fn f, void *ctx, double a, double 
  * never overflows for finite x; 0 for x < -745. */
 double lw_root_wright_omega(double x);
 
+/* The same, with ln(w) in *log_w (from the iteration's own logarithm, no
+ * further one). */
+double lw_root_wright_omega_log(double x, double *log_w);
+
+/* ln x for finite x > 0 to about 1e-5 absolute, without libm: the binary
+ * exponent and four terms of the series 2 atanh(t), t = (m - 1)/(m + 1), of
+ * the mantissa m in [1, 2) (t <= 1/3).  For starting values and counts,
+ * where a rough logarithm serves as well as an exact one. */
+double lw_root_rough_log(double x);
+
 #endif

@@ -35,6 +35,11 @@ typedef struct lw_rtable {
     char **notes;        /* lines printed under the table (text and md) */
     size_t nnotes;
     char *title;         /* printed above (text and md), may be NULL */
+    /* packed rows (lw_rtable_add_packed): every cell in one arena, no
+     * full-precision text; a table holds packed rows or the others, not both */
+    char *arena;
+    size_t arena_len, arena_cap;
+    size_t *off;         /* nrow * ncol offsets into the arena */
 } lw_rtable;
 
 lw_rtable *lw_rtable_new(size_t ncol, lw_error *err);
@@ -66,5 +71,29 @@ LW_MUST_CHECK lw_status lw_rtable_set_title(lw_rtable *t, const char *text, lw_e
 /* Render; returns LW_EIO if a write failed. */
 LW_MUST_CHECK lw_status lw_rtable_write(const lw_rtable *t, FILE *fp, lw_rtable_format fmt,
                                         lw_error *err);
+
+/* ---- tables written a row at a time (a long sweep in flat memory) ---- */
+
+/* Append a row whose cells are the ncol NUL-terminated texts laid end to
+ * end in packed[0 .. len-1], kept in the table's arena (no allocation per
+ * cell: the aligned text of a hundred thousand rows in some megabytes). */
+LW_MUST_CHECK lw_status lw_rtable_add_packed(lw_rtable *t, const char *packed, size_t len,
+                                             lw_error *err);
+
+/* Row `row` of t rendered alone into *out (allocated; free() it), *len
+ * bytes: a CSV record with CRLF (full precision), a Markdown table row with
+ * its newline, or for text the cells laid end to end NUL-terminated, as
+ * lw_rtable_add_packed takes them. */
+LW_MUST_CHECK lw_status lw_rtable_render_row(const lw_rtable *t, size_t row,
+                                             lw_rtable_format fmt, char **out, size_t *len,
+                                             lw_error *err);
+
+/* The head of a CSV or Markdown table (title, header; Markdown's column
+ * alignment read from the rows t holds, numbers right), to be followed by
+ * rendered rows; lw_rtable_write_notes ends it.  LW_EIO if a write failed. */
+LW_MUST_CHECK lw_status lw_rtable_write_head(const lw_rtable *t, FILE *fp, lw_rtable_format fmt,
+                                             lw_error *err);
+LW_MUST_CHECK lw_status lw_rtable_write_notes(const lw_rtable *t, FILE *fp,
+                                              lw_rtable_format fmt, lw_error *err);
 
 #endif

@@ -2,7 +2,11 @@
  * sweep.h - sweeps of a profile over a grid of values.
  *
  * Owns: lw_sweep, the full grid of several varies (vary.h), run through
- * lw_batch_run; the last vary changes fastest.
+ * the batch's path for one case (lw_batch_run_case); the last vary changes
+ * fastest.  lw_sweep_run keeps every row's case; lw_sweep_stream hands each
+ * row to a callback on the worker that ran it and keeps only the row's
+ * index and chart point, so that its memory does not grow with the rows'
+ * results (sweepreport.h writes the rows in order as they complete).
  */
 #ifndef LW_SWEEP_H
 #define LW_SWEEP_H
@@ -22,13 +26,27 @@
  * almost surely a typing slip. */
 #define LW_SWEEP_ROWS_MAX 1000000
 
+/* What a chart of a sweep needs of each row (0 where it did not light). */
+typedef struct lw_sweep_point {
+    double flux_30s_lm, runtime_h;
+} lw_sweep_point;
+
 typedef struct lw_sweep {
     const lw_vary *vary;  /* borrowed */
     size_t nvary;
     size_t n;             /* rows: the product of the vary sizes */
     size_t *index;        /* n * nvary: which value of each vary a row uses */
-    lw_case *cases;       /* n */
+    lw_case *cases;       /* n (lw_sweep_run), or NULL (lw_sweep_stream) */
+    lw_sweep_point *points; /* n */
 } lw_sweep;
+
+/* A streamed sweep's row: called on the worker (0 .. threads - 1) that ran
+ * row `row`, with its case (c->status LW_OK: its result and light; else
+ * why it failed, and the sweep stops there).  The case is freed after.  A
+ * status other than LW_OK stops the sweep too.  Rows may arrive in any
+ * order and at once from several workers. */
+typedef lw_status (*lw_sweep_row_fn)(const lw_sweep *sw, size_t row, int worker,
+                                     const lw_case *c, void *ctx, lw_error *err);
 
 /* Build and run the grid (the last vary changes fastest).  Fails with the
  * first case error (bad input) or LW_ENOMEM; a light that never lights is a
@@ -37,5 +55,15 @@ LW_MUST_CHECK lw_status lw_sweep_run(const lw_profile *base, const lw_vary *vary
                                      int threads, lw_pool_progress_fn progress, void *progress_ctx,
                                      lw_sweep *sw, lw_error *err);
 void lw_sweep_clear(lw_sweep *sw);
+
+/* The same grid, each row handed to fn (may be NULL) on the worker that ran
+ * it and then freed.  Every row's variant is checked before any row runs.
+ * Fails with the error of the lowest failing row (the same for any number
+ * of threads; rows after it are not run) or LW_ENOMEM; sw keeps the index
+ * and the chart points. */
+LW_MUST_CHECK lw_status lw_sweep_stream(const lw_profile *base, const lw_vary *vary, size_t nvary,
+                                        int threads, lw_sweep_row_fn fn, void *ctx,
+                                        lw_pool_progress_fn progress, void *progress_ctx,
+                                        lw_sweep *sw, lw_error *err);
 
 #endif

@@ -37,6 +37,27 @@ double lw_quad_sum(const lw_quad_rule *rule, const double *f, int stride)
     return s;
 }
 
+void lw_quad_legendre_many(const lw_quad_rule *rule, const double *f, int m, double *a,
+                           double *sum)
+{
+    const int n = rule->n;
+    for (int i = 0; i < m; i++)
+        sum[i] = 0.0;
+    for (int k = 0; k < n * m; k++)
+        a[k] = 0.0;
+    for (int j = 0; j < n; j++) {
+        const double *fj = f + j * m, w = rule->w[j];
+        for (int i = 0; i < m; i++)
+            sum[i] += w * fj[i];
+        for (int k = 0; k < n; k++) {
+            const double c = rule->c[k * n + j];
+            double *ak = a + k * m;
+            for (int i = 0; i < m; i++)
+                ak[i] += c * fj[i];
+        }
+    }
+}
+
 void lw_quad_legendre(const lw_quad_rule *rule, const double *f, int stride, double *a)
 {
     const int n = rule->n;
@@ -79,34 +100,42 @@ lw_quad_estimate lw_quad_estimate_error(const lw_quad_rule *rule, const double *
         est.rate = 0.0;
         return est;
     }
-    /* the fall per degree: a least-squares line through log E_k over the
-     * last four degrees up to kt, or over the last two steps, whichever falls
-     * slower */
-    int k0 = kt - 3 < 1 ? 1 : kt - 3, m_pts = kt - k0 + 1;
-    double rate = 1.0;
-    if (m_pts >= 2) {
-        double sx = 0.0, sy = 0.0, sxx = 0.0, sxy = 0.0;
-        for (int k = k0; k <= kt; k++) {
-            double y = log(env[k]);
-            sx += k, sy += y, sxx += (double)k * k, sxy += k * y;
-        }
-        double slope = (m_pts * sxy - sx * sy) / (m_pts * sxx - sx * sx);
-        int kb = kt - 2 >= 1 ? kt - 2 : kt - 1;
-        double last = pow(env[kt] / env[kb], 1.0 / (kt - kb));
-        rate = exp(slope) > last ? exp(slope) : last;
-    }
-    est.rate = rate < 1.0 ? rate : 1.0;
-    /* the first coefficient past the polynomial: two falls past E_{n-2}, or
-     * one past a[n-1] */
-    double one = fabs(a[n - 1]) * est.rate, two = est.tail * est.rate * est.rate;
-    est.beyond = one > two ? one : two;
-    if (n < 4 || est.rate >= LW_QUAD_RATE_MAX) {
-        est.error = LW_QUAD_SAFETY * est.tail;
-        est.beyond = est.tail;
+    /* the fall per degree: the mean fall over the last three degrees up to
+     * kt, or over the last two, whichever is slower (a decay that slows is
+     * believed at its slowest; three nodes have one step to read) */
+    double rate;
+    if (kt >= 4)
+        rate = sqrt(fmax(env[kt] / env[kt - 2], env[kt - 1] / env[kt - 3]));
+    else if (kt == 3)
+        rate = fmax(sqrt(env[3] / env[1]), env[3] / env[2]);
+    else /* kt 2 (four nodes) or 1 (three: E_2 = |a_2|) */
+        rate = env[2] / env[1];
+    return lw_quad_estimate_at(rule, a, noise, est.tail, rate < 1.0 ? rate : 1.0);
+}
+
+lw_quad_estimate lw_quad_estimate_at(const lw_quad_rule *rule, const double *a, double noise,
+                                     double tail, double rate)
+{
+    const int n = rule->n;
+    lw_quad_estimate est = {0.0, rate, tail, 0.0};
+    if (tail == 0.0) {
+        est.rate = 0.0;
         return est;
     }
-    int reach = lw_quad_degree(rule) + 1 - kt;
-    est.error = LW_QUAD_SAFETY * est.tail * pow(est.rate, reach);
+    /* the first coefficient past the polynomial: two falls past E_{n-2}, or
+     * one past a[n-1] */
+    double one = fabs(a[n - 1]) * rate, two = tail * rate * rate;
+    est.beyond = one > two ? one : two;
+    if (n < 3 || rate >= LW_QUAD_RATE_MAX) {
+        est.error = LW_QUAD_SAFETY * tail;
+        est.beyond = tail;
+        return est;
+    }
+    int reach = lw_quad_degree(rule) + 1 - (n - 2);
+    double fall = 1.0;
+    for (int k = 0; k < reach; k++)
+        fall *= rate;
+    est.error = LW_QUAD_SAFETY * tail * fall;
     if (est.error < noise)
         est.error = 0.0;
     return est;
@@ -176,13 +205,12 @@ bool lw_legendre_root(const double *a, int n, double level, double lo, double hi
         else
             hi = x;
         double next = d != 0.0 ? x - f / d : 0.5 * (lo + hi);
-        if (!(next > lo && next < hi))
-            next = 0.5 * (lo + hi);
+        /* converged: judged before the bracket, of which x is now an end */
         if (fabs(next - x) <= 4e-16 * (1.0 + fabs(x)) || hi - lo <= 4e-16) {
-            x = next;
+            x = next > lo && next < hi ? next : x;
             break;
         }
-        x = next;
+        x = next > lo && next < hi ? next : 0.5 * (lo + hi);
     }
     *root = x;
     return true;

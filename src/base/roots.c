@@ -7,6 +7,8 @@
 #include <float.h>
 #include <math.h>
 #include <stdbool.h>
+#include <stdint.h>
+#include <string.h>
 
 lw_status lw_root_brent(lw_root_fn f, void *ctx, double a, double b, double fa, double fb,
                         double xtol, int max_iter, double *root, lw_error *err)
@@ -82,12 +84,35 @@ lw_status lw_root_brent(lw_root_fn f, void *ctx, double a, double b, double fa, 
                         "root finder: no convergence in %d evaluations", max_iter);
 }
 
+double lw_root_rough_log(double x)
+{
+    uint64_t bits;
+    memcpy(&bits, &x, sizeof bits);
+    int e = (int)((bits >> 52) & 0x7ff) - 1023;
+    bits = (bits & 0x000fffffffffffffull) | 0x3ff0000000000000ull; /* m in [1, 2) */
+    double m;
+    memcpy(&m, &bits, sizeof m);
+    double t = (m - 1.0) / (m + 1.0), t2 = t * t;
+    return e * 0.693147180559945309417 +
+           2.0 * t * (1.0 + t2 * (1.0 / 3.0 + t2 * (0.2 + t2 * (1.0 / 7.0))));
+}
+
 double lw_root_wright_omega(double x)
 {
-    if (x < -745.0)
+    double log_w;
+    return lw_root_wright_omega_log(x, &log_w);
+}
+
+double lw_root_wright_omega_log(double x, double *log_w)
+{
+    if (x < -745.0) {
+        *log_w = -INFINITY;
         return 0.0;
-    if (x < -40.0)
-        return exp(x); /* omega = e^x (1 - e^x + ...); the correction is below 1e-17 */
+    }
+    if (x < -40.0) {
+        *log_w = x; /* omega = e^x (1 - e^x + ...); the correction is below 1e-17 */
+        return exp(x);
+    }
     double w;
     if (x <= 1.0) {
         /* Winitzki's approximation of W0(y), y = e^x: within about 2 % here. */
@@ -95,23 +120,34 @@ double lw_root_wright_omega(double x)
         w = l * (1.0 - log1p(l) / (2.0 + l));
     } else {
         /* asymptotic series of W0(e^x) (Corless et al., "On the Lambert W
-         * function", Adv. Comput. Math. 5, 1996, eq. 4.19) to third order */
-        double l1 = x, l2 = log(x), q = l2 / l1;
-        w = l1 - l2 + q + q * (l2 - 2.0) / (2.0 * l1);
+         * function", Adv. Comput. Math. 5, 1996, eq. 4.19) to the fourth
+         * power of 1/ln z: within 1e-4 from x = 5, 3e-8 at x = 27 */
+        double l1 = x, l2 = lw_root_rough_log(x), q = l2 / l1, u = 1.0 / l1;
+        w = l1 - l2 +
+            q * (1.0 + u * (0.5 * (l2 - 2.0) +
+                            u * ((6.0 + l2 * (-9.0 + 2.0 * l2)) / 6.0 +
+                                 u * (-12.0 + l2 * (36.0 + l2 * (-22.0 + 3.0 * l2))) / 12.0)));
     }
     /* Fritsch-Shafer-Crowley iteration, fourth order: the error after a
      * step is about the fourth power of the step itself, so once a step moves
      * w by less than 2e-4 relative, w is exact to rounding.  Guesses within
      * 2 % need two steps, the series for large x usually one; the cap is a
-     * safeguard. */
+     * safeguard.  The logarithm of the last step's start gives ln w through
+     * ln(w + dw) = ln w + ln(1 + dw/w), the series to its fifth power exact
+     * to rounding for the steps that end the iteration. */
+    double lw = 0.0;
     for (int it = 0; it < 6; it++) {
-        double r = x - w - log(w);
+        lw = log(w);
+        double r = x - w - lw;
         double a = (1.0 + w) * (1.0 + w + 2.0 * r / 3.0);
         double wn = w * (1.0 + r / (1.0 + w) * (a - 0.5 * r) / (a - r));
+        double d = (wn - w) / w;
         bool done = fabs(wn - w) <= 2e-4 * wn;
+        lw += d * (1.0 + d * (-0.5 + d * (1.0 / 3.0 + d * (-0.25 + d * 0.2))));
         w = wn;
         if (done)
             break;
     }
+    *log_w = lw;
     return w;
 }

@@ -109,7 +109,6 @@ int cli_sweep(int argc, char **argv)
     lw_vary vary[LW_SWEEP_VARY_MAX];
     memset(vary, 0, sizeof vary);
     lw_sweep sw = {0};
-    lw_rtable *t = NULL;
     lw_status st = load_profile(argv[first], &a.o, &prof, &err);
     const char *outs[] = {a.plot_path}, *names[] = {"--plot"};
     if (st == LW_OK)
@@ -122,17 +121,13 @@ int cli_sweep(int argc, char **argv)
     size_t total = 1;
     for (size_t k = 0; k < a.nvary && st == LW_OK; k++)
         total *= vary[k].n;
+    /* the rows are written as they complete; the chart comes after them */
     if (st == LW_OK)
-        st = lw_sweep_run(&prof, vary, a.nvary, a.o.threads,
-                          want_progress(total) ? progress : NULL, NULL, &sw, &err);
+        st = lw_report_sweep_stream(&prof, vary, a.nvary, a.o.threads, a.o.fmt, a.columns, stdout,
+                                    want_progress(total) ? progress : NULL, NULL, &sw, &err);
     if (st == LW_OK && a.plot_path)
         st = sweep_plot(a.plot_path, &prof, &sw, &err);
-    if (st == LW_OK)
-        st = lw_report_sweep(&sw, a.o.fmt, a.columns, &t, &err);
-    if (st == LW_OK)
-        st = lw_rtable_write(t, stdout, a.o.fmt, &err);
     int code = st == LW_OK ? 0 : report_error(&err);
-    lw_rtable_free(t);
     lw_sweep_clear(&sw);
     for (size_t k = 0; k < a.nvary; k++)
         lw_vary_clear(&vary[k]);

@@ -339,9 +339,62 @@ lw_status lw_csv_expect(const lw_csv *csv, const char *const *required,
 
 void lw_csvw_init(lw_csvw *w, FILE *fp)
 {
-    w->fp = fp;
-    w->fields = 0;
-    w->failed = false;
+    *w = (lw_csvw){.fp = fp};
+}
+
+void lw_csvw_init_mem(lw_csvw *w)
+{
+    *w = (lw_csvw){.fp = NULL};
+}
+
+/* Room for n more bytes and a NUL in memory. */
+static bool mem_room(lw_csvw *w, size_t n)
+{
+    if (w->len + n + 1 <= w->cap)
+        return true;
+    size_t cap = w->cap ? 2 * w->cap : 256;
+    while (cap < w->len + n + 1)
+        cap *= 2;
+    char *b = lw_realloc(w->buf, cap);
+    if (!b)
+        return false;
+    w->buf = b;
+    w->cap = cap;
+    return true;
+}
+
+static void put(lw_csvw *w, const char *s, size_t n)
+{
+    if (w->fp) {
+        if (fwrite(s, 1, n, w->fp) != n)
+            w->failed = true;
+        return;
+    }
+    if (!mem_room(w, n)) {
+        w->failed = true;
+        return;
+    }
+    memcpy(w->buf + w->len, s, n);
+    w->len += n;
+    w->buf[w->len] = '\0';
+}
+
+/* A field quoted by libcsv (RFC 4180: in quotes, quotes doubled). */
+static void put_quoted(lw_csvw *w, const char *s)
+{
+    size_t n = strlen(s);
+    if (w->fp) {
+        if (csv_fwrite(w->fp, s, n) != 0)
+            w->failed = true;
+        return;
+    }
+    size_t need = csv_write(NULL, 0, s, n);
+    if (!mem_room(w, need)) {
+        w->failed = true;
+        return;
+    }
+    w->len += csv_write(w->buf + w->len, need, s, n);
+    w->buf[w->len] = '\0';
 }
 
 static bool needs_quotes(const char *s)
@@ -355,14 +408,12 @@ static bool needs_quotes(const char *s)
 
 void lw_csvw_text(lw_csvw *w, const char *s)
 {
-    if (w->fields++ > 0 && fputc(',', w->fp) == EOF)
-        w->failed = true;
-    if (needs_quotes(s)) {
-        if (csv_fwrite(w->fp, s, strlen(s)) != 0)
-            w->failed = true;
-    } else if (fputs(s, w->fp) == EOF) {
-        w->failed = true;
-    }
+    if (w->fields++ > 0)
+        put(w, ",", 1);
+    if (needs_quotes(s))
+        put_quoted(w, s);
+    else
+        put(w, s, strlen(s));
 }
 
 void lw_csvw_num(lw_csvw *w, double v)
@@ -374,7 +425,6 @@ void lw_csvw_num(lw_csvw *w, double v)
 
 void lw_csvw_end_row(lw_csvw *w)
 {
-    if (fputs("\r\n", w->fp) == EOF)
-        w->failed = true;
+    put(w, "\r\n", 2);
     w->fields = 0;
 }

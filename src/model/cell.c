@@ -87,7 +87,20 @@ void lw_cell_temperature_factors(const lw_cell *cell, double ambient_c, double *
         *outside = out;
 }
 
+void lw_cell_prepare(lw_cell *cell)
+{
+    cell->memo_rated = lw_number_memo_of(cell->rated_a);
+    cell->memo_sd_pct = NAN;
+    cell->memo_sd_per_h = lw_cell_self_discharge_per_h(cell);
+    cell->memo_sd_pct = cell->self_discharge_pct_month;
+}
+
 double lw_cell_capacity_ah(const lw_cell *cell, double ic_a, double cap_factor)
+{
+    return lw_cell_capacity_ah_at(cell, ic_a, NAN, cap_factor);
+}
+
+double lw_cell_capacity_ah_at(const lw_cell *cell, double ic_a, double log_ic, double cap_factor)
 {
     /* the kinetic model's wells hold the low-drain capacity; the rate effect
      * is theirs */
@@ -98,7 +111,10 @@ double lw_cell_capacity_ah(const lw_cell *cell, double ic_a, double cap_factor)
         return cap_factor * cell->capacity_ah;
     double c = cell->max_capacity_ah;
     if (ic_a > 0.0) {
-        double p = cell->capacity_ah * exp((cell->peukert - 1.0) * log(cell->rated_a / ic_a));
+        if (!isfinite(log_ic))
+            log_ic = log(ic_a);
+        double lr = lw_number_memo_log(&cell->memo_rated, cell->rated_a) - log_ic;
+        double p = cell->capacity_ah * exp((cell->peukert - 1.0) * lr);
         if (p < c)
             c = p;
     }
@@ -107,6 +123,8 @@ double lw_cell_capacity_ah(const lw_cell *cell, double ic_a, double cap_factor)
 
 double lw_cell_self_discharge_per_h(const lw_cell *cell)
 {
+    if (cell->self_discharge_pct_month == cell->memo_sd_pct)
+        return cell->memo_sd_per_h;
     double s = cell->self_discharge_pct_month / 100.0;
     return s > 0.0 ? -log1p(-s) / 730.5 : 0.0;
 }

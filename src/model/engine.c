@@ -50,9 +50,10 @@ const char *const lw_run_warning_names[LW_WARN_COUNT_] = {
  * cheaper than widening the rule (the coefficients of a function that
  * needs more than 12 nodes fall slowly, and halving speeds their fall). */
 #define NODES_MAX 12
-/* The smallest: 4 nodes (degree 5) is the least rule whose error the
- * coefficients can estimate by their decay. */
-#define NODES_MIN 4
+/* The smallest: 3 nodes (degree 3, two solves a piece) where the pieces
+ * before showed a fall fast enough at this width; its error is read from
+ * its one step of coefficients and that fall, the slower (prior_fall()). */
+#define NODES_MIN 3
 /* The rule of the run's first piece, before any piece has shown how
  * smooth the integrands are: degree 7, enough for most curve intervals at
  * the default tolerance (measured on the bundled cells). */
@@ -111,6 +112,8 @@ typedef struct engine {
     double flux_ref;
     double kink_a;            /* per-cell average current of the Peukert cap switch */
     bool active[NEV];
+    int watch[NEV], n_watch;  /* the events active at the start, but the dropout (a
+                                 record event leaves active[] when it fires) */
     bool positive[NEV];       /* for kinks: sign of g at the current depth */
     band bands[NEV];          /* for EV_KNOT, EV_EFFICIENCY and EV_FOLDBACK */
     double tot[NQ];
@@ -121,6 +124,8 @@ typedef struct engine {
      * learn_rate per degree from an amplitude learn_amp (relative to the
      * total's size); learn_w 0: nothing learnt yet */
     double learn_w, learn_rate[NQ], learn_amp[NQ];
+    double learn_log_rate[NQ], learn_log_need[NQ]; /* their logarithms, the second
+                                 of NODES_AIM rtol / (SAFETY amp) (>= 0: no need) */
     size_t cap_pieces;
     size_t seg;               /* curve interval being integrated; SIZE_MAX: search */
     double d0;                /* depth at switch-on */
@@ -361,6 +366,7 @@ static lw_status locate(engine *e, int k, double a, double b, const lw_point *pa
  * a, pt[n - 1] at b. */
 typedef struct piece {
     double a, b;
+    double d[NODES_MAX];      /* the node depths, d[0] = a, d[n - 1] = b */
     const lw_quad_rule *rule;
     int n;
     lw_point pt[NODES_MAX];
@@ -388,11 +394,7 @@ static void integrand(const lw_point *pt, double f[NQ])
 
 static double node_depth(const piece *p, int j)
 {
-    if (j == 0)
-        return p->a;
-    if (j == p->n - 1)
-        return p->b;
-    return 0.5 * (p->a + p->b) + 0.5 * (p->b - p->a) * p->rule->x[j];
+    return p->d[j];
 }
 
 /* Solve the nodes of p that are not yet solved: all but the ends, and the
@@ -418,51 +420,108 @@ static void piece_init(piece *p, double a, double b, int n, const lw_point *pa,
     p->a = a, p->b = b;
     p->rule = lw_quad_lobatto(n);
     p->n = p->rule->n;
+    const double c = 0.5 * (a + b), h = 0.5 * (b - a);
+    for (int j = 1; j + 1 < p->n; j++)
+        p->d[j] = c + h * p->rule->x[j];
+    p->d[0] = a;
+    p->d[p->n - 1] = b;
     p->pt[0] = *pa;
     if (pb)
         p->pt[p->n - 1] = *pb;
 }
 
-/* The totals of p, their Legendre coefficients and error estimates. */
-static void piece_sums(piece *p)
+/* The rule sums and Legendre coefficients of every total of p at once:
+ * lw_quad_legendre_many with the count of totals fixed, so that the inner
+ * loop over them vectorizes. */
+static void transform(const piece *p, double coef_k[NODES_MAX][NQ], double sum[NQ])
+{
+    const int n = p->n;
+    const double *c = p->rule->c, *w = p->rule->w;
+    for (int q = 0; q < NQ; q++)
+        sum[q] = 0.0;
+    for (int k = 0; k < n; k++)
+        for (int q = 0; q < NQ; q++)
+            coef_k[k][q] = 0.0;
+    for (int j = 0; j < n; j++) {
+        for (int q = 0; q < NQ; q++)
+            sum[q] += w[j] * p->f[j][q];
+        for (int k = 0; k < n; k++) {
+            const double ckj = c[k * n + j];
+            for (int q = 0; q < NQ; q++)
+                coef_k[k][q] += ckj * p->f[j][q];
+        }
+    }
+}
+
+/* The totals of p, their Legendre coefficients and error estimates.  The
+ * integrands are all functions of the one operating point, so they share
+ * its singularities and their coefficients fall alike: a total whose
+ * coefficients show no fall (a few coefficients, the early ones small by
+ * accident, as where the total passes through a flat extreme) takes the
+ * slowest fall the others show, among those whose tails stand clear of the
+ * rounding. */
+static void piece_sums(piece *p, double prior)
 {
     const double h = 0.5 * (p->b - p->a);
     const double dround = DEPTH_NOISE * fmax(fabs(p->a), fabs(p->b));
+    lw_quad_estimate est[NQ];
+    double noise[NQ], shared = INFINITY, coef_k[NODES_MAX][NQ], sum[NQ];
+    double lo[NQ], hi[NQ], big[NQ];
+    transform(p, coef_k, sum);
+    for (int q = 0; q < NQ; q++)
+        lo[q] = hi[q] = p->f[0][q], big[q] = 0.0;
+    for (int j = 0; j < p->n; j++)
+        for (int q = 0; q < NQ; q++) {
+            double v = p->f[j][q];
+            lo[q] = v < lo[q] ? v : lo[q];
+            hi[q] = v > hi[q] ? v : hi[q];
+            big[q] = fabs(v) > big[q] ? fabs(v) : big[q];
+        }
     for (int q = 0; q < NQ; q++) {
-        p->k[q] = h * lw_quad_sum(p->rule, &p->f[0][q], NQ);
-        lw_quad_legendre(p->rule, &p->f[0][q], NQ, p->coef[q]);
+        p->k[q] = h * sum[q];
+        for (int k = 0; k < p->n; k++)
+            p->coef[q][k] = coef_k[k][q];
+        if (big[q] == 0.0) { /* a total that is zero throughout (a loss the drive has not) */
+            est[q] = (lw_quad_estimate){0.0, 0.0, 0.0, 0.0};
+            noise[q] = 0.0;
+            continue;
+        }
+        /* rounding of the values and, through the slope, of the depths */
+        noise[q] = VALUE_NOISE * big[q] + (hi[q] - lo[q]) * dround / (p->b - p->a);
+        est[q] = lw_quad_estimate_error(p->rule, p->coef[q], noise[q]);
+        if (p->n == 3 && isfinite(est[q].tail)) /* its one step is read with the prior */
+            est[q] = lw_quad_estimate_at(p->rule, p->coef[q], noise[q], est[q].tail,
+                                         prior > 0.0 && prior > est[q].rate ? prior : est[q].rate);
+        if (est[q].tail > LEARN_ABOVE_NOISE * noise[q] && est[q].rate < LW_QUAD_RATE_MAX &&
+            (!isfinite(shared) || est[q].rate > shared))
+            shared = est[q].rate;
     }
     p->rate = 0.0;
     for (int q = 0; q < NQ; q++) {
-        double lo = p->f[0][q], hi = lo, big = 0.0;
-        for (int j = 0; j < p->n; j++) {
-            double v = p->f[j][q];
-            lo = v < lo ? v : lo;
-            hi = v > hi ? v : hi;
-            big = fabs(v) > big ? fabs(v) : big;
-        }
-        /* rounding of the values and, through the slope, of the depths */
-        double noise = VALUE_NOISE * big + (hi - lo) * dround / (p->b - p->a);
-        lw_quad_estimate est = lw_quad_estimate_error(p->rule, p->coef[q], noise);
-        p->err[q] = h * est.error;
-        p->tail[q] = h * est.tail;
-        p->beyond[q] = h * est.beyond;
-        if (est.tail > 0.0 && est.rate > p->rate)
-            p->rate = est.rate;
-        /* the fall is read from coefficients well above the rounding only;
+        if (isfinite(shared) && est[q].rate >= LW_QUAD_RATE_MAX && isfinite(est[q].tail))
+            est[q] = lw_quad_estimate_at(p->rule, p->coef[q], noise[q], est[q].tail, shared);
+        p->err[q] = h * est[q].error;
+        p->tail[q] = h * est[q].tail;
+        p->beyond[q] = h * est[q].beyond;
+        if (est[q].tail > 0.0 && est[q].rate > p->rate)
+            p->rate = est[q].rate;
+        /* the fall is learnt from coefficients well above the rounding only;
          * a total whose polynomial is exact to rounding falls as fast as
          * any (it asks for the least rule) */
         p->q_rate[q] = p->q_amp[q] = 0.0;
         int ref = q < Q_LED ? q : Q_DRAWN;
         double size = fabs(p->coef[ref][0]);
-        if (!(size > 0.0) || !isfinite(est.tail))
+        if (!(size > 0.0) || !isfinite(est[q].tail))
             continue;
-        if (est.tail <= LEARN_ABOVE_NOISE * noise) {
+        if (est[q].tail <= LEARN_ABOVE_NOISE * noise[q]) {
             p->q_rate[q] = LEARN_RATE_EXACT;
             p->q_amp[q] = 1.0;
-        } else if (est.rate > 0.0 && est.rate < 1.0) {
-            p->q_rate[q] = est.rate;
-            p->q_amp[q] = est.tail / size / pow(est.rate, p->n - 2);
+        } else if (est[q].rate > 0.0 && est[q].rate < 1.0) {
+            p->q_rate[q] = est[q].rate;
+            double fall = 1.0;
+            for (int k = 0; k < p->n - 2; k++)
+                fall *= est[q].rate;
+            p->q_amp[q] = est[q].tail / size / fall;
         }
     }
 }
@@ -507,19 +566,29 @@ static int nodes_for(const engine *e, double w)
     if (!(e->learn_w > 0.0))
         return NODES_FIRST;
     int n = NODES_MIN;
+    const double scale = w / e->learn_w, log_scale = lw_root_rough_log(scale);
     for (int q = 0; q < NQ; q++) {
-        if (!(e->learn_rate[q] > 0.0))
+        if (!(e->learn_rate[q] > 0.0) || e->learn_log_need[q] >= 0.0)
             continue;
-        double r = e->learn_rate[q] * w / e->learn_w;
-        if (r >= LW_QUAD_RATE_MAX)
+        if (e->learn_rate[q] * scale >= LW_QUAD_RATE_MAX)
             return NODES_MAX;
-        double need = NODES_AIM * e->opt->rtol / (LW_QUAD_SAFETY * e->learn_amp[q]);
-        if (need >= 1.0)
-            continue;
-        double nq = ceil(1.0 + log(need) / (2.0 * log(r)));
+        double nq = ceil(1.0 + e->learn_log_need[q] / (2.0 * (e->learn_log_rate[q] + log_scale)));
         n = nq > n ? (nq > NODES_MAX ? NODES_MAX : (int)nq) : n;
     }
     return n;
+}
+
+/* The slowest fall per degree the last piece learnt from predicts for a
+ * piece of width w (0: nothing learnt). */
+static double prior_fall(const engine *e, double w)
+{
+    double r = 0.0;
+    if (!(e->learn_w > 0.0))
+        return 0.0;
+    for (int q = 0; q < NQ; q++)
+        if (e->learn_rate[q] > 0.0)
+            r = fmax(r, e->learn_rate[q] * w / e->learn_w);
+    return r;
 }
 
 /* Learn the integrands' smoothness from piece p (when it read any). */
@@ -535,6 +604,13 @@ static void learn(engine *e, const piece *p)
     e->learn_w = p->b - p->a;
     memcpy(e->learn_rate, p->q_rate, sizeof e->learn_rate);
     memcpy(e->learn_amp, p->q_amp, sizeof e->learn_amp);
+    for (int q = 0; q < NQ; q++) {
+        if (!(p->q_rate[q] > 0.0))
+            continue;
+        e->learn_log_rate[q] = lw_root_rough_log(p->q_rate[q]);
+        e->learn_log_need[q] =
+            lw_root_rough_log(NODES_AIM * e->opt->rtol / (LW_QUAD_SAFETY * p->q_amp[q]));
+    }
 }
 
 static lw_status add_piece(engine *e, double a, double b)
@@ -621,7 +697,7 @@ static lw_status span(engine *e, double a, const lw_point *pa, double b, const l
         lw_status st = piece_solve(e, &p, true);
         if (st != LW_OK)
             return st;
-        piece_sums(&p);
+        piece_sums(&p, prior_fall(e, p.b - p.a));
         bool ok = accurate(e, b - a, p.k, p.err);
         if (!ok && isfinite(p.k[Q_T])) {
             int more = 0;
@@ -953,8 +1029,9 @@ static lw_status first_event(engine *e, const piece *p, int *first_k, double *d_
             node = &held;
             dn = held.depth;
         }
-        for (int k = 0; k < NEV; k++) {
-            if (k == EV_DROPOUT || !fired(e, k, node) || !(dn > d_prev))
+        for (int w = 0; w < e->n_watch; w++) {
+            int k = e->watch[w];
+            if (!fired(e, k, node) || !(dn > d_prev))
                 continue;
             double dk;
             lw_point pk;
@@ -1070,7 +1147,7 @@ static lw_status run_interval(engine *e, double A, double B, lw_point *pa_io)
             return st;
         pb = p.pt[p.n - 1];
         have_b = true;
-        piece_sums(&p);
+        piece_sums(&p, prior_fall(e, p.b - p.a));
         if (!density_set) {
             for (int q = 0; q < NQ; q++)
                 e->density[q] = isfinite(p.k[q]) ? fabs(p.k[q]) / (b - a) : 0.0;
@@ -1333,7 +1410,7 @@ static lw_status t30_smooth(engine *e, const lw_point *p0, lw_point *p30, double
     for (int j = 0; j < p.n; j++)
         if (!lit(&p.pt[j]) || !isfinite(p.f[j][Q_T]))
             return LW_OK;
-    piece_sums(&p);
+    piece_sums(&p, prior_fall(e, p.b - p.a));
     const double h = 0.5 * (d1 - d0);
     /* the cubic's time error moves the 30-s depth by slack / (dt/dd); what
      * that does to the output there is what must stay within the tolerance */
@@ -1352,12 +1429,11 @@ static lw_status t30_smooth(engine *e, const lw_point *p0, lw_point *p30, double
         else
             hi = x;
         double next = slope > 0.0 ? x - f / slope : 0.5 * (lo + hi);
-        if (!(next > lo && next < hi))
-            next = 0.5 * (lo + hi);
-        bool stop = fabs(next - x) <= 4.0 * DBL_EPSILON || hi - lo <= 4.0 * DBL_EPSILON;
-        x = next;
-        if (stop)
+        if (fabs(next - x) <= 4.0 * DBL_EPSILON || hi - lo <= 4.0 * DBL_EPSILON) {
+            x = next; /* converged (the step is judged before the bracket, which x ends) */
             break;
+        }
+        x = next > lo && next < hi ? next : 0.5 * (lo + hi);
     }
     *d30 = d0 + h * (x + 1.0);
     if ((st = eval(e, *d30, p30)) != LW_OK)
@@ -1444,6 +1520,10 @@ static void init_events(engine *e, const lw_point *p0)
     }
     for (int k = 0; k < NEV; k++)
         e->positive[k] = event_g(e, k, p0) > 0.0;
+    e->n_watch = 0;
+    for (int k = 0; k < NEV; k++)
+        if (e->active[k] && k != EV_DROPOUT)
+            e->watch[e->n_watch++] = k;
 }
 
 /* The intervals between the knots of the pack's curves (the cell's curve

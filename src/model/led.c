@@ -18,6 +18,12 @@ void lw_led_clear(lw_led *led)
     led->iv = led->flux = NULL;
 }
 
+void lw_led_prepare(lw_led *led)
+{
+    led->memo_is = lw_number_memo_of(led->saturation_a);
+    led->memo_flux_i = lw_number_memo_of(led->flux_current_a);
+}
+
 void lw_led_copy(lw_led *dst, const lw_led *src)
 {
     *dst = *src;
@@ -78,31 +84,45 @@ double lw_led_voltage(const lw_led *led, double i_a, bool *extrapolated)
 
 double lw_led_flux(const lw_led *led, double i_a, bool *extrapolated)
 {
+    return lw_led_flux_at(led, i_a, NAN, extrapolated);
+}
+
+double lw_led_flux_at(const lw_led *led, double i_a, double log_i, bool *extrapolated)
+{
     if (i_a <= 0.0)
         return 0.0;
     double k = lw_led_thermal_flux_factor(led);
     if (led->flux)
         return k * table_extended(led->flux, i_a, extrapolated);
-    double u = i_a / led->flux_current_a;
     if (led->flux_exponent == 1.0)
-        return k * led->flux_lm * u;
-    return k * led->flux_lm * exp(led->flux_exponent * log(u));
+        return k * led->flux_lm * (i_a / led->flux_current_a);
+    if (!isfinite(log_i))
+        log_i = log(i_a);
+    double log_u = log_i - lw_number_memo_log(&led->memo_flux_i, led->flux_current_a);
+    return k * led->flux_lm * exp(led->flux_exponent * log_u);
 }
 
 /* Closed form for the diode with series resistance (Banwell & Jayakumar):
  * with a = N*n*Vt and R the whole loop resistance,
  *   I = (a/R) * omega(ln(Is*R/a) + (E + Is*R)/a) - Is,
- * and for R = 0 the limit I = Is*(exp(E/a) - 1). */
+ * and for R = 0 the limit I = Is*(exp(E/a) - 1).  ln I comes with it:
+ * ln(a/R) + ln omega + ln(1 - Is*R/(a*omega)), the last term -Is*R/(a*omega)
+ * to rounding wherever the LED conducts (Is*R/a is below 1e-8 of omega). */
 static lw_status solve_shockley(const lw_led *led, double e_v, double r_ohm, double *i_a,
-                                lw_error *err)
+                                double *log_i, lw_error *err)
 {
     double a = led->count * led->v_scale * led->ideality * lw_led_thermal_voltage(led->junction_c);
     double is = led->saturation_a;
     double r = r_ohm + led->count * led->v_scale * led->series_ohm;
     double i;
+    *log_i = NAN;
     if (r > 0.0) {
-        double x = log(is * r / a) + (e_v + is * r) / a;
-        i = (a / r) * lw_root_wright_omega(x) - is;
+        double log_ar = log(a / r), eps = is * r / a;
+        double x = lw_number_memo_log(&led->memo_is, is) - log_ar + (e_v + is * r) / a;
+        double log_w, w = lw_root_wright_omega_log(x, &log_w);
+        i = (a / r) * w - is;
+        if (i > 0.0 && eps < 1e-8 * w)
+            *log_i = log_ar + log_w - eps / w;
     } else {
         i = is * expm1(e_v / a);
         if (!isfinite(i))
@@ -188,9 +208,10 @@ static lw_status solve_table(const lw_led *led, double e_v, double r_ohm, double
                         "the LED table solution did not converge in 60 steps");
 }
 
-lw_status lw_led_solve(const lw_led *led, double e_v, double r_ohm, double *i_a,
-                       bool *extrapolated, lw_error *err)
+static lw_status solve_logged(const lw_led *led, double e_v, double r_ohm, double *i_a,
+                              double *log_i, bool *extrapolated, lw_error *err)
 {
+    *log_i = NAN;
     if (!(e_v > 0.0)) {
         *i_a = 0.0;
         return LW_OK;
@@ -224,7 +245,7 @@ lw_status lw_led_solve(const lw_led *led, double e_v, double r_ohm, double *i_a,
         break;
     }
     case LW_LED_SHOCKLEY:
-        return solve_shockley(led, e_v, r_ohm, i_a, err);
+        return solve_shockley(led, e_v, r_ohm, i_a, log_i, err);
     case LW_LED_TABLE:
     default:
         return solve_table(led, e_v, r_ohm, i_a, extrapolated, err);
@@ -233,10 +254,24 @@ lw_status lw_led_solve(const lw_led *led, double e_v, double r_ohm, double *i_a,
     return LW_OK;
 }
 
+lw_status lw_led_solve(const lw_led *led, double e_v, double r_ohm, double *i_a,
+                       bool *extrapolated, lw_error *err)
+{
+    double log_i;
+    return solve_logged(led, e_v, r_ohm, i_a, &log_i, extrapolated, err);
+}
+
 lw_status lw_led_solve_v(const lw_led *led, double e_v, double r_ohm, double *i_a,
                          double *v_led, bool *extrapolated, lw_error *err)
 {
-    lw_status st = lw_led_solve(led, e_v, r_ohm, i_a, extrapolated, err);
+    double log_i;
+    return lw_led_solve_vl(led, e_v, r_ohm, i_a, v_led, &log_i, extrapolated, err);
+}
+
+lw_status lw_led_solve_vl(const lw_led *led, double e_v, double r_ohm, double *i_a,
+                          double *v_led, double *log_i, bool *extrapolated, lw_error *err)
+{
+    lw_status st = solve_logged(led, e_v, r_ohm, i_a, log_i, extrapolated, err);
     if (st != LW_OK)
         return st;
     if (*i_a > 0.0 && led->model != LW_LED_CONSTANT && led->model != LW_LED_LINEAR)

@@ -37,17 +37,26 @@ const lw_light *lw_light_mode(const lw_light *light, int mode)
     return c && mode >= 0 && (size_t)mode < c->n ? c->modes[mode].light : light;
 }
 
+/* A cell's share of one LED string's on-state current, averaged over PWM. */
+static double cell_share(const lw_light *l)
+{
+    return l->drive.duty_pct / 100.0 * l->led.strings / l->pack.parallel;
+}
+
 void lw_light_update_factors(lw_light *light, bool *temperature_outside)
 {
     lw_cell_temperature_factors(&light->pack.cell, light->pack.ambient_c, &light->cap_factor,
                                 &light->res_factor, temperature_outside);
     /* without a thermal network the junctions are at ambient */
     light->led.t_junction_c = light->pack.ambient_c;
+    lw_led_prepare(&light->led);
+    lw_cell_prepare(&light->pack.cell);
+    light->memo_share = lw_number_memo_of(cell_share(light));
 }
 
 /* Fill the string-side quantities common to the passive and linear drives. */
-static void fill_string(const lw_light *l, lw_point *pt, double i, double v_led, double e_v,
-                        double r_pack)
+static void fill_string(const lw_light *l, lw_point *pt, double i, double log_i, double v_led,
+                        double e_v, double r_pack)
 {
     const int m = l->led.strings, n = l->led.count;
     const double duty = l->drive.duty_pct / 100.0;
@@ -66,7 +75,7 @@ static void fill_string(const lw_light *l, lw_point *pt, double i, double v_led,
     pt->p_drv_w = pt->p_drawn_w - pt->p_led_w - pt->p_res_w - pt->p_int_w;
     if (l->drive.type == LW_DRIVE_RESISTOR)
         pt->p_drv_w = 0.0; /* by Kirchhoff's law; avoids reporting rounding as a loss */
-    pt->flux_lm = duty * m * n * lw_led_flux(&l->led, i, &pt->extrapolated);
+    pt->flux_lm = duty * m * n * lw_led_flux_at(&l->led, i, log_i, &pt->extrapolated);
 }
 
 /* The converter at one point: the LEDs at the set (or fallback) current,
@@ -112,7 +121,7 @@ static void point_converter(const lw_light *l, double e_v, double r_pack, bool f
     pt->p_int_w = (duty * ip * ip + (1.0 - duty) * iq * iq) * r_pack;
     pt->p_drawn_w = e_v * pt->pack_avg_a;
     pt->p_drv_w = pt->p_drawn_w - pt->p_led_w - pt->p_int_w;
-    pt->flux_lm = duty * m * n * lw_led_flux(&l->led, i, &pt->extrapolated);
+    pt->flux_lm = duty * m * n * lw_led_flux_at(&l->led, i, NAN, &pt->extrapolated);
 }
 
 /* The electrical operating point with the junctions at l->led.t_junction_c. */
@@ -129,7 +138,7 @@ static lw_status point_electrical(const lw_light *l, double depth, double ocv_v,
     double r_share = r_pack * m;                /* pack resistance as seen by one string */
     double r_loop = l->drive.resistor_ohm + r_share;
     lw_status st = LW_OK;
-    double i = 0.0, v_led = 0.0;
+    double i = 0.0, v_led = 0.0, log_i = NAN;
     pt->regulation_margin = 1.0;
     pt->regime = LW_REGIME_PASSIVE;
     switch (l->drive.type) {
@@ -148,28 +157,32 @@ static lw_status point_electrical(const lw_light *l, double depth, double ocv_v,
         } else {
             pt->regime = LW_REGIME_SATURATED;
             pt->extrapolated = false;
-            st = lw_led_solve_v(&l->led, e_v - l->drive.dropout_v, r_loop, &i, &v_led,
-                                &pt->extrapolated, err);
+            st = lw_led_solve_vl(&l->led, e_v - l->drive.dropout_v, r_loop, &i, &v_led, &log_i,
+                                 &pt->extrapolated, err);
         }
         if (st == LW_OK)
-            fill_string(l, pt, i, v_led, e_v, r_pack);
+            fill_string(l, pt, i, log_i, v_led, e_v, r_pack);
         break;
     }
     case LW_DRIVE_RESISTOR:
     default:
-        st = lw_led_solve_v(&l->led, e_v, r_loop, &i, &v_led, &pt->extrapolated, err);
+        st = lw_led_solve_vl(&l->led, e_v, r_loop, &i, &v_led, &log_i, &pt->extrapolated, err);
         if (st == LW_OK)
-            fill_string(l, pt, i, v_led, e_v, r_pack);
+            fill_string(l, pt, i, log_i, v_led, e_v, r_pack);
         break;
     }
     if (st != LW_OK)
         return st;
     if (pt->regime != LW_REGIME_DROPOUT) {
         double ic_avg = pt->pack_avg_a / p;
+        /* ln ic from the LED's ln I where the cells carry the strings alone */
+        double log_ic = l->drive.type != LW_DRIVE_CONVERTER && isfinite(log_i)
+                            ? log_i + lw_number_memo_log(&l->memo_share, cell_share(l))
+                            : NAN;
         /* discharge by the current plus self-discharge of the charge left */
         double rate = lw_cell_self_discharge_per_h(&l->pack.cell) * (1.0 - depth);
         if (ic_avg > 0.0)
-            rate += ic_avg / lw_cell_capacity_ah(&l->pack.cell, ic_avg, l->cap_factor);
+            rate += ic_avg / lw_cell_capacity_ah_at(&l->pack.cell, ic_avg, log_ic, l->cap_factor);
         pt->dtdd_h = rate > 0.0 ? 1.0 / rate : INFINITY;
     }
     return LW_OK;

@@ -688,11 +688,11 @@ static lw_status lw_plot_sweep_in_c_locale(const lw_profile *prof, const lw_swee
         for (size_t r = 0; r < sw->n; r++) {
             if (group_k < nk && sw->index[r * nk + group_k] != g)
                 continue;
-            const lw_result *res = &sw->cases[r].res;
-            if (!(res->flux_30s_lm > 0 && res->runtime_h > 0))
+            const lw_sweep_point *pt = &sw->points[r];
+            if (!(pt->flux_30s_lm > 0 && pt->runtime_h > 0))
                 continue;
-            xy[used] = res->flux_30s_lm;
-            xy[sw->n + used] = res->runtime_h;
+            xy[used] = pt->flux_30s_lm;
+            xy[sw->n + used] = pt->runtime_h;
             labels[used] = nk ? sw->vary[label_k].values[sw->index[r * nk + label_k]] : NULL;
             xmin = fmin(xmin, xy[used]);
             xmax = fmax(xmax, xy[used]);

@@ -56,7 +56,7 @@ void lw_rtable_free(lw_rtable *t)
         free(t->group[i]);
     }
     free(t->group);
-    for (size_t i = 0; i < t->nrow * t->ncol; i++) {
+    for (size_t i = 0; t->cell && i < t->nrow * t->ncol; i++) {
         free(t->cell[i]);
         free(t->full[i]);
     }
@@ -67,7 +67,43 @@ void lw_rtable_free(lw_rtable *t)
     free(t->cell);
     free(t->notes);
     free(t->title);
+    free(t->arena);
+    free(t->off);
     free(t);
+}
+
+lw_status lw_rtable_add_packed(lw_rtable *t, const char *packed, size_t len, lw_error *err)
+{
+    if (t->nrow == t->cap) {
+        size_t cap = t->cap ? 2 * t->cap : 64;
+        size_t *o = lw_realloc(t->off, cap * t->ncol * sizeof *o);
+        if (!o)
+            return lw_error_set(err, LW_ENOMEM, NULL, 0, "out of memory for a table");
+        t->off = o;
+        t->cap = cap;
+    }
+    if (t->arena_len + len > t->arena_cap) {
+        size_t cap = t->arena_cap ? 2 * t->arena_cap : 4096;
+        while (cap < t->arena_len + len)
+            cap *= 2;
+        char *a = lw_realloc(t->arena, cap);
+        if (!a)
+            return lw_error_set(err, LW_ENOMEM, NULL, 0, "out of memory for a table");
+        t->arena = a;
+        t->arena_cap = cap;
+    }
+    memcpy(t->arena + t->arena_len, packed, len);
+    size_t at = t->arena_len, *row = t->off + t->nrow * t->ncol;
+    for (size_t c = 0; c < t->ncol; c++) {
+        row[c] = at;
+        const char *end = memchr(t->arena + at, '\0', t->arena_len + len - at);
+        at = end ? (size_t)(end - t->arena) + 1 : t->arena_len + len;
+        if (!end) /* fewer cells than columns: the rest empty at the last NUL */
+            at--;
+    }
+    t->arena_len += len;
+    t->nrow++;
+    return LW_OK;
 }
 
 static lw_status dup_into(char **slot, const char *text, lw_error *err)
@@ -176,6 +212,8 @@ static void pad(FILE *fp, size_t n);
 
 static const char *cell_text(const lw_rtable *t, size_t r, size_t c)
 {
+    if (t->off)
+        return t->arena + t->off[r * t->ncol + c];
     const char *s = t->cell[r * t->ncol + c];
     return s ? s : "";
 }
@@ -344,7 +382,7 @@ static void md_cell(FILE *fp, const char *s)
     fputs(" |", fp);
 }
 
-static void write_md(const lw_rtable *t, FILE *fp)
+static void md_head(const lw_rtable *t, FILE *fp)
 {
     if (t->title)
         fprintf(fp, "**%s**\n\n", t->title);
@@ -359,16 +397,39 @@ static void write_md(const lw_rtable *t, FILE *fp)
     for (size_t c = 0; c < t->ncol; c++)
         fputs(numeric_column(t, c) ? " ---: |" : " :--- |", fp);
     fputc('\n', fp);
-    for (size_t r = 0; r < t->nrow; r++) {
-        fputc('|', fp);
-        for (size_t c = 0; c < t->ncol; c++)
-            md_cell(fp, cell_text(t, r, c));
-        fputc('\n', fp);
-    }
+}
+
+static void md_notes(const lw_rtable *t, FILE *fp)
+{
     if (t->nnotes)
         fputc('\n', fp);
     for (size_t i = 0; i < t->nnotes; i++)
         fprintf(fp, "%s%s\n", t->notes[i], i + 1 < t->nnotes ? "  " : "");
+}
+
+static void md_row(const lw_rtable *t, size_t r, FILE *fp)
+{
+    fputc('|', fp);
+    for (size_t c = 0; c < t->ncol; c++)
+        md_cell(fp, cell_text(t, r, c));
+    fputc('\n', fp);
+}
+
+static void write_md(const lw_rtable *t, FILE *fp)
+{
+    md_head(t, fp);
+    for (size_t r = 0; r < t->nrow; r++)
+        md_row(t, r, fp);
+    md_notes(t, fp);
+}
+
+static void csv_row(const lw_rtable *t, size_t r, lw_csvw *w)
+{
+    for (size_t c = 0; c < t->ncol; c++) {
+        const char *f = t->off ? NULL : t->full[r * t->ncol + c];
+        lw_csvw_text(w, f ? f : cell_text(t, r, c));
+    }
+    lw_csvw_end_row(w);
 }
 
 static void write_csv(const lw_rtable *t, FILE *fp, lw_csvw *w)
@@ -377,13 +438,8 @@ static void write_csv(const lw_rtable *t, FILE *fp, lw_csvw *w)
     for (size_t c = 0; c < t->ncol; c++)
         lw_csvw_text(w, t->head[c] ? t->head[c] : "");
     lw_csvw_end_row(w);
-    for (size_t r = 0; r < t->nrow; r++) {
-        for (size_t c = 0; c < t->ncol; c++) {
-            const char *f = t->full[r * t->ncol + c];
-            lw_csvw_text(w, f ? f : cell_text(t, r, c));
-        }
-        lw_csvw_end_row(w);
-    }
+    for (size_t r = 0; r < t->nrow; r++)
+        csv_row(t, r, w);
 }
 
 lw_status lw_rtable_write(const lw_rtable *t, FILE *fp, lw_rtable_format fmt, lw_error *err)
@@ -398,6 +454,93 @@ lw_status lw_rtable_write(const lw_rtable *t, FILE *fp, lw_rtable_format fmt, lw
     if (w.failed || ferror(fp))
         return lw_error_set(err, LW_EIO, NULL, 0, "write error");
     return LW_OK;
+}
+
+/* A Markdown row in memory: the characters md_cell writes, escaped alike. */
+static char *md_row_text(const lw_rtable *t, size_t r, size_t *len)
+{
+    size_t cap = 4;
+    for (size_t c = 0; c < t->ncol; c++)
+        cap += 2 * strlen(cell_text(t, r, c)) + 4;
+    char *b = lw_malloc(cap), *p = b;
+    if (!b)
+        return NULL;
+    *p++ = '|';
+    for (size_t c = 0; c < t->ncol; c++) {
+        *p++ = ' ';
+        for (const char *s = cell_text(t, r, c); *s; s++) {
+            if (*s == '|')
+                *p++ = '\\', *p++ = '|';
+            else
+                *p++ = *s == '\n' ? ' ' : *s;
+        }
+        *p++ = ' ', *p++ = '|';
+    }
+    *p++ = '\n';
+    *p = '\0';
+    *len = (size_t)(p - b);
+    return b;
+}
+
+lw_status lw_rtable_render_row(const lw_rtable *t, size_t row, lw_rtable_format fmt, char **out,
+                               size_t *len, lw_error *err)
+{
+    *out = NULL;
+    *len = 0;
+    if (fmt == LW_FMT_CSV) {
+        lw_csvw w;
+        lw_csvw_init_mem(&w);
+        csv_row(t, row, &w);
+        if (w.failed) {
+            free(w.buf);
+            return lw_error_set(err, LW_ENOMEM, NULL, 0, "out of memory for a table row");
+        }
+        *out = w.buf;
+        *len = w.len;
+        return LW_OK;
+    }
+    if (fmt == LW_FMT_MD) {
+        *out = md_row_text(t, row, len);
+        return *out ? LW_OK : lw_error_set(err, LW_ENOMEM, NULL, 0, "out of memory");
+    }
+    size_t n = 0;
+    for (size_t c = 0; c < t->ncol; c++)
+        n += strlen(cell_text(t, row, c)) + 1;
+    char *b = lw_malloc(n ? n : 1), *p = b;
+    if (!b)
+        return lw_error_set(err, LW_ENOMEM, NULL, 0, "out of memory for a table row");
+    for (size_t c = 0; c < t->ncol; c++) {
+        const char *s = cell_text(t, row, c);
+        size_t k = strlen(s) + 1;
+        memcpy(p, s, k);
+        p += k;
+    }
+    *out = b;
+    *len = n;
+    return LW_OK;
+}
+
+lw_status lw_rtable_write_head(const lw_rtable *t, FILE *fp, lw_rtable_format fmt,
+                               lw_error *err)
+{
+    if (fmt == LW_FMT_CSV) {
+        lw_csvw w;
+        lw_csvw_init(&w, fp);
+        for (size_t c = 0; c < t->ncol; c++)
+            lw_csvw_text(&w, t->head[c] ? t->head[c] : "");
+        lw_csvw_end_row(&w);
+    } else if (fmt == LW_FMT_MD) {
+        md_head(t, fp);
+    }
+    return ferror(fp) ? lw_error_set(err, LW_EIO, NULL, 0, "write error") : LW_OK;
+}
+
+lw_status lw_rtable_write_notes(const lw_rtable *t, FILE *fp, lw_rtable_format fmt,
+                                lw_error *err)
+{
+    if (fmt == LW_FMT_MD)
+        md_notes(t, fp);
+    return ferror(fp) ? lw_error_set(err, LW_EIO, NULL, 0, "write error") : LW_OK;
 }
 
 lw_status lw_rtable_num(lw_rtable *t, size_t row, size_t col, double v, int sig,

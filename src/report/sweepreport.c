@@ -4,8 +4,11 @@
 #include "lampwick/sweepreport.h"
 #include "lampwick/number.h"
 
+#include <pthread.h>
 #include <stdio.h>
+#include <stdlib.h>
 #include <string.h>
+#include "lampwick/alloc.h"
 #include "lampwick/report.h"
 
 static const char *const sweep_text_cols[] = {
@@ -100,6 +103,226 @@ lw_status lw_report_sweep(const lw_sweep *sw, lw_rtable_format fmt, const char *
 {
     locale_t saved = lw_number_locale_begin();
     lw_status result = lw_report_sweep_in_c_locale(sw, fmt, columns, out, err);
+    lw_number_locale_end(saved);
+    return result;
+}
+
+/* ---- a sweep written as it runs ---- */
+
+typedef struct slot {
+    char *text;      /* the row rendered (CSV or Markdown line, or packed cells) */
+    size_t len;
+    char *packed;    /* row 0 in Markdown: its cells, for the columns' alignment */
+    size_t packed_len;
+    bool ready;
+    bool failed;     /* the row failed: the writing ends before it */
+} slot;
+
+struct writer {
+    lw_rtable_format fmt;
+    FILE *fp;
+    const lw_vary *vary;
+    size_t nk, ncols;
+    const size_t *cols;
+    lw_rtable *head;     /* the header; text: every row, packed */
+    lw_rtable **full;    /* per worker: one row of every run column */
+    lw_rtable **row;     /* per worker: the row's own cells */
+    pthread_mutex_t lock;
+    pthread_cond_t moved;
+    slot *win;
+    size_t nwin, next;   /* the window of rows; the next row to write */
+    bool stopped;        /* a row or a write failed: the rest are dropped */
+    lw_status st;        /* a write's own failure */
+    lw_error err;
+};
+
+/* Format row r (worker w) in the worker's tables. */
+static lw_status format_row(struct writer *wr, const lw_sweep *sw, size_t r, int w,
+                            const lw_case *c, lw_error *err)
+{
+    lw_rtable *full = wr->full[w], *row = wr->row[w];
+    lw_status st = lw_report_run_row(full, 0, 0, &c->light, &c->res, err);
+    for (size_t k = 0; k < wr->nk && st == LW_OK; k++)
+        st = lw_rtable_set(row, 0, k, sw->vary[k].values[sw->index[r * wr->nk + k]], err);
+    for (size_t j = 0; j < wr->ncols && st == LW_OK; j++)
+        st = lw_rtable_copy_cell(row, 0, wr->nk + j, full, 0, wr->cols[j], err);
+    return st;
+}
+
+/* Write the rows that are ready from wr->next on (the lock held). */
+static void flush_ready(struct writer *wr)
+{
+    for (;;) {
+        slot *s = &wr->win[wr->next % wr->nwin];
+        if (!s->ready)
+            return;
+        if (s->failed) { /* the rows before it are written; none after */
+            wr->stopped = true;
+            return;
+        }
+        lw_status st = LW_OK;
+        if (wr->fmt == LW_FMT_TEXT) {
+            st = lw_rtable_add_packed(wr->head, s->text, s->len, &wr->err);
+        } else {
+            if (s->packed) { /* row 0 of Markdown: the head, aligned by it */
+                st = lw_rtable_add_packed(wr->head, s->packed, s->packed_len, &wr->err);
+                if (st == LW_OK)
+                    st = lw_rtable_write_head(wr->head, wr->fp, wr->fmt, &wr->err);
+            }
+            if (st == LW_OK && fwrite(s->text, 1, s->len, wr->fp) != s->len)
+                st = lw_error_set(&wr->err, LW_EIO, NULL, 0, "write error");
+        }
+        free(s->text);
+        free(s->packed);
+        *s = (slot){0};
+        if (st != LW_OK) {
+            wr->st = st;
+            wr->stopped = true;
+            return;
+        }
+        wr->next++;
+    }
+}
+
+static lw_status write_row(const lw_sweep *sw, size_t r, int w, const lw_case *c, void *vctx,
+                           lw_error *err)
+{
+    struct writer *wr = vctx;
+    char *text = NULL, *packed = NULL;
+    size_t len = 0, packed_len = 0;
+    lw_status st = c->status;
+    if (st == LW_OK)
+        st = format_row(wr, sw, r, w, c, err);
+    if (st == LW_OK)
+        st = lw_rtable_render_row(wr->row[w], 0, wr->fmt, &text, &len, err);
+    if (st == LW_OK && r == 0 && wr->fmt == LW_FMT_MD)
+        st = lw_rtable_render_row(wr->row[w], 0, LW_FMT_TEXT, &packed, &packed_len, err);
+    pthread_mutex_lock(&wr->lock);
+    while (!wr->stopped && r >= wr->next + wr->nwin)
+        pthread_cond_wait(&wr->moved, &wr->lock);
+    if (wr->stopped) { /* past a failed row or a failed write: dropped */
+        pthread_mutex_unlock(&wr->lock);
+        free(text);
+        free(packed);
+        return st != LW_OK ? st : (wr->st != LW_OK ? wr->st : LW_OK);
+    }
+    /* a failed row takes its place too: the rows before it are still written,
+     * whatever order they finish in, and the sweep reports its error */
+    if (st != LW_OK) {
+        free(text);
+        free(packed);
+        text = packed = NULL;
+        len = packed_len = 0;
+    }
+    wr->win[r % wr->nwin] = (slot){text, len, packed, packed_len, true, st != LW_OK};
+    flush_ready(wr);
+    pthread_cond_broadcast(&wr->moved);
+    pthread_mutex_unlock(&wr->lock);
+    return st;
+}
+
+static void writer_free(struct writer *wr, int workers)
+{
+    for (int w = 0; w < workers; w++) {
+        if (wr->full)
+            lw_rtable_free(wr->full[w]);
+        if (wr->row)
+            lw_rtable_free(wr->row[w]);
+    }
+    for (size_t i = 0; wr->win && i < wr->nwin; i++) {
+        free(wr->win[i].text);
+        free(wr->win[i].packed);
+    }
+    free(wr->win);
+    free(wr->full);
+    free(wr->row);
+    lw_rtable_free(wr->head);
+}
+
+/* The writer's tables: the header, and per worker its two one-row tables. */
+static lw_status writer_init(struct writer *wr, int workers, lw_error *err)
+{
+    size_t nk = wr->nk, ncols = wr->ncols, row;
+    wr->head = lw_rtable_new(nk + ncols, err);
+    wr->full = lw_calloc((size_t)workers, sizeof *wr->full);
+    wr->row = lw_calloc((size_t)workers, sizeof *wr->row);
+    wr->nwin = (size_t)workers * LW_SWEEP_WINDOW_PER_THREAD;
+    wr->win = lw_calloc(wr->nwin, sizeof *wr->win);
+    if (!wr->head || !wr->full || !wr->row || !wr->win)
+        return lw_error_set(err, LW_ENOMEM, NULL, 0, "out of memory for the sweep");
+    lw_status st = LW_OK;
+    for (size_t k = 0; k < nk && st == LW_OK; k++)
+        st = lw_rtable_head(wr->head, k, wr->vary[k].key, err);
+    for (size_t c = 0; c < ncols && st == LW_OK; c++)
+        st = lw_rtable_head(wr->head, nk + c, lw_report_run_columns[wr->cols[c]], err);
+    for (int w = 0; w < workers && st == LW_OK; w++) {
+        wr->full[w] = lw_rtable_new(lw_report_run_ncolumns, err);
+        wr->row[w] = wr->full[w] ? lw_rtable_new(nk + ncols, err) : NULL;
+        if (!wr->row[w])
+            return err->code ? err->code : LW_ENOMEM;
+        st = lw_rtable_add_row(wr->full[w], &row, err);
+        if (st == LW_OK)
+            st = lw_rtable_add_row(wr->row[w], &row, err);
+    }
+    return st;
+}
+
+static lw_status sweep_stream_in_c_locale(const lw_profile *base, const lw_vary *vary,
+                                          size_t nvary, int threads, lw_rtable_format fmt,
+                                          const char *columns, FILE *fp,
+                                          lw_pool_progress_fn progress, void *progress_ctx,
+                                          lw_sweep *sw, lw_error *err)
+{
+    size_t cols[SWEEP_COLUMNS_MAX], ncols;
+    memset(sw, 0, sizeof *sw);
+    lw_status st = sweep_columns(columns, fmt, cols, &ncols, err);
+    if (st != LW_OK)
+        return st;
+    size_t n = 1;
+    for (size_t k = 0; k < nvary; k++)
+        n *= vary[k].n ? vary[k].n : 1;
+    int workers = lw_pool_threads(n, threads);
+    struct writer wr = {.fmt = fmt, .fp = fp, .vary = vary, .nk = nvary, .ncols = ncols,
+                        .cols = cols, .st = LW_OK};
+    lw_error_clear(&wr.err);
+    st = writer_init(&wr, workers, err);
+    if (st == LW_OK && fmt == LW_FMT_CSV)
+        st = lw_rtable_write_head(wr.head, fp, fmt, err);
+    if (st != LW_OK) {
+        writer_free(&wr, workers);
+        return st;
+    }
+    pthread_mutex_init(&wr.lock, NULL);
+    pthread_cond_init(&wr.moved, NULL);
+    st = lw_sweep_stream(base, vary, nvary, workers, write_row, &wr, progress, progress_ctx, sw,
+                         err);
+    pthread_cond_destroy(&wr.moved);
+    pthread_mutex_destroy(&wr.lock);
+    if (wr.st != LW_OK) { /* a write failed: its error, not the rows' */
+        lw_error_clear(err);
+        if (err)
+            *err = wr.err;
+        st = wr.st;
+    }
+    if (st == LW_OK && fmt != LW_FMT_CSV)
+        st = lw_rtable_note(wr.head, lw_report_caution, err);
+    if (st == LW_OK)
+        st = fmt == LW_FMT_TEXT ? lw_rtable_write(wr.head, fp, fmt, err)
+                                : lw_rtable_write_notes(wr.head, fp, fmt, err);
+    if (st == LW_OK && fflush(fp) != 0)
+        st = lw_error_set(err, LW_EIO, NULL, 0, "write error");
+    writer_free(&wr, workers);
+    return st;
+}
+
+lw_status lw_report_sweep_stream(const lw_profile *base, const lw_vary *vary, size_t nvary,
+                                 int threads, lw_rtable_format fmt, const char *columns, FILE *fp,
+                                 lw_pool_progress_fn progress, void *progress_ctx, lw_sweep *sw,
+                                 lw_error *err)
+{
+    locale_t saved = lw_number_locale_begin();
+    lw_status result = sweep_stream_in_c_locale(base, vary, nvary, threads, fmt, columns, fp,
+                                                progress, progress_ctx, sw, err);
     lw_number_locale_end(saved);
     return result;
 }

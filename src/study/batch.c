@@ -7,11 +7,6 @@
 #include <stdio.h>
 #include <string.h>
 
-/* Fewer cases than this run on the calling thread alone: a run takes some
- * tens of microseconds, a thread start and join a similar time, so a small
- * batch gains nothing from threads (a judgement, no measurement). */
-#define BATCH_THREADED_MIN 16
-
 struct batch {
     const lw_profile *base;
     lw_case *cases;
@@ -21,15 +16,19 @@ struct batch {
 static void run_case(size_t i, void *vctx)
 {
     struct batch *b = vctx;
-    lw_case *c = &b->cases[i];
+    lw_batch_run_case(b->base, &b->cases[i], b->origin);
+}
+
+void lw_batch_run_case(const lw_profile *base, lw_case *c, const char *origin)
+{
     lw_error_clear(&c->err);
     lw_profile p;
-    c->status = lw_profile_derive(b->base, &c->variant, b->origin, &p, &c->err);
+    c->status = lw_profile_derive(base, &c->variant, origin, &p, &c->err);
     if (c->status == LW_OK) {
         lw_run_options opt = lw_run_options_default();
         c->status = lw_run(&p.light, &opt, &c->res, &c->err);
         if (c->status != LW_OK && !c->err.file[0])
-            lw_text_copy(c->err.file, b->base->path, sizeof c->err.file);
+            lw_text_copy(c->err.file, base->path, sizeof c->err.file);
     }
     if (c->status == LW_OK) {
         lw_light_copy(&c->light, &p.light);
@@ -42,7 +41,7 @@ void lw_batch_run(const lw_profile *base, lw_case *cases, size_t n, int threads,
                   const char *origin, lw_pool_progress_fn progress, void *progress_ctx)
 {
     struct batch b = {base, cases, origin};
-    if (n < BATCH_THREADED_MIN)
+    if (n < LW_BATCH_THREADED_MIN)
         threads = 1;
     lw_pool_for(n, threads, run_case, &b, progress, progress_ctx);
 }
