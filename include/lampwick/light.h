@@ -152,6 +152,9 @@ LW_MUST_CHECK lw_status lw_light_point_at(const lw_light *light, double depth, d
  * the map's slope is a few per cent for real LEDs, so it converges in 3 to 6
  * steps, and a slope near 1 means runaway. */
 #define LW_THERMAL_ITER_MAX 60
+/* The most secant steps from a hinted junction temperature before the
+ * bracketing search takes over (lw_light_point_state). */
+#define LW_THERMAL_HINT_STEPS 6
 /* The junction temperature is solved to this share of its absolute value
  * (a few hundred ulps), so that the depth quadrature's integrands carry no
  * noise from it. */
@@ -164,7 +167,9 @@ LW_MUST_CHECK lw_status lw_light_point_at(const lw_light *light, double depth, d
 /* The operating point with the board and body temperatures of *state for
  * the nodes that have a heat capacity (the others at their balance), the
  * junction solved with the LEDs' own heat.  state NULL: every node at
- * steady state. */
+ * steady state.  A finite state->junction_c is a hint where to start the
+ * junction's search (a neighbouring point's); the point is the same to the
+ * search's tolerance with or without it. */
 LW_MUST_CHECK lw_status lw_light_point_state(const lw_light *light, double depth, double ocv_v,
                                              double r_cell_ohm, bool fallback,
                                              const lw_temps *state, lw_point *pt, lw_error *err);

@@ -196,9 +196,14 @@ static lw_status solve_table(const lw_led *led, double e_v, double r_ohm, double
             xb = x;
         double step = df < 0.0 ? -f / df : 0.0;
         double xn = x + step;
-        if (!(xn > xa && xn < xb) || df >= 0.0)
+        bool inside = xn > xa && xn < xb && df < 0.0;
+        if (!inside)
             xn = 0.5 * (xa + xb); /* Newton left the bracket: bisect */
-        if (fabs(xn - x) <= 1e-14 * fabs(xn) || xb - xa <= 1e-14 * fabs(xb)) {
+        /* the error after a Newton step is |f''/(2 f')| step^2 on this cubic:
+         * below 1e-15 of the current, the step is the last */
+        double d2v = (dy * (6 - 12 * s) + m0 * (6 * s - 4) + m1 * (6 * s - 2)) / (h * h);
+        bool last = inside && fabs(nv * d2v / (2.0 * df)) * step * step <= 1e-15 * fabs(xn);
+        if (last || fabs(xn - x) <= 1e-14 * fabs(xn) || xb - xa <= 1e-14 * fabs(xb)) {
             *i_a = xn;
             return LW_OK;
         }

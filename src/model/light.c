@@ -217,11 +217,36 @@ static lw_status point_folded(const lw_light *l, double depth, double ocv_v, dou
      * heat is never negative, so g >= 0 at the coldest node: the lower end
      * of a bracket.  Upwards by fixed-point and secant steps (doubling when
      * they stall) until g < 0 closes the bracket, then the Illinois variant
-     * of regula falsi inside it (Dowell and Jarratt, BIT 11, 1971). */
+     * of regula falsi inside it (Dowell and Jarratt, BIT 11, 1971).  With a
+     * hint (s.junction_c, a neighbouring point's), secant steps from it
+     * first: the map's slope is a few per cent, so two or three reach the
+     * tolerance; the bracket from scratch when they do not. */
     double a = fmin(ta, fmin(s.board_c, s.body_c)), ga = NAN, b = NAN, gb = NAN;
     double x = a;
     int side = 0;
     lw_temps t;
+    if (isfinite(s.junction_c) && s.junction_c >= a && s.junction_c < ta + LW_THERMAL_RUNAWAY_K) {
+        double x0 = s.junction_c, g0 = NAN;
+        for (int it = 0; it < LW_THERMAL_HINT_STEPS; it++) {
+            w.led.t_junction_c = x0;
+            lw_status st = point_electrical(&w, depth, ocv_v, r_cell_ohm, fallback, pt, err);
+            if (st != LW_OK)
+                return st;
+            point_temps(l, pt, &s, &t);
+            double g = t.junction_c - x0;
+            if (fabs(g) <= LW_THERMAL_TOL * (273.15 + fabs(x0))) {
+                pt->temps = t;
+                pt->temps.junction_c = x0;
+                return LW_OK;
+            }
+            /* the fixed-point step first, then secants */
+            double next = isnan(g0) || g == g0 ? x0 + g : x0 - g * (x0 - x) / (g - g0);
+            if (!(next >= a && next < ta + LW_THERMAL_RUNAWAY_K))
+                break;
+            x = x0, g0 = g, x0 = next;
+        }
+        x = a; /* the bracket from the coldest node */
+    }
     for (int it = 0; it < LW_THERMAL_ITER_MAX; it++) {
         w.led.t_junction_c = x;
         lw_status st = point_electrical(&w, depth, ocv_v, r_cell_ohm, fallback, pt, err);

@@ -55,6 +55,8 @@ typedef struct tr {
     lw_result *res;
     lw_error *err;
     bool fallback;
+    double tj_hint;         /* the last point's junction temperature: where the next
+                               point's search starts (NAN: none yet) */
     double a[NS][NS], c[NS]; /* the Radau IIA tableau */
 } tr;
 
@@ -128,10 +130,12 @@ static lw_status eval(tr *e, const double x[NX], lw_point *pt, double f[NX], dou
                             "the run in time stopped after %d operating-point solves near "
                             "depth %.6g (max_solves)",
                             e->opt->max_solves, x[0]);
-    lw_temps s = {NAN, x[1], x[2]};
+    lw_temps s = {e->tj_hint, x[1], x[2]};
     lw_status st = lw_light_point_depth(e->l, curve_depth(e, x), e->fallback, &s, pt, e->err);
-    if (st == LW_OK)
+    if (st == LW_OK) {
         rates_of(e, x, pt, f, g);
+        e->tj_hint = pt->temps.junction_c; /* where the next point's search starts */
+    }
     return st;
 }
 
@@ -273,6 +277,9 @@ typedef struct step {
     double x[NX], dq[NQ];
     double z[NS][NX], zq[NS][NQ];
     lw_point p;
+    lw_point ps[NS - 1];    /* the points at the inner stages (c1, c2 of the step),
+                               as Newton last solved them (ps_ok) */
+    bool ps_ok;
     double err, theta;
     bool ok;
 } step;
@@ -382,6 +389,7 @@ static lw_status radau_step(tr *e, const double x0[NX], const lw_point *p0, cons
                         (i == k && a == b ? 1.0 : 0.0) - h * e->a[i][k] * j->fx[a][b];
     s->h = h;
     s->ok = false;
+    s->ps_ok = false;
     s->err = INFINITY;
     s->theta = 0.0;
     if (!lu_factor(m, piv, nz))
@@ -403,6 +411,9 @@ static lw_status radau_step(tr *e, const double x0[NX], const lw_point *p0, cons
             lw_status st = eval(e, y, &pt, f[i], g[i]);
             if (st != LW_OK)
                 return st;
+            if (i < NS - 1)
+                s->ps[i] = pt;
+            s->ps_ok = true;
         }
         for (int i = 0; i < NS; i++)
             for (int a = 0; a < n; a++) {
@@ -1210,20 +1221,46 @@ static lw_status integrate(run *r, bool stop_at_30s)
             continue;
         }
         improve = false;
-        /* the earliest event over the step, if any */
+        /* the earliest event over the step, if any.  A step that ends where
+         * the driver went dark has the other events judged at the last
+         * point it held: a cell sagging below its end point under load
+         * shows there, not at the dark point, where it rests unloaded */
         int first = -1;
         double h_event = h;
         step at = s, before = {0};
+        const bool dark_end = kink == EV_REGIME && s.p.regime == LW_REGIME_DROPOUT &&
+                              kink_before.ok;
         for (int k = 0; k < EV_COUNT; k++) {
-            if (!fired(r, k, &s.p, curve_depth(&r->e, s.x)))
+            const step *judge = dark_end && k != kink ? &kink_before : &s;
+            if (!fired(r, k, &judge->p, curve_depth(&r->e, judge->x)))
                 continue;
-            step b = kink_before, a = s;
-            double h_k = h;
-            st = k == kink ? LW_OK : locate(r, k, h, &s, &b, &a, &h_k);
+            step b = k == kink ? kink_before : (step){0}, a = *judge;
+            double h_k = judge->h;
+            st = k == kink ? LW_OK : locate(r, k, judge->h, judge, &b, &a, &h_k);
             if (st != LW_OK)
                 return st;
             if (first < 0 || h_k < h_event) {
                 first = k, h_event = h_k, at = a, before = b;
+            }
+        }
+        /* an event that fires and undoes itself inside the step (the cells
+         * sag below an end point and recover as the foldback cuts the power)
+         * shows at an inner stage: from the step's start to that stage */
+        for (int i = 0; first < 0 && s.ps_ok && i < NS - 1; i++) {
+            for (int k = 0; k < EV_COUNT; k++) {
+                if (k == kink || !fired(r, k, &s.ps[i], s.ps[i].depth))
+                    continue;
+                double h_i = r->e.c[i] * h, h_k = h_i;
+                step b = {0}, a;
+                st = radau_step(&r->e, r->x, &r->p, &r->j, r->q, h_i, false, &a);
+                if (st == LW_OK && a.ok && fired(r, k, &a.p, curve_depth(&r->e, a.x)))
+                    st = locate(r, k, h_i, &a, &b, &a, &h_k);
+                else
+                    continue;
+                if (st != LW_OK)
+                    return st;
+                if (first < 0 || h_k < h_event)
+                    first = k, h_event = h_k, at = a, before = b;
             }
         }
         double grow = fmin(4.0, fmax(0.2, 0.9 * pow(fmax(s.err, 1e-30), -0.25)));
@@ -1283,7 +1320,7 @@ static void init_run(run *r, const lw_light *l, const lw_run_options *opt, lw_re
                      lw_error *err)
 {
     memset(r, 0, sizeof *r);
-    r->e = (tr){.l = l, .l0 = l, .opt = opt, .res = res, .err = err};
+    r->e = (tr){.l = l, .l0 = l, .opt = opt, .res = res, .err = err, .tj_hint = NAN};
     r->first = l;
     r->session_end = INFINITY;
     if (l->chain)
