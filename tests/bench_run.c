@@ -1,52 +1,332 @@
 /*
- * bench_run.c - benchmark: full discharges per second and solves per run for
- * every bundled profile (and each of its modes; runs in time also at a
- * relative tolerance of 1e-6, the figure a thermal design study needs).  Run with
- * `meson test --benchmark -v`.  Prints; asserts nothing (tests do that).
+ * bench_run.c - benchmark: full discharges per second and solves per run
+ * for every bundled profile (and each of its modes; runs in time also at a
+ * relative tolerance of 1e-6, the figure a thermal design study needs), the
+ * cost of a dense cell curve, a measured-table LED on the depth path, and a
+ * 100,000-row sweep's memory and speed on one and two threads; then the
+ * targets of docs/benchmark.md against what was measured.  Run with
+ * `meson test -C build-rel --benchmark -v discharges`.  Prints; asserts
+ * nothing (tests do that).  Timings are medians of BENCH_ROUNDS rounds, one
+ * core per run.
  */
+#define _DEFAULT_SOURCE /* wait4: the peak memory of one child */
+#include <math.h>
 #include <stdio.h>
+#include <stdlib.h>
+#include <string.h>
+#include <sys/resource.h>
+#include <sys/wait.h>
+#include <unistd.h>
 #include "bench_each.h"
 
-static void bench(const lw_profile *p, const char *label, double rtol)
+#define BENCH_ROUNDS 5
+#define BENCH_ROUND_S 0.1
+
+typedef struct measure {
+    double us, per_s; /* median microseconds per run, runs per second */
+    int solves;
+    double runtime_h;
+    bool ok;
+} measure;
+
+static int cmp_double(const void *a, const void *b)
+{
+    double x = *(const double *)a, y = *(const double *)b;
+    return (x > y) - (x < y);
+}
+
+/* Median time of lw_run on light l at rtol over BENCH_ROUNDS rounds. */
+static measure time_runs(const lw_light *l, double rtol)
 {
     lw_run_options opt = lw_run_options_default();
     opt.rtol = rtol;
-    lw_result r = {0};
+    measure m = {0};
     lw_error e;
     lw_error_clear(&e);
-    /* size the loop to about 0.3 s */
-    double t0 = bench_now_s();
-    long n = 0;
-    int solves = 0;
-    while (bench_now_s() - t0 < 0.3) {
-        for (int k = 0; k < 100; k++) {
-            if (lw_run(&p->light, &opt, &r, &e) != LW_OK) {
-                fprintf(stderr, "%s: %s\n", label, e.msg);
-                return;
+    double us[BENCH_ROUNDS];
+    for (int round = 0; round < BENCH_ROUNDS; round++) {
+        double t0 = bench_now_s(), dt;
+        long n = 0;
+        do {
+            for (int k = 0; k < 20; k++) {
+                lw_result r;
+                if (lw_run(l, &opt, &r, &e) != LW_OK) {
+                    fprintf(stderr, "run failed: %s\n", e.msg);
+                    return m;
+                }
+                m.solves = r.solves;
+                m.runtime_h = r.runtime_h;
+                lw_run_result_clear(&r);
             }
-            solves = r.solves;
-        }
-        n += 100;
+            n += 20;
+            dt = bench_now_s() - t0;
+        } while (dt < BENCH_ROUND_S);
+        us[round] = 1e6 * dt / (double)n;
     }
-    double dt = bench_now_s() - t0;
-    printf("%-48s %10.0f discharges/s  %5d solves/run  %8.3f us/run  runtime %.4g h\n", label,
-           (double)n / dt, solves, 1e6 * dt / (double)n, r.runtime_h);
+    qsort(us, BENCH_ROUNDS, sizeof us[0], cmp_double);
+    m.us = us[BENCH_ROUNDS / 2];
+    m.per_s = 1e6 / m.us;
+    m.ok = true;
+    return m;
 }
 
-/* Every profile and mode; a run in time also at the tolerance a design
- * study asks. */
+/* What the targets read, gathered while the profiles run. */
+typedef struct summary {
+    int resistor_solves_max;          /* bundled resistor drives, run in depth */
+    double analytic_per_s_min;        /* constant, linear and Shockley LEDs in depth */
+    double table_per_s_min;           /* measured-table LEDs in depth */
+    int thermal_solves[2];            /* headlamp at rtol 1e-6 and the default */
+    double thermal_us[2];
+    double dense_ratio[2];            /* straight-segment and curved 5,000 points */
+    int dense_solves[3];              /* bundled, straight, curved */
+    double sweep_s[2], sweep_ratio;
+    long sweep_kb[2];
+} summary;
+
+static bool in_depth(const lw_light *l)
+{
+    return lw_thermal_quasi_static(&l->thermal) && !l->chain && !l->use &&
+           !lw_cell_is_kinetic(&l->pack.cell);
+}
+
+static void line(const char *label, const char *path, measure m)
+{
+    if (m.ok)
+        printf("%-44s %-5s %10.0f discharges/s %6d solves/run %9.2f us/run  runtime %.4g h\n",
+               label, path, m.per_s, m.solves, m.us, m.runtime_h);
+}
+
 static void each(const lw_profile *p, const char *label, const char *mode, void *ctx)
 {
-    (void)ctx;
-    bench(p, label, 1e-10);
-    if (mode && (!lw_thermal_quasi_static(&p->light.thermal) || p->light.chain)) {
+    summary *s = ctx;
+    const lw_light *l = &p->light;
+    bool depth = in_depth(l);
+    measure m = time_runs(l, 1e-10);
+    line(label, depth ? "depth" : "time", m);
+    if (!m.ok)
+        return;
+    if (depth) {
+        if (l->drive.type == LW_DRIVE_RESISTOR && m.solves > s->resistor_solves_max)
+            s->resistor_solves_max = m.solves;
+        if (l->led.model == LW_LED_TABLE)
+            s->table_per_s_min = fmin(s->table_per_s_min, m.per_s);
+        else
+            s->analytic_per_s_min = fmin(s->analytic_per_s_min, m.per_s);
+    }
+    bool headlamp = strstr(label, "headlamp-18650.ini") && !mode;
+    if (headlamp)
+        s->thermal_solves[1] = m.solves, s->thermal_us[1] = m.us;
+    if (!depth) {
         char l6[200];
         snprintf(l6, sizeof l6, "%s (rtol 1e-6)", label);
-        bench(p, l6, 1e-6);
+        measure m6 = time_runs(l, 1e-6);
+        line(l6, "time", m6);
+        if (headlamp)
+            s->thermal_solves[0] = m6.solves, s->thermal_us[0] = m6.us;
     }
+}
+
+/* ---- a dense cell curve ---- */
+
+/* Monotone cubic through (x, y) at u (Fritsch and Carlson; lw_interp_cubic
+ * is the library's own: the benchmark builds the same from the table). */
+static double resample(const lw_interp *t, double u, bool curved)
+{
+    return curved ? lw_interp_cubic(t, u) : lw_interp_linear(t, u);
+}
+
+/* The light with its cell's curves sampled at n points: on their own
+ * straight segments (the same model, its knots among the points) or through
+ * the monotone cubic (n genuine corners). */
+static bool dense_light(const lw_light *base, size_t n, bool curved, lw_light *out)
+{
+    const lw_cell *c = &base->pack.cell;
+    size_t m = n + c->ocv->n;
+    double *x = malloc(3 * m * sizeof *x), *yo = x + m, *yr = x + 2 * m;
+    if (!x)
+        return false;
+    size_t k = 0, j = 0;
+    for (size_t i = 0; i < n; i++) {
+        double u = c->ocv->x[0] + (c->ocv->x[c->ocv->n - 1] - c->ocv->x[0]) * i / (n - 1);
+        while (!curved && j < c->ocv->n && c->ocv->x[j] <= u) { /* keep the corners */
+            if (k == 0 || c->ocv->x[j] > x[k - 1])
+                x[k] = c->ocv->x[j], yo[k] = c->ocv->y[j], yr[k] = c->res->y[j], k++;
+            j++;
+        }
+        if (k > 0 && !(u > x[k - 1]))
+            continue;
+        x[k] = u, yo[k] = resample(c->ocv, u, curved), yr[k] = resample(c->res, u, curved);
+        k++;
+    }
+    lw_error e;
+    lw_interp *o = lw_interp_new(x, yo, k, &e), *r = o ? lw_interp_new(x, yr, k, &e) : NULL;
+    free(x);
+    if (!r) {
+        lw_interp_free(o);
+        return false;
+    }
+    lw_light_copy(out, base);
+    lw_interp_free(out->pack.cell.ocv);
+    lw_interp_free(out->pack.cell.res);
+    out->pack.cell.ocv = o;
+    out->pack.cell.res = r;
+    return true;
+}
+
+static int bench_dense(const lw_profile *p, summary *s)
+{
+    measure base = time_runs(&p->light, 1e-10);
+    line("demo.ini, its 13-point curve", "depth", base);
+    const char *what[2] = {"on its straight segments", "through a monotone cubic"};
+    for (int curved = 0; curved < 2; curved++) {
+        lw_light d;
+        if (!dense_light(&p->light, 5000, curved, &d))
+            return 1;
+        char label[120];
+        snprintf(label, sizeof label, "demo.ini, 5,000 points %s", what[curved]);
+        measure m = time_runs(&d, 1e-10);
+        line(label, "depth", m);
+        printf("    %zu corners; cost %.2fx the 13-point curve\n", d.pack.cell.ocv->ncorner,
+               m.us / base.us);
+        s->dense_ratio[curved] = m.us / base.us;
+        s->dense_solves[curved + 1] = m.solves;
+        lw_light_clear(&d);
+    }
+    s->dense_solves[0] = base.solves;
+    return 0;
+}
+
+/* ---- a measured-table LED in depth ---- */
+
+static int bench_table_depth(const lw_profile *p, summary *s)
+{
+    lw_light l;
+    lw_light_copy(&l, &p->light);
+    l.thermal.enabled = false; /* junctions at ambient: the depth quadrature */
+    lw_light_update_factors(&l, NULL);
+    measure m = time_runs(&l, 1e-10);
+    line("headlamp-18650.ini without [thermal]", "depth", m);
+    if (m.ok)
+        s->table_per_s_min = fmin(s->table_per_s_min, m.per_s);
+    lw_light_clear(&l);
+    return m.ok ? 0 : 1;
+}
+
+/* ---- a 100,000-row sweep ---- */
+
+/* Run the sweep in a child process (its peak memory is its own), CSV to
+ * /dev/null; wall seconds and peak resident kilobytes. */
+static bool sweep_child(const lw_profile *p, int threads, double *wall_s, long *kb)
+{
+    double t0 = bench_now_s();
+    pid_t pid = fork();
+    if (pid < 0)
+        return false;
+    if (pid == 0) {
+        FILE *out = fopen("/dev/null", "w");
+        lw_vary v[2];
+        lw_error e;
+        lw_error_clear(&e);
+        lw_sweep sw;
+        int rc = out && lw_vary_parse("drive.resistor_ohm=10..1009:1", p, &v[0], &e) == LW_OK &&
+                         lw_vary_parse("pack.ambient_c=-10..39.5:0.5", p, &v[1], &e) == LW_OK &&
+                         lw_report_sweep_stream(p, v, 2, threads, LW_FMT_CSV, NULL, out, NULL,
+                                                NULL, &sw, &e) == LW_OK
+                     ? 0
+                     : 1;
+        if (rc)
+            fprintf(stderr, "sweep: %s\n", e.msg);
+        _exit(rc);
+    }
+    int status;
+    struct rusage ru;
+    if (wait4(pid, &status, 0, &ru) != pid || !WIFEXITED(status) || WEXITSTATUS(status) != 0)
+        return false;
+    *wall_s = bench_now_s() - t0;
+    *kb = ru.ru_maxrss;
+    return true;
+}
+
+static int bench_sweep(const lw_profile *p, summary *s)
+{
+    for (int t = 0; t < 2; t++) {
+        if (!sweep_child(p, t + 1, &s->sweep_s[t], &s->sweep_kb[t]))
+            return 1;
+        printf("sweep of 100,000 rows, CSV, %d thread%s  %8.2f s wall  %8ld KB peak resident\n",
+               t + 1, t ? "s" : " ", s->sweep_s[t], s->sweep_kb[t]);
+    }
+    s->sweep_ratio = s->sweep_s[0] / s->sweep_s[1];
+    printf("    two threads %.2fx as fast as one\n", s->sweep_ratio);
+    return 0;
+}
+
+static const char *holds(bool ok)
+{
+    return ok ? "holds" : "DOES NOT HOLD";
+}
+
+static void targets(const summary *s)
+{
+    printf("\nTargets (docs/benchmark.md)\n");
+    printf("  resistor drives in depth, solves per run <= 110:      %5d  %s\n",
+           s->resistor_solves_max, holds(s->resistor_solves_max <= 110));
+    printf("  constant/linear/Shockley LEDs in depth >= 100,000/s:  %6.0f  %s\n",
+           s->analytic_per_s_min, holds(s->analytic_per_s_min >= 100000));
+    printf("  measured-table LEDs in depth >= 50,000/s:             %6.0f  %s\n",
+           s->table_per_s_min, holds(s->table_per_s_min >= 50000));
+    printf("  5,000-point curve on straight segments <= 5x:         %5.2fx  %s\n",
+           s->dense_ratio[0], holds(s->dense_ratio[0] <= 5));
+    printf("  5,000-point curve with 5,000 corners <= 5x:           %5.2fx  %s\n",
+           s->dense_ratio[1], holds(s->dense_ratio[1] <= 5));
+    printf("  100,000-row sweep peak memory < 50 MB:                %5.1f MB  %s\n",
+           s->sweep_kb[1] / 1024.0, holds(s->sweep_kb[0] < 50 * 1024 && s->sweep_kb[1] < 50 * 1024));
+    printf("  100,000-row sweep, two threads >= 1.8x one:           %5.2fx  %s\n",
+           s->sweep_ratio, holds(s->sweep_ratio >= 1.8));
+    for (int k = 0; k < 2; k++)
+        printf("  thermal profile at rtol %s: <= 3,000 solves, < 2 ms:  %5d, %.2f ms  %s\n",
+               k ? "1e-10" : "1e-6 ", s->thermal_solves[k], s->thermal_us[k] / 1000.0,
+               holds(s->thermal_solves[k] <= 3000 && s->thermal_us[k] < 2000));
+}
+
+static int load(const char *name, lw_profile *p)
+{
+    lw_search sp;
+    memset(&sp, 0, sizeof sp);
+    lw_search_add(&sp, LW_SOURCE_ROOT "/cells");
+    lw_error e;
+    lw_error_clear(&e);
+    char path[512];
+    snprintf(path, sizeof path, LW_SOURCE_ROOT "/profiles/%s", name);
+    if (lw_profile_load(path, &sp, p, &e) != LW_OK) {
+        fprintf(stderr, "%s:%d: %s\n", e.file, e.line, e.msg);
+        return 1;
+    }
+    return 0;
 }
 
 int main(void)
 {
-    return bench_each(each, NULL);
+    summary s = {.analytic_per_s_min = INFINITY, .table_per_s_min = INFINITY};
+    printf("Full discharges per second (release build, one core; medians of %d rounds)\n\n",
+           BENCH_ROUNDS);
+    int rc = bench_each(each, &s);
+    lw_profile demo, head;
+    if (rc == 0 && (rc = load("demo.ini", &demo)) == 0) {
+        printf("\nA dense cell curve\n");
+        rc = bench_dense(&demo, &s);
+        if (rc == 0 && (rc = load("headlamp-18650.ini", &head)) == 0) {
+            printf("\nA measured-table LED in depth\n");
+            rc = bench_table_depth(&head, &s);
+            lw_profile_clear(&head);
+        }
+        if (rc == 0) {
+            printf("\nA sweep that streams\n");
+            fflush(stdout);
+            rc = bench_sweep(&demo, &s);
+        }
+        lw_profile_clear(&demo);
+    }
+    if (rc == 0)
+        targets(&s);
+    return rc;
 }

@@ -6,8 +6,9 @@
  * for tests: lw_alloc_fail_at(n) makes the n-th allocation from then on
  * fail (and every later one succeed again), so a test can sweep n over
  * every allocation of a run and check that each failure ends in a clean
- * LW_ENOMEM with nothing leaked.  The hook is one atomic counter; with it
- * off (the default) an allocation costs one atomic load more than malloc.
+ * LW_ENOMEM with nothing leaked.  The hook is one atomic counter, armed by
+ * the first call of lw_alloc_fail_at; until then (in every program but the
+ * tests) an allocation costs one uncontended atomic load more than malloc.
  */
 #ifndef LW_ALLOC_H
 #define LW_ALLOC_H
@@ -25,7 +26,8 @@ void *lw_realloc(void *p, size_t size);
 char *lw_strdup(const char *s);
 
 /* Test hook: the n-th allocation from now fails (n >= 1); 0 turns it off.
- * Returns how many allocations were made since the previous call. */
+ * Returns how many allocations were made since the previous call (the
+ * count starts at the first call). */
 long lw_alloc_fail_at(long n);
 
 #endif

@@ -32,8 +32,18 @@ typedef struct lw_interp {
     double *x;    /* strictly increasing, finite */
     double *y;    /* finite */
     double *m;    /* monotone-cubic slopes dy/dx at the points */
+    size_t *corner; /* the interior points where the piecewise-linear interpolant
+                       bends (not on the line through their neighbours, to within
+                       LW_INTERP_CORNER_ULPS), ascending */
+    size_t ncorner;
     _Atomic int refs; /* reference count (atomic: copies may be dropped on any thread) */
 } lw_interp;
+
+/* A point counts as on the straight line through its neighbours when it is
+ * off it by at most this many ulps of the three values: the rounding of a
+ * dense table sampled from a coarser one's straight segments (a point off
+ * by more is a corner, however slight). */
+#define LW_INTERP_CORNER_ULPS 16.0
 
 /* Copy n points into a new table (refs = 1).  Fails with LW_EINPUT if n < 2,
  * a value is not finite or x is not strictly increasing (the message names the
@@ -54,6 +64,10 @@ double lw_interp_linear(const lw_interp *t, double x);
 
 /* Monotone-cubic value, clamped outside the table. */
 double lw_interp_cubic(const lw_interp *t, double x);
+
+/* The x of the first corner above x (the linear interpolant's first bend;
+ * +INFINITY when none is left), by bisection over the corners. */
+double lw_interp_corner_above(const lw_interp *t, double x);
 
 /* Slope (y[n-1]-y[n-2])/(x[n-1]-x[n-2]) of the last interval. */
 double lw_interp_end_slope(const lw_interp *t);

@@ -196,10 +196,11 @@ double lw_light_depth_end(const lw_light *light);
 /* The cells at the nominal cells' depth d. */
 void lw_light_cells(const lw_light *light, double depth, lw_cells *cells);
 
-/* The first knot of the pack's curves above depth d - the interior points
- * of the cell's curves for the nominal cells and, with a spread, the same
- * points for the weakest cell - or lw_light_depth_end when there is none:
- * the rates have kinks there. */
+/* The first knot of the pack's curves above depth d - the corners of the
+ * cell's curves (lw_interp_corner_above: the points where the straight
+ * pieces bend; a point on the line through its neighbours is none) for the
+ * nominal cells and, with a spread, the same for the weakest cell - or
+ * lw_light_depth_end when there is none: the rates have kinks there. */
 double lw_light_knot_above(const lw_light *light, double depth);
 
 /* lw_light_point_state at the nominal cells' depth d, the cells' values

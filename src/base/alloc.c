@@ -4,14 +4,20 @@
 #include "lampwick/alloc.h"
 
 #include <stdatomic.h>
+#include <stdbool.h>
 #include <stdlib.h>
 #include <string.h>
 
 static atomic_long countdown; /* > 0: allocations until the one that fails */
 static atomic_long made;      /* allocations since the last lw_alloc_fail_at */
+static atomic_bool counting;  /* lw_alloc_fail_at was called: count (tests only; the
+                                 shared counter would make every allocation of every
+                                 thread contend for one cache line) */
 
 static int should_fail(void)
 {
+    if (!atomic_load_explicit(&counting, memory_order_relaxed))
+        return 0;
     atomic_fetch_add(&made, 1);
     if (atomic_load_explicit(&countdown, memory_order_relaxed) <= 0)
         return 0;
@@ -44,6 +50,7 @@ char *lw_strdup(const char *s)
 
 long lw_alloc_fail_at(long n)
 {
+    atomic_store(&counting, true);
     atomic_store(&countdown, n > 0 ? n : 0);
     return atomic_exchange(&made, 0);
 }

@@ -8,6 +8,7 @@
 #include "lampwick/interp.h"
 #include "lampwick/alloc.h"
 
+#include <float.h>
 #include <math.h>
 #include <stdlib.h>
 #include <string.h>
@@ -54,6 +55,20 @@ static void compute_slopes(lw_interp *t)
     t->m[n - 1] = end_slope(h0, h1, d0, d1);
 }
 
+/* The interior points off the straight line through their neighbours. */
+static void find_corners(lw_interp *t)
+{
+    t->ncorner = 0;
+    for (size_t k = 1; k + 1 < t->n; k++) {
+        const double *x = t->x, *y = t->y;
+        double u = (x[k] - x[k - 1]) / (x[k + 1] - x[k - 1]);
+        double on_line = y[k - 1] + u * (y[k + 1] - y[k - 1]);
+        double size = fabs(y[k - 1]) + fabs(y[k]) + fabs(y[k + 1]);
+        if (fabs(y[k] - on_line) > LW_INTERP_CORNER_ULPS * DBL_EPSILON * size)
+            t->corner[t->ncorner++] = k;
+    }
+}
+
 lw_interp *lw_interp_new(const double *x, const double *y, size_t n, lw_error *err)
 {
     if (n < 2) {
@@ -73,7 +88,8 @@ lw_interp *lw_interp_new(const double *x, const double *y, size_t n, lw_error *e
         }
     }
     lw_interp *t = lw_calloc(1, sizeof *t);
-    double *buf = lw_malloc(3 * n * sizeof *buf);
+    /* x, y, m and the corners in one block */
+    double *buf = lw_malloc(3 * n * sizeof *buf + n * sizeof(size_t));
     if (!t || !buf) {
         free(t);
         free(buf);
@@ -88,7 +104,22 @@ lw_interp *lw_interp_new(const double *x, const double *y, size_t n, lw_error *e
     memcpy(t->y, y, n * sizeof *y);
     atomic_init(&t->refs, 1);
     compute_slopes(t);
+    t->corner = (size_t *)(void *)(buf + 3 * n);
+    find_corners(t);
     return t;
+}
+
+double lw_interp_corner_above(const lw_interp *t, double x)
+{
+    size_t lo = 0, hi = t->ncorner; /* the first corner with x[corner] > x */
+    while (lo < hi) {
+        size_t mid = lo + (hi - lo) / 2;
+        if (t->x[t->corner[mid]] > x)
+            hi = mid;
+        else
+            lo = mid + 1;
+    }
+    return lo < t->ncorner ? t->x[t->corner[lo]] : INFINITY;
 }
 
 lw_interp *lw_interp_ref(lw_interp *t)

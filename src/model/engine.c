@@ -149,6 +149,8 @@ static lw_status eval(engine *e, double d, lw_point *pt)
         return lw_light_point(e->l, d, e->fallback, pt, e->err);
     const lw_interp *o = e->l->pack.cell.ocv, *r = e->l->pack.cell.res;
     size_t i = e->seg;
+    if (!(d >= o->x[i] && d <= o->x[i + 1])) /* a piece past collinear points */
+        i = lw_interp_find(o, d);
     double u = (d - o->x[i]) / (o->x[i + 1] - o->x[i]);
     u = u < 0.0 ? 0.0 : (u > 1.0 ? 1.0 : u);
     double ocv = o->y[i] + u * (o->y[i + 1] - o->y[i]);

@@ -434,14 +434,12 @@ double lw_light_knot_above(const lw_light *l, double d)
     double k = end;
     const lw_interp *t[2] = {l->pack.cell.ocv, l->pack.cell.res};
     for (int w = 0; w < (end < 1.0 ? 2 : 1); w++)
-        for (int j = 0; j < 2; j++)
-            for (size_t i = 1; i + 1 < t[j]->n; i++) {
-                double x = scale[w] * t[j]->x[i];
-                if (x > d) {
-                    k = fmin(k, x);
-                    break;
-                }
-            }
+        for (int j = 0; j < 2; j++) {
+            double x = lw_interp_corner_above(t[j], d / scale[w]);
+            while (scale[w] * x <= d) /* the division's rounding */
+                x = lw_interp_corner_above(t[j], x);
+            k = fmin(k, scale[w] * x);
+        }
     return k;
 }
 
