@@ -146,7 +146,7 @@ expect 0 'kinetic model: available_pct [0-9.]+, recovery_per_h [0-9.]+' "$LW" fi
 if grep -q '^available_pct = ' "$TMP/p/kin.ini" && grep -q '^recovery_per_h = ' "$TMP/p/kin.ini"; then ok; else bad "kinetic keys in the fitted cell file"; fi
 out=$("$LW" fit cell "$EX/nimh-aa-3r9.csv" "$EX/nimh-aa-8r2.csv" --load-ohm 3.9,8.2 --cutoff-v 1.0 --total-mah 2300 2>&1)
 # the replayed runtimes within 1 % of the logs under both models (the fitted cell reproduces its logs)
-bad_err=$(printf '%s\n' "$out" | grep -o '([+-][0-9.]* %)' | tr -d '(+-%) ' | awk '$1 > 1 { n++ } END { print n + 0 }')
+bad_err=$(printf '%s\n' "$out" | grep -o '([+-][0-9.]* %)' | tr -d '()+% -' | awk '$1 > 1 { n++ } END { print n + 0 }')
 if [ "$(printf '%s\n' "$out" | grep -c 'kinetic [0-9.]* (')" -eq 2 ] && [ "$bad_err" -eq 0 ]; then ok; else bad "fit cell replay: $out"; fi
 expect 2 'total-mah takes' "$LW" fit cell "$EX/nimh-aa-3r9.csv" "$EX/nimh-aa-8r2.csv" --load-ohm 3.9,8.2 --cutoff-v 1.0 --total-mah -5
 "$LW" fit led "$EX/white-led-bench.csv" --write-profile-section > "$TMP/p/led-section.ini" 2>&1

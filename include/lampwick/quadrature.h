@@ -117,7 +117,7 @@ lw_quad_estimate lw_quad_estimate_at(const lw_quad_rule *rule, const double *a, 
  * 2, and the extrapolation over several degrees is a model; 4 covers both
  * (measured against tight references in tests/test_quadrature.c and
  * tests/test_engine.c). */
-#define LW_QUAD_SAFETY 1.0
+#define LW_QUAD_SAFETY 3.0
 
 /* A decay slower than this per degree is no decay to extrapolate from:
  * the function is not resolved by the rule, and the estimate is the tail

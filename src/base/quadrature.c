@@ -100,15 +100,19 @@ lw_quad_estimate lw_quad_estimate_error(const lw_quad_rule *rule, const double *
         est.rate = 0.0;
         return est;
     }
-    /* the fall per degree: the mean fall over the last three degrees up to
-     * kt, or over the last two, whichever is slower (a decay that slows is
-     * believed at its slowest; three nodes have one step to read) */
+    /* the fall per degree: the mean fall over two degrees, the slowest of
+     * the last two such (a decay that slows is believed at its slowest; a
+     * coefficient that is small by accident, an extremum at the middle of
+     * the piece, is covered by the envelope of the next); four and five
+     * nodes read it up to the last coefficient, three have one step */
     double rate;
     if (kt >= 4)
         rate = sqrt(fmax(env[kt] / env[kt - 2], env[kt - 1] / env[kt - 3]));
     else if (kt == 3)
+        rate = sqrt(fmax(env[3] / env[1], env[4] / env[2]));
+    else if (kt == 2)
         rate = fmax(sqrt(env[3] / env[1]), env[3] / env[2]);
-    else /* kt 2 (four nodes) or 1 (three: E_2 = |a_2|) */
+    else /* kt 1 (three nodes: E_2 = |a_2|) */
         rate = env[2] / env[1];
     return lw_quad_estimate_at(rule, a, noise, est.tail, rate < 1.0 ? rate : 1.0);
 }

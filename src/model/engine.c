@@ -73,6 +73,12 @@ const char *const lw_run_warning_names[LW_WARN_COUNT_] = {
  * stands this far above the rounding (closer, the last coefficients are
  * part noise and fall too slowly or too fast). */
 #define LEARN_ABOVE_NOISE 100.0
+/* A total that changes by more than this share of its size across a piece
+ * narrower than 1 / JUMP_SHARE roundings of its depths, its coefficients
+ * all lost in that rounding, is not smooth there but all but discontinuous
+ * (a light that flips between two states, a rate that climbs without
+ * bound): the integral is known only to within its range times the width. */
+#define JUMP_SHARE 1e-3
 /* The fall per degree taken for a total exact to rounding on a piece: the
  * least rule for the next piece unless it is a million times wider. */
 #define LEARN_RATE_EXACT 1e-6
@@ -80,6 +86,11 @@ const char *const lw_run_warning_names[LW_WARN_COUNT_] = {
  * from: its few coefficients above the rounding give a fall that, scaled
  * up to a wide piece, overstates the nodes it needs many times over. */
 #define LEARN_WIDTH_MIN 0.25
+/* The polynomial through a piece's nodes is read over part of it (to an
+ * event) only when this many times its estimated error there is within
+ * the tolerance: the integral of what it leaves out over part of the piece
+ * is not the integral over the whole, which symmetry makes small. */
+#define PART_SAFETY 4.0
 /* The most Newton steps that polish an event's depth from the root of the
  * polynomial through the nodes (two suffice: the polynomial's root is off
  * by its interpolation error, about the estimate's tail, and each step
@@ -118,7 +129,9 @@ typedef struct engine {
     band bands[NEV];          /* for EV_KNOT, EV_EFFICIENCY and EV_FOLDBACK */
     double tot[NQ];
     double d_now;
-    double density[NQ];       /* totals per unit depth over the current interval */
+    double density[NQ];       /* totals per unit depth of the pieces accepted so far in
+                                 the current interval (dens_k / dens_w) */
+    double dens_k[NQ], dens_w;
     /* what the last piece showed of each integrand's smoothness (learn()):
      * its Legendre coefficients on a piece of width learn_w fell by
      * learn_rate per degree from an amplitude learn_amp (relative to the
@@ -320,6 +333,26 @@ static double event_sign(engine *e, int k, const lw_point *pb)
     return 1.0;
 }
 
+/* The depth to which an event near the point pt is located: event_tol of
+ * the depth scale, or looser where the run's tolerance allows it: a depth
+ * error dd moves the time by dt/dd dd, the lumen-hours and the energy by
+ * their rates times that, each kept within EVENT_SHARE of the tolerance of
+ * what the run holds so far (which only grows). */
+#define EVENT_SHARE 0.01
+static double event_xtol(const engine *e, double d, const lw_point *pt)
+{
+    double tol = e->opt->event_tol * (fabs(d) + 1e-3);
+    if (!(pt->regime != LW_REGIME_DROPOUT && pt->dtdd_h > 0.0 && isfinite(pt->dtdd_h)))
+        return tol;
+    const double rate[3] = {1.0, pt->flux_lm, pt->p_drawn_w};
+    const double held[3] = {e->tot[Q_T], e->tot[Q_LMH], e->tot[Q_DRAWN]};
+    double dd = INFINITY;
+    for (int i = 0; i < 3; i++)
+        if (rate[i] > 0.0)
+            dd = fmin(dd, held[i] / (rate[i] * pt->dtdd_h));
+    return fmax(tol, EVENT_SHARE * e->opt->rtol * dd);
+}
+
 struct locate_ctx {
     engine *e;
     int k;
@@ -354,9 +387,8 @@ static lw_status locate(engine *e, int k, double a, double b, const lw_point *pa
     }
     if (gb > 0.0) /* fired at exactly zero (stop events use <= 0) */
         gb = 0.0;
-    double tol = e->opt->event_tol * (fabs(b) + 1e-3);
-    lw_status st =
-        lw_root_brent(locate_fn, &c, a, b, ga, gb, tol, e->opt->event_iter_max, d, e->err);
+    lw_status st = lw_root_brent(locate_fn, &c, a, b, ga, gb, event_xtol(e, b, pb),
+                                 e->opt->event_iter_max, d, e->err);
     if (c.failed) /* a solve failed inside: its error, not the root finder's */
         st = e->err->code ? e->err->code : LW_ENUMERIC;
     return st;
@@ -455,19 +487,16 @@ static void transform(const piece *p, double coef_k[NODES_MAX][NQ], double sum[N
     }
 }
 
-/* The totals of p, their Legendre coefficients and error estimates.  The
- * integrands are all functions of the one operating point, so they share
- * its singularities and their coefficients fall alike: a total whose
- * coefficients show no fall (a few coefficients, the early ones small by
- * accident, as where the total passes through a flat extreme) takes the
- * slowest fall the others show, among those whose tails stand clear of the
- * rounding. */
+/* The totals of p, their Legendre coefficients and error estimates, each
+ * total's from its own coefficients (they do not share their fall: the
+ * light output times the hours per depth stays smooth where the hours per
+ * depth alone climbs towards the LEDs going out). */
 static void piece_sums(piece *p, double prior)
 {
     const double h = 0.5 * (p->b - p->a);
     const double dround = DEPTH_NOISE * fmax(fabs(p->a), fabs(p->b));
     lw_quad_estimate est[NQ];
-    double noise[NQ], shared = INFINITY, coef_k[NODES_MAX][NQ], sum[NQ];
+    double noise[NQ], coef_k[NODES_MAX][NQ], sum[NQ];
     double lo[NQ], hi[NQ], big[NQ];
     transform(p, coef_k, sum);
     for (int q = 0; q < NQ; q++)
@@ -491,17 +520,15 @@ static void piece_sums(piece *p, double prior)
         /* rounding of the values and, through the slope, of the depths */
         noise[q] = VALUE_NOISE * big[q] + (hi[q] - lo[q]) * dround / (p->b - p->a);
         est[q] = lw_quad_estimate_error(p->rule, p->coef[q], noise[q]);
+        if (est[q].tail == 0.0 && hi[q] - lo[q] > JUMP_SHARE * big[q] &&
+            dround > JUMP_SHARE * (p->b - p->a))
+            est[q].error = hi[q] - lo[q]; /* h times it below: the range's share */
         if (p->n == 3 && isfinite(est[q].tail)) /* its one step is read with the prior */
             est[q] = lw_quad_estimate_at(p->rule, p->coef[q], noise[q], est[q].tail,
                                          prior > 0.0 && prior > est[q].rate ? prior : est[q].rate);
-        if (est[q].tail > LEARN_ABOVE_NOISE * noise[q] && est[q].rate < LW_QUAD_RATE_MAX &&
-            (!isfinite(shared) || est[q].rate > shared))
-            shared = est[q].rate;
     }
     p->rate = 0.0;
     for (int q = 0; q < NQ; q++) {
-        if (isfinite(shared) && est[q].rate >= LW_QUAD_RATE_MAX && isfinite(est[q].tail))
-            est[q] = lw_quad_estimate_at(p->rule, p->coef[q], noise[q], est[q].tail, shared);
         p->err[q] = h * est[q].error;
         p->tail[q] = h * est[q].tail;
         p->beyond[q] = h * est[q].beyond;
@@ -529,20 +556,22 @@ static void piece_sums(piece *p, double prior)
 }
 
 /* Does every total meet the tolerance on the piece of width w (in depth)?
- * Each total is judged against the larger of the piece's own value and its
- * share, by width, of the whole curve interval (e->density, from the
- * interval's first estimate): so the sum of the pieces' errors stays within
- * about twice the tolerance of the interval, and a piece where a total
- * nearly vanishes (the light output as the LEDs stop conducting) is not
- * asked for relative accuracy of almost nothing.  The energies are judged
- * against the energy drawn, of which each is a share (so a loss that is zero
- * up to rounding, an ideal converter's, does not demand accuracy of noise). */
+ * The time is judged against the piece's own (it never vanishes: the sum of
+ * the pieces' errors stays within the tolerance of the run).  The output and
+ * the energies are judged against the larger of the piece's own and the
+ * share, by width, of what the pieces accepted so far in this curve
+ * interval hold (e->density): a piece where a total nearly vanishes (the
+ * output as the LEDs stop conducting) is not asked for relative accuracy of
+ * almost nothing, and the run's total still meets the tolerance.  The
+ * energies are judged against the energy drawn, of which each is a share
+ * (so a loss that is zero up to rounding, an ideal converter's, does not
+ * demand accuracy of noise). */
 static bool accurate(const engine *e, double w, const double k[NQ], const double err[NQ])
 {
     double rtol = e->opt->rtol;
     for (int q = 0; q < NQ; q++) {
         int ref = q < Q_LED ? q : Q_DRAWN;
-        double scale = fmax(fabs(k[ref]), e->density[ref] * w);
+        double scale = q == Q_T ? fabs(k[q]) : fmax(fabs(k[ref]), e->density[ref] * w);
         if (!(err[q] <= rtol * scale + 1e-300))
             return false;
     }
@@ -661,8 +690,12 @@ static lw_status accept_totals(engine *e, double a, double b, const double k[NQ]
         note_point(e, &pts[j]);
     if (regime == LW_REGIME_REGULATED)
         e->res->regulated_h += k[Q_T];
-    for (int q = 0; q < NQ; q++)
+    e->dens_w += b - a;
+    for (int q = 0; q < NQ; q++) {
         e->tot[q] += k[q];
+        e->dens_k[q] += fabs(k[q]);
+        e->density[q] = e->dens_k[q] / e->dens_w;
+    }
     e->d_now = b;
     return LW_OK;
 }
@@ -772,7 +805,6 @@ static lw_status integrate_to_limit(engine *e, double a, double b)
     int top = 0;
     stack[top++] = (s_piece){0.0, 1.0, 0};
     const lw_quad_rule *rule = lw_quad_gauss(LIMIT_NODES);
-    bool first = true;
     while (top > 0 && !e->done) {
         top--;
         double s0 = stack[top].s0, s1 = stack[top].s1;
@@ -805,11 +837,6 @@ static lw_status integrate_to_limit(engine *e, double a, double b)
             lw_quad_legendre(rule, &f[0][q], NQ, coef);
             double noise = VALUE_NOISE * big + (hi - lo) * dround / (s1 - s0);
             g[q] = hs * lw_quad_estimate_error(rule, coef, noise).error;
-        }
-        if (first) { /* the whole piece: its totals per unit depth */
-            for (int q = 0; q < NQ; q++)
-                e->density[q] = isfinite(k[q]) ? fabs(k[q]) / (b - a) : 0.0;
-            first = false;
         }
         bool ok = accurate(e, (b - a) * (s1 * s1 - s0 * s0), k, g);
         if (!ok && may_halve(e, s0, s1, depth) && top + 2 <= SPAN_STACK) {
@@ -882,7 +909,7 @@ static lw_status locate_smooth(engine *e, int k, const piece *p, int j, double *
     }
     lw_quad_legendre(p->rule, gv, 1, coef);
     const double h = 0.5 * (p->b - p->a), c = 0.5 * (p->a + p->b);
-    const double tol = e->opt->event_tol * (fabs(hi) + 1e-3);
+    const double tol = event_xtol(e, hi, &p->pt[j]);
     double x, slope;
     if (!lw_legendre_root(coef, p->n, 0.0, (lo - c) / h, (hi - c) / h, &x))
         x = (lo - c) / h - glo * ((hi - lo) / h) / (ghi - glo);
@@ -921,8 +948,8 @@ static lw_status locate_smooth(engine *e, int k, const piece *p, int j, double *
     /* what is left of the bracket, by Brent's method */
     struct locate_ctx ctx = {e, k, sign, false};
     lw_status st =
-        lw_root_brent(locate_fn, &ctx, lo, hi, glo, ghi > 0.0 ? 0.0 : ghi,
-                      e->opt->event_tol * (fabs(hi) + 1e-3), e->opt->event_iter_max, d, e->err);
+        lw_root_brent(locate_fn, &ctx, lo, hi, glo, ghi > 0.0 ? 0.0 : ghi, tol,
+                      e->opt->event_iter_max, d, e->err);
     if (ctx.failed) /* a solve failed inside: its error, not the root finder's */
         st = e->err->code ? e->err->code : LW_ENUMERIC;
     return st == LW_OK ? eval(e, *d, pt) : st;
@@ -1031,28 +1058,64 @@ static lw_status first_event(engine *e, const piece *p, int *first_k, double *d_
             node = &held;
             dn = held.depth;
         }
+        /* the events are compared by where they fire; the winner's point is
+         * then the last the driver held (an event found past the LEDs going
+         * out comes after the cutoffs crossed on the way there).  They are
+         * taken in the order a straight line between the nodes puts them,
+         * and one that has not fired at the best point so far fires after
+         * it: it is not located at all; one that has is sought before it. */
+        bool bracketed = false, have_best = *first_k >= 0;
+        lw_point best = *at;
+        int cand[NEV], nc = 0;
+        double guess[NEV];
         for (int w = 0; w < e->n_watch; w++) {
             int k = e->watch[w];
             if (!fired(e, k, node) || !(dn > d_prev))
                 continue;
-            double dk;
-            lw_point pk;
-            if (all_lit && *first_k < 0) {
-                st = locate_smooth(e, k, p, j, &dk, &pk);
-            } else {
-                st = locate(e, k, d_prev, dn, prev, node, &dk);
-                if (st == LW_OK)
-                    st = held_point(e, dk, &pk);
-                if (st == LW_OK)
-                    dk = pk.depth;
+            double g0 = fabs(event_g(e, k, prev)), g1 = fabs(event_g(e, k, node));
+            double x = is_band(k) || !(g0 + g1 > 0.0) ? dn : d_prev + (dn - d_prev) * g0 / (g0 + g1);
+            int i = nc++;
+            for (; i > 0 && guess[i - 1] > x; i--)
+                cand[i] = cand[i - 1], guess[i] = guess[i - 1];
+            cand[i] = k, guess[i] = x;
+        }
+        for (int i = 0; i < nc; i++) {
+            int k = cand[i];
+            double hi = dn;
+            const lw_point *pb = node;
+            if (*first_k >= 0) {
+                if (!have_best) {
+                    if ((st = eval(e, *d_star, &best)) != LW_OK)
+                        return st;
+                    have_best = true;
+                }
+                if (lit(&best)) {
+                    if (!fired(e, k, &best))
+                        continue; /* it fires after the best so far */
+                    hi = *d_star;
+                    pb = &best;
+                }
             }
+            double dk;
+            lw_point pk = *pb;
+            bool smooth = all_lit && *first_k < 0;
+            st = smooth ? locate_smooth(e, k, p, j, &dk, &pk)
+                        : locate(e, k, d_prev, hi, prev, pb, &dk);
             if (st != LW_OK)
                 return st;
             if (*first_k < 0 || dk < *d_star) {
                 *first_k = k;
                 *d_star = dk;
                 *at = pk;
+                bracketed = !smooth;
+                have_best = smooth;
+                best = pk;
             }
+        }
+        if (bracketed) {
+            if ((st = held_point(e, *d_star, at)) != LW_OK)
+                return st;
+            *d_star = at->depth;
         }
     }
     return LW_OK;
@@ -1063,14 +1126,22 @@ static lw_status first_event(engine *e, const piece *p, int *first_k, double *d_
  * the tolerance as a whole (so its integrands are smooth to its end) and
  * what the polynomials leave out, integrated over [a, d], is within the
  * tolerance too.  False otherwise. */
-static bool piece_part(const engine *e, const piece *p, double d, double k[NQ], double g[NQ])
+static bool piece_part(const engine *e, const piece *p, int event, double d, double k[NQ],
+                       double g[NQ])
 {
     if (!accurate(e, p->b - p->a, p->k, p->err))
         return false;
+    /* no other event anywhere in the piece: past its own, the integrands
+     * might bend (the LEDs going out under the floor, a knot, a switch)
+     * where the polynomials do not see it */
+    for (int j = 1; j < p->n; j++)
+        for (int w = 0; w < e->n_watch; w++)
+            if (e->watch[w] != event && fired(e, e->watch[w], &p->pt[j]))
+                return false;
     const double h = 0.5 * (p->b - p->a), x = (2.0 * d - p->a - p->b) / (p->b - p->a);
     for (int q = 0; q < NQ; q++) {
         k[q] = h * lw_legendre_integral(p->coef[q], p->n, x);
-        g[q] = LW_QUAD_SAFETY * p->beyond[q];
+        g[q] = PART_SAFETY * LW_QUAD_SAFETY * p->beyond[q];
     }
     return accurate(e, d - p->a, k, g);
 }
@@ -1078,13 +1149,13 @@ static bool piece_part(const engine *e, const piece *p, double d, double k[NQ], 
 /* The part [a, d] of piece p added to the run: from its polynomials when
  * they are accurate enough, else integrated afresh from the points at both
  * ends (pd at d). */
-static lw_status accept_part(engine *e, const piece *p, double d, const lw_point *pd,
+static lw_status accept_part(engine *e, const piece *p, int event, double d, const lw_point *pd,
                              bool smooth_past_d)
 {
     double k[NQ], g[NQ];
     if (!(d > p->a))
         return LW_OK;
-    if (smooth_past_d && piece_part(e, p, d, k, g)) {
+    if (smooth_past_d && piece_part(e, p, event, d, k, g)) {
         int inside = 0;
         while (inside + 1 < p->n && node_depth(p, inside + 1) <= d)
             inside++;
@@ -1097,10 +1168,11 @@ static lw_status accept_part(engine *e, const piece *p, double d, const lw_point
 
 /* The time from p's start to d: from its polynomial when accurate enough,
  * else integrated afresh. */
-static lw_status time_part(engine *e, const piece *p, double d, const lw_point *pd, double *t_h)
+static lw_status time_part(engine *e, const piece *p, int event, double d, const lw_point *pd,
+                           double *t_h)
 {
     double k[NQ], g[NQ];
-    if (piece_part(e, p, d, k, g)) {
+    if (piece_part(e, p, event, d, k, g)) {
         *t_h = k[Q_T];
         return LW_OK;
     }
@@ -1133,7 +1205,11 @@ static lw_status run_interval(engine *e, double A, double B, lw_point *pa_io)
     int top = 0, depth = 0;
     double a = A, b = B;
     lw_point pa = *pa_io, pb;
-    bool have_b = false, density_set = false;
+    bool have_b = false;
+    /* the density is of this interval's accepted pieces */
+    memset(e->density, 0, sizeof e->density);
+    memset(e->dens_k, 0, sizeof e->dens_k);
+    e->dens_w = 0.0;
     int n = nodes_for(e, b - a);
     piece p;
     /* each pass ends at an event, a refinement or an accepted piece; a model
@@ -1150,11 +1226,6 @@ static lw_status run_interval(engine *e, double A, double B, lw_point *pa_io)
         pb = p.pt[p.n - 1];
         have_b = true;
         piece_sums(&p, prior_fall(e, p.b - p.a));
-        if (!density_set) {
-            for (int q = 0; q < NQ; q++)
-                e->density[q] = isfinite(p.k[q]) ? fabs(p.k[q]) / (b - a) : 0.0;
-            density_set = true;
-        }
         int k;
         double d_star = b;
         lw_point at = pb;
@@ -1164,9 +1235,8 @@ static lw_status run_interval(engine *e, double A, double B, lw_point *pa_io)
                 return st;
             if (k < 0 || kind_of(k) != EV_RECORD)
                 break;
-            learn(e, &p); /* smooth across the 50 % mark */
             double t_part = 0.0;
-            if ((st = time_part(e, &p, d_star, &at, &t_part)) != LW_OK)
+            if ((st = time_part(e, &p, k, d_star, &at, &t_part)) != LW_OK)
                 return st;
             e->res->time_to_half_h = e->tot[Q_T] + t_part;
             e->active[k] = false;
@@ -1240,17 +1310,17 @@ static lw_status run_interval(engine *e, double A, double B, lw_point *pa_io)
         }
         /* an event at d_star: the lit part of [a, d_star] first (a stop
          * leaves the integrands smooth across it: the piece is learnt from) */
-        if (kind_of(k) == EV_STOP && k != EV_DROPOUT)
-            learn(e, &p);
         if (d_star > a) {
             if (k == EV_DROPOUT)
                 st = integrate_to_limit(e, a, d_star);
             else
-                st = accept_part(e, &p, d_star, &at, kind_of(k) == EV_STOP);
+                st = accept_part(e, &p, k, d_star, &at, kind_of(k) == EV_STOP);
             if (st != LW_OK)
                 return st;
         }
         bool fell_back = k == EV_DROPOUT && !e->fallback;
+        if (kind_of(k) == EV_KINK)
+            e->learn_w = 0.0; /* the integrands change their form here: learn anew */
         st = fire(e, k, d_star, &at);
         if (st == LW_OK && !e->done && k == EV_DROPOUT)
             st = settle(e, d_star, &at);
@@ -1354,9 +1424,87 @@ static void set_warnings(const lw_light *l, lw_result *r)
 
 /* ---- time between depths, the 30-s point -------------------------------- */
 
-/* Hours from depth a to b >= a, split at the pack's curve knots, each
- * part integrated to the run's tolerance from its end points (*pb, the
- * point at b, given; the search-mode solve finds the curve interval). */
+struct kink_ctx {
+    engine *e;
+    int k;
+    double level, sign;
+    bool failed;
+};
+
+static double kink_fn(double d, void *vctx)
+{
+    struct kink_ctx *c = vctx;
+    lw_point pt;
+    if (eval(c->e, d, &pt) != LW_OK) {
+        c->failed = true;
+        return NAN;
+    }
+    return c->sign * (is_band(c->k) ? band_value(c->k, &pt) - c->level : event_g(c->e, c->k, &pt));
+}
+
+/* The first kink of the light's integrands strictly inside (a, b), both
+ * ends lit: a knot of a table its band events watch, the regulator's
+ * margin or the Peukert corner changing sign between the ends (one that
+ * crosses and returns inside is not seen).  *found false when none. */
+static lw_status kink_inside(engine *e, double a, const lw_point *pa, double b,
+                             const lw_point *pb, bool *found, double *dk, lw_point *pk)
+{
+    static const int kinds[] = {EV_KNOT, EV_EFFICIENCY, EV_FOLDBACK, EV_REGULATION, EV_PEUKERT};
+    const double margin = LW_PIECE_MIN_REL * fmax(fabs(a), fabs(b));
+    *found = false;
+    *dk = b;
+    for (size_t i = 0; i < sizeof kinds / sizeof kinds[0]; i++) {
+        int k = kinds[i];
+        if (!e->active[k])
+            continue;
+        struct kink_ctx c = {e, k, 0.0, 1.0, false};
+        double v0 = 0.0, v1 = 0.0;
+        if (is_band(k)) {
+            v0 = band_value(k, pa), v1 = band_value(k, pb);
+            if (!(v0 != v1))
+                continue;
+            c.level = v0;
+            c.sign = v1 > v0 ? -1.0 : 1.0;
+        } else {
+            double g0 = event_g(e, k, pa), g1 = event_g(e, k, pb);
+            if ((g0 > 0.0) == (g1 > 0.0))
+                continue;
+            c.sign = g0 > 0.0 ? 1.0 : -1.0;
+        }
+        /* a band's knots in turn from a: the first may be the one a sits
+         * on (a kink located a hair short of its knot) */
+        for (int tries = 0; tries < (is_band(k) ? 2 : 1); tries++) {
+            if (is_band(k)) {
+                c.level = band_next(e, k, c.level, v1 > v0 ? +1 : -1);
+                if (!(v1 > v0 ? c.level < v1 : c.level > v1))
+                    break; /* no knot between them */
+            }
+            double ga = kink_fn(a, &c), gb = kink_fn(b, &c), d = b;
+            lw_status st = LW_OK;
+            if (!c.failed && ga > 0.0)
+                st = lw_root_brent(kink_fn, &c, a, b, ga, gb,
+                                   e->opt->event_tol * (fabs(b) + 1e-3),
+                                   e->opt->event_iter_max, &d, e->err);
+            if (c.failed)
+                st = e->err->code ? e->err->code : LW_ENUMERIC;
+            if (st != LW_OK)
+                return st;
+            if (d > a + margin) {
+                if (d < b - margin && d < *dk) {
+                    *found = true;
+                    *dk = d;
+                }
+                break;
+            }
+        }
+    }
+    return *found ? eval(e, *dk, pk) : LW_OK;
+}
+
+/* Hours from depth a to b >= a, split at the pack's curve knots and the
+ * kinks between them, each part integrated to the run's tolerance from
+ * its end points (*pb, the point at b, given; the search-mode solve finds
+ * the curve interval). */
 static lw_status hours_between(engine *e, double a, double b, const lw_point *pa,
                                const lw_point *pb, double *t_h)
 {
@@ -1378,6 +1526,19 @@ static lw_status hours_between(engine *e, double a, double b, const lw_point *pa
             *t_h = INFINITY; /* dark on the way: no time reaches b */
             break;
         }
+        bool kink;
+        double dk;
+        lw_point pk;
+        if ((st = kink_inside(e, x, &cur, end, &pe, &kink, &dk, &pk)) != LW_OK)
+            break;
+        if (kink) {
+            end = dk;
+            pe = pk;
+            if (!lit(&pe)) {
+                *t_h = INFINITY;
+                break;
+            }
+        }
         span_sum sum = {false, {0}};
         st = span(e, x, &cur, end, &pe, &sum);
         *t_h += sum.k[Q_T];
@@ -1392,10 +1553,12 @@ static lw_status hours_between(engine *e, double a, double b, const lw_point *pa
  * on [d0, d1], d1 a little past the constant-rate guess, gives dt/dd as a
  * cubic; the depth where its integral reaches 30 s is the 30-s point, when
  * the rule's estimate and the cubic's own error are within the tolerance
- * there.  Four solves where it applies (d1's three nodes and the point
+ * there and the cubic gives, at the point found, the rate solved there.
+ * Four solves where it applies (d1's three nodes and the point
  * itself); false when it does not (a curve knot or an event in the way, a
  * rate that changes fast). */
 #define T30_MARGIN 1.1 /* d1 past the guess: the rate falls by less than 10 % in 30 s */
+#define T30_SHARE 0.1  /* the share of the tolerance the 30-s point may use */
 static lw_status t30_smooth(engine *e, const lw_point *p0, lw_point *p30, double *d30,
                             bool *done)
 {
@@ -1440,65 +1603,81 @@ static lw_status t30_smooth(engine *e, const lw_point *p0, lw_point *p30, double
     *d30 = d0 + h * (x + 1.0);
     if ((st = eval(e, *d30, p30)) != LW_OK)
         return st;
-    *done = lit(p30);
+    /* the cubic is believed where it also gives the rate solved there: its
+     * miss there, over the 30 s, is what the depth found may be out by */
+    double miss = fabs(lw_legendre_eval(p.coef[Q_T], p.n, x, NULL) - p30->dtdd_h);
+    *done = lit(p30) && miss / p30->dtdd_h * dlnf * (*d30 - d0) <= T30_SHARE * e->opt->rtol;
     return LW_OK;
 }
 
 /* The point 30 s after switch-on (the FL 1 reference): t30_smooth where it
  * applies; otherwise the depth solving t(d) = 30 s by Newton's method on
  * the run's own quadrature (dt/dd is the integrand, so each step is exact
- * to second order), safeguarded by bisection.  A light that goes dark or
- * empty before 30 s has no 30-s point: *p30 is then the switch-on point. */
+ * to second order), safeguarded by bisection.  Each trial's hours are
+ * integrated from the deepest point known to come before 30 s, never
+ * back from one far beyond it (hours of a long glow, less hours of a long
+ * glow, lose the 30 s to the tolerance of the glow).  A light that goes
+ * dark (out, or below the visibility floor) or empty before 30 s has no
+ * 30-s point: *p30 is then the switch-on point. */
 static lw_status point_at_30s(engine *e, const lw_point *p0, lw_point *p30, double *d30)
 {
     const double t30_h = 30.0 / 3600.0;
     bool done;
     lw_status st = t30_smooth(e, p0, p30, d30, &done);
-    if (st != LW_OK || done)
+    if (st != LW_OK || (done && p30->flux_lm >= e->opt->visible_lm))
         return st;
-    double lo = e->d0, hi = 1.0, d = fmin(1.0, e->d0 + t30_h / p0->dtdd_h);
-    double t_prev = 0.0, d_prev = e->d0;
-    lw_point p_prev = *p0;
+    const double end = lw_light_depth_end(e->l);
+    double lo = e->d0, hi = end, t_lo = 0.0;
+    double d = fmin(end, e->d0 + t30_h / p0->dtdd_h);
+    bool dark_hi = false;
+    lw_point p_lo = *p0;
     *p30 = *p0;
     *d30 = e->d0;
     for (int it = 0; it < LW_T30_ITER_MAX; it++) {
         lw_point pt;
         if ((st = eval(e, d, &pt)) != LW_OK)
             return st;
-        double dt = 0.0;
-        if (isfinite(pt.dtdd_h))
-            st = d >= d_prev ? hours_between(e, d_prev, d, &p_prev, &pt, &dt)
-                             : hours_between(e, d, d_prev, &pt, &p_prev, &dt);
-        if (st != LW_OK)
+        double dt = INFINITY;
+        if (lit(&pt) && pt.flux_lm >= e->opt->visible_lm &&
+            (st = hours_between(e, lo, d, &p_lo, &pt, &dt)) != LW_OK)
             return st;
-        double t = d >= d_prev ? t_prev + dt : t_prev - dt;
-        if (!isfinite(pt.dtdd_h) || !isfinite(t)) { /* dark here: the 30-s point is before */
+        double f = t_lo + dt - t30_h;
+        if (!isfinite(dt)) { /* dark here or on the way: the 30-s point is before d */
             hi = d;
-            d = 0.5 * (lo + hi);
-            continue; /* t_prev and d_prev stay at the last lit point */
-        }
-        t_prev = t;
-        d_prev = d;
-        p_prev = pt;
-        double f = t - t30_h;
-        if (f < 0.0)
+            dark_hi = true;
+        } else if (f < 0.0) {
             lo = d;
-        else
+            t_lo += dt;
+            p_lo = pt;
+        } else {
             hi = d;
-        if (fabs(f) <= 1e-14 * t30_h || hi - lo <= 4.0 * DBL_EPSILON) {
+            dark_hi = false;
+        }
+        if (isfinite(dt) && fabs(f) <= 1e-14 * t30_h) {
             *p30 = pt;
             *d30 = d;
             return LW_OK;
         }
-        if (d >= lw_light_depth_end(e->l) && f < 0.0)
+        if (hi - lo <= 4.0 * DBL_EPSILON * fmax(1.0, hi)) {
+            if (dark_hi)
+                return LW_OK; /* dark before 30 s: the switch-on point stands in */
+            *p30 = isfinite(dt) && f >= 0.0 ? pt : p_lo;
+            *d30 = p30->depth;
+            return LW_OK;
+        }
+        if (isfinite(dt) && f < 0.0 && d >= end)
             return LW_OK; /* empty before 30 s */
-        double next = d - f / pt.dtdd_h;
+        double next = isfinite(dt) ? d - f / pt.dtdd_h : NAN;
         d = next > lo && next < hi ? next : 0.5 * (lo + hi);
     }
-    return LW_OK; /* dark before 30 s: the switch-on point stands in */
+    return lw_error_set(e->err, LW_ENUMERIC, NULL, 0,
+                        "the point 30 s after switch-on was not found in %d steps",
+                        LW_T30_ITER_MAX);
 }
 
-static void init_events(engine *e, const lw_point *p0)
+/* Which events the light has (before the 30-s point is sought: its hours
+ * are split at the kinks among them); init_events sets them going. */
+static void init_kinds(engine *e)
 {
     const lw_light *l = e->l;
     const lw_cell *c = &l->pack.cell;
@@ -1513,13 +1692,17 @@ static void init_events(engine *e, const lw_point *p0)
     e->active[EV_EFFICIENCY] = l->drive.type == LW_DRIVE_CONVERTER && l->drive.efficiency;
     /* a body at its balance under foldback: the factor's corners are kinks */
     e->active[EV_FOLDBACK] = lw_thermal_has_foldback(&l->thermal);
-    for (int k = 0; k < NEV; k++)
-        if (is_band(k) && e->active[k])
-            band_set(e, k, band_value(k, p0));
     if (c->peukert > 1.0) {
         e->kink_a = c->rated_a * pow(c->capacity_ah / c->max_capacity_ah, 1.0 / (c->peukert - 1.0));
         e->active[EV_PEUKERT] = true;
     }
+}
+
+static void init_events(engine *e, const lw_point *p0)
+{
+    for (int k = 0; k < NEV; k++)
+        if (is_band(k) && e->active[k])
+            band_set(e, k, band_value(k, p0));
     for (int k = 0; k < NEV; k++)
         e->positive[k] = event_g(e, k, p0) > 0.0;
     e->n_watch = 0;
@@ -1577,6 +1760,7 @@ static lw_status fresh_reference(const engine *e, double *flux_lm)
                 .d0 = 0.0};
     lw_point p0, p30;
     double d30;
+    init_kinds(&f);
     lw_status st = start_point(&f, &p0);
     if (st == LW_OK && p0.flux_lm > 0.0 && isfinite(p0.dtdd_h))
         st = point_at_30s(&f, &p0, &p30, &d30);
@@ -1613,6 +1797,7 @@ static lw_status start_run(engine *e, lw_point *p0)
         return LW_OK;
     }
     lw_point p30;
+    init_kinds(e);
     st = point_at_30s(e, p0, &p30, &res->depth_30s);
     if (st != LW_OK)
         return st;
