@@ -111,7 +111,7 @@ lw_quad_estimate lw_quad_estimate_error(const lw_quad_rule *rule, const double *
     else if (kt == 3)
         rate = sqrt(fmax(env[3] / env[1], env[4] / env[2]));
     else if (kt == 2)
-        rate = fmax(sqrt(env[3] / env[1]), env[3] / env[2]);
+        rate = fmax(fmax(env[2] / env[1], sqrt(env[3] / env[1])), env[3] / env[2]);
     else /* kt 1 (three nodes: E_2 = |a_2|) */
         rate = env[2] / env[1];
     return lw_quad_estimate_at(rule, a, noise, est.tail, rate < 1.0 ? rate : 1.0);

@@ -609,6 +609,28 @@ static int nodes_for(const engine *e, double w)
     return n;
 }
 
+/* How many nodes more piece p (which missed the tolerance) needs: each
+ * adds two degrees, so the error falls by rate^2 per node.  A short rule
+ * whose coefficients show no fall (with four or five, a function even
+ * about the middle or an inflection there cannot be told from one that is
+ * not resolved) first reads two more; 0: halve the piece instead. */
+#define NODES_AMBIGUOUS 5
+static int nodes_more(const engine *e, const piece *p)
+{
+    const double w = p->b - p->a;
+    if (!(p->rate < LW_QUAD_RATE_MAX))
+        return p->n <= NODES_AMBIGUOUS ? 2 : 0;
+    if (!(p->rate > 0.0))
+        return 0;
+    double worst = 0.0;
+    for (int q = 0; q < NQ; q++) {
+        int ref = q < Q_LED ? q : Q_DRAWN;
+        double scale = fmax(fabs(p->k[ref]), e->density[ref] * w);
+        worst = fmax(worst, p->err[q] / (NODES_AIM * e->opt->rtol * scale + 1e-300));
+    }
+    return (int)ceil(log(worst) / (-2.0 * log(p->rate)));
+}
+
 /* The slowest fall per degree the last piece learnt from predicts for a
  * piece of width w (0: nothing learnt). */
 static double prior_fall(const engine *e, double w)
@@ -735,17 +757,7 @@ static lw_status span(engine *e, double a, const lw_point *pa, double b, const l
         piece_sums(&p, prior_fall(e, p.b - p.a));
         bool ok = accurate(e, b - a, p.k, p.err);
         if (!ok && isfinite(p.k[Q_T])) {
-            int more = 0;
-            if (p.rate < LW_QUAD_RATE_MAX && p.rate > 0.0) {
-                /* each node more adds two degrees: the error falls by r^2 */
-                double worst = 0.0;
-                for (int q = 0; q < NQ; q++) {
-                    int ref = q < Q_LED ? q : Q_DRAWN;
-                    double scale = fmax(fabs(p.k[ref]), e->density[ref] * (b - a));
-                    worst = fmax(worst, p.err[q] / (NODES_AIM * e->opt->rtol * scale + 1e-300));
-                }
-                more = (int)ceil(log(worst) / (-2.0 * log(p.rate)));
-            }
+            int more = nodes_more(e, &p);
             learn(e, &p);
             if (more > 0 && p.n + more <= NODES_MAX && p.n + more - 1 <= 2 * (nodes_for(e, 0.5 * (b - a)) - 1) + 1) {
                 n = p.n + more; /* a larger rule on the same piece */
@@ -1264,17 +1276,7 @@ static lw_status run_interval(engine *e, double A, double B, lw_point *pa_io)
             bool ok = accurate(e, b - a, p.k, p.err);
             learn(e, &p);
             if (!ok && isfinite(p.k[Q_T])) {
-                int more = 0;
-                if (p.rate < LW_QUAD_RATE_MAX && p.rate > 0.0) {
-                    double worst = 0.0;
-                    for (int q = 0; q < NQ; q++) {
-                        int ref = q < Q_LED ? q : Q_DRAWN;
-                        double scale = fmax(fabs(p.k[ref]), e->density[ref] * (b - a));
-                        worst = fmax(worst,
-                                     p.err[q] / (NODES_AIM * e->opt->rtol * scale + 1e-300));
-                    }
-                    more = (int)ceil(log(worst) / (-2.0 * log(p.rate)));
-                }
+                int more = nodes_more(e, &p);
                 if (more > 0 && p.n + more <= NODES_MAX &&
                     p.n + more - 1 <= 2 * (nodes_for(e, 0.5 * (b - a)) - 1) + 1) {
                     n = p.n + more; /* a larger rule on the same piece */
