@@ -158,6 +158,42 @@ static void outfile_is_atomic(void **state)
     assert_int_equal(lw_outfile_open(&o, "/nonexistent-dir/x.csv", &e), LW_EIO);
 }
 
+/* The memory writer writes the same bytes as the file writer (the rows a
+ * streaming sweep's workers format), growing past its first block. */
+static void memory_writer_equals_file_writer(void **state)
+{
+    (void)state;
+    const char *p = tmp_write("m.csv", "");
+    FILE *fp = fopen(p, "wb");
+    assert_non_null(fp);
+    lw_csvw f, m;
+    lw_csvw_init(&f, fp);
+    lw_csvw_init_mem(&m);
+    for (int row = 0; row < 500; row++) {
+        lw_csvw *ws[2] = {&f, &m};
+        for (int k = 0; k < 2; k++) {
+            lw_csvw_text(ws[k], row % 7 ? "cell, \"hot\"" : "plain");
+            lw_csvw_num(ws[k], row / 7.0);
+            lw_csvw_num(ws[k], row % 5 ? 1e-300 * row : NAN);
+            lw_csvw_end_row(ws[k]);
+        }
+    }
+    fclose(fp);
+    assert_false(f.failed);
+    assert_false(m.failed);
+    fp = fopen(p, "rb");
+    assert_non_null(fp);
+    char *buf = malloc(m.len + 2);
+    assert_non_null(buf);
+    size_t n = fread(buf, 1, m.len + 1, fp);
+    fclose(fp);
+    assert_int_equal(n, m.len);
+    assert_int_equal(strlen(m.buf), m.len);
+    assert_memory_equal(buf, m.buf, m.len);
+    free(buf);
+    free(m.buf);
+}
+
 int main(void)
 {
     const struct CMUnitTest tests[] = {
@@ -168,6 +204,7 @@ int main(void)
         cmocka_unit_test(writer_quotes_per_rfc4180),
         cmocka_unit_test(numbers_round_trip),
         cmocka_unit_test(outfile_is_atomic),
+        cmocka_unit_test(memory_writer_equals_file_writer),
     };
     return cmocka_run_group_tests(tests, NULL, tmp_teardown);
 }

@@ -637,6 +637,92 @@ static void work_cap_stops_a_run(void **state)
     lw_light_clear(&l);
 }
 
+/* The tolerance steers the error and the cost: against the independent
+ * GSL solution above (QAGP at 1e-12 over GSL Brent roots), the runtime and
+ * lumen-hours at rtol 1e-4, 1e-6, 1e-8 and 1e-10 lie within that rtol, and
+ * each tighter rtol costs more solves than the looser one before it. */
+static void tolerance_steers_error_and_cost(void **state)
+{
+    (void)state;
+    lw_light l;
+    shockley_demo_light(&l);
+    l.drive.resistor_ohm = 33;
+    l.cutoff.cell_v = 0.5;
+    ref q = {&l, 0, 0, 0, 0};
+    double d30 = gsl_root(t_minus_30s, &q, 1e-12, 0.01);
+    q.flux_ref = ref_flux(&l, ref_current(&l, d30));
+    q.target = 0.10 * q.flux_ref;
+    double d_end = gsl_root(flux_minus_target, &q, d30, 1.0);
+    double t_ref = ref_integral(&l, 0, 0, d_end), lmh_ref = ref_integral(&l, 1, 0, d_end);
+    const double rtols[] = {1e-4, 1e-6, 1e-8, 1e-10};
+    int prev = 0;
+    for (size_t k = 0; k < sizeof rtols / sizeof rtols[0]; k++) {
+        lw_run_options o = lw_run_options_default();
+        o.rtol = rtols[k];
+        lw_result r;
+        lw_error e;
+        lw_error_clear(&e);
+        assert_int_equal(lw_run(&l, &o, &r, &e), LW_OK);
+        double err = fmax(fabs(r.runtime_h / t_ref - 1.0), fabs(r.lumen_hours / lmh_ref - 1.0));
+        if (!(err <= rtols[k]))
+            fail_msg("rtol %g: error %.3g", rtols[k], err);
+        if (!(r.solves > prev))
+            fail_msg("rtol %g: %d solves, no more than %d at the looser one", rtols[k],
+                     r.solves, prev);
+        prev = r.solves;
+        lw_run_result_clear(&r);
+    }
+    lw_light_clear(&l);
+}
+
+/* A cell curve resampled at 5,000 points on its own straight segments is
+ * the same model: the same runtime and lumen-hours (to 1e-12, the pieces
+ * differing only in where they are cut), at a cost within 1.5x of the
+ * coarse curve's solves (the pieces end only at its corners). */
+static void dense_straight_curve_costs_as_the_coarse(void **state)
+{
+    (void)state;
+    lw_light l;
+    shockley_demo_light(&l);
+    lw_result coarse = run_ok(&l, false);
+    const lw_interp *o = l.pack.cell.ocv, *rs = l.pack.cell.res;
+    enum { N = 5000 };
+    static double x[N + 64], yo[N + 64], yr[N + 64];
+    size_t k = 0, j = 0;
+    for (size_t i = 0; i < N; i++) {
+        double u = o->x[0] + (o->x[o->n - 1] - o->x[0]) * (double)i / (N - 1);
+        while (j < o->n && o->x[j] <= u) { /* the coarse points themselves */
+            if (k == 0 || o->x[j] > x[k - 1])
+                x[k] = o->x[j], yo[k] = o->y[j], yr[k] = rs->y[j], k++;
+            j++;
+        }
+        if (k > 0 && !(u > x[k - 1]))
+            continue;
+        x[k] = u, yo[k] = lw_interp_linear(o, u), yr[k] = lw_interp_linear(rs, u), k++;
+    }
+    lw_error e;
+    lw_error_clear(&e);
+    lw_light d;
+    lw_light_copy(&d, &l);
+    lw_interp_free(d.pack.cell.ocv);
+    lw_interp_free(d.pack.cell.res);
+    d.pack.cell.ocv = lw_interp_new(x, yo, k, &e);
+    d.pack.cell.res = lw_interp_new(x, yr, k, &e);
+    assert_non_null(d.pack.cell.ocv);
+    assert_non_null(d.pack.cell.res);
+    assert_int_equal(d.pack.cell.ocv->ncorner, o->ncorner);
+    lw_result dense = run_ok(&d, false);
+    assert_close(dense.runtime_h, coarse.runtime_h, 1e-12);
+    assert_close(dense.lumen_hours, coarse.lumen_hours, 1e-12);
+    if (!(dense.solves <= 1.5 * coarse.solves))
+        fail_msg("%d solves on 5,000 points against %d on %zu", dense.solves, coarse.solves,
+                 o->n);
+    lw_run_result_clear(&dense);
+    lw_run_result_clear(&coarse);
+    lw_light_clear(&d);
+    lw_light_clear(&l);
+}
+
 int main(void)
 {
     gsl_set_error_handler_off();
@@ -659,6 +745,8 @@ int main(void)
         cmocka_unit_test(run_options_are_validated),
         cmocka_unit_test(solve_budget),
         cmocka_unit_test(work_cap_stops_a_run),
+        cmocka_unit_test(tolerance_steers_error_and_cost),
+        cmocka_unit_test(dense_straight_curve_costs_as_the_coarse),
     };
     return cmocka_run_group_tests(tests, NULL, NULL);
 }

@@ -118,6 +118,41 @@ static void reference_counting(void **state)
     lw_interp_free(NULL);
 }
 
+/* The corners of the linear interpolant: a point on the straight line
+ * through its neighbours is none (the rounding of a dense resample of a
+ * coarse table's own segments included), any other is; the first corner
+ * above x is found by bisection and is +inf past the last. */
+static void corners_are_the_bends_of_the_line(void **state)
+{
+    (void)state;
+    /* two segments, 0..2 rising by 1 per unit, 2..4 falling; 1 and 3 on them */
+    const double x[] = {0, 1, 2, 3, 4}, y[] = {0, 1, 2, 1.5, 1};
+    lw_interp *t = mk(x, y, 5);
+    assert_int_equal(t->ncorner, 1);
+    assert_int_equal(t->corner[0], 2);
+    assert_true(lw_interp_corner_above(t, 0.0) == 2.0);
+    assert_true(lw_interp_corner_above(t, 1.999) == 2.0);
+    assert_true(isinf(lw_interp_corner_above(t, 2.0)));
+    lw_interp_free(t);
+    /* 2,001 points on the straight segments of a 3-point table, each value
+     * computed (and rounded) on its own: the only corner is the knot */
+    enum { N = 2001 };
+    static double xs[N], ys[N];
+    for (int i = 0; i < N; i++) {
+        xs[i] = i / (double)(N - 1);
+        ys[i] = xs[i] <= 0.5 ? 4.2 - 0.7 * xs[i] : 3.85 - 1.9 * (xs[i] - 0.5);
+    }
+    t = mk(xs, ys, N);
+    assert_int_equal(t->ncorner, 1);
+    assert_true(xs[t->corner[0]] == 0.5);
+    lw_interp_free(t);
+    /* a bend of 1e-9 relative is a corner, however slight */
+    const double x3[] = {0, 1, 2}, y3[] = {1, 1 + 1e-9, 1};
+    t = mk(x3, y3, 3);
+    assert_int_equal(t->ncorner, 1);
+    lw_interp_free(t);
+}
+
 int main(void)
 {
     const struct CMUnitTest tests[] = {
@@ -127,6 +162,7 @@ int main(void)
         cmocka_unit_test(cubic_converges_on_smooth_data),
         cmocka_unit_test(refuses_bad_tables),
         cmocka_unit_test(reference_counting),
+        cmocka_unit_test(corners_are_the_bends_of_the_line),
     };
     return cmocka_run_group_tests(tests, NULL, NULL);
 }

@@ -142,12 +142,60 @@ static void cpus_follow_the_affinity_mask(void **state)
     assert_int_equal(lw_pool_cpus(), CPU_COUNT(&all));
 }
 
+/* lw_pool_for_workers names the worker of each index: every index once,
+ * each worker number below lw_pool_threads(n, threads), and one worker's
+ * indices never overlap in time (its scratch space is its own). */
+typedef struct workers {
+    atomic_int runs[N_MAX];
+    atomic_int busy[LW_POOL_THREADS_MAX];
+    atomic_int clash, out_of_range;
+    int limit;
+} workers;
+
+static void worker_task(size_t i, int worker, void *ctx)
+{
+    workers *w = ctx;
+    atomic_fetch_add(&w->runs[i], 1);
+    if (worker < 0 || worker >= w->limit) {
+        atomic_store(&w->out_of_range, 1);
+        return;
+    }
+    if (atomic_fetch_add(&w->busy[worker], 1) != 0)
+        atomic_store(&w->clash, 1);
+    struct timespec ts = {0, 20000};
+    nanosleep(&ts, NULL);
+    atomic_fetch_sub(&w->busy[worker], 1);
+}
+
+static void workers_are_named_and_own_their_scratch(void **state)
+{
+    (void)state;
+    const size_t sizes[] = {1, 3, 200};
+    const int threads[] = {1, 2, 4, 0};
+    for (size_t a = 0; a < sizeof sizes / sizeof *sizes; a++)
+        for (size_t b = 0; b < sizeof threads / sizeof *threads; b++) {
+            workers *w = calloc(1, sizeof *w);
+            assert_non_null(w);
+            w->limit = lw_pool_threads(sizes[a], threads[b]);
+            assert_true(w->limit >= 1 && (size_t)w->limit <= sizes[a]);
+            if (threads[b] > 0)
+                assert_true(w->limit <= threads[b]);
+            lw_pool_for_workers(sizes[a], threads[b], worker_task, w, NULL, NULL);
+            for (size_t i = 0; i < sizes[a]; i++)
+                assert_int_equal(atomic_load(&w->runs[i]), 1);
+            assert_int_equal(atomic_load(&w->out_of_range), 0);
+            assert_int_equal(atomic_load(&w->clash), 0);
+            free(w);
+        }
+}
+
 int main(void)
 {
     const struct CMUnitTest tests[] = {
         cmocka_unit_test(every_index_once_on_any_thread_count),
         cmocka_unit_test(two_threads_share_the_work),
         cmocka_unit_test(cpus_follow_the_affinity_mask),
+        cmocka_unit_test(workers_are_named_and_own_their_scratch),
     };
     return cmocka_run_group_tests(tests, NULL, NULL);
 }

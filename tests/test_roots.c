@@ -87,6 +87,36 @@ static void brent_refuses_no_bracket_and_caps_iterations(void **state)
     assert_non_null(strstr(e.msg, "no convergence"));
 }
 
+/* The omega with its logarithm: w the same as lw_root_wright_omega, and
+ * ln w from the iteration within 1e-14 absolute of libm's log (so flux and
+ * Peukert powers taken from it agree to rounding). */
+static void wright_omega_log_matches_log(void **state)
+{
+    (void)state;
+    for (double x = -700; x < 1e6; x = x < 0 ? x + 3.1 : (x + 1.0) * 1.3) {
+        double lw, w = lw_root_wright_omega_log(x, &lw);
+        assert_true(w == lw_root_wright_omega(x));
+        if (w > 0.0 && fabs(lw - log(w)) > 1e-14 * fmax(1.0, fabs(log(w))))
+            fail_msg("x %g: ln w %.17g against %.17g", x, lw, log(w));
+    }
+}
+
+/* The rough logarithm: within 1.3e-5 absolute of libm's log from 1e-300
+ * to 1e300 (four terms of the series ln x = 2 atanh t, t = (x - 1)/(x + 1),
+ * Abramowitz and Stegun ch. 4 - the equation number from memory; with
+ * |t| <= 1/3 the first term left out is 2 t^9 / 9 <= 1.1e-5). */
+static void rough_log_is_close(void **state)
+{
+    (void)state;
+    double worst = 0.0;
+    for (double x = 1e-300; x < 1e300; x *= 1.0137)
+        worst = fmax(worst, fabs(lw_root_rough_log(x) - log(x)));
+    for (double x = 0.5; x < 4.0; x += 1e-4)
+        worst = fmax(worst, fabs(lw_root_rough_log(x) - log(x)));
+    assert_true(worst <= 1.3e-5);
+    assert_true(worst > 1e-9); /* rough, as documented: not libm in disguise */
+}
+
 int main(void)
 {
     gsl_set_error_handler_off();
@@ -95,6 +125,8 @@ int main(void)
         cmocka_unit_test(wright_omega_against_gsl_and_identity),
         cmocka_unit_test(brent_against_gsl),
         cmocka_unit_test(brent_refuses_no_bracket_and_caps_iterations),
+        cmocka_unit_test(wright_omega_log_matches_log),
+        cmocka_unit_test(rough_log_is_close),
     };
     return cmocka_run_group_tests(tests, NULL, NULL);
 }

@@ -135,6 +135,76 @@ static void sweep_reports_a_bad_row(void **state)
     lw_profile_clear(&p);
 }
 
+/* The table of a sweep written as its rows complete (each worker formats
+ * its own) is byte for byte the table of the whole sweep, in every format
+ * and on one, two or three threads; a row that cannot be built stops the
+ * sweep with its error, and no row names it. */
+static char *stream_text(const lw_profile *p, const lw_vary *v, size_t nv, int threads,
+                         lw_rtable_format fmt, lw_status *st, lw_error *e)
+{
+    char *buf = NULL;
+    size_t len = 0;
+    FILE *fp = open_memstream(&buf, &len);
+    assert_non_null(fp);
+    lw_sweep sw;
+    *st = lw_report_sweep_stream(p, v, nv, threads, fmt, NULL, fp, NULL, NULL, &sw, e);
+    if (*st == LW_OK)
+        lw_sweep_clear(&sw);
+    fclose(fp);
+    return buf;
+}
+
+static void streamed_table_equals_the_whole(void **state)
+{
+    (void)state;
+    lw_profile p;
+    load_fixture(NULL, &p);
+    lw_vary v[2];
+    lw_error e;
+    lw_error_clear(&e);
+    assert_int_equal(lw_vary_parse("pack.cell=flat,slope", NULL, &v[0], &e), LW_OK);
+    assert_int_equal(lw_vary_parse("drive.resistor_ohm=5..400:5", NULL, &v[1], &e), LW_OK);
+    lw_sweep sw;
+    assert_int_equal(lw_sweep_run(&p, v, 2, 2, NULL, NULL, &sw, &e), LW_OK);
+    assert_true(sw.n > 2 * LW_SWEEP_WINDOW_PER_THREAD); /* past the window */
+    const lw_rtable_format fmts[] = {LW_FMT_CSV, LW_FMT_MD, LW_FMT_TEXT};
+    for (size_t f = 0; f < 3; f++) {
+        lw_rtable *t = NULL;
+        assert_int_equal(lw_report_sweep(&sw, fmts[f], NULL, &t, &e), LW_OK);
+        char *whole = NULL;
+        size_t len = 0;
+        FILE *fp = open_memstream(&whole, &len);
+        assert_non_null(fp);
+        assert_int_equal(lw_rtable_write(t, fp, fmts[f], &e), LW_OK);
+        fclose(fp);
+        lw_rtable_free(t);
+        for (int threads = 1; threads <= 3; threads++) {
+            lw_status st;
+            char *streamed = stream_text(&p, v, 2, threads, fmts[f], &st, &e);
+            assert_int_equal(st, LW_OK);
+            assert_string_equal(streamed, whole);
+            free(streamed);
+        }
+        free(whole);
+    }
+    lw_sweep_clear(&sw);
+    lw_vary_clear(&v[0]);
+    lw_vary_clear(&v[1]);
+    /* a bad row: its error */
+    lw_vary bad;
+    assert_int_equal(lw_vary_parse("pack.cell=flat,slope,nosuch", NULL, &bad, &e), LW_OK);
+    for (int threads = 1; threads <= 2; threads++) {
+        lw_status st;
+        char *out = stream_text(&p, &bad, 1, threads, LW_FMT_CSV, &st, &e);
+        assert_int_equal(st, LW_EINPUT);
+        assert_non_null(strstr(e.msg, "no cell named 'nosuch'"));
+        assert_null(strstr(out, "nosuch"));
+        free(out);
+    }
+    lw_vary_clear(&bad);
+    lw_profile_clear(&p);
+}
+
 int main(void)
 {
     const struct CMUnitTest tests[] = {
@@ -142,6 +212,7 @@ int main(void)
         cmocka_unit_test(vary_refusals_show_the_forms),
         cmocka_unit_test(sweep_rows_equal_individual_runs),
         cmocka_unit_test(sweep_reports_a_bad_row),
+        cmocka_unit_test(streamed_table_equals_the_whole),
     };
     return cmocka_run_group_tests(tests, NULL, tmp_teardown);
 }
