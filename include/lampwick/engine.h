@@ -9,15 +9,19 @@
  * dd/dt = Ic/C_eff(Ic) + lambda (1 - d) (cell.h), so t(d) is the integral of
  * 1/(dd/dt) over depth, and every other
  * total (lumen-hours, energies) is the integral of its rate times dt/dd.
- * Within one interval of the cell curve the integrands are smooth, so each
- * interval is integrated with the 15-point Gauss-Kronrod rule, its error
- * estimated against the embedded 7-point Gauss rule and halved until the
- * estimate is within the relative tolerance (R. Piessens et al., QUADPACK,
- * Springer 1983).  Events -- the end conditions, 50 % output, and kinks of
- * the model (the Peukert low-drain cap, a regulator leaving regulation) --
- * are watched at every node; where one changes sign it is located with
- * Brent's method and the integration breaks there, so each end is found
- * exactly, not at a step edge.
+ * Between the corners of the cell curve the integrands are smooth, so each
+ * stretch is integrated piece by piece with Gauss-Lobatto rules sized from
+ * the smoothness the last piece showed, each piece's error estimated from
+ * the fall of the Legendre coefficients of the polynomial through its
+ * nodes (quadrature.h) and the piece given more nodes or halved until the
+ * estimate is within the relative tolerance.  Events -- the end conditions,
+ * 50 % output, and kinks of the model (the Peukert low-drain cap, a
+ * regulator leaving regulation, table knots) -- are watched at every node;
+ * where one changes sign it is located on the polynomial through the
+ * nodes, polished by Newton steps (Brent's method on what remains), and
+ * the integration breaks there, so each end is found exactly, not at a
+ * step edge.  docs/model.md gives the details and the measured honesty of
+ * the tolerance.
  *
  * End of run, the first of: output <= relative_pct % of the output 30 s after
  * switch-on (ANSI/PLATO FL 1 runtime definition), output <= flux floor,
@@ -214,7 +218,7 @@ LW_MUST_CHECK lw_status lw_run_worst_case(const lw_light *light, lw_point *pt, l
 
 /* Hours to discharge from depth d0 to d1 (d0 < d1 within one interval of
  * the cell curve) at the light's operating points, by the run's own
- * Gauss-Kronrod rule; `fallback` selects the converter's fallback level. */
+ * quadrature; `fallback` selects the converter's fallback level. */
 LW_MUST_CHECK lw_status lw_run_hours_between(const lw_light *light, bool fallback, double d0,
                                              double d1, double *hours, lw_error *err);
 
