@@ -10,10 +10,11 @@
  * 1 base - no I/O but what a caller asks for, no model
  *   alloc.h      allocation wrappers with a failure hook for tests
  *   error.h      lw_error (file, line, message), status codes, LW_MUST_CHECK
- *   number.h     the number grammar, locale-independent formatting
+ *   number.h     the number grammar, locale-independent formatting, memoized logs
  *   text.h       bounded copies, UTF-8 validation, escaping, edit distance
- *   interp.h     monotone interpolation tables (linear, monotone cubic)
+ *   interp.h     monotone interpolation tables (linear, monotone cubic), corners
  *   roots.h      Brent's root finder, the Wright omega function
+ *   quadrature.h Gauss and Lobatto rules, Legendre series, their error estimate
  *   eseries.h    IEC 60063 preferred values, resistance parsing
  *   pool.h       parallel-for over POSIX threads
  * 2 model - the physics; no files
@@ -70,6 +71,7 @@
 #include "text.h"
 #include "interp.h"
 #include "roots.h"
+#include "quadrature.h"
 #include "eseries.h"
 #include "pool.h"
 /* 2 model */
