@@ -74,17 +74,24 @@ static void vary_refusals_show_the_forms(void **state)
 
 /* Each row of a 2-key grid equals a single run with the same --set values,
  * bit for bit; and the grid order is the nested order of the --vary options. */
+/* The fixture profile and two varied keys, the cell first. */
+static void fixture_with_varies(lw_profile *p, lw_vary v[2], const char *resistors)
+{
+    load_fixture(NULL, p);
+    lw_error e;
+    lw_error_clear(&e);
+    assert_int_equal(lw_vary_parse("pack.cell=flat,slope", NULL, &v[0], &e), LW_OK);
+    assert_int_equal(lw_vary_parse(resistors, NULL, &v[1], &e), LW_OK);
+}
+
 static void sweep_rows_equal_individual_runs(void **state)
 {
     (void)state;
     lw_profile p;
-    load_fixture(NULL, &p);
     lw_vary v[2];
     lw_error e;
     lw_error_clear(&e);
-    assert_int_equal(lw_vary_parse("pack.cell=flat,slope", NULL, &v[0], &e), LW_OK);
-    assert_int_equal(lw_vary_parse("drive.resistor_ohm=E12:10..100", NULL, &v[1], &e),
-                     LW_OK);
+    fixture_with_varies(&p, v, "drive.resistor_ohm=E12:10..100");
     lw_sweep sw;
     assert_int_equal(lw_sweep_run(&p, v, 2, 2, NULL, NULL, &sw, &e), LW_OK);
     assert_int_equal(sw.n, 2 * 13);
@@ -158,12 +165,10 @@ static void streamed_table_equals_the_whole(void **state)
 {
     (void)state;
     lw_profile p;
-    load_fixture(NULL, &p);
     lw_vary v[2];
     lw_error e;
     lw_error_clear(&e);
-    assert_int_equal(lw_vary_parse("pack.cell=flat,slope", NULL, &v[0], &e), LW_OK);
-    assert_int_equal(lw_vary_parse("drive.resistor_ohm=5..400:5", NULL, &v[1], &e), LW_OK);
+    fixture_with_varies(&p, v, "drive.resistor_ohm=5..400:5");
     lw_sweep sw;
     assert_int_equal(lw_sweep_run(&p, v, 2, 2, NULL, NULL, &sw, &e), LW_OK);
     assert_true(sw.n > 2 * LW_SWEEP_WINDOW_PER_THREAD); /* past the window */

@@ -356,9 +356,16 @@ static double event_xtol(const engine *e, double d, const lw_point *pt)
 struct locate_ctx {
     engine *e;
     int k;
-    double sign; /* +1: g as is; -1: negated, so that "not fired" is positive */
+    double sign;   /* +1: g as is; -1: negated, so that "not fired" is positive */
+    bool at_level; /* a band's quantity against `level` instead of the event's g */
+    double level;
     bool failed;
 };
+
+static double locate_g(const struct locate_ctx *c, const lw_point *pt)
+{
+    return c->sign * (c->at_level ? band_value(c->k, pt) - c->level : event_g(c->e, c->k, pt));
+}
 
 static double locate_fn(double d, void *vctx)
 {
@@ -368,7 +375,20 @@ static double locate_fn(double d, void *vctx)
         c->failed = true;
         return NAN;
     }
-    return c->sign * event_g(c->e, c->k, &pt);
+    return locate_g(c, &pt);
+}
+
+/* Brent's method on c's function over [a, b], g(a) > 0 >= g(b), to xtol in
+ * depth; a solve that fails inside is its own error, not the root
+ * finder's. */
+static lw_status locate_root(struct locate_ctx *c, double a, double b, double ga, double gb,
+                             double xtol, double *d)
+{
+    lw_status st = lw_root_brent(locate_fn, c, a, b, ga, gb, xtol, c->e->opt->event_iter_max, d,
+                                 c->e->err);
+    if (c->failed)
+        st = c->e->err->code ? c->e->err->code : LW_ENUMERIC;
+    return st;
 }
 
 /* Depth in [a, b] where event k fires, by Brent's method; g(a) not fired,
@@ -378,8 +398,8 @@ static double locate_fn(double d, void *vctx)
 static lw_status locate(engine *e, int k, double a, double b, const lw_point *pa,
                         const lw_point *pb, double *d)
 {
-    struct locate_ctx c = {e, k, event_sign(e, k, pb), false};
-    double ga = c.sign * event_g(e, k, pa), gb = c.sign * event_g(e, k, pb);
+    struct locate_ctx c = {.e = e, .k = k, .sign = event_sign(e, k, pb)};
+    double ga = locate_g(&c, pa), gb = locate_g(&c, pb);
     e->fire_from = a;
     if (!(ga > 0.0)) {
         *d = a;
@@ -387,11 +407,7 @@ static lw_status locate(engine *e, int k, double a, double b, const lw_point *pa
     }
     if (gb > 0.0) /* fired at exactly zero (stop events use <= 0) */
         gb = 0.0;
-    lw_status st = lw_root_brent(locate_fn, &c, a, b, ga, gb, event_xtol(e, b, pb),
-                                 e->opt->event_iter_max, d, e->err);
-    if (c.failed) /* a solve failed inside: its error, not the root finder's */
-        st = e->err->code ? e->err->code : LW_ENUMERIC;
-    return st;
+    return locate_root(&c, a, b, ga, gb, event_xtol(e, b, pb), d);
 }
 
 /* ---- pieces ------------------------------------------------------------- */
@@ -735,18 +751,60 @@ typedef struct span_sum {
 /* The most pieces pending at once in a span: one per halving. */
 #define SPAN_STACK 64
 
+/* The far halves of halved pieces, waiting their turn (the latest first),
+ * each with the point at its end and its count of halvings. */
+typedef struct pending {
+    struct {
+        double d;
+        lw_point pt;
+        int depth;
+    } item[SPAN_STACK];
+    int top;
+} pending;
+
+static bool pending_push(pending *s, double b, const lw_point *pb, int depth)
+{
+    if (s->top >= SPAN_STACK)
+        return false;
+    s->item[s->top].d = b;
+    s->item[s->top].pt = *pb;
+    s->item[s->top].depth = depth;
+    s->top++;
+    return true;
+}
+
+/* The next piece's end, its point and its halvings; false when none waits. */
+static bool pending_pop(pending *s, double *b, lw_point *pb, int *depth)
+{
+    if (s->top == 0)
+        return false;
+    s->top--;
+    *b = s->item[s->top].d;
+    *pb = s->item[s->top].pt;
+    *depth = s->item[s->top].depth;
+    return true;
+}
+
+/* The rule a piece that missed the tolerance tries next on the same piece:
+ * the larger one its fall asks for, while that costs fewer solves than
+ * halving it would; 0: halve instead. */
+static int larger_rule(const engine *e, const piece *p)
+{
+    int more = nodes_more(e, p);
+    return more > 0 && p->n + more <= NODES_MAX &&
+                   p->n + more - 1 <= 2 * (nodes_for(e, 0.5 * (p->b - p->a)) - 1) + 1
+               ? p->n + more
+               : 0;
+}
+
 /* Integrate [a, b] (inside one curve interval, no event inside) from the
  * points at both ends, piece by piece: a piece that misses the tolerance
  * is tried with a larger rule or halved. */
 static lw_status span(engine *e, double a, const lw_point *pa, double b, const lw_point *pb,
                       span_sum *sum)
 {
-    struct {
-        double d;
-        lw_point pt;
-        int depth;
-    } stack[SPAN_STACK];
-    int top = 0, depth = 0, n = nodes_for(e, b - a);
+    pending later = {.top = 0};
+    int depth = 0, n = nodes_for(e, b - a);
     lw_point cur = *pa, end = *pb;
     piece p;
     while (a < b) {
@@ -757,20 +815,16 @@ static lw_status span(engine *e, double a, const lw_point *pa, double b, const l
         piece_sums(&p, prior_fall(e, p.b - p.a));
         bool ok = accurate(e, b - a, p.k, p.err);
         if (!ok && isfinite(p.k[Q_T])) {
-            int more = nodes_more(e, &p);
             learn(e, &p);
-            if (more > 0 && p.n + more <= NODES_MAX && p.n + more - 1 <= 2 * (nodes_for(e, 0.5 * (b - a)) - 1) + 1) {
-                n = p.n + more; /* a larger rule on the same piece */
+            int larger = larger_rule(e, &p);
+            if (larger > 0) {
+                n = larger;
                 continue;
             }
-            if (may_halve(e, a, b, depth) && top < SPAN_STACK) {
-                double m = 0.5 * (a + b);
-                stack[top].d = b;
-                stack[top].pt = end;
-                stack[top].depth = ++depth;
-                top++;
-                b = m;
-                if ((st = eval(e, m, &end)) != LW_OK)
+            if (may_halve(e, a, b, depth) && pending_push(&later, b, &end, depth + 1)) {
+                depth++;
+                b = 0.5 * (a + b);
+                if ((st = eval(e, b, &end)) != LW_OK)
                     return st;
                 n = nodes_for(e, b - a);
                 continue;
@@ -787,12 +841,7 @@ static lw_status span(engine *e, double a, const lw_point *pa, double b, const l
         }
         a = b;
         cur = end;
-        if (top > 0) {
-            top--;
-            b = stack[top].d;
-            end = stack[top].pt;
-            depth = stack[top].depth;
-        }
+        (void)pending_pop(&later, &b, &end, &depth);
         n = nodes_for(e, b - a);
     }
     return LW_OK;
@@ -958,12 +1007,8 @@ static lw_status locate_smooth(engine *e, int k, const piece *p, int j, double *
         g_prev = g, d_prev = at, at = next;
     }
     /* what is left of the bracket, by Brent's method */
-    struct locate_ctx ctx = {e, k, sign, false};
-    lw_status st =
-        lw_root_brent(locate_fn, &ctx, lo, hi, glo, ghi > 0.0 ? 0.0 : ghi, tol,
-                      e->opt->event_iter_max, d, e->err);
-    if (ctx.failed) /* a solve failed inside: its error, not the root finder's */
-        st = e->err->code ? e->err->code : LW_ENUMERIC;
+    struct locate_ctx ctx = {.e = e, .k = k, .sign = sign};
+    lw_status st = locate_root(&ctx, lo, hi, glo, ghi > 0.0 ? 0.0 : ghi, tol, d);
     return st == LW_OK ? eval(e, *d, pt) : st;
 }
 
@@ -1209,12 +1254,8 @@ static bool singular_end(const piece *p)
  * integration stopped (at B unless the run ended). */
 static lw_status run_interval(engine *e, double A, double B, lw_point *pa_io)
 {
-    struct {
-        double d;
-        lw_point pt;
-        int depth;
-    } stack[SPAN_STACK];
-    int top = 0, depth = 0;
+    pending later = {.top = 0};
+    int depth = 0;
     double a = A, b = B;
     lw_point pa = *pa_io, pb;
     bool have_b = false;
@@ -1261,14 +1302,8 @@ static lw_status run_interval(engine *e, double A, double B, lw_point *pa_io)
                 return st;
             a = b;
             pa = pb;
-            if (top > 0) {
-                top--;
-                b = stack[top].d;
-                pb = stack[top].pt;
-                depth = stack[top].depth;
-            } else {
+            if (!pending_pop(&later, &b, &pb, &depth))
                 b = B;
-            }
             n = nodes_for(e, b - a);
             continue;
         }
@@ -1276,17 +1311,13 @@ static lw_status run_interval(engine *e, double A, double B, lw_point *pa_io)
             bool ok = accurate(e, b - a, p.k, p.err);
             learn(e, &p);
             if (!ok && isfinite(p.k[Q_T])) {
-                int more = nodes_more(e, &p);
-                if (more > 0 && p.n + more <= NODES_MAX &&
-                    p.n + more - 1 <= 2 * (nodes_for(e, 0.5 * (b - a)) - 1) + 1) {
-                    n = p.n + more; /* a larger rule on the same piece */
+                int larger = larger_rule(e, &p);
+                if (larger > 0) {
+                    n = larger;
                     continue;
                 }
-                if (may_halve(e, a, b, depth) && top < SPAN_STACK) {
-                    stack[top].d = b;
-                    stack[top].pt = pb;
-                    stack[top].depth = ++depth;
-                    top++;
+                if (may_halve(e, a, b, depth) && pending_push(&later, b, &pb, depth + 1)) {
+                    depth++;
                     b = 0.5 * (a + b);
                     have_b = false;
                     n = nodes_for(e, b - a);
@@ -1298,20 +1329,15 @@ static lw_status run_interval(engine *e, double A, double B, lw_point *pa_io)
                 return st;
             a = b;
             pa = pb;
-            if (top > 0) {
-                top--;
-                b = stack[top].d;
-                pb = stack[top].pt;
-                depth = stack[top].depth;
-            } else {
+            if (!pending_pop(&later, &b, &pb, &depth)) {
                 b = B;
                 have_b = a >= B;
             }
             n = nodes_for(e, b - a);
             continue;
         }
-        /* an event at d_star: the lit part of [a, d_star] first (a stop
-         * leaves the integrands smooth across it: the piece is learnt from) */
+        /* an event at d_star: the lit part of [a, d_star] first (the piece
+         * is not learnt from: past the event its integrands may bend) */
         if (d_star > a) {
             if (k == EV_DROPOUT)
                 st = integrate_to_limit(e, a, d_star);
@@ -1426,24 +1452,6 @@ static void set_warnings(const lw_light *l, lw_result *r)
 
 /* ---- time between depths, the 30-s point -------------------------------- */
 
-struct kink_ctx {
-    engine *e;
-    int k;
-    double level, sign;
-    bool failed;
-};
-
-static double kink_fn(double d, void *vctx)
-{
-    struct kink_ctx *c = vctx;
-    lw_point pt;
-    if (eval(c->e, d, &pt) != LW_OK) {
-        c->failed = true;
-        return NAN;
-    }
-    return c->sign * (is_band(c->k) ? band_value(c->k, &pt) - c->level : event_g(c->e, c->k, &pt));
-}
-
 /* The first kink of the light's integrands strictly inside (a, b), both
  * ends lit: a knot of a table its band events watch, the regulator's
  * margin or the Peukert corner changing sign between the ends (one that
@@ -1459,7 +1467,7 @@ static lw_status kink_inside(engine *e, double a, const lw_point *pa, double b,
         int k = kinds[i];
         if (!e->active[k])
             continue;
-        struct kink_ctx c = {e, k, 0.0, 1.0, false};
+        struct locate_ctx c = {.e = e, .k = k, .sign = 1.0, .at_level = is_band(k)};
         double v0 = 0.0, v1 = 0.0;
         if (is_band(k)) {
             v0 = band_value(k, pa), v1 = band_value(k, pb);
@@ -1481,14 +1489,11 @@ static lw_status kink_inside(engine *e, double a, const lw_point *pa, double b,
                 if (!(v1 > v0 ? c.level < v1 : c.level > v1))
                     break; /* no knot between them */
             }
-            double ga = kink_fn(a, &c), gb = kink_fn(b, &c), d = b;
+            double ga = locate_g(&c, pa), gb = locate_g(&c, pb), d = b;
             lw_status st = LW_OK;
-            if (!c.failed && ga > 0.0)
-                st = lw_root_brent(kink_fn, &c, a, b, ga, gb,
-                                   e->opt->event_tol * (fabs(b) + 1e-3),
-                                   e->opt->event_iter_max, &d, e->err);
-            if (c.failed)
-                st = e->err->code ? e->err->code : LW_ENUMERIC;
+            if (ga > 0.0)
+                st = locate_root(&c, a, b, ga, gb > 0.0 ? 0.0 : gb,
+                                 e->opt->event_tol * (fabs(b) + 1e-3), &d);
             if (st != LW_OK)
                 return st;
             if (d > a + margin) {

@@ -199,6 +199,22 @@ static void point_temps(const lw_light *l, const lw_point *pt, const lw_temps *s
     lw_thermal_nodes(th, l->pack.ambient_c, q_led, q_per, q_other, t);
 }
 
+/* The point with the junctions at x (w: the light with the foldback
+ * applied), the node temperatures its heat gives in *t, and the map's
+ * residual g = T_j(heat at x) - x in *g. */
+static lw_status junction_residual(const lw_light *l, lw_light *w, double depth, double ocv_v,
+                                   double r_cell_ohm, bool fallback, const lw_temps *s, double x,
+                                   lw_point *pt, lw_temps *t, double *g, lw_error *err)
+{
+    w->led.t_junction_c = x;
+    lw_status st = point_electrical(w, depth, ocv_v, r_cell_ohm, fallback, pt, err);
+    if (st != LW_OK)
+        return st;
+    point_temps(l, pt, s, t);
+    *g = t->junction_c - x;
+    return LW_OK;
+}
+
 /* The point at the board and body state *s with the driver's foldback
  * factor `fold`, the junction solved with the LEDs' own heat. */
 static lw_status point_folded(const lw_light *l, double depth, double ocv_v, double r_cell_ohm,
@@ -228,12 +244,11 @@ static lw_status point_folded(const lw_light *l, double depth, double ocv_v, dou
     if (isfinite(s.junction_c) && s.junction_c >= a && s.junction_c < ta + LW_THERMAL_RUNAWAY_K) {
         double x0 = s.junction_c, g0 = NAN;
         for (int it = 0; it < LW_THERMAL_HINT_STEPS; it++) {
-            w.led.t_junction_c = x0;
-            lw_status st = point_electrical(&w, depth, ocv_v, r_cell_ohm, fallback, pt, err);
+            double g;
+            lw_status st = junction_residual(l, &w, depth, ocv_v, r_cell_ohm, fallback, &s, x0,
+                                             pt, &t, &g, err);
             if (st != LW_OK)
                 return st;
-            point_temps(l, pt, &s, &t);
-            double g = t.junction_c - x0;
             if (fabs(g) <= LW_THERMAL_TOL * (273.15 + fabs(x0))) {
                 pt->temps = t;
                 pt->temps.junction_c = x0;
@@ -248,12 +263,11 @@ static lw_status point_folded(const lw_light *l, double depth, double ocv_v, dou
         x = a; /* the bracket from the coldest node */
     }
     for (int it = 0; it < LW_THERMAL_ITER_MAX; it++) {
-        w.led.t_junction_c = x;
-        lw_status st = point_electrical(&w, depth, ocv_v, r_cell_ohm, fallback, pt, err);
+        double g;
+        lw_status st = junction_residual(l, &w, depth, ocv_v, r_cell_ohm, fallback, &s, x, pt, &t,
+                                         &g, err);
         if (st != LW_OK)
             return st;
-        point_temps(l, pt, &s, &t);
-        double g = t.junction_c - x;
         /* converged: the map returns x to a few hundred ulps of the absolute
          * temperature, or the bracket pins it that closely (a kink of the
          * drive where the map jumps) - so the quadrature sees no noise */
