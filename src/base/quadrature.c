@@ -33,7 +33,7 @@ double lw_quad_sum(const lw_quad_rule *rule, const double *f, int stride)
 {
     double s = 0.0;
     for (int j = 0; j < rule->n; j++)
-        s += rule->w[j] * f[j * stride];
+        s += rule->w[j] * f[(ptrdiff_t)j * stride];
     return s;
 }
 
@@ -43,15 +43,15 @@ void lw_quad_legendre_many(const lw_quad_rule *rule, const double *f, int m, dou
     const int n = rule->n;
     for (int i = 0; i < m; i++)
         sum[i] = 0.0;
-    for (int k = 0; k < n * m; k++)
+    for (ptrdiff_t k = 0; k < (ptrdiff_t)n * m; k++)
         a[k] = 0.0;
     for (int j = 0; j < n; j++) {
-        const double *fj = f + j * m, w = rule->w[j];
+        const double *fj = f + (ptrdiff_t)j * m, w = rule->w[j];
         for (int i = 0; i < m; i++)
             sum[i] += w * fj[i];
         for (int k = 0; k < n; k++) {
-            const double c = rule->c[k * n + j];
-            double *ak = a + k * m;
+            const double c = rule->c[(ptrdiff_t)k * n + j];
+            double *ak = a + (ptrdiff_t)k * m;
             for (int i = 0; i < m; i++)
                 ak[i] += c * fj[i];
         }
@@ -62,17 +62,21 @@ void lw_quad_legendre(const lw_quad_rule *rule, const double *f, int stride, dou
 {
     const int n = rule->n;
     for (int k = 0; k < n; k++) {
-        const double *row = rule->c + k * n;
+        const double *row = rule->c + (ptrdiff_t)k * n;
         double s = 0.0;
         for (int j = 0; j < n; j++)
-            s += row[j] * f[j * stride];
+            s += row[j] * f[(ptrdiff_t)j * stride];
         a[k] = s;
     }
 }
 
+/* The most nodes of any rule in the tables. */
+#define RULE_NODES_MAX LW_QUAD_LOBATTO_MAX
+_Static_assert(LW_QUAD_GAUSS_MAX <= RULE_NODES_MAX, "the envelope holds every rule's");
+
 lw_quad_estimate lw_quad_estimate_error(const lw_quad_rule *rule, const double *a, double noise)
 {
-    const int n = rule->n;
+    const int n = rule->n < RULE_NODES_MAX ? rule->n : RULE_NODES_MAX;
     lw_quad_estimate est = {0.0, 1.0, 0.0, 0.0};
     for (int k = 0; k < n; k++)
         if (!isfinite(a[k])) {
@@ -81,8 +85,7 @@ lw_quad_estimate lw_quad_estimate_error(const lw_quad_rule *rule, const double *
         }
     /* the envelope from the right, E_k = max_{j >= k} |a_j| (noise as zero),
      * k >= 1 */
-    double env[LW_QUAD_LOBATTO_MAX > LW_QUAD_GAUSS_MAX ? LW_QUAD_LOBATTO_MAX
-                                                       : LW_QUAD_GAUSS_MAX];
+    double env[RULE_NODES_MAX] = {0};
     double m = 0.0;
     for (int k = n - 1; k >= 1; k--) {
         double v = fabs(a[k]);

@@ -516,7 +516,7 @@ static void piece_sums(piece *p, double prior)
     double lo[NQ], hi[NQ], big[NQ];
     transform(p, coef_k, sum);
     for (int q = 0; q < NQ; q++)
-        lo[q] = hi[q] = p->f[0][q], big[q] = 0.0;
+        lo[q] = INFINITY, hi[q] = -INFINITY, big[q] = 0.0;
     for (int j = 0; j < p->n; j++)
         for (int q = 0; q < NQ; q++) {
             double v = p->f[j][q];
@@ -961,7 +961,8 @@ static lw_status locate_smooth(engine *e, int k, const piece *p, int j, double *
     double sign = event_sign(e, k, &p->pt[j]), gv[NODES_MAX], coef[NODES_MAX];
     for (int i = 0; i < p->n; i++)
         gv[i] = sign * event_g(e, k, &p->pt[i]);
-    double lo = node_depth(p, j - 1), hi = node_depth(p, j), glo = gv[j - 1], ghi = gv[j];
+    double lo = node_depth(p, j - 1), hi = node_depth(p, j);
+    double glo = sign * event_g(e, k, &p->pt[j - 1]), ghi = sign * event_g(e, k, &p->pt[j]);
     e->fire_from = lo;
     if (!(glo > 0.0)) { /* on the event already (a jump, or rounding after the last) */
         *d = lo;
@@ -1769,10 +1770,9 @@ static lw_status fresh_reference(const engine *e, double *flux_lm)
     double d30;
     init_kinds(&f);
     lw_status st = start_point(&f, &p0);
+    p30 = p0;
     if (st == LW_OK && p0.flux_lm > 0.0 && isfinite(p0.dtdd_h))
         st = point_at_30s(&f, &p0, &p30, &d30);
-    else
-        p30 = p0;
     *flux_lm = p30.flux_lm > 0.0 ? p30.flux_lm : p0.flux_lm;
     return st;
 }

@@ -125,8 +125,10 @@ struct writer {
     size_t nk, ncols;
     const size_t *cols;
     lw_rtable *head;     /* the header; text: every row, packed */
-    lw_rtable **full;    /* per worker: one row of every run column */
-    lw_rtable **row;     /* per worker: the row's own cells */
+    struct worker_tables {
+        lw_rtable *full; /* one row of every run column */
+        lw_rtable *row;  /* the row's own cells */
+    } *own;              /* per worker */
     pthread_mutex_t lock;
     pthread_cond_t moved;
     slot *win;
@@ -140,7 +142,7 @@ struct writer {
 static lw_status format_row(struct writer *wr, const lw_sweep *sw, size_t r, int w,
                             const lw_case *c, lw_error *err)
 {
-    lw_rtable *full = wr->full[w], *row = wr->row[w];
+    lw_rtable *full = wr->own[w].full, *row = wr->own[w].row;
     lw_status st = lw_report_run_row(full, 0, 0, &c->light, &c->res, err);
     for (size_t k = 0; k < wr->nk && st == LW_OK; k++)
         st = lw_rtable_set(row, 0, k, sw->vary[k].values[sw->index[r * wr->nk + k]], err);
@@ -194,9 +196,9 @@ static lw_status write_row(const lw_sweep *sw, size_t r, int w, const lw_case *c
     if (st == LW_OK)
         st = format_row(wr, sw, r, w, c, err);
     if (st == LW_OK)
-        st = lw_rtable_render_row(wr->row[w], 0, wr->fmt, &text, &len, err);
+        st = lw_rtable_render_row(wr->own[w].row, 0, wr->fmt, &text, &len, err);
     if (st == LW_OK && r == 0 && wr->fmt == LW_FMT_MD)
-        st = lw_rtable_render_row(wr->row[w], 0, LW_FMT_TEXT, &packed, &packed_len, err);
+        st = lw_rtable_render_row(wr->own[w].row, 0, LW_FMT_TEXT, &packed, &packed_len, err);
     pthread_mutex_lock(&wr->lock);
     while (!wr->stopped && r >= wr->next + wr->nwin)
         pthread_cond_wait(&wr->moved, &wr->lock);
@@ -223,19 +225,16 @@ static lw_status write_row(const lw_sweep *sw, size_t r, int w, const lw_case *c
 
 static void writer_free(struct writer *wr, int workers)
 {
-    for (int w = 0; w < workers; w++) {
-        if (wr->full)
-            lw_rtable_free(wr->full[w]);
-        if (wr->row)
-            lw_rtable_free(wr->row[w]);
+    for (int w = 0; wr->own && w < workers; w++) {
+        lw_rtable_free(wr->own[w].full);
+        lw_rtable_free(wr->own[w].row);
     }
     for (size_t i = 0; wr->win && i < wr->nwin; i++) {
         free(wr->win[i].text);
         free(wr->win[i].packed);
     }
     free(wr->win);
-    free(wr->full);
-    free(wr->row);
+    free(wr->own);
     lw_rtable_free(wr->head);
 }
 
@@ -244,11 +243,10 @@ static lw_status writer_init(struct writer *wr, int workers, lw_error *err)
 {
     size_t nk = wr->nk, ncols = wr->ncols, row;
     wr->head = lw_rtable_new(nk + ncols, err);
-    wr->full = lw_calloc((size_t)workers, sizeof *wr->full);
-    wr->row = lw_calloc((size_t)workers, sizeof *wr->row);
+    wr->own = lw_calloc((size_t)workers, sizeof *wr->own);
     wr->nwin = (size_t)workers * LW_SWEEP_WINDOW_PER_THREAD;
     wr->win = lw_calloc(wr->nwin, sizeof *wr->win);
-    if (!wr->head || !wr->full || !wr->row || !wr->win)
+    if (!wr->head || !wr->own || !wr->win)
         return lw_error_set(err, LW_ENOMEM, NULL, 0, "out of memory for the sweep");
     lw_status st = LW_OK;
     for (size_t k = 0; k < nk && st == LW_OK; k++)
@@ -256,13 +254,14 @@ static lw_status writer_init(struct writer *wr, int workers, lw_error *err)
     for (size_t c = 0; c < ncols && st == LW_OK; c++)
         st = lw_rtable_head(wr->head, nk + c, lw_report_run_columns[wr->cols[c]], err);
     for (int w = 0; w < workers && st == LW_OK; w++) {
-        wr->full[w] = lw_rtable_new(lw_report_run_ncolumns, err);
-        wr->row[w] = wr->full[w] ? lw_rtable_new(nk + ncols, err) : NULL;
-        if (!wr->row[w])
+        struct worker_tables *t = &wr->own[w];
+        t->full = lw_rtable_new(lw_report_run_ncolumns, err);
+        t->row = t->full ? lw_rtable_new(nk + ncols, err) : NULL;
+        if (!t->row)
             return err->code ? err->code : LW_ENOMEM;
-        st = lw_rtable_add_row(wr->full[w], &row, err);
+        st = lw_rtable_add_row(t->full, &row, err);
         if (st == LW_OK)
-            st = lw_rtable_add_row(wr->row[w], &row, err);
+            st = lw_rtable_add_row(t->row, &row, err);
     }
     return st;
 }
