@@ -122,7 +122,7 @@ double lw_root_wright_omega_log(double x, double *log_w)
         /* asymptotic series of W0(e^x) (Corless et al., "On the Lambert W
          * function", Adv. Comput. Math. 5, 1996, eq. 4.19) to the fourth
          * power of 1/ln z: within 1e-4 from x = 5, 3e-8 at x = 27 */
-        double l1 = x, l2 = lw_root_rough_log(x), q = l2 / l1, u = 1.0 / l1;
+        double l1 = x, l2 = lw_root_rough_log(x), u = 1.0 / l1, q = l2 * u;
         w = l1 - l2 +
             q * (1.0 + u * (0.5 * (l2 - 2.0) +
                             u * ((6.0 + l2 * (-9.0 + 2.0 * l2)) / 6.0 +
@@ -139,10 +139,11 @@ double lw_root_wright_omega_log(double x, double *log_w)
     for (int it = 0; it < 6; it++) {
         lw = log(w);
         double r = x - w - lw;
-        double a = (1.0 + w) * (1.0 + w + 2.0 * r / 3.0);
-        double wn = w * (1.0 + r / (1.0 + w) * (a - 0.5 * r) / (a - r));
-        double d = (wn - w) / w;
-        bool done = fabs(wn - w) <= 2e-4 * wn;
+        double a = (1.0 + w) * (1.0 + w + (2.0 / 3.0) * r);
+        /* the relative step, one division: w_new = w (1 + d) */
+        double d = r * (a - 0.5 * r) / ((1.0 + w) * (a - r));
+        double wn = w * (1.0 + d);
+        bool done = fabs(d) <= 2e-4 * (1.0 + d);
         lw += d * (1.0 + d * (-0.5 + d * (1.0 / 3.0 + d * (-0.25 + d * 0.2))));
         w = wn;
         if (done)
