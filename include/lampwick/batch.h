@@ -35,6 +35,10 @@ typedef struct lw_case {
  * batch gains nothing from threads (a judgement, no measurement). */
 #define LW_BATCH_THREADED_MIN 16
 
+/* The workers a batch of n cases runs on, asked for threads (<= 0: all
+ * cores): one below LW_BATCH_THREADED_MIN, else lw_pool_threads(n, threads). */
+int lw_batch_workers(size_t n, int threads);
+
 /* Run one case as lw_batch_run runs each (on the calling thread). */
 void lw_batch_run_case(const lw_profile *base, lw_case *c, const char *origin);
 

@@ -168,8 +168,12 @@ LW_MUST_CHECK lw_status lw_light_point_at(const lw_light *light, double depth, d
  * the nodes that have a heat capacity (the others at their balance), the
  * junction solved with the LEDs' own heat.  state NULL: every node at
  * steady state.  A finite state->junction_c is a hint where to start the
- * junction's search (a neighbouring point's); the point is the same to the
- * search's tolerance with or without it. */
+ * junction's search (a neighbouring point's).  Where the junction's map
+ * has one fixed point, the point is the same to the search's tolerance
+ * with or without it; where it has two stable ones (a light at the edge
+ * of runaway), the search from the hint settles on the one it starts
+ * near, so a light followed
+ * along its discharge stays on the branch it is on. */
 LW_MUST_CHECK lw_status lw_light_point_state(const lw_light *light, double depth, double ocv_v,
                                              double r_cell_ohm, bool fallback,
                                              const lw_temps *state, lw_point *pt, lw_error *err);

@@ -26,6 +26,10 @@
  * almost surely a typing slip. */
 #define LW_SWEEP_ROWS_MAX 1000000
 
+/* The rows of the grid of vary[nvary] (the product of their counts); 0
+ * when a vary has no values or the grid has more than LW_SWEEP_ROWS_MAX. */
+size_t lw_sweep_rows(const lw_vary *vary, size_t nvary);
+
 /* What a chart of a sweep needs of each row (0 where it did not light). */
 typedef struct lw_sweep_point {
     double flux_30s_lm, runtime_h;

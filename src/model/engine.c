@@ -211,8 +211,8 @@ static double band_value(int k, const lw_point *pt)
     return k == EV_KNOT ? pt->led_a : (k == EV_EFFICIENCY ? pt->pack_v : pt->temps.body_c);
 }
 
-/* Smallest knot above x (dir > 0) or largest at or below... strictly below
- * (dir < 0) in the sorted array xs[n]; +-INFINITY past the ends. */
+/* Smallest knot above x (dir > 0) or largest strictly below x (dir < 0)
+ * in the sorted array xs[n]; +-INFINITY past the ends. */
 static double knot_next(const double *xs, size_t n, double x, int dir)
 {
     size_t lo = 0, hi = n; /* first index with xs[i] > x (dir > 0), >= x (dir < 0) */
@@ -480,27 +480,20 @@ static void piece_init(piece *p, double a, double b, int n, const lw_point *pa,
         p->pt[p->n - 1] = *pb;
 }
 
-/* The rule sums and Legendre coefficients of every total of p at once:
- * lw_quad_legendre_many with the count of totals fixed, so that the inner
- * loop over them vectorizes. */
-static void transform(const piece *p, double coef_k[NODES_MAX][NQ], double sum[NQ])
+/* The total whose size sets total q's tolerance: its own, or for the
+ * shares of the energy drawn, the energy drawn. */
+static int tol_ref(int q)
 {
-    const int n = p->n;
-    const double *c = p->rule->c, *w = p->rule->w;
-    for (int q = 0; q < NQ; q++)
-        sum[q] = 0.0;
-    for (int k = 0; k < n; k++)
-        for (int q = 0; q < NQ; q++)
-            coef_k[k][q] = 0.0;
-    for (int j = 0; j < n; j++) {
-        for (int q = 0; q < NQ; q++)
-            sum[q] += w[j] * p->f[j][q];
-        for (int k = 0; k < n; k++) {
-            const double ckj = c[k * n + j];
-            for (int q = 0; q < NQ; q++)
-                coef_k[k][q] += ckj * p->f[j][q];
-        }
-    }
+    return q < Q_LED ? q : Q_DRAWN;
+}
+
+/* The size total q of a piece of width w with totals k is judged against:
+ * its reference total, or that total's mean density over the interval's
+ * accepted pieces times w where the piece's own is near zero. */
+static double tol_scale(const engine *e, const double k[NQ], int q, double w)
+{
+    int ref = tol_ref(q);
+    return fmax(fabs(k[ref]), e->density[ref] * w);
 }
 
 /* The totals of p, their Legendre coefficients and error estimates, each
@@ -514,7 +507,7 @@ static void piece_sums(piece *p, double prior)
     lw_quad_estimate est[NQ];
     double noise[NQ], coef_k[NODES_MAX][NQ], sum[NQ];
     double lo[NQ], hi[NQ], big[NQ];
-    transform(p, coef_k, sum);
+    lw_quad_legendre_many(p->rule, &p->f[0][0], NQ, &coef_k[0][0], sum);
     for (int q = 0; q < NQ; q++)
         lo[q] = INFINITY, hi[q] = -INFINITY, big[q] = 0.0;
     for (int j = 0; j < p->n; j++)
@@ -554,8 +547,7 @@ static void piece_sums(piece *p, double prior)
          * a total whose polynomial is exact to rounding falls as fast as
          * any (it asks for the least rule) */
         p->q_rate[q] = p->q_amp[q] = 0.0;
-        int ref = q < Q_LED ? q : Q_DRAWN;
-        double size = fabs(p->coef[ref][0]);
+        double size = fabs(p->coef[tol_ref(q)][0]);
         if (!(size > 0.0) || !isfinite(est[q].tail))
             continue;
         if (est[q].tail <= LEARN_ABOVE_NOISE * noise[q]) {
@@ -586,8 +578,7 @@ static bool accurate(const engine *e, double w, const double k[NQ], const double
 {
     double rtol = e->opt->rtol;
     for (int q = 0; q < NQ; q++) {
-        int ref = q < Q_LED ? q : Q_DRAWN;
-        double scale = q == Q_T ? fabs(k[q]) : fmax(fabs(k[ref]), e->density[ref] * w);
+        double scale = q == Q_T ? fabs(k[q]) : tol_scale(e, k, q, w);
         if (!(err[q] <= rtol * scale + 1e-300))
             return false;
     }
@@ -640,8 +631,7 @@ static int nodes_more(const engine *e, const piece *p)
         return 0;
     double worst = 0.0;
     for (int q = 0; q < NQ; q++) {
-        int ref = q < Q_LED ? q : Q_DRAWN;
-        double scale = fmax(fabs(p->k[ref]), e->density[ref] * w);
+        double scale = tol_scale(e, p->k, q, w);
         worst = fmax(worst, p->err[q] / (NODES_AIM * e->opt->rtol * scale + 1e-300));
     }
     return (int)ceil(log(worst) / (-2.0 * log(p->rate)));
@@ -797,6 +787,30 @@ static int larger_rule(const engine *e, const piece *p)
                : 0;
 }
 
+/* What a piece that missed the tolerance does next. */
+typedef enum { REFINE_NONE, REFINE_LARGER, REFINE_HALVED } refine_kind;
+
+/* Piece p over [p->a, p->b], which missed the tolerance, is tried again
+ * with a larger rule (*n set), or halved: its end (point pb) waits in
+ * later, *b becomes the middle, *depth one deeper and *n the half's rule.
+ * REFINE_NONE: neither is possible and p stands with its warning. */
+static refine_kind refine(const engine *e, const piece *p, const lw_point *pb, pending *later,
+                          double *b, int *depth, int *n)
+{
+    int larger = larger_rule(e, p);
+    if (larger > 0) {
+        *n = larger;
+        return REFINE_LARGER;
+    }
+    if (may_halve(e, p->a, p->b, *depth) && pending_push(later, p->b, pb, *depth + 1)) {
+        ++*depth;
+        *b = 0.5 * (p->a + p->b);
+        *n = nodes_for(e, *b - p->a);
+        return REFINE_HALVED;
+    }
+    return REFINE_NONE;
+}
+
 /* Integrate [a, b] (inside one curve interval, no event inside) from the
  * points at both ends, piece by piece: a piece that misses the tolerance
  * is tried with a larger rule or halved. */
@@ -814,23 +828,14 @@ static lw_status span(engine *e, double a, const lw_point *pa, double b, const l
             return st;
         piece_sums(&p, prior_fall(e, p.b - p.a));
         bool ok = accurate(e, b - a, p.k, p.err);
-        if (!ok && isfinite(p.k[Q_T])) {
-            learn(e, &p);
-            int larger = larger_rule(e, &p);
-            if (larger > 0) {
-                n = larger;
-                continue;
-            }
-            if (may_halve(e, a, b, depth) && pending_push(&later, b, &end, depth + 1)) {
-                depth++;
-                b = 0.5 * (a + b);
-                if ((st = eval(e, b, &end)) != LW_OK)
-                    return st;
-                n = nodes_for(e, b - a);
-                continue;
-            }
-        }
         learn(e, &p);
+        if (!ok && isfinite(p.k[Q_T])) {
+            refine_kind r = refine(e, &p, &end, &later, &b, &depth, &n);
+            if (r == REFINE_HALVED && (st = eval(e, b, &end)) != LW_OK)
+                return st;
+            if (r != REFINE_NONE)
+                continue;
+        }
         if (sum->accumulate) {
             st = accept_totals(e, a, b, p.k, p.err, ok, p.pt + 1, p.n - 1, p.pt[1].regime);
             if (st != LW_OK)
@@ -1312,18 +1317,10 @@ static lw_status run_interval(engine *e, double A, double B, lw_point *pa_io)
             bool ok = accurate(e, b - a, p.k, p.err);
             learn(e, &p);
             if (!ok && isfinite(p.k[Q_T])) {
-                int larger = larger_rule(e, &p);
-                if (larger > 0) {
-                    n = larger;
+                refine_kind r = refine(e, &p, &pb, &later, &b, &depth, &n);
+                have_b = have_b && r != REFINE_HALVED;
+                if (r != REFINE_NONE)
                     continue;
-                }
-                if (may_halve(e, a, b, depth) && pending_push(&later, b, &pb, depth + 1)) {
-                    depth++;
-                    b = 0.5 * (a + b);
-                    have_b = false;
-                    n = nodes_for(e, b - a);
-                    continue;
-                }
             }
             st = accept_totals(e, a, b, p.k, p.err, ok, p.pt + 1, p.n - 1, p.pt[1].regime);
             if (st != LW_OK)
@@ -1365,6 +1362,7 @@ static lw_status run_interval(engine *e, double A, double B, lw_point *pa_io)
     *pa_io = pa;
     return LW_OK;
 }
+
 lw_run_options lw_run_options_default(void)
 {
     return (lw_run_options){.rtol = 1e-10,
@@ -1557,14 +1555,14 @@ static lw_status hours_between(engine *e, double a, double b, const lw_point *pa
     return st;
 }
 
-/* The 30 s after switch-on on one smooth stretch: a 4-node Lobatto rule
- * on [d0, d1], d1 a little past the constant-rate guess, gives dt/dd as a
- * cubic; the depth where its integral reaches 30 s is the 30-s point, when
- * the rule's estimate and the cubic's own error are within the tolerance
- * there and the cubic gives, at the point found, the rate solved there.
- * Four solves where it applies (d1's three nodes and the point
- * itself); false when it does not (a curve knot or an event in the way, a
- * rate that changes fast). */
+/* The 30 s after switch-on on one smooth stretch: a 3-node Lobatto rule
+ * (NODES_MIN) on [d0, d1], d1 a little past the constant-rate guess, gives
+ * dt/dd as a quadratic; the depth where its integral (a cubic) reaches
+ * 30 s is the 30-s point, when the rule's estimate and the quadratic's own
+ * error are within the tolerance there and the quadratic gives, at the
+ * point found, the rate solved there.  Three solves where it applies (the
+ * middle node, d1 and the point itself); false when it does not (a curve
+ * knot or an event in the way, a rate that changes fast). */
 #define T30_MARGIN 1.1 /* d1 past the guess: the rate falls by less than 10 % in 30 s */
 #define T30_SHARE 0.1  /* the share of the tolerance the 30-s point may use */
 static lw_status t30_smooth(engine *e, const lw_point *p0, lw_point *p30, double *d30,
@@ -1585,14 +1583,14 @@ static lw_status t30_smooth(engine *e, const lw_point *p0, lw_point *p30, double
             return LW_OK;
     piece_sums(&p, prior_fall(e, p.b - p.a));
     const double h = 0.5 * (d1 - d0);
-    /* the cubic's time error moves the 30-s depth by slack / (dt/dd); what
+    /* the polynomial's time error moves the 30-s depth by slack / (dt/dd); what
      * that does to the output there is what must stay within the tolerance */
     double slack = LW_QUAD_SAFETY * p.beyond[Q_T] + p.err[Q_T];
     double dlnf = fabs(p.pt[p.n - 1].flux_lm - p0->flux_lm) / (d1 - d0) / p0->flux_lm;
     double dd = slack / fmin(p.f[0][Q_T], p.f[p.n - 1][Q_T]);
     if (!(dd * dlnf <= e->opt->rtol && dd <= 1e-6 * (d1 - d0)) || p.k[Q_T] < t30_h)
         return LW_OK;
-    /* the integral of the cubic from -1 rises through t30 / h once */
+    /* the integral of the quadratic from -1 rises through t30 / h once */
     double lo = -1.0, hi = 1.0, x = 2.0 / T30_MARGIN - 1.0;
     for (int it = 0; it < LW_T30_ITER_MAX; it++) {
         double f = h * lw_legendre_integral(p.coef[Q_T], p.n, x) - t30_h;
@@ -1611,7 +1609,7 @@ static lw_status t30_smooth(engine *e, const lw_point *p0, lw_point *p30, double
     *d30 = d0 + h * (x + 1.0);
     if ((st = eval(e, *d30, p30)) != LW_OK)
         return st;
-    /* the cubic is believed where it also gives the rate solved there: its
+    /* the quadratic is believed where it also gives the rate solved there: its
      * miss there, over the 30 s, is what the depth found may be out by */
     double miss = fabs(lw_legendre_eval(p.coef[Q_T], p.n, x, NULL) - p30->dtdd_h);
     *done = lit(p30) && miss / p30->dtdd_h * dlnf * (*d30 - d0) <= T30_SHARE * e->opt->rtol;

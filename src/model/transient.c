@@ -20,6 +20,7 @@
 #include <stdlib.h>
 #include <string.h>
 #include "lampwick/alloc.h"
+#include "lampwick/quadrature.h"
 
 #define NX 4 /* depth, board, body, and the kinetic wells' height difference */
 #define NQ 6 /* lm s; J into LEDs, resistors, cells' R, driver; J drawn */
@@ -1416,19 +1417,16 @@ static void rest(run *r, double dt_s)
     /* the standby energy, J */
     double e_j = 0.0;
     if (l->drive.standby_a > 0.0) {
-        static const double gx[4] = {-0.861136311594052575, -0.339981043584856265,
-                                     0.339981043584856265, 0.861136311594052575};
-        static const double gw[4] = {0.347854845137453857, 0.652145154862546143,
-                                     0.652145154862546143, 0.347854845137453857};
+        const lw_quad_rule *g = lw_quad_gauss(4);
         const int parts = 64;
         const double hp = dt_s / parts;
         for (int k = 0; k < parts; k++)
-            for (int i = 0; i < 4; i++) {
+            for (int i = 0; i < g->n; i++) {
                 double y[NX] = {0};
-                rest_at(&w, hp * (k + 0.5 * (1.0 + gx[i])), y);
+                rest_at(&w, hp * (k + 0.5 * (1.0 + g->x[i])), y);
                 lw_cells cells;
                 lw_light_cells(l, curve_depth(&r->e, y), &cells);
-                e_j += 0.5 * hp * gw[i] * l->pack.series * cells.ocv_v * l->drive.standby_a;
+                e_j += 0.5 * hp * g->w[i] * l->pack.series * cells.ocv_v * l->drive.standby_a;
             }
     }
     rest_at(&w, dt_s, r->x);

@@ -368,16 +368,25 @@ static bool write_text(const lw_rtable *t, FILE *fp)
     return true;
 }
 
+/* Character c of a Markdown cell as written, in out (1 or 2 characters,
+ * the count returned): a bar escaped, a line break as a space. */
+static size_t md_char(char c, char out[2])
+{
+    if (c == '|') {
+        out[0] = '\\', out[1] = '|';
+        return 2;
+    }
+    out[0] = c == '\n' ? ' ' : c;
+    return 1;
+}
+
 static void md_cell(FILE *fp, const char *s)
 {
+    char e[2];
     fputc(' ', fp);
     for (; *s; s++) {
-        if (*s == '|')
-            fputs("\\|", fp);
-        else if (*s == '\n')
-            fputc(' ', fp);
-        else
-            fputc(*s, fp);
+        size_t k = md_char(*s, e);
+        fwrite(e, 1, k, fp);
     }
     fputs(" |", fp);
 }
@@ -432,12 +441,17 @@ static void csv_row(const lw_rtable *t, size_t r, lw_csvw *w)
     lw_csvw_end_row(w);
 }
 
-static void write_csv(const lw_rtable *t, FILE *fp, lw_csvw *w)
+static void csv_head(const lw_rtable *t, lw_csvw *w)
 {
-    lw_csvw_init(w, fp);
     for (size_t c = 0; c < t->ncol; c++)
         lw_csvw_text(w, t->head[c] ? t->head[c] : "");
     lw_csvw_end_row(w);
+}
+
+static void write_csv(const lw_rtable *t, FILE *fp, lw_csvw *w)
+{
+    lw_csvw_init(w, fp);
+    csv_head(t, w);
     for (size_t r = 0; r < t->nrow; r++)
         csv_row(t, r, w);
 }
@@ -450,7 +464,7 @@ lw_status lw_rtable_write(const lw_rtable *t, FILE *fp, lw_rtable_format fmt, lw
     else if (fmt == LW_FMT_MD)
         write_md(t, fp);
     else if (!write_text(t, fp))
-        return lw_error_set(err, LW_ENOMEM, NULL, 0, "out of memory");
+        return lw_error_set(err, LW_ENOMEM, NULL, 0, "out of memory for a table");
     if (w.failed || ferror(fp))
         return lw_error_set(err, LW_EIO, NULL, 0, "write error");
     return LW_OK;
@@ -468,12 +482,8 @@ static char *md_row_text(const lw_rtable *t, size_t r, size_t *len)
     *p++ = '|';
     for (size_t c = 0; c < t->ncol; c++) {
         *p++ = ' ';
-        for (const char *s = cell_text(t, r, c); *s; s++) {
-            if (*s == '|')
-                *p++ = '\\', *p++ = '|';
-            else
-                *p++ = *s == '\n' ? ' ' : *s;
-        }
+        for (const char *s = cell_text(t, r, c); *s; s++)
+            p += md_char(*s, p);
         *p++ = ' ', *p++ = '|';
     }
     *p++ = '\n';
@@ -501,7 +511,8 @@ lw_status lw_rtable_render_row(const lw_rtable *t, size_t row, lw_rtable_format 
     }
     if (fmt == LW_FMT_MD) {
         *out = md_row_text(t, row, len);
-        return *out ? LW_OK : lw_error_set(err, LW_ENOMEM, NULL, 0, "out of memory");
+        return *out ? LW_OK
+                    : lw_error_set(err, LW_ENOMEM, NULL, 0, "out of memory for a table row");
     }
     size_t n = 0;
     for (size_t c = 0; c < t->ncol; c++)
@@ -526,9 +537,9 @@ lw_status lw_rtable_write_head(const lw_rtable *t, FILE *fp, lw_rtable_format fm
     if (fmt == LW_FMT_CSV) {
         lw_csvw w;
         lw_csvw_init(&w, fp);
-        for (size_t c = 0; c < t->ncol; c++)
-            lw_csvw_text(&w, t->head[c] ? t->head[c] : "");
-        lw_csvw_end_row(&w);
+        csv_head(t, &w);
+        if (w.failed)
+            return lw_error_set(err, LW_EIO, NULL, 0, "write error");
     } else if (fmt == LW_FMT_MD) {
         md_head(t, fp);
     }

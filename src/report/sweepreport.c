@@ -61,6 +61,33 @@ static lw_status sweep_columns(const char *list, lw_rtable_format fmt, size_t *c
     return LW_OK;
 }
 
+/* The header of a sweep table: the varied keys, then the chosen columns. */
+static lw_status sweep_head(lw_rtable *t, const lw_vary *vary, size_t nk, const size_t *cols,
+                            size_t ncols, lw_error *err)
+{
+    lw_status st = LW_OK;
+    for (size_t k = 0; k < nk && st == LW_OK; k++)
+        st = lw_rtable_head(t, k, vary[k].key, err);
+    for (size_t c = 0; c < ncols && st == LW_OK; c++)
+        st = lw_rtable_head(t, nk + c, lw_report_run_columns[cols[c]], err);
+    return st;
+}
+
+/* Row `row` of t for the sweep's row r: its varied values, then the chosen
+ * columns of row frow of full (every run column of that row's run). */
+static lw_status sweep_fill_row(lw_rtable *t, size_t row, const lw_sweep *sw, size_t r,
+                                const lw_rtable *full, size_t frow, const size_t *cols,
+                                size_t ncols, lw_error *err)
+{
+    const size_t nk = sw->nvary;
+    lw_status st = LW_OK;
+    for (size_t k = 0; k < nk && st == LW_OK; k++)
+        st = lw_rtable_set(t, row, k, sw->vary[k].values[sw->index[r * nk + k]], err);
+    for (size_t c = 0; c < ncols && st == LW_OK; c++)
+        st = lw_rtable_copy_cell(t, row, nk + c, full, frow, cols[c], err);
+    return st;
+}
+
 static lw_status lw_report_sweep_in_c_locale(const lw_sweep *sw, lw_rtable_format fmt,
                                              const char *columns, lw_rtable **out, lw_error *err)
 {
@@ -77,22 +104,17 @@ static lw_status lw_report_sweep_in_c_locale(const lw_sweep *sw, lw_rtable_forma
         lw_rtable_free(t);
         return LW_ENOMEM;
     }
-    for (size_t k = 0; k < nk && st == LW_OK; k++)
-        st = lw_rtable_head(t, k, sw->vary[k].key, err);
-    for (size_t c = 0; c < ncols && st == LW_OK; c++)
-        st = lw_rtable_head(t, nk + c, lw_report_run_columns[cols[c]], err);
+    st = sweep_head(t, sw->vary, nk, cols, ncols, err);
     size_t frow = 0;
     if (st == LW_OK)
         st = lw_rtable_add_row(full, &frow, err);
     for (size_t r = 0; r < sw->n && st == LW_OK; r++) {
         size_t row = 0;
         st = lw_rtable_add_row(t, &row, err);
-        for (size_t k = 0; k < nk && st == LW_OK; k++)
-            st = lw_rtable_set(t, row, k, sw->vary[k].values[sw->index[r * nk + k]], err);
         if (st == LW_OK)
             st = lw_report_run_row(full, frow, 0, &sw->cases[r].light, &sw->cases[r].res, err);
-        for (size_t c = 0; c < ncols && st == LW_OK; c++)
-            st = lw_rtable_copy_cell(t, row, nk + c, full, frow, cols[c], err);
+        if (st == LW_OK)
+            st = sweep_fill_row(t, row, sw, r, full, frow, cols, ncols, err);
     }
     lw_rtable_free(full);
     return lw_report_table_keep(t, st, fmt, out, err);
@@ -142,13 +164,10 @@ struct writer {
 static lw_status format_row(struct writer *wr, const lw_sweep *sw, size_t r, int w,
                             const lw_case *c, lw_error *err)
 {
-    lw_rtable *full = wr->own[w].full, *row = wr->own[w].row;
+    lw_rtable *full = wr->own[w].full;
     lw_status st = lw_report_run_row(full, 0, 0, &c->light, &c->res, err);
-    for (size_t k = 0; k < wr->nk && st == LW_OK; k++)
-        st = lw_rtable_set(row, 0, k, sw->vary[k].values[sw->index[r * wr->nk + k]], err);
-    for (size_t j = 0; j < wr->ncols && st == LW_OK; j++)
-        st = lw_rtable_copy_cell(row, 0, wr->nk + j, full, 0, wr->cols[j], err);
-    return st;
+    return st == LW_OK ? sweep_fill_row(wr->own[w].row, 0, sw, r, full, 0, wr->cols, wr->ncols, err)
+                       : st;
 }
 
 /* Write the rows that are ready from wr->next on (the lock held). */
@@ -248,11 +267,7 @@ static lw_status writer_init(struct writer *wr, int workers, lw_error *err)
     wr->win = lw_calloc(wr->nwin, sizeof *wr->win);
     if (!wr->head || !wr->own || !wr->win)
         return lw_error_set(err, LW_ENOMEM, NULL, 0, "out of memory for the sweep");
-    lw_status st = LW_OK;
-    for (size_t k = 0; k < nk && st == LW_OK; k++)
-        st = lw_rtable_head(wr->head, k, wr->vary[k].key, err);
-    for (size_t c = 0; c < ncols && st == LW_OK; c++)
-        st = lw_rtable_head(wr->head, nk + c, lw_report_run_columns[wr->cols[c]], err);
+    lw_status st = sweep_head(wr->head, wr->vary, nk, wr->cols, ncols, err);
     for (int w = 0; w < workers && st == LW_OK; w++) {
         struct worker_tables *t = &wr->own[w];
         t->full = lw_rtable_new(lw_report_run_ncolumns, err);
@@ -277,10 +292,8 @@ static lw_status sweep_stream_in_c_locale(const lw_profile *base, const lw_vary 
     lw_status st = sweep_columns(columns, fmt, cols, &ncols, err);
     if (st != LW_OK)
         return st;
-    size_t n = 1;
-    for (size_t k = 0; k < nvary; k++)
-        n *= vary[k].n ? vary[k].n : 1;
-    int workers = lw_pool_threads(n, threads);
+    /* an empty or oversized grid is refused by lw_sweep_stream */
+    int workers = lw_batch_workers(lw_sweep_rows(vary, nvary), threads);
     struct writer wr = {.fmt = fmt, .fp = fp, .vary = vary, .nk = nvary, .ncols = ncols,
                         .cols = cols, .st = LW_OK};
     lw_error_clear(&wr.err);

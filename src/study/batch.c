@@ -41,9 +41,12 @@ void lw_batch_run(const lw_profile *base, lw_case *cases, size_t n, int threads,
                   const char *origin, lw_pool_progress_fn progress, void *progress_ctx)
 {
     struct batch b = {base, cases, origin};
-    if (n < LW_BATCH_THREADED_MIN)
-        threads = 1;
-    lw_pool_for(n, threads, run_case, &b, progress, progress_ctx);
+    lw_pool_for(n, lw_batch_workers(n, threads), run_case, &b, progress, progress_ctx);
+}
+
+int lw_batch_workers(size_t n, int threads)
+{
+    return lw_pool_threads(n, n < LW_BATCH_THREADED_MIN ? 1 : threads);
 }
 
 void lw_batch_clear(lw_case *cases, size_t n)

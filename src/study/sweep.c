@@ -19,6 +19,17 @@
 #include "lampwick/eseries.h"
 #include "lampwick/alloc.h"
 
+size_t lw_sweep_rows(const lw_vary *vary, size_t nvary)
+{
+    size_t n = 1;
+    for (size_t k = 0; k < nvary; k++) {
+        if (vary[k].n == 0 || n > LW_SWEEP_ROWS_MAX / vary[k].n)
+            return 0;
+        n *= vary[k].n;
+    }
+    return n;
+}
+
 /* Size the grid and its index; the case variants are made per row. */
 static lw_status sweep_init(const lw_vary *vary, size_t nvary, bool keep_cases, lw_sweep *sw,
                             lw_error *err)
@@ -26,14 +37,10 @@ static lw_status sweep_init(const lw_vary *vary, size_t nvary, bool keep_cases, 
     memset(sw, 0, sizeof *sw);
     sw->vary = vary;
     sw->nvary = nvary;
-    size_t n = 1;
-    for (size_t k = 0; k < nvary; k++) {
-        if (vary[k].n == 0 || n > LW_SWEEP_ROWS_MAX / vary[k].n)
-            return lw_error_set(err, LW_EINPUT, "--vary", 0,
-                                "the grid is empty or has more than %d rows",
-                                LW_SWEEP_ROWS_MAX);
-        n *= vary[k].n;
-    }
+    size_t n = lw_sweep_rows(vary, nvary);
+    if (n == 0)
+        return lw_error_set(err, LW_EINPUT, "--vary", 0,
+                            "the grid is empty or has more than %d rows", LW_SWEEP_ROWS_MAX);
     if (nvary > LW_SWEEP_VARY_MAX)
         return lw_error_set(err, LW_EINPUT, "--vary", 0, "at most %d --vary options",
                             LW_SWEEP_VARY_MAX);
@@ -113,10 +120,7 @@ static void stream_row(size_t r, int worker, void *vctx)
         fail_row(s, r, c.status, &c.err);
     else if (fst != LW_OK)
         fail_row(s, r, fst, &ferr);
-    if (s->sw->cases && c.status == LW_OK)
-        s->sw->cases[r] = c; /* kept: lw_sweep_clear frees it */
-    else
-        lw_batch_clear(&c, 1);
+    lw_batch_clear(&c, 1);
 }
 
 lw_status lw_sweep_stream(const lw_profile *base, const lw_vary *vary, size_t nvary, int threads,
@@ -140,7 +144,7 @@ lw_status lw_sweep_stream(const lw_profile *base, const lw_vary *vary, size_t nv
     atomic_init(&s.stop, sw->n);
     lw_error_clear(&s.err);
     pthread_mutex_init(&s.lock, NULL);
-    lw_pool_for_workers(sw->n, sw->n < LW_BATCH_THREADED_MIN ? 1 : threads, stream_row, &s,
+    lw_pool_for_workers(sw->n, lw_batch_workers(sw->n, threads), stream_row, &s,
                         progress, progress_ctx);
     pthread_mutex_destroy(&s.lock);
     if (s.status != LW_OK) {
