@@ -17,6 +17,8 @@
  *   quadrature.h Gauss and Lobatto rules, Legendre series, their error estimate
  *   eseries.h    IEC 60063 preferred values, resistance parsing
  *   pool.h       parallel-for over POSIX threads
+ *   random.h     xoshiro256** streams, the normal quantile
+ *   stats.h      moments, percentiles and their intervals, Wilson, rank regression
  * 2 model - the physics; no files
  *   cell.h       cells: OCV and R against depth, Peukert's law, temperature
  *   led.h        LED I-V models and light output
@@ -48,6 +50,7 @@
  *   spec.h       the runtime table of a product specification
  *   fit.h        least squares; LED I-V and flux fits
  *   cellfit.h    cell models from discharge logs
+ *   montecarlo.h the spread over the units shipped: samples, percentiles, yield, ranking
  * 5 report - what people and documents read
  *   rtable.h     tables in text, CSV and Markdown
  *   report.h     the run report, hours, warnings, cautions
@@ -74,6 +77,8 @@
 #include "quadrature.h"
 #include "eseries.h"
 #include "pool.h"
+#include "random.h"
+#include "stats.h"
 /* 2 model */
 #include "cell.h"
 #include "led.h"
@@ -107,6 +112,7 @@
 #include "spec.h"
 #include "fit.h"
 #include "cellfit.h"
+#include "montecarlo.h"
 /* 5 report */
 #include "rtable.h"
 #include "report.h"

@@ -52,6 +52,10 @@ typedef struct lw_pack {
     double capacity_spread; /* the weakest of the S cells in series holds this share
                                less charge, 0 <= x < 1 (the others nominal) */
     double resistance_spread; /* and has this share more internal resistance, >= 0 */
+    double capacity_scale;   /* every cell's capacity over the cell file's (a unit's
+                                cells off their rating): 1 or 0 as rated */
+    double resistance_scale; /* every cell's internal resistance over the file's: 1 or 0
+                                as rated */
 } lw_pack;
 
 typedef enum lw_reference { LW_REF_OWN, LW_REF_FRESH, LW_REF_COUNT } lw_reference;

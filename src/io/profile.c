@@ -53,6 +53,11 @@ const lw_keydef lw_profile_keys[] = {
        "(mixed, aged or unmatched cells), %"),
     PK("pack", "resistance_spread_pct", LW_K_NUM, light.pack.resistance_spread, 1e-2, 0, 1000,
        0, "0", "the weakest cell's internal resistance is this % above the others', %"),
+    PK("pack", "capacity_pct", LW_K_NUM, light.pack.capacity_scale, 1e-2, 0, 1000, OPEN, "100",
+       "every cell's capacity as % of the cell file's (a unit's cells off their rating: "
+       "the key to spread for cell-to-cell capacity), %"),
+    PK("pack", "resistance_pct", LW_K_NUM, light.pack.resistance_scale, 1e-2, 0, 10000, OPEN,
+       "100", "every cell's internal resistance as % of the cell file's, %"),
     {"led", "model", LW_K_CHOICE, offsetof(lw_profile, light.led.model), 0, 1, NAN, NAN,
      LW_KF_REQUIRED, lw_led_model_names, "", "I-V model: constant, linear, shockley or table"},
     PK("led", "count", LW_K_INT, light.led.count, 1, 1, 1000, 0, "1", "LEDs in series per string"),
@@ -771,8 +776,8 @@ static lw_status apply_file(lw_profile *p, lw_error *err)
     const char *mname;
     for (size_t i = 0; i < p->ini->n; i++) {
         const lw_ini_entry *e = &p->ini->entries[i];
-        if (is_mode_section(e->section, &mname))
-            continue;
+        if (is_mode_section(e->section, &mname) || !strcmp(e->section, "spread"))
+            continue; /* [spread] is the spread study's (montecarlo.h) */
         const lw_keydef *d = lw_key_find(lw_profile_keys, lw_profile_nkeys, e->section, e->key);
         if (!d)
             return lw_key_unknown(lw_profile_keys, lw_profile_nkeys, e->section, e->key, p->path,

@@ -47,6 +47,11 @@ void lw_light_update_factors(lw_light *light, bool *temperature_outside)
 {
     lw_cell_temperature_factors(&light->pack.cell, light->pack.ambient_c, &light->cap_factor,
                                 &light->res_factor, temperature_outside);
+    /* 0 (a light built in code, zero-initialised): as rated */
+    if (light->pack.capacity_scale > 0.0)
+        light->cap_factor *= light->pack.capacity_scale;
+    if (light->pack.resistance_scale > 0.0)
+        light->res_factor *= light->pack.resistance_scale;
     /* without a thermal network the junctions are at ambient */
     light->led.t_junction_c = light->pack.ambient_c;
     lw_led_prepare(&light->led);

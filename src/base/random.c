@@ -1,0 +1,89 @@
+/*
+ * random.c - xoshiro256**, SplitMix64 seeding and the normal quantile
+ * (sources in random.h).  Unitless.
+ */
+#include "lampwick/random.h"
+
+#include <math.h>
+
+/* SplitMix64 from state x: the output for state x + gamma (Steele, Lea and
+ * Flood 2014, the constants of their reference). */
+static uint64_t splitmix64(uint64_t x)
+{
+    uint64_t z = x + 0x9e3779b97f4a7c15u;
+    z = (z ^ (z >> 30)) * 0xbf58476d1ce4e5b9u;
+    z = (z ^ (z >> 27)) * 0x94d049bb133111ebu;
+    return z ^ (z >> 31);
+}
+
+void lw_rng_seed(lw_rng *r, uint64_t seed, uint64_t index)
+{
+    for (uint64_t k = 0; k < 4; k++)
+        r->s[k] = splitmix64(seed + (4 * index + k) * 0x9e3779b97f4a7c15u);
+    if (!(r->s[0] | r->s[1] | r->s[2] | r->s[3]))
+        r->s[0] = 1; /* the one state xoshiro cannot leave */
+}
+
+static uint64_t rotl(uint64_t x, int k)
+{
+    return (x << k) | (x >> (64 - k));
+}
+
+uint64_t lw_rng_next(lw_rng *r)
+{
+    uint64_t *s = r->s;
+    const uint64_t result = rotl(s[1] * 5, 7) * 9;
+    const uint64_t t = s[1] << 17;
+    s[2] ^= s[0];
+    s[3] ^= s[1];
+    s[1] ^= s[2];
+    s[0] ^= s[3];
+    s[2] ^= t;
+    s[3] = rotl(s[3], 45);
+    return result;
+}
+
+double lw_rng_uniform(lw_rng *r)
+{
+    return ((double)(lw_rng_next(r) >> 11) + 0.5) * 0x1.0p-53;
+}
+
+double lw_normal_cdf(double x)
+{
+    return 0.5 * erfc(-x / sqrt(2.0));
+}
+
+/* Halley steps on the tail nearer p (so the residual keeps its relative
+ * accuracy far out): x < 0 solves Phi(x) = p, by symmetry the upper tail. */
+#define NORMAL_HALLEY_STEPS 4
+#define SQRT_2PI 2.50662827463100050242 /* sqrt(2 pi) */
+double lw_normal_quantile(double p)
+{
+    if (!(p >= 0.0 && p <= 1.0))
+        return NAN;
+    if (p == 0.0)
+        return -INFINITY;
+    if (p == 1.0)
+        return INFINITY;
+    const double q = p < 0.5 ? p : 1.0 - p; /* the smaller tail (1 - p is exact above 0.5) */
+    double sign = p < 0.5 ? -1.0 : 1.0;
+    if (p == 0.5)
+        return 0.0;
+    /* Abramowitz and Stegun 26.2.23: x_q with Q(x_q) = q, for 0 < q <= 0.5 */
+    double t = sqrt(-2.0 * log(q));
+    double x = t - (2.515517 + t * (0.802853 + t * 0.010328)) /
+                       (1.0 + t * (1.432788 + t * (0.189269 + t * 0.001308)));
+    for (int k = 0; k < NORMAL_HALLEY_STEPS; k++) {
+        /* f(x) = Q(x) - q, Q(x) = erfc(x / sqrt 2) / 2; f' = -phi, f'' = x phi */
+        double phi = exp(-0.5 * x * x) / SQRT_2PI;
+        double f = 0.5 * erfc(x / sqrt(2.0)) - q;
+        if (!(phi > 0.0))
+            break;
+        double u = f / phi;              /* -f / f' */
+        double step = u / (1.0 - 0.5 * x * u); /* Halley: u / (1 + u f'' / (2 f')) */
+        x += step;
+        if (fabs(step) <= 2e-16 * fabs(x))
+            break;
+    }
+    return sign * x;
+}
