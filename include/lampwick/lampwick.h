@@ -54,7 +54,8 @@
  * 5 report - what people and documents read
  *   rtable.h     tables in text, CSV and Markdown
  *   report.h     the run report, hours, warnings, cautions
- *   pickreport.h, sizereport.h, specreport.h, sweepreport.h, fitreport.h
+ *   pickreport.h, sizereport.h, specreport.h, sweepreport.h, fitreport.h,
+ *                mcreport.h
  *                the tables of each study
  *   plot.h       standalone SVG charts
  *
@@ -121,6 +122,7 @@
 #include "specreport.h"
 #include "sweepreport.h"
 #include "fitreport.h"
+#include "mcreport.h"
 #include "plot.h"
 
 #endif

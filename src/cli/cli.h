@@ -37,7 +37,8 @@ enum {
     OPT_TARGET_MA, OPT_TARGET_LM, OPT_ESERIES, OPT_RUNTIME, OPT_FLUX, OPT_CELLS, OPT_MAXS,
     OPT_MAXP, OPT_TOP, OPT_STORED, OPT_COLUMNS, OPT_MODEL, OPT_JUNCTION, OPT_SECTION,
     OPT_LOAD_OHM, OPT_LOAD_MA, OPT_CUTOFF, OPT_RES, OPT_NAME, OPT_OUT, OPT_CHEM, OPT_RECH,
-    OPT_TOL, OPT_USE, OPT_TOTAL
+    OPT_TOL, OPT_USE, OPT_TOTAL, OPT_SPREAD, OPT_SAMPLES, OPT_SEED, OPT_TARGET, OPT_HIST,
+    OPT_QUANTITY, OPT_RANKING, OPT_SAMPLES_OUT
 };
 
 typedef struct cli_option {
@@ -138,10 +139,11 @@ int cli_fit_led(int argc, char **argv);
 int cli_fit_cell(int argc, char **argv);
 int cli_check(int argc, char **argv);
 int cli_cells(int argc, char **argv);
+int cli_spread(int argc, char **argv);
 
 /* Their option tables and texts (in the file of each command). */
 extern const cli_option cli_run_options[], cli_sweep_options[], cli_pick_options[],
     cli_size_options[], cli_table_options[], cli_fit_led_options[], cli_fit_cell_options[],
-    cli_check_options[], cli_cells_options[];
+    cli_check_options[], cli_cells_options[], cli_spread_options[];
 
 #endif

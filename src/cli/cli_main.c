@@ -291,6 +291,30 @@ const cli_command cli_commands[] = {
      "table.  A mode that steps down by itself (next = ... in its [mode]) is run\n"
      "through its steps, and a steps column says them in words.\n",
      cli_table_options, NULL, cli_table},
+    {"spread", "PROFILE [--spread KEY=FORM ...] [OPTIONS]",
+     "Sample the units a design ships as: each spread key drawn from its\n"
+     "distribution (a [spread] section of the profile, or --spread), a full\n"
+     "discharge for each unit, and what the units reach: the mean, standard\n"
+     "deviation and the 1st, 5th, 50th, 95th and 99th percentiles of runtime,\n"
+     "output at 30 s, lumen-hours, time to half, LED current, resistor power and\n"
+     "junction temperature, each percentile with its 95 % interval; the share of\n"
+     "units with each warning and the yield against --target conditions, with\n"
+     "Wilson intervals; and the keys ranked by how much of the spread of runtime\n"
+     "and output each drives (standardized rank regression).\n",
+     cli_spread_options,
+     "FORMS\n"
+     "  normal SIGMA | normal SIGMA%   about the profile's value, truncated to the\n"
+     "                                 key's range\n"
+     "  uniform LOW..HIGH              flat between two values\n"
+     "  tolerance PCT                  flat within +-PCT % of the profile's value\n"
+     "                                 (the usual reading of a part tolerance)\n"
+     "  bin A,B,C | bin A:W,B:W        one of the values, equally likely or weighted\n"
+     "Keys: any numeric profile key, e.g. drive.resistor_ohm, led.forward_v,\n"
+     "pack.capacity_pct, pack.resistance_pct, pack.ambient_c.\n"
+     "Example:\n"
+     "  lampwick spread lantern.ini --spread pack.capacity_pct='normal 4' \\\n"
+     "      --target runtime_h>=8 --target flux_30s_lm>=100\n",
+     cli_spread},
     {"fit led", "MEASUREMENTS.csv [OPTIONS]",
      "Least-squares fits of an LED's measured current and voltage (columns\n"
      "current_ma, forward_v; optionally flux_lm or relative_pct):\n"
