@@ -76,7 +76,10 @@ double lw_normal_quantile(double p)
     for (int k = 0; k < NORMAL_HALLEY_STEPS; k++) {
         /* f(x) = Q(x) - q, Q(x) = erfc(x / sqrt 2) / 2; f' = -phi, f'' = x phi */
         double phi = exp(-0.5 * x * x) / SQRT_2PI;
-        double f = 0.5 * erfc(x / sqrt(2.0)) - q;
+        /* near the middle 0.5 - q is exact (q >= 0.25) and erf keeps its
+         * relative accuracy at small x: x keeps it too */
+        double f = q >= 0.25 ? (0.5 - q) - 0.5 * erf(x / sqrt(2.0))
+                             : 0.5 * erfc(x / sqrt(2.0)) - q;
         if (!(phi > 0.0))
             break;
         double u = f / phi;              /* -f / f' */
