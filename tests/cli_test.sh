@@ -137,6 +137,49 @@ expect 1 'Nothing fits' "$LW" size profiles/demo.ini --runtime-h 100000 --cells 
 expect 0 '^\| mode \| LR6-alkaline lm \|' "$LW" table profiles/demo.ini --cells LR6-alkaline,FR6-lithium --format md
 expect 0 'Rounding: ' "$LW" table profiles/demo.ini
 
+# spread: the units shipped, from the profile's [spread] or --spread
+expect 0 '^95 % of units run at least [0-9.]+ h \(95 % interval [0-9.]+ to [0-9.]+ h\)' "$LW" spread profiles/demo.ini --samples 400
+expect 0 '^quantity,nominal,mean,sd,p1,p5,p50,p95,p99.?$' "$LW" spread profiles/demo.ini --samples 300 --format csv
+expect 0 '^runtime_h,6[0-9.]+,' "$LW" spread profiles/demo.ini --samples 300 --format csv
+expect 0 '^\| quantity \| nominal \| mean \|' "$LW" spread profiles/demo.ini --samples 300 --format md
+expect 0 '^all of them +[0-9]+ +[0-9.]+ +[0-9.]+ +[0-9.]+$' "$LW" spread profiles/demo.ini --samples 300 --target 'runtime_h>=8' --target 'flux_30s_lm>=100'
+expect 0 'What drives runtime_h: standardized rank regression' "$LW" spread profiles/headlamp-18650.ini --samples 300
+expect 0 '^pack.capacity_pct +[0-9.]+ ' "$LW" spread profiles/demo.ini --samples 300 --spread pack.capacity_pct='normal 8'
+a1=$("$LW" spread profiles/demo.ini --samples 500 --seed 9 --threads 1 --format csv)
+a2=$("$LW" spread profiles/demo.ini --samples 500 --seed 9 --threads 2 --format csv)
+a3=$("$LW" spread profiles/demo.ini --samples 500 --seed 10 --threads 2 --format csv)
+if [ "$a1" = "$a2" ] && [ "$a1" != "$a3" ]; then ok; else bad "spread: a seed is not the same on 1 and 2 threads, or two seeds agree"; fi
+"$LW" spread profiles/demo.ini --samples 300 --histogram "$TMP/hist.svg" --ranking "$TMP/rank.svg" --samples-out "$TMP/units.csv" --target 'runtime_h>=58' >/dev/null 2>&1
+for f in "$TMP/hist.svg" "$TMP/rank.svg"; do
+    if python3 "$(dirname "$0")/svgcheck.py" "$f" >/dev/null 2>&1; then ok; else bad "svgcheck $f"; fi
+done
+if grep -q 'target runtime_h&gt;=58\|target runtime_h>=58' "$TMP/hist.svg" && grep -q '>p95 ' "$TMP/hist.svg"; then ok; else bad "histogram marks"; fi
+if [ "$(tail -n +2 "$TMP/units.csv" | wc -l)" -eq 300 ] && head -1 "$TMP/units.csv" | grep -q '^sample,drive.resistor_ohm,pack.capacity_pct,pack.resistance_pct,led.saturation_a,runtime_h,'; then ok; else bad "spread --samples-out"; fi
+cat > "$TMP/p/spread.ini" <<'INI'
+[pack]
+cell = LR6-alkaline
+series = 3
+[led]
+model = constant
+forward_v = 3.0
+flux_lm = 20
+flux_current_ma = 20
+[drive]
+resistor_ohm = 68
+[spread]
+drive.resistor_ohm = tolerance 5
+pack.capacity_pct = gaussian 3
+INI
+expect 2 'spread.ini:13: \[spread\] pack.capacity_pct = gaussian 3: unknown distribution' "$LW" spread "$TMP/p/spread.ini"
+expect 2 'spread.ini:13: \[spread\] pack.capacity_pct = gaussian 3' "$LW" check "$TMP/p/spread.ini"
+printf '[pack]\ncell = LR6-alkaline\n[led]\nmodel = constant\nforward_v = 3\n[drive]\nresistor_ohm = 68\n[spread]\ndrive.resistr_ohm = tolerance 5\n' > "$TMP/p/spread2.ini"
+expect 2 "spread2.ini:9: unknown key 'resistr_ohm' in \[drive\]; did you mean 'drive.resistor_ohm'" "$LW" run "$TMP/p/spread2.ini"
+expect 2 "only keys that take any number may be spread" "$LW" spread profiles/demo.ini --spread pack.series='normal 1'
+expect 2 'nothing to spread' "$LW" spread "$TMP/p/light.ini"
+expect 2 '--samples takes a whole number from 2' "$LW" spread profiles/demo.ini --samples 1
+expect 2 "write QUANTITY>=VALUE" "$LW" spread profiles/demo.ini --target 'hours>=8'
+expect 2 'refusing to write over it' "$LW" spread profiles/demo.ini --samples 100 --histogram profiles/demo.ini
+
 # fits from the bundled example measurements give files check accepts and run uses
 EX="$SRC/docs/examples"
 expect 0 'wrote .*fitted-nimh.ini' "$LW" fit cell "$EX/nimh-aa-3r9.csv" "$EX/nimh-aa-8r2.csv" --load-ohm 3.9,8.2 --cutoff-v 1.0 --chemistry nimh --rechargeable yes --out "$TMP/p/fitted-nimh.ini"

@@ -102,8 +102,10 @@ void lw_stats_wilson(size_t k, size_t n, double z, double *lo, double *hi)
     const double dn = (double)n, ph = (double)k / dn, z2 = z * z;
     const double centre = (ph + z2 / (2.0 * dn)) / (1.0 + z2 / dn);
     const double half = z / (1.0 + z2 / dn) * sqrt(ph * (1.0 - ph) / dn + z2 / (4.0 * dn * dn));
-    *lo = fmax(0.0, centre - half);
-    *hi = fmin(1.0, centre + half);
+    /* at k = 0 and k = n the ends are 0 and 1 exactly (the formula's, without
+     * the rounding of centre - half) */
+    *lo = k == 0 ? 0.0 : fmax(0.0, centre - half);
+    *hi = k == n ? 1.0 : fmin(1.0, centre + half);
 }
 
 typedef struct ranked {

@@ -137,9 +137,16 @@ int cli_check(int argc, char **argv)
         lw_error err;
         lw_error_clear(&err);
         lw_status st = load_profile(argv[i], &o, &prof, &err);
-        if (st == LW_OK)
+        lw_mc_key keys[LW_MC_KEYS_MAX];
+        size_t nkeys = 0;
+        if (st == LW_OK) /* [spread] judged as `lampwick spread` would */
+            st = lw_mc_keys_of_profile(&prof, keys, &nkeys, &err);
+        if (st == LW_OK) {
             print_summary(&prof);
-        else {
+            for (size_t k = 0; k < nkeys; k++)
+                printf("%s%s = %s%s", k ? "; " : "  spread  ", keys[k].key, keys[k].form,
+                       k + 1 == nkeys ? "\n" : "");
+        } else {
             int code = report_error(&err);
             if (code > worst)
                 worst = code;

@@ -830,16 +830,21 @@ static lw_status profile_check(const void *ctx, const char *section, const char 
         return lw_error_set(err, LW_EINPUT, file, line,
                             "[cell] opens a cell file, not a light profile: name the cell in a "
                             "profile's [pack] cell");
+    bool spread = !strcmp(section, "spread"); /* the spread study's (montecarlo.h) */
+    if (!key && spread)
+        return LW_OK;
     if (!key)
         return lw_key_unknown(lw_profile_keys, lw_profile_nkeys, section, NULL, file, line, err);
     if (is_mode_section(section, &mname) && lw_profchain_is_key(key))
         return LW_OK; /* checked with the whole chain, lw_profchain_check */
-    if (is_mode_section(section, &mname)) {
+    if (is_mode_section(section, &mname) || spread) {
         if (!split_dotted(key, sec, sizeof sec, k, sizeof k))
             return lw_error_set(err, LW_EINPUT, file, line,
                                 "[%s] '%s': expected section.key (for example "
-                                "drive.resistor_ohm): a mode holds overrides",
-                                section, key);
+                                "drive.resistor_ohm): a %s",
+                                section, key,
+                                spread ? "[spread] names the keys it spreads"
+                                       : "mode holds overrides");
         section = sec;
         key = k;
     }
