@@ -180,6 +180,13 @@ expect 2 '--samples takes a whole number from 2' "$LW" spread profiles/demo.ini 
 expect 2 "write QUANTITY>=VALUE" "$LW" spread profiles/demo.ini --target 'hours>=8'
 expect 2 'refusing to write over it' "$LW" spread profiles/demo.ini --samples 100 --histogram profiles/demo.ini
 
+# corners: an ambient range in run and table
+expect 0 '^cold +-10 ' "$LW" run profiles/demo.ini --set pack.ambient_c=-10..40
+expect 0 '^worst hot +40 ' "$LW" run profiles/demo.ini --set pack.ambient_c=-10..40
+expect 0 '^medium +LR6-alkaline +60\.[0-9]+ +-10 ' "$LW" table profiles/demo.ini --set pack.ambient_c=-10..40
+expect 0 '^\| mode \| cell \| runtime_h \| cold_c \|' "$LW" table profiles/demo.ini --format md
+expect 2 'a range is written LOW..HIGH' "$LW" run profiles/demo.ini --set pack.ambient_c=40..-10
+
 # fits from the bundled example measurements give files check accepts and run uses
 EX="$SRC/docs/examples"
 expect 0 'wrote .*fitted-nimh.ini' "$LW" fit cell "$EX/nimh-aa-3r9.csv" "$EX/nimh-aa-8r2.csv" --load-ohm 3.9,8.2 --cutoff-v 1.0 --chemistry nimh --rechargeable yes --out "$TMP/p/fitted-nimh.ini"

@@ -3,7 +3,8 @@
  * streams, the normal quantile, percentiles and their order-statistic
  * intervals, Wilson's interval and the rank regression, each against GSL
  * or a published formula; and the study on the bundled demo profile
- * against runs of the same light at the matching part values.
+ * against runs of the same light at the matching part values; the corners
+ * of an ambient range against plain runs at its ends.
  */
 #include "testutil.h"
 
@@ -370,6 +371,48 @@ static void distributions(void **state)
     lw_profile_clear(&prof);
 }
 
+/* pack.ambient_c as a range: the runs at 20 C held inside it, the cold
+ * corner's runtime the runtime of the same light run at the range's low end
+ * (set as a plain ambient), the worst hot case at the high end (a hotter
+ * junction lowers the forward voltage: more current than at 20 C).  The
+ * hot case is lw_run_worst_case at that ambient by definition (corner.h). */
+static void ambient_range_corners(void **state)
+{
+    (void)state;
+    lw_profile prof, plain;
+    load_demo(&prof);
+    lw_error err;
+    lw_error_clear(&err);
+    assert_int_equal(lw_profile_set(&prof, "pack.ambient_c", "-10..40", LW_FROM_OPTION, "--set", 0,
+                                    &err), LW_OK);
+    assert_int_equal(lw_profile_resolve(&prof, &err), LW_OK);
+    assert_true(prof.light.pack.ambient_range);
+    assert_close(prof.light.pack.ambient_c, 20.0, 0);
+    lw_result run;
+    assert_int_equal(lw_run(&prof.light, NULL, &run, &err), LW_OK);
+    lw_corner c[LW_CORNER_COUNT];
+    assert_int_equal(lw_corner_compute(&prof.light, &run, c, &err), LW_OK);
+    assert_close(c[LW_CORNER_COLD].ambient_c, -10.0, 0);
+    assert_close(c[LW_CORNER_HOT].ambient_c, 40.0, 0);
+    assert_close(c[LW_CORNER_NOMINAL].runtime_h, run.runtime_h, 0);
+    load_demo(&plain);
+    assert_close(c[LW_CORNER_COLD].runtime_h, runtime_at(&plain, "pack.ambient_c", -10.0), 1e-14);
+    assert_true(c[LW_CORNER_COLD].runtime_h < run.runtime_h); /* alkaline cells in the cold */
+    lw_point at20;
+    assert_int_equal(lw_run_worst_case(&prof.light, &at20, &err), LW_OK);
+    assert_true(c[LW_CORNER_HOT].pt.led_a > at20.led_a);
+    assert_true(isnan(c[LW_CORNER_HOT].runtime_h));
+    /* a range the wrong way round, and an end outside the key's range */
+    assert_int_equal(lw_profile_set(&prof, "pack.ambient_c", "40..-10", LW_FROM_OPTION, "--set", 0,
+                                    &err), LW_EINPUT);
+    assert_non_null(strstr(err.msg, "LOW..HIGH"));
+    assert_int_equal(lw_profile_set(&prof, "pack.ambient_c", "-10..400", LW_FROM_OPTION, "--set",
+                                    0, &err), LW_EINPUT);
+    lw_run_result_clear(&run);
+    lw_profile_clear(&prof);
+    lw_profile_clear(&plain);
+}
+
 int main(void)
 {
     const struct CMUnitTest tests[] = {
@@ -381,6 +424,7 @@ int main(void)
         cmocka_unit_test(rank_regression),
         cmocka_unit_test(resistor_tolerance_percentiles),
         cmocka_unit_test(distributions),
+        cmocka_unit_test(ambient_range_corners),
     };
     return cmocka_run_group_tests(tests, NULL, NULL);
 }

@@ -47,7 +47,9 @@ typedef struct lw_pack {
     lw_cell cell;        /* the cell type (tables shared by reference) */
     int series;          /* S >= 1 */
     int parallel;        /* P >= 1 */
-    double ambient_c;    /* deg C */
+    double ambient_c;    /* deg C; with a range, 20 C held inside it */
+    bool ambient_range;  /* pack.ambient_c was given as LOW..HIGH: the corners' */
+    double ambient_lo_c, ambient_hi_c; /* the range (deg C), when ambient_range */
     double stored_months; /* months on the shelf before switch-on, >= 0 */
     double capacity_spread; /* the weakest of the S cells in series holds this share
                                less charge, 0 <= x < 1 (the others nominal) */

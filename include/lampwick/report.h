@@ -16,6 +16,7 @@
 #endif
 
 #include <stdio.h>
+#include "corner.h"
 #include "profile.h"
 #include "rtable.h"
 #include "trace.h"
@@ -32,6 +33,12 @@ LW_MUST_CHECK lw_status lw_report_run_row(lw_rtable *t, size_t row, size_t first
 /* The whole report of one run in the chosen format. */
 LW_MUST_CHECK lw_status lw_report_run(FILE *fp, lw_rtable_format fmt, const lw_profile *prof,
                                       const lw_result *res, lw_error *err);
+
+/* The corner table of a light (corner.h): per corner its ambient, LED
+ * current, output, resistor power, and for the nominal and cold corners the
+ * runtime and the output 30 s after switch-on.  `title` may be NULL. */
+LW_MUST_CHECK lw_status lw_report_corners(const lw_corner c[LW_CORNER_COUNT], const char *title,
+                                          lw_rtable_format fmt, lw_rtable **out, lw_error *err);
 
 /* The trace of a run as CSV (columns in docs/formats.md), full precision. */
 LW_MUST_CHECK lw_status lw_report_trace_csv(FILE *fp, const lw_trace *trace, lw_error *err);

@@ -26,6 +26,7 @@
 #endif
 
 #include "batch.h"
+#include "corner.h"
 #include "trace.h"
 
 typedef struct lw_spec {
@@ -33,6 +34,8 @@ typedef struct lw_spec {
     size_t nrows, ncells;    /* modes (1 for a profile without modes), cells */
     bool has_modes;
     lw_case *cases;          /* nrows * ncells, row-major: the run of mode r, cell c */
+    lw_corner *corners;      /* nrows * ncells * LW_CORNER_COUNT: each run's corners
+                                (a light that gives no light: none, all NAN) */
     bool regulated;          /* some run regulates: the "at full" column */
     bool optics;             /* the profile has an [optics] section */
 } lw_spec;

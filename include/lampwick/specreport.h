@@ -20,6 +20,12 @@
 LW_MUST_CHECK lw_status lw_report_spec(const lw_spec *spec, lw_rtable_format fmt, lw_rtable **out,
                          lw_error *err);
 
+/* The corners of every run of the table: per mode and cell the nominal
+ * runtime beside the cold corner's ambient, runtime and 30-s output, and
+ * the worst hot LED current and resistor power (corner.h). */
+LW_MUST_CHECK lw_status lw_report_spec_corners(const lw_spec *spec, lw_rtable_format fmt,
+                                               lw_rtable **out, lw_error *err);
+
 /* Compute and render in one call. */
 LW_MUST_CHECK lw_status lw_report_spec_table(const lw_profile *prof, const char *const *cells,
                                lw_rtable_format fmt, int threads, lw_rtable **out,

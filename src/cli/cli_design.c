@@ -424,6 +424,15 @@ int cli_table(int argc, char **argv)
         st = lw_outfile_write(a.plot_path, modes_chart_fn, &spec, &err);
     if (st == LW_OK)
         st = lw_rtable_write(t, stdout, a.o.fmt, &err);
+    if (st == LW_OK && a.o.fmt != LW_FMT_CSV) { /* CSV stays one table */
+        lw_rtable *ct = NULL;
+        st = lw_report_spec_corners(&spec, a.o.fmt, &ct, &err);
+        if (st == LW_OK) {
+            fputc('\n', stdout);
+            st = lw_rtable_write(ct, stdout, a.o.fmt, &err);
+        }
+        lw_rtable_free(ct);
+    }
     int code = st == LW_OK ? 0 : report_error(&err);
     lw_spec_clear(&spec);
     lw_rtable_free(t);

@@ -131,6 +131,20 @@ int cli_run(int argc, char **argv)
         st = write_plot(a.plot_path, &prof, &res, &tr, &err);
     if (st == LW_OK)
         st = lw_report_run(stdout, a.o.fmt, &prof, &res, &err);
+    /* the corners under a report for people (CSV stays one row) */
+    if (st == LW_OK && a.o.fmt != LW_FMT_CSV && !lw_run_end_is_dark(res.end_reason)) {
+        lw_corner corners[LW_CORNER_COUNT];
+        lw_rtable *t = NULL;
+        st = lw_corner_compute(&prof.light, &res, corners, &err);
+        if (st == LW_OK)
+            st = lw_report_corners(corners, "Corners (fresh cells unless said)", a.o.fmt, &t,
+                                   &err);
+        if (st == LW_OK) {
+            fputc('\n', stdout);
+            st = lw_rtable_write(t, stdout, a.o.fmt, &err);
+        }
+        lw_rtable_free(t);
+    }
     int code = st == LW_OK ? 0 : report_error(&err);
     if (st == LW_OK && lw_run_end_is_dark(res.end_reason)) {
         fprintf(stderr, "lampwick: %s: no light: %s\n", prof.path, dark_text(res.end_reason));

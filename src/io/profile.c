@@ -40,7 +40,8 @@ const lw_keydef lw_profile_keys[] = {
     PK("pack", "parallel", LW_K_INT, light.pack.parallel, 1, 1, 1000, 0, "1",
        "cells in parallel"),
     PK("pack", "ambient_c", LW_K_NUM, light.pack.ambient_c, 1, -60, 100, 0, "20",
-       "ambient temperature, deg C"),
+       "ambient temperature, deg C; or a range LOW..HIGH: the corners' coldest and hottest "
+       "ambient, the runs at 20 C held inside it"),
     PK("pack", "stored_months", LW_K_NUM, light.pack.stored_months, 1, 0, 600, 0, "0",
        "months on the shelf before switch-on (self-discharge and standby drain)"),
     {"pack", "rate_model", LW_K_CHOICE, offsetof(lw_profile, rate_model), 0, 1, NAN, NAN, 0,
@@ -249,13 +250,50 @@ static void note_origin(lw_profile *prof, const lw_keydef *d, lw_origin origin, 
         lw_text_copy(prof->key_option[key_index(d)], file ? file : "", 48);
 }
 
+/* Apply a value as text.  pack.ambient_c also takes a range LOW..HIGH, for
+ * the corners (corner.h): each end checked as the key's value, the runs at
+ * 20 C held inside the range (common practice for a rating condition, no
+ * source). */
+static lw_status apply_text(lw_profile *p, const lw_keydef *d, const char *value,
+                            const char *file, int line, lw_error *err)
+{
+    const bool ambient = d->offset == offsetof(lw_profile, light.pack.ambient_c);
+    const char *dots = ambient ? strstr(value, "..") : NULL;
+    if (!dots) {
+        if (ambient)
+            p->light.pack.ambient_range = false;
+        return lw_key_apply(d, p, value, file, line, err);
+    }
+    char lo[LW_INI_LINE_MAX];
+    size_t n = (size_t)(dots - value);
+    if (n >= sizeof lo)
+        n = sizeof lo - 1;
+    memcpy(lo, value, n);
+    lo[n] = '\0';
+    lw_status st = lw_key_apply(d, p, lo, file, line, err);
+    double a = p->light.pack.ambient_c;
+    if (st == LW_OK)
+        st = lw_key_apply(d, p, dots + 2, file, line, err);
+    double b = p->light.pack.ambient_c;
+    if (st == LW_OK && !(a <= b))
+        st = lw_error_set(err, LW_EINPUT, file, line,
+                          "[pack] ambient_c = %s: a range is written LOW..HIGH", value);
+    if (st != LW_OK)
+        return st;
+    p->light.pack.ambient_range = true;
+    p->light.pack.ambient_lo_c = a;
+    p->light.pack.ambient_hi_c = b;
+    p->light.pack.ambient_c = fmin(fmax(LW_FRESH_REFERENCE_C, a), b);
+    return LW_OK;
+}
+
 lw_status lw_profile_set(lw_profile *prof, const char *dotted_key, const char *value,
                          lw_origin origin, const char *file, int line, lw_error *err)
 {
     const lw_keydef *d = NULL;
     lw_status st = find_key(dotted_key, file, line, &d, err);
     if (st == LW_OK)
-        st = lw_key_apply(d, prof, value, file, line, err);
+        st = apply_text(prof, d, value, file, line, err);
     if (st == LW_OK)
         note_origin(prof, d, origin, file, line);
     return st;
@@ -782,7 +820,7 @@ static lw_status apply_file(lw_profile *p, lw_error *err)
         if (!d)
             return lw_key_unknown(lw_profile_keys, lw_profile_nkeys, e->section, e->key, p->path,
                                   e->line, err);
-        lw_status st = lw_key_apply(d, p, e->value, p->path, e->line, err);
+        lw_status st = apply_text(p, d, e->value, p->path, e->line, err);
         if (st != LW_OK)
             return st;
         p->key_origin[key_index(d)] = LW_FROM_FILE;

@@ -653,3 +653,60 @@ lw_status lw_report_trace_csv(FILE *fp, const lw_trace *tr, lw_error *err)
     lw_number_locale_end(saved);
     return result;
 }
+
+/* ---- corners ---- */
+
+static lw_status corners_in_c_locale(const lw_corner c[LW_CORNER_COUNT], const char *title,
+                                     lw_rtable_format fmt, lw_rtable **out, lw_error *err)
+{
+    static const char *const head[] = {"corner",     "ambient_c", "led_ma",     "flux_lm",
+                                       "resistor_w", "runtime_h", "flux_30s_lm"};
+    static const char *const text_head[] = {"corner",     "ambient C", "LED mA",  "lm",
+                                            "resistor W", "runtime h", "lm at 30 s"};
+    enum { NC = sizeof head / sizeof head[0] };
+    *out = NULL;
+    lw_rtable *t = lw_rtable_new(NC, err);
+    if (!t)
+        return LW_ENOMEM;
+    lw_status st = title ? lw_rtable_set_title(t, title, err) : LW_OK;
+    for (size_t k = 0; k < NC && st == LW_OK; k++)
+        st = lw_rtable_head(t, k, fmt == LW_FMT_TEXT ? text_head[k] : head[k], err);
+    for (int k = 0; k < LW_CORNER_COUNT && st == LW_OK; k++) {
+        size_t r;
+        st = lw_rtable_add_row(t, &r, err);
+        if (st == LW_OK)
+            st = lw_rtable_set(t, r, 0, lw_corner_names[k], err);
+        const double v[] = {c[k].ambient_c, 1e3 * c[k].pt.led_a, c[k].pt.flux_lm,
+                            c[k].pt.p_res_peak_w, c[k].runtime_h, c[k].flux_30s_lm};
+        for (size_t q = 0; q < NC - 1 && st == LW_OK; q++)
+            st = isnan(v[q]) ? lw_rtable_set(t, r, 1 + q, "", err)
+                             : lw_rtable_num(t, r, 1 + q, v[q], 4, err);
+    }
+    if (st == LW_OK && fmt != LW_FMT_CSV) {
+        char note[240];
+        snprintf(note, sizeof note,
+                 "worst hot: fresh cells, resistor at minus its tolerance, LED forward voltage "
+                 "at minus its spread%s; cold: nominal parts%s",
+                 c[LW_CORNER_HOT].from_range ? ", the range's hottest ambient" : "",
+                 c[LW_CORNER_COLD].from_range   ? ", the range's coldest ambient"
+                 : c[LW_CORNER_COLD].from_table ? ", the cell table's lowest temperature"
+                                                : " (no cell temperature table: the profile's "
+                                                  "ambient)");
+        st = lw_rtable_note(t, note, err);
+    }
+    if (st != LW_OK) {
+        lw_rtable_free(t);
+        return st;
+    }
+    *out = t;
+    return LW_OK;
+}
+
+lw_status lw_report_corners(const lw_corner c[LW_CORNER_COUNT], const char *title,
+                            lw_rtable_format fmt, lw_rtable **out, lw_error *err)
+{
+    locale_t saved = lw_number_locale_begin();
+    lw_status st = corners_in_c_locale(c, title, fmt, out, err);
+    lw_number_locale_end(saved);
+    return st;
+}

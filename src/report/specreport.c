@@ -504,3 +504,65 @@ lw_status lw_report_spec_table(const lw_profile *prof, const char *const *cells,
     lw_number_locale_end(saved);
     return result;
 }
+
+static lw_status spec_corners_in_c_locale(const lw_spec *s, lw_rtable_format fmt,
+                                          lw_rtable **out, lw_error *err)
+{
+    static const char *const head[] = {"mode",          "cell",           "runtime_h",
+                                       "cold_c",        "cold_runtime_h", "cold_flux_30s_lm",
+                                       "worst_led_ma",  "worst_resistor_w"};
+    static const char *const text_head[] = {"mode",       "cell",     "runtime h",
+                                            "cold C",     "cold h",   "cold lm at 30 s",
+                                            "hot LED mA", "hot resistor W"};
+    enum { NC = sizeof head / sizeof head[0] };
+    *out = NULL;
+    lw_rtable *t = lw_rtable_new(NC, err);
+    if (!t)
+        return LW_ENOMEM;
+    lw_status st = fmt == LW_FMT_CSV ? LW_OK
+                                     : lw_rtable_set_title(t, "Corners: the runtime cold beside "
+                                                              "the nominal, the ratings case hot",
+                                                           err);
+    for (size_t k = 0; k < NC && st == LW_OK; k++)
+        st = lw_rtable_head(t, k, fmt == LW_FMT_TEXT ? text_head[k] : head[k], err);
+    for (size_t r = 0; r < s->nrows; r++)
+        for (size_t c = 0; c < s->ncells && st == LW_OK; c++) {
+            const lw_case *k = &s->cases[r * s->ncells + c];
+            const lw_corner *cn = s->corners + (r * s->ncells + c) * LW_CORNER_COUNT;
+            size_t row;
+            st = lw_rtable_add_row(t, &row, err);
+            if (st == LW_OK)
+                st = lw_rtable_set(t, row, 0, k->variant.mode ? k->variant.mode : "", err);
+            if (st == LW_OK)
+                st = lw_rtable_set(t, row, 1, k->light.pack.cell.name, err);
+            const double v[] = {cn[LW_CORNER_NOMINAL].runtime_h, cn[LW_CORNER_COLD].ambient_c,
+                                cn[LW_CORNER_COLD].runtime_h,    cn[LW_CORNER_COLD].flux_30s_lm,
+                                1e3 * cn[LW_CORNER_HOT].pt.led_a,
+                                cn[LW_CORNER_HOT].pt.p_res_peak_w};
+            for (size_t q = 0; q < NC - 2 && st == LW_OK; q++)
+                st = isfinite(v[q]) ? lw_rtable_num(t, row, 2 + q, v[q], 4, err)
+                                    : lw_rtable_set(t, row, 2 + q, "", err);
+        }
+    if (st == LW_OK && fmt != LW_FMT_CSV)
+        st = lw_rtable_note(t,
+                            "cold: nominal parts at pack.ambient_c's lowest (a range LOW..HIGH) "
+                            "or the cell table's lowest temperature; hot: fresh cells, resistor "
+                            "at minus its tolerance, LED forward voltage at minus its spread, "
+                            "the range's hottest ambient",
+                            err);
+    if (st != LW_OK) {
+        lw_rtable_free(t);
+        return st;
+    }
+    *out = t;
+    return LW_OK;
+}
+
+lw_status lw_report_spec_corners(const lw_spec *s, lw_rtable_format fmt, lw_rtable **out,
+                                 lw_error *err)
+{
+    locale_t saved = lw_number_locale_begin();
+    lw_status st = spec_corners_in_c_locale(s, fmt, out, err);
+    lw_number_locale_end(saved);
+    return st;
+}

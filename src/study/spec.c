@@ -55,6 +55,25 @@ lw_status lw_spec_compute(const lw_profile *prof, const char *const *cells, int 
         }
         spec->regulated = spec->regulated || isfinite(spec->cases[i].res.regulated_h);
     }
+    spec->corners = lw_calloc(n * LW_CORNER_COUNT, sizeof *spec->corners);
+    if (!spec->corners) {
+        lw_spec_clear(spec);
+        return lw_error_set(err, LW_ENOMEM, NULL, 0, "out of memory");
+    }
+    for (size_t i = 0; i < n; i++) {
+        lw_corner *c = spec->corners + i * LW_CORNER_COUNT;
+        const lw_case *k = &spec->cases[i];
+        for (int j = 0; j < LW_CORNER_COUNT; j++)
+            c[j] = (lw_corner){.kind = (lw_corner_kind)j, .ambient_c = NAN, .runtime_h = NAN,
+                               .flux_30s_lm = NAN};
+        if (lw_run_end_is_dark(k->res.end_reason))
+            continue;
+        lw_status st = lw_corner_compute(&k->light, &k->res, c, err);
+        if (st != LW_OK) {
+            lw_spec_clear(spec);
+            return st;
+        }
+    }
     return LW_OK;
 }
 
@@ -64,7 +83,9 @@ void lw_spec_clear(lw_spec *spec)
         return;
     lw_batch_clear(spec->cases, spec->nrows * spec->ncells);
     free(spec->cases);
+    free(spec->corners);
     spec->cases = NULL;
+    spec->corners = NULL;
     spec->nrows = spec->ncells = 0;
 }
 
