@@ -3,7 +3,8 @@
  * for every bundled profile (and each of its modes; runs in time also at a
  * relative tolerance of 1e-6, the figure a thermal design study needs), the
  * cost of a dense cell curve, a measured-table LED on the depth path, and a
- * 100,000-row sweep's memory and speed on one and two threads; then the
+ * 100,000-row sweep's memory and speed on one and two threads, the spread
+ * study of 10^5 and 10^6 units (demo.ini's [spread]); then the
  * targets of docs/benchmark.md against what was measured.  Run with
  * `meson test -C build-rel --benchmark -v discharges`.  Prints; asserts
  * nothing (tests do that).  Timings are medians of BENCH_ROUNDS rounds, one
@@ -82,6 +83,8 @@ typedef struct summary {
     int dense_solves[3];              /* bundled, straight, curved */
     double sweep_s[2], sweep_ratio;
     long sweep_kb[2];
+    double spread_s[3];               /* 10^5 units on 1 and 2 threads, 10^6 on 2 */
+    long spread_kb[3];
 } summary;
 
 static bool in_depth(const lw_light *l)
@@ -303,6 +306,59 @@ static int bench_sweep(const lw_profile *p, summary *s)
     return 0;
 }
 
+/* The spread study of demo.ini's [spread] in a child process, its report
+ * to /dev/null: wall seconds and peak resident kilobytes. */
+static bool spread_child(const lw_profile *p, size_t n, int threads, double *wall_s, long *kb)
+{
+    double t0 = bench_now_s();
+    pid_t pid = fork();
+    if (pid < 0)
+        return false;
+    if (pid == 0) {
+        FILE *out = fopen("/dev/null", "w");
+        lw_mc_key keys[LW_MC_KEYS_MAX];
+        size_t nk = 0;
+        lw_error e;
+        lw_error_clear(&e);
+        lw_mc_options o = {.samples = n, .seed = 1, .threads = threads};
+        lw_mc_result r;
+        int rc = 1;
+        if (out && lw_mc_keys_of_profile(p, keys, &nk, &e) == LW_OK &&
+            lw_mc_run(p, keys, nk, &o, NULL, NULL, &r, &e) == LW_OK) {
+            lw_mc_study st = {p, keys, nk, &o, &r, NULL, 0};
+            rc = lw_report_mc(out, &st, LW_FMT_TEXT, &e) == LW_OK ? 0 : 1;
+            lw_mc_result_clear(&r);
+        }
+        if (rc)
+            fprintf(stderr, "spread: %s\n", e.msg);
+        _exit(rc);
+    }
+    int status;
+    struct rusage ru;
+    if (wait4(pid, &status, 0, &ru) != pid || !WIFEXITED(status) || WEXITSTATUS(status) != 0)
+        return false;
+    *wall_s = bench_now_s() - t0;
+    *kb = ru.ru_maxrss;
+    return true;
+}
+
+static int bench_spread(const lw_profile *p, summary *s)
+{
+    const size_t n[3] = {100000, 100000, 1000000};
+    const int threads[3] = {1, 2, 2};
+    for (int k = 0; k < 3; k++) {
+        if (!spread_child(p, n[k], threads[k], &s->spread_s[k], &s->spread_kb[k]))
+            return 1;
+        printf("spread of demo.ini, %7zu units, %d thread%s  %8.2f s wall  %8ld KB peak "
+               "resident\n",
+               n[k], threads[k], threads[k] > 1 ? "s" : " ", s->spread_s[k], s->spread_kb[k]);
+        fflush(stdout);
+    }
+    printf("    two threads %.2fx as fast as one (10^5 units, one pair)\n",
+           s->spread_s[0] / s->spread_s[1]);
+    return 0;
+}
+
 static const char *holds(bool ok)
 {
     return ok ? "holds" : "DOES NOT HOLD";
@@ -326,6 +382,13 @@ static void targets(const summary *s)
            s->sweep_kb[1] / 1024.0, holds(s->sweep_kb[0] < 50 * 1024 && s->sweep_kb[1] < 50 * 1024));
     printf("  100,000-row sweep, two threads >= 1.8x one:           %5.2fx  %s\n",
            s->sweep_ratio, holds(s->sweep_ratio >= 1.8));
+    printf("  spread, 10^5 units on two cores < 3 s:                %5.2f s  %s\n",
+           s->spread_s[1], holds(s->spread_s[1] < 3.0));
+    printf("  spread, 10^6 units on two cores < 30 s:               %5.2f s  %s\n",
+           s->spread_s[2], holds(s->spread_s[2] < 30.0));
+    printf("  spread memory independent of the units (10^6 / 10^5): %5.2fx  %s\n",
+           (double)s->spread_kb[2] / (double)s->spread_kb[1],
+           holds(s->spread_kb[2] < 1.25 * s->spread_kb[1]));
     for (int k = 0; k < 2; k++)
         printf("  thermal profile at rtol %s: <= 3,000 solves, < 2 ms:  %5d, %.2f ms  %s\n",
                k ? "1e-10" : "1e-6 ", s->thermal_solves[k], s->thermal_us[k] / 1000.0,
@@ -367,6 +430,11 @@ int main(void)
             printf("\nA sweep that streams\n");
             fflush(stdout);
             rc = bench_sweep(&demo, &s);
+        }
+        if (rc == 0) {
+            printf("\nThe spread over the units shipped\n");
+            fflush(stdout);
+            rc = bench_spread(&demo, &s);
         }
         lw_profile_clear(&demo);
     }

@@ -389,6 +389,30 @@ args 2 "more than 64 columns" sweep p.ini --vary drive.resistor_ohm=22 --columns
 args 2 "--threads takes a whole number from 1 to 64" sweep p.ini --vary drive.resistor_ohm=22 --threads 0
 args 2 "--threads takes a whole number" sweep p.ini --vary drive.resistor_ohm=22 --threads many
 args 2 "too many --vary options" sweep p.ini --vary a.b=1 --vary a.b=1 --vary a.b=1 --vary a.b=1 --vary a.b=1 --vary a.b=1 --vary a.b=1 --vary a.b=1 --vary a.b=1
+# spread: [spread] forms with their file:line, and the options
+SP='$a [spread]'
+case_ 2 "p.ini:37: \\[spread\\] drive.resistor_ohm = gaussian 5: unknown distribution" p.ini 37 "$SP\ndrive.resistor_ohm = gaussian 5" spread p.ini
+case_ 2 "p.ini:37: \\[spread\\] drive.resistor_ohm = normal: give one number" p.ini 37 "$SP\ndrive.resistor_ohm = normal" spread p.ini
+case_ 2 "p.ini:37: \\[spread\\] drive.resistor_ohm = normal -3: give one number" p.ini 37 "$SP\ndrive.resistor_ohm = normal -3" spread p.ini
+case_ 2 "p.ini:37: \\[spread\\] drive.resistor_ohm = uniform 40..30: give LOW..HIGH" p.ini 37 "$SP\ndrive.resistor_ohm = uniform 40..30" spread p.ini
+case_ 2 "p.ini:37: \\[spread\\] drive.resistor_ohm = tolerance 100: a tolerance is under 100" p.ini 37 "$SP\ndrive.resistor_ohm = tolerance 100" spread p.ini
+case_ 2 "p.ini:37: \\[spread\\] drive.resistor_ohm = bin 22,-1: a bin is outside the key's range" p.ini 37 "$SP\ndrive.resistor_ohm = bin 22,-1" spread p.ini
+case_ 2 "p.ini:37: \\[spread\\] drive.resistor_ohm = bin 22:0,33: bins are numbers" p.ini 37 "$SP\ndrive.resistor_ohm = bin 22:0,33" spread p.ini
+case_ 2 "p.ini:37: \\[spread\\] pack.ambient_c = uniform 200..300: no value of it lies in the key's range" p.ini 37 "$SP\npack.ambient_c = uniform 200..300" spread p.ini
+case_ 2 "p.ini:37: .*only keys that take any number may be spread" p.ini 37 "$SP\npack.series = normal 1" spread p.ini
+case_ 2 "p.ini:37: unknown key 'resistr_ohm' in \\[drive\\]; did you mean 'drive.resistor_ohm'" p.ini 37 "$SP\ndrive.resistr_ohm = normal 1" run p.ini
+case_ 2 "p.ini:37: \\[spread\\] 'resistor': expected section.key" p.ini 37 "$SP\nresistor = normal 1" check p.ini
+case_ 2 "p.ini:38: \\[spread\\] drive.resistor_ohm is given twice" p.ini 38 "$SP\ndrive.resistor_ohm = normal 1\ndrive.resistor_ohm = normal 2" spread p.ini
+args 2 "nothing to spread" spread p.ini
+args 2 "--samples takes a whole number from 2" spread p.ini --spread drive.resistor_ohm=tolerance --samples 0
+args 2 "--samples takes a whole number from 2" spread p.ini --samples 1e5
+args 2 "--seed takes a whole number" spread p.ini --seed -1
+args 2 "--target: 'runtime_h=8': write QUANTITY>=VALUE" spread p.ini --target runtime_h=8
+args 2 "--quantity: 'hours' is not one of" spread p.ini --quantity hours
+args 2 "--spread: 'drive.resistor_ohm': write --spread SECTION.KEY=FORM" spread p.ini --spread drive.resistor_ohm
+args 2 "--spread: \\[spread\\] drive.resistor_ohm = tolerance: give one number" spread p.ini --spread drive.resistor_ohm=tolerance
+args 2 "a range is written LOW..HIGH" run p.ini --set pack.ambient_c=30..10
+case_ 2 "p.ini:7: .*ambient_c = -80: expected a number >= -60" p.ini 7 '7s/=.*/= -80..40/' run p.ini
 args 2 "give exactly one of --target-ma and --target-lm" pick p.ini
 args 2 "give exactly one of --target-ma and --target-lm" pick p.ini --target-ma 20 --target-lm 5
 args 2 "the target must be a positive number" pick p.ini --target-ma -5
