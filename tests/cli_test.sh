@@ -145,6 +145,8 @@ expect 0 '^\| quantity \| nominal \| mean \|' "$LW" spread profiles/demo.ini --s
 expect 0 '^all of them +[0-9]+ +[0-9.]+ +[0-9.]+ +[0-9.]+$' "$LW" spread profiles/demo.ini --samples 300 --target 'runtime_h>=8' --target 'flux_30s_lm>=100'
 expect 0 'What drives runtime_h: standardized rank regression' "$LW" spread profiles/headlamp-18650.ini --samples 300
 expect 0 '^pack.capacity_pct +[0-9.]+ ' "$LW" spread profiles/demo.ini --samples 300 --spread pack.capacity_pct='normal 8'
+expect 0 '^95 % of units run at least [0-9.]+ h \(Sobol points: no interval\)' "$LW" spread profiles/demo.ini --samples 256 --sampling sobol
+expect 2 '--sampling takes random or sobol' "$LW" spread profiles/demo.ini --sampling halton
 a1=$("$LW" spread profiles/demo.ini --samples 500 --seed 9 --threads 1 --format csv)
 a2=$("$LW" spread profiles/demo.ini --samples 500 --seed 9 --threads 2 --format csv)
 a3=$("$LW" spread profiles/demo.ini --samples 500 --seed 10 --threads 2 --format csv)

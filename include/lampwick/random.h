@@ -47,4 +47,25 @@ double lw_normal_quantile(double p);
 /* The standard normal distribution function Phi(x), through erfc. */
 double lw_normal_cdf(double x);
 
+/* ---- Sobol points ----
+ * The Sobol sequence in up to LW_SOBOL_DIMS dimensions (I. M. Sobol',
+ * USSR Comput. Math. Math. Phys. 7(4), 1967), with the primitive
+ * polynomials and initial direction numbers of S. Joe and F. Y. Kuo,
+ * "Constructing Sobol sequences with better two-dimensional projections",
+ * SIAM J. Sci. Comput. 30(5), 2008 (their table new-joe-kuo-6.21201,
+ * dimensions 2 to 16; dimension 1 is van der Corput's), point i taken in
+ * Gray-code order (A. Antonov and V. Saleev, 1979) from i alone, so any
+ * thread may compute any point.  32-bit direction numbers: 2^32 points. */
+#define LW_SOBOL_DIMS 16
+#define LW_SOBOL_BITS 32
+
+typedef struct lw_sobol {
+    uint32_t v[LW_SOBOL_DIMS][LW_SOBOL_BITS]; /* direction numbers, bit k = 2^-(k+1) */
+} lw_sobol;
+
+void lw_sobol_init(lw_sobol *s);
+
+/* Point `index` in dims (<= LW_SOBOL_DIMS) dimensions, each in [0, 1). */
+void lw_sobol_point(const lw_sobol *s, uint32_t index, int dims, double *u);
+
 #endif

@@ -90,3 +90,65 @@ double lw_normal_quantile(double p)
     }
     return sign * x;
 }
+
+/* ---- Sobol points ---- */
+
+/* Joe and Kuo (2008), new-joe-kuo-6.21201, dimensions 2 to 16: the degree s
+ * of the primitive polynomial, its inner coefficients a (bits a_1 ..
+ * a_{s-1}, most significant first) and the initial direction numbers m_1 ..
+ * m_s (odd, m_k < 2^k). */
+static const struct {
+    int s;
+    unsigned a;
+    unsigned m[6];
+} joe_kuo[LW_SOBOL_DIMS - 1] = {
+    {1, 0, {1}},
+    {2, 1, {1, 3}},
+    {3, 1, {1, 3, 1}},
+    {3, 2, {1, 1, 1}},
+    {4, 1, {1, 1, 3, 3}},
+    {4, 4, {1, 3, 5, 13}},
+    {5, 2, {1, 1, 5, 5, 17}},
+    {5, 4, {1, 1, 5, 5, 5}},
+    {5, 7, {1, 1, 7, 11, 19}},
+    {5, 11, {1, 1, 5, 1, 1}},
+    {5, 13, {1, 1, 1, 3, 11}},
+    {5, 14, {1, 3, 5, 5, 31}},
+    {6, 1, {1, 3, 3, 9, 7, 49}},
+    {6, 13, {1, 1, 1, 15, 21, 21}},
+    {6, 16, {1, 3, 1, 13, 27, 49}},
+};
+
+void lw_sobol_init(lw_sobol *sb)
+{
+    for (int k = 0; k < LW_SOBOL_BITS; k++)
+        sb->v[0][k] = 1u << (LW_SOBOL_BITS - 1 - k);
+    for (int j = 1; j < LW_SOBOL_DIMS; j++) {
+        const int s = joe_kuo[j - 1].s;
+        const unsigned a = joe_kuo[j - 1].a;
+        uint32_t *v = sb->v[j];
+        for (int k = 0; k < s; k++)
+            v[k] = (uint32_t)joe_kuo[j - 1].m[k] << (LW_SOBOL_BITS - 1 - k);
+        /* the recurrence of the primitive polynomial (Bratley and Fox, ACM
+         * TOMS 14(1), 1988, algorithm 659) */
+        for (int k = s; k < LW_SOBOL_BITS; k++) {
+            uint32_t x = v[k - s] ^ (v[k - s] >> s);
+            for (int l = 1; l < s; l++)
+                if ((a >> (s - 1 - l)) & 1u)
+                    x ^= v[k - l];
+            v[k] = x;
+        }
+    }
+}
+
+void lw_sobol_point(const lw_sobol *sb, uint32_t index, int dims, double *u)
+{
+    const uint32_t gray = index ^ (index >> 1);
+    for (int j = 0; j < dims && j < LW_SOBOL_DIMS; j++) {
+        uint32_t x = 0;
+        for (int k = 0; k < LW_SOBOL_BITS; k++)
+            if ((gray >> k) & 1u)
+                x ^= sb->v[j][k];
+        u[j] = (double)x * 0x1.0p-32;
+    }
+}

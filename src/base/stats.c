@@ -227,7 +227,8 @@ lw_status lw_stats_srrc(const double *const *x, size_t k, const double *y, size_
         if (scale[j] > 0.0)
             use[m++] = j;
     }
-    double a[LW_STATS_SRRC_MAX][LW_STATS_SRRC_MAX], b[LW_STATS_SRRC_MAX], inv[LW_STATS_SRRC_MAX];
+    double a[LW_STATS_SRRC_MAX][LW_STATS_SRRC_MAX], b[LW_STATS_SRRC_MAX] = {0},
+        inv[LW_STATS_SRRC_MAX];
     for (size_t p = 0; p < m; p++) {
         const double *cp = rk + use[p] * n, *cy = rk + k * n;
         double s = 0.0;

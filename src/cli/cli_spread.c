@@ -18,6 +18,9 @@ const cli_option cli_spread_options[] = {
     {"samples", "N", OPT_SAMPLES, "units to sample (default 10000)"},
     {"seed", "S", OPT_SEED, "seed of the random streams (default 1); the same seed\ngives the "
                             "same output on any number of threads"},
+    {"sampling", "random|sobol", OPT_SAMPLING,
+     "random units (default; with intervals) or Sobol points\n(sharper estimates for the same "
+     "units, no intervals)"},
     {"target", "QUANTITY>=VALUE", OPT_TARGET,
      "a condition each unit should meet (repeatable): the\nyield is the share meeting all"},
     {"histogram", "FILE.svg", OPT_HIST, "histogram of --quantity with its percentiles"},
@@ -40,6 +43,7 @@ typedef struct spread_args {
     size_t samples;
     uint64_t seed;
     const char *hist, *ranking, *samples_out, *quantity;
+    bool sobol;
 } spread_args;
 
 static bool parse_u64(const char *s, uint64_t max, uint64_t *out)
@@ -80,6 +84,11 @@ static int spread_option(void *ctx, int id, const char *arg)
         if (a->ntargets == LW_MC_TARGETS_MAX)
             return usage_error("spread", "at most %d --target options", LW_MC_TARGETS_MAX);
         a->targets[a->ntargets++] = arg;
+        return 0;
+    case OPT_SAMPLING:
+        if (strcmp(arg, "random") != 0 && strcmp(arg, "sobol") != 0)
+            return usage_error("spread", "--sampling takes random or sobol");
+        a->sobol = !strcmp(arg, "sobol");
         return 0;
     case OPT_HIST:
         a->hist = arg;
@@ -193,7 +202,8 @@ int cli_spread(int argc, char **argv)
     size_t nkeys = 0;
     if (st == LW_OK)
         st = gather_keys(&prof, &a, keys, &nkeys, &err);
-    lw_mc_options opt = {.samples = a.samples, .seed = a.seed, .threads = a.o.threads};
+    lw_mc_options opt = {.samples = a.samples, .seed = a.seed, .threads = a.o.threads,
+                         .sobol = a.sobol};
     lw_mc_result res;
     memset(&res, 0, sizeof res);
     if (st == LW_OK)

@@ -292,7 +292,7 @@ lw_status lw_profile_set(lw_profile *prof, const char *dotted_key, const char *v
 {
     const lw_keydef *d = NULL;
     lw_status st = find_key(dotted_key, file, line, &d, err);
-    if (st == LW_OK)
+    if (st == LW_OK && d)
         st = apply_text(prof, d, value, file, line, err);
     if (st == LW_OK)
         note_origin(prof, d, origin, file, line);

@@ -63,8 +63,8 @@ static lw_status summary_table(FILE *fp, const lw_mc_study *s, const lw_mc_summa
     static const char *const head[] = {"quantity", "nominal", "mean", "sd", "p1",
                                        "p5",       "p50",     "p95",  "p99"};
     char title[160];
-    snprintf(title, sizeof title, "The spread of %zu units (seed %llu)", s->res->n,
-             (unsigned long long)s->opt->seed);
+    snprintf(title, sizeof title, "The spread of %zu units (seed %llu%s)", s->res->n,
+             (unsigned long long)s->opt->seed, s->opt->sobol ? ", Sobol points" : "");
     lw_rtable *t = table_with(head, 9, fmt == LW_FMT_CSV ? NULL : title, err);
     lw_status st = t ? LW_OK : LW_ENOMEM;
     for (int q = 0; q < LW_MC_QCOUNT && st == LW_OK; q++) {
@@ -94,7 +94,7 @@ static lw_status interval_table(FILE *fp, const lw_mc_summary *sum, lw_rtable_fo
     const char *head[1 + 2 * LW_MC_NPCT];
     char names[2 * LW_MC_NPCT][16];
     head[0] = "quantity";
-    for (int k = 0; k < LW_MC_NPCT; k++) {
+    for (size_t k = 0; k < LW_MC_NPCT; k++) {
         snprintf(names[2 * k], sizeof names[0], "%s low", pct_names[k]);
         snprintf(names[2 * k + 1], sizeof names[0], "%s high", pct_names[k]);
         head[1 + 2 * k] = names[2 * k];
@@ -159,12 +159,14 @@ static lw_status keys_table(FILE *fp, const lw_mc_study *s, lw_rtable_format fmt
     return put(t, st, fp, fmt, err);
 }
 
-/* Units, share and Wilson's interval in columns col.. of row. */
+/* Units, share and Wilson's interval in columns col.. of row (no interval
+ * for quasi-random units: they are not independent). */
 static lw_status share_cells(lw_rtable *t, size_t row, size_t col, size_t k, size_t n,
-                             lw_error *err)
+                             bool sobol, lw_error *err)
 {
-    double lo, hi;
-    lw_stats_wilson(k, n, LW_MC_Z95, &lo, &hi);
+    double lo = NAN, hi = NAN;
+    if (!sobol)
+        lw_stats_wilson(k, n, LW_MC_Z95, &lo, &hi);
     const double v[4] = {(double)k, 100.0 * (double)k / (double)n, 100.0 * lo, 100.0 * hi};
     return set_row_nums(t, row, col, v, 4, err);
 }
@@ -193,15 +195,18 @@ static lw_status ratings_table(FILE *fp, const lw_mc_study *s, lw_rtable_format 
         if (st == LW_OK)
             st = lw_rtable_set(t, row, 0, lw_report_warning(b), err);
         if (st == LW_OK)
-            st = share_cells(t, row, 1, k, r->n, err);
+            st = share_cells(t, row, 1, k, r->n, s->opt->sobol, err);
         shown++;
     }
     if (st == LW_OK && shown == 0) { /* no table: one sentence */
         double lo, hi;
         lw_stats_wilson(0, r->n, LW_MC_Z95, &lo, &hi);
         lw_rtable_free(t);
-        fprintf(fp, "No unit has a warning: none breaks a rating or limit (the share that "
-                    "would is below %.3g %% at 95 %% confidence).\n\n", 100.0 * hi);
+        if (s->opt->sobol)
+            fputs("No unit has a warning: none breaks a rating or limit.\n\n", fp);
+        else
+            fprintf(fp, "No unit has a warning: none breaks a rating or limit (the share that "
+                        "would is below %.3g %% at 95 %% confidence).\n\n", 100.0 * hi);
         return ferror(fp) ? lw_error_set(err, LW_EIO, NULL, 0, "write error") : LW_OK;
     }
     return put(t, st, fp, fmt, err);
@@ -228,7 +233,7 @@ static lw_status yield_table(FILE *fp, const lw_mc_study *s, lw_rtable_format fm
             st = lw_rtable_set(t, row, 0, j < s->ntargets ? s->targets[j].text : "all of them",
                                err);
         if (st == LW_OK)
-            st = share_cells(t, row, 1, k, s->res->n, err);
+            st = share_cells(t, row, 1, k, s->res->n, s->opt->sobol, err);
     }
     return put(t, st, fp, fmt, err);
 }
@@ -290,18 +295,25 @@ static lw_status spread_in_c_locale(FILE *fp, const lw_mc_study *s, lw_rtable_fo
     if (fmt == LW_FMT_CSV)
         return summary_table(fp, s, sum, fmt, err);
     const lw_mc_summary *rt = &sum[LW_MC_RUNTIME];
-    char lo[32] = "-", hi[32] = "-";
+    char lo[32] = "-", hi[32] = "-", interval[96];
     if (!isnan(rt->pct_lo[1]))
         snprintf(lo, sizeof lo, "%.4g", rt->pct_lo[1]);
     if (!isnan(rt->pct_hi[1]))
         snprintf(hi, sizeof hi, "%.4g", rt->pct_hi[1]);
-    fprintf(fp, "%s%s: %s\n%s95 %% of units run at least %.4g h (95 %% interval %s to %s h); "
-                "the nominal unit runs %.4g h.\n\n",
-            fmt == LW_FMT_MD ? "**" : "", s->prof->light.name,
-            fmt == LW_FMT_MD ? "spread**\n" : "spread", fmt == LW_FMT_MD ? "" : "",
-            rt->pct[1], lo, hi, rt->nominal);
+    if (s->opt->sobol)
+        snprintf(interval, sizeof interval, "Sobol points: no interval");
+    else
+        snprintf(interval, sizeof interval, "95 %% interval %s to %s h", lo, hi);
+    fprintf(fp, "%s%s: spread%s\n\n95 %% of units run at least %.4g h (%s); the nominal unit "
+                "runs %.4g h.\n\n",
+            fmt == LW_FMT_MD ? "**" : "", s->prof->light.name, fmt == LW_FMT_MD ? "**" : "",
+            rt->pct[1], interval, rt->nominal);
     st = summary_table(fp, s, sum, fmt, err);
-    if (st == LW_OK)
+    if (st == LW_OK && s->opt->sobol)
+        fputs("Sobol points: the estimates converge faster than random units', but the units "
+              "are not independent, so no interval is given (sample at random for them).\n\n",
+              fp);
+    else if (st == LW_OK)
         st = interval_table(fp, sum, fmt, err);
     if (st == LW_OK && s->ntargets)
         st = yield_table(fp, s, fmt, err);
@@ -460,7 +472,7 @@ lw_status lw_plot_mc_ranking(FILE *fp, const lw_mc_study *s, lw_error *err)
         }
     }
     /* keys by their larger effect on either quantity */
-    size_t order[LW_MC_KEYS_MAX];
+    size_t order[LW_MC_KEYS_MAX] = {0};
     for (size_t k = 0; k < s->nkeys; k++) {
         double mk = fmax(fabs(beta[0][k]), fabs(beta[1][k]));
         size_t j = k;

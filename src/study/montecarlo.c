@@ -98,7 +98,9 @@ lw_status lw_mc_key_parse(const lw_profile *prof, const char *key, const char *f
                             "[spread] %s: only keys that take any number may be spread (this "
                             "one takes %s)", key,
                             d->type == LW_K_INT ? "a whole number" : "a name or choice");
-    out->nominal = *(const double *)((const char *)prof + d->offset) / d->scale;
+    double stored; /* the key's value as the profile holds it, SI */
+    memcpy(&stored, (const char *)prof + d->offset, sizeof stored);
+    out->nominal = stored / d->scale;
     double rlo, rhi;
     key_range(d, &rlo, &rhi);
     /* the form's word, then its numbers */
@@ -245,6 +247,9 @@ struct mc_job {
     const lw_mc_key *keys;
     size_t nkeys;
     uint64_t seed;
+    bool sobol;
+    lw_sobol sb;                /* sobol: the direction numbers */
+    double shift[LW_MC_KEYS_MAX]; /* sobol: the shift modulo 1 */
     lw_mc_result *out;
     atomic_size_t stop;      /* the lowest failing unit so far (n: none) */
     pthread_mutex_t lock;
@@ -260,12 +265,24 @@ static void run_unit(size_t i, void *vctx)
         return;
     lw_rng rng;
     lw_rng_seed(&rng, j->seed, i);
+    double u[LW_MC_KEYS_MAX];
+    if (j->sobol) {
+        lw_sobol_point(&j->sb, (uint32_t)i, (int)j->nkeys, u);
+        for (size_t k = 0; k < j->nkeys; k++) {
+            u[k] += j->shift[k];
+            u[k] -= u[k] >= 1.0 ? 1.0 : 0.0;
+            u[k] = u[k] > 0.0 ? u[k] : 0x1.0p-54; /* the open interval */
+        }
+    } else {
+        for (size_t k = 0; k < j->nkeys; k++)
+            u[k] = lw_rng_uniform(&rng);
+    }
     lw_case c;
     memset(&c, 0, sizeof c);
     lw_error_clear(&c.err);
     c.status = LW_OK;
     for (size_t k = 0; k < j->nkeys && c.status == LW_OK; k++) {
-        double v = lw_mc_draw(&j->keys[k], lw_rng_uniform(&rng));
+        double v = lw_mc_draw(&j->keys[k], u[k]);
         r->x[k * r->n + i] = v;
         c.status = lw_profile_variant_number(&c.variant, j->keys[k].key, v, &c.err);
     }
@@ -335,7 +352,18 @@ lw_status lw_mc_run(const lw_profile *base, const lw_mc_key *keys, size_t nkeys,
         return lw_error_set(err, LW_ENOMEM, NULL, 0, "out of memory for %zu samples", n);
     }
     struct mc_job j = {.base = base, .keys = keys, .nkeys = nkeys, .seed = opt->seed,
-                       .out = out, .status = LW_OK};
+                       .sobol = opt->sobol, .out = out, .status = LW_OK};
+    if (j.sobol) {
+        if (n > UINT32_MAX) {
+            lw_mc_result_clear(out);
+            return lw_error_set(err, LW_EINPUT, "--samples", 0, "Sobol points: at most 2^32");
+        }
+        lw_sobol_init(&j.sb);
+        lw_rng r;
+        lw_rng_seed(&r, opt->seed, UINT64_MAX); /* a stream no unit draws from */
+        for (size_t k = 0; k < nkeys; k++)
+            j.shift[k] = lw_rng_uniform(&r);
+    }
     atomic_init(&j.stop, n);
     lw_error_clear(&j.err);
     pthread_mutex_init(&j.lock, NULL);
