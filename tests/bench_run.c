@@ -241,30 +241,17 @@ static int bench_table_depth(const lw_profile *p, summary *s)
 
 /* ---- a 100,000-row sweep ---- */
 
-/* Run the sweep in a child process (its peak memory is its own), CSV to
- * /dev/null; wall seconds and peak resident kilobytes. */
-static bool sweep_child(const lw_profile *p, int threads, double *wall_s, long *kb)
+/* Run job(ctx) in a child process (its peak memory is its own): wall
+ * seconds and peak resident kilobytes; false when it failed. */
+static bool in_child(int (*job)(const void *ctx), const void *ctx, double *wall_s, long *kb)
 {
     double t0 = bench_now_s();
+    fflush(stdout);
     pid_t pid = fork();
     if (pid < 0)
         return false;
-    if (pid == 0) {
-        FILE *out = fopen("/dev/null", "w");
-        lw_vary v[2];
-        lw_error e;
-        lw_error_clear(&e);
-        lw_sweep sw;
-        int rc = out && lw_vary_parse("drive.resistor_ohm=10..1009:1", p, &v[0], &e) == LW_OK &&
-                         lw_vary_parse("pack.ambient_c=-10..39.5:0.5", p, &v[1], &e) == LW_OK &&
-                         lw_report_sweep_stream(p, v, 2, threads, LW_FMT_CSV, NULL, out, NULL,
-                                                NULL, &sw, &e) == LW_OK
-                     ? 0
-                     : 1;
-        if (rc)
-            fprintf(stderr, "sweep: %s\n", e.msg);
-        _exit(rc);
-    }
+    if (pid == 0)
+        _exit(job(ctx));
     int status;
     struct rusage ru;
     if (wait4(pid, &status, 0, &ru) != pid || !WIFEXITED(status) || WEXITSTATUS(status) != 0)
@@ -272,6 +259,38 @@ static bool sweep_child(const lw_profile *p, int threads, double *wall_s, long *
     *wall_s = bench_now_s() - t0;
     *kb = ru.ru_maxrss;
     return true;
+}
+
+typedef struct child_args {
+    const lw_profile *p;
+    int threads;
+    size_t n;
+} child_args;
+
+/* The 100,000-row sweep, CSV to /dev/null. */
+static int sweep_job(const void *ctx)
+{
+    const child_args *a = ctx;
+    FILE *out = fopen("/dev/null", "w");
+    lw_vary v[2];
+    lw_error e;
+    lw_error_clear(&e);
+    lw_sweep sw;
+    int rc = out && lw_vary_parse("drive.resistor_ohm=10..1009:1", a->p, &v[0], &e) == LW_OK &&
+                     lw_vary_parse("pack.ambient_c=-10..39.5:0.5", a->p, &v[1], &e) == LW_OK &&
+                     lw_report_sweep_stream(a->p, v, 2, a->threads, LW_FMT_CSV, NULL, out, NULL,
+                                            NULL, &sw, &e) == LW_OK
+                 ? 0
+                 : 1;
+    if (rc)
+        fprintf(stderr, "sweep: %s\n", e.msg);
+    return rc;
+}
+
+static bool sweep_child(const lw_profile *p, int threads, double *wall_s, long *kb)
+{
+    child_args a = {p, threads, 0};
+    return in_child(sweep_job, &a, wall_s, kb);
 }
 
 /* One thread and two, in turn, SWEEP_PAIRS times: the median of each and
@@ -306,40 +325,33 @@ static int bench_sweep(const lw_profile *p, summary *s)
     return 0;
 }
 
-/* The spread study of demo.ini's [spread] in a child process, its report
- * to /dev/null: wall seconds and peak resident kilobytes. */
+/* The spread study of demo.ini's [spread], its report to /dev/null. */
+static int spread_job(const void *ctx)
+{
+    const child_args *a = ctx;
+    FILE *out = fopen("/dev/null", "w");
+    lw_mc_key keys[LW_MC_KEYS_MAX];
+    size_t nk = 0;
+    lw_error e;
+    lw_error_clear(&e);
+    lw_mc_options o = {.samples = a->n, .seed = 1, .threads = a->threads};
+    lw_mc_result r;
+    int rc = 1;
+    if (out && lw_mc_keys_of_profile(a->p, keys, &nk, &e) == LW_OK &&
+        lw_mc_run(a->p, keys, nk, &o, NULL, NULL, &r, &e) == LW_OK) {
+        lw_mc_study st = {a->p, keys, nk, &o, &r, NULL, 0};
+        rc = lw_report_mc(out, &st, LW_FMT_TEXT, &e) == LW_OK ? 0 : 1;
+        lw_mc_result_clear(&r);
+    }
+    if (rc)
+        fprintf(stderr, "spread: %s\n", e.msg);
+    return rc;
+}
+
 static bool spread_child(const lw_profile *p, size_t n, int threads, double *wall_s, long *kb)
 {
-    double t0 = bench_now_s();
-    pid_t pid = fork();
-    if (pid < 0)
-        return false;
-    if (pid == 0) {
-        FILE *out = fopen("/dev/null", "w");
-        lw_mc_key keys[LW_MC_KEYS_MAX];
-        size_t nk = 0;
-        lw_error e;
-        lw_error_clear(&e);
-        lw_mc_options o = {.samples = n, .seed = 1, .threads = threads};
-        lw_mc_result r;
-        int rc = 1;
-        if (out && lw_mc_keys_of_profile(p, keys, &nk, &e) == LW_OK &&
-            lw_mc_run(p, keys, nk, &o, NULL, NULL, &r, &e) == LW_OK) {
-            lw_mc_study st = {p, keys, nk, &o, &r, NULL, 0};
-            rc = lw_report_mc(out, &st, LW_FMT_TEXT, &e) == LW_OK ? 0 : 1;
-            lw_mc_result_clear(&r);
-        }
-        if (rc)
-            fprintf(stderr, "spread: %s\n", e.msg);
-        _exit(rc);
-    }
-    int status;
-    struct rusage ru;
-    if (wait4(pid, &status, 0, &ru) != pid || !WIFEXITED(status) || WEXITSTATUS(status) != 0)
-        return false;
-    *wall_s = bench_now_s() - t0;
-    *kb = ru.ru_maxrss;
-    return true;
+    child_args a = {p, threads, n};
+    return in_child(spread_job, &a, wall_s, kb);
 }
 
 static int bench_spread(const lw_profile *p, summary *s)

@@ -44,6 +44,13 @@ static lw_rtable *table_with(const char *const *head, size_t n, const char *titl
     return t;
 }
 
+/* A new row of t for quantity q, its name in column 0. */
+static lw_status quantity_row(lw_rtable *t, int q, size_t *row, lw_error *err)
+{
+    lw_status st = lw_rtable_add_row(t, row, err);
+    return st == LW_OK ? lw_rtable_set(t, *row, 0, lw_mc_quantity_names[q], err) : st;
+}
+
 /* Write t (freed) and a blank line after it in text and Markdown. */
 static lw_status put(lw_rtable *t, lw_status st, FILE *fp, lw_rtable_format fmt, lw_error *err)
 {
@@ -69,9 +76,7 @@ static lw_status summary_table(FILE *fp, const lw_mc_study *s, const lw_mc_summa
     lw_status st = t ? LW_OK : LW_ENOMEM;
     for (int q = 0; q < LW_MC_QCOUNT && st == LW_OK; q++) {
         size_t row;
-        st = lw_rtable_add_row(t, &row, err);
-        if (st == LW_OK)
-            st = lw_rtable_set(t, row, 0, lw_mc_quantity_names[q], err);
+        st = quantity_row(t, q, &row, err);
         const double v[3] = {sum[q].nominal, sum[q].mean, sum[q].sd};
         if (st == LW_OK)
             st = set_row_nums(t, row, 1, v, 3, err);
@@ -107,9 +112,7 @@ static lw_status interval_table(FILE *fp, const lw_mc_summary *sum, lw_rtable_fo
     lw_status st = t ? LW_OK : LW_ENOMEM;
     for (int q = 0; q < LW_MC_QCOUNT && st == LW_OK; q++) {
         size_t row;
-        st = lw_rtable_add_row(t, &row, err);
-        if (st == LW_OK)
-            st = lw_rtable_set(t, row, 0, lw_mc_quantity_names[q], err);
+        st = quantity_row(t, q, &row, err);
         for (int k = 0; k < LW_MC_NPCT && st == LW_OK; k++) {
             const double v[2] = {sum[q].pct_lo[k], sum[q].pct_hi[k]};
             st = set_row_nums(t, row, 1 + 2 * (size_t)k, v, 2, err);
