@@ -138,6 +138,8 @@ expect 0 '^\| mode \| LR6-alkaline lm \|' "$LW" table profiles/demo.ini --cells 
 expect 0 'Rounding: ' "$LW" table profiles/demo.ini
 
 # spread: the units shipped, from the profile's [spread] or --spread
+expect 0 '^  spread PROFILE   the spread over the units shipped' "$LW" help
+expect 0 'the nominal unit runs 249.9 h' "$LW" spread profiles/demo.ini --samples 200 --mode low --format md
 expect 0 '^95 % of units run at least [0-9.]+ h \(95 % interval [0-9.]+ to [0-9.]+ h\)' "$LW" spread profiles/demo.ini --samples 400
 expect 0 '^quantity,nominal,mean,sd,p1,p5,p50,p95,p99.?$' "$LW" spread profiles/demo.ini --samples 300 --format csv
 expect 0 '^runtime_h,6[0-9.]+,' "$LW" spread profiles/demo.ini --samples 300 --format csv

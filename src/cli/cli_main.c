@@ -39,6 +39,8 @@ static const char *const main_help =
     "  pick PROFILE     choose the series resistor, with its corners and ratings\n"
     "  size PROFILE     find the packs that meet a runtime\n"
     "  table PROFILE    runtime table of a product specification, per mode and cell\n"
+    "  spread PROFILE   the spread over the units shipped: percentiles, yield, what\n"
+    "                   drives it\n"
     "  fit led FILE     fit LED I-V and light output to bench measurements\n"
     "  fit cell LOG...  make a cell file from one or two discharge logs\n"
     "  check PROFILE... load and validate profiles and everything they name\n"

@@ -425,14 +425,16 @@ static lw_status lw_plot_svg_in_c_locale(FILE *fp, const lw_chart *c, lw_error *
         fputs("</g></svg>\n", fp);
         draw_legend(fp, &f, p, colour0);
         /* the marks' labels over the first panel, after its legend so that
-         * none is hidden; staggered down so that neighbours do not overlap */
+         * none is hidden; staggered down over four rows so that neighbours
+         * do not overlap (a spread histogram's three percentiles and a
+         * target) */
         for (size_t k = 0; i == 0 && k < c->nmarks; k++) {
             if (!c->marks[k].label)
                 continue;
             double x = px(&f, c->marks[k].x);
             bool late = x > 0.5 * (f.x0 + f.x1); /* text to the left of a late mark */
             fprintf(fp, "<text x='%.1f' y='%.1f' class='pt'%s>", late ? x - 4 : x + 4,
-                    f.y1 - 8.0 - 14.0 * (double)(k % 3), late ? " text-anchor='end'" : "");
+                    f.y1 - 8.0 - 14.0 * (double)(k % 4), late ? " text-anchor='end'" : "");
             xml_text(fp, c->marks[k].label);
             fputs("</text>\n", fp);
         }
