@@ -70,6 +70,14 @@ typedef struct cli_command {
     int (*run)(int argc, char **argv);
 } cli_command;
 
+/* The safety text every help ends with ("Safety" and its lines). */
+extern const char *const cli_safety_text;
+
+/* Write manual page `page` (lampwick.1, lampwick-profile.5 or
+ * lampwick-cell.5) as roff, generated from the command and key tables
+ * themselves (cli_man.c); 0, or 2 for an unknown page. */
+int cli_man_write(const char *page, FILE *fp);
+
 /* Every command, in the order of `lampwick help`. */
 extern const cli_command cli_commands[];
 extern const size_t cli_ncommands;

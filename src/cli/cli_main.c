@@ -18,7 +18,7 @@
 #include <unistd.h>
 #include "lw_config.h"
 
-static const char *const safety_text =
+const char *const cli_safety_text =
     "Safety\n"
     "  Lithium cells can overheat, vent and burn when shorted, over-discharged, charged\n"
     "  wrongly or mixed with cells of another type, age or charge. Resistors and drivers\n"
@@ -413,12 +413,12 @@ static int help(int argc, char **argv)
             cli_help(c, stdout);
         }
         fputc('\n', stdout);
-        fputs(safety_text, stdout);
+        fputs(cli_safety_text, stdout);
         return 0;
     }
     fputs(main_help, stdout);
     fputc('\n', stdout);
-    fputs(safety_text, stdout);
+    fputs(cli_safety_text, stdout);
     return 0;
 }
 
