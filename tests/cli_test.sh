@@ -137,6 +137,16 @@ expect 1 'Nothing fits' "$LW" size profiles/demo.ini --runtime-h 100000 --cells 
 expect 0 '^\| mode \| LR6-alkaline lm \|' "$LW" table profiles/demo.ini --cells LR6-alkaline,FR6-lithium --format md
 expect 0 'Rounding: ' "$LW" table profiles/demo.ini
 
+# the user's own cells: $XDG_DATA_HOME/lampwick/cells
+mkdir -p "$TMP/xdg/lampwick/cells"
+sed 's/^name = .*/name = XDG-test-cell/' cells/LR6-alkaline.ini > "$TMP/xdg/lampwick/cells/XDG-test-cell.ini"
+cp cells/LR6-alkaline.curve.csv cells/alkaline.temperature.csv "$TMP/xdg/lampwick/cells/"
+expect 0 '^XDG-test-cell +alkaline' env XDG_DATA_HOME="$TMP/xdg" "$LW" cells
+expect 0 'runtime to cutoff +60\.39 h' env XDG_DATA_HOME="$TMP/xdg" "$LW" run profiles/demo.ini --set pack.cell=XDG-test-cell
+mkdir -p "$TMP/home/.local/share/lampwick"
+cp -r "$TMP/xdg/lampwick/cells" "$TMP/home/.local/share/lampwick/"
+expect 0 '^XDG-test-cell +alkaline' env -u XDG_DATA_HOME HOME="$TMP/home" "$LW" cells
+
 # spread: the units shipped, from the profile's [spread] or --spread
 expect 0 '^  spread PROFILE   the spread over the units shipped' "$LW" help
 expect 0 'the nominal unit runs 249.9 h' "$LW" spread profiles/demo.ini --samples 200 --mode low --format md

@@ -53,7 +53,8 @@ static const char *const main_help =
     "  -V, --version    show the version\n"
     "\n"
     "Cell names are looked up in the profile's folder, then in the folders of\n"
-    "LAMPWICK_CELLS (colon-separated), then in the installed cell library.\n"
+    "LAMPWICK_CELLS (colon-separated), then in your own $XDG_DATA_HOME/lampwick/cells\n"
+    "(default ~/.local/share/lampwick/cells), then in the installed cell library.\n"
     "\n"
     "Exit status: 0 success, 1 no answer (the light gives no light, nothing fits,\n"
     "no convergence, out of memory), 2 bad usage, bad input or a failed write.\n";

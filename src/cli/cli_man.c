@@ -147,7 +147,13 @@ static void page_lampwick(FILE *fp)
           fp);
     fputs(".SH ENVIRONMENT\n.TP\n.B LAMPWICK_CELLS\n"
           "Folders (colon\\-separated) searched for cell files after the profile's\n"
-          "folder and before the installed cell library.\n",
+          "folder and before the user's and the installed cell library.\n"
+          ".TP\n.B XDG_DATA_HOME\n"
+          "The user's own cell files are looked up in\n"
+          ".I $XDG_DATA_HOME/lampwick/cells\n"
+          "(default\n"
+          ".IR ~/.local/share/lampwick/cells ),\n"
+          "after LAMPWICK_CELLS and before the installed library.\n",
           fp);
     fputs(".SH FILES\n.TP\n.I " LW_DATADIR "/cells\n"
           "The installed cell library: typical handbook values; replace them with the\n"

@@ -205,6 +205,18 @@ void build_search(lw_search *s)
 {
     memset(s, 0, sizeof *s);
     lw_search_add_list(s, getenv("LAMPWICK_CELLS"));
+    /* the user's own cells: $XDG_DATA_HOME/lampwick/cells, by default
+     * ~/.local/share/lampwick/cells (XDG Base Directory Specification) */
+    const char *xdg = getenv("XDG_DATA_HOME"), *home = getenv("HOME");
+    char user[PATH_MAX];
+    if (xdg && xdg[0] == '/')
+        snprintf(user, sizeof user, "%s/lampwick/cells", xdg);
+    else if (home && home[0] == '/')
+        snprintf(user, sizeof user, "%s/.local/share/lampwick/cells", home);
+    else
+        user[0] = '\0';
+    if (user[0])
+        lw_search_add(s, user);
     char exe[PATH_MAX], dir[PATH_MAX], probe[PATH_MAX + 32];
     ssize_t n = readlink("/proc/self/exe", exe, sizeof exe - 1);
     bool in_build = false;
