@@ -137,6 +137,12 @@ expect 1 'Nothing fits' "$LW" size profiles/demo.ini --runtime-h 100000 --cells 
 expect 0 '^\| mode \| LR6-alkaline lm \|' "$LW" table profiles/demo.ini --cells LR6-alkaline,FR6-lithium --format md
 expect 0 'Rounding: ' "$LW" table profiles/demo.ini
 
+# '-' reads a profile or a measurement CSV from standard input
+expect 0 'runtime to cutoff +60\.39 h' sh -c "\"$LW\" run - < profiles/demo.ini"
+expect 0 '^\(standard input\): ok' sh -c "\"$LW\" check - < profiles/demo.ini"
+expect 2 '^lampwick: \(standard input\):2: \[led\] model = bulb: expected one of' sh -c "printf '[led]\\nmodel = bulb\\n' | \"$LW\" run -"
+expect 0 '^8 measurements from 5 to 150 mA' sh -c "\"$LW\" fit led - < docs/examples/white-led-bench.csv"
+
 # the user's own cells: $XDG_DATA_HOME/lampwick/cells
 mkdir -p "$TMP/xdg/lampwick/cells"
 sed 's/^name = .*/name = XDG-test-cell/' cells/LR6-alkaline.ini > "$TMP/xdg/lampwick/cells/XDG-test-cell.ini"

@@ -36,7 +36,13 @@ typedef struct lw_path_ref {
 
 /* Open a regular file for reading; a folder, device, pipe or socket is
  * refused.  Errors name ref->file:ref->line and ref->what when ref is given
- * ("[cell] curve: cannot open 'x.csv': ..."), else the path itself. */
+ * ("[cell] curve: cannot open 'x.csv': ..."), else the path itself.  The
+ * path "-" given by the user (ref NULL) is standard input, whatever it is
+ * (a file named by a key is never standard input); the FILE is a copy of
+ * its descriptor, so closing it leaves standard input open. */
+#define LW_PATH_STDIN_NAME "(standard input)"
+/* The name messages give a path: LW_PATH_STDIN_NAME for "-". */
+const char *lw_path_display(const char *path);
 LW_MUST_CHECK lw_status lw_path_open_regular(const char *path, const char *mode,
                                              const lw_path_ref *ref, FILE **fp, lw_error *err);
 

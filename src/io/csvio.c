@@ -198,7 +198,7 @@ lw_status lw_csv_read_text(const char *path, const lw_path_ref *ref, const char 
 {
     memset(csv, 0, sizeof *csv);
     csv->text_col = -1;
-    lw_text_copy(csv->path, path, sizeof csv->path);
+    lw_text_copy(csv->path, lw_path_display(path), sizeof csv->path);
     if (strlen(path) >= sizeof csv->path)
         return lw_error_set(err, LW_EINPUT, NULL, 0, "the path '%.60s...' is too long", path);
     FILE *fp;

@@ -270,7 +270,7 @@ lw_status lw_ini_read(const char *path, lw_ini *ini, lw_ini_check check, const v
                       lw_error *err)
 {
     memset(ini, 0, sizeof *ini);
-    if (!lw_text_copy(ini->path, path, sizeof ini->path))
+    if (!lw_text_copy(ini->path, lw_path_display(path), sizeof ini->path))
         return lw_error_set(err, LW_EINPUT, NULL, 0, "the path '%.60s...' is too long", path);
     FILE *fp;
     lw_status st = lw_path_open_regular(path, "r", NULL, &fp, err);
@@ -290,11 +290,11 @@ lw_status lw_ini_read(const char *path, lw_ini *ini, lw_ini_check check, const v
             *err = local;
         st = local.code;
     } else if (rc > 0) {
-        st = lw_error_set(err, LW_EINPUT, path, rc, "expected '[section]' or 'key = value'");
+        st = lw_error_set(err, LW_EINPUT, ini->path, rc, "expected '[section]' or 'key = value'");
     } else if (read_error) {
-        st = lw_error_set(err, LW_EIO, path, 0, "read error");
+        st = lw_error_set(err, LW_EIO, ini->path, 0, "read error");
     } else if (rc < 0) {
-        st = lw_error_set(err, LW_ENOMEM, path, 0, "out of memory");
+        st = lw_error_set(err, LW_ENOMEM, ini->path, 0, "out of memory");
     }
     if (st != LW_OK)
         lw_ini_clear(ini);

@@ -80,6 +80,11 @@ void lw_path_opens_reset(void)
     pthread_mutex_unlock(&count_lock);
 }
 
+const char *lw_path_display(const char *path)
+{
+    return strcmp(path, "-") ? path : LW_PATH_STDIN_NAME;
+}
+
 lw_status lw_path_open_regular(const char *path, const char *mode, const lw_path_ref *ref,
                                FILE **fp, lw_error *err)
 {
@@ -92,6 +97,17 @@ lw_status lw_path_open_regular(const char *path, const char *mode, const lw_path
     if (ref) {
         snprintf(label, sizeof label, "%s: ", ref->what ? ref->what : "file");
         snprintf(quoted, sizeof quoted, " '%s'", path);
+    }
+    if (!ref && !strcmp(path, "-") && mode[0] == 'r') {
+        int in = dup(STDIN_FILENO);
+        *fp = in >= 0 ? fdopen(in, mode) : NULL;
+        if (!*fp) {
+            if (in >= 0)
+                close(in);
+            return lw_error_set(err, LW_EINPUT, LW_PATH_STDIN_NAME, 0, "cannot read: %s",
+                                strerror(errno));
+        }
+        return LW_OK;
     }
     /* opened without blocking and judged by what was opened (not by a
      * stat before the open, which a FIFO put in its place would pass) */

@@ -895,11 +895,11 @@ lw_status lw_profile_load(const char *path, const lw_search *search, lw_profile 
                           lw_error *err)
 {
     memset(p, 0, sizeof *p);
-    if (!lw_text_copy(p->path, path, sizeof p->path))
+    if (!lw_text_copy(p->path, lw_path_display(path), sizeof p->path))
         return lw_error_set(err, LW_EINPUT, NULL, 0, "the profile path is too long (at most %d "
                                                      "bytes)",
                             LW_PATH_MAX - 1);
-    lw_path_dir(p->dir, sizeof p->dir, path);
+    lw_path_dir(p->dir, sizeof p->dir, path); /* "-": the current folder */
     if (search)
         p->search = *search;
     p->cutoff_cell_v = NAN;
@@ -915,7 +915,7 @@ lw_status lw_profile_load(const char *path, const lw_search *search, lw_profile 
         st = lw_ini_read(path, p->ini, profile_check, NULL, err);
     atomic_store(&p->ini->refs, 1);
     if (st == LW_OK && lw_profile_mode_count(p) > LW_PROFILE_MODES_MAX)
-        st = lw_error_set(err, LW_EINPUT, path, 0, "more than %d [mode] sections",
+        st = lw_error_set(err, LW_EINPUT, p->path, 0, "more than %d [mode] sections",
                           LW_PROFILE_MODES_MAX);
     if (st == LW_OK)
         st = apply_file(p, err);

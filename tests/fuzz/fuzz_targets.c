@@ -290,8 +290,8 @@ int fuzz_cli(const uint8_t *data, size_t size)
         argv[argc++] = w;
     argv[argc] = NULL;
     bool ok = argc >= 1 && !strcmp(argv[0], "lampwick");
-    for (int i = 0; i < argc && ok; i++)
-        ok = !strchr(argv[i], '/');
+    for (int i = 0; i < argc && ok; i++) /* no paths out, and no '-': it would wait on stdin */
+        ok = !strchr(argv[i], '/') && strcmp(argv[i], "-") != 0;
     /* the files */
     for (char *p = nl ? nl + 1 : NULL; ok && p && *p;) {
         if (strncmp(p, "=== ", 4) != 0)
