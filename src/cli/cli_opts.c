@@ -199,8 +199,42 @@ static bool file_exists(const char *path)
     return stat(path, &sb) == 0;
 }
 
-/* The cell search path: LAMPWICK_CELLS, the installed library, and the
- * source tree's cells/ when this executable runs from a meson build folder. */
+/* The source folder of the meson build folder `build`, from the build's
+ * own record of it (meson-info/meson-info.json: "directories": {"source":
+ * "..."}), so that lampwick run from a build folder finds the source tree's
+ * cells while the binary carries no path of the build machine.  false when
+ * there is no such record or the path is escaped beyond \\ and \". */
+static bool build_source_root(const char *build, char *out, size_t size)
+{
+    char path[PATH_MAX + 32], buf[8192];
+    snprintf(path, sizeof path, "%s/meson-info/meson-info.json", build);
+    FILE *fp = fopen(path, "r");
+    if (!fp)
+        return false;
+    size_t n = fread(buf, 1, sizeof buf - 1, fp);
+    fclose(fp);
+    buf[n] = '\0';
+    const char *k = strstr(buf, "\"source\":");
+    if (!k || !(k = strchr(k + 9, '"')))
+        return false;
+    size_t o = 0;
+    for (k++; *k && *k != '"'; k++) {
+        if (*k == '\\') {
+            k++;
+            if (*k != '\\' && *k != '"')
+                return false;
+        }
+        if (o + 1 >= size)
+            return false;
+        out[o++] = *k;
+    }
+    out[o] = '\0';
+    return *k == '"' && o > 0;
+}
+
+/* The cell search path: LAMPWICK_CELLS, the user's cells, the installed
+ * library, and the source tree's cells/ when this executable runs from a
+ * meson build folder (the executable itself, or in a folder of it). */
 void build_search(lw_search *s)
 {
     memset(s, 0, sizeof *s);
@@ -217,20 +251,26 @@ void build_search(lw_search *s)
         user[0] = '\0';
     if (user[0])
         lw_search_add(s, user);
-    char exe[PATH_MAX], dir[PATH_MAX], probe[PATH_MAX + 32];
-    ssize_t n = readlink("/proc/self/exe", exe, sizeof exe - 1);
-    bool in_build = false;
-    if (n > 0) {
-        exe[n] = '\0';
-        lw_path_dir(dir, sizeof dir, exe);
-        snprintf(probe, sizeof probe, "%s/../build.ninja", dir);
-        in_build = file_exists(probe);
-        snprintf(probe, sizeof probe, "%s/build.ninja", dir);
-        in_build = in_build || file_exists(probe);
-    }
     lw_search_add(s, LW_DATADIR "/cells");
-    if (in_build)
-        lw_search_add(s, LW_SOURCE_CELLS);
+    char exe[PATH_MAX], dir[PATH_MAX], build[PATH_MAX + 4], probe[PATH_MAX + 32];
+    ssize_t n = readlink("/proc/self/exe", exe, sizeof exe - 1);
+    if (n <= 0)
+        return;
+    exe[n] = '\0';
+    lw_path_dir(dir, sizeof dir, exe);
+    snprintf(build, sizeof build, "%s", dir);
+    snprintf(probe, sizeof probe, "%s/build.ninja", build);
+    if (!file_exists(probe)) {
+        snprintf(build, sizeof build, "%s/..", dir);
+        snprintf(probe, sizeof probe, "%s/build.ninja", build);
+        if (!file_exists(probe))
+            return;
+    }
+    char source[PATH_MAX], cells[PATH_MAX + 8];
+    if (build_source_root(build, source, sizeof source)) {
+        snprintf(cells, sizeof cells, "%s/cells", source);
+        lw_search_add(s, cells);
+    }
 }
 
 lw_status load_profile(const char *path, const common_opts *o, lw_profile *prof, lw_error *err)
