@@ -200,6 +200,12 @@ expect 2 '--samples takes a whole number from 2' "$LW" spread profiles/demo.ini 
 expect 2 "write QUANTITY>=VALUE" "$LW" spread profiles/demo.ini --target 'hours>=8'
 expect 2 'refusing to write over it' "$LW" spread profiles/demo.ini --samples 100 --histogram profiles/demo.ini
 
+# a sweep chart never drops series silently, and past the palette's nine
+# colours the series change marker
+"$LW" sweep profiles/demo.ini --vary drive.resistor_ohm=22,33 --vary pack.ambient_c=-20..10:1 --plot "$TMP/many.svg" >/dev/null 2>&1
+if grep -q 'the first 16 of 31 values of pack.ambient_c shown' "$TMP/many.svg" &&
+    grep -q "width='7' height='7'" "$TMP/many.svg" && python3 "$(dirname "$0")/svgcheck.py" "$TMP/many.svg" >/dev/null 2>&1; then ok; else bad "sweep chart of 31 series"; fi
+
 # corners: an ambient range in run and table
 expect 0 '^cold +-10 ' "$LW" run profiles/demo.ini --set pack.ambient_c=-10..40
 expect 0 '^worst hot +40 ' "$LW" run profiles/demo.ini --set pack.ambient_c=-10..40

@@ -2,8 +2,12 @@
  * plot.c - standalone SVG charts (see plot.h).
  *
  * Layout: title and subtitle on top, panels stacked with a shared x axis at
- * the bottom, legend in the top-right of each panel.  Colours are a fixed,
- * colour-blind-considerate palette of our own.
+ * the bottom, legend in the top-right of each panel.  Colours are the
+ * nine of P. Tol's "muted" qualitative scheme, chosen to stay apart for
+ * colour-blind readers (P. Tol, "Colour Schemes", SRON technical note
+ * SRON/EPS/TN/09-002; the values from memory); past nine series the colours
+ * repeat with another dash pattern (lines) or marker shape (points), so
+ * up to 36 series stay distinct.
  */
 #include "lampwick/plot.h"
 #include "lampwick/number.h"
@@ -15,9 +19,35 @@
 #include "lampwick/report.h"
 #include "lampwick/alloc.h"
 
-static const char *const palette[] = {"#1b6f8a", "#c4541b", "#5a7d2a", "#8a3f86",
-                                      "#b08a00", "#3a3a9c", "#9c3a3a", "#2f8f6f"};
+static const char *const palette[] = {"#332288", "#88ccee", "#44aa99", "#117733", "#999933",
+                                      "#ddcc77", "#cc6677", "#882255", "#aa4499"};
 #define NPAL (sizeof palette / sizeof palette[0])
+/* The variants past the palette: a line's dash pattern, a point's marker. */
+#define NVARIANT 4
+static const char *const dashes[NVARIANT] = {"", " stroke-dasharray='7 4'",
+                                             " stroke-dasharray='2 3'",
+                                             " stroke-dasharray='9 3 2 3'"};
+
+/* A point's marker of variant v (circle, square, triangle, diamond). */
+static void marker(FILE *fp, double x, double y, const char *colour, size_t v)
+{
+    switch (v % NVARIANT) {
+    case 1:
+        fprintf(fp, "<rect x='%.2f' y='%.2f' width='7' height='7' fill='%s'/>\n", x - 3.5,
+                y - 3.5, colour);
+        break;
+    case 2:
+        fprintf(fp, "<polygon points='%.2f,%.2f %.2f,%.2f %.2f,%.2f' fill='%s'/>\n", x, y - 4.5,
+                x + 4.2, y + 3, x - 4.2, y + 3, colour);
+        break;
+    case 3:
+        fprintf(fp, "<polygon points='%.2f,%.2f %.2f,%.2f %.2f,%.2f %.2f,%.2f' fill='%s'/>\n", x,
+                y - 4.5, x + 4.5, y, x, y + 4.5, x - 4.5, y, colour);
+        break;
+    default:
+        fprintf(fp, "<circle cx='%.2f' cy='%.2f' r='3.5' fill='%s'/>\n", x, y, colour);
+    }
+}
 
 /* The default canvas, pixels: wide enough for a legend beside a 10-tick axis,
  * in proportion near the golden ratio (common practice, no source). */
@@ -256,11 +286,29 @@ static void draw_axes(FILE *fp, const frame *f, const lw_panel *p, bool bottom,
     }
 }
 
-static void draw_series(FILE *fp, const frame *f, const lw_series *s, const char *colour)
+/* A series' look: its colour, and its variant past the palette (auto_index
+ * the series' place among the chart's). */
+static const char *series_colour(const lw_series *s, size_t auto_index)
 {
+    return palette[(s->colour > 0 ? (size_t)(s->colour - 1) : auto_index) % NPAL];
+}
+
+static size_t series_variant(const lw_series *s, size_t auto_index)
+{
+    return s->colour > 0 ? 0 : (auto_index / NPAL) % NVARIANT;
+}
+
+static const char *series_dash(const lw_series *s, size_t auto_index)
+{
+    return s->dashed ? " stroke-dasharray='6 4'" : dashes[series_variant(s, auto_index)];
+}
+
+static void draw_series(FILE *fp, const frame *f, const lw_series *s, size_t auto_index)
+{
+    const char *colour = series_colour(s, auto_index);
     if (!s->points) {
         fprintf(fp, "<polyline fill='none' stroke='%s' stroke-width='2'%s points='", colour,
-                s->dashed ? " stroke-dasharray='6 4'" : "");
+                series_dash(s, auto_index));
         for (size_t k = 0; k < s->n; k++) {
             if (!isfinite(s->x[k]) || !isfinite(s->y[k]))
                 continue;
@@ -278,7 +326,7 @@ static void draw_series(FILE *fp, const frame *f, const lw_series *s, const char
         if ((f->xlog && s->x[k] <= 0) || (f->ylog && s->y[k] <= 0))
             continue;
         double x = px(f, s->x[k]), y = py(f, s->y[k]);
-        fprintf(fp, "<circle cx='%.2f' cy='%.2f' r='3.5' fill='%s'/>\n", x, y, colour);
+        marker(fp, x, y, colour, series_variant(s, auto_index));
         if (s->labels && s->labels[k] && hypot(x - lx, y - ly) > 28.0) {
             lx = x;
             ly = y;
@@ -287,11 +335,6 @@ static void draw_series(FILE *fp, const frame *f, const lw_series *s, const char
             fputs("</text>\n", fp);
         }
     }
-}
-
-static const char *series_colour(const lw_series *s, size_t auto_index)
-{
-    return palette[(s->colour > 0 ? (size_t)(s->colour - 1) : auto_index) % NPAL];
 }
 
 /* Data points of the panel inside a pixel box. */
@@ -345,13 +388,11 @@ static void draw_legend(FILE *fp, const frame *f, const lw_panel *p, size_t colo
             const char *c = series_colour(s, colour0 + i);
             name = s->name;
             if (s->points)
-                fprintf(fp, "<circle cx='%.1f' cy='%.1f' r='3.5' fill='%s'/>\n", lx + 16,
-                        yy - 4, c);
+                marker(fp, lx + 16, yy - 4, c, series_variant(s, colour0 + i));
             else
                 fprintf(fp, "<line x1='%.1f' y1='%.1f' x2='%.1f' y2='%.1f' stroke='%s' "
                             "stroke-width='2'%s/>\n",
-                        lx + 6, yy - 4, lx + 26, yy - 4, c,
-                        s->dashed ? " stroke-dasharray='6 4'" : "");
+                        lx + 6, yy - 4, lx + 26, yy - 4, c, series_dash(s, colour0 + i));
         } else {
             name = p->refs[i - p->nseries].label;
             fprintf(fp, "<line x1='%.1f' y1='%.1f' x2='%.1f' y2='%.1f' stroke='#b00020' "
@@ -415,7 +456,7 @@ static lw_status lw_plot_svg_in_c_locale(FILE *fp, const lw_chart *c, lw_error *
                         "stroke-width='1.5' stroke-dasharray='3 3'/>\n",
                     f.x0, py(&f, p->refs[k].y), f.x1, py(&f, p->refs[k].y));
         for (size_t k = 0; k < p->nseries; k++)
-            draw_series(fp, &f, &p->series[k], series_colour(&p->series[k], colour0 + k));
+            draw_series(fp, &f, &p->series[k], colour0 + k);
         for (size_t k = 0; k < c->nmarks; k++) {
             double x = px(&f, c->marks[k].x);
             fprintf(fp, "<line x1='%.1f' y1='%.1f' x2='%.1f' y2='%.1f' stroke='#555555' "
@@ -653,6 +694,9 @@ static lw_status lw_plot_led_fit_in_c_locale(FILE *fp, const double *i_a, const 
     return st;
 }
 
+/* The subtitle of a sweep chart: two keys and a sentence. */
+#define SUB_MAX 512
+
 static lw_status lw_plot_sweep_in_c_locale(const lw_profile *prof, const lw_sweep *sw, lw_chart *c,
                                            void **buf, lw_error *err)
 {
@@ -663,11 +707,11 @@ static lw_status lw_plot_sweep_in_c_locale(const lw_profile *prof, const lw_swee
     for (size_t k = 0; k < nk && group_k == nk; k++)
         if (k != label_k)
             group_k = k;
-    size_t ngroups = group_k < nk ? sw->vary[group_k].n : 1;
+    size_t ngroups = group_k < nk ? sw->vary[group_k].n : 1, all_groups = ngroups;
     if (ngroups > LW_PLOT_SERIES_MAX)
         ngroups = LW_PLOT_SERIES_MAX;
     /* one block: x and y of every point, their labels, and the subtitle */
-    size_t bytes = 2 * sw->n * sizeof(double) + sw->n * sizeof(const char *) + 256;
+    size_t bytes = 2 * sw->n * sizeof(double) + sw->n * sizeof(const char *) + SUB_MAX;
     char *block = lw_malloc(bytes);
     *buf = block;
     if (!block)
@@ -676,8 +720,13 @@ static lw_status lw_plot_sweep_in_c_locale(const lw_profile *prof, const lw_swee
     const char **labels = (const char **)(void *)(xy + 2 * sw->n);
     char *sub = (char *)(labels + sw->n);
     memset(c, 0, sizeof *c);
-    snprintf(sub, 256, "each point one full discharge; labels: %s",
-             nk ? sw->vary[label_k].key : "");
+    if (ngroups < all_groups) /* never a silent truncation */
+        snprintf(sub, SUB_MAX, "each point one full discharge; labels: %s; the first %zu of %zu "
+                 "values of %s shown: sweep fewer to see them all",
+                 nk ? sw->vary[label_k].key : "", ngroups, all_groups, sw->vary[group_k].key);
+    else
+        snprintf(sub, SUB_MAX, "each point one full discharge; labels: %s",
+                 nk ? sw->vary[label_k].key : "");
     c->title = prof->light.name;
     c->subtitle = sub;
     c->npanels = 1;
