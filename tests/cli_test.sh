@@ -204,7 +204,9 @@ expect 2 'refusing to write over it' "$LW" spread profiles/demo.ini --samples 10
 # colours the series change marker
 "$LW" sweep profiles/demo.ini --vary drive.resistor_ohm=22,33 --vary pack.ambient_c=-20..10:1 --plot "$TMP/many.svg" >/dev/null 2>&1
 if grep -q 'the first 16 of 31 values of pack.ambient_c shown' "$TMP/many.svg" &&
-    grep -q "width='7' height='7'" "$TMP/many.svg" && python3 "$(dirname "$0")/svgcheck.py" "$TMP/many.svg" >/dev/null 2>&1; then ok; else bad "sweep chart of 31 series"; fi
+    grep -q "width='7' height='7'" "$TMP/many.svg" &&
+    grep -q "font-weight='bold'>ambient temperature (°C)<" "$TMP/many.svg" &&
+    grep -q '^<title>Hut shelf lantern (demo)</title>' "$TMP/many.svg" && grep -q '^<desc>' "$TMP/many.svg" && python3 "$(dirname "$0")/svgcheck.py" "$TMP/many.svg" >/dev/null 2>&1; then ok; else bad "sweep chart of 31 series"; fi
 
 # corners: an ambient range in run and table
 expect 0 '^cold +-10 ' "$LW" run profiles/demo.ini --set pack.ambient_c=-10..40

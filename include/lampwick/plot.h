@@ -59,6 +59,8 @@ typedef struct lw_panel {
     lw_refline refs[LW_PLOT_REFS_MAX];
     size_t nrefs;
     double height_share;  /* relative height, default 1 */
+    const char *legend_title; /* what the series' names are, with the unit in words
+                                 ("ambient temperature (°C)"); NULL: none */
 } lw_panel;
 
 /* A vertical mark across every panel at x (e.g. a mode switch), labelled

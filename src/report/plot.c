@@ -359,13 +359,14 @@ static void draw_legend(FILE *fp, const frame *f, const lw_panel *p, size_t colo
     size_t items = p->nseries + p->nrefs;
     if (items == 0)
         return;
-    double w = 0;
+    double w = p->legend_title ? 7.0 * (double)strlen(p->legend_title) - 32.0 : 0;
     for (size_t i = 0; i < p->nseries; i++)
         w = fmax(w, 7.0 * (double)strlen(p->series[i].name ? p->series[i].name : ""));
     for (size_t i = 0; i < p->nrefs; i++)
         w = fmax(w, 7.0 * (double)strlen(p->refs[i].label ? p->refs[i].label : ""));
     w += 40;
-    double h = 18.0 * (double)items + 6;
+    const double head = p->legend_title ? 18.0 : 0.0;
+    double h = 18.0 * (double)items + 6 + head;
     const double cx[4] = {f->x1 - 10 - w, f->x0 + 10, f->x1 - 10 - w, f->x0 + 10};
     const double cy[4] = {f->y0 + 4, f->y0 + 4, f->y1 - 4 - h, f->y1 - 4 - h};
     size_t best = 0, least = (size_t)-1;
@@ -380,8 +381,13 @@ static void draw_legend(FILE *fp, const frame *f, const lw_panel *p, size_t colo
     fprintf(fp, "<rect x='%.1f' y='%.1f' width='%.1f' height='%.1f' fill='#ffffff' "
                 "fill-opacity='0.85' stroke='#bbb'/>\n",
             lx, cy[best], w, h);
+    if (p->legend_title) {
+        fprintf(fp, "<text x='%.1f' y='%.1f' class='leg' font-weight='bold'>", lx + 6, y);
+        xml_text(fp, p->legend_title);
+        fputs("</text>\n", fp);
+    }
     for (size_t i = 0; i < items; i++) {
-        double yy = y + 18.0 * (double)i;
+        double yy = y + head + 18.0 * (double)i;
         const char *name;
         if (i < p->nseries) {
             const lw_series *s = &p->series[i];
@@ -418,6 +424,18 @@ static lw_status lw_plot_svg_in_c_locale(FILE *fp, const lw_chart *c, lw_error *
                 ".title{font-size:16px;font-weight:bold}.sub{font-size:12px;fill:#555}</style>\n"
                 "<rect width='100%%' height='100%%' fill='#fafaf7'/>\n",
             W, H, W, H);
+    /* the chart's name and what it shows, for screen readers and indexes */
+    fputs("<title>", fp);
+    xml_text(fp, c->title ? c->title : "lampwick chart");
+    fputs("</title>\n<desc>", fp);
+    xml_text(fp, c->subtitle ? c->subtitle : "");
+    for (size_t k = 0; k < c->npanels; k++) {
+        fputs(k ? "; " : (c->subtitle ? ". " : ""), fp);
+        xml_text(fp, c->panels[k].y.label ? c->panels[k].y.label : "");
+    }
+    fputs(" against ", fp);
+    xml_text(fp, c->x.label ? c->x.label : "");
+    fputs("</desc>\n", fp);
     if (c->title) {
         fprintf(fp, "<text x='%.1f' y='26' class='title'>", left);
         xml_text(fp, c->title);
@@ -694,8 +712,48 @@ static lw_status lw_plot_led_fit_in_c_locale(FILE *fp, const double *i_a, const 
     return st;
 }
 
+/* A profile key in words with its unit, for a legend: the first clause of
+ * its help and the unit its name ends in ("pack.ambient_c": "ambient
+ * temperature (°C)"); the key itself when the schema does not know it. */
+static void key_in_words(const char *dotted, char *out, size_t size)
+{
+    static const struct {
+        const char *suffix, *unit;
+    } units[] = {{"_k_w", "K/W"}, {"_j_k", "J/K"}, {"_mv_k", "mV/K"}, {"_pct_k", "%/K"},
+                 {"_ohm", "Ω"},   {"_pct", "%"},   {"_ma", "mA"},     {"_ua", "µA"},
+                 {"_lm", "lm"},   {"_c", "°C"},    {"_v", "V"},       {"_w", "W"},
+                 {"_h", "h"},     {"_s", "s"},     {"_months", "months"}};
+    char sec[64];
+    const char *dot = strchr(dotted, '.');
+    const lw_keydef *d = NULL;
+    if (dot && (size_t)(dot - dotted) < sizeof sec) {
+        memcpy(sec, dotted, (size_t)(dot - dotted));
+        sec[dot - dotted] = '\0';
+        d = lw_key_find(lw_profile_keys, lw_profile_nkeys, sec, dot + 1);
+    }
+    if (!d) {
+        snprintf(out, size, "%s", dotted);
+        return;
+    }
+    size_t n = strcspn(d->help, ",;(:");
+    while (n > 0 && d->help[n - 1] == ' ')
+        n--;
+    const char *unit = NULL;
+    size_t len = strlen(d->name);
+    for (size_t i = 0; i < sizeof units / sizeof units[0] && !unit; i++) {
+        size_t ls = strlen(units[i].suffix);
+        if (len > ls && !strcmp(d->name + len - ls, units[i].suffix))
+            unit = units[i].unit;
+    }
+    if (unit)
+        snprintf(out, size, "%.*s (%s)", (int)n, d->help, unit);
+    else
+        snprintf(out, size, "%.*s", (int)n, d->help);
+}
+
 /* The subtitle of a sweep chart: two keys and a sentence. */
 #define SUB_MAX 512
+#define LEGEND_MAX 160
 
 static lw_status lw_plot_sweep_in_c_locale(const lw_profile *prof, const lw_sweep *sw, lw_chart *c,
                                            void **buf, lw_error *err)
@@ -711,7 +769,8 @@ static lw_status lw_plot_sweep_in_c_locale(const lw_profile *prof, const lw_swee
     if (ngroups > LW_PLOT_SERIES_MAX)
         ngroups = LW_PLOT_SERIES_MAX;
     /* one block: x and y of every point, their labels, and the subtitle */
-    size_t bytes = 2 * sw->n * sizeof(double) + sw->n * sizeof(const char *) + SUB_MAX;
+    size_t bytes =
+        2 * sw->n * sizeof(double) + sw->n * sizeof(const char *) + SUB_MAX + LEGEND_MAX;
     char *block = lw_malloc(bytes);
     *buf = block;
     if (!block)
@@ -731,6 +790,10 @@ static lw_status lw_plot_sweep_in_c_locale(const lw_profile *prof, const lw_swee
     c->subtitle = sub;
     c->npanels = 1;
     lw_panel *p = &c->panels[0];
+    if (group_k < nk) {
+        key_in_words(sw->vary[group_k].key, sub + SUB_MAX, LEGEND_MAX);
+        p->legend_title = sub + SUB_MAX;
+    }
     double xmin = INFINITY, xmax = 0, ymin = INFINITY, ymax = 0;
     size_t used = 0;
     for (size_t g = 0; g < ngroups; g++) {
