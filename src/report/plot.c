@@ -202,6 +202,17 @@ static void data_range(const lw_axis *ax, const lw_series *s, size_t ns, bool wa
         a = ax->log ? 1 : 0;
         b = ax->log ? 10 : 1;
     }
+    /* headroom: no point or label sits on the frame (4 % of the span, a
+     * judgement; an axis starting at zero keeps its zero) */
+    if (ax->log && b > a) {
+        double d = 0.04 * (log10(b) - log10(a));
+        a /= pow(10.0, d);
+        b *= pow(10.0, d);
+    } else if (b > a) {
+        double d = 0.04 * (b - a);
+        a = ax->from_zero && a >= 0.0 ? a : a - d;
+        b += d;
+    }
     if (ax->from_zero && !ax->log)
         a = fmin(a, 0.0);
     if (ax->log) {
