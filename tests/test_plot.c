@@ -199,7 +199,7 @@ static void every_chart_is_a_valid_svg_document(void **state)
         size_t len;
         char *svg = slurp(path, &len);
         /* a light with a heat path gets its temperature panel, the others not */
-        assert_int_equal(strstr(svg, "temperature (C)") != NULL, p.light.thermal.enabled);
+        assert_int_equal(strstr(svg, "temperature (°C)") != NULL, p.light.thermal.enabled);
         free(svg);
         lw_trace_clear(&tr);
         lw_run_result_clear(&r);

@@ -533,13 +533,14 @@ static lw_status lw_plot_run_in_c_locale(FILE *fp, const char *title, const lw_l
         tb[i] = trace->rows[i].pt.temps.board_c;
         th[i] = trace->rows[i].pt.temps.body_c;
     }
-    char sub[256], cut[64];
+    char sub[640], cut[64], warn[384];
     char runtime[64];
     lw_report_hours(res->runtime_h, runtime, sizeof runtime);
-    snprintf(sub, sizeof sub, "%d x %s, %s drive; runtime to cutoff %s (%s)",
+    lw_report_warnings(res->warnings, warn, sizeof warn);
+    snprintf(sub, sizeof sub, "%d x %s, %s drive; runtime to cutoff %s (%s)%s%s",
              light->pack.series * light->pack.parallel, light->pack.cell.name,
              lw_drive_type_names[light->drive.type], runtime,
-             lw_run_end_names[res->end_reason]);
+             lw_run_end_names[res->end_reason], warn[0] ? "; warnings: " : "", warn);
     snprintf(cut, sizeof cut, "cutoff %g %%", light->cutoff.relative_pct);
     lw_chart c = {0};
     c.title = title;
@@ -560,6 +561,31 @@ static lw_status lw_plot_run_in_c_locale(FILE *fp, const char *title, const lw_l
     p->y2_label = "light output (lm)";
     p->y2_scale = res->flux_ref_lm / 100.0;
     p->series[p->nseries++] = (lw_series){.name = "light output", .x = t, .y = pct, .n = n};
+    /* the points a specification quotes: 30 s, half, the end */
+    double key_t[3], key_pct[3];
+    char key_lab[3][80];
+    const char *key_labels[3];
+    size_t nkey = 0;
+    const double ref = res->flux_ref_lm > 0 ? res->flux_ref_lm : NAN;
+    key_t[nkey] = 30.0 / 3600.0, key_pct[nkey] = 100.0 * res->flux_30s_lm / ref;
+    snprintf(key_lab[nkey], sizeof key_lab[0], "30 s: %.3g lm", res->flux_30s_lm);
+    nkey++;
+    if (isfinite(res->time_to_half_h)) {
+        char h[32];
+        lw_report_hours(res->time_to_half_h, h, sizeof h);
+        key_t[nkey] = res->time_to_half_h, key_pct[nkey] = 50.0;
+        snprintf(key_lab[nkey], sizeof key_lab[0], "half: %s", h);
+        nkey++;
+    }
+    key_t[nkey] = res->runtime_h, key_pct[nkey] = 100.0 * res->final.flux_lm / ref;
+    snprintf(key_lab[nkey], sizeof key_lab[0], "end: %s", runtime);
+    nkey++;
+    for (size_t k = 0; k < nkey; k++)
+        key_labels[k] = key_lab[k];
+    if (isfinite(ref) && res->runtime_h > 0)
+        p->series[p->nseries++] = (lw_series){.name = "30 s, half, end", .x = key_t,
+                                              .y = key_pct, .n = nkey, .points = true,
+                                              .labels = key_labels, .colour = 8};
     p->refs[p->nrefs++] = (lw_refline){light->cutoff.relative_pct, cut};
     p->height_share = 1.4;
     p = &c.panels[1];
@@ -575,15 +601,15 @@ static lw_status lw_plot_run_in_c_locale(FILE *fp, const char *title, const lw_l
     if (light->thermal.enabled) {
         /* the heat path: junction, board and body, with the limits given */
         p = &c.panels[c.npanels++];
-        p->y = (lw_axis){.label = "temperature (C)"};
+        p->y = (lw_axis){.label = "temperature (°C)"};
         p->series[p->nseries++] = (lw_series){.name = "LED junction", .x = t, .y = tj, .n = n};
         p->series[p->nseries++] =
             (lw_series){.name = "board", .x = t, .y = tb, .n = n, .dashed = true};
         p->series[p->nseries++] = (lw_series){.name = "body", .x = t, .y = th, .n = n};
-        snprintf(touch, sizeof touch, "touch limit %g C", light->thermal.max_touch_c);
+        snprintf(touch, sizeof touch, "touch limit %g °C", light->thermal.max_touch_c);
         p->refs[p->nrefs++] = (lw_refline){light->thermal.max_touch_c, touch};
         if (isfinite(light->led.max_junction_c)) {
-            snprintf(jmax, sizeof jmax, "junction max %g C", light->led.max_junction_c);
+            snprintf(jmax, sizeof jmax, "junction max %g °C", light->led.max_junction_c);
             p->refs[p->nrefs++] = (lw_refline){light->led.max_junction_c, jmax};
         }
         p->height_share = 1.0;
