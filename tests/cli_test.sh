@@ -119,6 +119,7 @@ expect 1 'never-lit' "$LW" run "$TMP/p/light.ini" --set pack.series=2 --format c
 n=$("$LW" sweep profiles/demo.ini --vary drive.resistor_ohm=E24:10..1k --format csv --plot "$TMP/sweep.svg" | tail -n +2 | wc -l)
 if [ "$n" -eq 49 ]; then ok; else bad "sweep E24:10..1k gave $n rows"; fi
 if grep -q '</svg>' "$TMP/sweep.svg"; then ok; else bad "sweep plot"; fi
+if python3 "$(dirname "$0")/svgcheck.py" "$TMP/sweep.svg" >/dev/null 2>&1; then ok; else bad "svgcheck sweep.svg: $(python3 "$(dirname "$0")/svgcheck.py" "$TMP/sweep.svg")"; fi
 expect 0 '^drive.resistor_ohm,pack.cell,runtime_h,end_reason' "$LW" sweep profiles/demo.ini --vary drive.resistor_ohm=22,33 --vary pack.cell=LR6-alkaline,HR6-nimh --format csv
 expect 2 "VALUES may be a list .*E24:10..1k" "$LW" sweep profiles/demo.ini --vary drive.resistor_ohm=10...
 expect 2 "did you mean 'drive.resistor_ohm'" "$LW" sweep profiles/demo.ini --vary drive.resistr_ohm=1,2

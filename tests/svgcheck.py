@@ -4,7 +4,8 @@
 # is <svg> in the SVG namespace with a width, height and viewBox, and every
 # data mark (polyline vertex, circle centre) inside a plot area (a nested
 # <svg x y width height>) lies within that area, and there are at least MIN
-# such marks (default 0).  Exit 0 when all hold,
+# such marks (default 0), and no two point labels in an area overlap.
+# Exit 0 when all hold,
 # else print what failed and exit 1.
 import sys
 import xml.dom.minidom as minidom
@@ -37,5 +38,18 @@ for area in root.getElementsByTagName("svg"):
         marks += 1
         if not inside(px, py):
             fail(f"marker at {px},{py} outside the plot area {x},{y} {w}x{h}")
+    # point labels inside the area: none over another (boxes at 6 px a
+    # character and 12 px tall, the writer's own estimate of 10-px text)
+    boxes = []
+    for t in area.getElementsByTagName("text"):
+        if t.getAttribute("class") != "pt" or not t.firstChild:
+            continue
+        tx, ty = float(t.getAttribute("x")), float(t.getAttribute("y"))
+        text = t.firstChild.data
+        box = (tx, ty - 10, tx + 6 * len(text), ty + 2)
+        for o in boxes:
+            if box[0] < o[0][2] - 0.5 and box[2] > o[0][0] + 0.5 and box[1] < o[0][3] - 0.5 and box[3] > o[0][1] + 0.5:
+                fail(f"point labels '{text}' and '{o[1]}' overlap")
+        boxes.append((box, text))
 if len(sys.argv) > 2 and marks < int(sys.argv[2]):
     fail(f"{marks} data marks, expected at least {sys.argv[2]}")

@@ -157,12 +157,32 @@ static void xml_text(FILE *fp, const char *s)
     }
 }
 
+#define LABELS_MAX 256
 typedef struct frame {
     double x0, x1, y0, y1;      /* pixel box: x0 left, y0 top */
     double lo, hi;              /* x data range */
     double ylo, yhi;            /* y data range */
     bool xlog, ylog;
+    /* the point labels placed so far in this panel (left, top, right, bottom),
+     * so that no label is drawn over another of any series */
+    double lab[LABELS_MAX][4];
+    size_t nlab;
 } frame;
+
+/* Place a label box if it overlaps none placed before and stays inside the
+ * panel; false: leave this label out (the point still shows). */
+static bool place_label(frame *f, double l, double t, double r, double b)
+{
+    if (l < f->x0 || r > f->x1 || t < f->y0 || b > f->y1 || f->nlab == LABELS_MAX)
+        return false;
+    for (size_t i = 0; i < f->nlab; i++)
+        if (l < f->lab[i][2] && r > f->lab[i][0] && t < f->lab[i][3] && b > f->lab[i][1])
+            return false;
+    f->lab[f->nlab][0] = l, f->lab[f->nlab][1] = t, f->lab[f->nlab][2] = r;
+    f->lab[f->nlab][3] = b;
+    f->nlab++;
+    return true;
+}
 
 static double map(double v, double lo, double hi, bool lg, double p0, double p1)
 {
@@ -314,7 +334,7 @@ static const char *series_dash(const lw_series *s, size_t auto_index)
     return s->dashed ? " stroke-dasharray='6 4'" : dashes[series_variant(s, auto_index)];
 }
 
-static void draw_series(FILE *fp, const frame *f, const lw_series *s, size_t auto_index)
+static void draw_series(FILE *fp, frame *f, const lw_series *s, size_t auto_index)
 {
     const char *colour = series_colour(s, auto_index);
     if (!s->points) {
@@ -330,7 +350,6 @@ static void draw_series(FILE *fp, const frame *f, const lw_series *s, size_t aut
         fputs("'/>\n", fp);
         return;
     }
-    double lx = -1e9, ly = -1e9; /* last label: thin labels that would overlap */
     for (size_t k = 0; k < s->n; k++) {
         if (!isfinite(s->x[k]) || !isfinite(s->y[k]))
             continue;
@@ -338,10 +357,13 @@ static void draw_series(FILE *fp, const frame *f, const lw_series *s, size_t aut
             continue;
         double x = px(f, s->x[k]), y = py(f, s->y[k]);
         marker(fp, x, y, colour, series_variant(s, auto_index));
-        if (s->labels && s->labels[k] && hypot(x - lx, y - ly) > 28.0) {
-            lx = x;
-            ly = y;
-            fprintf(fp, "<text x='%.2f' y='%.2f' class='pt'>", x + 5, y - 5);
+        /* the label right of the point, or left of it near the right edge;
+         * left out where it would cover another (thinned, never overlapped) */
+        double w = 6.0 * (double)(s->labels && s->labels[k] ? strlen(s->labels[k]) : 0);
+        bool left = x + 5 + w > f->x1;
+        double tx = left ? x - 5 - w : x + 5;
+        if (s->labels && s->labels[k] && place_label(f, tx, y - 15, tx + w, y - 3)) {
+            fprintf(fp, "<text x='%.2f' y='%.2f' class='pt'>", tx, y - 5);
             xml_text(fp, s->labels[k]);
             fputs("</text>\n", fp);
         }
@@ -365,11 +387,13 @@ static size_t points_in(const frame *f, const lw_panel *p, double x0, double y0,
 }
 
 /* The legend goes in the corner of the panel that hides the fewest points. */
-static void draw_legend(FILE *fp, const frame *f, const lw_panel *p, size_t colour0)
+/* The legend's box (left, top, width, height) in the corner of the panel
+ * with the fewest data points; false: no legend. */
+static bool legend_box(const frame *f, const lw_panel *p, double box[4])
 {
     size_t items = p->nseries + p->nrefs;
     if (items == 0)
-        return;
+        return false;
     double w = p->legend_title ? 7.0 * (double)strlen(p->legend_title) - 32.0 : 0;
     for (size_t i = 0; i < p->nseries; i++)
         w = fmax(w, 7.0 * (double)strlen(p->series[i].name ? p->series[i].name : ""));
@@ -388,10 +412,21 @@ static void draw_legend(FILE *fp, const frame *f, const lw_panel *p, size_t colo
             best = c;
         }
     }
-    double lx = cx[best], y = cy[best] + 12;
+    box[0] = cx[best], box[1] = cy[best], box[2] = w, box[3] = h;
+    return true;
+}
+
+static void draw_legend(FILE *fp, const frame *f, const lw_panel *p, size_t colour0)
+{
+    double box[4];
+    if (!legend_box(f, p, box))
+        return;
+    size_t items = p->nseries + p->nrefs;
+    const double head = p->legend_title ? 18.0 : 0.0;
+    double lx = box[0], y = box[1] + 12;
     fprintf(fp, "<rect x='%.1f' y='%.1f' width='%.1f' height='%.1f' fill='#ffffff' "
                 "fill-opacity='0.85' stroke='#bbb'/>\n",
-            lx, cy[best], w, h);
+            lx, box[1], box[2], box[3]);
     if (p->legend_title) {
         fprintf(fp, "<text x='%.1f' y='%.1f' class='leg' font-weight='bold'>", lx + 6, y);
         xml_text(fp, p->legend_title);
@@ -474,7 +509,8 @@ static lw_status lw_plot_svg_in_c_locale(FILE *fp, const lw_chart *c, lw_error *
     for (size_t i = 0; i < c->npanels; i++) {
         const lw_panel *p = &c->panels[i];
         double h = avail * (p->height_share > 0 ? p->height_share : 1.0) / share;
-        frame f = {left, W - right, y, y + h, xlo, xhi, 0, 1, c->x.log, p->y.log};
+        frame f = {.x0 = left, .x1 = W - right, .y0 = y, .y1 = y + h, .lo = xlo, .hi = xhi,
+                   .ylo = 0, .yhi = 1, .xlog = c->x.log, .ylog = p->y.log, .nlab = 0};
         data_range(&p->y, p->series, p->nseries, false, p->refs, p->nrefs, &f.ylo, &f.yhi);
         draw_axes(fp, &f, p, i + 1 == c->npanels, &c->x);
         fprintf(fp, "<svg x='%.1f' y='%.1f' width='%.1f' height='%.1f' overflow='hidden'>"
@@ -484,6 +520,12 @@ static lw_status lw_plot_svg_in_c_locale(FILE *fp, const lw_chart *c, lw_error *
             fprintf(fp, "<line x1='%.1f' y1='%.1f' x2='%.1f' y2='%.1f' stroke='#b00020' "
                         "stroke-width='1.5' stroke-dasharray='3 3'/>\n",
                     f.x0, py(&f, p->refs[k].y), f.x1, py(&f, p->refs[k].y));
+        double lb[4]; /* the legend's box first: no point label goes under it */
+        if (legend_box(&f, p, lb) && f.nlab < LABELS_MAX) {
+            f.lab[0][0] = lb[0], f.lab[0][1] = lb[1], f.lab[0][2] = lb[0] + lb[2];
+            f.lab[0][3] = lb[1] + lb[3];
+            f.nlab = 1;
+        }
         for (size_t k = 0; k < p->nseries; k++)
             draw_series(fp, &f, &p->series[k], colour0 + k);
         for (size_t k = 0; k < c->nmarks; k++) {
