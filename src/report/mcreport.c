@@ -44,6 +44,20 @@ static lw_rtable *table_with(const char *const *head, size_t n, const char *titl
     return t;
 }
 
+/* order[0..n) the indices of size[] largest first, ties in index order
+ * (an insertion sort: at most LW_MC_KEYS_MAX keys). */
+static void by_size(const double *size, size_t n, size_t *order)
+{
+    for (size_t k = 0; k < n; k++) {
+        size_t j = k;
+        while (j > 0 && size[order[j - 1]] < size[k]) {
+            order[j] = order[j - 1];
+            j--;
+        }
+        order[j] = k;
+    }
+}
+
 /* A new row of t for quantity q, its name in column 0. */
 static lw_status quantity_row(lw_rtable *t, int q, size_t *row, lw_error *err)
 {
@@ -261,14 +275,10 @@ static lw_status ranking_table(FILE *fp, const lw_mc_study *s, lw_mc_quantity q,
     lw_rtable *t = table_with(head, 4, title, err);
     lw_status st = t ? LW_OK : LW_ENOMEM;
     size_t order[LW_MC_KEYS_MAX];
-    for (size_t k = 0; k < s->nkeys; k++) {
-        size_t j = k;
-        while (j > 0 && fabs(beta[order[j - 1]]) < fabs(beta[k])) {
-            order[j] = order[j - 1];
-            j--;
-        }
-        order[j] = k;
-    }
+    double size[LW_MC_KEYS_MAX];
+    for (size_t k = 0; k < s->nkeys; k++)
+        size[k] = fabs(beta[k]);
+    by_size(size, s->nkeys, order);
     for (size_t i = 0; i < s->nkeys && st == LW_OK; i++) {
         size_t k = order[i], row;
         st = lw_rtable_add_row(t, &row, err);
@@ -476,15 +486,10 @@ lw_status lw_plot_mc_ranking(FILE *fp, const lw_mc_study *s, lw_error *err)
     }
     /* keys by their larger effect on either quantity */
     size_t order[LW_MC_KEYS_MAX] = {0};
-    for (size_t k = 0; k < s->nkeys; k++) {
-        double mk = fmax(fabs(beta[0][k]), fabs(beta[1][k]));
-        size_t j = k;
-        while (j > 0 && fmax(fabs(beta[0][order[j - 1]]), fabs(beta[1][order[j - 1]])) < mk) {
-            order[j] = order[j - 1];
-            j--;
-        }
-        order[j] = k;
-    }
+    double size[LW_MC_KEYS_MAX];
+    for (size_t k = 0; k < s->nkeys; k++)
+        size[k] = fmax(fabs(beta[0][k]), fabs(beta[1][k]));
+    by_size(size, s->nkeys, order);
     const double left = 230, bar_w = 260, gap = 40, top = 80, row_h = 34;
     const double width = left + 2 * (2 * bar_w + gap) - gap + 30;
     const double height = top + row_h * (double)s->nkeys + 60;

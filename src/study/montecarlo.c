@@ -263,8 +263,6 @@ static void run_unit(size_t i, void *vctx)
     lw_mc_result *r = j->out;
     if (i > atomic_load(&j->stop))
         return;
-    lw_rng rng;
-    lw_rng_seed(&rng, j->seed, i);
     double u[LW_MC_KEYS_MAX];
     if (j->sobol) {
         lw_sobol_point(&j->sb, (uint32_t)i, (int)j->nkeys, u);
@@ -274,6 +272,8 @@ static void run_unit(size_t i, void *vctx)
             u[k] = u[k] > 0.0 ? u[k] : 0x1.0p-54; /* the open interval */
         }
     } else {
+        lw_rng rng;
+        lw_rng_seed(&rng, j->seed, i);
         for (size_t k = 0; k < j->nkeys; k++)
             u[k] = lw_rng_uniform(&rng);
     }
