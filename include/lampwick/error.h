@@ -75,4 +75,10 @@ lw_status lw_error_vset(lw_error *err, lw_status code, const char *file, int lin
  * of an input can steer the terminal it is printed on. */
 void lw_error_format(const lw_error *err, char *buf, size_t size);
 
+/* The process exit status for a status, as the command line uses it: 0
+ * for LW_OK; 1 where a valid input has no answer here (no answer, no
+ * convergence, out of memory); 2 for bad input or output that could not be
+ * written. */
+int lw_status_exit_code(lw_status st);
+
 #endif

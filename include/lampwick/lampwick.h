@@ -52,12 +52,15 @@
  *   cellfit.h    cell models from discharge logs
  *   montecarlo.h the spread over the units shipped: samples, percentiles, yield, ranking
  * 5 report - what people and documents read
- *   rtable.h     tables in text, CSV and Markdown
+ *   rtable.h     tables in text, CSV, Markdown and JSON
  *   report.h     the run report, hours, warnings, cautions
  *   pickreport.h, sizereport.h, specreport.h, sweepreport.h, fitreport.h,
  *                mcreport.h
  *                the tables of each study
  *   plot.h       standalone SVG charts
+ *   jsondoc.h    a command's tables as one JSON document
+ *   htmlreport.h the design review in one HTML file
+ *   api.h        whole answers as JSON text, for other languages
  *
  * Conventions: SI units inside (V, A, ohm, h, Ah, W, lm, deg C), the unit in
  * every name; functions that can fail take `lw_error *err` last and return an
@@ -124,5 +127,7 @@
 #include "fitreport.h"
 #include "mcreport.h"
 #include "plot.h"
+#include "jsondoc.h"
+#include "api.h"
 
 #endif

@@ -131,6 +131,14 @@ LW_MUST_CHECK lw_status lw_profile_variant_arg(lw_profile_variant *v, const char
 LW_MUST_CHECK lw_status lw_profile_derive(const lw_profile *base, const lw_profile_variant *v,
                             const char *origin, lw_profile *out, lw_error *err);
 
+/* Load the profile at path and derive the variant of a mode (NULL: none)
+ * and "section.key=value" overrides, as `lampwick run --mode --set` does;
+ * messages about an override name "--set KEY".  Free *prof with
+ * lw_profile_clear, also after a failure. */
+LW_MUST_CHECK lw_status lw_profile_load_variant(const char *path, const lw_search *search,
+                                                const char *mode, const char *const *sets,
+                                                size_t nsets, lw_profile *prof, lw_error *err);
+
 /* Apply the overrides of [mode NAME]; unknown names list the known modes. */
 LW_MUST_CHECK lw_status lw_profile_apply_mode(lw_profile *prof, const char *name, lw_error *err);
 

@@ -34,6 +34,12 @@ LW_MUST_CHECK lw_status lw_report_run_row(lw_rtable *t, size_t row, size_t first
 LW_MUST_CHECK lw_status lw_report_run(FILE *fp, lw_rtable_format fmt, const lw_profile *prof,
                                       const lw_result *res, lw_error *err);
 
+/* What `lampwick run` prints: lw_report_run, then, unless CSV (one row)
+ * or the light never lit, its corner table (lw_corner_compute). */
+LW_MUST_CHECK lw_status lw_report_run_with_corners(FILE *fp, lw_rtable_format fmt,
+                                                   const lw_profile *prof, const lw_result *res,
+                                                   lw_error *err);
+
 /* The corner table of a light (corner.h): per corner its ambient, LED
  * current, output, resistor power, and for the nominal and cold corners the
  * runtime and the output 30 s after switch-on.  `title` may be NULL. */

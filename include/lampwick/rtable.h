@@ -3,8 +3,9 @@
  *
  * Owns: lw_rtable, a table of text cells with a header, optional column
  * groups, notes and a title, rendered as aligned text (numbers right-
- * aligned), RFC 4180 CSV through csvio (numbers in full precision), or a
- * Markdown table; and lw_rtable_format, the choice among the three.
+ * aligned), RFC 4180 CSV through csvio (numbers in full precision), a
+ * Markdown table, or one JSON object (numbers in full precision, see
+ * jsondoc.h); and lw_rtable_format, the choice among the four.
  */
 #ifndef LW_RTABLE_H
 #define LW_RTABLE_H
@@ -19,9 +20,12 @@
 #include <stdio.h>
 #include "error.h"
 
-typedef enum lw_rtable_format { LW_FMT_TEXT, LW_FMT_CSV, LW_FMT_MD } lw_rtable_format;
+/* JSON: lw_rtable_write writes each table as one JSON object on one line
+ * (title, columns, rows as objects keyed by the CSV column names, notes);
+ * lw_jdoc (jsondoc.h) gathers a command's tables into one document. */
+typedef enum lw_rtable_format { LW_FMT_TEXT, LW_FMT_CSV, LW_FMT_MD, LW_FMT_JSON } lw_rtable_format;
 
-/* Parse "text", "csv" or "md"; false if none. */
+/* Parse "text", "csv", "md" or "json"; false if none. */
 bool lw_rtable_format_parse(const char *s, lw_rtable_format *fmt);
 
 typedef struct lw_rtable {
@@ -83,7 +87,8 @@ LW_MUST_CHECK lw_status lw_rtable_add_packed(lw_rtable *t, const char *packed, s
 /* Row `row` of t rendered alone into *out (allocated; free() it), *len
  * bytes: a CSV record with CRLF (full precision), a Markdown table row with
  * its newline, or for text the cells laid end to end NUL-terminated, as
- * lw_rtable_add_packed takes them. */
+ * lw_rtable_add_packed takes them (for JSON the same, of the full-precision
+ * texts: a JSON table is written whole, by lw_rtable_write). */
 LW_MUST_CHECK lw_status lw_rtable_render_row(const lw_rtable *t, size_t row,
                                              lw_rtable_format fmt, char **out, size_t *len,
                                              lw_error *err);

@@ -1,7 +1,7 @@
 /*
  * search.h - the cell search path: the folders a cell name is looked up in
- * (the profile's folder first, then LAMPWICK_CELLS, the installed cells,
- * the source tree's cells; docs/formats.md).
+ * (the profile's folder first, then LAMPWICK_CELLS, the user's cells, the
+ * installed cells, the source tree's cells; docs/formats.md).
  */
 #ifndef LW_SEARCH_H
 #define LW_SEARCH_H
@@ -25,5 +25,11 @@ typedef struct lw_search {
 void lw_search_add(lw_search *s, const char *dir);
 /* Append each folder of a colon-separated list. */
 void lw_search_add_list(lw_search *s, const char *list);
+
+/* The search path of an installed lampwick, in order: the folders of
+ * $LAMPWICK_CELLS, the user's cells ($XDG_DATA_HOME/lampwick/cells, by
+ * default ~/.local/share/lampwick/cells: the XDG Base Directory
+ * Specification), the installed cells.  Clears s first. */
+void lw_search_default(lw_search *s);
 
 #endif

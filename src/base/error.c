@@ -67,3 +67,17 @@ void lw_error_format(const lw_error *err, char *buf, size_t size)
     lw_text_escape(buf, size, raw);
 }
 
+
+int lw_status_exit_code(lw_status st)
+{
+    switch (st) {
+    case LW_OK:
+        return 0;
+    case LW_ENOANSWER:
+    case LW_ENUMERIC:
+    case LW_ENOMEM: /* the run could not be done here: not the input's fault */
+        return 1;
+    default:
+        return 2;
+    }
+}

@@ -51,7 +51,9 @@ typedef struct cli_option {
 /* The options several commands share, as table rows. */
 #define CLI_OPT_SET {"set", "SECTION.KEY=VALUE", OPT_SET, "override a profile value (repeatable)"}
 #define CLI_OPT_MODE {"mode", "NAME", OPT_MODE, "apply the overrides of [mode NAME]"}
-#define CLI_OPT_FORMAT {"format", "text|csv|md", OPT_FORMAT, "output format (default text)"}
+#define CLI_OPT_FORMAT                                                                          \
+    {"format", "text|csv|md|json", OPT_FORMAT,                                                 \
+     "output format (default text; json: one document,\ndocs/json.md)"}
 #define CLI_OPT_THREADS                                                                         \
     {"threads", "N", OPT_THREADS, "worker threads (default: the cores this process may use)"}
 #define CLI_OPT_USE                                                                             \
@@ -105,11 +107,24 @@ typedef struct common_opts {
     lw_rtable_format fmt;
     int threads;
     char use_sets[2][LW_PATH_MAX + 32]; /* --use as --set values */
+    /* where the command writes its results (cli_out_open): standard output,
+     * or for --format json a buffer of the tables, one JSON object a line,
+     * that cli_out_close prints as one document */
+    FILE *out;
+    char *json;
+    size_t json_len;
 } common_opts;
 
 /* Handle --set, --mode, --format, --threads, --use; returns 1 when the option is
  * not one of them, 0 when handled, or an exit code. */
 int common_option(const char *cmd, common_opts *o, int id, const char *arg);
+
+/* Open o->out for the command's results; 0, or an exit code. */
+int cli_out_open(const char *cmd, common_opts *o);
+/* Close o->out; for JSON print the document of the tables written (when
+ * the command gave an answer: code 0, or 1 with results written) on
+ * standard output.  Returns code, or an exit code of its own failure. */
+int cli_out_close(common_opts *o, const char *cmd, const char *input, int code);
 
 int exit_code(lw_status st);
 /* Print "lampwick: file:line: message" and return the exit code. */

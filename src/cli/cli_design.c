@@ -45,8 +45,8 @@ const cli_option cli_sweep_options[] = {
     {"vary", "KEY=VALUES", OPT_VARY, "a key to vary (repeatable: the full grid is run)"},
     {"set", "SECTION.KEY=VALUE", OPT_SET, "fix a value for every row (repeatable)"},
     {"mode", "NAME", OPT_MODE, "start from a mode"},
-    {"format", "text|csv|md", OPT_FORMAT,
-     "output format (default text; csv and md carry every\ncolumn of 'run --format csv')"},
+    {"format", "text|csv|md|json", OPT_FORMAT,
+     "output format (default text; csv, md and json carry\nevery column of 'run --format csv')"},
     {"plot", "FILE.svg", OPT_PLOT, "runtime against light output, one series per cell"},
     {"columns", "LIST", OPT_COLUMNS, "which columns of 'run --format csv' to show"},
     CLI_OPT_THREADS,
@@ -103,6 +103,8 @@ int cli_sweep(int argc, char **argv)
         return usage_error("sweep", "name exactly one profile");
     if (a.nvary == 0)
         return usage_error("sweep", "give at least one --vary KEY=VALUES");
+    if ((rc = cli_out_open("sweep", &a.o)) != 0)
+        return rc;
     lw_profile prof;
     lw_error err;
     lw_error_clear(&err);
@@ -123,7 +125,7 @@ int cli_sweep(int argc, char **argv)
         total *= vary[k].n;
     /* the rows are written as they complete; the chart comes after them */
     if (st == LW_OK)
-        st = lw_report_sweep_stream(&prof, vary, a.nvary, a.o.threads, a.o.fmt, a.columns, stdout,
+        st = lw_report_sweep_stream(&prof, vary, a.nvary, a.o.threads, a.o.fmt, a.columns, a.o.out,
                                     want_progress(total) ? progress : NULL, NULL, &sw, &err);
     if (st == LW_OK && a.plot_path)
         st = sweep_plot(a.plot_path, &prof, &sw, &err);
@@ -132,7 +134,7 @@ int cli_sweep(int argc, char **argv)
     for (size_t k = 0; k < a.nvary; k++)
         lw_vary_clear(&vary[k]);
     lw_profile_clear(&prof);
-    return code;
+    return cli_out_close(&a.o, "sweep", argv[first], code);
 }
 
 /* ---- pick ---- */
@@ -191,6 +193,8 @@ int cli_pick(int argc, char **argv)
         return usage_error("pick", "name exactly one profile");
     if (a.ntargets != 1)
         return usage_error("pick", "give exactly one of --target-ma and --target-lm");
+    if ((rc = cli_out_open("pick", &a.o)) != 0)
+        return rc;
     double target = a.target * (a.kind == LW_TARGET_CURRENT ? 1e-3 : 1.0);
     lw_profile prof;
     lw_error err;
@@ -228,7 +232,7 @@ int cli_pick(int argc, char **argv)
             if (status[i] == LW_OK || (picks[i].resistor_ohm > 0 && picks[i].within_ratings))
                 picks[shown++] = picks[i];
         if (shown)
-            st = lw_report_pick(stdout, &prof, picks, shown, a.kind, target, a.o.fmt, &err);
+            st = lw_report_pick(a.o.out, &prof, picks, shown, a.kind, target, a.o.fmt, &err);
         for (size_t i = 0; st == LW_OK && i < n; i++)
             if (status[i] != LW_OK)
                 code = report_error(&errs[i]);
@@ -243,7 +247,7 @@ int cli_pick(int argc, char **argv)
     free(cells);
     lw_vary_clear(&cellv);
     lw_profile_clear(&prof);
-    return code;
+    return cli_out_close(&a.o, "pick", argv[first], code);
 }
 
 /* ---- size ---- */
@@ -319,6 +323,8 @@ int cli_size(int argc, char **argv)
         return usage_error("size", "name exactly one profile");
     if (isnan(a.opt.runtime_h))
         return usage_error("size", "give the required runtime with --runtime-h");
+    if ((rc = cli_out_open("size", &a.o)) != 0)
+        return rc;
     a.opt.threads = a.o.threads;
     lw_profile prof;
     lw_error err;
@@ -340,7 +346,7 @@ int cli_size(int argc, char **argv)
     if (st == LW_OK)
         st = lw_report_size(&prof, &a.opt, rows, show, fits > 0, a.o.fmt, &t, &err);
     if (st == LW_OK)
-        st = lw_rtable_write(t, stdout, a.o.fmt, &err);
+        st = lw_rtable_write(t, a.o.out, a.o.fmt, &err);
     int code = st == LW_OK ? 0 : report_error(&err);
     if (st == LW_OK && !fits) {
         fprintf(stderr, "lampwick: %s: no pack of %s meets %g h%s\n", prof.path,
@@ -353,7 +359,7 @@ int cli_size(int argc, char **argv)
     free(cells);
     lw_vary_clear(&cellv);
     lw_profile_clear(&prof);
-    return code;
+    return cli_out_close(&a.o, "size", argv[first], code);
 }
 
 /* ---- table ---- */
@@ -403,6 +409,8 @@ int cli_table(int argc, char **argv)
         return rc < 0 ? 0 : rc;
     if (first + 1 != argc)
         return usage_error("table", "name exactly one profile");
+    if ((rc = cli_out_open("table", &a.o)) != 0)
+        return rc;
     lw_profile prof;
     lw_error err;
     lw_error_clear(&err);
@@ -423,13 +431,13 @@ int cli_table(int argc, char **argv)
     if (st == LW_OK && a.plot_path)
         st = lw_outfile_write(a.plot_path, modes_chart_fn, &spec, &err);
     if (st == LW_OK)
-        st = lw_rtable_write(t, stdout, a.o.fmt, &err);
+        st = lw_rtable_write(t, a.o.out, a.o.fmt, &err);
     if (st == LW_OK && a.o.fmt != LW_FMT_CSV) { /* CSV stays one table */
         lw_rtable *ct = NULL;
         st = lw_report_spec_corners(&spec, a.o.fmt, &ct, &err);
         if (st == LW_OK) {
-            fputc('\n', stdout);
-            st = lw_rtable_write(ct, stdout, a.o.fmt, &err);
+            fputc('\n', a.o.out);
+            st = lw_rtable_write(ct, a.o.out, a.o.fmt, &err);
         }
         lw_rtable_free(ct);
     }
@@ -439,5 +447,5 @@ int cli_table(int argc, char **argv)
     free(cells);
     lw_vary_clear(&cellv);
     lw_profile_clear(&prof);
-    return code;
+    return cli_out_close(&a.o, "table", argv[first], code);
 }

@@ -97,6 +97,11 @@ int cli_fit_led(int argc, char **argv)
         return rc < 0 ? 0 : rc;
     if (first + 1 != argc)
         return usage_error("fit led", "fit led takes one measurements file");
+    if (a.section_only && a.o.fmt != LW_FMT_TEXT)
+        return usage_error("fit led", "--write-profile-section writes the [led] section as "
+                                      "text; leave out --format");
+    if ((rc = cli_out_open("fit led", &a.o)) != 0)
+        return rc;
     lw_error err;
     lw_error_clear(&err);
     lw_fit_data d = {0};
@@ -119,11 +124,11 @@ int cli_fit_led(int argc, char **argv)
     if (st == LW_OK && a.plot_path)
         st = fit_plot(a.plot_path, &d, pl, ps, &err);
     if (st == LW_OK && a.section_only)
-        st = lw_report_led_section(stdout, &d, pl, ps, pf, a.tj, &err);
+        st = lw_report_led_section(a.o.out, &d, pl, ps, pf, a.tj, &err);
     else if (st == LW_OK)
-        st = lw_report_led_fit(stdout, a.o.fmt, &d, pl, ps, pf, a.tj, &err);
+        st = lw_report_led_fit(a.o.out, a.o.fmt, &d, pl, ps, pf, a.tj, &err);
     lw_fit_data_clear(&d);
-    return st == LW_OK ? 0 : report_error(&err);
+    return cli_out_close(&a.o, "fit led", argv[first], st == LW_OK ? 0 : report_error(&err));
 }
 
 /* ---- fit cell ---- */

@@ -176,6 +176,8 @@ int cli_cells(int argc, char **argv)
         return rc < 0 ? 0 : rc;
     if (first < argc)
         return usage_error("cells", "takes no arguments");
+    if ((rc = cli_out_open("cells", &o)) != 0)
+        return rc;
     lw_search search;
     build_search(&search);
     lw_error err;
@@ -224,16 +226,15 @@ int cli_cells(int argc, char **argv)
                                "data; replace them with measured data for a product.",
                             &err);
     if (t && st == LW_OK)
-        st = lw_rtable_write(t, stdout, o.fmt, &err);
+        st = lw_rtable_write(t, o.out, o.fmt, &err);
     lw_rtable_free(t);
     lw_cellfile_list_clear(&list);
-    if (!t || st != LW_OK)
-        return report_error(&err);
-    if (n == 0) {
+    int code = !t || st != LW_OK ? report_error(&err) : bad;
+    if (code == 0 && n == 0) {
         fprintf(stderr, "lampwick: no cell files found; set LAMPWICK_CELLS\n");
-        return EXIT_BADINPUT;
+        code = EXIT_BADINPUT;
     }
-    return bad;
+    return cli_out_close(&o, "cells", NULL, code);
 }
 
 /* ---- the command table ---- */

@@ -108,7 +108,7 @@ int common_option(const char *cmd, common_opts *o, int id, const char *arg)
         return 0;
     case OPT_FORMAT:
         if (!lw_rtable_format_parse(arg, &o->fmt))
-            return usage_error(cmd, "--format takes text, csv or md");
+            return usage_error(cmd, "--format takes text, csv, md or json");
         return 0;
     case OPT_USE: {
         /* ON_H,OFF_H: the periodic pattern; anything else a sessions file
@@ -157,18 +157,50 @@ int common_option(const char *cmd, common_opts *o, int id, const char *arg)
     }
 }
 
+int cli_out_open(const char *cmd, common_opts *o)
+{
+    o->out = stdout;
+    if (o->fmt != LW_FMT_JSON)
+        return 0;
+    o->out = open_memstream(&o->json, &o->json_len);
+    if (!o->out) {
+        fprintf(stderr, "lampwick: %s: out of memory for the JSON output\n", cmd);
+        return EXIT_NOANSWER;
+    }
+    return 0;
+}
+
+int cli_out_close(common_opts *o, const char *cmd, const char *input, int code)
+{
+    if (o->fmt != LW_FMT_JSON || !o->out)
+        return code;
+    bool failed = fclose(o->out) != 0;
+    o->out = NULL;
+    lw_error err;
+    lw_error_clear(&err);
+    if (failed && code == 0) {
+        lw_error_set(&err, LW_ENOMEM, NULL, 0, "%s: out of memory for the JSON output", cmd);
+        code = report_error(&err);
+    }
+    if (!failed && (code == 0 || (code == EXIT_NOANSWER && o->json_len))) {
+        lw_jdoc *d = lw_jdoc_new(cmd, input, &err);
+        lw_status st = d ? lw_jdoc_add_written(d, o->json, o->json_len, &err) : err.code;
+        char *text = st == LW_OK ? lw_jdoc_print(d, &err) : NULL;
+        if (text)
+            fputs(text, stdout);
+        else
+            code = report_error(&err);
+        free(text);
+        lw_jdoc_free(d);
+    }
+    free(o->json);
+    o->json = NULL;
+    return code;
+}
+
 int exit_code(lw_status st)
 {
-    switch (st) {
-    case LW_OK:
-        return 0;
-    case LW_ENOANSWER:
-    case LW_ENUMERIC:
-    case LW_ENOMEM: /* the run could not be done here: not the input's fault */
-        return EXIT_NOANSWER;
-    default:
-        return EXIT_BADINPUT;
-    }
+    return lw_status_exit_code(st);
 }
 
 int report_error(const lw_error *err)
@@ -237,21 +269,7 @@ static bool build_source_root(const char *build, char *out, size_t size)
  * meson build folder (the executable itself, or in a folder of it). */
 void build_search(lw_search *s)
 {
-    memset(s, 0, sizeof *s);
-    lw_search_add_list(s, getenv("LAMPWICK_CELLS"));
-    /* the user's own cells: $XDG_DATA_HOME/lampwick/cells, by default
-     * ~/.local/share/lampwick/cells (XDG Base Directory Specification) */
-    const char *xdg = getenv("XDG_DATA_HOME"), *home = getenv("HOME");
-    char user[PATH_MAX];
-    if (xdg && xdg[0] == '/')
-        snprintf(user, sizeof user, "%s/lampwick/cells", xdg);
-    else if (home && home[0] == '/')
-        snprintf(user, sizeof user, "%s/.local/share/lampwick/cells", home);
-    else
-        user[0] = '\0';
-    if (user[0])
-        lw_search_add(s, user);
-    lw_search_add(s, LW_DATADIR "/cells");
+    lw_search_default(s);
     char exe[PATH_MAX], dir[PATH_MAX], build[PATH_MAX + 4], probe[PATH_MAX + 32];
     ssize_t n = readlink("/proc/self/exe", exe, sizeof exe - 1);
     if (n <= 0)
@@ -277,25 +295,7 @@ lw_status load_profile(const char *path, const common_opts *o, lw_profile *prof,
 {
     lw_search search;
     build_search(&search);
-    lw_profile file;
-    lw_status st = lw_profile_load(path, &search, &file, err);
-    if (st != LW_OK) {
-        memset(prof, 0, sizeof *prof);
-        lw_profile_clear(&file);
-        return st;
-    }
-    /* --mode and --set: the profile of this run, by the path every case of
-     * a sweep, pick, size or table takes */
-    lw_profile_variant v = {.mode = o->mode};
-    char keys[LW_PROFILE_OVERRIDES_MAX][2 * LW_INI_NAME_MAX];
-    for (size_t i = 0; st == LW_OK && i < o->nsets; i++)
-        st = lw_profile_variant_arg(&v, o->sets[i], keys[i], sizeof keys[i], err);
-    if (st == LW_OK)
-        st = lw_profile_derive(&file, &v, "--set", prof, err);
-    else
-        memset(prof, 0, sizeof *prof);
-    lw_profile_clear(&file); /* the derived profile keeps what it shares */
-    return st;
+    return lw_profile_load_variant(path, &search, o->mode, o->sets, o->nsets, prof, err);
 }
 
 static lw_status chart_fn(FILE *fp, const void *ctx, lw_error *err)

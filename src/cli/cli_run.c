@@ -104,6 +104,8 @@ int cli_run(int argc, char **argv)
         return rc < 0 ? 0 : rc;
     if (first + 1 != argc)
         return usage_error("run", "name exactly one profile");
+    if ((rc = cli_out_open("run", &a.o)) != 0)
+        return rc;
     lw_profile prof;
     lw_error err;
     lw_error_clear(&err);
@@ -130,21 +132,7 @@ int cli_run(int argc, char **argv)
     if (st == LW_OK && a.plot_path)
         st = write_plot(a.plot_path, &prof, &res, &tr, &err);
     if (st == LW_OK)
-        st = lw_report_run(stdout, a.o.fmt, &prof, &res, &err);
-    /* the corners under a report for people (CSV stays one row) */
-    if (st == LW_OK && a.o.fmt != LW_FMT_CSV && !lw_run_end_is_dark(res.end_reason)) {
-        lw_corner corners[LW_CORNER_COUNT];
-        lw_rtable *t = NULL;
-        st = lw_corner_compute(&prof.light, &res, corners, &err);
-        if (st == LW_OK)
-            st = lw_report_corners(corners, "Corners (fresh cells unless said)", a.o.fmt, &t,
-                                   &err);
-        if (st == LW_OK) {
-            fputc('\n', stdout);
-            st = lw_rtable_write(t, stdout, a.o.fmt, &err);
-        }
-        lw_rtable_free(t);
-    }
+        st = lw_report_run_with_corners(a.o.out, a.o.fmt, &prof, &res, &err);
     int code = st == LW_OK ? 0 : report_error(&err);
     if (st == LW_OK && lw_run_end_is_dark(res.end_reason)) {
         fprintf(stderr, "lampwick: %s: no light: %s\n", prof.path, dark_text(res.end_reason));
@@ -153,5 +141,5 @@ int cli_run(int argc, char **argv)
     lw_trace_clear(&tr);
     lw_run_result_clear(&res);
     lw_profile_clear(&prof);
-    return code;
+    return cli_out_close(&a.o, "run", argv[first], code);
 }

@@ -184,6 +184,8 @@ int cli_spread(int argc, char **argv)
                                          "peak_resistor_w, peak_junction_c", a.quantity);
         hq = (lw_mc_quantity)q;
     }
+    if ((rc = cli_out_open("spread", &a.o)) != 0)
+        return rc;
     lw_error err;
     lw_error_clear(&err);
     lw_mc_target targets[LW_MC_TARGETS_MAX];
@@ -219,9 +221,9 @@ int cli_spread(int argc, char **argv)
     if (st == LW_OK && a.samples_out)
         st = lw_outfile_write(a.samples_out, samples_fn, &s, &err);
     if (st == LW_OK)
-        st = lw_report_mc(stdout, &s, a.o.fmt, &err);
+        st = lw_report_mc(a.o.out, &s, a.o.fmt, &err);
     int code = st == LW_OK ? 0 : report_error(&err);
     lw_mc_result_clear(&res);
     lw_profile_clear(&prof);
-    return code;
+    return cli_out_close(&a.o, "spread", argv[first], code);
 }

@@ -1030,3 +1030,29 @@ void lw_profile_value_text(const lw_profile *p, const char *dotted_key, char *bu
     lw_profile_value_text_in_c_locale(p, dotted_key, buf, size);
     lw_number_locale_end(saved);
 }
+
+lw_status lw_profile_load_variant(const char *path, const lw_search *search, const char *mode,
+                                  const char *const *sets, size_t nsets, lw_profile *prof,
+                                  lw_error *err)
+{
+    lw_profile file;
+    lw_status st = lw_profile_load(path, search, &file, err);
+    if (st != LW_OK) {
+        memset(prof, 0, sizeof *prof);
+        lw_profile_clear(&file);
+        return st;
+    }
+    lw_profile_variant v = {.mode = mode};
+    char keys[LW_PROFILE_OVERRIDES_MAX][2 * LW_INI_NAME_MAX];
+    if (nsets > LW_PROFILE_OVERRIDES_MAX)
+        st = lw_error_set(err, LW_EINPUT, NULL, 0, "too many overrides (at most %d)",
+                          LW_PROFILE_OVERRIDES_MAX);
+    for (size_t i = 0; st == LW_OK && i < nsets; i++)
+        st = lw_profile_variant_arg(&v, sets[i], keys[i], sizeof keys[i], err);
+    if (st == LW_OK)
+        st = lw_profile_derive(&file, &v, "--set", prof, err);
+    else
+        memset(prof, 0, sizeof *prof);
+    lw_profile_clear(&file); /* the derived profile keeps what it shares */
+    return st;
+}

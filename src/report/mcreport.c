@@ -215,7 +215,7 @@ static lw_status ratings_table(FILE *fp, const lw_mc_study *s, lw_rtable_format 
             st = share_cells(t, row, 1, k, r->n, s->opt->sobol, err);
         shown++;
     }
-    if (st == LW_OK && shown == 0) { /* no table: one sentence */
+    if (st == LW_OK && shown == 0 && fmt != LW_FMT_JSON) { /* no table: one sentence */
         double lo, hi;
         lw_stats_wilson(0, r->n, LW_MC_Z95, &lo, &hi);
         lw_rtable_free(t);
@@ -265,6 +265,12 @@ static lw_status ranking_table(FILE *fp, const lw_mc_study *s, lw_mc_quantity q,
     if (lw_mc_rank(s->res, q, beta, se, &r2, &local) != LW_OK) {
         if (local.code == LW_ENOMEM)
             return lw_error_set(err, LW_ENOMEM, NULL, 0, "%s", local.msg);
+        if (fmt == LW_FMT_JSON) { /* an empty table saying why */
+            char why[LW_ERR_MSG_MAX + 64];
+            snprintf(why, sizeof why, "What drives %s", lw_mc_quantity_names[q]);
+            lw_rtable *t = table_with(head, 4, why, err);
+            return put(t, t ? lw_rtable_note(t, local.msg, err) : LW_ENOMEM, fp, fmt, err);
+        }
         fprintf(fp, "What drives %s: %s.\n\n", lw_mc_quantity_names[q], local.msg);
         return ferror(fp) ? lw_error_set(err, LW_EIO, NULL, 0, "write error") : LW_OK;
     }
@@ -317,16 +323,17 @@ static lw_status spread_in_c_locale(FILE *fp, const lw_mc_study *s, lw_rtable_fo
         snprintf(interval, sizeof interval, "Sobol points: no interval");
     else
         snprintf(interval, sizeof interval, "95 %% interval %s to %s h", lo, hi);
-    fprintf(fp, "%s%s: spread%s\n\n95 %% of units run at least %.4g h (%s); the nominal unit "
+    if (fmt != LW_FMT_JSON) /* JSON: tables only (the summary has these) */
+        fprintf(fp, "%s%s: spread%s\n\n95 %% of units run at least %.4g h (%s); the nominal unit "
                 "runs %.4g h.\n\n",
             fmt == LW_FMT_MD ? "**" : "", s->prof->light.name, fmt == LW_FMT_MD ? "**" : "",
             rt->pct[1], interval, rt->nominal);
     st = summary_table(fp, s, sum, fmt, err);
-    if (st == LW_OK && s->opt->sobol)
+    if (st == LW_OK && s->opt->sobol && fmt != LW_FMT_JSON)
         fputs("Sobol points: the estimates converge faster than random units', but the units "
               "are not independent, so no interval is given (sample at random for them).\n\n",
               fp);
-    else if (st == LW_OK)
+    else if (st == LW_OK && !s->opt->sobol)
         st = interval_table(fp, sum, fmt, err);
     if (st == LW_OK && s->ntargets)
         st = yield_table(fp, s, fmt, err);
@@ -338,7 +345,7 @@ static lw_status spread_in_c_locale(FILE *fp, const lw_mc_study *s, lw_rtable_fo
         st = ranking_table(fp, s, LW_MC_RUNTIME, fmt, err);
     if (st == LW_OK)
         st = ranking_table(fp, s, LW_MC_FLUX30, fmt, err);
-    if (st == LW_OK)
+    if (st == LW_OK && fmt != LW_FMT_JSON)
         fprintf(fp, "%s\n", lw_report_caution);
     return st == LW_OK && ferror(fp) ? lw_error_set(err, LW_EIO, NULL, 0, "write error") : st;
 }

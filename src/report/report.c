@@ -710,3 +710,22 @@ lw_status lw_report_corners(const lw_corner c[LW_CORNER_COUNT], const char *titl
     lw_number_locale_end(saved);
     return st;
 }
+
+lw_status lw_report_run_with_corners(FILE *fp, lw_rtable_format fmt, const lw_profile *prof,
+                                     const lw_result *res, lw_error *err)
+{
+    lw_status st = lw_report_run(fp, fmt, prof, res, err);
+    if (st != LW_OK || fmt == LW_FMT_CSV || lw_run_end_is_dark(res->end_reason))
+        return st;
+    lw_corner corners[LW_CORNER_COUNT];
+    lw_rtable *t = NULL;
+    st = lw_corner_compute(&prof->light, res, corners, err);
+    if (st == LW_OK)
+        st = lw_report_corners(corners, "Corners (fresh cells unless said)", fmt, &t, err);
+    if (st == LW_OK && fmt != LW_FMT_JSON)
+        fputc('\n', fp);
+    if (st == LW_OK)
+        st = lw_rtable_write(t, fp, fmt, err);
+    lw_rtable_free(t);
+    return st;
+}

@@ -13,6 +13,8 @@
 #include "lampwick/alloc.h"
 #include "lampwick/csvio.h"
 #include "lampwick/number.h"
+#include "jsontable.h"
+
 
 bool lw_rtable_format_parse(const char *s, lw_rtable_format *fmt)
 {
@@ -22,6 +24,8 @@ bool lw_rtable_format_parse(const char *s, lw_rtable_format *fmt)
         *fmt = LW_FMT_CSV;
     else if (!strcmp(s, "md"))
         *fmt = LW_FMT_MD;
+    else if (!strcmp(s, "json"))
+        *fmt = LW_FMT_JSON;
     else
         return false;
     return true;
@@ -216,6 +220,13 @@ static const char *cell_text(const lw_rtable *t, size_t r, size_t c)
         return t->arena + t->off[r * t->ncol + c];
     const char *s = t->cell[r * t->ncol + c];
     return s ? s : "";
+}
+
+/* The full-precision text of a cell (CSV's), or its shown text. */
+static const char *cell_full(const lw_rtable *t, size_t r, size_t c)
+{
+    const char *f = t->off || !t->full ? NULL : t->full[r * t->ncol + c];
+    return f ? f : cell_text(t, r, c);
 }
 
 /* Right-aligned: every non-empty cell is a number, or a number with a unit
@@ -434,10 +445,8 @@ static void write_md(const lw_rtable *t, FILE *fp)
 
 static void csv_row(const lw_rtable *t, size_t r, lw_csvw *w)
 {
-    for (size_t c = 0; c < t->ncol; c++) {
-        const char *f = t->off ? NULL : t->full[r * t->ncol + c];
-        lw_csvw_text(w, f ? f : cell_text(t, r, c));
-    }
+    for (size_t c = 0; c < t->ncol; c++)
+        lw_csvw_text(w, cell_full(t, r, c));
     lw_csvw_end_row(w);
 }
 
@@ -456,6 +465,139 @@ static void write_csv(const lw_rtable *t, FILE *fp, lw_csvw *w)
         csv_row(t, r, w);
 }
 
+/* ---- JSON ---- */
+
+#define LW_JSON_KEY_MAX 96
+
+
+/* Whether s is a number in JSON's grammar (RFC 8259 section 6):
+ * -?(0|[1-9][0-9]*)(.[0-9]+)?([eE][+-]?[0-9]+)? */
+static bool json_number_text(const char *s)
+{
+    if (*s == '-')
+        s++;
+    if (*s == '0')
+        s++;
+    else if (*s >= '1' && *s <= '9')
+        while (*s >= '0' && *s <= '9')
+            s++;
+    else
+        return false;
+    if (*s == '.') {
+        if (!(*++s >= '0' && *s <= '9'))
+            return false;
+        while (*s >= '0' && *s <= '9')
+            s++;
+    }
+    if (*s == 'e' || *s == 'E') {
+        s++;
+        if (*s == '+' || *s == '-')
+            s++;
+        if (!(*s >= '0' && *s <= '9'))
+            return false;
+        while (*s >= '0' && *s <= '9')
+            s++;
+    }
+    return *s == '\0';
+}
+
+/* A cell as a JSON value: a number when the whole text is one (finite),
+ * null when empty or "-", otherwise the text. */
+static cJSON *json_value(const char *s)
+{
+    double v;
+    if (!s[0] || !strcmp(s, "-"))
+        return cJSON_CreateNull();
+    if (lw_number_parse_double(s, &v) && isfinite(v))
+        /* the text itself where JSON's grammar takes it: the same digits
+         * as CSV, the shortest that read back exactly */
+        return json_number_text(s) ? cJSON_CreateRaw(s) : cJSON_CreateNumber(v);
+    return cJSON_CreateString(s);
+}
+
+/* A column's JSON name: its head with "%" as "pct", "+-" as "pm", every
+ * other run of characters outside [A-Za-z0-9_.-] as one "_", none at
+ * either end ("share %" -> "share_pct"; "runtime_h" and
+ * "LR6-alkaline.runtime_h" stay). */
+static void json_key(const char *head, char *out, size_t size)
+{
+    size_t n = 0;
+    bool gap = false; /* a "_" is owed before the next word */
+    for (const char *s = head; *s; s++) {
+        char one[2] = {0};
+        const char *word = one;
+        if (*s == '%')
+            word = "pct";
+        else if (s[0] == '+' && s[1] == '-')
+            word = "pm", s++;
+        else if ((*s >= 'a' && *s <= 'z') || (*s >= 'A' && *s <= 'Z') ||
+                 (*s >= '0' && *s <= '9') || *s == '_' || *s == '.' || *s == '-')
+            one[0] = *s;
+        else {
+            gap = true;
+            continue;
+        }
+        bool symbol = word != one; /* "pct" or "pm": a word of its own */
+        if ((gap || symbol) && n && out[n - 1] != '_' && n + 1 < size)
+            out[n++] = '_';
+        for (; *word && n + 1 < size; word++)
+            out[n++] = *word;
+        gap = symbol;
+    }
+    while (n && out[n - 1] == '_')
+        n--;
+    out[n] = '\0';
+}
+
+cJSON *lw_rtable_to_json(const lw_rtable *t)
+{
+    cJSON *o = cJSON_CreateObject(), *cols = NULL, *rows = NULL, *notes = NULL;
+    bool ok = o && (t->title ? cJSON_AddStringToObject(o, "title", t->title)
+                             : cJSON_AddNullToObject(o, "title")) &&
+              (cols = cJSON_AddArrayToObject(o, "columns")) &&
+              (rows = cJSON_AddArrayToObject(o, "rows")) &&
+              (notes = cJSON_AddArrayToObject(o, "notes"));
+    char (*key)[LW_JSON_KEY_MAX] = lw_calloc(t->ncol ? t->ncol : 1, sizeof *key);
+    ok = ok && key;
+    for (size_t c = 0; ok && c < t->ncol; c++) {
+        json_key(t->head[c] ? t->head[c] : "", key[c], sizeof key[c]);
+        cJSON *h = cJSON_CreateString(key[c]);
+        ok = h && cJSON_AddItemToArray(cols, h);
+    }
+    for (size_t r = 0; ok && r < t->nrow; r++) {
+        cJSON *row = cJSON_CreateObject();
+        ok = row && cJSON_AddItemToArray(rows, row);
+        for (size_t c = 0; ok && c < t->ncol; c++) {
+            cJSON *v = json_value(cell_full(t, r, c));
+            ok = v && cJSON_AddItemToObject(row, key[c], v);
+        }
+    }
+    free(key);
+    for (size_t i = 0; ok && i < t->nnotes; i++) {
+        cJSON *n = cJSON_CreateString(t->notes[i]);
+        ok = n && cJSON_AddItemToArray(notes, n);
+    }
+    if (!ok) {
+        cJSON_Delete(o);
+        return NULL;
+    }
+    return o;
+}
+
+/* One table as one JSON object on one line (lw_jdoc gathers them). */
+static bool write_json(const lw_rtable *t, FILE *fp)
+{
+    cJSON *o = lw_rtable_to_json(t);
+    char *s = o ? cJSON_PrintUnformatted(o) : NULL;
+    cJSON_Delete(o);
+    if (!s)
+        return false;
+    fputs(s, fp);
+    fputc('\n', fp);
+    cJSON_free(s);
+    return true;
+}
+
 lw_status lw_rtable_write(const lw_rtable *t, FILE *fp, lw_rtable_format fmt, lw_error *err)
 {
     lw_csvw w = {0};
@@ -463,7 +605,10 @@ lw_status lw_rtable_write(const lw_rtable *t, FILE *fp, lw_rtable_format fmt, lw
         write_csv(t, fp, &w);
     else if (fmt == LW_FMT_MD)
         write_md(t, fp);
-    else if (!write_text(t, fp))
+    else if (fmt == LW_FMT_JSON) {
+        if (!write_json(t, fp))
+            return lw_error_set(err, LW_ENOMEM, NULL, 0, "out of memory for a table");
+    } else if (!write_text(t, fp))
         return lw_error_set(err, LW_ENOMEM, NULL, 0, "out of memory for a table");
     if (w.failed || ferror(fp))
         return lw_error_set(err, LW_EIO, NULL, 0, "write error");
@@ -514,14 +659,17 @@ lw_status lw_rtable_render_row(const lw_rtable *t, size_t row, lw_rtable_format 
         return *out ? LW_OK
                     : lw_error_set(err, LW_ENOMEM, NULL, 0, "out of memory for a table row");
     }
+    /* text: the shown cells; JSON: the full-precision ones (CSV's) */
+    const char *(*cell)(const lw_rtable *, size_t, size_t) =
+        fmt == LW_FMT_JSON ? cell_full : cell_text;
     size_t n = 0;
     for (size_t c = 0; c < t->ncol; c++)
-        n += strlen(cell_text(t, row, c)) + 1;
+        n += strlen(cell(t, row, c)) + 1;
     char *b = lw_malloc(n ? n : 1), *p = b;
     if (!b)
         return lw_error_set(err, LW_ENOMEM, NULL, 0, "out of memory for a table row");
     for (size_t c = 0; c < t->ncol; c++) {
-        const char *s = cell_text(t, row, c);
+        const char *s = cell(t, row, c);
         size_t k = strlen(s) + 1;
         memcpy(p, s, k);
         p += k;

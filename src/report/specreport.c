@@ -25,6 +25,15 @@ static void lw_report_spec_hours_in_c_locale(double h, char *buf, size_t size)
         snprintf(buf, size, "%.0f h", h);
 }
 
+
+/* CSV and JSON take the table for programs: a column per cell and
+ * quantity, numbers in full precision, the end reason and warnings in
+ * words (text and Markdown: rounded, grouped by cell, notes as marks). */
+static bool machine_layout(lw_rtable_format fmt)
+{
+    return fmt == LW_FMT_CSV || fmt == LW_FMT_JSON;
+}
+
 /* ---- the notes: conditions as computed ---- */
 
 static const lw_case *case_at(const lw_spec *s, size_t r, size_t c)
@@ -348,7 +357,7 @@ static lw_status spec_cell(const lw_spec *s, const lw_case *k, int kind, lw_rtab
         return lw_rtable_set(t, row, col, dark ? "-" : buf, err);
     }
     if (kind == SC_NOTES) {
-        if (fmt == LW_FMT_CSV) {
+        if (machine_layout(fmt)) {
             lw_report_warnings(res->warnings, buf, sizeof buf);
         } else {
             /* "empty-at-start", "(a,c)", or both */
@@ -371,7 +380,7 @@ static lw_status spec_cell(const lw_spec *s, const lw_case *k, int kind, lw_rtab
     const double vals[] = {flux, res->runtime_h, res->time_to_half_h, res->regulated_h, cd,
                            lw_photometry_beam_m(cd), res->calendar_h / 24.0};
     double v = dark ? NAN : vals[kind];
-    if (fmt == LW_FMT_CSV)
+    if (machine_layout(fmt))
         return lw_rtable_num(t, row, col, v, 6, err);
     if (dark)
         return lw_rtable_set(t, row, col, kind == SC_FLUX ? "no light" : "-", err);
@@ -423,9 +432,9 @@ static lw_status lw_report_spec_in_c_locale(const lw_spec *s, lw_rtable_format f
         kinds[per++] = SC_DAYS;
     if (chains)
         kinds[per++] = SC_STEPS;
-    if (fmt == LW_FMT_CSV)
+    if (machine_layout(fmt))
         kinds[per++] = SC_END;
-    if (fmt == LW_FMT_CSV || used)
+    if (machine_layout(fmt) || used)
         kinds[per++] = SC_NOTES;
     lw_rtable *t = lw_rtable_new(1 + per * s->ncells, err);
     if (!t)
@@ -436,7 +445,7 @@ static lw_status lw_report_spec_in_c_locale(const lw_spec *s, lw_rtable_format f
         for (size_t k = 0; k < per && st == LW_OK; k++) {
             const char *cname = case_at(s, 0, c)->light.pack.cell.name;
             size_t col = 1 + c * per + k;
-            if (fmt == LW_FMT_CSV) {
+            if (machine_layout(fmt)) {
                 snprintf(buf, sizeof buf, "%s.%s", cname, csv_names[kinds[k]]);
                 st = lw_rtable_head(t, col, buf, err);
             } else {

@@ -182,7 +182,7 @@ static void flush_ready(struct writer *wr)
             return;
         }
         lw_status st = LW_OK;
-        if (wr->fmt == LW_FMT_TEXT) {
+        if (wr->fmt == LW_FMT_TEXT || wr->fmt == LW_FMT_JSON) { /* written whole */
             st = lw_rtable_add_packed(wr->head, s->text, s->len, &wr->err);
         } else {
             if (s->packed) { /* row 0 of Markdown: the head, aligned by it */
@@ -319,8 +319,9 @@ static lw_status sweep_stream_in_c_locale(const lw_profile *base, const lw_vary 
     if (st == LW_OK && fmt != LW_FMT_CSV)
         st = lw_rtable_note(wr.head, lw_report_caution, err);
     if (st == LW_OK)
-        st = fmt == LW_FMT_TEXT ? lw_rtable_write(wr.head, fp, fmt, err)
-                                : lw_rtable_write_notes(wr.head, fp, fmt, err);
+        st = fmt == LW_FMT_TEXT || fmt == LW_FMT_JSON
+                 ? lw_rtable_write(wr.head, fp, fmt, err)
+                 : lw_rtable_write_notes(wr.head, fp, fmt, err);
     if (st == LW_OK && fflush(fp) != 0)
         st = lw_error_set(err, LW_EIO, NULL, 0, "write error");
     writer_free(&wr, workers);
