@@ -370,7 +370,7 @@ args 2 "name exactly one profile" run p.ini p.ini
 args 2 "unknown option '--bogus'" run p.ini --bogus
 args 2 "unknown option '-x'" run p.ini -x
 args 2 "option '--set' needs an argument" run p.ini --set
-args 2 "--format takes text, csv or md" run p.ini --format xml
+args 2 "--format takes text, csv, md or json" run p.ini --format xml
 args 2 "--stored-months takes 0 to 600" run p.ini --stored-months -3
 args 2 "--stored-months takes 0 to 600" run p.ini --stored-months lots
 args 2 "give at least one --vary" sweep p.ini

@@ -32,7 +32,7 @@ expect 0 'Usage: lampwick run' "$LW" help run
 expect 0 'Lithium cells can overheat' "$LW" help run
 expect 2 "unknown command 'frobnicate'" "$LW" frobnicate
 expect 2 'Try .lampwick help run' "$LW" run
-expect 2 '--format takes text, csv or md' "$LW" run profiles/demo.ini --format xml
+expect 2 '--format takes text, csv, md or json' "$LW" run profiles/demo.ini --format xml
 expect 0 'demo.ini: ok' "$LW" check profiles/demo.ini
 n=$("$LW" cells --format csv | tail -n +2 | wc -l)
 if [ "$n" -ge 7 ]; then ok; else bad "cells lists $n cells"; fi

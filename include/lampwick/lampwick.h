@@ -128,6 +128,7 @@
 #include "mcreport.h"
 #include "plot.h"
 #include "jsondoc.h"
+#include "htmlreport.h"
 #include "api.h"
 
 #endif

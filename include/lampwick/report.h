@@ -34,6 +34,11 @@ LW_MUST_CHECK lw_status lw_report_run_row(lw_rtable *t, size_t row, size_t first
 LW_MUST_CHECK lw_status lw_report_run(FILE *fp, lw_rtable_format fmt, const lw_profile *prof,
                                       const lw_result *res, lw_error *err);
 
+/* The energy drawn from the cells over a run and where it went (LEDs,
+ * resistors, the cells' internal resistance, the driver), Wh and %. */
+LW_MUST_CHECK lw_status lw_report_energy(const lw_light *l, const lw_result *r,
+                                         lw_rtable_format fmt, lw_rtable **out, lw_error *err);
+
 /* What `lampwick run` prints: lw_report_run, then, unless CSV (one row)
  * or the light never lit, its corner table (lw_corner_compute). */
 LW_MUST_CHECK lw_status lw_report_run_with_corners(FILE *fp, lw_rtable_format fmt,
@@ -77,6 +82,9 @@ void lw_report_hours(double h, char *buf, size_t size);
 
 /* The one-line caution printed with every result. */
 extern const char *const lw_report_caution;
+/* The safety paragraph: lithium cells, hot parts, bright LEDs, and whose
+ * limits and standards rule. */
+extern const char *const lw_report_safety;
 
 /* The letter that marks warning bit `bit` in a table ('a' for bit 0). */
 char lw_report_warning_marker(int bit);

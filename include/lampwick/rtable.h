@@ -4,8 +4,8 @@
  * Owns: lw_rtable, a table of text cells with a header, optional column
  * groups, notes and a title, rendered as aligned text (numbers right-
  * aligned), RFC 4180 CSV through csvio (numbers in full precision), a
- * Markdown table, or one JSON object (numbers in full precision, see
- * jsondoc.h); and lw_rtable_format, the choice among the four.
+ * Markdown table, one JSON object (numbers in full precision, see
+ * jsondoc.h) or an HTML table; and lw_rtable_format, the choice.
  */
 #ifndef LW_RTABLE_H
 #define LW_RTABLE_H
@@ -23,10 +23,20 @@
 /* JSON: lw_rtable_write writes each table as one JSON object on one line
  * (title, columns, rows as objects keyed by the CSV column names, notes);
  * lw_jdoc (jsondoc.h) gathers a command's tables into one document. */
-typedef enum lw_rtable_format { LW_FMT_TEXT, LW_FMT_CSV, LW_FMT_MD, LW_FMT_JSON } lw_rtable_format;
+/* HTML: an HTML table (caption, a header row per column group, numbers
+ * right-aligned) and its notes, for the design review (htmlreport.h); like
+ * text, it takes the column names and rounding written for people. */
+typedef enum lw_rtable_format {
+    LW_FMT_TEXT, LW_FMT_CSV, LW_FMT_MD, LW_FMT_JSON, LW_FMT_HTML
+} lw_rtable_format;
 
-/* Parse "text", "csv", "md" or "json"; false if none. */
+/* Parse "text", "csv", "md" or "json" (the command-line formats); false if
+ * none. */
 bool lw_rtable_format_parse(const char *s, lw_rtable_format *fmt);
+
+/* Whether a report in fmt takes the names and rounding written for people
+ * (text and HTML) rather than those for programs and documents. */
+bool lw_rtable_for_people(lw_rtable_format fmt);
 
 typedef struct lw_rtable {
     size_t ncol, nrow, cap;

@@ -12,6 +12,7 @@
 
 #include <stdbool.h>
 #include <stddef.h>
+#include <stdio.h>
 
 /* Copy src into dst (size bytes), always NUL-terminated; returns false if cut. */
 bool lw_text_copy(char *dst, const char *src, size_t size);
@@ -27,5 +28,11 @@ size_t lw_text_escape(char *out, size_t size, const char *text);
 
 /* Levenshtein distance of two short strings (capped at 99). */
 int lw_text_edit_distance(const char *a, const char *b);
+
+/* Write text into an XML or HTML document: markup characters (< > & ")
+ * escaped; characters XML 1.0 does not allow (C0 controls but tab, newline
+ * and return) and bytes of invalid UTF-8 written as U+FFFD, so the
+ * document stays well formed whatever the text.  s may be NULL. */
+void lw_text_xml_write(FILE *fp, const char *s);
 
 #endif

@@ -104,3 +104,43 @@ int lw_text_edit_distance(const char *a, const char *b)
     }
     return row[lb];
 }
+
+void lw_text_xml_write(FILE *fp, const char *s)
+{
+    for (; s && *s; s++) {
+        unsigned char c = (unsigned char)*s;
+        if (c >= 0x80) {
+            size_t n = strlen(s), len = (c >> 5) == 6    ? 2
+                                        : (c >> 4) == 14 ? 3
+                                        : (c >> 3) == 30 ? 4
+                                                         : 0;
+            if (len && len <= n && lw_text_utf8_valid(s, len, NULL)) {
+                fwrite(s, 1, len, fp);
+                s += len - 1;
+            } else {
+                fputs("\xEF\xBF\xBD", fp);
+            }
+            continue;
+        }
+        if (c < 0x20 && c != '\t' && c != '\n' && c != '\r') {
+            fputs("\xEF\xBF\xBD", fp);
+            continue;
+        }
+        switch (*s) {
+        case '<':
+            fputs("&lt;", fp);
+            break;
+        case '>':
+            fputs("&gt;", fp);
+            break;
+        case '&':
+            fputs("&amp;", fp);
+            break;
+        case '"':
+            fputs("&quot;", fp);
+            break;
+        default:
+            fputc(*s, fp);
+        }
+    }
+}

@@ -15,6 +15,7 @@
 #define LW_CLI_H
 
 #include <stdbool.h>
+#include <stdint.h>
 #include <stdio.h>
 #include <lampwick/lampwick.h>
 
@@ -38,7 +39,7 @@ enum {
     OPT_MAXP, OPT_TOP, OPT_STORED, OPT_COLUMNS, OPT_MODEL, OPT_JUNCTION, OPT_SECTION,
     OPT_LOAD_OHM, OPT_LOAD_MA, OPT_CUTOFF, OPT_RES, OPT_NAME, OPT_OUT, OPT_CHEM, OPT_RECH,
     OPT_TOL, OPT_USE, OPT_TOTAL, OPT_SPREAD, OPT_SAMPLES, OPT_SEED, OPT_TARGET, OPT_HIST,
-    OPT_QUANTITY, OPT_RANKING, OPT_SAMPLES_OUT, OPT_SAMPLING
+    OPT_QUANTITY, OPT_RANKING, OPT_SAMPLES_OUT, OPT_SAMPLING, OPT_OUTPUT
 };
 
 typedef struct cli_option {
@@ -47,6 +48,10 @@ typedef struct cli_option {
     int id;            /* what getopt returns */
     const char *help;  /* one line (a second line may follow after "\n") */
 } cli_option;
+
+/* The short name of an option ('o' for --output, in every command that
+ * has it), or 0. */
+char cli_short_name(int id);
 
 /* The options several commands share, as table rows. */
 #define CLI_OPT_SET {"set", "SECTION.KEY=VALUE", OPT_SET, "override a profile value (repeatable)"}
@@ -60,6 +65,11 @@ typedef struct cli_option {
     {"use", "ON_H,OFF_H|FILE.csv", OPT_USE,                                                    \
      "use the light in sessions: ON_H hours every ON_H + OFF_H,\nor the sessions of a CSV "     \
      "(start_h,duration_h[,mode]);\nas [use] on_h/off_h or sessions_file"}
+#define CLI_OPT_SAMPLES {"samples", "N", OPT_SAMPLES, "units to sample (default 10000)"}
+#define CLI_OPT_SEED                                                                            \
+    {"seed", "S", OPT_SEED,                                                                    \
+     "seed of the random streams (default 1); the same seed\ngives the same output on any "     \
+     "number of threads"}
 #define CLI_OPT_HELP {"help", NULL, OPT_HELP, "show this help"}
 #define CLI_OPT_END {NULL, NULL, 0, NULL}
 
@@ -126,6 +136,10 @@ int cli_out_open(const char *cmd, common_opts *o);
  * standard output.  Returns code, or an exit code of its own failure. */
 int cli_out_close(common_opts *o, const char *cmd, const char *input, int code);
 
+/* Handle --samples (2 to LW_MC_SAMPLES_MAX) and --seed (any 64-bit whole
+ * number): 0, or the exit code of a usage error. */
+int sample_option(const char *cmd, int id, const char *arg, size_t *samples, uint64_t *seed);
+
 int exit_code(lw_status st);
 /* Print "lampwick: file:line: message" and return the exit code. */
 int report_error(const lw_error *err);
@@ -163,10 +177,11 @@ int cli_fit_cell(int argc, char **argv);
 int cli_check(int argc, char **argv);
 int cli_cells(int argc, char **argv);
 int cli_spread(int argc, char **argv);
+int cli_report(int argc, char **argv);
 
 /* Their option tables and texts (in the file of each command). */
 extern const cli_option cli_run_options[], cli_sweep_options[], cli_pick_options[],
     cli_size_options[], cli_table_options[], cli_fit_led_options[], cli_fit_cell_options[],
-    cli_check_options[], cli_cells_options[], cli_spread_options[];
+    cli_check_options[], cli_cells_options[], cli_spread_options[], cli_report_options[];
 
 #endif

@@ -326,6 +326,19 @@ const cli_command cli_commands[] = {
      "  lampwick spread lantern.ini --spread pack.capacity_pct='normal 4' \\\n"
      "      --target runtime_h>=8 --target flux_30s_lm>=100\n",
      cli_spread},
+    {"report", "PROFILE [-o FILE.html] [OPTIONS]",
+     "The design review in one HTML file: the light and its inputs, where the data\n"
+     "come from, the specification table with its test conditions, each mode's\n"
+     "discharge chart and all modes together, where the energy goes, the corners,\n"
+     "the spread study of the profile's [spread] section with its histogram and\n"
+     "ranking, every warning in words, the caution, lampwick's version and the\n"
+     "date.  One self-contained file (inline CSS and SVG, no script, no network),\n"
+     "laid out to print on A4 or Letter with a page per section.\n",
+     cli_report_options,
+     "The date is today's (UTC), or that of SOURCE_DATE_EPOCH when it is set.\n"
+     "Example:\n"
+     "  lampwick report lantern.ini -o lantern-review.html\n",
+     cli_report},
     {"fit led", "MEASUREMENTS.csv [OPTIONS]",
      "Least-squares fits of an LED's measured current and voltage (columns\n"
      "current_ma, forward_v; optionally flux_lm or relative_pct):\n"

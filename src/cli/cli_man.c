@@ -121,7 +121,10 @@ static void page_lampwick(FILE *fp)
             if (o->id == OPT_HELP)
                 fputs(".BR \\-h \", \" \\-\\-help\n", fp);
             else { /* the tag on one line: .BI alternates bold and italic */
-                fputs(o->arg ? ".BI \"\\-\\-" : ".B \"\\-\\-", fp);
+                fputs(o->arg ? ".BI \"" : ".B \"", fp);
+                if (cli_short_name(o->id))
+                    fprintf(fp, "\\-%c, ", cli_short_name(o->id));
+                fputs("\\-\\-", fp);
                 roff_text(fp, o->name, false);
                 fputs(o->arg ? " \" \"" : "\"", fp);
                 if (o->arg) {

@@ -7,6 +7,8 @@
 #include "lampwick/number.h"
 
 #include <getopt.h>
+#include <inttypes.h>
+#include <errno.h>
 #include <limits.h>
 #include <stdarg.h>
 #include <stdlib.h>
@@ -14,6 +16,11 @@
 #include <sys/stat.h>
 #include <unistd.h>
 #include "lw_config.h"
+
+char cli_short_name(int id)
+{
+    return id == OPT_OUTPUT ? 'o' : 0;
+}
 
 const cli_command *cli_find(const char *name)
 {
@@ -33,7 +40,12 @@ void cli_help(const cli_command *cmd, FILE *fp)
         fputs("\nOptions\n", fp);
     for (const cli_option *o = cmd->options; o && o->name; o++) {
         char left[96];
-        snprintf(left, sizeof left, "  --%s%s%s", o->name, o->arg ? " " : "", o->arg ? o->arg : "");
+        if (cli_short_name(o->id))
+            snprintf(left, sizeof left, "  -%c, --%s%s%s", cli_short_name(o->id), o->name,
+                     o->arg ? " " : "", o->arg ? o->arg : "");
+        else
+            snprintf(left, sizeof left, "  --%s%s%s", o->name, o->arg ? " " : "",
+                     o->arg ? o->arg : "");
         if (o->id == OPT_HELP)
             snprintf(left, sizeof left, "  -h, --help");
         size_t w = strlen(left);
@@ -70,10 +82,21 @@ int cli_parse(const cli_command *cmd, int argc, char **argv, cli_on_option fn, v
         lo[i] = (struct option){cmd->options[i].name,
                                 cmd->options[i].arg ? required_argument : no_argument, NULL,
                                 cmd->options[i].id};
+    char shorts[64] = ":h"; /* the short names, each with ':' when it takes an argument */
+    for (size_t i = 0, k = 2; i < n && k + 3 < sizeof shorts; i++)
+        if (cli_short_name(cmd->options[i].id)) {
+            shorts[k++] = cli_short_name(cmd->options[i].id);
+            if (cmd->options[i].arg)
+                shorts[k++] = ':';
+            shorts[k] = '\0';
+        }
     opterr = 0; /* one message, ours */
     optind = 0;   /* 0, not 1: GNU getopt then starts over completely */
     int c, rc = 0;
-    while (rc == 0 && (c = getopt_long(argc, argv, ":h", lo, NULL)) != -1) {
+    while (rc == 0 && (c = getopt_long(argc, argv, shorts, lo, NULL)) != -1) {
+        for (size_t i = 0; i < n && c != OPT_HELP; i++)
+            if (cli_short_name(cmd->options[i].id) && c == cli_short_name(cmd->options[i].id))
+                c = cmd->options[i].id;
         const char *opt = optind > 0 && optind <= argc ? argv[optind - 1] : "?";
         if (c == '?') {
             if (optopt && optopt < 256)
@@ -196,6 +219,34 @@ int cli_out_close(common_opts *o, const char *cmd, const char *input, int code)
     free(o->json);
     o->json = NULL;
     return code;
+}
+
+/* A whole number 0..max in decimal, no sign. */
+static bool parse_u64(const char *s, uint64_t max, uint64_t *out)
+{
+    if (!s[0] || strspn(s, "0123456789") != strlen(s))
+        return false;
+    errno = 0;
+    unsigned long long v = strtoull(s, NULL, 10);
+    if (errno || v > max)
+        return false;
+    *out = v;
+    return true;
+}
+
+int sample_option(const char *cmd, int id, const char *arg, size_t *samples, uint64_t *seed)
+{
+    uint64_t v;
+    if (id == OPT_SAMPLES) {
+        if (!parse_u64(arg, LW_MC_SAMPLES_MAX, &v) || v < 2)
+            return usage_error(cmd, "--samples takes a whole number from 2 to %d",
+                               LW_MC_SAMPLES_MAX);
+        *samples = (size_t)v;
+        return 0;
+    }
+    if (!parse_u64(arg, UINT64_MAX, seed))
+        return usage_error(cmd, "--seed takes a whole number from 0 to %" PRIu64, UINT64_MAX);
+    return 0;
 }
 
 int exit_code(lw_status st)

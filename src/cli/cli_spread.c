@@ -15,9 +15,8 @@ const cli_option cli_spread_options[] = {
     {"spread", "KEY=FORM", OPT_SPREAD,
      "spread a numeric profile key (repeatable; over the\nprofile's [spread] entry for the "
      "same key)"},
-    {"samples", "N", OPT_SAMPLES, "units to sample (default 10000)"},
-    {"seed", "S", OPT_SEED, "seed of the random streams (default 1); the same seed\ngives the "
-                            "same output on any number of threads"},
+    CLI_OPT_SAMPLES,
+    CLI_OPT_SEED,
     {"sampling", "random|sobol", OPT_SAMPLING,
      "random units (default; with intervals) or Sobol points\n(sharper estimates for the same "
      "units, no intervals)"},
@@ -46,23 +45,9 @@ typedef struct spread_args {
     bool sobol;
 } spread_args;
 
-static bool parse_u64(const char *s, uint64_t max, uint64_t *out)
-{
-    if (!*s || *s == '-' || *s == '+')
-        return false;
-    char *end;
-    errno = 0;
-    unsigned long long v = strtoull(s, &end, 10);
-    if (errno || *end || v > max)
-        return false;
-    *out = v;
-    return true;
-}
-
 static int spread_option(void *ctx, int id, const char *arg)
 {
     spread_args *a = ctx;
-    uint64_t v;
     switch (id) {
     case OPT_SPREAD:
         if (a->nspreads == LW_MC_KEYS_MAX)
@@ -70,16 +55,8 @@ static int spread_option(void *ctx, int id, const char *arg)
         a->spreads[a->nspreads++] = arg;
         return 0;
     case OPT_SAMPLES:
-        if (!parse_u64(arg, LW_MC_SAMPLES_MAX, &v) || v < 2)
-            return usage_error("spread", "--samples takes a whole number from 2 to %d",
-                               LW_MC_SAMPLES_MAX);
-        a->samples = (size_t)v;
-        return 0;
     case OPT_SEED:
-        if (!parse_u64(arg, UINT64_MAX, &a->seed))
-            return usage_error("spread", "--seed takes a whole number from 0 to %" PRIu64,
-                               UINT64_MAX);
-        return 0;
+        return sample_option("spread", id, arg, &a->samples, &a->seed);
     case OPT_TARGET:
         if (a->ntargets == LW_MC_TARGETS_MAX)
             return usage_error("spread", "at most %d --target options", LW_MC_TARGETS_MAX);

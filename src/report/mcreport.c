@@ -3,6 +3,7 @@
  * mcreport.h).  Quantities in the units of `run --format csv`.
  */
 #include "lampwick/mcreport.h"
+#include "lampwick/text.h"
 #include "lampwick/csvio.h"
 #include "lampwick/number.h"
 #include "lampwick/plot.h"
@@ -63,6 +64,14 @@ static lw_status quantity_row(lw_rtable *t, int q, size_t *row, lw_error *err)
 {
     lw_status st = lw_rtable_add_row(t, row, err);
     return st == LW_OK ? lw_rtable_set(t, *row, 0, lw_mc_quantity_names[q], err) : st;
+}
+
+/* JSON and HTML take the tables alone: the sentences between them in text
+ * and Markdown are said by the tables' titles and notes there (the HTML
+ * report writes its own). */
+static bool tables_only(lw_rtable_format fmt)
+{
+    return fmt == LW_FMT_JSON || fmt == LW_FMT_HTML;
 }
 
 /* Write t (freed) and a blank line after it in text and Markdown. */
@@ -215,7 +224,7 @@ static lw_status ratings_table(FILE *fp, const lw_mc_study *s, lw_rtable_format 
             st = share_cells(t, row, 1, k, r->n, s->opt->sobol, err);
         shown++;
     }
-    if (st == LW_OK && shown == 0 && fmt != LW_FMT_JSON) { /* no table: one sentence */
+    if (st == LW_OK && shown == 0 && !tables_only(fmt)) { /* no table: one sentence */
         double lo, hi;
         lw_stats_wilson(0, r->n, LW_MC_Z95, &lo, &hi);
         lw_rtable_free(t);
@@ -265,7 +274,7 @@ static lw_status ranking_table(FILE *fp, const lw_mc_study *s, lw_mc_quantity q,
     if (lw_mc_rank(s->res, q, beta, se, &r2, &local) != LW_OK) {
         if (local.code == LW_ENOMEM)
             return lw_error_set(err, LW_ENOMEM, NULL, 0, "%s", local.msg);
-        if (fmt == LW_FMT_JSON) { /* an empty table saying why */
+        if (tables_only(fmt)) { /* an empty table saying why */
             char why[LW_ERR_MSG_MAX + 64];
             snprintf(why, sizeof why, "What drives %s", lw_mc_quantity_names[q]);
             lw_rtable *t = table_with(head, 4, why, err);
@@ -323,13 +332,13 @@ static lw_status spread_in_c_locale(FILE *fp, const lw_mc_study *s, lw_rtable_fo
         snprintf(interval, sizeof interval, "Sobol points: no interval");
     else
         snprintf(interval, sizeof interval, "95 %% interval %s to %s h", lo, hi);
-    if (fmt != LW_FMT_JSON) /* JSON: tables only (the summary has these) */
+    if (!tables_only(fmt))
         fprintf(fp, "%s%s: spread%s\n\n95 %% of units run at least %.4g h (%s); the nominal unit "
                 "runs %.4g h.\n\n",
             fmt == LW_FMT_MD ? "**" : "", s->prof->light.name, fmt == LW_FMT_MD ? "**" : "",
             rt->pct[1], interval, rt->nominal);
     st = summary_table(fp, s, sum, fmt, err);
-    if (st == LW_OK && s->opt->sobol && fmt != LW_FMT_JSON)
+    if (st == LW_OK && s->opt->sobol && !tables_only(fmt))
         fputs("Sobol points: the estimates converge faster than random units', but the units "
               "are not independent, so no interval is given (sample at random for them).\n\n",
               fp);
@@ -345,7 +354,7 @@ static lw_status spread_in_c_locale(FILE *fp, const lw_mc_study *s, lw_rtable_fo
         st = ranking_table(fp, s, LW_MC_RUNTIME, fmt, err);
     if (st == LW_OK)
         st = ranking_table(fp, s, LW_MC_FLUX30, fmt, err);
-    if (st == LW_OK && fmt != LW_FMT_JSON)
+    if (st == LW_OK && !tables_only(fmt))
         fprintf(fp, "%s\n", lw_report_caution);
     return st == LW_OK && ferror(fp) ? lw_error_set(err, LW_EIO, NULL, 0, "write error") : st;
 }
@@ -460,21 +469,6 @@ lw_status lw_plot_mc_histogram(FILE *fp, const lw_mc_study *s, lw_mc_quantity q,
     return lw_plot_svg(fp, &c, err);
 }
 
-/* Escape the XML specials of a key name (keys are plain, but a chart is a
- * document). */
-static void xml_text(FILE *fp, const char *s)
-{
-    for (; *s; s++) {
-        if (*s == '<')
-            fputs("&lt;", fp);
-        else if (*s == '>')
-            fputs("&gt;", fp);
-        else if (*s == '&')
-            fputs("&amp;", fp);
-        else
-            fputc(*s, fp);
-    }
-}
 
 lw_status lw_plot_mc_ranking(FILE *fp, const lw_mc_study *s, lw_error *err)
 {
@@ -507,7 +501,7 @@ lw_status lw_plot_mc_ranking(FILE *fp, const lw_mc_study *s, lw_error *err)
             "viewBox=\"0 0 %.0f %.0f\" font-family=\"sans-serif\" font-size=\"13\">\n"
             "<title>What drives the spread: ",
             width, height, width, height);
-    xml_text(fp, s->prof->light.name);
+    lw_text_xml_write(fp, s->prof->light.name);
     fprintf(fp, "</title>\n<desc>Standardized rank regression coefficients of each spread key "
                 "for runtime and for the output at 30 s, over %zu units; bars to the right "
                 "raise the quantity; whiskers one standard error.</desc>\n"
@@ -515,7 +509,7 @@ lw_status lw_plot_mc_ranking(FILE *fp, const lw_mc_study *s, lw_error *err)
                 "<text x=\"12\" y=\"24\" font-size=\"16\" font-weight=\"bold\">What drives the "
                 "spread: ",
             s->res->n);
-    xml_text(fp, s->prof->light.name);
+    lw_text_xml_write(fp, s->prof->light.name);
     fprintf(fp, "</text>\n<text x=\"12\" y=\"44\" fill=\"#444\">rank regression coefficient "
                 "(-1 to 1); share of variance = coefficient squared</text>\n");
     static const char *const colour[2] = {"#1f5fa8", "#c25a00"};
@@ -549,7 +543,7 @@ lw_status lw_plot_mc_ranking(FILE *fp, const lw_mc_study *s, lw_error *err)
     for (size_t r = 0; r < s->nkeys; r++) {
         fprintf(fp, "<text x=\"%.1f\" y=\"%.1f\" text-anchor=\"end\">", left - 12,
                 top + row_h * (double)r + row_h / 2 + 4);
-        xml_text(fp, s->keys[order[r]].key);
+        lw_text_xml_write(fp, s->keys[order[r]].key);
         fputs("</text>\n", fp);
     }
     fputs("</svg>\n", fp);

@@ -24,7 +24,7 @@ static lw_status corner_table(const lw_pick *pk, lw_rtable_format fmt, lw_rtable
         return LW_ENOMEM;
     lw_status st = LW_OK;
     for (size_t k = 0; k < 6 && st == LW_OK; k++)
-        st = lw_rtable_head(t, k, fmt == LW_FMT_TEXT ? text_head[k] : head[k], err);
+        st = lw_rtable_head(t, k, lw_rtable_for_people(fmt) ? text_head[k] : head[k], err);
     for (int k = 0; k < LW_CORNER_COUNT && st == LW_OK; k++) {
         const lw_corner *c = &pk->corners[k];
         size_t r;

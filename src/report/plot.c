@@ -114,49 +114,6 @@ static void fmt_tick(char *buf, size_t size, double v)
         snprintf(buf, size, "%.10g", v);
 }
 
-/* Text for an XML document: markup characters escaped; characters XML 1.0
- * does not allow (C0 controls but tab, newline and return) and bytes of
- * invalid UTF-8 become U+FFFD, so the SVG is always well formed. */
-static void xml_text(FILE *fp, const char *s)
-{
-    for (; s && *s; s++) {
-        unsigned char c = (unsigned char)*s;
-        if (c >= 0x80) {
-            size_t n = strlen(s), len = (c >> 5) == 6    ? 2
-                                        : (c >> 4) == 14 ? 3
-                                        : (c >> 3) == 30 ? 4
-                                                         : 0;
-            if (len && len <= n && lw_text_utf8_valid(s, len, NULL)) {
-                fwrite(s, 1, len, fp);
-                s += len - 1;
-            } else {
-                fputs("\xEF\xBF\xBD", fp);
-            }
-            continue;
-        }
-        if (c < 0x20 && c != '\t' && c != '\n' && c != '\r') {
-            fputs("\xEF\xBF\xBD", fp);
-            continue;
-        }
-        switch (*s) {
-        case '<':
-            fputs("&lt;", fp);
-            break;
-        case '>':
-            fputs("&gt;", fp);
-            break;
-        case '&':
-            fputs("&amp;", fp);
-            break;
-        case '"':
-            fputs("&quot;", fp);
-            break;
-        default:
-            fputc(*s, fp);
-        }
-    }
-}
-
 #define LABELS_MAX 256
 typedef struct frame {
     double x0, x1, y0, y1;      /* pixel box: x0 left, y0 top */
@@ -289,13 +246,13 @@ static void draw_axes(FILE *fp, const frame *f, const lw_panel *p, bool bottom,
     fprintf(fp, "<text transform='translate(%.1f,%.1f) rotate(-90)' text-anchor='middle' "
                 "class='axis'>",
             f->x0 - 52, ymid);
-    xml_text(fp, p->y.label);
+    lw_text_xml_write(fp, p->y.label);
     fputs("</text>\n", fp);
     if (p->y2_label) {
         fprintf(fp, "<text transform='translate(%.1f,%.1f) rotate(90)' text-anchor='middle' "
                     "class='axis'>",
                 f->x1 + 52, ymid);
-        xml_text(fp, p->y2_label);
+        lw_text_xml_write(fp, p->y2_label);
         fputs("</text>\n", fp);
     }
     n = f->xlog ? log_ticks(f->lo, f->hi, t) : lw_plot_ticks(f->lo, f->hi, 8, t);
@@ -312,7 +269,7 @@ static void draw_axes(FILE *fp, const frame *f, const lw_panel *p, bool bottom,
     if (bottom) {
         fprintf(fp, "<text x='%.1f' y='%.1f' text-anchor='middle' class='axis'>",
                 0.5 * (f->x0 + f->x1), f->y1 + 42);
-        xml_text(fp, xa->label);
+        lw_text_xml_write(fp, xa->label);
         fputs("</text>\n", fp);
     }
 }
@@ -364,7 +321,7 @@ static void draw_series(FILE *fp, frame *f, const lw_series *s, size_t auto_inde
         double tx = left ? x - 5 - w : x + 5;
         if (s->labels && s->labels[k] && place_label(f, tx, y - 15, tx + w, y - 3)) {
             fprintf(fp, "<text x='%.2f' y='%.2f' class='pt'>", tx, y - 5);
-            xml_text(fp, s->labels[k]);
+            lw_text_xml_write(fp, s->labels[k]);
             fputs("</text>\n", fp);
         }
     }
@@ -429,7 +386,7 @@ static void draw_legend(FILE *fp, const frame *f, const lw_panel *p, size_t colo
             lx, box[1], box[2], box[3]);
     if (p->legend_title) {
         fprintf(fp, "<text x='%.1f' y='%.1f' class='leg' font-weight='bold'>", lx + 6, y);
-        xml_text(fp, p->legend_title);
+        lw_text_xml_write(fp, p->legend_title);
         fputs("</text>\n", fp);
     }
     for (size_t i = 0; i < items; i++) {
@@ -452,7 +409,7 @@ static void draw_legend(FILE *fp, const frame *f, const lw_panel *p, size_t colo
                     lx + 6, yy - 4, lx + 26, yy - 4);
         }
         fprintf(fp, "<text x='%.1f' y='%.1f' class='leg'>", lx + 32, yy);
-        xml_text(fp, name);
+        lw_text_xml_write(fp, name);
         fputs("</text>\n", fp);
     }
 }
@@ -472,24 +429,24 @@ static lw_status lw_plot_svg_in_c_locale(FILE *fp, const lw_chart *c, lw_error *
             W, H, W, H);
     /* the chart's name and what it shows, for screen readers and indexes */
     fputs("<title>", fp);
-    xml_text(fp, c->title ? c->title : "lampwick chart");
+    lw_text_xml_write(fp, c->title ? c->title : "lampwick chart");
     fputs("</title>\n<desc>", fp);
-    xml_text(fp, c->subtitle ? c->subtitle : "");
+    lw_text_xml_write(fp, c->subtitle ? c->subtitle : "");
     for (size_t k = 0; k < c->npanels; k++) {
         fputs(k ? "; " : (c->subtitle ? ". " : ""), fp);
-        xml_text(fp, c->panels[k].y.label ? c->panels[k].y.label : "");
+        lw_text_xml_write(fp, c->panels[k].y.label ? c->panels[k].y.label : "");
     }
     fputs(" against ", fp);
-    xml_text(fp, c->x.label ? c->x.label : "");
+    lw_text_xml_write(fp, c->x.label ? c->x.label : "");
     fputs("</desc>\n", fp);
     if (c->title) {
         fprintf(fp, "<text x='%.1f' y='26' class='title'>", left);
-        xml_text(fp, c->title);
+        lw_text_xml_write(fp, c->title);
         fputs("</text>\n", fp);
     }
     if (c->subtitle) {
         fprintf(fp, "<text x='%.1f' y='46' class='sub'>", left);
-        xml_text(fp, c->subtitle);
+        lw_text_xml_write(fp, c->subtitle);
         fputs("</text>\n", fp);
     }
     /* shared x range over all panels */
@@ -547,7 +504,7 @@ static lw_status lw_plot_svg_in_c_locale(FILE *fp, const lw_chart *c, lw_error *
             bool late = x > 0.5 * (f.x0 + f.x1); /* text to the left of a late mark */
             fprintf(fp, "<text x='%.1f' y='%.1f' class='pt'%s>", late ? x - 4 : x + 4,
                     f.y1 - 8.0 - 14.0 * (double)(k % 4), late ? " text-anchor='end'" : "");
-            xml_text(fp, c->marks[k].label);
+            lw_text_xml_write(fp, c->marks[k].label);
             fputs("</text>\n", fp);
         }
         colour0 += p->nseries;

@@ -15,6 +15,14 @@ const char *const lw_report_caution =
     "Caution: estimates from typical data. Follow the cell maker's limits and the applicable "
     "safety standards; have a product checked by qualified people.";
 
+const char *const lw_report_safety =
+    "Lithium cells can overheat, vent and burn when shorted, over-discharged, charged wrongly "
+    "or mixed with cells of another type, age or charge. Resistors and drivers get hot: check "
+    "their power and temperature in the real enclosure. Bright LEDs can harm eyes (see IEC "
+    "62471). Follow the cell maker's limits, the applicable safety standards (for example IEC "
+    "62133-2 for lithium-ion cells) and local codes, and have a product checked by qualified "
+    "people.";
+
 char lw_report_warning_marker(int bit)
 {
     return (char)('a' + bit);
@@ -483,23 +491,33 @@ static void text_use(FILE *fp, const lw_light *l, const lw_result *r)
     }
 }
 
+/* Where the energy drawn from the cells went (the driver row only for a
+ * light with a driver). */
+typedef struct energy_item {
+    const char *name;
+    double wh;
+} energy_item;
+
+static size_t energy_items(const lw_light *l, const lw_result *r, energy_item e[4])
+{
+    const energy_item all[] = {{"into the LEDs", r->energy_led_wh},
+                               {"series resistors", r->energy_resistor_wh},
+                               {"cells' internal R", r->energy_internal_wh},
+                               {"driver", r->energy_driver_wh}};
+    size_t n = l->drive.type == LW_DRIVE_RESISTOR ? 3 : 4;
+    memcpy(e, all, n * sizeof *e);
+    return n;
+}
+
 static void text_energy(FILE *fp, const lw_light *l, const lw_result *r)
 {
     double drawn = r->energy_drawn_wh;
-    const struct {
-        const char *name;
-        double wh;
-    } e[] = {{"into the LEDs", r->energy_led_wh},
-             {"series resistors", r->energy_resistor_wh},
-             {"cells' internal R", r->energy_internal_wh},
-             {"driver", r->energy_driver_wh}};
+    energy_item e[4];
+    size_t n = energy_items(l, r, e);
     fprintf(fp, "  drawn from cells    %.4g Wh\n", drawn);
-    for (size_t k = 0; k < sizeof e / sizeof e[0]; k++) {
-        if (k == 3 && l->drive.type == LW_DRIVE_RESISTOR)
-            continue;
+    for (size_t k = 0; k < n; k++)
         fprintf(fp, "  %-19s %.4g Wh  %.1f %%\n", e[k].name, e[k].wh,
                 drawn > 0 ? 100.0 * e[k].wh / drawn : 0.0);
-    }
 }
 
 static void text_warnings(FILE *fp, const lw_light *l, const lw_result *r)
@@ -670,7 +688,7 @@ static lw_status corners_in_c_locale(const lw_corner c[LW_CORNER_COUNT], const c
         return LW_ENOMEM;
     lw_status st = title ? lw_rtable_set_title(t, title, err) : LW_OK;
     for (size_t k = 0; k < NC && st == LW_OK; k++)
-        st = lw_rtable_head(t, k, fmt == LW_FMT_TEXT ? text_head[k] : head[k], err);
+        st = lw_rtable_head(t, k, lw_rtable_for_people(fmt) ? text_head[k] : head[k], err);
     for (int k = 0; k < LW_CORNER_COUNT && st == LW_OK; k++) {
         size_t r;
         st = lw_rtable_add_row(t, &r, err);
@@ -727,5 +745,51 @@ lw_status lw_report_run_with_corners(FILE *fp, lw_rtable_format fmt, const lw_pr
     if (st == LW_OK)
         st = lw_rtable_write(t, fp, fmt, err);
     lw_rtable_free(t);
+    return st;
+}
+
+static lw_status energy_in_c_locale(const lw_light *l, const lw_result *r, lw_rtable_format fmt,
+                                    lw_rtable **out, lw_error *err)
+{
+    static const char *const head[] = {"where", "energy_wh", "share_pct"};
+    static const char *const text_head[] = {"where", "Wh", "%"};
+    *out = NULL;
+    lw_rtable *t = lw_rtable_new(3, err);
+    if (!t)
+        return LW_ENOMEM;
+    lw_status st = LW_OK;
+    for (size_t k = 0; k < 3 && st == LW_OK; k++)
+        st = lw_rtable_head(t, k, lw_rtable_for_people(fmt) ? text_head[k] : head[k], err);
+    energy_item e[5] = {{"drawn from the cells", r->energy_drawn_wh}};
+    size_t n = 1 + energy_items(l, r, e + 1);
+    for (size_t k = 0; k < n && st == LW_OK; k++) {
+        size_t row;
+        st = lw_rtable_add_row(t, &row, err);
+        if (st == LW_OK)
+            st = lw_rtable_set(t, row, 0, e[k].name, err);
+        if (st == LW_OK)
+            st = lw_rtable_num(t, row, 1, e[k].wh, 4, err);
+        if (st == LW_OK)
+            st = lw_rtable_num(t, row, 2,
+                               r->energy_drawn_wh > 0 ? 100.0 * e[k].wh / r->energy_drawn_wh
+                                                      : NAN,
+                               3, err);
+    }
+    if (st == LW_OK && fmt != LW_FMT_CSV)
+        st = lw_rtable_set_title(t, "Energy over the run", err);
+    if (st != LW_OK) {
+        lw_rtable_free(t);
+        return st;
+    }
+    *out = t;
+    return LW_OK;
+}
+
+lw_status lw_report_energy(const lw_light *l, const lw_result *r, lw_rtable_format fmt,
+                           lw_rtable **out, lw_error *err)
+{
+    locale_t saved = lw_number_locale_begin();
+    lw_status st = energy_in_c_locale(l, r, fmt, out, err);
+    lw_number_locale_end(saved);
     return st;
 }

@@ -13,6 +13,7 @@
 #include "lampwick/alloc.h"
 #include "lampwick/csvio.h"
 #include "lampwick/number.h"
+#include "lampwick/text.h"
 #include "jsontable.h"
 
 
@@ -29,6 +30,11 @@ bool lw_rtable_format_parse(const char *s, lw_rtable_format *fmt)
     else
         return false;
     return true;
+}
+
+bool lw_rtable_for_people(lw_rtable_format fmt)
+{
+    return fmt == LW_FMT_TEXT || fmt == LW_FMT_HTML;
 }
 
 lw_rtable *lw_rtable_new(size_t ncol, lw_error *err)
@@ -598,6 +604,65 @@ static bool write_json(const lw_rtable *t, FILE *fp)
     return true;
 }
 
+/* ---- HTML ---- */
+
+static void write_html(const lw_rtable *t, FILE *fp)
+{
+    fputs("<table>\n", fp);
+    if (t->title) {
+        fputs("<caption>", fp);
+        lw_text_xml_write(fp, t->title);
+        fputs("</caption>\n", fp);
+    }
+    fputs("<thead>\n", fp);
+    bool groups = false;
+    for (size_t c = 0; c < t->ncol; c++)
+        groups = groups || group_of(t, c)[0];
+    if (groups) { /* a row of column groups, each spanning its neighbours */
+        fputs("<tr>", fp);
+        for (size_t c = 0; c < t->ncol;) {
+            size_t e = c + 1;
+            while (e < t->ncol && !strcmp(group_of(t, e), group_of(t, c)))
+                e++;
+            fprintf(fp, "<th scope=\"colgroup\" colspan=\"%zu\">", e - c);
+            lw_text_xml_write(fp, group_of(t, c));
+            fputs("</th>", fp);
+            c = e;
+        }
+        fputs("</tr>\n", fp);
+    }
+    fputs("<tr>", fp);
+    bool *num = lw_calloc(t->ncol ? t->ncol : 1, sizeof *num);
+    for (size_t c = 0; c < t->ncol; c++) {
+        if (num)
+            num[c] = numeric_column(t, c);
+        fputs(num && num[c] ? "<th scope=\"col\" class=\"num\">" : "<th scope=\"col\">", fp);
+        lw_text_xml_write(fp, t->head[c] ? t->head[c] : "");
+        fputs("</th>", fp);
+    }
+    fputs("</tr>\n</thead>\n<tbody>\n", fp);
+    for (size_t r = 0; r < t->nrow; r++) {
+        fputs("<tr>", fp);
+        for (size_t c = 0; c < t->ncol; c++) {
+            fputs(num && num[c] ? "<td class=\"num\">" : "<td>", fp);
+            lw_text_xml_write(fp, cell_text(t, r, c));
+            fputs("</td>", fp);
+        }
+        fputs("</tr>\n", fp);
+    }
+    fputs("</tbody>\n</table>\n", fp);
+    free(num);
+    if (t->nnotes) {
+        fputs("<div class=\"notes\">\n", fp);
+        for (size_t i = 0; i < t->nnotes; i++) {
+            fputs("<p>", fp);
+            lw_text_xml_write(fp, t->notes[i]);
+            fputs("</p>\n", fp);
+        }
+        fputs("</div>\n", fp);
+    }
+}
+
 lw_status lw_rtable_write(const lw_rtable *t, FILE *fp, lw_rtable_format fmt, lw_error *err)
 {
     lw_csvw w = {0};
@@ -605,6 +670,8 @@ lw_status lw_rtable_write(const lw_rtable *t, FILE *fp, lw_rtable_format fmt, lw
         write_csv(t, fp, &w);
     else if (fmt == LW_FMT_MD)
         write_md(t, fp);
+    else if (fmt == LW_FMT_HTML)
+        write_html(t, fp);
     else if (fmt == LW_FMT_JSON) {
         if (!write_json(t, fp))
             return lw_error_set(err, LW_ENOMEM, NULL, 0, "out of memory for a table");

@@ -533,7 +533,7 @@ static lw_status spec_corners_in_c_locale(const lw_spec *s, lw_rtable_format fmt
                                                               "the nominal, the ratings case hot",
                                                            err);
     for (size_t k = 0; k < NC && st == LW_OK; k++)
-        st = lw_rtable_head(t, k, fmt == LW_FMT_TEXT ? text_head[k] : head[k], err);
+        st = lw_rtable_head(t, k, lw_rtable_for_people(fmt) ? text_head[k] : head[k], err);
     for (size_t r = 0; r < s->nrows; r++)
         for (size_t c = 0; c < s->ncells && st == LW_OK; c++) {
             const lw_case *k = &s->cases[r * s->ncells + c];
