@@ -407,6 +407,22 @@ compare() { # compare GOLDEN ACTUAL
         FNR == 1 && NR != FNR { for (i = 1; i <= NF; i++) if ($i == "solves") solves = i }
         END { exit bad }' "$1" "$2"
 }
+# --format json: one document, a run of a light that never lit still answers
+expect 0 '^\{"lampwick":"[0-9.]+","format":1,"command":"run"' "$LW" run profiles/demo.ini --format json
+expect 1 '"end_reason":"empty-at-start"' "$LW" run profiles/demo.ini --set pack.cell=CR2032-lithium --format json
+expect 0 '"command":"fit led"' "$LW" fit led docs/examples/white-led-bench.csv --format json
+expect 2 'write-profile-section writes the \[led\] section as text' "$LW" fit led docs/examples/white-led-bench.csv --write-profile-section --format json
+expect 2 '^lampwick: --set drive.resistor_ohm: .*expected a number' "$LW" run profiles/demo.ini --set drive.resistor_ohm=-1 --format json
+# report: one HTML file, written whole, or nothing
+expect 0 '' "$LW" report profiles/demo.ini -o "$TMP/review.html" --samples 100
+if grep -q '^<!DOCTYPE html>' "$TMP/review.html" && tail -1 "$TMP/review.html" | grep -q '</html>'; then ok; else bad "report: not a whole HTML file"; fi
+if SOURCE_DATE_EPOCH=0 "$LW" report profiles/demo.ini --samples 100 | grep -q '1970-01-01'; then ok; else bad "report: SOURCE_DATE_EPOCH not shown"; fi
+expect 2 'Usage|name exactly one profile' "$LW" report
+expect 2 'is a folder|not a regular file|folder' "$LW" report profiles/demo.ini -o "$TMP"
+expect 1 'no light' "$LW" report profiles/demo.ini --set pack.cell=CR2032-lithium -o "$TMP/dark.html"
+if [ ! -e "$TMP/dark.html" ]; then ok; else bad "report: a dark light left a file"; fi
+expect 0 '^  -o, --output FILE.html' "$LW" report --help
+
 for prof in profiles/*.ini; do
     base=$(basename "$prof" .ini)
     modes=$(sed -n 's/^\[mode \(.*\)\]$/\1/p' "$prof")

@@ -97,6 +97,7 @@ static void exercise(lw_profile *p)
             any(lw_report_run(sink, LW_FMT_TEXT, p, &r, &e));
             any(lw_report_run(sink, LW_FMT_CSV, p, &r, &e));
             any(lw_report_run(sink, LW_FMT_MD, p, &r, &e));
+            any(lw_report_run_with_corners(sink, LW_FMT_JSON, p, &r, &e));
             if (lw_trace_build(&p->light, &r, 50, &tr, &e) == LW_OK) {
                 any(lw_report_trace_csv(sink, &tr, &e));
                 any(lw_plot_run(sink, "fuzz", &p->light, &r, &tr, &e));
@@ -111,6 +112,15 @@ static void exercise(lw_profile *p)
         lw_error_clear(&e);
         if (lw_report_spec_table(p, NULL, LW_FMT_TEXT, 1, &t, &e) == LW_OK)
             lw_rtable_free(t);
+        /* the design review: every section, a small spread study */
+        lw_html_options ho = {.date = "2026-01-01", .spread_samples = 16, .seed = 1,
+                              .threads = 1};
+        FILE *sink = fopen("/dev/null", "w");
+        if (sink) {
+            lw_error_clear(&e);
+            any(lw_report_html(sink, p, &ho, &e));
+            fclose(sink);
+        }
     }
 }
 

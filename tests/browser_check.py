@@ -1,0 +1,148 @@
+#!/usr/bin/env python3
+"""browser_check.py - the design review in a real browser.
+
+Usage: browser_check.py LAMPWICK SOURCE_ROOT OUT_DIR [CHROMIUM]
+
+For every bundled profile, `lampwick report` writes OUT_DIR/NAME.html and
+headless Chromium (Debian's package) reads it:
+- --dump-dom: the document as the browser built it has every section of
+  lw_html_sections (spread: the bundled profiles all have a [spread]
+  section), a heading in each, every table has a header row of <th>, the
+  inline charts are all there; the file has no script, no external
+  reference (src, href, url(), @import) and every <svg> parses as XML;
+- --print-to-pdf: it prints, a page or more per section (print CSS starts
+  each on a new page), and pdftotext finds the specification table's title,
+  its first mode's row and the caution;
+- --screenshot: OUT_DIR/NAME.png, kept as a CI artifact.
+Each browser call is bounded (60 s).
+"""
+import html.parser
+import os
+import pathlib
+import re
+import shutil
+import subprocess
+import sys
+import tempfile
+import xml.etree.ElementTree as ET
+
+LW, ROOT, OUT = sys.argv[1], pathlib.Path(sys.argv[2]), pathlib.Path(sys.argv[3])
+CHROMIUM = sys.argv[4] if len(sys.argv) > 4 else shutil.which("chromium") or "chromium"
+SECTIONS = ["summary", "inputs", "provenance", "specification", "discharge", "energy",
+            "corners", "spread", "warnings", "caution"]
+failures = checks = 0
+
+
+def fail(msg):
+    global failures
+    failures += 1
+    print("FAIL:", msg)
+
+
+def ok(cond, msg):
+    global checks
+    checks += 1
+    if not cond:
+        fail(msg)
+    return cond
+
+
+def chromium(args, profile_dir):
+    cmd = [CHROMIUM, "--headless", "--no-sandbox", "--disable-gpu", "--no-first-run",
+           "--disable-extensions", "--user-data-dir=" + profile_dir] + args
+    return subprocess.run(cmd, capture_output=True, text=True, timeout=60)
+
+
+class Dom(html.parser.HTMLParser):
+    """What the dumped DOM holds: sections, headings, tables and their headers."""
+
+    def __init__(self):
+        super().__init__()
+        self.sections, self.stack, self.tables, self.svgs = [], [], [], 0
+        self.headed = set()
+
+    def handle_starttag(self, tag, attrs):
+        a = dict(attrs)
+        if tag == "section":
+            self.sections.append(a.get("id"))
+        if tag == "h2" and self.sections:
+            self.headed.add(self.sections[-1])
+        if tag == "table":
+            self.tables.append({"th": 0, "thead": False})
+        if tag == "thead" and self.tables:
+            self.tables[-1]["thead"] = True
+        if tag == "th" and self.tables:
+            self.tables[-1]["th"] += 1
+        if tag == "svg" and "xmlns" in a or (tag == "svg" and "viewbox" in a):
+            self.svgs += 1
+
+
+def static_checks(name, text):
+    ok("<script" not in text.lower(), "%s: a script" % name)
+    ok(not re.search(r"""\s(src|href)\s*=""", text, re.I), "%s: an external reference" % name)
+    ok("url(" not in text and "@import" not in text, "%s: a CSS reference" % name)
+    svgs = re.findall(r"<svg xmlns=.*?</svg>\n(?=<figcaption)", text, re.S)
+    ok(len(svgs) >= 3, "%s: %d charts" % (name, len(svgs)))
+    for k, s in enumerate(svgs):
+        try:
+            root = ET.fromstring(s)
+            ok(root.find("{http://www.w3.org/2000/svg}title") is not None,
+               "%s: chart %d has no <title>" % (name, k))
+        except ET.ParseError as e:
+            fail("%s: chart %d is not XML: %s" % (name, k, e))
+    return len(svgs)
+
+
+OUT.mkdir(parents=True, exist_ok=True)
+env = dict(os.environ, SOURCE_DATE_EPOCH="1767225600")  # 2026-01-01: a fixed date
+with tempfile.TemporaryDirectory() as tmp:
+    for prof in sorted((ROOT / "profiles").glob("*.ini")):
+        name = prof.stem
+        page = OUT / (name + ".html")
+        p = subprocess.run([LW, "report", str(prof), "-o", str(page), "--samples", "2000"],
+                           capture_output=True, text=True, env=env, timeout=300)
+        if not ok(p.returncode == 0, "%s: report exit %d: %s" % (name, p.returncode, p.stderr)):
+            continue
+        text = page.read_text(encoding="utf-8")
+        ok("2026-01-01" in text, "%s: the date of SOURCE_DATE_EPOCH is not shown" % name)
+        ncharts = static_checks(name, text)
+        url = page.resolve().as_uri()
+
+        d = chromium(["--dump-dom", url], tmp)
+        if ok(d.returncode == 0 and "</html>" in d.stdout, "%s: --dump-dom failed: %s" %
+              (name, d.stderr[-300:])):
+            dom = Dom()
+            dom.feed(d.stdout)
+            ok(dom.sections == SECTIONS, "%s: sections %s" % (name, dom.sections))
+            ok(dom.headed == set(SECTIONS), "%s: sections without a heading: %s" %
+               (name, set(SECTIONS) - dom.headed))
+            ok(len(dom.tables) >= 5, "%s: %d tables" % (name, len(dom.tables)))
+            for k, t in enumerate(dom.tables):
+                ok(t["thead"] and t["th"] > 0, "%s: table %d has no header" % (name, k))
+            ok(dom.svgs == ncharts, "%s: the browser built %d charts of %d" %
+               (name, dom.svgs, ncharts))
+
+        pdf = OUT / (name + ".pdf")
+        r = chromium(["--no-pdf-header-footer", "--print-to-pdf=" + str(pdf), url], tmp)
+        if ok(r.returncode == 0 and pdf.exists(), "%s: --print-to-pdf failed" % name):
+            info = subprocess.run(["pdfinfo", str(pdf)], capture_output=True, text=True)
+            m = re.search(r"^Pages:\s+(\d+)", info.stdout, re.M)
+            pages = int(m.group(1)) if m else 0
+            ok(pages >= len(SECTIONS), "%s: %d pages for %d sections" % (name, pages,
+                                                                      len(SECTIONS)))
+            body = subprocess.run(["pdftotext", "-layout", str(pdf), "-"], capture_output=True,
+                                  text=True).stdout
+            ok("Runtime table:" in body, "%s: the PDF lacks the specification table" % name)
+            ok("Caution" in body and "qualified people" in body,
+               "%s: the PDF lacks the caution" % name)
+            m = re.search(r"<caption>Runtime table:.*?<tbody>\n<tr><td>([^<]*)</td>", text, re.S)
+            ok(m is not None and m.group(1) in body,
+               "%s: the PDF lacks the table's first row (%s)" % (name, m and m.group(1)))
+
+        shot = OUT / (name + ".png")
+        s = chromium(["--screenshot=" + str(shot), "--window-size=1200,2400", url], tmp)
+        ok(s.returncode == 0 and shot.exists() and shot.stat().st_size > 10000,
+           "%s: --screenshot failed" % name)
+
+print("%d checks, %d failures; pages and screenshots in %s" % (checks, failures, OUT))
+sys.exit(1 if failures or checks == 0 else 0)
