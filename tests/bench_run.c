@@ -278,7 +278,7 @@ static int sweep_job(const void *ctx)
     lw_sweep sw;
     int rc = out && lw_vary_parse("drive.resistor_ohm=10..1009:1", a->p, &v[0], &e) == LW_OK &&
                      lw_vary_parse("pack.ambient_c=-10..39.5:0.5", a->p, &v[1], &e) == LW_OK &&
-                     lw_report_sweep_stream(a->p, v, 2, a->threads, LW_FMT_CSV, NULL, out, NULL,
+                     lw_report_sweep_stream(a->p, v, 2, a->threads, LW_FMT_CSV, false, NULL, out, NULL,
                                             NULL, &sw, &e) == LW_OK
                  ? 0
                  : 1;
@@ -340,7 +340,7 @@ static int spread_job(const void *ctx)
     if (out && lw_mc_keys_of_profile(a->p, keys, &nk, &e) == LW_OK &&
         lw_mc_run(a->p, keys, nk, &o, NULL, NULL, &r, &e) == LW_OK) {
         lw_mc_study st = {a->p, keys, nk, &o, &r, NULL, 0};
-        rc = lw_report_mc(out, &st, LW_FMT_TEXT, &e) == LW_OK ? 0 : 1;
+        rc = lw_report_mc(out, &st, LW_FMT_TEXT, false, &e) == LW_OK ? 0 : 1;
         lw_mc_result_clear(&r);
     }
     if (rc)

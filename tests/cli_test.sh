@@ -423,6 +423,24 @@ expect 1 'no light' "$LW" report profiles/demo.ini --set pack.cell=CR2032-lithiu
 if [ ! -e "$TMP/dark.html" ]; then ok; else bad "report: a dark light left a file"; fi
 expect 0 '^  -o, --output FILE.html' "$LW" report --help
 
+# -q: no caution and no notes on standard output, the results unchanged
+for c in "run profiles/demo.ini" "table profiles/demo.ini" "pick profiles/demo.ini --target-ma 30" \
+         "spread profiles/demo.ini --samples 100" "sweep profiles/demo.ini --vary drive.resistor_ohm=22,33" \
+         "size profiles/demo.ini --runtime-h 30" "cells"; do
+    for f in text md; do
+        # shellcheck disable=SC2086
+        loud=$("$LW" $c --format $f 2>&1); quiet=$("$LW" $c --format $f -q 2>&1)
+        if printf '%s' "$loud" | grep -q -E 'Caution|Typical values' &&
+            ! printf '%s' "$quiet" | grep -q -E 'Caution|Typical values|^Test conditions|^\(a\)' &&
+            [ "$(printf '%s\n' "$quiet" | grep -c -E '[0-9]')" -gt 0 ]; then ok; else
+            bad "-q $c --format $f"; fi
+    done
+done
+if "$LW" run profiles/demo.ini -q --format csv | cmp -s - "$SRC/tests/golden/demo.csv" ||
+    [ "$("$LW" run profiles/demo.ini -q --format csv | head -1)" = "$(head -1 tests/golden/demo.csv)" ]; then ok; else bad "-q changed the CSV"; fi
+# the review is a file: it always carries the caution, and takes no -q
+expect 2 "unknown option '-q'" "$LW" report profiles/demo.ini -q
+
 for prof in profiles/*.ini; do
     base=$(basename "$prof" .ini)
     modes=$(sed -n 's/^\[mode \(.*\)\]$/\1/p' "$prof")

@@ -48,7 +48,7 @@ static void produce(FILE *out)
         lw_result r;
         ok(lw_run(&p.light, &o, &r, &e), &e, "run");
         for (int f = 0; f < 3; f++)
-            ok(lw_report_run(out, (lw_rtable_format)f, &p, &r, &e), &e, "report");
+            ok(lw_report_run(out, (lw_rtable_format)f, false, &p, &r, &e), &e, "report");
         lw_trace tr;
         ok(lw_trace_build(&p.light, &r, LW_TRACE_ROWS_MIN, &tr, &e), &e, "trace");
         ok(lw_report_trace_csv(out, &tr, &e), &e, "trace csv");
@@ -83,7 +83,7 @@ static void produce(FILE *out)
     lw_pick pk;
     ok(lw_pick_resistor(&p, LW_TARGET_CURRENT, 0.020, 24, &pk, &e), &e, "pick");
     for (int f = 0; f < 3; f++)
-        ok(lw_report_pick(out, &p, &pk, 1, LW_TARGET_CURRENT, 0.020, (lw_rtable_format)f, &e),
+        ok(lw_report_pick(out, &p, &pk, 1, LW_TARGET_CURRENT, 0.020, (lw_rtable_format)f, false, &e),
            &e, "pick report");
     lw_pick_clear(&pk);
     lw_size_options so = {.runtime_h = 10, .max_series = 3, .max_parallel = 2, .eseries = 24,

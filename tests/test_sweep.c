@@ -154,7 +154,7 @@ static char *stream_text(const lw_profile *p, const lw_vary *v, size_t nv, int t
     FILE *fp = open_memstream(&buf, &len);
     assert_non_null(fp);
     lw_sweep sw;
-    *st = lw_report_sweep_stream(p, v, nv, threads, fmt, NULL, fp, NULL, NULL, &sw, e);
+    *st = lw_report_sweep_stream(p, v, nv, threads, fmt, false, NULL, fp, NULL, NULL, &sw, e);
     if (*st == LW_OK)
         lw_sweep_clear(&sw);
     fclose(fp);

@@ -30,8 +30,10 @@ typedef struct lw_mc_study {
     size_t ntargets;
 } lw_mc_study;
 
-LW_MUST_CHECK lw_status lw_report_mc(FILE *fp, const lw_mc_study *s,
-                                         lw_rtable_format fmt, lw_error *err);
+/* The spread study's report: the headline, then its tables.  quiet:
+ * without the caution and the notes. */
+LW_MUST_CHECK lw_status lw_report_mc(FILE *fp, const lw_mc_study *s, lw_rtable_format fmt,
+                                     bool quiet, lw_error *err);
 
 /* One row per unit: sample, the drawn values, the quantities, warnings. */
 LW_MUST_CHECK lw_status lw_report_mc_samples(FILE *fp, const lw_mc_study *s,

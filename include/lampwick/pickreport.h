@@ -16,9 +16,10 @@
 #include "rtable.h"
 
 /* The report of n picks (one per cell): text with each part's corner table
- * and recommendation, or one CSV/Markdown row per cell. */
+ * and recommendation, or one CSV/Markdown row per cell.  quiet: without the
+ * caution and the notes (what the corners mean). */
 LW_MUST_CHECK lw_status lw_report_pick(FILE *fp, const lw_profile *prof, const lw_pick *picks,
                                        size_t n, lw_target_kind kind, double target,
-                                       lw_rtable_format fmt, lw_error *err);
+                                       lw_rtable_format fmt, bool quiet, lw_error *err);
 
 #endif

@@ -30,9 +30,12 @@ LW_MUST_CHECK lw_status lw_report_run_row(lw_rtable *t, size_t row, size_t first
                                           const lw_light *light, const lw_result *res,
                                           lw_error *err);
 
-/* The whole report of one run in the chosen format. */
-LW_MUST_CHECK lw_status lw_report_run(FILE *fp, lw_rtable_format fmt, const lw_profile *prof,
-                                      const lw_result *res, lw_error *err);
+/* The whole report of one run in the chosen format.  quiet: without the
+ * caution and the notes (text and Markdown; `-q` on the command line, for
+ * scripts; CSV has none, JSON keeps them as data). */
+LW_MUST_CHECK lw_status lw_report_run(FILE *fp, lw_rtable_format fmt, bool quiet,
+                                      const lw_profile *prof, const lw_result *res,
+                                      lw_error *err);
 
 /* The energy drawn from the cells over a run and where it went (LEDs,
  * resistors, the cells' internal resistance, the driver), Wh and %. */
@@ -41,7 +44,7 @@ LW_MUST_CHECK lw_status lw_report_energy(const lw_light *l, const lw_result *r,
 
 /* What `lampwick run` prints: lw_report_run, then, unless CSV (one row)
  * or the light never lit, its corner table (lw_corner_compute). */
-LW_MUST_CHECK lw_status lw_report_run_with_corners(FILE *fp, lw_rtable_format fmt,
+LW_MUST_CHECK lw_status lw_report_run_with_corners(FILE *fp, lw_rtable_format fmt, bool quiet,
                                                    const lw_profile *prof, const lw_result *res,
                                                    lw_error *err);
 

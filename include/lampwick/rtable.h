@@ -49,6 +49,8 @@ typedef struct lw_rtable {
     char **notes;        /* lines printed under the table (text and md) */
     size_t nnotes;
     char *title;         /* printed above (text and md), may be NULL */
+    bool quiet;          /* written without its notes in text, Markdown and HTML
+                            (`-q`: for scripts reading standard output) */
     /* packed rows (lw_rtable_add_packed): every cell in one arena, no
      * full-precision text; a table holds packed rows or the others, not both */
     char *arena;

@@ -34,7 +34,7 @@ LW_MUST_CHECK lw_status lw_report_sweep(const lw_sweep *sw, lw_rtable_format fmt
  * its error is returned. */
 LW_MUST_CHECK lw_status lw_report_sweep_stream(const lw_profile *base, const lw_vary *vary,
                                                size_t nvary, int threads, lw_rtable_format fmt,
-                                               const char *columns, FILE *fp,
+                                               bool quiet, const char *columns, FILE *fp,
                                                lw_pool_progress_fn progress, void *progress_ctx,
                                                lw_sweep *sw, lw_error *err);
 

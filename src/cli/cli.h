@@ -39,7 +39,7 @@ enum {
     OPT_MAXP, OPT_TOP, OPT_STORED, OPT_COLUMNS, OPT_MODEL, OPT_JUNCTION, OPT_SECTION,
     OPT_LOAD_OHM, OPT_LOAD_MA, OPT_CUTOFF, OPT_RES, OPT_NAME, OPT_OUT, OPT_CHEM, OPT_RECH,
     OPT_TOL, OPT_USE, OPT_TOTAL, OPT_SPREAD, OPT_SAMPLES, OPT_SEED, OPT_TARGET, OPT_HIST,
-    OPT_QUANTITY, OPT_RANKING, OPT_SAMPLES_OUT, OPT_SAMPLING, OPT_OUTPUT
+    OPT_QUANTITY, OPT_RANKING, OPT_SAMPLES_OUT, OPT_SAMPLING, OPT_OUTPUT, OPT_QUIET
 };
 
 typedef struct cli_option {
@@ -70,6 +70,10 @@ char cli_short_name(int id);
     {"seed", "S", OPT_SEED,                                                                    \
      "seed of the random streams (default 1); the same seed\ngives the same output on any "     \
      "number of threads"}
+#define CLI_OPT_QUIET                                                                           \
+    {"quiet", NULL, OPT_QUIET,                                                                 \
+     "no caution and no notes under the tables (text and md\non standard output; files keep "  \
+     "them, JSON keeps both)"}
 #define CLI_OPT_HELP {"help", NULL, OPT_HELP, "show this help"}
 #define CLI_OPT_END {NULL, NULL, 0, NULL}
 
@@ -115,6 +119,7 @@ typedef struct common_opts {
     size_t nsets;
     const char *mode;
     lw_rtable_format fmt;
+    bool quiet;        /* -q: no caution and no notes on standard output */
     int threads;
     char use_sets[2][LW_PATH_MAX + 32]; /* --use as --set values */
     /* where the command writes its results (cli_out_open): standard output,

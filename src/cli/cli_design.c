@@ -47,6 +47,7 @@ const cli_option cli_sweep_options[] = {
     {"mode", "NAME", OPT_MODE, "start from a mode"},
     {"format", "text|csv|md|json", OPT_FORMAT,
      "output format (default text; csv, md and json carry\nevery column of 'run --format csv')"},
+    CLI_OPT_QUIET,
     {"plot", "FILE.svg", OPT_PLOT, "runtime against light output, one series per cell"},
     {"columns", "LIST", OPT_COLUMNS, "which columns of 'run --format csv' to show"},
     CLI_OPT_THREADS,
@@ -125,7 +126,7 @@ int cli_sweep(int argc, char **argv)
         total *= vary[k].n;
     /* the rows are written as they complete; the chart comes after them */
     if (st == LW_OK)
-        st = lw_report_sweep_stream(&prof, vary, a.nvary, a.o.threads, a.o.fmt, a.columns, a.o.out,
+        st = lw_report_sweep_stream(&prof, vary, a.nvary, a.o.threads, a.o.fmt, a.o.quiet, a.columns, a.o.out,
                                     want_progress(total) ? progress : NULL, NULL, &sw, &err);
     if (st == LW_OK && a.plot_path)
         st = sweep_plot(a.plot_path, &prof, &sw, &err);
@@ -151,6 +152,7 @@ const cli_option cli_pick_options[] = {
     CLI_OPT_SET,
     CLI_OPT_MODE,
     CLI_OPT_FORMAT,
+    CLI_OPT_QUIET,
     CLI_OPT_HELP,
     CLI_OPT_END};
 
@@ -232,7 +234,7 @@ int cli_pick(int argc, char **argv)
             if (status[i] == LW_OK || (picks[i].resistor_ohm > 0 && picks[i].within_ratings))
                 picks[shown++] = picks[i];
         if (shown)
-            st = lw_report_pick(a.o.out, &prof, picks, shown, a.kind, target, a.o.fmt, &err);
+            st = lw_report_pick(a.o.out, &prof, picks, shown, a.kind, target, a.o.fmt, a.o.quiet, &err);
         for (size_t i = 0; st == LW_OK && i < n; i++)
             if (status[i] != LW_OK)
                 code = report_error(&errs[i]);
@@ -265,6 +267,7 @@ const cli_option cli_size_options[] = {
     CLI_OPT_SET,
     CLI_OPT_MODE,
     CLI_OPT_FORMAT,
+    CLI_OPT_QUIET,
     CLI_OPT_USE,
     CLI_OPT_HELP,
     CLI_OPT_END};
@@ -345,8 +348,10 @@ int cli_size(int argc, char **argv)
     size_t show = fits ? (fits < (size_t)a.top ? fits : (size_t)a.top) : (n ? 1 : 0);
     if (st == LW_OK)
         st = lw_report_size(&prof, &a.opt, rows, show, fits > 0, a.o.fmt, &t, &err);
-    if (st == LW_OK)
+    if (st == LW_OK) {
+        t->quiet = a.o.quiet;
         st = lw_rtable_write(t, a.o.out, a.o.fmt, &err);
+    }
     int code = st == LW_OK ? 0 : report_error(&err);
     if (st == LW_OK && !fits) {
         fprintf(stderr, "lampwick: %s: no pack of %s meets %g h%s\n", prof.path,
@@ -369,6 +374,7 @@ const cli_option cli_table_options[] = {
      "one column group per cell (comma-separated, or 'all';\ndefault: the profile's cell)"},
     CLI_OPT_SET,
     CLI_OPT_FORMAT,
+    CLI_OPT_QUIET,
     CLI_OPT_THREADS,
     {"plot", "FILE.svg", OPT_PLOT,
      "write a chart of every mode's output against time\n(the first cell's)"},
@@ -430,13 +436,16 @@ int cli_table(int argc, char **argv)
         st = lw_report_spec(&spec, a.o.fmt, &t, &err);
     if (st == LW_OK && a.plot_path)
         st = lw_outfile_write(a.plot_path, modes_chart_fn, &spec, &err);
-    if (st == LW_OK)
+    if (st == LW_OK) {
+        t->quiet = a.o.quiet;
         st = lw_rtable_write(t, a.o.out, a.o.fmt, &err);
+    }
     if (st == LW_OK && a.o.fmt != LW_FMT_CSV) { /* CSV stays one table */
         lw_rtable *ct = NULL;
         st = lw_report_spec_corners(&spec, a.o.fmt, &ct, &err);
         if (st == LW_OK) {
             fputc('\n', a.o.out);
+            ct->quiet = a.o.quiet;
             st = lw_rtable_write(ct, a.o.out, a.o.fmt, &err);
         }
         lw_rtable_free(ct);

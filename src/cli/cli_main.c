@@ -161,7 +161,7 @@ int cli_check(int argc, char **argv)
 
 /* ---- cells ---- */
 
-const cli_option cli_cells_options[] = {CLI_OPT_FORMAT, CLI_OPT_HELP, CLI_OPT_END};
+const cli_option cli_cells_options[] = {CLI_OPT_FORMAT, CLI_OPT_QUIET, CLI_OPT_HELP, CLI_OPT_END};
 
 static int cells_option(void *ctx, int id, const char *arg)
 {
@@ -225,8 +225,10 @@ int cli_cells(int argc, char **argv)
         st = lw_rtable_note(t, "Typical values from handbooks and standards, not any maker's "
                                "data; replace them with measured data for a product.",
                             &err);
-    if (t && st == LW_OK)
+    if (t && st == LW_OK) {
+        t->quiet = o.quiet;
         st = lw_rtable_write(t, o.out, o.fmt, &err);
+    }
     lw_rtable_free(t);
     lw_cellfile_list_clear(&list);
     int code = !t || st != LW_OK ? report_error(&err) : bad;

@@ -19,7 +19,7 @@
 
 char cli_short_name(int id)
 {
-    return id == OPT_OUTPUT ? 'o' : 0;
+    return id == OPT_OUTPUT ? 'o' : id == OPT_QUIET ? 'q' : 0;
 }
 
 const cli_command *cli_find(const char *name)
@@ -128,6 +128,9 @@ int common_option(const char *cmd, common_opts *o, int id, const char *arg)
         return 0;
     case OPT_MODE:
         o->mode = arg;
+        return 0;
+    case OPT_QUIET:
+        o->quiet = true;
         return 0;
     case OPT_FORMAT:
         if (!lw_rtable_format_parse(arg, &o->fmt))

@@ -11,6 +11,7 @@ const cli_option cli_run_options[] = {
     CLI_OPT_SET,
     CLI_OPT_MODE,
     CLI_OPT_FORMAT,
+    CLI_OPT_QUIET,
     {"trace", "FILE.csv", OPT_TRACE, "write the discharge as a CSV time series"},
     {"plot", "FILE.svg", OPT_PLOT,
      "write a chart of output and pack voltage (with --use or\n[use]: the output at each "
@@ -132,7 +133,7 @@ int cli_run(int argc, char **argv)
     if (st == LW_OK && a.plot_path)
         st = write_plot(a.plot_path, &prof, &res, &tr, &err);
     if (st == LW_OK)
-        st = lw_report_run_with_corners(a.o.out, a.o.fmt, &prof, &res, &err);
+        st = lw_report_run_with_corners(a.o.out, a.o.fmt, a.o.quiet, &prof, &res, &err);
     int code = st == LW_OK ? 0 : report_error(&err);
     if (st == LW_OK && lw_run_end_is_dark(res.end_reason)) {
         fprintf(stderr, "lampwick: %s: no light: %s\n", prof.path, dark_text(res.end_reason));

@@ -29,6 +29,7 @@ const cli_option cli_spread_options[] = {
     CLI_OPT_SET,
     CLI_OPT_MODE,
     CLI_OPT_FORMAT,
+    CLI_OPT_QUIET,
     CLI_OPT_THREADS,
     CLI_OPT_HELP,
     CLI_OPT_END};
@@ -198,7 +199,7 @@ int cli_spread(int argc, char **argv)
     if (st == LW_OK && a.samples_out)
         st = lw_outfile_write(a.samples_out, samples_fn, &s, &err);
     if (st == LW_OK)
-        st = lw_report_mc(a.o.out, &s, a.o.fmt, &err);
+        st = lw_report_mc(a.o.out, &s, a.o.fmt, a.o.quiet, &err);
     int code = st == LW_OK ? 0 : report_error(&err);
     lw_mc_result_clear(&res);
     lw_profile_clear(&prof);

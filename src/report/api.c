@@ -42,7 +42,7 @@ char *lw_api_run_json(const char *profile_path, const char *mode, const char *co
     if (st == LW_OK && !mem)
         st = lw_error_set(&err, LW_ENOMEM, NULL, 0, "out of memory for the JSON output");
     if (st == LW_OK)
-        st = lw_report_run_with_corners(mem, LW_FMT_JSON, &prof, &res, &err);
+        st = lw_report_run_with_corners(mem, LW_FMT_JSON, false, &prof, &res, &err);
     if (mem && fclose(mem) != 0 && st == LW_OK)
         st = lw_error_set(&err, LW_ENOMEM, NULL, 0, "out of memory for the JSON output");
     lw_jdoc *d = lw_jdoc_new("run", profile_path, &derr);

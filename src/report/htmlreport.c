@@ -412,7 +412,7 @@ static lw_status spread(FILE *fp, const review *v, lw_error *err)
                     err);
     }
     if (st == LW_OK)
-        st = lw_report_mc(fp, &v->study, LW_FMT_HTML, err);
+        st = lw_report_mc(fp, &v->study, LW_FMT_HTML, false, err);
     if (st == LW_OK)
         st = figure(fp, ranking_fn, &v->study, "What drives the runtime and the 30-s output: rank regression.", err);
     section_end(fp);

@@ -75,10 +75,11 @@ static bool tables_only(lw_rtable_format fmt)
 }
 
 /* Write t (freed) and a blank line after it in text and Markdown. */
-static lw_status put(lw_rtable *t, lw_status st, FILE *fp, lw_rtable_format fmt, lw_error *err)
+static lw_status put(lw_rtable *t, lw_status st, FILE *fp, lw_rtable_format fmt, bool quiet, lw_error *err)
 {
     if (!t)
         return st == LW_OK ? LW_ENOMEM : st;
+    t->quiet = quiet;
     if (st == LW_OK)
         st = lw_rtable_write(t, fp, fmt, err);
     lw_rtable_free(t);
@@ -88,7 +89,7 @@ static lw_status put(lw_rtable *t, lw_status st, FILE *fp, lw_rtable_format fmt,
 }
 
 static lw_status summary_table(FILE *fp, const lw_mc_study *s, const lw_mc_summary *sum,
-                               lw_rtable_format fmt, lw_error *err)
+                               lw_rtable_format fmt, bool quiet, lw_error *err)
 {
     static const char *const head[] = {"quantity", "nominal", "mean", "sd", "p1",
                                        "p5",       "p50",     "p95",  "p99"};
@@ -113,10 +114,10 @@ static lw_status summary_table(FILE *fp, const lw_mc_study *s, const lw_mc_summa
                  sum[LW_MC_HALF].n_finite);
         st = lw_rtable_note(t, note, err);
     }
-    return put(t, st, fp, fmt, err);
+    return put(t, st, fp, fmt, quiet, err);
 }
 
-static lw_status interval_table(FILE *fp, const lw_mc_summary *sum, lw_rtable_format fmt,
+static lw_status interval_table(FILE *fp, const lw_mc_summary *sum, lw_rtable_format fmt, bool quiet,
                                 lw_error *err)
 {
     const char *head[1 + 2 * LW_MC_NPCT];
@@ -141,10 +142,10 @@ static lw_status interval_table(FILE *fp, const lw_mc_summary *sum, lw_rtable_fo
             st = set_row_nums(t, row, 1 + 2 * (size_t)k, v, 2, err);
         }
     }
-    return put(t, st, fp, fmt, err);
+    return put(t, st, fp, fmt, quiet, err);
 }
 
-static lw_status keys_table(FILE *fp, const lw_mc_study *s, lw_rtable_format fmt,
+static lw_status keys_table(FILE *fp, const lw_mc_study *s, lw_rtable_format fmt, bool quiet,
                             lw_error *err)
 {
     static const char *const head[] = {"key", "distribution", "nominal", "lowest", "highest",
@@ -182,7 +183,7 @@ static lw_status keys_table(FILE *fp, const lw_mc_study *s, lw_rtable_format fmt
                             "tolerance: flat within the band, the usual reading of a part "
                             "tolerance when the maker states no distribution",
                             err);
-    return put(t, st, fp, fmt, err);
+    return put(t, st, fp, fmt, quiet, err);
 }
 
 /* Units, share and Wilson's interval in columns col.. of row (no interval
@@ -197,7 +198,7 @@ static lw_status share_cells(lw_rtable *t, size_t row, size_t col, size_t k, siz
     return set_row_nums(t, row, col, v, 4, err);
 }
 
-static lw_status ratings_table(FILE *fp, const lw_mc_study *s, lw_rtable_format fmt,
+static lw_status ratings_table(FILE *fp, const lw_mc_study *s, lw_rtable_format fmt, bool quiet,
                                lw_error *err)
 {
     static const char *const head[] = {"warning", "units", "share %", "95 % low", "95 % high"};
@@ -235,10 +236,10 @@ static lw_status ratings_table(FILE *fp, const lw_mc_study *s, lw_rtable_format 
                         "would is below %.3g %% at 95 %% confidence).\n\n", 100.0 * hi);
         return ferror(fp) ? lw_error_set(err, LW_EIO, NULL, 0, "write error") : LW_OK;
     }
-    return put(t, st, fp, fmt, err);
+    return put(t, st, fp, fmt, quiet, err);
 }
 
-static lw_status yield_table(FILE *fp, const lw_mc_study *s, lw_rtable_format fmt,
+static lw_status yield_table(FILE *fp, const lw_mc_study *s, lw_rtable_format fmt, bool quiet,
                              lw_error *err)
 {
     static const char *const head[] = {"target", "units", "share %", "95 % low", "95 % high"};
@@ -261,11 +262,11 @@ static lw_status yield_table(FILE *fp, const lw_mc_study *s, lw_rtable_format fm
         if (st == LW_OK)
             st = share_cells(t, row, 1, k, s->res->n, s->opt->sobol, err);
     }
-    return put(t, st, fp, fmt, err);
+    return put(t, st, fp, fmt, quiet, err);
 }
 
 static lw_status ranking_table(FILE *fp, const lw_mc_study *s, lw_mc_quantity q,
-                               lw_rtable_format fmt, lw_error *err)
+                               lw_rtable_format fmt, bool quiet, lw_error *err)
 {
     static const char *const head[] = {"key", "rank coefficient", "+- (1 se)", "share %"};
     double beta[LW_MC_KEYS_MAX], se[LW_MC_KEYS_MAX], r2;
@@ -278,7 +279,7 @@ static lw_status ranking_table(FILE *fp, const lw_mc_study *s, lw_mc_quantity q,
             char why[LW_ERR_MSG_MAX + 64];
             snprintf(why, sizeof why, "What drives %s", lw_mc_quantity_names[q]);
             lw_rtable *t = table_with(head, 4, why, err);
-            return put(t, t ? lw_rtable_note(t, local.msg, err) : LW_ENOMEM, fp, fmt, err);
+            return put(t, t ? lw_rtable_note(t, local.msg, err) : LW_ENOMEM, fp, fmt, quiet, err);
         }
         fprintf(fp, "What drives %s: %s.\n\n", lw_mc_quantity_names[q], local.msg);
         return ferror(fp) ? lw_error_set(err, LW_EIO, NULL, 0, "write error") : LW_OK;
@@ -308,10 +309,10 @@ static lw_status ranking_table(FILE *fp, const lw_mc_study *s, lw_mc_quantity q,
                             "r2 is low: the quantity is far from monotone in the keys, or they "
                             "interact; read the shares as a rough order only",
                             err);
-    return put(t, st, fp, fmt, err);
+    return put(t, st, fp, fmt, quiet, err);
 }
 
-static lw_status spread_in_c_locale(FILE *fp, const lw_mc_study *s, lw_rtable_format fmt,
+static lw_status spread_in_c_locale(FILE *fp, const lw_mc_study *s, lw_rtable_format fmt, bool quiet,
                                     lw_error *err)
 {
     lw_mc_summary sum[LW_MC_QCOUNT];
@@ -321,7 +322,7 @@ static lw_status spread_in_c_locale(FILE *fp, const lw_mc_study *s, lw_rtable_fo
     if (st != LW_OK)
         return st;
     if (fmt == LW_FMT_CSV)
-        return summary_table(fp, s, sum, fmt, err);
+        return summary_table(fp, s, sum, fmt, quiet, err);
     const lw_mc_summary *rt = &sum[LW_MC_RUNTIME];
     char lo[32] = "-", hi[32] = "-", interval[96];
     if (!isnan(rt->pct_lo[1]))
@@ -337,33 +338,33 @@ static lw_status spread_in_c_locale(FILE *fp, const lw_mc_study *s, lw_rtable_fo
                 "runs %.4g h.\n\n",
             fmt == LW_FMT_MD ? "**" : "", s->prof->light.name, fmt == LW_FMT_MD ? "**" : "",
             rt->pct[1], interval, rt->nominal);
-    st = summary_table(fp, s, sum, fmt, err);
-    if (st == LW_OK && s->opt->sobol && !tables_only(fmt))
+    st = summary_table(fp, s, sum, fmt, quiet, err);
+    if (st == LW_OK && s->opt->sobol && !tables_only(fmt) && !quiet)
         fputs("Sobol points: the estimates converge faster than random units', but the units "
               "are not independent, so no interval is given (sample at random for them).\n\n",
               fp);
     else if (st == LW_OK && !s->opt->sobol)
-        st = interval_table(fp, sum, fmt, err);
+        st = interval_table(fp, sum, fmt, quiet, err);
     if (st == LW_OK && s->ntargets)
-        st = yield_table(fp, s, fmt, err);
+        st = yield_table(fp, s, fmt, quiet, err);
     if (st == LW_OK)
-        st = ratings_table(fp, s, fmt, err);
+        st = ratings_table(fp, s, fmt, quiet, err);
     if (st == LW_OK)
-        st = keys_table(fp, s, fmt, err);
+        st = keys_table(fp, s, fmt, quiet, err);
     if (st == LW_OK)
-        st = ranking_table(fp, s, LW_MC_RUNTIME, fmt, err);
+        st = ranking_table(fp, s, LW_MC_RUNTIME, fmt, quiet, err);
     if (st == LW_OK)
-        st = ranking_table(fp, s, LW_MC_FLUX30, fmt, err);
-    if (st == LW_OK && !tables_only(fmt))
+        st = ranking_table(fp, s, LW_MC_FLUX30, fmt, quiet, err);
+    if (st == LW_OK && !tables_only(fmt) && !quiet)
         fprintf(fp, "%s\n", lw_report_caution);
     return st == LW_OK && ferror(fp) ? lw_error_set(err, LW_EIO, NULL, 0, "write error") : st;
 }
 
-lw_status lw_report_mc(FILE *fp, const lw_mc_study *s, lw_rtable_format fmt,
+lw_status lw_report_mc(FILE *fp, const lw_mc_study *s, lw_rtable_format fmt, bool quiet,
                            lw_error *err)
 {
     locale_t saved = lw_number_locale_begin();
-    lw_status st = spread_in_c_locale(fp, s, fmt, err);
+    lw_status st = spread_in_c_locale(fp, s, fmt, quiet, err);
     lw_number_locale_end(saved);
     return st;
 }

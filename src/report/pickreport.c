@@ -56,7 +56,7 @@ static lw_status corner_table(const lw_pick *pk, lw_rtable_format fmt, lw_rtable
 }
 
 static lw_status pick_text(FILE *fp, const lw_profile *prof, const lw_pick *pk,
-                           lw_target_kind kind, double target, lw_error *err)
+                           lw_target_kind kind, double target, bool quiet, lw_error *err)
 {
     char rt[64];
     lw_report_hours(pk->run.runtime_h, rt, sizeof rt);
@@ -89,6 +89,8 @@ static lw_status pick_text(FILE *fp, const lw_profile *prof, const lw_pick *pk,
     if (pk->profile_rating_w > 0 && pk->profile_rating_w < pk->recommended_rating_w)
         fprintf(fp, "Note: the profile's %g W part is below the recommended rating.\n",
                 pk->profile_rating_w);
+    if (quiet) /* what the corners mean: notes */
+        return ferror(fp) ? lw_error_set(err, LW_EIO, NULL, 0, "write error") : LW_OK;
     fprintf(fp, "Worst case hot: fresh cells at %.3g V open circuit and %.3g ohm each, resistor "
                 "-%g %%, LED forward voltage -%g %%.\n",
             hot->pt.ocv_v, hot->pt.r_cell_ohm, pk->tolerance_pct,
@@ -108,16 +110,16 @@ static lw_status pick_text(FILE *fp, const lw_profile *prof, const lw_pick *pk,
 
 static lw_status lw_report_pick_in_c_locale(FILE *fp, const lw_profile *prof, const lw_pick *picks,
                                             size_t n, lw_target_kind kind, double target,
-                                            lw_rtable_format fmt, lw_error *err)
+                                            lw_rtable_format fmt, bool quiet, lw_error *err)
 {
     lw_status st = LW_OK;
     if (fmt == LW_FMT_TEXT) {
         for (size_t i = 0; i < n && st == LW_OK; i++) {
             if (i)
                 fputc('\n', fp);
-            st = pick_text(fp, prof, &picks[i], kind, target, err);
+            st = pick_text(fp, prof, &picks[i], kind, target, quiet, err);
         }
-        if (st == LW_OK)
+        if (st == LW_OK && !quiet)
             fprintf(fp, "%s\n", lw_report_caution);
         return st == LW_OK && ferror(fp) ? lw_error_set(err, LW_EIO, NULL, 0, "write error")
                                          : st;
@@ -165,14 +167,17 @@ static lw_status lw_report_pick_in_c_locale(FILE *fp, const lw_profile *prof, co
         if (st == LW_OK)
             st = lw_rtable_set(t, row, nh - 1, pk->within_ratings ? "yes" : "no", err);
     }
+    t->quiet = quiet;
     return lw_report_table_write(t, st, fp, fmt, err);
 }
 
 lw_status lw_report_pick(FILE *fp, const lw_profile *prof, const lw_pick *picks, size_t n,
-                         lw_target_kind kind, double target, lw_rtable_format fmt, lw_error *err)
+                         lw_target_kind kind, double target, lw_rtable_format fmt, bool quiet,
+                         lw_error *err)
 {
     locale_t saved = lw_number_locale_begin();
-    lw_status result = lw_report_pick_in_c_locale(fp, prof, picks, n, kind, target, fmt, err);
+    lw_status result =
+        lw_report_pick_in_c_locale(fp, prof, picks, n, kind, target, fmt, quiet, err);
     lw_number_locale_end(saved);
     return result;
 }

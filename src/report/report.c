@@ -546,7 +546,7 @@ static void text_warnings(FILE *fp, const lw_light *l, const lw_result *r)
                 l->drive.regulator_rating_w);
 }
 
-static void text_report(FILE *fp, const lw_profile *p, const lw_result *r)
+static void text_report(FILE *fp, const lw_profile *p, const lw_result *r, bool quiet)
 {
     const lw_light *l = &p->light;
     char cond[96];
@@ -567,14 +567,16 @@ static void text_report(FILE *fp, const lw_profile *p, const lw_result *r)
     }
     fprintf(fp, "\n  (%d operating-point solves)\n", r->solves);
     text_warnings(fp, l, r);
-    fprintf(fp, "\n%s\n", lw_report_caution);
+    if (!quiet)
+        fprintf(fp, "\n%s\n", lw_report_caution);
 }
 
-static lw_status lw_report_run_in_c_locale(FILE *fp, lw_rtable_format fmt, const lw_profile *prof,
-                                           const lw_result *res, lw_error *err)
+static lw_status lw_report_run_in_c_locale(FILE *fp, lw_rtable_format fmt, bool quiet,
+                                           const lw_profile *prof, const lw_result *res,
+                                           lw_error *err)
 {
     if (fmt == LW_FMT_TEXT) {
-        text_report(fp, prof, res);
+        text_report(fp, prof, res, quiet);
         return ferror(fp) ? lw_error_set(err, LW_EIO, NULL, 0, "write error") : LW_OK;
     }
     lw_rtable *t = lw_rtable_new(lw_report_run_ncolumns, err);
@@ -588,6 +590,7 @@ static lw_status lw_report_run_in_c_locale(FILE *fp, lw_rtable_format fmt, const
         st = lw_rtable_add_row(t, &row, err);
     if (st == LW_OK)
         st = lw_report_run_row(t, row, 0, &prof->light, res, err);
+    t->quiet = quiet;
     return lw_report_table_write(t, st, fp, fmt, err);
 }
 
@@ -655,11 +658,11 @@ void lw_report_drive(const lw_light *l, char *buf, size_t size)
     lw_number_locale_end(saved);
 }
 
-lw_status lw_report_run(FILE *fp, lw_rtable_format fmt, const lw_profile *prof,
+lw_status lw_report_run(FILE *fp, lw_rtable_format fmt, bool quiet, const lw_profile *prof,
                         const lw_result *res, lw_error *err)
 {
     locale_t saved = lw_number_locale_begin();
-    lw_status result = lw_report_run_in_c_locale(fp, fmt, prof, res, err);
+    lw_status result = lw_report_run_in_c_locale(fp, fmt, quiet, prof, res, err);
     lw_number_locale_end(saved);
     return result;
 }
@@ -729,10 +732,10 @@ lw_status lw_report_corners(const lw_corner c[LW_CORNER_COUNT], const char *titl
     return st;
 }
 
-lw_status lw_report_run_with_corners(FILE *fp, lw_rtable_format fmt, const lw_profile *prof,
-                                     const lw_result *res, lw_error *err)
+lw_status lw_report_run_with_corners(FILE *fp, lw_rtable_format fmt, bool quiet,
+                                     const lw_profile *prof, const lw_result *res, lw_error *err)
 {
-    lw_status st = lw_report_run(fp, fmt, prof, res, err);
+    lw_status st = lw_report_run(fp, fmt, quiet, prof, res, err);
     if (st != LW_OK || fmt == LW_FMT_CSV || lw_run_end_is_dark(res->end_reason))
         return st;
     lw_corner corners[LW_CORNER_COUNT];
@@ -740,6 +743,8 @@ lw_status lw_report_run_with_corners(FILE *fp, lw_rtable_format fmt, const lw_pr
     st = lw_corner_compute(&prof->light, res, corners, err);
     if (st == LW_OK)
         st = lw_report_corners(corners, "Corners (fresh cells unless said)", fmt, &t, err);
+    if (st == LW_OK)
+        t->quiet = quiet;
     if (st == LW_OK && fmt != LW_FMT_JSON)
         fputc('\n', fp);
     if (st == LW_OK)

@@ -376,10 +376,8 @@ static bool write_text(const lw_rtable *t, FILE *fp)
         }
         fputc('\n', fp);
     }
-    if (t->nnotes)
-        fputc('\n', fp);
-    for (size_t i = 0; i < t->nnotes; i++)
-        fprintf(fp, "%s\n", t->notes[i]);
+    for (size_t i = 0; !t->quiet && i < t->nnotes; i++)
+        fprintf(fp, "%s%s\n", i ? "" : "\n", t->notes[i]);
     free(w);
     free(num);
     return true;
@@ -427,6 +425,8 @@ static void md_head(const lw_rtable *t, FILE *fp)
 
 static void md_notes(const lw_rtable *t, FILE *fp)
 {
+    if (t->quiet)
+        return;
     if (t->nnotes)
         fputc('\n', fp);
     for (size_t i = 0; i < t->nnotes; i++)
@@ -652,7 +652,7 @@ static void write_html(const lw_rtable *t, FILE *fp)
     }
     fputs("</tbody>\n</table>\n", fp);
     free(num);
-    if (t->nnotes) {
+    if (t->nnotes && !t->quiet) {
         fputs("<div class=\"notes\">\n", fp);
         for (size_t i = 0; i < t->nnotes; i++) {
             fputs("<p>", fp);

@@ -283,7 +283,7 @@ static lw_status writer_init(struct writer *wr, int workers, lw_error *err)
 
 static lw_status sweep_stream_in_c_locale(const lw_profile *base, const lw_vary *vary,
                                           size_t nvary, int threads, lw_rtable_format fmt,
-                                          const char *columns, FILE *fp,
+                                          bool quiet, const char *columns, FILE *fp,
                                           lw_pool_progress_fn progress, void *progress_ctx,
                                           lw_sweep *sw, lw_error *err)
 {
@@ -298,6 +298,8 @@ static lw_status sweep_stream_in_c_locale(const lw_profile *base, const lw_vary 
                         .cols = cols, .st = LW_OK};
     lw_error_clear(&wr.err);
     st = writer_init(&wr, workers, err);
+    if (wr.head)
+        wr.head->quiet = quiet;
     if (st == LW_OK && fmt == LW_FMT_CSV)
         st = lw_rtable_write_head(wr.head, fp, fmt, err);
     if (st != LW_OK) {
@@ -329,12 +331,13 @@ static lw_status sweep_stream_in_c_locale(const lw_profile *base, const lw_vary 
 }
 
 lw_status lw_report_sweep_stream(const lw_profile *base, const lw_vary *vary, size_t nvary,
-                                 int threads, lw_rtable_format fmt, const char *columns, FILE *fp,
+                                 int threads, lw_rtable_format fmt, bool quiet, const char *columns,
+                                 FILE *fp,
                                  lw_pool_progress_fn progress, void *progress_ctx, lw_sweep *sw,
                                  lw_error *err)
 {
     locale_t saved = lw_number_locale_begin();
-    lw_status result = sweep_stream_in_c_locale(base, vary, nvary, threads, fmt, columns, fp,
+    lw_status result = sweep_stream_in_c_locale(base, vary, nvary, threads, fmt, quiet, columns, fp,
                                                 progress, progress_ctx, sw, err);
     lw_number_locale_end(saved);
     return result;

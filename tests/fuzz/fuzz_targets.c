@@ -94,10 +94,10 @@ static void exercise(lw_profile *p)
         FILE *sink = fopen("/dev/null", "w");
         lw_trace tr;
         if (sink) {
-            any(lw_report_run(sink, LW_FMT_TEXT, p, &r, &e));
-            any(lw_report_run(sink, LW_FMT_CSV, p, &r, &e));
-            any(lw_report_run(sink, LW_FMT_MD, p, &r, &e));
-            any(lw_report_run_with_corners(sink, LW_FMT_JSON, p, &r, &e));
+            any(lw_report_run(sink, LW_FMT_TEXT, false, p, &r, &e));
+            any(lw_report_run(sink, LW_FMT_CSV, false, p, &r, &e));
+            any(lw_report_run(sink, LW_FMT_MD, true, p, &r, &e));
+            any(lw_report_run_with_corners(sink, LW_FMT_JSON, false, p, &r, &e));
             if (lw_trace_build(&p->light, &r, 50, &tr, &e) == LW_OK) {
                 any(lw_report_trace_csv(sink, &tr, &e));
                 any(lw_plot_run(sink, "fuzz", &p->light, &r, &tr, &e));
