@@ -19,16 +19,13 @@ import sys
 
 import jsonschema
 
+sys.path.insert(0, str(pathlib.Path(__file__).resolve().parent))
+from checklib import count, fail, finish  # noqa: E402
+
 LW, LIB, ROOT = sys.argv[1], sys.argv[2], pathlib.Path(sys.argv[3])
 EXAMPLE = ROOT / "docs" / "examples" / "run_light.py"
 ENV = dict(os.environ, LAMPWICK_CELLS=str(ROOT / "cells"))
-failures = checks = 0
 
-
-def fail(msg):
-    global failures
-    failures += 1
-    print("FAIL:", msg)
 
 
 def example(args):
@@ -51,7 +48,7 @@ validator = jsonschema.Draft202012Validator(
                                                 store={base["$id"]: base}))
 
 for p in sorted((ROOT / "profiles").glob("*.ini")):
-    checks += 1
+    count()
     rc, out, err = example([str(p), "--json"])
     want = cli(["run", str(p)])
     if rc != 0 or want is None:
@@ -67,7 +64,7 @@ for p in sorted((ROOT / "profiles").glob("*.ini")):
 demo = str(ROOT / "profiles" / "demo.ini")
 for extra in (["--set", "drive.resistor_ohm=47"], ["--mode", "high"],
               ["--mode", "low", "--set", "pack.ambient_c=0"]):
-    checks += 1
+    count()
     rc, out, _ = example([demo, "--json"] + extra)
     want = cli(["run", demo] + extra)
     plain = cli(["run", demo])
@@ -82,7 +79,7 @@ for extra in (["--set", "drive.resistor_ohm=47"], ["--mode", "high"],
         fail("%s: the runtime did not move" % extra)
 
 # the text the example prints carries the runtime
-checks += 1
+count()
 rc, out, _ = example([demo])
 rt = cli(["run", demo])["tables"][0]["rows"][0]["runtime_h"]
 if rc != 0 or ("%.2f h to cutoff" % rt) not in out:
@@ -92,7 +89,7 @@ if rc != 0 or ("%.2f h to cutoff" % rt) not in out:
 for args, where in (([str(ROOT / "no-such.ini")], "no-such.ini"),
                     ([demo, "--set", "drive.resistor_ohm=abc"], "--set drive.resistor_ohm"),
                     ([demo, "--mode", "nonesuch"], "")):
-    checks += 1
+    count()
     rc, out, err = example(args + ["--json"])
     doc = json.loads(out) if out.strip() else {}
     e = doc.get("error")
@@ -102,5 +99,4 @@ for args, where in (([str(ROOT / "no-such.ini")], "no-such.ini"),
         for v in validator.iter_errors(doc):
             fail("%s: %s" % (args, v.message))
 
-print("%d checks, %d failures" % (checks, failures))
-sys.exit(1 if failures or checks == 0 else 0)
+finish()

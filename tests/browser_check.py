@@ -26,25 +26,15 @@ import sys
 import tempfile
 import xml.etree.ElementTree as ET
 
+sys.path.insert(0, str(pathlib.Path(__file__).resolve().parent))
+from checklib import check, fail, finish  # noqa: E402
+
 LW, ROOT, OUT = sys.argv[1], pathlib.Path(sys.argv[2]), pathlib.Path(sys.argv[3])
 CHROMIUM = sys.argv[4] if len(sys.argv) > 4 else shutil.which("chromium") or "chromium"
 SECTIONS = ["summary", "inputs", "provenance", "specification", "discharge", "energy",
             "corners", "spread", "warnings", "caution"]
-failures = checks = 0
 
 
-def fail(msg):
-    global failures
-    failures += 1
-    print("FAIL:", msg)
-
-
-def ok(cond, msg):
-    global checks
-    checks += 1
-    if not cond:
-        fail(msg)
-    return cond
 
 
 def chromium(args, profile_dir):
@@ -78,15 +68,15 @@ class Dom(html.parser.HTMLParser):
 
 
 def static_checks(name, text):
-    ok("<script" not in text.lower(), "%s: a script" % name)
-    ok(not re.search(r"""\s(src|href)\s*=""", text, re.I), "%s: an external reference" % name)
-    ok("url(" not in text and "@import" not in text, "%s: a CSS reference" % name)
+    check("<script" not in text.lower(), "%s: a script" % name)
+    check(not re.search(r"""\s(src|href)\s*=""", text, re.I), "%s: an external reference" % name)
+    check("url(" not in text and "@import" not in text, "%s: a CSS reference" % name)
     svgs = re.findall(r"<svg xmlns=.*?</svg>\n(?=<figcaption)", text, re.S)
-    ok(len(svgs) >= 3, "%s: %d charts" % (name, len(svgs)))
+    check(len(svgs) >= 3, "%s: %d charts" % (name, len(svgs)))
     for k, s in enumerate(svgs):
         try:
             root = ET.fromstring(s)
-            ok(root.find("{http://www.w3.org/2000/svg}title") is not None,
+            check(root.find("{http://www.w3.org/2000/svg}title") is not None,
                "%s: chart %d has no <title>" % (name, k))
         except ET.ParseError as e:
             fail("%s: chart %d is not XML: %s" % (name, k, e))
@@ -101,48 +91,47 @@ with tempfile.TemporaryDirectory() as tmp:
         page = OUT / (name + ".html")
         p = subprocess.run([LW, "report", str(prof), "-o", str(page), "--samples", "2000"],
                            capture_output=True, text=True, env=env, timeout=300)
-        if not ok(p.returncode == 0, "%s: report exit %d: %s" % (name, p.returncode, p.stderr)):
+        if not check(p.returncode == 0, "%s: report exit %d: %s" % (name, p.returncode, p.stderr)):
             continue
         text = page.read_text(encoding="utf-8")
-        ok("2026-01-01" in text, "%s: the date of SOURCE_DATE_EPOCH is not shown" % name)
+        check("2026-01-01" in text, "%s: the date of SOURCE_DATE_EPOCH is not shown" % name)
         ncharts = static_checks(name, text)
         url = page.resolve().as_uri()
 
         d = chromium(["--dump-dom", url], tmp)
-        if ok(d.returncode == 0 and "</html>" in d.stdout, "%s: --dump-dom failed: %s" %
+        if check(d.returncode == 0 and "</html>" in d.stdout, "%s: --dump-dom failed: %s" %
               (name, d.stderr[-300:])):
             dom = Dom()
             dom.feed(d.stdout)
-            ok(dom.sections == SECTIONS, "%s: sections %s" % (name, dom.sections))
-            ok(dom.headed == set(SECTIONS), "%s: sections without a heading: %s" %
+            check(dom.sections == SECTIONS, "%s: sections %s" % (name, dom.sections))
+            check(dom.headed == set(SECTIONS), "%s: sections without a heading: %s" %
                (name, set(SECTIONS) - dom.headed))
-            ok(len(dom.tables) >= 5, "%s: %d tables" % (name, len(dom.tables)))
+            check(len(dom.tables) >= 5, "%s: %d tables" % (name, len(dom.tables)))
             for k, t in enumerate(dom.tables):
-                ok(t["thead"] and t["th"] > 0, "%s: table %d has no header" % (name, k))
-            ok(dom.svgs == ncharts, "%s: the browser built %d charts of %d" %
+                check(t["thead"] and t["th"] > 0, "%s: table %d has no header" % (name, k))
+            check(dom.svgs == ncharts, "%s: the browser built %d charts of %d" %
                (name, dom.svgs, ncharts))
 
         pdf = OUT / (name + ".pdf")
         r = chromium(["--no-pdf-header-footer", "--print-to-pdf=" + str(pdf), url], tmp)
-        if ok(r.returncode == 0 and pdf.exists(), "%s: --print-to-pdf failed" % name):
+        if check(r.returncode == 0 and pdf.exists(), "%s: --print-to-pdf failed" % name):
             info = subprocess.run(["pdfinfo", str(pdf)], capture_output=True, text=True)
             m = re.search(r"^Pages:\s+(\d+)", info.stdout, re.M)
             pages = int(m.group(1)) if m else 0
-            ok(pages >= len(SECTIONS), "%s: %d pages for %d sections" % (name, pages,
+            check(pages >= len(SECTIONS), "%s: %d pages for %d sections" % (name, pages,
                                                                       len(SECTIONS)))
             body = subprocess.run(["pdftotext", "-layout", str(pdf), "-"], capture_output=True,
                                   text=True).stdout
-            ok("Runtime table:" in body, "%s: the PDF lacks the specification table" % name)
-            ok("Caution" in body and "qualified people" in body,
+            check("Runtime table:" in body, "%s: the PDF lacks the specification table" % name)
+            check("Caution" in body and "qualified people" in body,
                "%s: the PDF lacks the caution" % name)
             m = re.search(r"<caption>Runtime table:.*?<tbody>\n<tr><td>([^<]*)</td>", text, re.S)
-            ok(m is not None and m.group(1) in body,
+            check(m is not None and m.group(1) in body,
                "%s: the PDF lacks the table's first row (%s)" % (name, m and m.group(1)))
 
         shot = OUT / (name + ".png")
         s = chromium(["--screenshot=" + str(shot), "--window-size=1200,2400", url], tmp)
-        ok(s.returncode == 0 and shot.exists() and shot.stat().st_size > 10000,
+        check(s.returncode == 0 and shot.exists() and shot.stat().st_size > 10000,
            "%s: --screenshot failed" % name)
 
-print("%d checks, %d failures; pages and screenshots in %s" % (checks, failures, OUT))
-sys.exit(1 if failures or checks == 0 else 0)
+finish("; pages and screenshots in %s" % OUT)

@@ -23,16 +23,12 @@ import sys
 
 import jsonschema
 
+sys.path.insert(0, str(pathlib.Path(__file__).resolve().parent))
+from checklib import count, fail, finish  # noqa: E402
+
 LW, ROOT = sys.argv[1], pathlib.Path(sys.argv[2])
 SCHEMAS = ROOT / "docs" / "schema"
-failures = 0
-checks = 0
 
-
-def fail(msg):
-    global failures
-    failures += 1
-    print("FAIL:", msg)
 
 
 def no_duplicates(pairs):
@@ -68,13 +64,12 @@ def lampwick(args, expect_rc=0):
     return p.stdout
 
 
-def check(command, args):
+def validate(command, args):
     """Run, parse and validate; return the document (None on failure)."""
-    global checks
     out = lampwick(args + ["--format", "json"])
     if out is None:
         return None
-    checks += 1
+    count()
     try:
         doc = json.loads(out, object_pairs_hook=no_duplicates)
     except ValueError as e:
@@ -90,19 +85,19 @@ profiles = sorted((ROOT / "profiles").glob("*.ini"))
 docs = {}
 for p in profiles:
     prof = str(p)
-    docs[("run", p.name)] = check("run", ["run", prof])
-    check("table", ["table", prof])
-    check("sweep", ["sweep", prof, "--vary", "pack.ambient_c=0,20"])
-    check("spread", ["spread", prof, "--samples", "64"])
+    docs[("run", p.name)] = validate("run", ["run", prof])
+    validate("table", ["table", prof])
+    validate("sweep", ["sweep", prof, "--vary", "pack.ambient_c=0,20"])
+    validate("spread", ["spread", prof, "--samples", "64"])
     # two cells in series overdrive the headlamp's LED into thermal runaway,
     # which size refuses outright (a known limit, DEVELOPERS.md)
     extra = ["--max-series", "1"] if p.name == "headlamp-18650.ini" else []
-    check("size", ["size", prof, "--runtime-h", "2"] + extra)
+    validate("size", ["size", prof, "--runtime-h", "2"] + extra)
     if "type = converter" not in p.read_text():
-        check("pick", ["pick", prof, "--target-ma", "10"])
-check("cells", ["cells"])
-check("fit led", ["fit", "led", str(ROOT / "docs" / "examples" / "white-led-bench.csv")])
-check("spread", ["spread", str(ROOT / "profiles" / "demo.ini"), "--samples", "64",
+        validate("pick", ["pick", prof, "--target-ma", "10"])
+validate("cells", ["cells"])
+validate("fit led", ["fit", "led", str(ROOT / "docs" / "examples" / "white-led-bench.csv")])
+validate("spread", ["spread", str(ROOT / "profiles" / "demo.ini"), "--samples", "64",
                  "--target", "runtime_h>=55", "--sampling", "sobol"])
 
 # the numbers are CSV's, bit for bit
@@ -114,7 +109,7 @@ for p in profiles:
     row = next(csv.DictReader(io.StringIO(out)))
     jrow = doc["tables"][0]["rows"][0]
     for k, text in row.items():
-        checks += 1
+        count()
         v = jrow.get(k, "missing")
         if text == "":
             ok = v is None
@@ -136,11 +131,10 @@ if demo:
     d = copy.deepcopy(demo); d["tables"][0]["rows"][0]["extra"] = 1; broken.append(("unknown column", d))
     d = copy.deepcopy(demo); del d["caution"]; broken.append(("no caution", d))
     for what, d in broken:
-        checks += 1
+        count()
         if run_v.is_valid(d):
             fail("the run schema takes a document with its %s" % what)
 else:
     fail("no demo run document")
 
-print("%d checks, %d failures" % (checks, failures))
-sys.exit(1 if failures or checks == 0 else 0)
+finish()

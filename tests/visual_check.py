@@ -28,19 +28,16 @@ import tempfile
 
 from PIL import Image, ImageChops, ImageDraw
 
+sys.path.insert(0, str(pathlib.Path(__file__).resolve().parent))
+from checklib import count, fail, finish  # noqa: E402
+
 args = [a for a in sys.argv[1:] if a != "--update"]
 UPDATE = "--update" in sys.argv
 LW, ROOT, OUT = args[0], pathlib.Path(args[1]), pathlib.Path(args[2])
 CHROMIUM = args[3] if len(args) > 3 else shutil.which("chromium") or "chromium"
 REF = ROOT / "tests" / "visual"
 TOL_DIFF, TOL_SHARE = 40, 0.0005
-failures = checks = 0
 
-
-def fail(msg):
-    global failures
-    failures += 1
-    print("FAIL:", msg)
 
 
 def charts(out):
@@ -100,7 +97,7 @@ with tempfile.TemporaryDirectory() as tmp:
     for name, cmd in charts(OUT):
         p = subprocess.run([LW] + cmd, capture_output=True, text=True, env=env, timeout=300)
         svg, png = OUT / (name + ".svg"), OUT / (name + ".png")
-        checks += 1
+        count()
         if p.returncode != 0 or not svg.exists():
             fail("%s: lampwick %s: exit %d %s" % (name, " ".join(cmd[:2]), p.returncode,
                                                   p.stderr.strip()))
@@ -127,11 +124,10 @@ with tempfile.TemporaryDirectory() as tmp:
                     OUT / (name + ".diff.png"))
     # the comparison can fail: a block painted into a render
     if first is not None and not UPDATE:
-        checks += 1
+        count()
         bad = first.convert("RGB").copy()
         ImageDraw.Draw(bad).rectangle([200, 200, 219, 219], fill=(0, 0, 0))
         if differs(bad, first) is None:
             fail("the comparison takes a render with a 20 x 20 block painted in")
 
-print("%d checks, %d failures%s" % (checks, failures, "; references updated" if UPDATE else ""))
-sys.exit(1 if failures or checks == 0 else 0)
+finish("; references updated" if UPDATE else "")

@@ -104,6 +104,13 @@ LW_MUST_CHECK lw_status lw_plot_run(FILE *fp, const char *title, const lw_light 
 LW_MUST_CHECK lw_status lw_plot_sessions(FILE *fp, const char *title, const lw_light *light,
                                          const lw_result *res, lw_error *err);
 
+/* The chart of a run as its use calls for: night by night (lw_plot_sessions)
+ * for a run in sessions, else output and voltage over the run
+ * (lw_plot_run). */
+LW_MUST_CHECK lw_status lw_plot_discharge(FILE *fp, const char *title, const lw_light *light,
+                                          const lw_result *res, const lw_trace *trace,
+                                          lw_error *err);
+
 /* The chart a specification carries: every mode's light output (lm)
  * against hours since switch-on, with cell column c of the table's runs
  * (each mode run again with its trace, lw_spec_trace).  At most

@@ -68,9 +68,7 @@ static lw_status plot_fn(FILE *fp, const void *ctx, lw_error *err)
     char title[160];
     snprintf(title, sizeof title, "%s%s%s", c->prof->light.name, c->prof->mode[0] ? ", mode " : "",
              c->prof->mode);
-    if (c->res->n_sessions > 0) /* in sessions: night by night */
-        return lw_plot_sessions(fp, title, &c->prof->light, c->res, err);
-    return lw_plot_run(fp, title, &c->prof->light, c->res, c->tr, err);
+    return lw_plot_discharge(fp, title, &c->prof->light, c->res, c->tr, err);
 }
 
 static lw_status write_trace(const char *path, const lw_trace *tr, lw_error *err)

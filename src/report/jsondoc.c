@@ -138,7 +138,9 @@ char *lw_jdoc_print(const lw_jdoc *d, lw_error *err)
     memcpy(p, head, n - 1); /* without its closing brace */
     p += n - 1;
     cJSON_free(head);
-    p += sprintf(p, ",\n\"tables\": [");
+    static const char tables[] = ",\n\"tables\": [";
+    memcpy(p, tables, sizeof tables - 1);
+    p += sizeof tables - 1;
     for (size_t i = 0; i < d->ntables; i++) {
         size_t k = strlen(d->tables[i]);
         *p++ = '\n';
@@ -147,6 +149,7 @@ char *lw_jdoc_print(const lw_jdoc *d, lw_error *err)
         if (i + 1 < d->ntables)
             *p++ = ',';
     }
-    strcpy(p, d->ntables ? "\n]}\n" : "]}\n");
+    const char *end = d->ntables ? "\n]}\n" : "]}\n";
+    memcpy(p, end, strlen(end) + 1); /* total has room: 32 bytes over the parts */
     return out;
 }

@@ -966,3 +966,11 @@ lw_status lw_plot_sweep(const lw_profile *prof, const lw_sweep *sw, lw_chart *c,
     lw_number_locale_end(saved);
     return result;
 }
+
+lw_status lw_plot_discharge(FILE *fp, const char *title, const lw_light *light,
+                            const lw_result *res, const lw_trace *trace, lw_error *err)
+{
+    if (res->n_sessions > 0) /* in sessions: night by night */
+        return lw_plot_sessions(fp, title, light, res, err);
+    return lw_plot_run(fp, title, light, res, trace, err);
+}
