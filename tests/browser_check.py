@@ -96,6 +96,10 @@ with tempfile.TemporaryDirectory() as tmp:
         text = page.read_text(encoding="utf-8")
         check("2026-01-01" in text, "%s: the date of SOURCE_DATE_EPOCH is not shown" % name)
         ncharts = static_checks(name, text)
+        check(re.search(r"<li>profile: .*</li>\n<li>cell file: ", text) is not None,
+              "%s: the provenance lacks the profile or the cell file" % name)
+        check(text.count('<th scope="col">key</th>') == 1 and "line " in text,
+              "%s: the inputs are not echoed with their lines" % name)
         url = page.resolve().as_uri()
 
         d = chromium(["--dump-dom", url], tmp)

@@ -273,6 +273,16 @@ static lw_status inputs(FILE *fp, const review *v, lw_error *err)
     return st;
 }
 
+/* Whether the path read is the one a key names: the same, or the key's
+ * relative name at its end ("profiles/led-iv.csv" and "led-iv.csv"). */
+static bool same_file(const char *read, const char *named)
+{
+    size_t n = strlen(read), k = strlen(named);
+    if (!k)
+        return false;
+    return !strcmp(read, named) || (k < n && read[n - k - 1] == '/' && !strcmp(read + n - k, named));
+}
+
 static void provenance(FILE *fp, const review *v)
 {
     const lw_profile *p = v->prof;
@@ -282,14 +292,14 @@ static void provenance(FILE *fp, const review *v)
     size_t n = lw_profile_inputs(p, files, 16);
     fputs("<ul>\n", fp);
     for (size_t i = 0; i < n; i++) {
-        const char *role = !strcmp(files[i], p->path)                        ? "profile"
-                           : !strcmp(files[i], p->cell_path)                 ? "cell file"
-                           : !strcmp(files[i], l->pack.cell.curve_path)      ? "cell discharge curve"
-                           : !strcmp(files[i], l->pack.cell.temperature_path) ? "cell temperature table"
-                           : !strcmp(files[i], p->iv_file)                   ? "LED I-V (measured)"
-                           : !strcmp(files[i], p->flux_file)                 ? "LED light output (measured)"
-                           : !strcmp(files[i], p->efficiency_file)           ? "driver efficiency (measured)"
-                                                                              : "input";
+        const char *role = same_file(files[i], p->path)                        ? "profile"
+                           : same_file(files[i], p->cell_path)                 ? "cell file"
+                           : same_file(files[i], l->pack.cell.curve_path)      ? "cell discharge curve"
+                           : same_file(files[i], l->pack.cell.temperature_path) ? "cell temperature table"
+                           : same_file(files[i], p->iv_file)                   ? "LED I-V (measured)"
+                           : same_file(files[i], p->flux_file)                 ? "LED light output (measured)"
+                           : same_file(files[i], p->efficiency_file)           ? "driver efficiency (measured)"
+                                                                                : "input";
         fputs("<li>", fp);
         text(fp, role);
         fputs(": <code>", fp);
@@ -346,8 +356,11 @@ static lw_status discharge(FILE *fp, const review *v, lw_error *err)
         const char *mode = k->variant.mode ? k->variant.mode : v->prof->mode;
         snprintf(title, sizeof title, "%s%s%s", v->prof->light.name, mode[0] ? ", mode " : "",
                  mode);
-        snprintf(cap, sizeof cap, "%s%s: light output and pack voltage over the run.",
-                 mode[0] ? "Mode " : "The light", mode);
+        snprintf(cap, sizeof cap, "%s%s: %s over the run.", mode[0] ? "Mode " : "The light",
+                 mode,
+                 k->res.n_sessions > 0     ? "light output and weakest cell at each switch-on"
+                 : k->light.thermal.enabled ? "light output, pack voltage and temperatures"
+                                            : "light output and pack voltage");
         mode_chart m = {title, &k->light, &res, &tr};
         if (st == LW_OK) {
             if (s->nrows > 1) {
@@ -400,13 +413,15 @@ static lw_status spread(FILE *fp, const review *v, lw_error *err)
     lw_mc_summary rt;
     lw_status st = lw_mc_summarise(&v->mc, LW_MC_RUNTIME, &rt, err);
     if (st == LW_OK) {
-        char buf[320];
+        char buf[400], interval[96] = "no interval at this many units";
+        if (!isnan(rt.pct_lo[1]) && !isnan(rt.pct_hi[1]))
+            snprintf(interval, sizeof interval, "95 %% interval %.4g to %.4g h", rt.pct_lo[1],
+                     rt.pct_hi[1]);
         snprintf(buf, sizeof buf,
                  "%zu units sampled at random (seed %llu) from the profile's [spread] "
-                 "section: 95 %% of units run at least %.4g h (95 %% interval %.4g to %.4g h); "
-                 "the nominal unit runs %.4g h.",
-                 v->mc.n, (unsigned long long)v->mco.seed, rt.pct[1], rt.pct_lo[1],
-                 rt.pct_hi[1], rt.nominal);
+                 "section: 95 %% of units run at least %.4g h (%s); the nominal unit runs "
+                 "%.4g h.",
+                 v->mc.n, (unsigned long long)v->mco.seed, rt.pct[1], interval, rt.nominal);
         para(fp, buf);
         st = figure(fp, hist_fn, &v->study, "Runtime over the sampled units, percentiles marked.",
                     err);
