@@ -98,7 +98,7 @@ with tempfile.TemporaryDirectory() as tmp:
         ncharts = static_checks(name, text)
         check(re.search(r"<li>profile: .*</li>\n<li>cell file: ", text) is not None,
               "%s: the provenance lacks the profile or the cell file" % name)
-        check(text.count('<th scope="col">given at</th>') == 1 and "<td>line " in text,
+        check("<tr><td>pack</td><td>cell</td>" in text and "<td>line " in text,
               "%s: the inputs are not echoed with their lines" % name)
         url = page.resolve().as_uri()
 
