@@ -503,7 +503,8 @@ static lw_status html_in_c_locale(FILE *fp, const lw_profile *prof, const lw_htm
         provenance(fp, &v);
         section_begin(fp, "specification", "Specification table");
         lw_rtable *t = NULL;
-        st = put_table(fp, t, lw_report_spec(&v.spec, LW_FMT_HTML, &t, err), err);
+        st = lw_report_spec(&v.spec, LW_FMT_HTML, &t, err);
+        st = put_table(fp, t, st, err);
         section_end(fp);
     }
     if (st == LW_OK)

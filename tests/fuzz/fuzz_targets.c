@@ -113,7 +113,7 @@ static void exercise(lw_profile *p)
         if (lw_report_spec_table(p, NULL, LW_FMT_TEXT, 1, &t, &e) == LW_OK)
             lw_rtable_free(t);
         /* the design review: every section, a small spread study */
-        lw_html_options ho = {.date = "2026-01-01", .spread_samples = 16, .seed = 1,
+        lw_html_options ho = {.date = "2026-01-01", .spread_samples = 4, .seed = 1,
                               .threads = 1};
         FILE *sink = fopen("/dev/null", "w");
         if (sink) {
