@@ -425,7 +425,7 @@ expect 0 '^  -o, --output FILE.html' "$LW" report --help
 
 # -q: no caution and no notes on standard output, the results unchanged
 for c in "run profiles/demo.ini" "table profiles/demo.ini" "pick profiles/demo.ini --target-ma 30" \
-         "spread profiles/demo.ini --samples 100" "sweep profiles/demo.ini --vary drive.resistor_ohm=22,33" \
+         "spread profiles/demo.ini --samples 20" "sweep profiles/demo.ini --vary drive.resistor_ohm=22,33" \
          "size profiles/demo.ini --runtime-h 30" "cells"; do
     for f in text md; do
         # shellcheck disable=SC2086
