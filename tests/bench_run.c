@@ -278,8 +278,8 @@ static int sweep_job(const void *ctx)
     lw_sweep sw;
     int rc = out && lw_vary_parse("drive.resistor_ohm=10..1009:1", a->p, &v[0], &e) == LW_OK &&
                      lw_vary_parse("pack.ambient_c=-10..39.5:0.5", a->p, &v[1], &e) == LW_OK &&
-                     lw_report_sweep_stream(a->p, v, 2, a->threads, LW_FMT_CSV, false, NULL, out, NULL,
-                                            NULL, &sw, &e) == LW_OK
+                     lw_report_sweep_stream(a->p, v, 2, a->threads, LW_FMT_CSV, false, NULL, out,
+                                            NULL, NULL, &sw, &e) == LW_OK
                  ? 0
                  : 1;
     if (rc)

@@ -6,7 +6,7 @@ Usage: browser_check.py LAMPWICK SOURCE_ROOT OUT_DIR [CHROMIUM]
 For every bundled profile, `lampwick report` writes OUT_DIR/NAME.html and
 headless Chromium (Debian's package) reads it:
 - --dump-dom: the document as the browser built it has every section of
-  lw_html_sections (spread: the bundled profiles all have a [spread]
+  htmlreport.h, in order (spread: the bundled profiles all have a [spread]
   section), a heading in each, every table has a header row of <th>, the
   inline charts are all there; the file has no script, no external
   reference (src, href, url(), @import) and every <svg> parses as XML;
@@ -110,6 +110,8 @@ with tempfile.TemporaryDirectory() as tmp:
             check(dom.sections == SECTIONS, "%s: sections %s" % (name, dom.sections))
             check(dom.headed == set(SECTIONS), "%s: sections without a heading: %s" %
                (name, set(SECTIONS) - dom.headed))
+            # inputs, specification, energy, corners and the spread's summary
+            # at least (htmlreport.c)
             check(len(dom.tables) >= 5, "%s: %d tables" % (name, len(dom.tables)))
             for k, t in enumerate(dom.tables):
                 check(t["thead"] and t["th"] > 0, "%s: table %d has no header" % (name, k))
@@ -135,6 +137,8 @@ with tempfile.TemporaryDirectory() as tmp:
 
         shot = OUT / (name + ".png")
         s = chromium(["--screenshot=" + str(shot), "--window-size=1200,2400", url], tmp)
+        # a page of text and charts; a blank screenshot of this size is a
+        # few kilobytes (a judgement, no source)
         check(s.returncode == 0 and shot.exists() and shot.stat().st_size > 10000,
            "%s: --screenshot failed" % name)
 

@@ -83,7 +83,8 @@ static void produce(FILE *out)
     lw_pick pk;
     ok(lw_pick_resistor(&p, LW_TARGET_CURRENT, 0.020, 24, &pk, &e), &e, "pick");
     for (int f = 0; f < 3; f++)
-        ok(lw_report_pick(out, &p, &pk, 1, LW_TARGET_CURRENT, 0.020, (lw_rtable_format)f, false, &e),
+        ok(lw_report_pick(out, &p, &pk, 1, LW_TARGET_CURRENT, 0.020, (lw_rtable_format)f, false,
+                          &e),
            &e, "pick report");
     lw_pick_clear(&pk);
     lw_size_options so = {.runtime_h = 10, .max_series = 3, .max_parallel = 2, .eseries = 24,

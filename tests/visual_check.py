@@ -36,6 +36,8 @@ UPDATE = "--update" in sys.argv
 LW, ROOT, OUT = args[0], pathlib.Path(args[1]), pathlib.Path(args[2])
 CHROMIUM = args[3] if len(args) > 3 else shutil.which("chromium") or "chromium"
 REF = ROOT / "tests" / "visual"
+# a judgement, no source: anti-aliasing between runs of one browser moves a
+# few pixels by little; a moved label or line moves hundreds by much
 TOL_DIFF, TOL_SHARE = 40, 0.0005
 
 

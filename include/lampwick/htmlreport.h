@@ -31,8 +31,7 @@ typedef struct lw_html_options {
 
 /* The sections, in order, by their HTML id: summary, inputs, provenance,
  * specification, discharge, energy, corners, spread (only with spread
- * keys), warnings, caution.  Tests check the document for each. */
-extern const char *const lw_html_sections[];
+ * keys), warnings, caution (tests/browser_check.py checks each). */
 
 /* Write the review of prof (as loaded, its mode and overrides applied).
  * LW_ENOANSWER when the light gives no light at switch-on (nothing to

@@ -35,6 +35,11 @@ typedef struct lw_mc_study {
 LW_MUST_CHECK lw_status lw_report_mc(FILE *fp, const lw_mc_study *s, lw_rtable_format fmt,
                                      bool quiet, lw_error *err);
 
+/* The report's headline into buf: "95 % of units run at least X h (95 %
+ * interval A to B h); the nominal unit runs Y h." */
+LW_MUST_CHECK lw_status lw_report_mc_headline(const lw_mc_study *s, char *buf, size_t size,
+                                              lw_error *err);
+
 /* One row per unit: sample, the drawn values, the quantities, warnings. */
 LW_MUST_CHECK lw_status lw_report_mc_samples(FILE *fp, const lw_mc_study *s,
                                                  lw_error *err);

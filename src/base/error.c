@@ -67,7 +67,6 @@ void lw_error_format(const lw_error *err, char *buf, size_t size)
     lw_text_escape(buf, size, raw);
 }
 
-
 int lw_status_exit_code(lw_status st)
 {
     switch (st) {

@@ -110,7 +110,7 @@ void lw_text_xml_write(FILE *fp, const char *s)
     for (; s && *s; s++) {
         unsigned char c = (unsigned char)*s;
         if (c >= 0x80) {
-            size_t n = strlen(s), len = (c >> 5) == 6    ? 2
+            size_t n = strnlen(s, 4), len = (c >> 5) == 6    ? 2
                                         : (c >> 4) == 14 ? 3
                                         : (c >> 3) == 30 ? 4
                                                          : 0;

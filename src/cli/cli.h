@@ -86,8 +86,9 @@ typedef struct cli_command {
     int (*run)(int argc, char **argv);
 } cli_command;
 
-/* The safety text every help ends with ("Safety" and its lines). */
-extern const char *const cli_safety_text;
+/* The safety text every help ends with: "Safety" and lw_report_safety
+ * wrapped and indented. */
+void cli_safety(FILE *fp);
 
 /* Write manual page `page` (lampwick.1, lampwick-profile.5 or
  * lampwick-cell.5) as roff, generated from the command and key tables
@@ -145,7 +146,6 @@ int cli_out_close(common_opts *o, const char *cmd, const char *input, int code);
  * number): 0, or the exit code of a usage error. */
 int sample_option(const char *cmd, int id, const char *arg, size_t *samples, uint64_t *seed);
 
-int exit_code(lw_status st);
 /* Print "lampwick: file:line: message" and return the exit code. */
 int report_error(const lw_error *err);
 /* Print a usage error once, with the hint to the command's help. */

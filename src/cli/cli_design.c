@@ -126,8 +126,9 @@ int cli_sweep(int argc, char **argv)
         total *= vary[k].n;
     /* the rows are written as they complete; the chart comes after them */
     if (st == LW_OK)
-        st = lw_report_sweep_stream(&prof, vary, a.nvary, a.o.threads, a.o.fmt, a.o.quiet, a.columns, a.o.out,
-                                    want_progress(total) ? progress : NULL, NULL, &sw, &err);
+        st = lw_report_sweep_stream(&prof, vary, a.nvary, a.o.threads, a.o.fmt, a.o.quiet,
+                                    a.columns, a.o.out, want_progress(total) ? progress : NULL,
+                                    NULL, &sw, &err);
     if (st == LW_OK && a.plot_path)
         st = sweep_plot(a.plot_path, &prof, &sw, &err);
     int code = st == LW_OK ? 0 : report_error(&err);
@@ -234,7 +235,8 @@ int cli_pick(int argc, char **argv)
             if (status[i] == LW_OK || (picks[i].resistor_ohm > 0 && picks[i].within_ratings))
                 picks[shown++] = picks[i];
         if (shown)
-            st = lw_report_pick(a.o.out, &prof, picks, shown, a.kind, target, a.o.fmt, a.o.quiet, &err);
+            st = lw_report_pick(a.o.out, &prof, picks, shown, a.kind, target, a.o.fmt,
+                                a.o.quiet, &err);
         for (size_t i = 0; st == LW_OK && i < n; i++)
             if (status[i] != LW_OK)
                 code = report_error(&errs[i]);

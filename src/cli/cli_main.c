@@ -18,15 +18,27 @@
 #include <unistd.h>
 #include "lw_config.h"
 
-const char *const cli_safety_text =
-    "Safety\n"
-    "  Lithium cells can overheat, vent and burn when shorted, over-discharged, charged\n"
-    "  wrongly or mixed with cells of another type, age or charge. Resistors and drivers\n"
-    "  get hot: check their power and temperature in the real enclosure. Bright LEDs can\n"
-    "  harm eyes (see IEC 62471). lampwick's figures are estimates from typical data:\n"
-    "  follow the cell maker's limits, the applicable safety standards (for example\n"
-    "  IEC 62133-2 for lithium-ion cells) and local codes, and have a product checked\n"
-    "  by qualified people.\n";
+void cli_safety(FILE *fp)
+{
+    enum { WIDTH = 84, INDENT = 2 };
+    fputs("Safety\n", fp);
+    size_t col = 0;
+    for (const char *s = lw_report_safety; *s;) {
+        size_t len = strcspn(s, " ");
+        if (col && col + 1 + len > WIDTH) {
+            fputc('\n', fp);
+            col = 0;
+        }
+        if (col == 0)
+            col = (size_t)fprintf(fp, "%*s", INDENT, "");
+        else
+            col += (size_t)fprintf(fp, " ");
+        col += fwrite(s, 1, len, fp);
+        s += len;
+        s += strspn(s, " ");
+    }
+    fputc('\n', fp);
+}
 
 static const char *const main_help =
     "lampwick - runtime and brightness of battery-powered LED lights\n"
@@ -430,12 +442,12 @@ static int help(int argc, char **argv)
             cli_help(c, stdout);
         }
         fputc('\n', stdout);
-        fputs(cli_safety_text, stdout);
+        cli_safety(stdout);
         return 0;
     }
     fputs(main_help, stdout);
     fputc('\n', stdout);
-    fputs(cli_safety_text, stdout);
+    cli_safety(stdout);
     return 0;
 }
 

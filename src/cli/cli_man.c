@@ -78,8 +78,7 @@ static void header(FILE *fp, const char *name, int section, const char *what)
 static void safety(FILE *fp)
 {
     fputs(".SH SAFETY\n", fp);
-    const char *body = strchr(cli_safety_text, '\n');
-    roff_text(fp, body ? body + 1 : cli_safety_text, false);
+    roff_text(fp, lw_report_safety, false);
     fputc('\n', fp);
 }
 

@@ -252,17 +252,12 @@ int sample_option(const char *cmd, int id, const char *arg, size_t *samples, uin
     return 0;
 }
 
-int exit_code(lw_status st)
-{
-    return lw_status_exit_code(st);
-}
-
 int report_error(const lw_error *err)
 {
     char buf[LW_ERR_FILE_MAX + LW_ERR_MSG_MAX + 32];
     lw_error_format(err, buf, sizeof buf);
     fprintf(stderr, "lampwick: %s\n", buf);
-    return exit_code(err->code);
+    return lw_status_exit_code(err->code);
 }
 
 int usage_error(const char *cmd, const char *fmt, ...)

@@ -8,7 +8,6 @@
  */
 #include "lampwick/htmlreport.h"
 
-#include <math.h>
 #include <stdarg.h>
 #include <stdlib.h>
 #include <string.h>
@@ -24,10 +23,6 @@
 #include "lampwick/text.h"
 #include "lampwick/trace.h"
 #include "lw_config.h"
-
-const char *const lw_html_sections[] = {"summary",  "inputs",  "provenance", "specification",
-                                        "discharge", "energy", "corners",    "spread",
-                                        "warnings", "caution", NULL};
 
 /* Screen and print.  A section starts a new page in print; a table, chart
  * or figure is never split across pages.  No class name of the charts'
@@ -280,7 +275,8 @@ static bool same_file(const char *read, const char *named)
     size_t n = strlen(read), k = strlen(named);
     if (!k)
         return false;
-    return !strcmp(read, named) || (k < n && read[n - k - 1] == '/' && !strcmp(read + n - k, named));
+    return !strcmp(read, named) ||
+           (k < n && read[n - k - 1] == '/' && !strcmp(read + n - k, named));
 }
 
 static void provenance(FILE *fp, const review *v)
@@ -288,18 +284,25 @@ static void provenance(FILE *fp, const review *v)
     const lw_profile *p = v->prof;
     const lw_light *l = &p->light;
     section_begin(fp, "provenance", "Where the data come from");
+    const struct {
+        const char *path, *role;
+    } roles[] = {{p->path, "profile"},
+                 {p->cell_path, "cell file"},
+                 {l->pack.cell.curve_path, "cell discharge curve"},
+                 {l->pack.cell.temperature_path, "cell temperature table"},
+                 {p->iv_file, "LED I-V (measured)"},
+                 {p->flux_file, "LED light output (measured)"},
+                 {p->efficiency_file, "driver efficiency (measured)"}};
     char files[16][LW_PATH_MAX];
     size_t n = lw_profile_inputs(p, files, 16);
     fputs("<ul>\n", fp);
     for (size_t i = 0; i < n; i++) {
-        const char *role = same_file(files[i], p->path)                        ? "profile"
-                           : same_file(files[i], p->cell_path)                 ? "cell file"
-                           : same_file(files[i], l->pack.cell.curve_path)      ? "cell discharge curve"
-                           : same_file(files[i], l->pack.cell.temperature_path) ? "cell temperature table"
-                           : same_file(files[i], p->iv_file)                   ? "LED I-V (measured)"
-                           : same_file(files[i], p->flux_file)                 ? "LED light output (measured)"
-                           : same_file(files[i], p->efficiency_file)           ? "driver efficiency (measured)"
-                                                                                : "input";
+        const char *role = "input";
+        for (size_t k = 0; k < sizeof roles / sizeof roles[0]; k++)
+            if (same_file(files[i], roles[k].path)) {
+                role = roles[k].role;
+                break;
+            }
         fputs("<li>", fp);
         text(fp, role);
         fputs(": <code>", fp);
@@ -410,18 +413,14 @@ static lw_status ranking_fn(FILE *fp, const void *ctx, lw_error *err)
 static lw_status spread(FILE *fp, const review *v, lw_error *err)
 {
     section_begin(fp, "spread", "Spread over the units made");
-    lw_mc_summary rt;
-    lw_status st = lw_mc_summarise(&v->mc, LW_MC_RUNTIME, &rt, err);
+    char line[256];
+    lw_status st = lw_report_mc_headline(&v->study, line, sizeof line, err);
     if (st == LW_OK) {
-        char buf[400], interval[96] = "no interval at this many units";
-        if (!isnan(rt.pct_lo[1]) && !isnan(rt.pct_hi[1]))
-            snprintf(interval, sizeof interval, "95 %% interval %.4g to %.4g h", rt.pct_lo[1],
-                     rt.pct_hi[1]);
+        char buf[400];
         snprintf(buf, sizeof buf,
                  "%zu units sampled at random (seed %llu) from the profile's [spread] "
-                 "section: 95 %% of units run at least %.4g h (%s); the nominal unit runs "
-                 "%.4g h.",
-                 v->mc.n, (unsigned long long)v->mco.seed, rt.pct[1], interval, rt.nominal);
+                 "section: %s",
+                 v->mc.n, (unsigned long long)v->mco.seed, line);
         para(fp, buf);
         st = figure(fp, hist_fn, &v->study, "Runtime over the sampled units, percentiles marked.",
                     err);
@@ -429,12 +428,14 @@ static lw_status spread(FILE *fp, const review *v, lw_error *err)
     if (st == LW_OK)
         st = lw_report_mc(fp, &v->study, LW_FMT_HTML, false, err);
     if (st == LW_OK)
-        st = figure(fp, ranking_fn, &v->study, "What drives the runtime and the 30-s output: rank regression.", err);
+        st = figure(fp, ranking_fn, &v->study,
+                    "What drives the runtime and the 30-s output: rank regression.", err);
     section_end(fp);
     return st;
 }
 
-/* Every warning any mode's run or the spread's units raised, in words. */
+/* Every warning the light as loaded or any mode's run raised, in words
+ * (the spread's units' shares are in its own section). */
 static void warnings(FILE *fp, const review *v)
 {
     unsigned all = v->run.warnings;

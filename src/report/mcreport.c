@@ -75,7 +75,8 @@ static bool tables_only(lw_rtable_format fmt)
 }
 
 /* Write t (freed) and a blank line after it in text and Markdown. */
-static lw_status put(lw_rtable *t, lw_status st, FILE *fp, lw_rtable_format fmt, bool quiet, lw_error *err)
+static lw_status put(lw_rtable *t, lw_status st, FILE *fp, lw_rtable_format fmt, bool quiet,
+                     lw_error *err)
 {
     if (!t)
         return st == LW_OK ? LW_ENOMEM : st;
@@ -117,8 +118,8 @@ static lw_status summary_table(FILE *fp, const lw_mc_study *s, const lw_mc_summa
     return put(t, st, fp, fmt, quiet, err);
 }
 
-static lw_status interval_table(FILE *fp, const lw_mc_summary *sum, lw_rtable_format fmt, bool quiet,
-                                lw_error *err)
+static lw_status interval_table(FILE *fp, const lw_mc_summary *sum, lw_rtable_format fmt,
+                                bool quiet, lw_error *err)
 {
     const char *head[1 + 2 * LW_MC_NPCT];
     char names[2 * LW_MC_NPCT][16];
@@ -312,18 +313,10 @@ static lw_status ranking_table(FILE *fp, const lw_mc_study *s, lw_mc_quantity q,
     return put(t, st, fp, fmt, quiet, err);
 }
 
-static lw_status spread_in_c_locale(FILE *fp, const lw_mc_study *s, lw_rtable_format fmt, bool quiet,
-                                    lw_error *err)
+/* "95 % of units run at least X h (95 % interval A to B h); the nominal
+ * unit runs Y h." from the runtime's summary rt. */
+static void headline(const lw_mc_study *s, const lw_mc_summary *rt, char *buf, size_t size)
 {
-    lw_mc_summary sum[LW_MC_QCOUNT];
-    lw_status st = LW_OK;
-    for (int q = 0; q < LW_MC_QCOUNT && st == LW_OK; q++)
-        st = lw_mc_summarise(s->res, (lw_mc_quantity)q, &sum[q], err);
-    if (st != LW_OK)
-        return st;
-    if (fmt == LW_FMT_CSV)
-        return summary_table(fp, s, sum, fmt, quiet, err);
-    const lw_mc_summary *rt = &sum[LW_MC_RUNTIME];
     char lo[32] = "-", hi[32] = "-", interval[96];
     if (!isnan(rt->pct_lo[1]))
         snprintf(lo, sizeof lo, "%.4g", rt->pct_lo[1]);
@@ -333,11 +326,38 @@ static lw_status spread_in_c_locale(FILE *fp, const lw_mc_study *s, lw_rtable_fo
         snprintf(interval, sizeof interval, "Sobol points: no interval");
     else
         snprintf(interval, sizeof interval, "95 %% interval %s to %s h", lo, hi);
-    if (!tables_only(fmt))
-        fprintf(fp, "%s%s: spread%s\n\n95 %% of units run at least %.4g h (%s); the nominal unit "
-                "runs %.4g h.\n\n",
-            fmt == LW_FMT_MD ? "**" : "", s->prof->light.name, fmt == LW_FMT_MD ? "**" : "",
-            rt->pct[1], interval, rt->nominal);
+    snprintf(buf, size, "95 %% of units run at least %.4g h (%s); the nominal unit runs %.4g h.",
+             rt->pct[1], interval, rt->nominal);
+}
+
+lw_status lw_report_mc_headline(const lw_mc_study *s, char *buf, size_t size, lw_error *err)
+{
+    lw_mc_summary rt;
+    locale_t saved = lw_number_locale_begin();
+    lw_status st = lw_mc_summarise(s->res, LW_MC_RUNTIME, &rt, err);
+    if (st == LW_OK)
+        headline(s, &rt, buf, size);
+    lw_number_locale_end(saved);
+    return st;
+}
+
+static lw_status spread_in_c_locale(FILE *fp, const lw_mc_study *s, lw_rtable_format fmt,
+                                    bool quiet, lw_error *err)
+{
+    lw_mc_summary sum[LW_MC_QCOUNT];
+    lw_status st = LW_OK;
+    for (int q = 0; q < LW_MC_QCOUNT && st == LW_OK; q++)
+        st = lw_mc_summarise(s->res, (lw_mc_quantity)q, &sum[q], err);
+    if (st != LW_OK)
+        return st;
+    if (fmt == LW_FMT_CSV)
+        return summary_table(fp, s, sum, fmt, quiet, err);
+    if (!tables_only(fmt)) {
+        char line[256];
+        headline(s, &sum[LW_MC_RUNTIME], line, sizeof line);
+        fprintf(fp, "%s%s: spread%s\n\n%s\n\n", fmt == LW_FMT_MD ? "**" : "",
+                s->prof->light.name, fmt == LW_FMT_MD ? "**" : "", line);
+    }
     st = summary_table(fp, s, sum, fmt, quiet, err);
     if (st == LW_OK && s->opt->sobol && !tables_only(fmt) && !quiet)
         fputs("Sobol points: the estimates converge faster than random units', but the units "

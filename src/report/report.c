@@ -19,9 +19,9 @@ const char *const lw_report_safety =
     "Lithium cells can overheat, vent and burn when shorted, over-discharged, charged wrongly "
     "or mixed with cells of another type, age or charge. Resistors and drivers get hot: check "
     "their power and temperature in the real enclosure. Bright LEDs can harm eyes (see IEC "
-    "62471). Follow the cell maker's limits, the applicable safety standards (for example IEC "
-    "62133-2 for lithium-ion cells) and local codes, and have a product checked by qualified "
-    "people.";
+    "62471). lampwick's figures are estimates from typical data: follow the cell maker's "
+    "limits, the applicable safety standards (for example IEC 62133-2 for lithium-ion cells) "
+    "and local codes, and have a product checked by qualified people.";
 
 char lw_report_warning_marker(int bit)
 {

@@ -16,7 +16,6 @@
 #include "lampwick/text.h"
 #include "jsontable.h"
 
-
 bool lw_rtable_format_parse(const char *s, lw_rtable_format *fmt)
 {
     if (!strcmp(s, "text"))
@@ -266,20 +265,36 @@ static const char *group_of(const lw_rtable *t, size_t c)
     return t->group[c] ? t->group[c] : "";
 }
 
+/* The column after the group that starts at column c (its neighbours with
+ * the same label). */
+static size_t group_end(const lw_rtable *t, size_t c)
+{
+    size_t e = c + 1;
+    while (e < t->ncol && !strcmp(group_of(t, e), group_of(t, c)))
+        e++;
+    return e;
+}
+
+/* Whether any column has a group label. */
+static bool has_groups(const lw_rtable *t)
+{
+    for (size_t c = 0; c < t->ncol; c++)
+        if (group_of(t, c)[0])
+            return true;
+    return false;
+}
+
 /* Text: a line of group labels over their columns, underlined. */
 static void write_groups(const lw_rtable *t, FILE *fp, const size_t *w)
 {
-    bool any = false;
-    for (size_t c = 0; c < t->ncol; c++)
-        any = any || group_of(t, c)[0];
-    if (!any)
+    if (!has_groups(t))
         return;
     for (int pass = 0; pass < 2; pass++) {
         size_t c = 0;
         while (c < t->ncol) {
-            size_t e = c + 1, span = w[c];
-            while (e < t->ncol && !strcmp(group_of(t, e), group_of(t, c)))
-                span += 2 + w[e++];
+            size_t e = group_end(t, c), span = w[c];
+            for (size_t k = c + 1; k < e; k++)
+                span += 2 + w[k];
             const char *g = group_of(t, c);
             if (c)
                 fputs("  ", fp);
@@ -335,9 +350,9 @@ static bool write_text(const lw_rtable *t, FILE *fp)
     }
     /* a group label wider than its columns widens the last of them */
     for (size_t c = 0; c < t->ncol;) {
-        size_t e = c + 1, span = w[c];
-        while (e < t->ncol && !strcmp(group_of(t, e), group_of(t, c)))
-            span += 2 + w[e++];
+        size_t e = group_end(t, c), span = w[c];
+        for (size_t k = c + 1; k < e; k++)
+            span += 2 + w[k];
         if (width(group_of(t, c)) > span)
             w[e - 1] += width(group_of(t, c)) - span;
         c = e;
@@ -474,7 +489,6 @@ static void write_csv(const lw_rtable *t, FILE *fp, lw_csvw *w)
 /* ---- JSON ---- */
 
 #define LW_JSON_KEY_MAX 96
-
 
 /* Whether s is a number in JSON's grammar (RFC 8259 section 6):
  * -?(0|[1-9][0-9]*)(.[0-9]+)?([eE][+-]?[0-9]+)? */
@@ -615,15 +629,10 @@ static void write_html(const lw_rtable *t, FILE *fp)
         fputs("</caption>\n", fp);
     }
     fputs("<thead>\n", fp);
-    bool groups = false;
-    for (size_t c = 0; c < t->ncol; c++)
-        groups = groups || group_of(t, c)[0];
-    if (groups) { /* a row of column groups, each spanning its neighbours */
+    if (has_groups(t)) { /* a row of column groups, each spanning its neighbours */
         fputs("<tr>", fp);
         for (size_t c = 0; c < t->ncol;) {
-            size_t e = c + 1;
-            while (e < t->ncol && !strcmp(group_of(t, e), group_of(t, c)))
-                e++;
+            size_t e = group_end(t, c);
             fprintf(fp, "<th scope=\"colgroup\" colspan=\"%zu\">", e - c);
             lw_text_xml_write(fp, group_of(t, c));
             fputs("</th>", fp);

@@ -25,7 +25,6 @@ static void lw_report_spec_hours_in_c_locale(double h, char *buf, size_t size)
         snprintf(buf, size, "%.0f h", h);
 }
 
-
 /* CSV and JSON take the table for programs: a column per cell and
  * quantity, numbers in full precision, the end reason and warnings in
  * words (text and Markdown: rounded, grouped by cell, notes as marks). */
